@@ -1,0 +1,266 @@
+"""The main job in one call: :func:`assess` turns a scenario into an :class:`Assessment`.
+
+Both shells render an Assessment; neither recomputes anything.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Final
+
+from . import __version__, units
+from .cautions import CAUTIONS
+from .constants import Constant, resolve_constants
+from .dosing import DoseLimit, DoseSuggestion, highest_perpetrator_scale, suggest_dose
+from .exposure import Setting, SpeciesExposure, resolve_exposure, resolve_settings
+from .prediction import Prediction, predict, ratio_function
+from .scenario import Scenario
+from .screening import ScreenResult, screen
+from .tables import RuleSet, Sourced, load_classes, load_rules, resolve_target, table_versions
+
+__all__ = ["Assessment", "Provenance", "assess"]
+
+_UNCOMPETITIVE_NOTE: Final = (
+    "uncompetitive inhibition barely lowers intrinsic clearance at substrate concentrations far below Km; "
+    "the models apply Ki as if competitive, which overstates the effect (conservative)"
+)
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Provenance:
+    tool_version: str
+    rules_id: str
+    rules_title: str
+    rules_version: str
+    rules_table_version: str
+    rules_path: str
+    table_versions: tuple[tuple[str, str], ...]
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Assessment:
+    """Everything the engine computed for one scenario, with what it rests on."""
+
+    scenario: Scenario
+    rules: RuleSet
+    settings: tuple[Setting, ...]
+    species: tuple[SpeciesExposure, ...]
+    constants: tuple[Constant, ...]
+    screen: tuple[ScreenResult, ...]
+    prediction: Prediction
+    aucr_cutoff: Sourced
+    study_indicated: bool
+    dose: DoseSuggestion
+    perpetrator_limit: DoseLimit
+    kdeg_used: tuple[Setting, ...]
+    warnings: tuple[str, ...]
+    cautions: tuple[str, ...]
+    memory_values: tuple[str, ...]
+    provenance: Provenance
+
+
+def _kdeg(scenario: Scenario, constants: tuple[Constant, ...]) -> tuple[dict[str, tuple[float | None, float | None]], list[Setting]]:
+    """kdeg per enzyme (liver, gut) in 1/h: the scenario's override, else the targets table."""
+    out: dict[str, tuple[float | None, float | None]] = {}
+    used: list[Setting] = []
+    needed = {c.target for c in constants if c.kinact_per_h is not None}
+    overrides = {t.enzyme: t for t in scenario.turnover}
+    for enzyme in sorted(needed):
+        target = resolve_target(enzyme)
+        values: list[float | None] = []
+        for site in ("liver", "gut"):
+            given = getattr(overrides.get(enzyme), f"kdeg_{site}", None)
+            table: Sourced | None = getattr(target, f"kdeg_{site}", None) if target else None
+            if given is not None:
+                v = units.magnitude(given, "1/h")
+                used.append(Setting(name=f"kdeg_{site}", label=f"kdeg {enzyme} ({site})", value=v, unit="1/h", origin="override"))
+            elif table is not None:
+                v = units.magnitude(units.parse(table.value, "rate", field=f"targets.{enzyme}.kdeg_{site}"), "1/h")
+                used.append(
+                    Setting(
+                        name=f"kdeg_{site}", label=f"kdeg {enzyme} ({site})", value=v, unit="1/h", origin="default",
+                        source=table.source, status=table.status,
+                    )
+                )
+            else:
+                v = None
+            values.append(v)
+        out[enzyme] = (values[0], values[1])
+    return out, used
+
+
+def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment:
+    """Assess a perpetrator-victim scenario.
+
+    Parameters
+    ----------
+    scenario
+        A validated :class:`~interact.scenario.Scenario`.
+    rules
+        A rule set, its name, or a path to a rule-set TOML file.  By default the
+        scenario's own ``rules`` key, else ICH M12 (2024).
+
+    Returns
+    -------
+    Assessment
+        Concentrations, basic-model results, mechanistic AUC ratios, the dose
+        suggestion, warnings, cautions and provenance.
+
+    Raises
+    ------
+    InputError
+        If a value the engine needs cannot be used (for example a mass
+        concentration without molar mass in a hand-built scenario).
+    """
+    rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules if rules is not None else scenario.rules)
+    classes = load_classes()
+    settings = resolve_settings(scenario, rule_set)
+    species, fu_settings = resolve_exposure(scenario, rule_set, settings)
+    constants = resolve_constants(scenario)
+    kdeg, kdeg_used = _kdeg(scenario, constants)
+    p = scenario.perpetrator
+    v = scenario.victim
+    warnings: list[str] = []
+    screen_results = screen(
+        rule_set, constants, species, oral=p.route == "oral", kdeg_liver={k: lv for k, (lv, _) in kdeg.items() if lv is not None}
+    )
+
+    acting_targets = {c.target for c in constants}
+    gut_enzyme = next((c.target for c in constants if c.gut_wall), None) if v.route == "oral" else None
+    fg_setting_default = v.fg is None
+    fg = 1.0 if v.fg is None else v.fg
+    pathways = tuple((pw.enzyme, pw.fm) for pw in v.pathways)
+    prediction = predict(
+        pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, classes=classes
+    )
+
+    # -- warnings a reviewer would want
+    if gut_enzyme is not None and fg_setting_default:
+        warnings.append(
+            f"victim.fg not given: Fg = 1 assumed, so no gut-wall interaction is predicted although {gut_enzyme} "
+            "is inhibited; give the victim's Fg."
+        )
+    untouched = [pw.enzyme for pw in v.pathways if pw.enzyme not in acting_targets]
+    if untouched:
+        warnings.append(f"The perpetrator has no entry for the victim's pathway(s) {', '.join(untouched)}: taken as unaffected.")
+    if not v.pathways:
+        warnings.append("The victim lists no metabolic pathways: the liver term is 1 by construction.")
+    for c in constants:
+        if c.mechanism == "uncompetitive" and c.ki_u_um is not None:
+            warnings.append(f"{c.species} on {c.target}: {_UNCOMPETITIVE_NOTE}.")
+        if c.fu_inc_origin == "default" and c.kind == "enzyme" and c.ki_u_um is not None:
+            warnings.append(f"{c.species} on {c.target}: fu,inc not given; Ki taken as unbound (fu,inc = 1).")
+    for kd in kdeg_used:
+        if kd.from_memory:
+            warnings.append(f"{kd.label} = {kd.value:.4g} 1/h is from memory ({kd.source}); override it under [[turnover]] if you have a better value.")
+    for enzyme, (lv, _) in kdeg.items():
+        if lv is None:
+            warnings.append(f"No hepatic kdeg is known for {enzyme}: its time-dependent inhibition is left out; give it under [[turnover]].")
+    rev_flags = {r.target for r in screen_results if r.criterion.startswith("reversible") and r.indicated}
+    if prediction.total >= float(rule_set.aucr_inhibition_cutoff.value):
+        missed = [pw.enzyme for pw in v.pathways if pw.enzyme in acting_targets and pw.enzyme not in rev_flags]
+        if missed and any(c.ki_u_um is not None and c.target in missed for c in constants):
+            warnings.append(
+                f"The mechanistic model predicts AUCR >= {rule_set.aucr_inhibition_cutoff.value:g} although the basic R1 "
+                f"screen does not flag {', '.join(missed)}: the hepatic inlet concentration exceeds Cmax,u."
+            )
+    for pw in v.pathways:
+        if pw.fm >= 0.25:
+            pass
+    # -- dose
+    usual_unit = units.unit_text(v.dose)
+    usual = float(v.dose.magnitude)
+    strengths = tuple(units.magnitude(s, usual_unit) for s in v.strengths)
+    if v.no_effect_lower is not None and v.no_effect_upper is not None:
+        boundary = (v.no_effect_lower, v.no_effect_upper)
+        origin = "given for this victim"
+    else:
+        boundary = (classes.no_effect_lower, classes.no_effect_upper)
+        origin = "default 0.8-1.25, ICH M12 5.3.1"
+    dose = suggest_dose(
+        auc_ratio=prediction.total,
+        usual_dose=usual,
+        dose_unit=usual_unit,
+        interval_h=units.magnitude(v.interval, "h"),
+        strengths=strengths,
+        boundary=boundary,
+        boundary_origin=origin,
+        narrow_therapeutic_index=v.narrow_therapeutic_index,
+    )
+
+    ratio_at = ratio_function(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
+
+    limit = _perpetrator_limit(p, prediction, ratio_at, boundary[1])
+
+    aucr_cut = rule_set.aucr_inhibition_cutoff
+    induced = prediction.total <= float(rule_set.aucr_induction_cutoff.value)
+    study = prediction.total >= float(aucr_cut.value) or induced
+    if induced:
+        aucr_cut = rule_set.aucr_induction_cutoff
+
+    all_settings = (*settings.values(), *fu_settings)
+    memory = tuple(
+        sorted(
+            {f"{s.label}: {s.source}" for s in (*all_settings, *kdeg_used) if s.from_memory and s.origin in ("default", "rule set")}
+            | {f"{r.label} cutoff for {r.target} ({rule_set.id}): {r.cutoff.source}" for r in screen_results if r.cutoff.from_memory}
+            | {
+                f"{r.label} multiplier ({rule_set.id}): {r.multiplier_source.source}"
+                for r in screen_results
+                if r.multiplier_source is not None and r.multiplier_source.from_memory
+            }
+            | ({f"AUCR cutoff ({rule_set.id}): {aucr_cut.source}"} if aucr_cut.from_memory else set())
+            | (
+                {f"Class band '{prediction.band.name}': {prediction.band.source}"}
+                if prediction.band is not None and prediction.band.status == "from memory"
+                else set()
+            )
+        )
+    )
+    provenance = Provenance(
+        tool_version=__version__,
+        rules_id=rule_set.id,
+        rules_title=rule_set.title,
+        rules_version=rule_set.version,
+        rules_table_version=rule_set.table_version,
+        rules_path=rule_set.path,
+        table_versions=table_versions(),
+    )
+    return Assessment(
+        scenario=scenario,
+        rules=rule_set,
+        settings=all_settings,
+        species=species,
+        constants=constants,
+        screen=screen_results,
+        prediction=prediction,
+        aucr_cutoff=aucr_cut,
+        study_indicated=study,
+        dose=dose,
+        perpetrator_limit=limit,
+        kdeg_used=tuple(kdeg_used),
+        warnings=tuple(warnings),
+        cautions=CAUTIONS,
+        memory_values=memory,
+        provenance=provenance,
+    )
+
+
+def _perpetrator_limit(p, prediction: Prediction, ratio_at, upper: float) -> DoseLimit:  # type: ignore[no-untyped-def]
+    unit = units.unit_text(p.dose)
+    dose = float(p.dose.magnitude)
+    if "induction" in prediction.mechanisms:
+        return DoseLimit(scale=None, dose=None, dose_unit=unit, boundary_upper=upper,
+                         reason="not computed: the perpetrator also induces, so the ratio need not rise with dose")
+    if prediction.ceiling_total < upper:
+        return DoseLimit(scale=None, dose=None, dose_unit=unit, boundary_upper=upper,
+                         reason=f"no limit: even complete inhibition (AUCR {prediction.ceiling_total:.3g}) stays below {upper:g}")
+    scale = highest_perpetrator_scale(ratio_at, upper)
+    if scale is None:
+        return DoseLimit(scale=None, dose=None, dose_unit=unit, boundary_upper=upper, reason=f"no dose reaches AUCR {upper:g}")
+    return DoseLimit(
+        scale=scale, dose=scale * dose, dose_unit=unit, boundary_upper=upper,
+        reason=(
+            f"highest perpetrator dose keeping the victim's AUCR at or below {upper:g}, assuming the perpetrator's "
+            "concentrations scale linearly with its dose"
+        ),
+    )

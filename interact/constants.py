@@ -1,0 +1,105 @@
+"""Unbound in vitro constants per inhibitory species and target.
+
+Turns each :class:`~interact.scenario.Inhibition` into floats in canonical
+units: Ki,u (uM) from Ki or from IC50 by Cheng-Prusoff, times fu,inc; and,
+when given, kinact (1/h) with KI,u (uM) and Emax with EC50,u (uM) and d.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from . import units
+from .kinetics.conversion import CHENG_PRUSOFF_SOURCE, ki_from_ic50
+from .scenario import Inhibition, Scenario
+from .tables import load_physiology, resolve_target
+
+__all__ = ["Constant", "resolve_constants"]
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Constant:
+    """One species' action on one target, in canonical units (None where not given)."""
+
+    species: str
+    species_index: int
+    target: str
+    group: str
+    kind: str
+    gut_wall: bool
+    ki_um: float | None
+    ki_u_um: float | None
+    ki_route: str
+    fu_inc: float
+    fu_inc_origin: str
+    mechanism: str
+    kinact_per_h: float | None = None
+    ki_inact_u_um: float | None = None
+    emax: float | None = None
+    ec50_u_um: float | None = None
+    calibration: float = 1.0
+    calibration_origin: str = "default"
+    origin: str = ""
+
+
+def _one(item: Inhibition, species: str, index: int, mw: units.Quantity | None, path: str) -> Constant:
+    target = resolve_target(item.target)
+    assert target is not None  # validated in scenario
+    fu_default = float(next(p for p in load_physiology() if p.name == "fu_inc").value)
+    fu = item.fu_inc if item.fu_inc is not None else fu_default
+    ki_um: float | None = None
+    route = ""
+    if item.ki is not None:
+        ki_um = units.concentration_um(item.ki, mw, field=f"{path}.ki")
+        route = "Ki given"
+    elif item.ic50 is not None:
+        ic50 = units.concentration_um(item.ic50, mw, field=f"{path}.ic50")
+        if target.kind == "transporter":
+            ki_um, route = ic50, "IC50 taken as Ki (transporter, as guidance does)"
+        elif item.mechanism == "noncompetitive":
+            ki_um, route = ic50, f"Cheng-Prusoff, noncompetitive: Ki = IC50 ({CHENG_PRUSOFF_SOURCE})"
+        else:
+            s = units.concentration_um(item.substrate_conc, mw, field=f"{path}.substrate_conc") if item.substrate_conc else None
+            km = units.concentration_um(item.km, mw, field=f"{path}.km") if item.km else None
+            ki_um = float(ki_from_ic50(ic50, item.mechanism, s, km, item.alpha))
+            route = (
+                f"Cheng-Prusoff, {item.mechanism}: IC50 {ic50:.4g} uM, [S] {s:.4g} uM, Km {km:.4g} uM"
+                + (f", alpha {item.alpha:g}" if item.mechanism == "mixed" else "")
+                + f" ({CHENG_PRUSOFF_SOURCE})"
+            )
+    kinact = units.magnitude(item.kinact, "1/h") if item.kinact is not None else None
+    ki_inact = units.concentration_um(item.ki_inact, mw, field=f"{path}.ki_inact") if item.ki_inact is not None else None
+    ec50 = units.concentration_um(item.ec50, mw, field=f"{path}.ec50") if item.ec50 is not None else None
+    return Constant(
+        species=species,
+        species_index=index,
+        target=target.name,
+        group=target.group,
+        kind=target.kind,
+        gut_wall=target.gut_wall,
+        ki_um=ki_um,
+        ki_u_um=None if ki_um is None else ki_um * fu,
+        ki_route=route,
+        fu_inc=fu,
+        fu_inc_origin="given" if item.fu_inc is not None else "default",
+        mechanism=item.mechanism,
+        kinact_per_h=kinact,
+        ki_inact_u_um=ki_inact,
+        emax=item.emax,
+        ec50_u_um=ec50,
+        calibration=1.0 if item.calibration is None else item.calibration,
+        calibration_origin="default" if item.calibration is None else "given",
+        origin=item.origin,
+    )
+
+
+def resolve_constants(scenario: Scenario) -> tuple[Constant, ...]:
+    """All constants of the parent (species 0) and its metabolites (1, 2, ...)."""
+    p = scenario.perpetrator
+    out = [_one(item, p.name, 0, p.molar_mass, f"perpetrator.inhibits[{i}]") for i, item in enumerate(p.inhibits)]
+    for j, m in enumerate(p.metabolites, start=1):
+        out.extend(
+            _one(item, m.name, j, m.molar_mass, f"perpetrator.metabolites[{j - 1}].inhibits[{i}]")
+            for i, item in enumerate(m.inhibits)
+        )
+    return tuple(out)

@@ -1,0 +1,265 @@
+"""Dose suggestion for the victim, fm back-calculation, perpetrator-dose ceiling.
+
+PK principles (from memory; standard linear pharmacokinetics):
+
+- with linear kinetics, the dose that restores the reference exposure is
+  dose / AUCR; the interval that does the same is tau x AUCR (same average
+  concentration, wider peak-trough swings);
+- act only when the AUC ratio lies outside the victim's no-effect boundary
+  (S6: ICH M12 5.3.1; default 0.8-1.25).
+
+Every suggestion carries :data:`interact.cautions.DOSE_CAUTIONS`.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable
+from dataclasses import dataclass
+from typing import Final
+
+from .cautions import DOSE_CAUTIONS, INCREASE_CAUTION
+from .errors import InputError
+
+__all__ = [
+    "PRACTICAL_INTERVALS_H",
+    "DoseLimit",
+    "DoseSuggestion",
+    "fm_from_observed_ratio",
+    "highest_perpetrator_scale",
+    "suggest_dose",
+]
+
+#: dosing intervals (h) offered when stretching the interval: common practice
+PRACTICAL_INTERVALS_H: Final = (4.0, 6.0, 8.0, 12.0, 24.0, 48.0, 72.0, 168.0)
+#: a dose is made of up to this many units of one strength: common practice
+MAX_UNITS: Final = 4
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class DoseSuggestion:
+    """What the model suggests for the victim's regimen, and why."""
+
+    action: str  # "no change" | "reduce dose" | "increase dose" | "avoid or monitor"
+    auc_ratio: float
+    boundary: tuple[float, float]
+    boundary_origin: str
+    usual_dose: float
+    dose_unit: str
+    usual_interval_h: float
+    exact_dose: float
+    chosen_dose: float | None
+    chosen_units: str
+    ratio_with_chosen: float | None
+    exact_interval_h: float
+    chosen_interval_h: float | None
+    ratio_with_interval: float | None
+    reasons: tuple[str, ...]
+    cautions: tuple[str, ...]
+
+
+def _candidates(strengths: tuple[float, ...]) -> list[tuple[float, str]]:
+    out: dict[float, str] = {}
+    for k in range(1, MAX_UNITS + 1):
+        for s in sorted(strengths):
+            dose = round(k * s, 10)
+            out.setdefault(dose, f"{k} x {s:g}" if k > 1 else f"{s:g}")
+    return sorted(out.items())
+
+
+def suggest_dose(
+    *,
+    auc_ratio: float,
+    usual_dose: float,
+    dose_unit: str,
+    interval_h: float,
+    strengths: tuple[float, ...],
+    boundary: tuple[float, float],
+    boundary_origin: str,
+    narrow_therapeutic_index: bool = False,
+) -> DoseSuggestion:
+    """Suggest a victim dose or interval that restores the reference exposure.
+
+    Parameters
+    ----------
+    auc_ratio
+        Predicted AUC ratio (with / without perpetrator).
+    usual_dose, dose_unit
+        The victim's usual dose and its unit (strengths are in the same unit).
+    interval_h
+        The usual dosing interval in hours.
+    strengths
+        Available unit strengths; a dose may be 1 to 4 units of one strength.
+        The suggestion is the available dose whose exposure ratio lies inside
+        the boundary and closest to 1; failing that, the largest available
+        dose not above the exact dose.
+    boundary
+        The no-effect boundary (lower, upper) of AUC ratios.
+    """
+    lower, upper = boundary
+    exact = usual_dose / auc_ratio
+    exact_tau = interval_h * auc_ratio
+    reasons: list[str] = []
+    cautions = list(DOSE_CAUTIONS)
+    chosen = chosen_tau = ratio_dose = ratio_tau = None
+    chosen_units = ""
+    if lower <= auc_ratio <= upper:
+        reasons.append(
+            f"Predicted AUC ratio {auc_ratio:.3g} lies within the no-effect boundary {lower:g}-{upper:g} "
+            f"({boundary_origin}): no dose change is suggested."
+        )
+        action = "no change"
+    else:
+        increase = auc_ratio < lower
+        action = "increase dose" if increase else "reduce dose"
+        reasons.append(
+            f"Predicted AUC ratio {auc_ratio:.3g} lies {'below' if increase else 'above'} the no-effect boundary "
+            f"{lower:g}-{upper:g} ({boundary_origin})."
+        )
+        reasons.append(
+            f"With linear kinetics the dose restoring the usual exposure is {usual_dose:g} {dose_unit} / {auc_ratio:.3g} "
+            f"= {exact:.3g} {dose_unit}."
+        )
+        if strengths:
+            options = _candidates(strengths)
+            inside = [(abs(math.log(auc_ratio * d / usual_dose)), d, u) for d, u in options
+                      if lower <= auc_ratio * d / usual_dose <= upper]
+            fitting = [(d, u) for d, u in options if d <= exact * (1 + 1e-9)]
+            if inside:
+                _, chosen, chosen_units = min(inside)
+                ratio_dose = auc_ratio * chosen / usual_dose
+                reasons.append(
+                    f"Available dose bringing exposure back inside the boundary, closest to the usual exposure: "
+                    f"{chosen:g} {dose_unit} ({chosen_units} {dose_unit}), predicted exposure ratio {ratio_dose:.3g} "
+                    "against the usual regimen alone."
+                )
+            elif fitting:
+                chosen, chosen_units = fitting[-1]
+                ratio_dose = auc_ratio * chosen / usual_dose
+                reasons.append(
+                    f"No available dose lands inside the boundary; nearest not above the exact dose: {chosen:g} {dose_unit} "
+                    f"({chosen_units} {dose_unit}), predicted exposure ratio {ratio_dose:.3g} against the usual regimen alone."
+                )
+                if ratio_dose < lower:
+                    reasons.append(
+                        f"That rounded dose falls below the lower boundary {lower:g}: exposure, and efficacy, may be too low; "
+                        "consider the interval alternative or monitoring."
+                    )
+                if increase and chosen <= usual_dose:
+                    chosen = None
+                    ratio_dose = None
+                    reasons.append("No available dose lies between the usual dose and the exact dose.")
+            else:
+                reasons.append(
+                    f"The smallest available dose ({min(strengths):g} {dose_unit}) exceeds {exact:.3g} {dose_unit}."
+                )
+        else:
+            reasons.append("No strengths were given: the exact figure is shown unrounded.")
+        tau_options = [t for t in PRACTICAL_INTERVALS_H if t >= exact_tau * (1 - 1e-9)] if not increase else [
+            t for t in PRACTICAL_INTERVALS_H if t <= exact_tau * (1 + 1e-9)
+        ]
+        if tau_options and not math.isclose(interval_h, exact_tau):
+            chosen_tau = tau_options[0] if not increase else tau_options[-1]
+            ratio_tau = auc_ratio * interval_h / chosen_tau
+            if math.isclose(chosen_tau, interval_h):
+                chosen_tau = ratio_tau = None
+        reasons.append(
+            f"Interval alternative: keep the dose and dose every {interval_h:g} h x {auc_ratio:.3g} = {exact_tau:.3g} h"
+            + (
+                f"; nearest practical interval {chosen_tau:g} h gives an exposure ratio of {ratio_tau:.3g} "
+                "(same average concentration, larger peak-to-trough swing)."
+                if chosen_tau is not None and ratio_tau is not None
+                else "; no practical interval (4 h to 1 week) fits."
+            )
+            + " Only suitable if the victim's half-life supports the longer interval."
+        )
+        if chosen is None and chosen_tau is None and strengths:
+            action = "avoid or monitor"
+            reasons.append("Neither a dose nor an interval change is feasible: avoid the combination or monitor closely.")
+        if increase:
+            cautions.insert(0, INCREASE_CAUTION)
+    if narrow_therapeutic_index:
+        if action != "no change":
+            action = "avoid or monitor"
+        reasons.append(
+            "The victim is marked narrow therapeutic index: use therapeutic drug monitoring or avoid the combination; "
+            "a computed dose is not a substitute for expert review."
+        )
+    return DoseSuggestion(
+        action=action,
+        auc_ratio=auc_ratio,
+        boundary=(lower, upper),
+        boundary_origin=boundary_origin,
+        usual_dose=usual_dose,
+        dose_unit=dose_unit,
+        usual_interval_h=interval_h,
+        exact_dose=exact,
+        chosen_dose=chosen,
+        chosen_units=chosen_units,
+        ratio_with_chosen=ratio_dose,
+        exact_interval_h=exact_tau,
+        chosen_interval_h=chosen_tau,
+        ratio_with_interval=ratio_tau,
+        reasons=tuple(reasons),
+        cautions=tuple(cautions),
+    )
+
+
+def fm_from_observed_ratio(
+    observed_ratio: float, *, remaining_activity: float = 0.0, gut_ratio: float = 1.0
+) -> float:
+    """Back-calculate fm from an AUC ratio observed with a strong inhibitor.
+
+    From AUCR_h = 1/(fm x a + 1 - fm): fm = (1 - 1/AUCR_h) / (1 - a), with
+    AUCR_h = observed / AUCR_g.  ``remaining_activity`` a = 0 assumes complete
+    inhibition (which gives the smallest fm compatible with the observation).
+
+    Raises
+    ------
+    InputError
+        If the ratio is below 1, a is outside [0, 1), or fm would exceed 1.
+    """
+    if not math.isfinite(observed_ratio) or observed_ratio < 1.0:
+        raise InputError("observed_ratio", observed_ratio, "is not an AUC ratio of at least 1 (an inhibition study)")
+    if not 0.0 <= remaining_activity < 1.0:
+        raise InputError("remaining_activity", remaining_activity, "is outside [0, 1)")
+    if not math.isfinite(gut_ratio) or gut_ratio < 1.0 or gut_ratio > observed_ratio:
+        raise InputError("gut_ratio", gut_ratio, f"is not between 1 and the observed ratio {observed_ratio:g}")
+    hepatic = observed_ratio / gut_ratio
+    fm = (1.0 - 1.0 / hepatic) / (1.0 - remaining_activity)
+    if fm > 1.0 + 1e-12:
+        raise InputError(
+            "observed_ratio", observed_ratio, f"implies fm = {fm:.3g} > 1 at remaining activity {remaining_activity:g}; the inputs are inconsistent"
+        )
+    return min(fm, 1.0)
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class DoseLimit:
+    """The highest perpetrator dose that keeps the victim inside its boundary."""
+
+    scale: float | None  # multiple of the scenario's dose; None = no limit
+    dose: float | None
+    dose_unit: str
+    boundary_upper: float
+    reason: str
+
+
+def highest_perpetrator_scale(ratio_at: Callable[[float], float], upper: float) -> float | None:
+    """Scale s at which ``ratio_at(s)`` (increasing in s) reaches ``upper``; None if never.
+
+    Assumes the perpetrator's concentrations scale linearly with its dose.
+    Solved with scipy's ``brentq`` on a bracket found by doubling.
+    """
+    from scipy.optimize import brentq
+
+    if ratio_at(0.0) >= upper:
+        return 0.0
+    hi = 1.0
+    for _ in range(80):
+        if ratio_at(hi) >= upper:
+            break
+        hi *= 4.0
+    else:
+        return None
+    return float(brentq(lambda s: ratio_at(s) - upper, 0.0, hi, xtol=1e-12, rtol=1e-10))

@@ -1,0 +1,91 @@
+"""The error tree of interact.
+
+Every error a user can cause descends from :class:`InteractError`; input
+problems are also :class:`ValueError`, fitting failures also
+:class:`RuntimeError`.  A message always names the field, the value received
+and what was expected, so that a shell can print it as one line.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = [
+    "FitError",
+    "InputError",
+    "InteractError",
+    "Problem",
+    "ScenarioError",
+    "UnitError",
+]
+
+
+class InteractError(Exception):
+    """Root of every error raised on purpose by interact."""
+
+
+class InputError(InteractError, ValueError):
+    """A value given by the user is unusable.
+
+    Parameters
+    ----------
+    field
+        Dotted key path of the offending input, e.g. ``perpetrator.cmax``.
+    value
+        The value as received (shown with ``repr`` when not a string).
+    expected
+        What would have been accepted, in plain words.
+    """
+
+    def __init__(self, field: str, value: object, expected: str) -> None:
+        self.field = field
+        self.value = value
+        self.expected = expected
+        super().__init__(f"{field}: {_show(value)} {expected}")
+
+
+class UnitError(InputError):
+    """A value has the wrong dimension, an unknown unit or cannot be parsed."""
+
+
+class FitError(InteractError, RuntimeError):
+    """A fit could not be attempted (bad data shape), as opposed to not converging."""
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Problem:
+    """One validation problem: where it is and what is wrong."""
+
+    field: str
+    message: str
+    line: int | None = None
+
+    def __str__(self) -> str:
+        where = f"{self.field} (line {self.line})" if self.line else self.field
+        return f"{where}: {self.message}"
+
+
+class ScenarioError(InputError):
+    """A scenario has one or more problems; all of them are listed."""
+
+    def __init__(self, problems: tuple[Problem, ...], source: str = "scenario") -> None:
+        self.problems = problems
+        self.source = source
+        first = problems[0]
+        InteractError.__init__(self, self._text())
+        self.field = first.field
+        self.value = None
+        self.expected = first.message
+
+    def _text(self) -> str:
+        n = len(self.problems)
+        head = f"{self.source}: {n} problem{'s' if n != 1 else ''}"
+        return head + "".join(f"\n  - {p}" for p in self.problems)
+
+
+def _show(value: object) -> str:
+    """Render a received value for an error message, briefly."""
+    text = f'"{value}"' if isinstance(value, str) else repr(value)
+    if len(text) > 80:
+        text = text[:77] + "..."
+    return text

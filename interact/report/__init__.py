@@ -1,0 +1,1 @@
+"""Formatting for every shell: text, Markdown, JSON (and HTML reports)."""

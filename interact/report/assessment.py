@@ -1,0 +1,369 @@
+"""Formatting an :class:`~interact.assessment.Assessment`: text, Markdown and JSON.
+
+``format_*`` functions return text; shells print it.  The JSON layout is
+documented in README.md ("JSON output") and versioned by ``schema``.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from typing import Any
+
+from .. import units
+from ..assessment import Assessment
+from ..cautions import CAUTION_LINE
+from ..exposure import Setting
+from .document import Note, Section, Table, render_markdown, render_text
+from .numbers import fmt, fmt_ratio
+
+__all__ = ["JSON_SCHEMA", "assessment_sections", "assessment_to_dict", "format_assessment"]
+
+JSON_SCHEMA = "interact.assessment/1"
+
+
+def _origin(s: Setting) -> str:
+    if s.origin == "given":
+        text = "given"
+    elif s.origin == "override":
+        text = "override"
+    elif s.origin == "floor":
+        text = "raised to floor"
+    else:
+        text = f"default ({s.origin})" if s.origin == "rule set" else "default"
+    parts = [text]
+    if s.source:
+        parts.append(s.source)
+    if s.status:
+        parts.append(s.status.upper() if s.status == "from memory" else s.status)
+    if s.note:
+        parts.append(s.note)
+    return "; ".join(parts)
+
+
+def _q(q: units.Quantity | None) -> str:
+    return "-" if q is None else units.format_quantity(q)
+
+
+def assessment_sections(a: Assessment) -> list[Section]:
+    """The assessment as document sections (shared by every format)."""
+    s = a.scenario
+    p = s.perpetrator
+    v = s.victim
+    pr = a.prediction
+    parent = a.species[0]
+    sections: list[Section] = []
+
+    head = [
+        f"Scenario: {s.title}",
+        f"Rule set: {a.rules.title} [{a.rules.id}, table {a.rules.table_version}]",
+    ]
+    if s.invented:
+        head.append("This scenario is INVENTED: its compounds and values describe no real drug.")
+    sections.append(Section(title="", blocks=(*head, Note(text=CAUTION_LINE))))
+
+    # -- answer first
+    band = pr.band.name if pr.band else ("no meaningful change" if 0.8 < pr.total < 1.25 else "-")
+    verdict = (
+        f"Predicted victim AUC ratio {fmt_ratio(pr.total)} (gut {fmt_ratio(pr.gut)} x liver {fmt_ratio(pr.liver)}): "
+        f"{band}. Mechanistic model {'indicates' if a.study_indicated else 'does not indicate'} a clinical study "
+        f"(cutoff {a.aucr_cutoff.value:g}, {a.aucr_cutoff.status}). Suggested action: {a.dose.action}."
+    )
+    sections.append(Section(title="Summary", blocks=(Note(text=verdict, kind="result"),)))
+
+    # -- inputs
+    perp_rows = [
+        ("Name", p.name, ""),
+        ("Route", p.route, ""),
+        ("Dose", _q(p.dose), f"= {fmt(parent.dose_umol)} umol"),
+        ("Cmax (total, steady state)", _q(p.cmax), f"= {fmt(parent.cmax_um)} uM"),
+        ("fu,p", f"{p.fu_plasma:g}", "measured" if p.fu_plasma_measured else ""),
+        ("Molar mass", _q(p.molar_mass), ""),
+    ]
+    for m in p.metabolites:
+        perp_rows.append((f"Metabolite {m.name}", f"Cmax {_q(m.cmax)}, fu,p {m.fu_plasma:g}", ""))
+    vic_rows = [
+        ("Name", v.name, ""),
+        ("Route", v.route, ""),
+        ("Dose and interval", f"{_q(v.dose)} every {_q(v.interval)}", ""),
+        ("Fg", "1 (assumed, not given)" if v.fg is None else f"{v.fg:g}", ""),
+        ("Strengths", ", ".join(_q(x) for x in v.strengths) or "-", ""),
+    ]
+    for pw in v.pathways:
+        vic_rows.append((f"fm {pw.enzyme}", f"{pw.fm:g}", ""))
+    vic_rows.append(("fm other routes (unaffected)", f"{max(0.0, 1 - sum(pw.fm for pw in v.pathways)):.3g}", ""))
+    const_rows = []
+    for c in a.constants:
+        if c.ki_u_um is not None:
+            const_rows.append(
+                (c.target, c.species, f"{fmt(c.ki_um)} uM", c.ki_route, f"{c.fu_inc:g} ({c.fu_inc_origin})", f"{fmt(c.ki_u_um)} uM")
+            )
+        if c.kinact_per_h is not None:
+            const_rows.append((c.target, c.species, f"kinact {fmt(c.kinact_per_h)} 1/h", "time-dependent", "-", f"KI,u {fmt(c.ki_inact_u_um)} uM"))
+        if c.emax is not None:
+            const_rows.append(
+                (c.target, c.species, f"Emax {fmt(c.emax)}, d {c.calibration:g} ({c.calibration_origin})", "induction", "-", f"EC50,u {fmt(c.ec50_u_um)} uM")
+            )
+    settings_rows = tuple((st.label, f"{fmt(st.value, 4)} {st.unit}".strip(), _origin(st)) for st in (*a.settings, *a.kdeg_used))
+    sections.append(
+        Section(
+            title="Inputs",
+            blocks=(
+                Table(headers=("Perpetrator", "value", "as used"), rows=tuple(perp_rows)),
+                Table(headers=("Target", "species", "constant given", "route to Ki", "fu,inc", "unbound"), rows=tuple(const_rows)),
+                Table(headers=("Victim", "value", ""), rows=tuple(vic_rows)),
+                Table(headers=("Setting", "value used", "origin and source"), rows=settings_rows),
+            ),
+        )
+    )
+
+    # -- concentrations
+    conc_rows = tuple(
+        (
+            sp.species,
+            fmt(sp.cmax_um),
+            f"{sp.fu_plasma_used:g}",
+            fmt(sp.unbound_cmax_um),
+            fmt(sp.gut_lumen_um) if sp.is_parent else "-",
+            fmt(sp.unbound_inlet_um),
+            fmt(sp.enterocyte_um),
+        )
+        for sp in a.species
+    )
+    sections.append(
+        Section(
+            title="Perpetrator concentrations (uM)",
+            blocks=(
+                Table(headers=("species", "Cmax", "fu,p used", "Imax,u", "Igut", "Iin,max,u", "I,ent"), rows=conc_rows),
+                "Imax,u = fu,p x Cmax; Igut = dose / 250 mL; Iin,max,u = fu,p x (Cmax + Fa*Fg x ka x Dose / (Qh x Rb)); "
+                "I,ent = fu,gut x Fa x ka x Dose / Qent. Metabolites use their systemic Imax,u at every site.",
+            ),
+        )
+    )
+
+    # -- basic models
+    screen_rows = tuple(
+        (
+            r.target,
+            r.label,
+            fmt_ratio(r.value),
+            f"{r.comparison} {r.cutoff.value:g}",
+            "STUDY INDICATED" if r.indicated else "below cutoff",
+            r.cutoff.status,
+            r.equation + (f" [kdeg {fmt(r.kdeg_per_h)} 1/h]" if r.kdeg_per_h is not None else ""),
+        )
+        for r in a.screen
+    )
+    sections.append(
+        Section(
+            title=f"Basic static models ({a.rules.id})",
+            blocks=(
+                Table(headers=("target", "test", "value", "cutoff", "verdict", "cutoff status", "equation"), rows=screen_rows)
+                if screen_rows
+                else "No criterion of this rule set applies to the targets given.",
+            ),
+        )
+    )
+
+    # -- mechanistic model
+    eff_rows = []
+    for e in pr.effects:
+        conc = ", ".join(f"{fmt(cv)}" for _, cv in e.liver.concentration_um) or "-"
+        eff_rows.append(
+            (e.enzyme, "liver", f"{e.fm:g}", conc, fmt_ratio(e.liver.reversible), fmt_ratio(e.liver.inactivation),
+             fmt_ratio(e.liver.induction), fmt_ratio(e.liver.activity))
+        )
+        if e.gut is not None:
+            gconc = ", ".join(f"{fmt(cv)}" for _, cv in e.gut.concentration_um) or "-"
+            eff_rows.append(
+                (e.enzyme, "gut", f"Fg {pr.fg_used:g}", gconc, fmt_ratio(e.gut.reversible), fmt_ratio(e.gut.inactivation),
+                 fmt_ratio(e.gut.induction), fmt_ratio(e.gut.activity))
+            )
+    ratio_rows = [
+        ("gut", fmt_ratio(pr.gut), fmt_ratio(pr.ceiling_gut)),
+        ("liver", fmt_ratio(pr.liver), fmt_ratio(pr.ceiling_liver)),
+        ("total", fmt_ratio(pr.total), fmt_ratio(pr.ceiling_total)),
+    ]
+    blocks: list[str | Table | Note] = [
+        Table(
+            headers=("enzyme", "site", "fm / Fg", "[I] uM", "reversible", "inactivation", "induction", "activity left"),
+            rows=tuple(eff_rows),
+        ),
+        Table(headers=("AUC ratio", "predicted", "complete-inhibition ceiling"), rows=tuple(ratio_rows)),
+    ]
+    for part in pr.parts:
+        blocks.append(f"{part.mechanism} alone: AUCR {fmt_ratio(part.total)} (gut {fmt_ratio(part.gut)}, liver {fmt_ratio(part.liver)})")
+    if pr.band is not None:
+        blocks.append(f"Size band: {pr.band.name} ({pr.band.source}; {pr.band.status}).")
+    blocks.append(
+        "AUCR = [1 / (activity_gut x (1 - Fg) + Fg)] x [1 / (sum fm x activity_liver + (1 - sum fm))]; "
+        "activity = reversible x inactivation x induction (Fahmi et al. 2008 net-effect model)."
+    )
+    sections.append(Section(title="Mechanistic static model", blocks=tuple(blocks)))
+
+    # -- dose
+    d = a.dose
+    dose_blocks: list[str | Table | Note] = [Note(text=f"Suggested action: {d.action}.", kind="result"), *d.reasons]
+    lim = a.perpetrator_limit
+    dose_blocks.append(
+        f"Perpetrator dose ceiling: {fmt(lim.dose)} {lim.dose_unit} ({lim.reason})." if lim.dose is not None else f"Perpetrator dose ceiling: {lim.reason}."
+    )
+    dose_blocks.extend(Note(text=c) for c in d.cautions)
+    sections.append(Section(title="Dose suggestion", blocks=tuple(dose_blocks)))
+
+    if a.warnings:
+        sections.append(Section(title="Warnings", blocks=tuple(f"- {w}" for w in a.warnings)))
+    if a.memory_values:
+        sections.append(
+            Section(
+                title="Values from memory (verify before relying on them)",
+                blocks=tuple(f"- {m}" for m in a.memory_values),
+            )
+        )
+    sections.append(Section(title="Cautions", blocks=tuple(Note(text=c) for c in a.cautions)))
+    pv = a.provenance
+    sections.append(
+        Section(
+            title="Provenance",
+            blocks=(
+                f"interact {pv.tool_version}; rule set {pv.rules_id} (version {pv.rules_version}, table {pv.rules_table_version}); "
+                + "; ".join(f"{k} table {ver}" for k, ver in pv.table_versions),
+            ),
+        )
+    )
+    return sections
+
+
+def _num(x: float | None) -> float | None:
+    if x is None or not math.isfinite(x):
+        return None
+    return x
+
+
+def _setting_dict(s: Setting) -> dict[str, Any]:
+    return {"name": s.name, "label": s.label, "value": s.value, "unit": s.unit, "origin": s.origin,
+            "source": s.source, "status": s.status, "note": s.note}
+
+
+def assessment_to_dict(a: Assessment) -> dict[str, Any]:
+    """JSON-ready data; concentrations in uM, rates in 1/h, ratios dimensionless."""
+    pr = a.prediction
+    d = a.dose
+    lim = a.perpetrator_limit
+    return {
+        "schema": JSON_SCHEMA,
+        "title": a.scenario.title,
+        "invented": a.scenario.invented,
+        "rules": {"id": a.rules.id, "title": a.rules.title, "version": a.rules.version, "table_version": a.rules.table_version},
+        "settings": [_setting_dict(s) for s in (*a.settings, *a.kdeg_used)],
+        "concentrations_um": [
+            {
+                "species": sp.species,
+                "parent": sp.is_parent,
+                "cmax": sp.cmax_um,
+                "fu_plasma_used": sp.fu_plasma_used,
+                "imax_u": sp.unbound_cmax_um,
+                "igut": sp.gut_lumen_um if sp.is_parent else None,
+                "iin_max_u": sp.unbound_inlet_um,
+                "i_ent": sp.enterocyte_um,
+            }
+            for sp in a.species
+        ],
+        "constants": [
+            {
+                "species": c.species,
+                "target": c.target,
+                "ki_um": c.ki_um,
+                "fu_inc": c.fu_inc,
+                "fu_inc_origin": c.fu_inc_origin,
+                "ki_u_um": c.ki_u_um,
+                "ki_route": c.ki_route,
+                "mechanism": c.mechanism,
+                "kinact_per_h": c.kinact_per_h,
+                "ki_inact_u_um": c.ki_inact_u_um,
+                "emax": c.emax,
+                "ec50_u_um": c.ec50_u_um,
+                "calibration": c.calibration,
+            }
+            for c in a.constants
+        ],
+        "screen": [
+            {
+                "criterion": r.criterion,
+                "label": r.label,
+                "target": r.target,
+                "mechanism": r.mechanism,
+                "value": r.value,
+                "comparison": r.comparison,
+                "cutoff": r.cutoff.value,
+                "cutoff_source": r.cutoff.source,
+                "cutoff_status": r.cutoff.status,
+                "study_indicated": r.indicated,
+                "equation": r.equation,
+                "concentration": r.concentration,
+                "multiplier": r.multiplier,
+                "kdeg_per_h": r.kdeg_per_h,
+            }
+            for r in a.screen
+        ],
+        "auc_ratio": {
+            "gut": pr.gut,
+            "liver": pr.liver,
+            "total": pr.total,
+            "ceiling_gut": _num(pr.ceiling_gut),
+            "ceiling_liver": _num(pr.ceiling_liver),
+            "ceiling_total": _num(pr.ceiling_total),
+            "band": pr.band.name if pr.band else None,
+            "study_indicated": a.study_indicated,
+            "cutoff": a.aucr_cutoff.value,
+            "by_mechanism": [{"mechanism": m.mechanism, "gut": m.gut, "liver": m.liver, "total": m.total} for m in pr.parts],
+            "enzymes": [
+                {
+                    "enzyme": e.enzyme,
+                    "fm": e.fm,
+                    "liver": {"reversible": e.liver.reversible, "inactivation": e.liver.inactivation,
+                              "induction": e.liver.induction, "activity": e.liver.activity},
+                    "gut": None if e.gut is None else {"reversible": e.gut.reversible, "inactivation": e.gut.inactivation,
+                                                       "induction": e.gut.induction, "activity": e.gut.activity},
+                }
+                for e in pr.effects
+            ],
+        },
+        "dose": {
+            "action": d.action,
+            "unit": d.dose_unit,
+            "usual_dose": d.usual_dose,
+            "exact_dose": d.exact_dose,
+            "suggested_dose": d.chosen_dose,
+            "suggested_units": d.chosen_units,
+            "ratio_with_suggested_dose": d.ratio_with_chosen,
+            "usual_interval_h": d.usual_interval_h,
+            "exact_interval_h": d.exact_interval_h,
+            "suggested_interval_h": d.chosen_interval_h,
+            "ratio_with_suggested_interval": d.ratio_with_interval,
+            "no_effect_boundary": list(d.boundary),
+            "boundary_origin": d.boundary_origin,
+            "reasons": list(d.reasons),
+            "cautions": list(d.cautions),
+        },
+        "perpetrator_dose_limit": {"dose": lim.dose, "unit": lim.dose_unit, "scale": lim.scale, "reason": lim.reason},
+        "warnings": list(a.warnings),
+        "from_memory": list(a.memory_values),
+        "cautions": list(a.cautions),
+        "provenance": {
+            "tool_version": a.provenance.tool_version,
+            "rules_id": a.provenance.rules_id,
+            "rules_path": a.provenance.rules_path,
+            "tables": dict(a.provenance.table_versions),
+        },
+    }
+
+
+def format_assessment(a: Assessment, fmt_name: str = "text", width: int = 100) -> str:
+    """The assessment as ``text``, ``markdown`` or ``json``."""
+    if fmt_name == "json":
+        return json.dumps(assessment_to_dict(a), indent=2, allow_nan=False) + "\n"
+    sections = assessment_sections(a)
+    if fmt_name == "markdown":
+        return render_markdown(sections, title=f"interact assessment: {a.scenario.title}")
+    return render_text(sections, width=width)

@@ -1,0 +1,822 @@
+"""Scenario inputs: frozen dataclasses, TOML loading with validation, atomic saving.
+
+A scenario holds what the user knows: the perpetrator (its exposure, binding,
+absorption, inhibited targets and inhibitory metabolites), the victim (dose,
+regimen, intestinal availability, elimination pathways) and any overrides of
+physiological defaults.  Values with units are pint quantities parsed from
+text such as ``"812 ng/mL"``; fractions are floats.  Missing optional values
+stay ``None`` here: the engine fills the defaults and reports their sources.
+
+Validation collects every problem at once, each with its dotted key path and,
+when the scenario came from a file, the line it is on.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import re
+import tempfile
+import tomllib
+from collections.abc import Callable, Iterator
+from dataclasses import dataclass, field, fields
+from pathlib import Path
+from typing import Any, Final, TypeVar
+
+import pint
+
+from . import units
+from .errors import InputError, Problem, ScenarioError
+from .tables import load_targets, resolve_target
+
+__all__ = [
+    "MECHANISMS",
+    "Inhibition",
+    "Metabolite",
+    "Pathway",
+    "Perpetrator",
+    "Physiology",
+    "Scenario",
+    "Turnover",
+    "Victim",
+    "demo_path",
+    "dumps_scenario",
+    "load_scenario",
+    "loads_scenario",
+    "save_scenario",
+    "scenario_from_dict",
+    "scenario_to_dict",
+]
+
+MECHANISMS: Final = ("competitive", "noncompetitive", "uncompetitive", "mixed")
+ROUTES: Final = ("oral", "intravenous")
+_MAX_ITEMS: Final = 200
+_MAX_NAME: Final = 200
+
+Q = pint.Quantity
+T = TypeVar("T")
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Inhibition:
+    """One target inhibited (or induced) by one species (parent or metabolite).
+
+    Reversible inhibition is given either as ``ki`` or as ``ic50`` with the
+    ``mechanism`` (and, except for noncompetitive, ``substrate_conc`` and
+    ``km``) for the Cheng-Prusoff conversion.  ``fu_inc`` converts the in vitro
+    constant to its unbound value (Ki,u = Ki x fu,inc).  For transporters the
+    IC50 (or Ki) is used as the inhibition constant, as guidance does.
+
+    Time-dependent inhibition (``kinact``, ``ki_inact`` = KI, unbound) and
+    induction (``emax``, ``ec50`` unbound, ``calibration`` = d) are optional.
+    """
+
+    target: str
+    ki: Q | None = None
+    ic50: Q | None = None
+    substrate_conc: Q | None = None
+    km: Q | None = None
+    mechanism: str = "competitive"
+    alpha: float | None = None
+    fu_inc: float | None = None
+    kinact: Q | None = None
+    ki_inact: Q | None = None
+    emax: float | None = None
+    ec50: Q | None = None
+    calibration: float | None = None
+    origin: str = ""
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Metabolite:
+    """An inhibitory metabolite with its own systemic exposure."""
+
+    name: str
+    cmax: Q
+    fu_plasma: float
+    molar_mass: Q | None = None
+    fu_plasma_measured: bool = False
+    inhibits: tuple[Inhibition, ...] = ()
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Perpetrator:
+    """The inhibiting drug.  ``cmax`` is the total plasma Cmax at steady state, highest dose."""
+
+    name: str
+    dose: Q
+    cmax: Q
+    fu_plasma: float
+    molar_mass: Q | None = None
+    route: str = "oral"
+    interval: Q | None = None
+    fu_plasma_measured: bool = False
+    blood_plasma_ratio: float | None = None
+    fa_fg: float | None = None
+    fa: float | None = None
+    ka: Q | None = None
+    inhibits: tuple[Inhibition, ...] = ()
+    metabolites: tuple[Metabolite, ...] = ()
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Pathway:
+    """A fraction of the victim's clearance through one enzyme."""
+
+    enzyme: str
+    fm: float
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Victim:
+    """The affected drug.  Pathways not listed (1 - sum of fm) are unaffected."""
+
+    name: str
+    dose: Q
+    interval: Q
+    fg: float | None = None
+    route: str = "oral"
+    strengths: tuple[Q, ...] = ()
+    pathways: tuple[Pathway, ...] = ()
+    no_effect_lower: float | None = None
+    no_effect_upper: float | None = None
+    narrow_therapeutic_index: bool = False
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Physiology:
+    """Overrides of physiological defaults; ``None`` means use the table value."""
+
+    hepatic_blood_flow: Q | None = None
+    enterocytic_blood_flow: Q | None = None
+    gut_volume: Q | None = None
+    fu_gut: float | None = None
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Turnover:
+    """Override of an enzyme's degradation rate constants (1/time)."""
+
+    enzyme: str
+    kdeg_liver: Q | None = None
+    kdeg_gut: Q | None = None
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Scenario:
+    """A perpetrator-victim pair and everything needed to assess it."""
+
+    title: str
+    perpetrator: Perpetrator
+    victim: Victim
+    invented: bool = False
+    rules: str | None = None
+    physiology: Physiology = field(default_factory=Physiology)
+    turnover: tuple[Turnover, ...] = ()
+    notes: str = ""
+
+
+# --------------------------------------------------------------------------- loading
+
+
+def demo_path() -> Path:
+    """The built-in demo scenario (an invented compound pair)."""
+    return Path(__file__).with_name("demo.toml")
+
+
+def load_scenario(path: str | Path) -> Scenario:
+    """Read and validate a scenario TOML file.
+
+    Raises
+    ------
+    InputError
+        The file cannot be read or is not TOML.
+    ScenarioError
+        The TOML is readable but has problems; all are listed with key paths and lines.
+    """
+    path = Path(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise InputError("scenario", str(path), f"could not be read ({exc.strerror or exc.__class__.__name__})") from None
+    return loads_scenario(text, source=str(path))
+
+
+def loads_scenario(text: str, *, source: str = "scenario") -> Scenario:
+    """Parse and validate scenario TOML text."""
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
+    return scenario_from_dict(data, source=source, text=text)
+
+
+def scenario_from_dict(data: object, *, source: str = "scenario", text: str | None = None) -> Scenario:
+    """Build a :class:`Scenario` from plain data (as read from TOML), validating all of it."""
+    reader = _Reader(text)
+    scenario = reader.scenario(data)
+    if reader.problems or scenario is None:
+        raise ScenarioError(tuple(reader.problems) or (Problem(field="scenario", message="is empty"),), source)
+    return scenario
+
+
+class _Reader:
+    """Walks raw data, converting values and collecting problems."""
+
+    def __init__(self, text: str | None) -> None:
+        self.problems: list[Problem] = []
+        self._lines = _KeyLines(text) if text else None
+
+    # -- helpers
+    def fail(self, path: str, message: str) -> None:
+        line = self._lines.find(path) if self._lines else None
+        self.problems.append(Problem(field=path, message=message, line=line))
+
+    def attempt(self, path: str, fn: Callable[[], T]) -> T | None:
+        try:
+            return fn()
+        except InputError as exc:
+            self.fail(path, exc.expected if exc.field == path else str(exc))
+            # the message already names the value
+            if exc.field == path:
+                self.problems[-1] = Problem(
+                    field=path,
+                    message=f"{_brief(exc.value)} {exc.expected}",
+                    line=self.problems[-1].line,
+                )
+            return None
+
+    def table(self, data: object, path: str, allowed: tuple[str, ...]) -> dict[str, Any] | None:
+        if not isinstance(data, dict):
+            self.fail(path, f"{_brief(data)} is not a table; expected a [{path}] table")
+            return None
+        for key in data:
+            if key not in allowed:
+                self.fail(f"{path}.{key}" if path else key, f"is not a known key; expected one of {', '.join(allowed)}")
+        return data
+
+    def required(self, data: dict[str, Any], key: str, path: str) -> Any:
+        if key not in data:
+            self.fail(f"{path}.{key}" if path else key, "is missing")
+            return None
+        return data[key]
+
+    def text(self, data: dict[str, Any], key: str, path: str, *, required: bool = False, default: str = "") -> str:
+        value = self.required(data, key, path) if required else data.get(key, default)
+        full = f"{path}.{key}" if path else key
+        if value is None:
+            return default
+        if not isinstance(value, str):
+            self.fail(full, f"{_brief(value)} is not text; expected a quoted string")
+            return default
+        if len(value) > _MAX_NAME * 10:
+            self.fail(full, f"is {len(value)} characters long; expected at most {_MAX_NAME * 10}")
+            return value[: _MAX_NAME * 10]
+        return value
+
+    def name(self, data: dict[str, Any], key: str, path: str) -> str:
+        value = self.text(data, key, path, required=True)
+        if key in data and isinstance(data[key], str) and (not value.strip() or len(value) > _MAX_NAME):
+            self.fail(f"{path}.{key}", f"expected a name of 1 to {_MAX_NAME} characters")
+        return value
+
+    def quantity(self, data: dict[str, Any], key: str, path: str, kind: str, *, required: bool = False) -> Q | None:
+        full = f"{path}.{key}"
+        if key not in data:
+            if required:
+                self.fail(full, "is missing")
+            return None
+        return self.attempt(full, lambda: units.parse(data[key], kind, field=full))
+
+    def fraction(
+        self, data: dict[str, Any], key: str, path: str, *, required: bool = False, allow_zero: bool = False, upper: float = 1.0
+    ) -> float | None:
+        full = f"{path}.{key}"
+        if key not in data:
+            if required:
+                self.fail(full, "is missing")
+            return None
+        return self.attempt(full, lambda: units.parse_fraction(data[key], field=full, allow_zero=allow_zero, upper=upper))
+
+    def number(self, data: dict[str, Any], key: str, path: str, *, low: float, high: float, low_open: bool = True) -> float | None:
+        full = f"{path}.{key}"
+        if key not in data:
+            return None
+        value = data[key]
+        span = f"{'(' if low_open else '['}{low:g}, {high:g}]"
+        if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
+            self.fail(full, f"{_brief(value)} is not a finite number; expected a number in {span}")
+            return None
+        if value < low or value > high or (low_open and value == low):
+            self.fail(full, f"{_brief(value)} is outside {span}")
+            return None
+        return float(value)
+
+    def flag(self, data: dict[str, Any], key: str, path: str) -> bool:
+        value = data.get(key, False)
+        if not isinstance(value, bool):
+            self.fail(f"{path}.{key}", f"{_brief(value)} is not true or false")
+            return False
+        return value
+
+    def items(self, data: dict[str, Any], key: str, path: str) -> Iterator[tuple[int, Any]]:
+        value = data.get(key, [])
+        if not isinstance(value, list):
+            self.fail(f"{path}.{key}", f"{_brief(value)} is not a list; expected [[{path}.{key}]] tables")
+            return
+        if len(value) > _MAX_ITEMS:
+            self.fail(f"{path}.{key}", f"has {len(value)} entries; expected at most {_MAX_ITEMS}")
+            value = value[:_MAX_ITEMS]
+        yield from enumerate(value)
+
+    def target_name(self, data: dict[str, Any], key: str, path: str) -> str | None:
+        raw = self.text(data, key, path, required=True)
+        if not raw:
+            return None
+        target = resolve_target(raw)
+        if target is None:
+            known = ", ".join(t.name for t in load_targets())
+            self.fail(f"{path}.{key}", f'"{raw[:60]}" is not a known enzyme or transporter; expected one of {known}')
+            return None
+        return target.name
+
+    # -- sections
+    def scenario(self, data: object) -> Scenario | None:
+        top = self.table(data, "", ("title", "invented", "rules", "notes", "perpetrator", "victim", "physiology", "turnover"))
+        if top is None:
+            return None
+        title = self.text(top, "title", "", default="Untitled scenario")
+        invented = self.flag(top, "invented", "")
+        rules = self.text(top, "rules", "") or None
+        notes = self.text(top, "notes", "")
+        perp = self.perpetrator(self.required(top, "perpetrator", ""))
+        victim = self.victim(self.required(top, "victim", ""))
+        physiology = self.physiology(top.get("physiology", {}))
+        turnover = tuple(t for t in (self.turnover(raw, f"turnover[{i}]") for i, raw in self.items(top, "turnover", "")) if t)
+        if perp is None or victim is None or physiology is None:
+            return None
+        return Scenario(
+            title=title,
+            invented=invented,
+            rules=rules,
+            notes=notes,
+            perpetrator=perp,
+            victim=victim,
+            physiology=physiology,
+            turnover=turnover,
+        )
+
+    def inhibition(self, raw: object, path: str, molar_mass: Q | None) -> Inhibition | None:
+        data = self.table(
+            raw,
+            path,
+            tuple(f.name for f in fields(Inhibition)),
+        )
+        if data is None:
+            return None
+        target = self.target_name(data, "target", path)
+        ki = self.quantity(data, "ki", path, "concentration")
+        ic50 = self.quantity(data, "ic50", path, "concentration")
+        sub = self.quantity(data, "substrate_conc", path, "concentration")
+        km = self.quantity(data, "km", path, "concentration")
+        mechanism = self.text(data, "mechanism", path, default="competitive")
+        if mechanism not in MECHANISMS:
+            self.fail(f"{path}.mechanism", f'"{mechanism[:40]}" is not one of {", ".join(MECHANISMS)}')
+        alpha = self.number(data, "alpha", path, low=0.0, high=1e6)
+        fu_inc = self.fraction(data, "fu_inc", path)
+        kinact = self.quantity(data, "kinact", path, "rate")
+        ki_inact = self.quantity(data, "ki_inact", path, "concentration")
+        emax = self.number(data, "emax", path, low=0.0, high=1e4, low_open=False)
+        ec50 = self.quantity(data, "ec50", path, "concentration")
+        calibration = self.number(data, "calibration", path, low=0.0, high=10.0, low_open=False)
+        origin = self.text(data, "origin", path)
+        has_reversible = ki is not None or ic50 is not None
+        if "ki" in data and "ic50" in data:
+            self.fail(path, "gives both ki and ic50; expected one of them")
+        is_transporter = target is not None and getattr(resolve_target(target), "kind", "") == "transporter"
+        if ic50 is not None and not is_transporter:
+            if mechanism != "noncompetitive":
+                for key, value in (("substrate_conc", sub), ("km", km)):
+                    if value is None and key not in data:
+                        self.fail(f"{path}.{key}", f"is missing; the Cheng-Prusoff conversion of ic50 for {mechanism} inhibition needs it")
+            if mechanism == "mixed" and alpha is None and "alpha" not in data:
+                self.fail(f"{path}.alpha", "is missing; mixed inhibition needs alpha (Kiu = alpha x Kic)")
+        if (kinact is None) != (ki_inact is None) and ("kinact" in data) != ("ki_inact" in data):
+            self.fail(path, "time-dependent inhibition needs both kinact and ki_inact (KI)")
+        if (emax is None) != (ec50 is None) and ("emax" in data) != ("ec50" in data):
+            self.fail(path, "induction needs both emax and ec50")
+        if not has_reversible and kinact is None and emax is None and not {"ki", "ic50", "kinact", "emax"} & set(data):
+            self.fail(path, "gives no inhibition or induction constant; expected ki, or ic50 with substrate_conc and km, or kinact with ki_inact, or emax with ec50")
+        for key, value in (("ki", ki), ("ic50", ic50), ("substrate_conc", sub), ("km", km), ("ki_inact", ki_inact), ("ec50", ec50)):
+            if value is not None and molar_mass is None and value.dimensionality != units.KINDS["molar_concentration"][0][0]:
+                self.fail(f"{path}.{key}", f'"{units.format_quantity(value)}" is a mass concentration; give molar_mass for this compound or a molar value such as "0.35 uM"')
+        if target is None:
+            return None
+        return Inhibition(
+            target=target,
+            ki=ki,
+            ic50=ic50,
+            substrate_conc=sub,
+            km=km,
+            mechanism=mechanism if mechanism in MECHANISMS else "competitive",
+            alpha=alpha,
+            fu_inc=fu_inc,
+            kinact=kinact,
+            ki_inact=ki_inact,
+            emax=emax,
+            ec50=ec50,
+            calibration=calibration,
+            origin=origin,
+        )
+
+    def inhibitions(self, data: dict[str, Any], path: str, molar_mass: Q | None) -> tuple[Inhibition, ...]:
+        out = []
+        seen: dict[str, int] = {}
+        for i, raw in self.items(data, "inhibits", path):
+            item = self.inhibition(raw, f"{path}.inhibits[{i}]", molar_mass)
+            if item is None:
+                continue
+            if item.target in seen:
+                self.fail(f"{path}.inhibits[{i}].target", f'"{item.target}" is listed twice (also inhibits[{seen[item.target]}]); combine them')
+                continue
+            seen[item.target] = i
+            out.append(item)
+        return tuple(out)
+
+    def _mass_conc_needs_mw(self, q: Q | None, mw: Q | None, path: str) -> None:
+        if q is not None and mw is None and q.dimensionality != units.KINDS["molar_concentration"][0][0]:
+            self.fail(path, f'"{units.format_quantity(q)}" is a mass concentration; give molar_mass (e.g. "452.5 g/mol") or a molar value such as "1.8 uM"')
+
+    def perpetrator(self, raw: object) -> Perpetrator | None:
+        path = "perpetrator"
+        data = self.table(raw, path, tuple(f.name for f in fields(Perpetrator)))
+        if data is None:
+            return None
+        name = self.name(data, "name", path)
+        mw = self.quantity(data, "molar_mass", path, "molar_mass")
+        dose = self.quantity(data, "dose", path, "dose", required=True)
+        cmax = self.quantity(data, "cmax", path, "concentration", required=True)
+        fu_p = self.fraction(data, "fu_plasma", path, required=True)
+        route = self.text(data, "route", path, default="oral")
+        if route not in ROUTES:
+            self.fail(f"{path}.route", f'"{route[:40]}" is not one of {", ".join(ROUTES)}')
+        interval = self.quantity(data, "interval", path, "time")
+        measured = self.flag(data, "fu_plasma_measured", path)
+        rb = self.number(data, "blood_plasma_ratio", path, low=0.0, high=100.0)
+        fa_fg = self.fraction(data, "fa_fg", path)
+        fa = self.fraction(data, "fa", path)
+        ka = self.quantity(data, "ka", path, "rate")
+        self._mass_conc_needs_mw(cmax, mw, f"{path}.cmax")
+        if dose is not None and mw is None and dose.dimensionality == units.KINDS["mass"][0][0]:
+            self.fail(f"{path}.molar_mass", 'is missing; a dose in mass units needs it to give molar concentrations (e.g. "452.5 g/mol")')
+        inhibits = self.inhibitions(data, path, mw)
+        metabolites = []
+        for i, mraw in self.items(data, "metabolites", path):
+            met = self.metabolite(mraw, f"{path}.metabolites[{i}]")
+            if met is not None:
+                metabolites.append(met)
+        if not inhibits and not any(m.inhibits for m in metabolites) and "inhibits" not in data:
+            self.fail(f"{path}.inhibits", "is missing; expected at least one [[perpetrator.inhibits]] table with a target")
+        if None in (dose, cmax, fu_p):
+            return None
+        assert dose is not None and cmax is not None and fu_p is not None
+        return Perpetrator(
+            name=name,
+            molar_mass=mw,
+            dose=dose,
+            route=route if route in ROUTES else "oral",
+            interval=interval,
+            cmax=cmax,
+            fu_plasma=fu_p,
+            fu_plasma_measured=measured,
+            blood_plasma_ratio=rb,
+            fa_fg=fa_fg,
+            fa=fa,
+            ka=ka,
+            inhibits=inhibits,
+            metabolites=tuple(metabolites),
+        )
+
+    def metabolite(self, raw: object, path: str) -> Metabolite | None:
+        data = self.table(raw, path, tuple(f.name for f in fields(Metabolite)))
+        if data is None:
+            return None
+        name = self.name(data, "name", path)
+        mw = self.quantity(data, "molar_mass", path, "molar_mass")
+        cmax = self.quantity(data, "cmax", path, "concentration", required=True)
+        fu_p = self.fraction(data, "fu_plasma", path, required=True)
+        measured = self.flag(data, "fu_plasma_measured", path)
+        self._mass_conc_needs_mw(cmax, mw, f"{path}.cmax")
+        inhibits = self.inhibitions(data, path, mw)
+        if cmax is None or fu_p is None:
+            return None
+        return Metabolite(name=name, molar_mass=mw, cmax=cmax, fu_plasma=fu_p, fu_plasma_measured=measured, inhibits=inhibits)
+
+    def victim(self, raw: object) -> Victim | None:
+        path = "victim"
+        data = self.table(raw, path, tuple(f.name for f in fields(Victim)) + ("no_effect_boundary",))
+        if data is None:
+            return None
+        name = self.name(data, "name", path)
+        dose = self.quantity(data, "dose", path, "dose", required=True)
+        interval = self.quantity(data, "interval", path, "time", required=True)
+        fg = self.fraction(data, "fg", path)
+        route = self.text(data, "route", path, default="oral")
+        if route not in ROUTES:
+            self.fail(f"{path}.route", f'"{route[:40]}" is not one of {", ".join(ROUTES)}')
+        nti = self.flag(data, "narrow_therapeutic_index", path)
+        strengths: list[Q] = []
+        raw_strengths = data.get("strengths", [])
+        if not isinstance(raw_strengths, list):
+            self.fail(f"{path}.strengths", f'{_brief(raw_strengths)} is not a list; expected e.g. ["2.5 mg", "5 mg"]')
+            raw_strengths = []
+        for i, s in enumerate(raw_strengths[:_MAX_ITEMS]):
+            q = self.attempt(f"{path}.strengths[{i}]", lambda s=s, i=i: units.parse(s, "dose", field=f"{path}.strengths[{i}]"))
+            if q is not None:
+                if dose is not None and q.dimensionality != dose.dimensionality:
+                    self.fail(f"{path}.strengths[{i}]", f'"{units.format_quantity(q)}" is not in the same kind of unit as the dose')
+                else:
+                    strengths.append(q)
+        pathways: list[Pathway] = []
+        seen: set[str] = set()
+        for i, praw in self.items(data, "pathways", path):
+            at = f"{path}.pathways[{i}]"
+            pdata = self.table(praw, at, ("enzyme", "fm"))
+            if pdata is None:
+                continue
+            enzyme = self.target_name(pdata, "enzyme", at)
+            fm = self.fraction(pdata, "fm", at, required=True, allow_zero=True)
+            if enzyme is not None:
+                target = resolve_target(enzyme)
+                if target is not None and target.kind != "enzyme":
+                    self.fail(f"{at}.enzyme", f'"{enzyme}" is a transporter; the mechanistic static model here takes metabolic pathways (enzymes) only')
+                    continue
+                if enzyme in seen:
+                    self.fail(f"{at}.enzyme", f'"{enzyme}" is listed twice; give one fm per enzyme')
+                    continue
+                seen.add(enzyme)
+            if enzyme is not None and fm is not None:
+                pathways.append(Pathway(enzyme=enzyme, fm=fm))
+        total = sum(p.fm for p in pathways)
+        if total > 1.0 + 1e-9:
+            self.fail(f"{path}.pathways", f"fm values sum to {total:.4g}; expected a total of at most 1 (the rest is renal and other routes)")
+        lower = upper = None
+        if "no_effect_boundary" in data:
+            b = data["no_effect_boundary"]
+            at = f"{path}.no_effect_boundary"
+            if (
+                isinstance(b, list)
+                and len(b) == 2
+                and all(isinstance(x, (int, float)) and not isinstance(x, bool) and math.isfinite(x) for x in b)
+                and 0 < b[0] <= 1 <= b[1]
+            ):
+                lower, upper = float(b[0]), float(b[1])
+            else:
+                self.fail(at, f"{_brief(b)} is not a [lower, upper] pair of AUC ratios with 0 < lower <= 1 <= upper, e.g. [0.8, 1.25]")
+        if dose is None or interval is None:
+            return None
+        return Victim(
+            name=name,
+            dose=dose,
+            interval=interval,
+            fg=fg,
+            route=route if route in ROUTES else "oral",
+            strengths=tuple(strengths),
+            pathways=tuple(pathways),
+            no_effect_lower=lower,
+            no_effect_upper=upper,
+            narrow_therapeutic_index=nti,
+        )
+
+    def physiology(self, raw: object) -> Physiology | None:
+        path = "physiology"
+        data = self.table(raw, path, tuple(f.name for f in fields(Physiology)))
+        if data is None:
+            return None
+        return Physiology(
+            hepatic_blood_flow=self.quantity(data, "hepatic_blood_flow", path, "flow"),
+            enterocytic_blood_flow=self.quantity(data, "enterocytic_blood_flow", path, "flow"),
+            gut_volume=self.quantity(data, "gut_volume", path, "volume"),
+            fu_gut=self.fraction(data, "fu_gut", path),
+        )
+
+    def turnover(self, raw: object, path: str) -> Turnover | None:
+        data = self.table(raw, path, ("enzyme", "kdeg_liver", "kdeg_gut"))
+        if data is None:
+            return None
+        enzyme = self.target_name(data, "enzyme", path)
+        liver = self.quantity(data, "kdeg_liver", path, "rate")
+        gut = self.quantity(data, "kdeg_gut", path, "rate")
+        if enzyme is None:
+            return None
+        return Turnover(enzyme=enzyme, kdeg_liver=liver, kdeg_gut=gut)
+
+
+def _brief(value: object) -> str:
+    text = f'"{value}"' if isinstance(value, str) else repr(value)
+    return text if len(text) <= 60 else text[:57] + "..."
+
+
+class _KeyLines:
+    """Finds the line of a dotted key path in TOML text (best effort)."""
+
+    _HEADER = re.compile(r"^\s*(\[\[?)\s*([A-Za-z0-9_.\-]+)\s*\]\]?")
+    _KEY = re.compile(r"^\s*([A-Za-z0-9_\-]+)\s*=")
+
+    def __init__(self, text: str) -> None:
+        self._map: dict[str, int] = {}
+        counts: dict[str, int] = {}
+        table = ""
+        for number, line in enumerate(text.splitlines(), start=1):
+            header = self._HEADER.match(line)
+            if header:
+                name = header.group(2)
+                if header.group(1) == "[[":
+                    parent, _, leaf = name.rpartition(".")
+                    parent_path = self._indexed(parent, counts)
+                    base = f"{parent_path}.{leaf}" if parent_path else leaf
+                    counts[name] = counts.get(name, -1) + 1
+                    table = f"{base}[{counts[name]}]"
+                else:
+                    table = self._indexed(name, counts)
+                self._map.setdefault(table, number)
+                continue
+            key = self._KEY.match(line)
+            if key:
+                full = f"{table}.{key.group(1)}" if table else key.group(1)
+                self._map.setdefault(full, number)
+
+    @staticmethod
+    def _indexed(name: str, counts: dict[str, int]) -> str:
+        """Rewrite ``a.b`` to ``a.b[k]`` for parts that are arrays of tables."""
+        if not name:
+            return ""
+        parts = name.split(".")
+        out = []
+        for i in range(len(parts)):
+            prefix = ".".join(parts[: i + 1])
+            out.append(f"{parts[i]}[{counts[prefix]}]" if prefix in counts else parts[i])
+        return ".".join(out)
+
+    def find(self, path: str) -> int | None:
+        probe = path
+        while probe:
+            if probe in self._map:
+                return self._map[probe]
+            probe = re.sub(r"(\[\d+\]|\.[^.\[]*)$", "", probe) if ("." in probe or "[" in probe) else ""
+        return None
+
+
+# --------------------------------------------------------------------------- saving
+
+
+def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
+    """Plain data (strings, numbers, lists, tables) that :func:`scenario_from_dict` reads back."""
+
+    def put(out: dict[str, Any], key: str, value: Any) -> None:
+        if value is None:
+            return
+        if isinstance(value, pint.Quantity):
+            out[key] = units.format_quantity(value)
+        else:
+            out[key] = value
+
+    def inhibition(item: Inhibition) -> dict[str, Any]:
+        out: dict[str, Any] = {"target": item.target}
+        for f in fields(Inhibition)[1:]:
+            value = getattr(item, f.name)
+            if f.name == "mechanism" and value == "competitive" and item.ic50 is None:
+                continue
+            if f.name == "origin" and not value:
+                continue
+            put(out, f.name, value)
+        return out
+
+    p = scenario.perpetrator
+    perp: dict[str, Any] = {"name": p.name}
+    for key in ("molar_mass", "dose", "route", "interval", "cmax", "fu_plasma"):
+        put(perp, key, getattr(p, key))
+    if p.fu_plasma_measured:
+        perp["fu_plasma_measured"] = True
+    for key in ("blood_plasma_ratio", "fa_fg", "fa", "ka"):
+        put(perp, key, getattr(p, key))
+    perp["inhibits"] = [inhibition(i) for i in p.inhibits]
+    if p.metabolites:
+        mets = []
+        for m in p.metabolites:
+            md: dict[str, Any] = {"name": m.name}
+            put(md, "molar_mass", m.molar_mass)
+            put(md, "cmax", m.cmax)
+            md["fu_plasma"] = m.fu_plasma
+            if m.fu_plasma_measured:
+                md["fu_plasma_measured"] = True
+            md["inhibits"] = [inhibition(i) for i in m.inhibits]
+            mets.append(md)
+        perp["metabolites"] = mets
+    v = scenario.victim
+    vic: dict[str, Any] = {"name": v.name}
+    for key in ("dose", "interval", "fg", "route"):
+        put(vic, key, getattr(v, key))
+    if v.strengths:
+        vic["strengths"] = [units.format_quantity(s) for s in v.strengths]
+    if v.no_effect_lower is not None and v.no_effect_upper is not None:
+        vic["no_effect_boundary"] = [v.no_effect_lower, v.no_effect_upper]
+    if v.narrow_therapeutic_index:
+        vic["narrow_therapeutic_index"] = True
+    vic["pathways"] = [{"enzyme": pw.enzyme, "fm": pw.fm} for pw in v.pathways]
+    out: dict[str, Any] = {"title": scenario.title}
+    if scenario.invented:
+        out["invented"] = True
+    put(out, "rules", scenario.rules)
+    if scenario.notes:
+        out["notes"] = scenario.notes
+    out["perpetrator"] = perp
+    out["victim"] = vic
+    phys: dict[str, Any] = {}
+    for f in fields(Physiology):
+        put(phys, f.name, getattr(scenario.physiology, f.name))
+    if phys:
+        out["physiology"] = phys
+    if scenario.turnover:
+        turn = []
+        for t in scenario.turnover:
+            td: dict[str, Any] = {"enzyme": t.enzyme}
+            put(td, "kdeg_liver", t.kdeg_liver)
+            put(td, "kdeg_gut", t.kdeg_gut)
+            turn.append(td)
+        out["turnover"] = turn
+    return out
+
+
+def dumps_scenario(scenario: Scenario) -> str:
+    """The scenario as TOML text."""
+    return _dump_toml(scenario_to_dict(scenario))
+
+
+def save_scenario(scenario: Scenario, path: str | Path) -> None:
+    """Write the scenario to ``path`` atomically (temporary file in the same folder, then rename)."""
+    write_text_atomic(Path(path), dumps_scenario(scenario))
+
+
+def write_text_atomic(path: Path, text: str) -> None:
+    """Write ``text`` to ``path`` so that a reader sees the old file or the new one, never a part."""
+    folder = path.resolve().parent
+    try:
+        handle, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
+    except OSError as exc:
+        raise InputError("path", str(path), f"cannot be written ({exc.strerror})") from None
+    try:
+        with os.fdopen(handle, "w", encoding="utf-8", newline="\n") as out:
+            out.write(text)
+            out.flush()
+            os.fsync(out.fileno())
+        if path.exists():
+            os.chmod(tmp, path.stat().st_mode & 0o777)
+        os.replace(tmp, path)
+    except OSError as exc:
+        Path(tmp).unlink(missing_ok=True)
+        raise InputError("path", str(path), f"cannot be written ({exc.strerror})") from None
+
+
+def _toml_value(value: Any) -> str:
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, int):
+        return str(value)
+    if isinstance(value, float):
+        return repr(value)
+    if isinstance(value, str):
+        escaped = value.replace("\\", "\\\\").replace('"', '\\"')
+        escaped = escaped.replace("\n", "\\n").replace("\t", "\\t").replace("\r", "\\r")
+        escaped = "".join(c if ord(c) >= 0x20 and ord(c) != 0x7F else f"\\u{ord(c):04x}" for c in escaped)
+        return f'"{escaped}"'
+    if isinstance(value, list):
+        return "[" + ", ".join(_toml_value(v) for v in value) + "]"
+    raise TypeError(f"cannot write {type(value).__name__} to TOML")  # internal: scenario_to_dict emits only these
+
+
+def _dump_toml(data: dict[str, Any]) -> str:
+    lines: list[str] = []
+
+    def emit(table: dict[str, Any], prefix: str) -> None:
+        scalars = {k: v for k, v in table.items() if not isinstance(v, dict) and not _is_table_list(v)}
+        for key, value in scalars.items():
+            lines.append(f"{key} = {_toml_value(value)}")
+        for key, value in table.items():
+            name = f"{prefix}.{key}" if prefix else key
+            if isinstance(value, dict):
+                lines.append("")
+                lines.append(f"[{name}]")
+                emit(value, name)
+            elif _is_table_list(value):
+                for item in value:
+                    lines.append("")
+                    lines.append(f"[[{name}]]")
+                    emit(item, name)
+
+    emit(data, "")
+    return "\n".join(lines).lstrip("\n") + "\n"
+
+
+def _is_table_list(value: Any) -> bool:
+    return isinstance(value, list) and bool(value) and all(isinstance(v, dict) for v in value)

@@ -1,0 +1,364 @@
+"""Reference tables: rule sets, physiology, classes and targets, with sources.
+
+The TOML files live in ``reference_tables/`` (at the top of a source checkout,
+and inside the package when installed from a wheel).  Each value arrives here
+as a :class:`Sourced`: the value together with its source and status, so
+that every output can say where a number came from and whether it was seen
+in a source or recalled from memory.
+"""
+
+from __future__ import annotations
+
+import tomllib
+from dataclasses import dataclass
+from functools import lru_cache
+from pathlib import Path
+from typing import Any, Final
+
+from .errors import InputError
+
+__all__ = [
+    "STATUSES",
+    "Band",
+    "Classes",
+    "Criterion",
+    "RuleSet",
+    "Sourced",
+    "Target",
+    "load_classes",
+    "load_physiology",
+    "load_rules",
+    "load_targets",
+    "resolve_target",
+    "rule_set_names",
+    "tables_dir",
+]
+
+DEFAULT_RULES: Final = "ich-m12-2024"
+STATUSES: Final = ("seen in source", "from memory", "common practice")
+FORMS: Final = ("one-plus-sum", "sum", "tdi", "induction")
+CONCENTRATIONS: Final = ("unbound-cmax", "total-cmax", "gut-lumen", "unbound-inlet")
+MECHANISMS: Final = ("reversible", "time-dependent", "induction")
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Sourced:
+    """A reference value with its provenance.
+
+    ``value`` is a float, bool or a unit string such as ``"97 L/h"``.
+    """
+
+    name: str
+    value: Any
+    source: str
+    status: str
+    note: str = ""
+
+    @property
+    def from_memory(self) -> bool:
+        return self.status == "from memory"
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Criterion:
+    """One basic-model test of a rule set."""
+
+    id: str
+    label: str
+    groups: tuple[str, ...]
+    mechanism: str
+    form: str
+    concentration: str
+    equation: str
+    cutoff: Sourced
+    multiplier: Sourced | None = None
+    comparison: str = ">="
+    oral_only: bool = False
+    gut_wall_only: bool = False
+
+    def flags(self, value: float) -> bool:
+        """True when ``value`` meets the cutoff (a clinical study is indicated)."""
+        cut = float(self.cutoff.value)
+        return value >= cut if self.comparison == ">=" else value <= cut
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class RuleSet:
+    """A guidance's cutoffs and multipliers."""
+
+    id: str
+    title: str
+    version: str
+    table_version: str
+    path: str
+    fu_plasma_floor: Sourced
+    fu_plasma_floor_measured_exempt: Sourced
+    aucr_inhibition_cutoff: Sourced
+    aucr_induction_cutoff: Sourced
+    criteria: tuple[Criterion, ...]
+    physiology: tuple[Sourced, ...] = ()
+
+    def physiology_value(self, name: str) -> Sourced | None:
+        for item in self.physiology:
+            if item.name == name:
+                return item
+        return None
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Band:
+    """A class band: ``lower`` inclusive for inhibition, ``upper`` inclusive for induction."""
+
+    name: str
+    bound: float
+    source: str
+    status: str
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Classes:
+    inhibition: tuple[Band, ...]
+    induction: tuple[Band, ...]
+    victim_study_fm: Sourced
+    no_effect_lower: float
+    no_effect_upper: float
+    no_effect_source: Sourced
+    version: str
+
+    def classify(self, auc_ratio: float) -> Band | None:
+        """The inhibition or induction band of ``auc_ratio``; None between them."""
+        for band in sorted(self.inhibition, key=lambda b: -b.bound):
+            if auc_ratio >= band.bound:
+                return band
+        for band in sorted(self.induction, key=lambda b: b.bound):
+            if auc_ratio <= band.bound:
+                return band
+        return None
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Target:
+    """An enzyme or transporter known to the tool."""
+
+    name: str
+    group: str
+    kind: str
+    aliases: tuple[str, ...]
+    gut_wall: bool
+    kdeg_liver: Sourced | None = None
+    kdeg_gut: Sourced | None = None
+
+
+@lru_cache(maxsize=1)
+def tables_dir() -> Path:
+    """The folder holding the reference tables (installed or source checkout)."""
+    here = Path(__file__).resolve().parent
+    for candidate in (here / "reference_tables", here.parent / "reference_tables"):
+        if (candidate / "physiology.toml").is_file():
+            return candidate
+    raise FileNotFoundError(f"reference tables not found beside {here}")  # packaging bug, not user input
+
+
+@lru_cache(maxsize=1)
+def rule_set_names() -> tuple[str, ...]:
+    return tuple(sorted(p.stem for p in (tables_dir() / "rules").glob("*.toml")))
+
+
+def load_rules(name_or_path: str | Path | None = None) -> RuleSet:
+    """A rule set by name (``"ich-m12-2024"``, ``"fda-2020"``) or from a TOML file path."""
+    key = DEFAULT_RULES if name_or_path is None else str(name_or_path)
+    if key in rule_set_names():
+        return _load_rules_file(str(tables_dir() / "rules" / f"{key}.toml"))
+    path = Path(key)
+    if path.suffix == ".toml" and path.is_file():
+        return _load_rules_file(str(path.resolve()))
+    names = ", ".join(rule_set_names())
+    raise InputError("rules", key, f"is neither a known rule set ({names}) nor a readable .toml file")
+
+
+@lru_cache(maxsize=16)
+def _load_rules_file(path: str) -> RuleSet:
+    data = _read(Path(path), "rules")
+    where = "rules"
+    criteria = []
+    for i, raw in enumerate(_list(data, "criteria", where)):
+        at = f"{where}.criteria[{i}]"
+        form = _choice(raw, "form", FORMS, at)
+        crit = Criterion(
+            id=_str(raw, "id", at),
+            label=_str(raw, "label", at),
+            groups=tuple(_str_list(raw, "groups", at)),
+            mechanism=_choice(raw, "mechanism", MECHANISMS, at),
+            form=form,
+            concentration=_choice(raw, "concentration", CONCENTRATIONS, at),
+            equation=str(raw.get("equation", "")),
+            cutoff=_sourced(raw, "cutoff", at, number=True),
+            multiplier=_sourced(raw, "multiplier", at, number=True) if "multiplier" in raw else None,
+            comparison=_choice(raw, "comparison", (">=", "<="), at, default=">="),
+            oral_only=bool(raw.get("oral_only", False)),
+            gut_wall_only=bool(raw.get("gut_wall_only", False)),
+        )
+        criteria.append(crit)
+    phys = data.get("physiology", {})
+    if not isinstance(phys, dict):
+        raise InputError(f"{where}.physiology", phys, "is not a table of named values")
+    return RuleSet(
+        id=_str(data, "id", where),
+        title=_str(data, "title", where),
+        version=str(data.get("version", "")),
+        table_version=str(data.get("table_version", "")),
+        path=path,
+        fu_plasma_floor=_sourced(data, "fu_plasma_floor", where, number=True),
+        fu_plasma_floor_measured_exempt=_sourced(data, "fu_plasma_floor_measured_exempt", where),
+        aucr_inhibition_cutoff=_sourced(data, "aucr_inhibition_cutoff", where, number=True),
+        aucr_induction_cutoff=_sourced(data, "aucr_induction_cutoff", where, number=True),
+        criteria=tuple(criteria),
+        physiology=tuple(_sourced(phys, k, f"{where}.physiology") for k in phys),
+    )
+
+
+@lru_cache(maxsize=1)
+def load_physiology() -> tuple[Sourced, ...]:
+    data = _read(tables_dir() / "physiology.toml", "physiology")
+    return tuple(_sourced(data, k, "physiology") for k, v in data.items() if isinstance(v, dict))
+
+
+@lru_cache(maxsize=1)
+def load_classes() -> Classes:
+    data = _read(tables_dir() / "classes.toml", "classes")
+    inhibition = tuple(
+        Band(name=b["name"], bound=float(b["lower"]), source=b["source"], status=_status(b, "classes.inhibition"))
+        for b in data["inhibition"]
+    )
+    induction = tuple(
+        Band(name=b["name"], bound=float(b["upper"]), source=b["source"], status=_status(b, "classes.induction"))
+        for b in data["induction"]
+    )
+    boundary = data["no_effect_boundary"]
+    return Classes(
+        inhibition=inhibition,
+        induction=induction,
+        victim_study_fm=_sourced(data, "victim_study_fm", "classes", number=True),
+        no_effect_lower=float(boundary["lower"]),
+        no_effect_upper=float(boundary["upper"]),
+        no_effect_source=Sourced(
+            name="no_effect_boundary",
+            value=(float(boundary["lower"]), float(boundary["upper"])),
+            source=boundary["source"],
+            status=_status(boundary, "classes.no_effect_boundary"),
+        ),
+        version=str(data.get("version", "")),
+    )
+
+
+@lru_cache(maxsize=1)
+def load_targets() -> tuple[Target, ...]:
+    data = _read(tables_dir() / "targets.toml", "targets")
+    out = []
+    for i, raw in enumerate(data["target"]):
+        at = f"targets.target[{i}]"
+        out.append(
+            Target(
+                name=raw["name"],
+                group=raw["group"],
+                kind=raw["kind"],
+                aliases=tuple(raw.get("aliases", ())),
+                gut_wall=bool(raw.get("gut_wall", False)),
+                kdeg_liver=_sourced(raw, "kdeg_liver", at) if "kdeg_liver" in raw else None,
+                kdeg_gut=_sourced(raw, "kdeg_gut", at) if "kdeg_gut" in raw else None,
+            )
+        )
+    return tuple(out)
+
+
+@lru_cache(maxsize=1)
+def _target_index() -> dict[str, Target]:
+    index: dict[str, Target] = {}
+    for target in load_targets():
+        for key in (target.name, *target.aliases):
+            index[_norm(key)] = target
+    return index
+
+
+def resolve_target(name: str) -> Target | None:
+    """The target called ``name`` or one of its aliases (case and dashes ignored)."""
+    return _target_index().get(_norm(name))
+
+
+@lru_cache(maxsize=1)
+def table_versions() -> tuple[tuple[str, str], ...]:
+    """Versions of the shipped tables, for provenance."""
+    out = {}
+    for name in ("physiology", "classes", "targets"):
+        data = _read(tables_dir() / f"{name}.toml", name)
+        out[name] = str(data.get("version", ""))
+    return tuple(sorted(out.items()))
+
+
+def _norm(name: str) -> str:
+    return name.upper().replace("-", "").replace(" ", "").replace("_", "")
+
+
+def _read(path: Path, field: str) -> dict[str, Any]:
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise InputError(field, str(path), f"could not be read ({exc.__class__.__name__})") from None
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(field, str(path), f"is not valid TOML ({exc})") from None
+
+
+def _status(raw: dict[str, Any], where: str) -> str:
+    status = raw.get("status")
+    if status not in STATUSES:
+        raise InputError(f"{where}.status", status, f"is not one of {', '.join(STATUSES)}")
+    return str(status)
+
+
+def _sourced(data: dict[str, Any], key: str, where: str, *, number: bool = False) -> Sourced:
+    raw = data.get(key)
+    at = f"{where}.{key}"
+    if not isinstance(raw, dict) or "value" not in raw:
+        raise InputError(at, raw, "is missing or not a table with value, source and status")
+    value = raw["value"]
+    if number and (isinstance(value, bool) or not isinstance(value, (int, float))):
+        raise InputError(f"{at}.value", value, "is not a number")
+    if not isinstance(raw.get("source"), str) or not raw["source"].strip():
+        raise InputError(f"{at}.source", raw.get("source"), "is missing; every reference value names its source")
+    return Sourced(
+        name=key,
+        value=float(value) if number else value,
+        source=raw["source"],
+        status=_status(raw, at),
+        note=str(raw.get("note", "")),
+    )
+
+
+def _str(data: dict[str, Any], key: str, where: str) -> str:
+    value = data.get(key)
+    if not isinstance(value, str) or not value:
+        raise InputError(f"{where}.{key}", value, "is missing or not text")
+    return value
+
+
+def _str_list(data: dict[str, Any], key: str, where: str) -> list[str]:
+    value = data.get(key)
+    if not isinstance(value, list) or not all(isinstance(v, str) for v in value):
+        raise InputError(f"{where}.{key}", value, "is not a list of names")
+    return value
+
+
+def _list(data: dict[str, Any], key: str, where: str) -> list[dict[str, Any]]:
+    value = data.get(key, [])
+    if not isinstance(value, list) or not all(isinstance(v, dict) for v in value):
+        raise InputError(f"{where}.{key}", value, "is not a list of tables")
+    return value
+
+
+def _choice(data: dict[str, Any], key: str, options: tuple[str, ...], where: str, default: str | None = None) -> str:
+    value = data.get(key, default)
+    if value not in options:
+        raise InputError(f"{where}.{key}", value, f"is not one of {', '.join(options)}")
+    return str(value)
