@@ -1,0 +1,49 @@
+"""Shared helpers for the test suite."""
+
+from __future__ import annotations
+
+import copy
+import csv
+from pathlib import Path
+from typing import Any
+
+import pytest
+
+DATA = Path(__file__).parent / "data"
+
+
+def read_checks(name: str) -> list[dict[str, str]]:
+    """Rows of a reference CSV in tests/data, skipping its '#' source line."""
+    with open(DATA / name, encoding="utf-8") as handle:
+        lines = [line for line in handle if not line.startswith("#")]
+    return list(csv.DictReader(lines))
+
+
+def base_dict() -> dict[str, Any]:
+    """A minimal valid scenario as plain data (values are arbitrary test inputs, not checks)."""
+    return copy.deepcopy(
+        {
+            "title": "test scenario",
+            "perpetrator": {
+                "name": "P",
+                "molar_mass": "400 g/mol",
+                "dose": "100 mg",
+                "cmax": "1 uM",
+                "fu_plasma": 0.1,
+                "inhibits": [{"target": "CYP3A", "ki": "1 uM", "fu_inc": 1.0}],
+            },
+            "victim": {
+                "name": "V",
+                "dose": "10 mg",
+                "interval": "24 h",
+                "fg": 0.5,
+                "strengths": ["2.5 mg", "5 mg", "10 mg"],
+                "pathways": [{"enzyme": "CYP3A", "fm": 0.8}],
+            },
+        }
+    )
+
+
+@pytest.fixture
+def scenario_dict() -> dict[str, Any]:
+    return base_dict()

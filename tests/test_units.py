@@ -1,0 +1,87 @@
+"""Units: parsing, dimensions, mass <-> molar conversion, error messages."""
+
+from __future__ import annotations
+
+import pytest
+
+from interact import units
+from interact.errors import UnitError
+
+
+@pytest.mark.parametrize(
+    ("text", "kind", "unit", "value"),
+    [
+        ("812 ng/mL", "concentration", "ng/mL", 812.0),
+        ("1.8 uM", "concentration", "uM", 1.8),
+        ("1.8 µM", "concentration", "uM", 1.8),
+        ("200 mg", "dose", "mg", 200.0),
+        ("0.1 1/min", "rate", "1/min", 0.1),
+        ("0.03 h-1", "rate", "1/h", 0.03),
+        ("0.03 h^-1", "rate", "1/h", 0.03),
+        ("97 L/h", "flow", "L/min", 97.0 / 60.0),
+        ("250 mL", "volume", "L", 0.25),
+        ("24 h", "time", "min", 1440.0),
+    ],
+)
+def test_parse_and_convert(text: str, kind: str, unit: str, value: float) -> None:
+    q = units.parse(text, kind, field="f")
+    assert units.magnitude(q, unit) == pytest.approx(value, rel=1e-12)
+
+
+def test_mass_to_molar_through_molar_mass() -> None:
+    # 812 ng/mL of a 452.5 g/mol compound: 812e-9 g/mL / 452.5 g/mol = 1.7945e-6 mol/L (arithmetic)
+    mw = units.parse("452.5 g/mol", "molar_mass", field="mw")
+    c = units.parse("812 ng/mL", "concentration", field="c")
+    assert units.concentration_um(c, mw, field="c") == pytest.approx(812 / 452.5, rel=1e-12)
+    dose = units.parse("200 mg", "dose", field="d")
+    assert units.amount_umol(dose, mw, field="d") == pytest.approx(200e3 / 452.5, rel=1e-12)
+
+
+def test_mass_concentration_without_molar_mass_names_field() -> None:
+    c = units.parse("812 ng/mL", "concentration", field="perpetrator.cmax")
+    with pytest.raises(UnitError, match=r"^perpetrator\.cmax: .*molar_mass"):
+        units.concentration_um(c, None, field="perpetrator.cmax")
+
+
+@pytest.mark.parametrize(
+    ("text", "pattern"),
+    [
+        ("1.8 kg", r'^perpetrator\.cmax: "1\.8 kg" is a mass; expected a concentration such as "1\.8 uM" or "812 ng/mL"$'),
+        ("1.8 furlongs", r'unknown unit "furlongs"'),
+        ("abc", r"does not start with a number"),
+        ("-1 uM", r"is negative"),
+        ("0 uM", r"is zero"),
+        ("1e999 uM", r"not a finite number"),
+        ("5", r"has no unit"),
+        ("1 uM; rm -rf", r"unreadable unit"),
+        ("9" * 200 + " uM", r"too long"),
+    ],
+)
+def test_errors_name_field_value_and_expectation(text: str, pattern: str) -> None:
+    with pytest.raises(UnitError, match=pattern) as info:
+        units.parse(text, "concentration", field="perpetrator.cmax")
+    assert info.value.field == "perpetrator.cmax"
+    assert "\n" not in str(info.value)
+
+
+def test_non_text_is_rejected() -> None:
+    with pytest.raises(UnitError, match="not text with a unit"):
+        units.parse(1.5, "concentration", field="x")
+
+
+@pytest.mark.parametrize(("text", "value"), [(0.02, 0.02), ("0.02", 0.02), ("2 %", 0.02), (1, 1.0)])
+def test_fraction(text: object, value: float) -> None:
+    assert units.parse_fraction(text, field="fu") == pytest.approx(value)
+
+
+@pytest.mark.parametrize("bad", [0, -0.1, 1.5, "2 mg", float("nan"), float("inf"), True, None])
+def test_fraction_errors(bad: object) -> None:
+    with pytest.raises(UnitError, match=r"^fu: "):
+        units.parse_fraction(bad, field="fu")
+
+
+def test_format_round_trip() -> None:
+    for text, kind in (("812 ng/mL", "concentration"), ("0.1 1/min", "rate"), ("1.617 L/min", "flow"), ("0.333333 uM", "concentration")):
+        q = units.parse(text, kind, field="x")
+        again = units.parse(units.format_quantity(q), kind, field="x")
+        assert units.magnitude(again, str(q.units)) == units.magnitude(q, str(q.units))
