@@ -164,9 +164,6 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
                 f"The mechanistic model predicts AUCR >= {rule_set.aucr_inhibition_cutoff.value:g} although the basic R1 "
                 f"screen does not flag {', '.join(missed)}: the hepatic inlet concentration exceeds Cmax,u."
             )
-    for pw in v.pathways:
-        if pw.fm >= 0.25:
-            pass
     # -- dose
     usual_unit = units.unit_text(v.dose)
     usual = float(v.dose.magnitude)

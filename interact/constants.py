@@ -7,6 +7,8 @@ when given, kinact (1/h) with KI,u (uM) and Emax with EC50,u (uM) and d.
 
 from __future__ import annotations
 
+import pint
+
 from dataclasses import dataclass
 
 from . import units
@@ -42,7 +44,7 @@ class Constant:
     origin: str = ""
 
 
-def _one(item: Inhibition, species: str, index: int, mw: units.Quantity | None, path: str) -> Constant:
+def _one(item: Inhibition, species: str, index: int, mw: pint.Quantity | None, path: str) -> Constant:
     target = resolve_target(item.target)
     assert target is not None  # validated in scenario
     fu_default = float(next(p for p in load_physiology() if p.name == "fu_inc").value)

@@ -160,9 +160,9 @@ def resolve_settings(scenario: Scenario, rules: RuleSet) -> dict[str, Setting]:
     return out
 
 
-def floored_fu(fu: float, measured: bool, rules: RuleSet, label: str) -> tuple[float, Setting]:
-    """fu,p as used: raised to the rule set's floor unless a measured value may stand below it."""
-    floor = float(rules.fu_plasma_floor.value)
+def floored_fu(fu: float, measured: bool, rules: RuleSet, label: str, floor_override: float | None = None) -> tuple[float, Setting]:
+    """fu,p as used: raised to the floor (rule set's, or the scenario's override) unless a measured value may stand below it."""
+    floor = float(rules.fu_plasma_floor.value) if floor_override is None else floor_override
     exempt = bool(rules.fu_plasma_floor_measured_exempt.value)
     if fu >= floor:
         return fu, Setting(name="fu_plasma", label=label, value=fu, unit="", origin="given")
@@ -184,8 +184,8 @@ def floored_fu(fu: float, measured: bool, rules: RuleSet, label: str) -> tuple[f
         value=floor,
         unit="",
         origin="floor",
-        source=rules.fu_plasma_floor.source,
-        status=rules.fu_plasma_floor.status,
+        source=rules.fu_plasma_floor.source if floor_override is None else "scenario [physiology] fu_plasma_floor",
+        status=rules.fu_plasma_floor.status if floor_override is None else "",
         note=f"given {fu:g} raised to the floor {floor:g}: {reason}",
     )
 
@@ -198,7 +198,8 @@ def resolve_exposure(
     oral = p.route == "oral"
     dose_umol = units.amount_umol(p.dose, p.molar_mass, field="perpetrator.dose")
     cmax = units.concentration_um(p.cmax, p.molar_mass, field="perpetrator.cmax")
-    fu, fu_setting = floored_fu(p.fu_plasma, p.fu_plasma_measured, rules, f"fu,p of {p.name}")
+    floor = scenario.physiology.fu_plasma_floor
+    fu, fu_setting = floored_fu(p.fu_plasma, p.fu_plasma_measured, rules, f"fu,p of {p.name}", floor)
     qh = settings["hepatic_blood_flow"].value
     qent = settings["enterocytic_blood_flow"].value
     ka = settings["absorption_rate"].value
@@ -226,7 +227,7 @@ def resolve_exposure(
     fus = [fu_setting]
     for i, m in enumerate(p.metabolites):
         mc = units.concentration_um(m.cmax, m.molar_mass, field=f"perpetrator.metabolites[{i}].cmax")
-        mfu, mset = floored_fu(m.fu_plasma, m.fu_plasma_measured, rules, f"fu,p of {m.name}")
+        mfu, mset = floored_fu(m.fu_plasma, m.fu_plasma_measured, rules, f"fu,p of {m.name}", floor)
         mu = float(unbound_cmax_um(mc, mfu))
         species.append(
             SpeciesExposure(

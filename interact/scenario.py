@@ -151,6 +151,7 @@ class Physiology:
     enterocytic_blood_flow: Q | None = None
     gut_volume: Q | None = None
     fu_gut: float | None = None
+    fu_plasma_floor: float | None = None
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -198,7 +199,8 @@ def load_scenario(path: str | Path) -> Scenario:
     try:
         text = path.read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError) as exc:
-        raise InputError("scenario", str(path), f"could not be read ({exc.strerror or exc.__class__.__name__})") from None
+        reason = getattr(exc, "strerror", None) or exc.__class__.__name__
+        raise InputError("scenario", str(path), f"could not be read ({reason})") from None
     return loads_scenario(text, source=str(path))
 
 
@@ -233,17 +235,11 @@ class _Reader:
         self.problems.append(Problem(field=path, message=message, line=line))
 
     def attempt(self, path: str, fn: Callable[[], T]) -> T | None:
+        """Run a conversion; record its InputError as a problem at ``path``."""
         try:
             return fn()
         except InputError as exc:
-            self.fail(path, exc.expected if exc.field == path else str(exc))
-            # the message already names the value
-            if exc.field == path:
-                self.problems[-1] = Problem(
-                    field=path,
-                    message=f"{_brief(exc.value)} {exc.expected}",
-                    line=self.problems[-1].line,
-                )
+            self.fail(path, f"{_brief(exc.value)} {exc.expected}" if exc.field == path else str(exc))
             return None
 
     def table(self, data: object, path: str, allowed: tuple[str, ...]) -> dict[str, Any] | None:
@@ -531,7 +527,8 @@ class _Reader:
             self.fail(f"{path}.strengths", f'{_brief(raw_strengths)} is not a list; expected e.g. ["2.5 mg", "5 mg"]')
             raw_strengths = []
         for i, s in enumerate(raw_strengths[:_MAX_ITEMS]):
-            q = self.attempt(f"{path}.strengths[{i}]", lambda s=s, i=i: units.parse(s, "dose", field=f"{path}.strengths[{i}]"))
+            at = f"{path}.strengths[{i}]"
+            q = self.attempt(at, lambda s=s, at=at: units.parse(s, "dose", field=at))  # type: ignore[misc]
             if q is not None:
                 if dose is not None and q.dimensionality != dose.dimensionality:
                     self.fail(f"{path}.strengths[{i}]", f'"{units.format_quantity(q)}" is not in the same kind of unit as the dose')
@@ -598,6 +595,7 @@ class _Reader:
             enterocytic_blood_flow=self.quantity(data, "enterocytic_blood_flow", path, "flow"),
             gut_volume=self.quantity(data, "gut_volume", path, "volume"),
             fu_gut=self.fraction(data, "fu_gut", path),
+            fu_plasma_floor=self.fraction(data, "fu_plasma_floor", path),
         )
 
     def turnover(self, raw: object, path: str) -> Turnover | None:

@@ -36,7 +36,7 @@ __all__ = [
     "ureg",
 ]
 
-ureg: Final = pint.UnitRegistry(
+ureg: Final[pint.UnitRegistry] = pint.UnitRegistry(  # type: ignore[type-arg]
     str(Path(__file__).with_name("units.txt")),
     cache_folder=None,
     autoconvert_offset_to_baseunit=False,

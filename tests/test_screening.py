@@ -119,3 +119,12 @@ def test_transporter_criteria(scenario_dict: dict) -> None:
     assert by[("OCT2", "renal-uptake")].value == pytest.approx(0.1 / 0.5)
     assert by[("MATE1", "renal-efflux")].value == pytest.approx(0.01)
     assert not by[("MATE1", "renal-efflux")].indicated
+
+
+def test_fu_floor_override(scenario_dict: dict) -> None:
+    scenario_dict["perpetrator"]["fu_plasma"] = 0.002
+    scenario_dict["physiology"] = {"fu_plasma_floor": 0.005}
+    a = assess(scenario_from_dict(scenario_dict), rules="fda-2020")
+    assert a.species[0].fu_plasma_used == 0.005
+    fu = next(s for s in a.settings if s.name == "fu_plasma")
+    assert fu.origin == "floor" and "physiology" in fu.source

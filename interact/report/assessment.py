@@ -6,6 +6,8 @@ documented in README.md ("JSON output") and versioned by ``schema``.
 
 from __future__ import annotations
 
+import pint
+
 import json
 import math
 from typing import Any
@@ -41,7 +43,7 @@ def _origin(s: Setting) -> str:
     return "; ".join(parts)
 
 
-def _q(q: units.Quantity | None) -> str:
+def _q(q: pint.Quantity | None) -> str:
     return "-" if q is None else units.format_quantity(q)
 
 
