@@ -59,11 +59,17 @@ class Assessment:
     provenance: Provenance
 
 
-def _kdeg(scenario: Scenario, constants: tuple[Constant, ...]) -> tuple[dict[str, tuple[float | None, float | None]], list[Setting]]:
-    """kdeg per enzyme (liver, gut) in 1/h: the scenario's override, else the targets table."""
+def _kdeg(
+    scenario: Scenario, constants: tuple[Constant, ...], enzymes: set[str] | None = None
+) -> tuple[dict[str, tuple[float | None, float | None]], list[Setting]]:
+    """kdeg per enzyme (liver, gut) in 1/h: the scenario's override, else the targets table.
+
+    ``enzymes`` defaults to the targets inactivated by the perpetrator (the static
+    model needs kdeg only there); the time course also asks for induced ones.
+    """
     out: dict[str, tuple[float | None, float | None]] = {}
     used: list[Setting] = []
-    needed = {c.target for c in constants if c.kinact_per_h is not None}
+    needed = {c.target for c in constants if c.kinact_per_h is not None} if enzymes is None else set(enzymes)
     overrides = {t.enzyme: t for t in scenario.turnover}
     for enzyme in sorted(needed):
         target = resolve_target(enzyme)
@@ -153,9 +159,14 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
     for kd in kdeg_used:
         if kd.from_memory:
             warnings.append(f"{kd.label} = {kd.value:.4g} 1/h is from memory ({kd.source}); override it under [[turnover]] if you have a better value.")
-    for enzyme, (lv, _) in kdeg.items():
+    for enzyme, (lv, gv) in kdeg.items():
         if lv is None:
             warnings.append(f"No hepatic kdeg is known for {enzyme}: its time-dependent inhibition is left out; give it under [[turnover]].")
+        if gv is None and enzyme == gut_enzyme:
+            warnings.append(
+                f"No intestinal kdeg is known for {enzyme}: its time-dependent inhibition in the gut wall is left out; "
+                "give kdeg_gut under [[turnover]]."
+            )
     rev_flags = {r.target for r in screen_results if r.criterion.startswith("reversible") and r.indicated}
     if prediction.total >= float(rule_set.aucr_inhibition_cutoff.value):
         missed = [pw.enzyme for pw in v.pathways if pw.enzyme in acting_targets and pw.enzyme not in rev_flags]
@@ -194,6 +205,25 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
     study = prediction.total >= float(aucr_cut.value) or induced
     if induced:
         aucr_cut = rule_set.aucr_induction_cutoff
+    # mixed effects: inhibition and induction are judged separately too, not only their net (memory: FDA practice)
+    if "induction" in prediction.mechanisms and len(prediction.mechanisms) > 1:
+        inhibitory = [pt for pt in prediction.parts if pt.mechanism != "induction"]
+        inhib = max(inhibitory, key=lambda pt: pt.total) if inhibitory else None
+        induct = next((pt for pt in prediction.parts if pt.mechanism == "induction"), None)
+        if inhib is not None and inhib.total >= float(rule_set.aucr_inhibition_cutoff.value) and not study:
+            study = True
+            warnings.append(
+                f"The net AUCR {prediction.total:.3g} hides inhibition: {inhib.mechanism} alone gives {inhib.total:.3g} "
+                f"(>= {rule_set.aucr_inhibition_cutoff.value:g}); a clinical study is indicated on the inhibition alone."
+            )
+        if induct is not None and induct.total <= float(rule_set.aucr_induction_cutoff.value) and not induced:
+            if not study:
+                aucr_cut = rule_set.aucr_induction_cutoff
+            study = True
+            warnings.append(
+                f"The net AUCR {prediction.total:.3g} hides induction: induction alone gives {induct.total:.3g} "
+                f"(<= {rule_set.aucr_induction_cutoff.value:g}); a clinical study is indicated on the induction alone."
+            )
 
     all_settings = (*settings.values(), *fu_settings)
     memory = tuple(

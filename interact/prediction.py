@@ -46,6 +46,8 @@ __all__ = [
 ]
 
 MECHANISM_PARTS = ("reversible", "time-dependent", "induction")
+#: name of the part with both inhibitory mechanisms on (reported when induction is also present)
+INHIBITION_PART = "reversible + time-dependent"
 
 
 def reversible_term(sum_ratio: ArrayLike) -> NDArray[np.float64]:
@@ -104,7 +106,7 @@ class EnzymeEffect:
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class MechanismPart:
-    """The ratios with only one mechanism switched on."""
+    """The ratios with only one mechanism (or, for :data:`INHIBITION_PART`, both inhibitory ones) switched on."""
 
     mechanism: str
     gut: float
@@ -235,9 +237,13 @@ def predict(
     gut_r, liver_r, effects = _ratios(pathways, fg, gut_enzyme, constants, species, kdeg, scale, MECHANISM_PARTS)
     parts = []
     if len(mechanisms) > 1:
-        for m in mechanisms:
-            g, h, _ = _ratios(pathways, fg, gut_enzyme, constants, species, kdeg, scale, (m,))
-            parts.append(MechanismPart(mechanism=m, gut=g, liver=h, total=g * h))
+        groups: list[tuple[str, tuple[str, ...]]] = [(m, (m,)) for m in mechanisms]
+        if {"reversible", "time-dependent", "induction"} <= set(mechanisms):
+            # inhibition and induction run separately, as guidance asks (memory): both inhibitory parts together
+            groups.append((INHIBITION_PART, ("reversible", "time-dependent")))
+        for name, include in groups:
+            g, h, _ = _ratios(pathways, fg, gut_enzyme, constants, species, kdeg, scale, include)
+            parts.append(MechanismPart(mechanism=name, gut=g, liver=h, total=g * h))
     acted_on = {c.target for c in constants if c.ki_u_um is not None or c.kinact_per_h is not None}
     inhibited_fm = sum(fm for enzyme, fm in pathways if enzyme in acted_on)
     ceiling_liver = 1.0 / (1.0 - inhibited_fm) if inhibited_fm < 1.0 else float("inf")

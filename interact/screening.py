@@ -8,6 +8,13 @@ which only the parent has):
 - ``sum``:          R = sum([I]/K)                 transporter ratios    (S8)
 - ``tdi``:          R2 = (kobs + kdeg)/kdeg, kobs = sum(kinact [I]/(KI,u + [I]))   (S1)
 - ``induction``:    R3 = 1 / (1 + d sum(Emax [I]/(EC50,u + [I])))            (S1, from memory)
+- ``fold-change``:  F = 1 + sum(Emax [I]/(EC50,u + [I])), the in vitro mRNA fold change over
+                    vehicle predicted at [I] from the fitted Emax and EC50 (no d: an in vitro
+                    quantity); flag F >= 2 (S1: FDA 2020 2-fold rule; the M12 concentration
+                    limit is from memory)
+
+Emax is the maximal *increase* over vehicle (fold change minus 1), so that the
+enzyme level is 1 + Emax [I]/(EC50 + [I]) times baseline (algebra).
 
 Cutoffs, multipliers and concentrations are data from the rule set.
 """
@@ -23,7 +30,7 @@ from .constants import Constant
 from .exposure import SpeciesExposure
 from .tables import Criterion, RuleSet, Sourced
 
-__all__ = ["Contribution", "ScreenResult", "inactivation_ratio", "induction_ratio", "screen"]
+__all__ = ["Contribution", "ScreenResult", "fold_change", "inactivation_ratio", "induction_ratio", "screen"]
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -68,6 +75,11 @@ def inactivation_ratio(kobs_per_h: ArrayLike, kdeg_per_h: ArrayLike) -> NDArray[
 def induction_ratio(effect: ArrayLike, calibration: ArrayLike = 1.0) -> NDArray[np.float64]:
     """R3 = 1 / (1 + d x effect), effect = sum(Emax [I]/(EC50 + [I]))."""
     return 1.0 / (1.0 + np.multiply(calibration, effect))
+
+
+def fold_change(effect: ArrayLike) -> NDArray[np.float64]:
+    """In vitro fold change over vehicle: 1 + effect, effect = sum(Emax [I]/(EC50 + [I])) (no d)."""
+    return 1.0 + np.asarray(effect, dtype=float)
 
 
 def _concentration(exp: SpeciesExposure, kind: str) -> float | None:
@@ -126,10 +138,11 @@ def screen(
                     )
                 else:
                     assert c.emax is not None and c.ec50_u_um is not None
+                    d = 1.0 if crit.form == "fold-change" else c.calibration
                     parts.append(
                         Contribution(
                             species=c.species, concentration_um=x, constant_um=c.ec50_u_um,
-                            term=c.calibration * c.emax * x / (c.ec50_u_um + x),
+                            term=d * c.emax * x / (c.ec50_u_um + x),
                         )
                     )
             if not parts:
@@ -145,6 +158,8 @@ def screen(
                 if kdeg is None:
                     continue
                 value = float(inactivation_ratio(total, kdeg))
+            elif crit.form == "fold-change":
+                value = float(fold_change(total))
             else:
                 value = float(induction_ratio(total))
             results.append(

@@ -36,7 +36,7 @@ __all__ = [
 
 DEFAULT_RULES: Final = "ich-m12-2024"
 STATUSES: Final = ("seen in source", "from memory", "common practice")
-FORMS: Final = ("one-plus-sum", "sum", "tdi", "induction")
+FORMS: Final = ("one-plus-sum", "sum", "tdi", "induction", "fold-change")
 CONCENTRATIONS: Final = ("unbound-cmax", "total-cmax", "gut-lumen", "unbound-inlet")
 MECHANISMS: Final = ("reversible", "time-dependent", "induction")
 
