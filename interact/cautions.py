@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Final
 
-__all__ = ["CAUTION_LINE", "CAUTIONS", "DOSE_CAUTIONS", "INCREASE_CAUTION"]
+__all__ = ["CAUTIONS", "CAUTION_LINE", "DOSE_CAUTIONS", "INCREASE_CAUTION"]
 
 CAUTION_LINE: Final = (
     "Model estimate, not clinical advice: the prescriber, the product label and local guidance decide."
