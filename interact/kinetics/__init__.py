@@ -1,9 +1,49 @@
-"""In vitro kinetics: inhibition constants from incubations, and their conversion.
+"""In vitro kinetics: from incubation data to an unbound inhibition constant.
 
-``conversion`` holds the Cheng-Prusoff relations and the unbound correction
-used by the engine.  Fitting lives in sibling modules.
+- :mod:`.ratelaws`   rate laws of reversible inhibition with analytic Jacobians
+- :mod:`.engine`     least squares with SEs, Wald and profile intervals, AIC/AICc/BIC
+- :mod:`.data`       incubation grids and their CSV reader
+- :mod:`.fitting`    global fit of every mechanism, F tests, AICc weights, verdict
+- :mod:`.conversion` Cheng-Prusoff and the unbound correction used by the engine
 """
 
 from .conversion import CHENG_PRUSOFF_SOURCE, ki_from_ic50, unbound
+from .data import IncubationData, incubation_data, parse_incubation_csv, read_incubation_csv
+from .engine import WEIGHTS, CurveModel, Estimate, FitResult, fit_curve
+from .fitting import (
+    MODELS,
+    FTest,
+    ModelComparison,
+    RankedModel,
+    Verdict,
+    fit_inhibition,
+    fit_substrate_inhibition,
+    guess_inhibition,
+    guess_michaelis_menten,
+    inhibition_model,
+)
 
-__all__ = ["CHENG_PRUSOFF_SOURCE", "ki_from_ic50", "unbound"]
+__all__ = [
+    "CHENG_PRUSOFF_SOURCE",
+    "MODELS",
+    "WEIGHTS",
+    "CurveModel",
+    "Estimate",
+    "FTest",
+    "FitResult",
+    "IncubationData",
+    "ModelComparison",
+    "RankedModel",
+    "Verdict",
+    "fit_curve",
+    "fit_inhibition",
+    "fit_substrate_inhibition",
+    "guess_inhibition",
+    "guess_michaelis_menten",
+    "incubation_data",
+    "inhibition_model",
+    "ki_from_ic50",
+    "parse_incubation_csv",
+    "read_incubation_csv",
+    "unbound",
+]

@@ -1,0 +1,293 @@
+"""Incubation data: a substrate x inhibitor grid of initial velocities, read from CSV.
+
+CSV layout (documented in the README, "Fitting incubation data"):
+
+- a substrate of zero is allowed (a blank, velocity zero by the model);
+- a header row naming the columns; names are matched without regard to case,
+  spaces or underscores: ``substrate`` (or ``s``), ``inhibitor`` (or ``i``),
+  ``velocity`` (or ``v``, ``rate``), and optionally ``depletion`` (percent of
+  substrate consumed, or ``turnover``);
+- the unit may follow a name in parentheses or brackets: ``substrate (uM)``,
+  ``velocity [pmol/min/mg]``, ``depletion (%)``; otherwise it is given to the
+  reader (``--substrate-unit`` on the command line);
+- lines starting with ``#`` and blank lines are skipped; replicates are rows
+  with the same concentrations.
+
+Concentrations are converted once to micromolar; velocities keep their unit.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import math
+import re
+from collections.abc import Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Final
+
+import numpy as np
+from numpy.typing import NDArray
+
+from .. import units
+from ..errors import InputError, UnitError
+
+__all__ = ["IncubationData", "incubation_data", "parse_incubation_csv", "read_incubation_csv"]
+
+_ALIASES: Final = {
+    "substrate": ("substrate", "s", "substrateconc", "substrateconcentration", "conc", "concentration"),
+    "inhibitor": ("inhibitor", "i", "inhibitorconc", "inhibitorconcentration"),
+    "velocity": ("velocity", "v", "rate", "v0", "activity"),
+    "depletion": ("depletion", "turnover", "substratedepletion", "consumed"),
+}
+_HEADER: Final = re.compile(r"^\s*([^\(\[]*?)\s*(?:[\(\[]\s*(.*?)\s*[\)\]])?\s*$")
+_MAX_ROWS: Final = 100_000
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class IncubationData:
+    """Initial velocities over a substrate x inhibitor grid.
+
+    ``substrate_um`` and ``inhibitor_um`` are micromolar; ``velocity`` is in
+    ``velocity_unit`` (free text, empty when not stated).  ``depletion_pct``
+    holds the percentage of substrate consumed per row when measured.
+    ``lines`` are the source line numbers of the rows (for messages).
+    """
+
+    substrate_um: tuple[float, ...]
+    inhibitor_um: tuple[float, ...]
+    velocity: tuple[float, ...]
+    velocity_unit: str = ""
+    depletion_pct: tuple[float, ...] | None = None
+    lines: tuple[int, ...] = ()
+    source: str = ""
+
+    @property
+    def n(self) -> int:
+        return len(self.velocity)
+
+    def arrays(self) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64]]:
+        """(S in uM, I in uM, v) as float arrays."""
+        return (
+            np.asarray(self.substrate_um, dtype=float),
+            np.asarray(self.inhibitor_um, dtype=float),
+            np.asarray(self.velocity, dtype=float),
+        )
+
+    def line_of(self, index: int) -> int:
+        return self.lines[index] if self.lines else index + 1
+
+    @property
+    def inhibitor_levels(self) -> tuple[float, ...]:
+        return tuple(sorted(set(self.inhibitor_um)))
+
+    @property
+    def substrate_levels(self) -> tuple[float, ...]:
+        return tuple(sorted(set(self.substrate_um)))
+
+
+def incubation_data(
+    substrate_um: Sequence[float],
+    inhibitor_um: Sequence[float],
+    velocity: Sequence[float],
+    *,
+    velocity_unit: str = "",
+    depletion_pct: Sequence[float] | None = None,
+    source: str = "",
+    lines: Sequence[int] = (),
+) -> IncubationData:
+    """Build validated :class:`IncubationData` from arrays (concentrations in uM).
+
+    Raises
+    ------
+    InputError
+        Unequal lengths, non-finite values, negative concentrations, depletion outside 0-100 %.
+    """
+    s = [float(v) for v in substrate_um]
+    i = [float(v) for v in inhibitor_um]
+    v = [float(x) for x in velocity]
+    if not (len(s) == len(i) == len(v)):
+        raise InputError(
+            "data", f"{len(s)}/{len(i)}/{len(v)} values", "need equal numbers of substrate, inhibitor and velocity values"
+        )
+    line_nos = tuple(lines) if lines else tuple(range(1, len(s) + 1))
+    dep = None if depletion_pct is None else [float(x) for x in depletion_pct]
+    for k in range(len(s)):
+        where = f"row {k + 1}" if not lines else f"line {line_nos[k]}"
+        _check(s[k], f"substrate ({where})", low_open=False)
+        _check(i[k], f"inhibitor ({where})", low_open=False)
+        if not math.isfinite(v[k]):
+            raise InputError(f"velocity ({where})", v[k], "is not a finite number")
+        if dep is not None and not (math.isfinite(dep[k]) and 0.0 <= dep[k] <= 100.0):
+            raise InputError(f"depletion ({where})", dep[k], "is not a percentage between 0 and 100")
+    if not s:
+        raise InputError("data", "no rows", "expected at least one row of substrate, inhibitor and velocity")
+    return IncubationData(
+        substrate_um=tuple(s),
+        inhibitor_um=tuple(i),
+        velocity=tuple(v),
+        velocity_unit=velocity_unit,
+        depletion_pct=None if dep is None else tuple(dep),
+        lines=line_nos,
+        source=source,
+    )
+
+
+def _check(value: float, field: str, *, low_open: bool) -> None:
+    if not math.isfinite(value):
+        raise InputError(field, value, "is not a finite number")
+    if value < 0 or (low_open and value == 0):
+        raise InputError(field, value, "must be above zero" if low_open else "must not be negative")
+
+
+def read_incubation_csv(
+    path: str | Path,
+    *,
+    substrate_unit: str | None = None,
+    inhibitor_unit: str | None = None,
+    velocity_unit: str | None = None,
+    require_inhibitor: bool = True,
+) -> IncubationData:
+    """Read an incubation CSV (layout in the module docstring).
+
+    Units given here override none found in the header; a header unit that
+    disagrees with a given unit is an error (the file is ambiguous).
+
+    Raises
+    ------
+    InputError
+        Unreadable file, missing columns or units, or a bad row (the message
+        names the line number, the column and the value).
+    """
+    p = Path(path)
+    try:
+        text = p.read_text(encoding="utf-8-sig")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise InputError(
+            "data", str(p), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})"
+        ) from None
+    return parse_incubation_csv(
+        text,
+        source=p.name,
+        substrate_unit=substrate_unit,
+        inhibitor_unit=inhibitor_unit,
+        velocity_unit=velocity_unit,
+        require_inhibitor=require_inhibitor,
+    )
+
+
+def _rows(text: str) -> list[tuple[int, list[str]]]:
+    out = []
+    reader = csv.reader(io.StringIO(text))
+    for row in reader:
+        line = reader.line_num
+        if not row or all(not c.strip() for c in row) or row[0].lstrip().startswith("#"):
+            continue
+        out.append((line, [c.strip() for c in row]))
+        if len(out) > _MAX_ROWS:
+            raise InputError("data", f"more than {_MAX_ROWS} rows", "is too large for an incubation data set")
+    return out
+
+
+def _columns(header: list[str], line: int) -> dict[str, tuple[int, str]]:
+    found: dict[str, tuple[int, str]] = {}
+    for k, cell in enumerate(header):
+        m = _HEADER.match(cell)
+        name, unit = (m.group(1), m.group(2) or "") if m else (cell, "")
+        key = re.sub(r"[\s_\-]+", "", name.lower())
+        for column, aliases in _ALIASES.items():
+            if key in aliases:
+                if column in found:
+                    raise InputError(
+                        f"header (line {line})", cell, f"names the {column} column twice; expected one {column} column"
+                    )
+                found[column] = (k, unit)
+    return found
+
+
+def parse_incubation_csv(
+    text: str,
+    *,
+    source: str = "data",
+    substrate_unit: str | None = None,
+    inhibitor_unit: str | None = None,
+    velocity_unit: str | None = None,
+    require_inhibitor: bool = True,
+) -> IncubationData:
+    """Parse incubation CSV text; see :func:`read_incubation_csv`."""
+    rows = _rows(text)
+    if not rows:
+        raise InputError(source, "empty file", "expected a header row (substrate, inhibitor, velocity) and data rows")
+    header_line, header = rows[0]
+    cols = _columns(header, header_line)
+    needed = ("substrate", "inhibitor", "velocity") if require_inhibitor else ("substrate", "velocity")
+    missing = [c for c in needed if c not in cols]
+    if missing:
+        raise InputError(
+            f"{source} header (line {header_line})",
+            ",".join(header),
+            f"lacks the column{'s' if len(missing) > 1 else ''} {', '.join(missing)}; expected named columns "
+            "substrate, inhibitor, velocity (units in the header like 'substrate (uM)'), optionally depletion (%)",
+        )
+    s_factor = _unit_factor("substrate", cols["substrate"][1], substrate_unit, header_line)
+    i_factor = _unit_factor("inhibitor", cols["inhibitor"][1], inhibitor_unit, header_line) if "inhibitor" in cols else 1.0
+    v_unit = _velocity_unit(cols["velocity"][1], velocity_unit, header_line)
+    if "depletion" in cols and cols["depletion"][1] not in ("", "%", "percent"):
+        raise InputError(f"depletion (line {header_line})", cols["depletion"][1], "is not a percentage; expected 'depletion (%)'")
+    s_vals, i_vals, v_vals, d_vals, lines = [], [], [], [], []
+    width = max(k for k, _ in cols.values()) + 1
+    for line, row in rows[1:]:
+        if len(row) < width:
+            raise InputError(
+                f"{source} line {line}", ",".join(row), f"has {len(row)} fields; expected at least {width} (as in the header)"
+            )
+        s_vals.append(_number(row[cols["substrate"][0]], "substrate", line, source) * s_factor)
+        i_vals.append(_number(row[cols["inhibitor"][0]], "inhibitor", line, source) * i_factor if "inhibitor" in cols else 0.0)
+        v_vals.append(_number(row[cols["velocity"][0]], "velocity", line, source))
+        if "depletion" in cols:
+            d_vals.append(_number(row[cols["depletion"][0]], "depletion", line, source))
+        lines.append(line)
+    if not lines:
+        raise InputError(source, "no data rows", "expected rows of substrate, inhibitor and velocity under the header")
+    return incubation_data(
+        s_vals,
+        i_vals,
+        v_vals,
+        velocity_unit=v_unit,
+        depletion_pct=d_vals if "depletion" in cols else None,
+        source=source,
+        lines=lines,
+    )
+
+
+def _number(cell: str, column: str, line: int, source: str) -> float:
+    try:
+        value = float(cell)
+    except ValueError:
+        raise InputError(f"{source} line {line}, {column}", cell, "is not a number") from None
+    if not math.isfinite(value):
+        raise InputError(f"{source} line {line}, {column}", cell, "is not a finite number")
+    return value
+
+
+def _unit_factor(column: str, header_unit: str, given: str | None, line: int) -> float:
+    """Factor converting the column's numbers to micromolar."""
+    unit = header_unit or (given or "")
+    if header_unit and given and header_unit.replace(" ", "") != given.replace(" ", ""):
+        raise InputError(f"{column} unit", given, f"differs from the unit in the header (line {line}): '{header_unit}'")
+    if not unit:
+        raise InputError(
+            f"{column} unit", "none", f"is not stated; put it in the header like '{column} (uM)' or pass --{column}-unit uM"
+        )
+    try:
+        q = units.parse(f"1 {unit}", "molar_concentration", field=f"{column} unit")
+    except UnitError:
+        raise UnitError(f"{column} unit", unit, "is not a molar concentration unit; expected e.g. uM, nM or mM") from None
+    return units.magnitude(q, "uM")
+
+
+def _velocity_unit(header_unit: str, given: str | None, line: int) -> str:
+    if header_unit and given and header_unit.replace(" ", "") != given.replace(" ", ""):
+        raise InputError("velocity unit", given, f"differs from the unit in the header (line {line}): '{header_unit}'")
+    return header_unit or (given or "")  # a label only: velocity units do not change Ki
