@@ -47,3 +47,10 @@ def test_bad_input_names_the_line_and_the_field(text: str, needle: str) -> None:
 def test_missing_file_is_an_input_error(tmp_path) -> None:
     with pytest.raises(InputError, match="could not be read"):
         read_incubation_csv(tmp_path / "absent.csv")
+
+
+def test_kinetics_all_is_sorted_and_complete() -> None:
+    import interact.kinetics as k
+
+    assert k.__all__ == sorted(k.__all__)
+    assert all(hasattr(k, name) for name in k.__all__)
