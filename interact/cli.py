@@ -13,7 +13,7 @@ from collections.abc import Callable, Sequence
 from pathlib import Path
 
 from . import __version__
-from .errors import InteractError
+from .errors import InputError, InteractError
 
 __all__ = ["main"]
 
@@ -66,6 +66,51 @@ def _cmd_open(args: argparse.Namespace) -> int:
     return run_app(args.scenario)
 
 
+# -- uncertainty, batch screening, reports ------------------------------------------------------------
+
+
+def _uncertainty_spec(args: argparse.Namespace):  # type: ignore[no-untyped-def]
+    """The --spec file (if any) and --vary options merged: command-line values win."""
+    from .uncertainty import UncertaintySpec, loads_spec, parse_vary
+
+    spec = UncertaintySpec()
+    if getattr(args, "spec", None):
+        path = Path(args.spec)
+        try:
+            text = path.read_text(encoding="utf-8")
+        except (OSError, UnicodeDecodeError) as exc:
+            raise InputError("--spec", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+        spec = loads_spec(text, source=str(path))
+    vary = dict(spec.vary)
+    for item in getattr(args, "vary", None) or []:
+        path_, dist = parse_vary(item)
+        vary[path_] = dist
+    return spec, tuple(vary.items())
+
+
+def _cmd_uncertainty(args: argparse.Namespace) -> int:
+    from .assessment import assess
+    from .report.numbers import fmt
+    from .report.uncertainty import format_uncertainty
+    from .scenario import load_scenario
+    from .uncertainty import ScenarioModel, run_uncertainty, sensitivity
+
+    result = assess(load_scenario(Path(args.scenario)), rules=args.rules)
+    if args.list_inputs:
+        model = ScenarioModel(result)
+        lines = [f"{i.path}  {fmt(i.value, 4)} {i.unit}  ({i.label})".replace("  ()", "") for i in model.inputs(relevant_only=True)]
+        _out("\n".join(lines) + "\n", args.output)
+        return 0
+    spec, vary = _uncertainty_spec(args)
+    samples = args.samples if args.samples is not None else (spec.samples or 10_000)
+    seed = args.seed if args.seed is not None else (spec.seed if spec.seed is not None else 0)
+    method = args.method or spec.method or "lhs"
+    spread = run_uncertainty(result, vary, samples=samples, seed=seed, method=method)
+    sens = sensitivity(result, vary)
+    _out(format_uncertainty(spread, sens, args.format, title=result.scenario.title, width=args.width), args.output)
+    return 0
+
+
 def _parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="interact",
@@ -109,6 +154,19 @@ def _parser() -> argparse.ArgumentParser:
     p = sub.add_parser("open", help="open a scenario in the terminal app")
     p.add_argument("scenario", nargs="?", metavar="SCENARIO.toml")
     p.set_defaults(run=_cmd_open)
+
+    p = sub.add_parser("uncertainty", help="spread of the AUC ratio under input distributions, and sensitivity")
+    p.add_argument("scenario", metavar="SCENARIO.toml")
+    p.add_argument("--vary", action="append", metavar="PATH=SPEC",
+                   help="an input's distribution, e.g. perpetrator.inhibits[0].ki=cv:30%% or "
+                   "perpetrator.cmax=ci:1.2 uM,2.5 uM or victim.pathways[0].fm=uniform:0.6,0.9 (repeatable)")
+    p.add_argument("--spec", metavar="FILE.toml", help="a file with a [vary] table of \"PATH\" = \"SPEC\" and an optional [sampling] table")
+    p.add_argument("--samples", type=int, metavar="N", help="number of samples (default 10000)")
+    p.add_argument("--seed", type=int, metavar="S", help="random seed (default 0); the same seed gives the same numbers")
+    p.add_argument("--method", choices=("mc", "lhs"), help="mc: Monte Carlo; lhs: Latin hypercube (default)")
+    p.add_argument("--list-inputs", action="store_true", help="list the input paths this scenario's model reads, and stop")
+    with_report_options(p)
+    p.set_defaults(run=_cmd_uncertainty)
 
     for register in _EXTRA_COMMANDS:
         register(sub)

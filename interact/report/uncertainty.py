@@ -1,0 +1,183 @@
+"""Formatting uncertainty and sensitivity results: document sections, text, Markdown, JSON."""
+
+from __future__ import annotations
+
+import json
+import math
+from typing import Any
+
+import numpy as np
+
+from ..cautions import CAUTION_LINE
+from ..uncertainty import Sensitivity, UncertaintyResult
+from .document import Note, Section, Table, render_markdown, render_text
+from .numbers import fmt, fmt_ratio
+
+__all__ = ["JSON_SCHEMA", "format_uncertainty", "sensitivity_sections", "uncertainty_sections", "uncertainty_to_dict"]
+
+JSON_SCHEMA = "interact.uncertainty/1"
+
+#: fm values shown in the text table of the AUCR-versus-fm curves
+_FM_SHOWN = (0.25, 0.5, 0.75, 0.9, 1.0)
+
+
+def _pct(p: float) -> str:
+    if p == 0.0:
+        return "0%"
+    if p < 0.001:
+        return "<0.1%"
+    if p > 0.999 and p < 1.0:
+        return ">99.9%"
+    return f"{100 * p:.1f}%"
+
+
+def uncertainty_sections(r: UncertaintyResult) -> list[Section]:
+    """The spread of the AUC ratio as document sections."""
+    p5, p50, p95 = (r.percentile(q) for q in (5.0, 50.0, 95.0))
+    moderate = next((p for op, b, p in r.exceedance if op == ">=" and b == 2.0), None)
+    head = (
+        f"AUC ratio {fmt_ratio(p50)} (median; 90% of samples between {fmt_ratio(p5)} and {fmt_ratio(p95)}); "
+        f"point estimate {fmt_ratio(r.point_total)}. Most probable class: {r.most_probable_class}"
+        + (f"; probability of at least a moderate rise (AUCR >= 2): {_pct(moderate)}" if moderate is not None else "")
+        + f". The suggested action ({r.point_action}) changes in {_pct(r.action_change_probability)} of samples."
+    )
+    method = "Latin hypercube (scipy.stats.qmc)" if r.method == "lhs" else "Monte Carlo"
+    dist_rows = tuple(
+        (
+            v.input.path,
+            v.input.label,
+            f"{fmt(v.input.value, 4)} {v.input.unit}".strip(),
+            v.distribution.describe(v.input.unit),
+            v.distribution.text,
+            str(v.adjusted) if v.adjusted else "-",
+        )
+        for v in r.varied
+    )
+    pct_rows = tuple((f"{q:g}th", fmt_ratio(g), fmt_ratio(h), fmt_ratio(t)) for q, g, h, t in r.percentiles)
+    exc_rows = tuple((f"AUCR {op} {b:g}", _pct(p)) for op, b, p in r.exceedance)
+    class_rows = tuple((label, _pct(p)) for label, p in r.classes if p > 0 or label == r.point_class)
+    action_rows = tuple((a, _pct(p)) for a, p in r.action_probabilities if p > 0 or a == r.point_action)
+    blocks: list[str | Table | Note] = [
+        Note(text=head, kind="result"),
+        f"{r.samples:,} samples, {method}, seed {r.seed}: the same seed gives the same numbers.",
+        Table(headers=("input", "meaning", "point value", "distribution", "as declared", "samples moved to a bound"), rows=dist_rows),
+        Table(headers=("percentile", "gut AUCR", "liver AUCR", "total AUCR"), rows=pct_rows),
+        Table(headers=("threshold", "probability"), rows=exc_rows),
+        Table(headers=("class", "probability"), rows=class_rows),
+        Table(headers=("suggested action", "probability"), rows=action_rows),
+    ]
+    if r.fm_scaled:
+        blocks.append(f"In {r.fm_scaled:,} samples the fm values added up to more than 1 and were scaled down together.")
+    blocks.append(
+        "Distributions: log-normal from a CV (sigma = sqrt(ln(1 + CV^2))) or from a 95% interval "
+        "(median = sqrt(lower x upper), sigma = ln(upper/lower) / 3.92); uniform between bounds. "
+        "Only the declared inputs vary; the spread says nothing about errors in the model itself."
+    )
+    return [Section(title="Uncertainty of the AUC ratio", blocks=tuple(blocks))]
+
+
+def sensitivity_sections(s: Sensitivity) -> list[Section]:
+    """Tornado, crossings and the AUCR-versus-fm table as document sections."""
+    rows = tuple(
+        (
+            b.input.path,
+            f"{fmt(b.low)} to {fmt(b.high)} {b.input.unit}".strip(),
+            fmt_ratio(b.aucr_low),
+            fmt_ratio(b.aucr_high),
+            fmt(b.effect),
+        )
+        for b in s.bars
+    )
+    swing = (
+        "Each input swung x/÷ 2 around its value (fractions capped at 1) because no distributions were declared."
+        if s.default_swing
+        else "Each declared input swung across its 95% interval (uniform: its range), the others at their point values."
+    )
+    blocks: list[str | Table | Note] = [
+        swing,
+        Table(headers=("input", "range", "AUCR at low", "AUCR at high", "|difference|"), rows=rows)
+        if rows
+        else "No input to swing.",
+    ]
+    blocks.extend(c.sentence for c in s.crossings)
+    curve_rows = []
+    for c in s.curves:
+        values = []
+        for f in _FM_SHOWN:
+            inside = c.fm[0] - 1e-12 <= f <= c.fm[-1] + 1e-12
+            values.append(fmt_ratio(float(np.interp(f, c.fm, c.aucr))) if inside else "-")
+        curve_rows.append((c.label, *values))
+    blocks.append(Table(headers=("AUCR vs fm (liver, reversible; interpolated)", *(f"fm {f:g}" for f in _FM_SHOWN)), rows=tuple(curve_rows)))
+    if s.scenario_ratio is not None and s.scenario_fm is not None:
+        blocks.append(f"This scenario: [I]/Ki,u = {fmt(s.scenario_ratio)} on its main pathway, fm {fmt(s.scenario_fm)}.")
+    return [Section(title="Sensitivity", blocks=tuple(blocks))]
+
+
+def _num(x: float | None) -> float | None:
+    return None if x is None or not math.isfinite(x) else x
+
+
+def uncertainty_to_dict(r: UncertaintyResult, s: Sensitivity | None = None) -> dict[str, Any]:
+    """JSON-ready data (AUC ratios dimensionless, values in each input's canonical unit)."""
+    out: dict[str, Any] = {
+        "schema": JSON_SCHEMA,
+        "method": r.method,
+        "samples": r.samples,
+        "seed": r.seed,
+        "point_auc_ratio": r.point_total,
+        "varied": [
+            {
+                "path": v.input.path,
+                "label": v.input.label,
+                "unit": v.input.unit,
+                "point": v.input.value,
+                "distribution": v.distribution.kind,
+                "median": v.distribution.median if v.distribution.kind == "lognormal" else None,
+                "sigma_log": v.distribution.sigma if v.distribution.kind == "lognormal" else None,
+                "low": v.distribution.low if v.distribution.kind == "uniform" else None,
+                "high": v.distribution.high if v.distribution.kind == "uniform" else None,
+                "declared": v.distribution.text,
+                "samples_moved_to_bound": v.adjusted,
+            }
+            for v in r.varied
+        ],
+        "percentiles": [{"percent": q, "gut": g, "liver": h, "total": t} for q, g, h, t in r.percentiles],
+        "exceedance": [{"comparison": op, "threshold": b, "probability": p} for op, b, p in r.exceedance],
+        "classes": {label: p for label, p in r.classes},
+        "most_probable_class": r.most_probable_class,
+        "point_class": r.point_class,
+        "point_action": r.point_action,
+        "actions": {a: p for a, p in r.action_probabilities},
+        "action_change_probability": r.action_change_probability,
+        "fm_scaled_samples": r.fm_scaled,
+        "cautions": [CAUTION_LINE],
+    }
+    if s is not None:
+        out["sensitivity"] = {
+            "default_swing": s.default_swing,
+            "tornado": [
+                {"path": b.input.path, "low": b.low, "high": b.high, "auc_ratio_low": b.aucr_low, "auc_ratio_high": b.aucr_high,
+                 "swing": b.swing}
+                for b in s.bars
+            ],
+            "crossings": [
+                {"path": c.input.path, "boundary": c.boundary, "value": _num(c.value), "now": c.now, "sentence": c.sentence}
+                for c in s.crossings
+            ],
+            "fm_curves": [{"label": c.label, "fm": list(c.fm), "auc_ratio": list(c.aucr)} for c in s.curves],
+        }
+    return out
+
+
+def format_uncertainty(r: UncertaintyResult, s: Sensitivity | None = None, fmt_name: str = "text", *,
+                       title: str = "", width: int = 100) -> str:
+    """The result as ``text``, ``markdown`` or ``json``."""
+    if fmt_name == "json":
+        return json.dumps(uncertainty_to_dict(r, s), indent=2, allow_nan=False) + "\n"
+    sections = [Section(title="", blocks=((f"Scenario: {title}",) if title else ()) + (Note(text=CAUTION_LINE),))]
+    sections += uncertainty_sections(r)
+    if s is not None:
+        sections += sensitivity_sections(s)
+    if fmt_name == "markdown":
+        return render_markdown(sections, title=f"interact uncertainty: {title}" if title else "interact uncertainty")
+    return render_text(sections, width=width)

@@ -1,0 +1,979 @@
+"""How sure: input distributions, sampling and one-at-a-time sensitivity.
+
+A scenario's point estimate (:func:`interact.assessment.assess`) rests on
+inputs that are known only roughly.  Here each input may carry a
+distribution; samples of all of them go through the same vectorised
+equations as the point estimate (:mod:`interact.exposure`,
+:mod:`interact.prediction`), evaluated on arrays, so that a distribution of
+zero width gives back the point estimate bit for bit.
+
+Distributions (all parameters in the input's own canonical unit):
+
+- log-normal from a coefficient of variation: median = the point value,
+  sigma = sqrt(ln(1 + CV^2))  (standard log-normal moments; common practice);
+- log-normal from a 95% interval (for example a fitted Ki's confidence
+  interval): median = sqrt(lower x upper), sigma = ln(upper/lower) / (2 x 1.959964);
+- uniform between two bounds;
+- fixed at the point value.
+
+How the user declares them (not part of the scenario file):
+
+- on the command line, ``--vary PATH=SPEC`` with SPEC ``cv:30%``,
+  ``ci:0.8 uM,2.1 uM``, ``uniform:0.5,0.9`` or ``fixed``;
+- in a sidecar TOML file with a ``[vary]`` table of ``"PATH" = "SPEC"`` and an
+  optional ``[sampling]`` table (``samples``, ``seed``, ``method``).
+
+PATH names a scenario input as in the scenario file, e.g.
+``perpetrator.inhibits[0].ki``, ``perpetrator.cmax``,
+``victim.pathways[0].fm`` (see :meth:`ScenarioModel.inputs`).
+
+Sampled fractions are kept inside (0, 1] (values outside are moved to the
+bound and counted), and when sampled fm values add up to more than 1 they
+are scaled down together (counted too).
+"""
+
+from __future__ import annotations
+
+import math
+import re
+import tomllib
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, field
+from typing import Any, Final
+
+import numpy as np
+import pint
+from numpy.typing import NDArray
+
+from . import units
+from .arrays import ACTIONS, band_codes, band_labels, dose_action_codes, dose_candidates
+from .assessment import Assessment, _kdeg
+from .errors import InputError
+from .exposure import enterocyte_um, unbound_cmax_um, unbound_inlet_um
+from .kinetics.conversion import ki_from_ic50
+from .prediction import gut_ratio, inactivation_term, induction_term, liver_ratio, reversible_term
+from .scenario import Inhibition
+from .tables import load_classes, resolve_target
+
+__all__ = [
+    "METHODS",
+    "CrossingPoint",
+    "Distribution",
+    "FmCurve",
+    "Input",
+    "Ratios",
+    "ScenarioModel",
+    "Sensitivity",
+    "TornadoBar",
+    "UncertaintyResult",
+    "UncertaintySpec",
+    "crossing_points",
+    "fm_curves",
+    "loads_spec",
+    "parse_distribution",
+    "parse_vary",
+    "run_uncertainty",
+    "sensitivity",
+    "tornado",
+]
+
+METHODS: Final = ("mc", "lhs")
+Z975: Final = 1.959963984540054  # standard normal 97.5th percentile (scipy.stats.norm.ppf(0.975))
+MAX_SAMPLES: Final = 5_000_000
+_TINY: Final = 1e-12
+_CHUNK: Final = 250_000  # samples evaluated at once (bounds memory)
+
+
+# --------------------------------------------------------------------------- distributions
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Distribution:
+    """A distribution of one input, in the input's canonical unit.
+
+    ``kind`` is ``lognormal`` (``median``, ``sigma`` on the natural-log scale),
+    ``uniform`` (``low``, ``high``) or ``fixed``; ``text`` is what the user wrote.
+    """
+
+    kind: str
+    median: float = 0.0
+    sigma: float = 0.0
+    low: float = 0.0
+    high: float = 0.0
+    text: str = ""
+
+    def ppf(self, u: NDArray[np.float64], point: float) -> NDArray[np.float64]:
+        """Quantiles for probabilities ``u`` (the inverse CDF)."""
+        from scipy.special import ndtri
+
+        if self.kind == "lognormal":
+            return self.median * np.exp(self.sigma * ndtri(u))
+        if self.kind == "uniform":
+            return self.low + (self.high - self.low) * u
+        return np.full(np.shape(u), point)
+
+    def draw(self, rng: np.random.Generator, n: int, point: float) -> NDArray[np.float64]:
+        """``n`` Monte Carlo draws."""
+        if self.kind == "lognormal":
+            return self.median * np.exp(self.sigma * rng.standard_normal(n))
+        if self.kind == "uniform":
+            return self.low + (self.high - self.low) * rng.random(n)
+        return np.full(n, point)
+
+    def interval(self, point: float) -> tuple[float, float]:
+        """The central 95% interval (the uniform range; the point for a fixed value)."""
+        if self.kind == "lognormal":
+            return self.median * math.exp(-Z975 * self.sigma), self.median * math.exp(Z975 * self.sigma)
+        if self.kind == "uniform":
+            return self.low, self.high
+        return point, point
+
+    def describe(self, unit: str) -> str:
+        u = f" {unit}" if unit else ""
+        if self.kind == "lognormal":
+            cv = math.sqrt(math.expm1(self.sigma**2))
+            return f"log-normal, median {self.median:.4g}{u}, CV {100 * cv:.3g}%"
+        if self.kind == "uniform":
+            return f"uniform {self.low:.4g} to {self.high:.4g}{u}"
+        return "fixed"
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Input:
+    """One scenario input that can be varied: its path, meaning, canonical unit and point value."""
+
+    path: str
+    label: str
+    unit: str
+    kind: str  # a units kind ("concentration", "rate", ...), or "fraction" / "number"
+    value: float
+    molar_mass: pint.Quantity | None = None
+
+    @property
+    def is_fraction(self) -> bool:
+        return self.kind == "fraction"
+
+
+_SPEC = re.compile(r"^\s*(cv|ci|ci95|uniform|fixed)\s*(?::\s*(.*?))?\s*$", re.IGNORECASE)
+_SPEC_HELP: Final = 'expected cv:30%, ci:LOW,HIGH (a 95% interval), uniform:LOW,HIGH or fixed'
+
+
+def _bound(text: str, inp: Input, field: str) -> float:
+    """One bound in the input's canonical unit (a unit is required for dimensional inputs)."""
+    text = text.strip()
+    if inp.kind in ("fraction", "number"):
+        try:
+            value = float(text)
+        except ValueError:
+            raise InputError(field, text, "is not a plain number; expected a number such as 0.4") from None
+        if not math.isfinite(value):
+            raise InputError(field, text, "is not finite; expected a number such as 0.4")
+        return value
+    q = units.parse(text, inp.kind, field=field)
+    if inp.kind == "concentration":
+        return units.concentration_um(q, inp.molar_mass, field=field)
+    if inp.kind == "dose":
+        return units.amount_umol(q, inp.molar_mass, field=field)
+    return units.magnitude(q, inp.unit)
+
+
+def parse_distribution(spec: str, inp: Input) -> Distribution:
+    """Read a SPEC such as ``cv:30%``, ``ci:0.8 uM,2.1 uM``, ``uniform:0.5,0.9`` or ``fixed`` for ``inp``.
+
+    Raises
+    ------
+    InputError
+        Naming the input's path, the text and what is expected.
+    """
+    field = inp.path
+    m = _SPEC.match(spec) if isinstance(spec, str) else None
+    if m is None:
+        raise InputError(field, spec, _SPEC_HELP)
+    kind, rest = m.group(1).lower(), (m.group(2) or "")
+    if kind == "fixed":
+        if rest:
+            raise InputError(field, spec, "takes no value: 'fixed' keeps the scenario's value")
+        return Distribution(kind="fixed", text=spec)
+    if kind == "cv":
+        text = rest.strip()
+        scale = 100.0 if text.endswith("%") else 1.0
+        try:
+            cv = float(text.rstrip("%").strip()) / scale
+        except ValueError:
+            raise InputError(field, spec, "has no number after 'cv:'; expected e.g. cv:30% or cv:0.3") from None
+        if not math.isfinite(cv) or cv < 0 or cv > 10:
+            raise InputError(field, spec, "has a CV outside 0 to 1000%; expected e.g. cv:30%")
+        if inp.value <= 0:
+            raise InputError(field, spec, f"cannot be log-normal around the point value {inp.value:g}; give uniform:LOW,HIGH")
+        return Distribution(kind="lognormal", median=inp.value, sigma=math.sqrt(math.log1p(cv * cv)), text=spec)
+    parts = rest.split(",")
+    if len(parts) != 2:
+        raise InputError(field, spec, f"needs two bounds separated by a comma; {_SPEC_HELP}")
+    lo_text, hi_text = parts[0].strip(), parts[1].strip()
+    if inp.kind not in ("fraction", "number") and lo_text and not re.search(r"[A-Za-zµμ%]", lo_text):
+        unit_part = re.sub(r"^[-+0-9.eE\s]+", "", hi_text)
+        lo_text = f"{lo_text} {unit_part}"  # "0.8, 2.1 uM" means both in uM
+    lo, hi = _bound(lo_text, inp, field), _bound(hi_text, inp, field)
+    if lo > hi:
+        raise InputError(field, spec, f"has lower bound {lo:.4g} above upper bound {hi:.4g}")
+    if inp.is_fraction and (lo < 0 or hi > 1):
+        raise InputError(field, spec, "has bounds outside [0, 1]; expected fractions")
+    if kind in ("ci", "ci95"):
+        if lo <= 0:
+            raise InputError(field, spec, "needs a positive lower bound for a log-normal 95% interval")
+        median = lo if lo == hi else math.sqrt(lo * hi)
+        return Distribution(kind="lognormal", median=median, sigma=math.log(hi / lo) / (2 * Z975), text=spec)
+    if lo < 0:
+        raise InputError(field, spec, "has a negative lower bound; expected values of at least 0")
+    return Distribution(kind="uniform", low=lo, high=hi, text=spec)
+
+
+def interval_distribution(lower: float, upper: float, text: str = "") -> Distribution:
+    """A log-normal from a 95% interval in canonical units, e.g. a fitted Ki's confidence interval."""
+    if not (0 < lower <= upper) or not math.isfinite(upper):
+        raise InputError("interval", (lower, upper), "is not a positive interval with lower <= upper")
+    median = lower if lower == upper else math.sqrt(lower * upper)
+    return Distribution(kind="lognormal", median=median, sigma=math.log(upper / lower) / (2 * Z975), text=text or f"ci:{lower:g},{upper:g}")
+
+
+# --------------------------------------------------------------------------- the model on arrays
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Ratios:
+    gut: NDArray[np.float64]
+    liver: NDArray[np.float64]
+    total: NDArray[np.float64]
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class _Species:
+    cmax: str
+    fu: str
+    measured: bool
+    parent: bool
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class _Const:
+    prefix: str
+    species: str
+    species_index: int
+    target: str
+    ki: str | None  # path of the varied Ki (or IC50) input
+    ic50_route: tuple[str, float | None, float | None, float | None] | None  # mechanism, S, Km, alpha
+    fu_inc: str
+    kinact: str | None
+    ki_inact: str | None
+    emax: str | None
+    ec50: str | None
+    calibration: str
+
+
+def _inhibition_items(scenario: Any) -> list[tuple[str, Inhibition, pint.Quantity | None]]:
+    """(path prefix, inhibition, molar mass) in the order of :func:`interact.constants.resolve_constants`."""
+    p = scenario.perpetrator
+    out = [(f"perpetrator.inhibits[{i}]", item, p.molar_mass) for i, item in enumerate(p.inhibits)]
+    for j, m in enumerate(p.metabolites):
+        out.extend((f"perpetrator.metabolites[{j}].inhibits[{i}]", item, m.molar_mass) for i, item in enumerate(m.inhibits))
+    return out
+
+
+class ScenarioModel:
+    """One scenario's mechanistic model as a function of its inputs, on arrays.
+
+    Built from an :class:`~interact.assessment.Assessment`; :meth:`evaluate`
+    takes arrays for any subset of :meth:`inputs` (the rest stay at their
+    point values) and returns the gut, liver and total AUC ratios, with the
+    same equations and order of operations as :func:`interact.prediction.predict`.
+    """
+
+    def __init__(self, assessment: Assessment) -> None:
+        a = assessment
+        self.assessment = a
+        s = a.scenario
+        p, v = s.perpetrator, s.victim
+        rules = a.rules
+        override = s.physiology.fu_plasma_floor
+        self._floor = float(rules.fu_plasma_floor.value) if override is None else float(override)
+        self._exempt = bool(rules.fu_plasma_floor_measured_exempt.value)
+        self._oral = p.route == "oral"
+        settings = {st.name: st for st in a.settings}
+        inputs: list[Input] = []
+
+        def add(path: str, label: str, unit: str, kind: str, value: float, mw: pint.Quantity | None = None) -> str:
+            inputs.append(Input(path=path, label=label, unit=unit, kind=kind, value=float(value), molar_mass=mw))
+            return path
+
+        parent = a.species[0]
+        self._species = [
+            _Species(
+                cmax=add("perpetrator.cmax", f"Cmax of {p.name}", "uM", "concentration", parent.cmax_um, p.molar_mass),
+                fu=add("perpetrator.fu_plasma", f"fu,p of {p.name}", "", "fraction", p.fu_plasma),
+                measured=p.fu_plasma_measured,
+                parent=True,
+            )
+        ]
+        for j, m in enumerate(p.metabolites):
+            sp = a.species[j + 1]
+            self._species.append(
+                _Species(
+                    cmax=add(f"perpetrator.metabolites[{j}].cmax", f"Cmax of {m.name}", "uM", "concentration", sp.cmax_um, m.molar_mass),
+                    fu=add(f"perpetrator.metabolites[{j}].fu_plasma", f"fu,p of {m.name}", "", "fraction", m.fu_plasma),
+                    measured=m.fu_plasma_measured,
+                    parent=False,
+                )
+            )
+        if self._oral:
+            add("perpetrator.dose", f"Dose of {p.name}", "umol", "dose", parent.dose_umol, p.molar_mass)
+            add("perpetrator.ka", "Perpetrator absorption rate ka", "1/min", "rate", settings["absorption_rate"].value)
+            add("perpetrator.fa_fg", "Perpetrator Fa x Fg", "", "fraction", settings["fa_fg"].value)
+            add("perpetrator.fa", "Perpetrator Fa", "", "fraction", settings["fraction_absorbed"].value)
+            add("perpetrator.blood_plasma_ratio", "Perpetrator blood-to-plasma ratio Rb", "", "number", settings["blood_plasma_ratio"].value)
+            add("physiology.hepatic_blood_flow", "Hepatic blood flow Qh", "L/min", "flow", settings["hepatic_blood_flow"].value)
+            add("physiology.enterocytic_blood_flow", "Enterocytic blood flow Qent", "L/min", "flow", settings["enterocytic_blood_flow"].value)
+            add("physiology.fu_gut", "Unbound fraction in enterocytes fu,gut", "", "fraction", settings["fu_gut"].value)
+
+        pathway_enzymes = {pw.enzyme for pw in v.pathways}
+        self._consts: list[_Const] = []
+        for (prefix, item, mw), c in zip(_inhibition_items(s), a.constants, strict=True):
+            who = f"{c.species} on {c.target}"
+            ki_path: str | None = None
+            route = None
+            if c.ki_um is not None:
+                if item.ki is not None:
+                    ki_path = add(f"{prefix}.ki", f"Ki of {who}", "uM", "concentration", c.ki_um, mw)
+                else:
+                    assert item.ic50 is not None
+                    ic50 = units.concentration_um(item.ic50, mw, field=f"{prefix}.ic50")
+                    ki_path = add(f"{prefix}.ic50", f"IC50 of {who}", "uM", "concentration", ic50, mw)
+                    target = resolve_target(c.target)
+                    if target is not None and target.kind != "transporter" and item.mechanism != "noncompetitive":
+                        sub = units.concentration_um(item.substrate_conc, mw, field=f"{prefix}.substrate_conc") if item.substrate_conc else None
+                        km = units.concentration_um(item.km, mw, field=f"{prefix}.km") if item.km else None
+                        route = (item.mechanism, sub, km, item.alpha)
+            self._consts.append(
+                _Const(
+                    prefix=prefix,
+                    species=c.species,
+                    species_index=c.species_index,
+                    target=c.target,
+                    ki=ki_path,
+                    ic50_route=route,
+                    fu_inc=add(f"{prefix}.fu_inc", f"fu,inc of {who}", "", "fraction", c.fu_inc),
+                    kinact=add(f"{prefix}.kinact", f"kinact of {who}", "1/h", "rate", c.kinact_per_h) if c.kinact_per_h is not None else None,
+                    ki_inact=add(f"{prefix}.ki_inact", f"KI of {who}", "uM", "concentration", c.ki_inact_u_um, mw)
+                    if c.ki_inact_u_um is not None else None,
+                    emax=add(f"{prefix}.emax", f"Emax of {who}", "", "number", c.emax) if c.emax is not None else None,
+                    ec50=add(f"{prefix}.ec50", f"EC50 of {who}", "uM", "concentration", c.ec50_u_um, mw) if c.ec50_u_um is not None else None,
+                    calibration=add(f"{prefix}.calibration", f"Induction calibration d of {who}", "", "number", c.calibration)
+                    if c.emax is not None else f"{prefix}.calibration",
+                )
+            )
+
+        self._gut_enzyme = a.prediction.gut_enzyme
+        if self._gut_enzyme is not None:
+            add("victim.fg", f"Fg of {v.name}", "", "fraction", a.prediction.fg_used)
+        self._pathways = [
+            (pw.enzyme, add(f"victim.pathways[{k}].fm", f"fm {pw.enzyme} of {v.name}", "", "fraction", pw.fm))
+            for k, pw in enumerate(v.pathways)
+        ]
+        kdeg, _ = _kdeg(s, a.constants)
+        self._kdeg: dict[str, tuple[str | None, str | None]] = {}
+        for enzyme, (k_liver, k_gut) in kdeg.items():
+            self._kdeg[enzyme] = (
+                add(f"turnover.{enzyme}.kdeg_liver", f"kdeg {enzyme} (liver)", "1/h", "rate", k_liver) if k_liver is not None else None,
+                add(f"turnover.{enzyme}.kdeg_gut", f"kdeg {enzyme} (gut)", "1/h", "rate", k_gut) if k_gut is not None else None,
+            )
+        # inputs the model actually uses (a constant on a target the victim does not depend on has no effect)
+        relevant_targets = pathway_enzymes | ({self._gut_enzyme} if self._gut_enzyme else set())
+        self._inputs = tuple(inputs)
+        self._by_path = {i.path: i for i in inputs}
+        self._point: dict[str, float] = {i.path: i.value for i in inputs}
+        self._relevant = tuple(
+            i for i in inputs
+            if not any(i.path.startswith(c.prefix + ".") and c.target not in relevant_targets for c in self._consts)
+        )
+
+    # -- what can vary
+    def inputs(self, relevant_only: bool = False) -> tuple[Input, ...]:
+        """Every input the model reads (``relevant_only``: only those that can move the AUC ratio)."""
+        return self._relevant if relevant_only else self._inputs
+
+    def input(self, path: str) -> Input:
+        """The input at ``path``; an :class:`InputError` lists the valid paths otherwise."""
+        try:
+            return self._by_path[path]
+        except KeyError:
+            known = ", ".join(i.path for i in self._relevant)
+            raise InputError("vary", path, f"is not an input of this scenario's model; expected one of {known}") from None
+
+    def point(self, path: str) -> float:
+        return self._point[path]
+
+    # -- the equations
+    def evaluate(self, values: Mapping[str, Any] | None = None) -> Ratios:
+        """AUC ratios with ``values`` (path -> array or float, canonical units) replacing point values.
+
+        Arrays broadcast against each other; the result has their common shape.
+        """
+        vals = values or {}
+
+        def get(path: str) -> Any:
+            return vals[path] if path in vals else self._point[path]
+
+        liver_conc: list[Any] = []
+        gut_conc: list[Any] = []
+        for sp in self._species:
+            cmax = get(sp.cmax)
+            fu = get(sp.fu)
+            if not (sp.measured and self._exempt):
+                fu = np.where(np.less(fu, self._floor), self._floor, fu)  # fu,p floor, as interact.exposure.floored_fu
+            if sp.parent and self._oral:
+                dose, ka = get("perpetrator.dose"), get("perpetrator.ka")
+                liver_conc.append(
+                    unbound_inlet_um(cmax, fu, dose, get("perpetrator.fa_fg"), ka, get("physiology.hepatic_blood_flow"),
+                                     get("perpetrator.blood_plasma_ratio"))
+                )
+                gut_conc.append(enterocyte_um(dose, get("perpetrator.fa"), ka, get("physiology.enterocytic_blood_flow"), get("physiology.fu_gut")))
+            else:
+                imax_u = unbound_cmax_um(cmax, fu)
+                liver_conc.append(imax_u)
+                gut_conc.append(imax_u)
+        ki_u: list[Any] = []
+        for c in self._consts:
+            if c.ki is None:
+                ki_u.append(None)
+                continue
+            ki = get(c.ki)
+            if c.ic50_route is not None:
+                mech, sub, km, alpha = c.ic50_route
+                ki = ki_from_ic50(ki, mech, sub, km, alpha)
+            ki_u.append(np.multiply(ki, get(c.fu_inc)))
+
+        def activity(enzyme: str, concs: list[Any], kdeg_path: str | None) -> Any:
+            ratio: Any = 0.0
+            kobs: Any = 0.0
+            effect: Any = 0.0
+            tdi = False
+            for c, k_u in zip(self._consts, ki_u, strict=True):
+                if c.target != enzyme:
+                    continue
+                conc = concs[c.species_index]
+                if k_u is not None:
+                    ratio = ratio + conc / k_u
+                if c.kinact is not None and c.ki_inact is not None:
+                    kobs = kobs + get(c.kinact) * conc / (get(c.ki_inact) + conc)
+                    tdi = True
+                if c.emax is not None and c.ec50 is not None:
+                    effect = effect + get(c.calibration) * get(c.emax) * conc / (get(c.ec50) + conc)
+            rev = reversible_term(ratio)
+            inact: Any = 1.0
+            if tdi and kdeg_path is not None:
+                inact = np.where(np.equal(kobs, 0.0), 1.0, inactivation_term(kobs, get(kdeg_path)))
+            return rev * inact * induction_term(effect)
+
+        fms = [get(path) for _, path in self._pathways]
+        acts = [activity(enzyme, liver_conc, self._kdeg.get(enzyme, (None, None))[0]) for enzyme, _ in self._pathways]
+        if fms:
+            f = np.stack(np.broadcast_arrays(*fms, *acts)[: len(fms)], axis=-1)
+            act = np.stack(np.broadcast_arrays(*fms, *acts)[len(fms):], axis=-1)
+            if f.shape[-1] < 8:
+                liver = liver_ratio(f, act)  # numpy sums fewer than 8 terms in order, as predict() does
+            else:
+                weighted: Any = 0.0
+                total_fm: Any = 0.0
+                for k in range(f.shape[-1]):
+                    weighted = weighted + f[..., k] * act[..., k]
+                    total_fm = total_fm + f[..., k]
+                liver = 1.0 / (weighted + 1.0 - total_fm)
+        else:
+            liver = np.asarray(1.0)
+        if self._gut_enzyme is not None:
+            gut = gut_ratio(get("victim.fg"), activity(self._gut_enzyme, gut_conc, self._kdeg.get(self._gut_enzyme, (None, None))[1]))
+        else:
+            gut = np.asarray(1.0)
+        gut, liver = np.broadcast_arrays(np.asarray(gut, dtype=float), np.asarray(liver, dtype=float))
+        return Ratios(gut=gut, liver=liver, total=gut * liver)
+
+    def actions(self, total: NDArray[np.float64]) -> NDArray[np.int8]:
+        """Suggested-action codes (into :data:`interact.arrays.ACTIONS`) for AUC ratios ``total``."""
+        d = self.assessment.dose
+        strengths = tuple(units.magnitude(q, d.dose_unit) for q in self.assessment.scenario.victim.strengths)
+        cand = dose_candidates([strengths])[0]
+        return dose_action_codes(
+            total, usual_dose=d.usual_dose, interval_h=d.usual_interval_h, candidates=cand,
+            lower=d.boundary[0], upper=d.boundary[1],
+            narrow_therapeutic_index=self.assessment.scenario.victim.narrow_therapeutic_index,
+        )
+
+
+# --------------------------------------------------------------------------- declarations
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class UncertaintySpec:
+    """What varies and how it is sampled."""
+
+    vary: tuple[tuple[str, str], ...] = ()  # (path, SPEC text)
+    samples: int | None = None
+    seed: int | None = None
+    method: str | None = None
+
+
+def parse_vary(text: str) -> tuple[str, str]:
+    """Split ``PATH=SPEC`` (the ``--vary`` option)."""
+    if not isinstance(text, str) or "=" not in text:
+        raise InputError("--vary", text, "is not PATH=SPEC; expected e.g. perpetrator.inhibits[0].ki=cv:30%")
+    path, spec = text.split("=", 1)
+    if not path.strip():
+        raise InputError("--vary", text, "has no input path before '='")
+    return path.strip(), spec.strip()
+
+
+def loads_spec(text: str, *, source: str = "uncertainty file") -> UncertaintySpec:
+    """Read a sidecar TOML: ``[vary]`` with ``"PATH" = "SPEC"`` and optional ``[sampling]``."""
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
+    unknown = set(data) - {"vary", "sampling", "title", "notes"}
+    if unknown:
+        raise InputError(f"{source}: {sorted(unknown)[0]}", sorted(unknown)[0], "is not a known table; expected [vary] and [sampling]")
+    vary = data.get("vary", {})
+    if not isinstance(vary, dict):
+        raise InputError(f"{source}: vary", vary, 'is not a table; expected [vary] with "PATH" = "SPEC" lines')
+    pairs = []
+    for path, spec in vary.items():
+        if not isinstance(spec, str):
+            raise InputError(f"{source}: vary.{path}", spec, f"is not text; {_SPEC_HELP}")
+        pairs.append((path, spec))
+    sampling = data.get("sampling", {})
+    if not isinstance(sampling, dict):
+        raise InputError(f"{source}: sampling", sampling, "is not a table")
+    bad = set(sampling) - {"samples", "seed", "method"}
+    if bad:
+        raise InputError(f"{source}: sampling.{sorted(bad)[0]}", sorted(bad)[0], "is not a known key; expected samples, seed, method")
+    samples, seed, method = sampling.get("samples"), sampling.get("seed"), sampling.get("method")
+    for key, value in (("samples", samples), ("seed", seed)):
+        if value is not None and (isinstance(value, bool) or not isinstance(value, int) or value < 0):
+            raise InputError(f"{source}: sampling.{key}", value, "is not a whole number of at least 0")
+    if method is not None and method not in METHODS:
+        raise InputError(f"{source}: sampling.method", method, f"is not one of {', '.join(METHODS)}")
+    return UncertaintySpec(vary=tuple(pairs), samples=samples, seed=seed, method=method)
+
+
+# --------------------------------------------------------------------------- sampling
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Varied:
+    input: Input
+    distribution: Distribution
+    adjusted: int  # samples moved to a bound or scaled (fractions, fm sums)
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class UncertaintyResult:
+    """AUC-ratio spread of one scenario under its declared input distributions."""
+
+    method: str
+    samples: int
+    seed: int
+    varied: tuple[Varied, ...]
+    point_total: float
+    percentiles: tuple[tuple[float, float, float, float], ...]  # (percent, gut, liver, total)
+    exceedance: tuple[tuple[str, float, float], ...]  # (">=" | "<=", threshold, probability)
+    classes: tuple[tuple[str, float], ...]  # (label, probability), all labels
+    most_probable_class: str
+    point_class: str
+    point_action: str
+    action_probabilities: tuple[tuple[str, float], ...]
+    action_change_probability: float
+    fm_scaled: int
+    boundary: tuple[float, float]
+    total: NDArray[np.float64] = field(repr=False, compare=False)
+
+    def percentile(self, q: float) -> float:
+        for pct, _, _, t in self.percentiles:
+            if pct == q:
+                return t
+        raise KeyError(q)
+
+
+PERCENTS: Final = (5.0, 50.0, 95.0)
+
+
+def _resolve(model: ScenarioModel, vary: Sequence[tuple[str, str]]) -> list[tuple[Input, Distribution]]:
+    out = []
+    seen: set[str] = set()
+    for path, spec in vary:
+        inp = model.input(path)
+        if path in seen:
+            raise InputError("vary", path, "is declared twice; give one distribution per input")
+        seen.add(path)
+        out.append((inp, parse_distribution(spec, inp)))
+    return out
+
+
+def _draw(
+    pairs: list[tuple[Input, Distribution]], n: int, method: str, seed: int
+) -> dict[str, NDArray[np.float64]]:
+    rng = np.random.default_rng(seed)
+    drawn: dict[str, NDArray[np.float64]] = {}
+    active = [(i, d) for i, d in pairs if d.kind != "fixed"]
+    if method == "lhs" and active:
+        from scipy.stats import qmc
+
+        u = qmc.LatinHypercube(d=len(active), rng=rng).random(n)
+        for k, (inp, dist) in enumerate(active):
+            drawn[inp.path] = dist.ppf(u[:, k], inp.value)
+    else:
+        for inp, dist in active:
+            drawn[inp.path] = dist.draw(rng, n, inp.value)
+    return drawn
+
+
+def run_uncertainty(
+    assessment: Assessment,
+    vary: Sequence[tuple[str, str]],
+    *,
+    samples: int = 10_000,
+    seed: int = 0,
+    method: str = "lhs",
+) -> UncertaintyResult:
+    """Sample the declared inputs and summarise the AUC ratio.
+
+    Parameters
+    ----------
+    assessment
+        The point assessment (its scenario, rule set and settings are used).
+    vary
+        (PATH, SPEC) pairs, see :func:`parse_distribution`.
+    samples
+        Number of samples (1 to 5,000,000).
+    seed
+        Seed of the numpy Generator; the same seed gives the same numbers.
+    method
+        ``mc`` (independent draws) or ``lhs`` (Latin hypercube, scipy.stats.qmc).
+    """
+    if method not in METHODS:
+        raise InputError("method", method, f"is not one of {', '.join(METHODS)}")
+    if isinstance(samples, bool) or not isinstance(samples, int) or not 1 <= samples <= MAX_SAMPLES:
+        raise InputError("samples", samples, f"is not a whole number from 1 to {MAX_SAMPLES:,}")
+    if isinstance(seed, bool) or not isinstance(seed, int) or seed < 0:
+        raise InputError("seed", seed, "is not a whole number of at least 0")
+    model = ScenarioModel(assessment)
+    pairs = _resolve(model, vary)
+    if not pairs:
+        raise InputError("vary", "nothing", "declares no uncertain input; give --vary PATH=SPEC or a --spec file")
+    drawn = _draw(pairs, samples, method, seed)
+    adjusted: dict[str, int] = {}
+    for inp, _ in pairs:
+        x = drawn.get(inp.path)
+        if x is None:
+            adjusted[inp.path] = 0
+            continue
+        low = _TINY if not inp.path.endswith(".fm") else 0.0
+        high = 1.0 if inp.is_fraction else np.inf
+        bad = (x < low) | (x > high)
+        adjusted[inp.path] = int(np.count_nonzero(bad))
+        if adjusted[inp.path]:
+            drawn[inp.path] = np.clip(x, low, high)
+    fm_paths = [p for _, p in model._pathways]
+    fm_scaled = 0
+    if any(p in drawn for p in fm_paths):
+        total_fm = sum((drawn.get(p, model.point(p)) for p in fm_paths), start=np.zeros(samples))
+        over = total_fm > 1.0
+        fm_scaled = int(np.count_nonzero(over))
+        if fm_scaled:
+            factor = np.where(over, 1.0 / np.where(over, total_fm, 1.0), 1.0)
+            for p in fm_paths:
+                drawn[p] = np.asarray(drawn.get(p, model.point(p))) * factor
+
+    gut = np.empty(samples)
+    liver = np.empty(samples)
+    total = np.empty(samples)
+    for start in range(0, samples, _CHUNK):
+        stop = min(samples, start + _CHUNK)
+        r = model.evaluate({k: v[start:stop] for k, v in drawn.items()})
+        gut[start:stop] = np.broadcast_to(r.gut, (stop - start,))
+        liver[start:stop] = np.broadcast_to(r.liver, (stop - start,))
+        total[start:stop] = np.broadcast_to(r.total, (stop - start,))
+    return summarise(assessment, model, pairs, adjusted, fm_scaled, gut, liver, total, method=method, seed=seed)
+
+
+def summarise(
+    assessment: Assessment,
+    model: ScenarioModel,
+    pairs: list[tuple[Input, Distribution]],
+    adjusted: dict[str, int],
+    fm_scaled: int,
+    gut: NDArray[np.float64],
+    liver: NDArray[np.float64],
+    total: NDArray[np.float64],
+    *,
+    method: str,
+    seed: int,
+) -> UncertaintyResult:
+    classes = load_classes()
+    n = total.size
+    pcts = np.percentile(np.stack([gut, liver, total]), PERCENTS, axis=1)
+    percentiles = tuple((q, float(pcts[k, 0]), float(pcts[k, 1]), float(pcts[k, 2])) for k, q in enumerate(PERCENTS))
+    exceed = [(">=", b.bound, float(np.count_nonzero(total >= b.bound)) / n) for b in sorted(classes.inhibition, key=lambda b: b.bound)]
+    if "induction" in assessment.prediction.mechanisms or float(np.min(total)) < 1.0:
+        exceed += [("<=", b.bound, float(np.count_nonzero(total <= b.bound)) / n) for b in sorted(classes.induction, key=lambda b: -b.bound)]
+    labels = band_labels(classes)
+    codes = band_codes(total, classes)
+    counts = np.bincount(codes, minlength=len(labels))
+    point_code = int(band_codes(assessment.prediction.total, classes))
+    actions = model.actions(total)
+    action_counts = np.bincount(actions, minlength=len(ACTIONS))
+    point_action = assessment.dose.action
+    change = 1.0 - float(action_counts[ACTIONS.index(point_action)]) / n
+    return UncertaintyResult(
+        method=method,
+        samples=n,
+        seed=seed,
+        varied=tuple(Varied(input=i, distribution=d, adjusted=adjusted.get(i.path, 0)) for i, d in pairs),
+        point_total=assessment.prediction.total,
+        percentiles=percentiles,
+        exceedance=tuple(exceed),
+        classes=tuple((labels[k], float(counts[k]) / n) for k in range(len(labels))),
+        most_probable_class=labels[int(np.argmax(counts))],
+        point_class=labels[point_code],
+        point_action=point_action,
+        action_probabilities=tuple((ACTIONS[k], float(action_counts[k]) / n) for k in range(len(ACTIONS))),
+        action_change_probability=change,
+        fm_scaled=fm_scaled,
+        boundary=assessment.dose.boundary,
+        total=total,
+    )
+
+
+# --------------------------------------------------------------------------- sensitivity
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class TornadoBar:
+    input: Input
+    low: float
+    high: float
+    aucr_low: float
+    aucr_high: float
+    swing: str  # where the range came from
+
+    @property
+    def effect(self) -> float:
+        return abs(self.aucr_high - self.aucr_low)
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class FmCurve:
+    label: str
+    fm: tuple[float, ...]
+    aucr: tuple[float, ...]
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class CrossingPoint:
+    """The value of one input at which the AUC ratio reaches the victim's boundary."""
+
+    input: Input
+    boundary: float
+    value: float | None  # None: never reached within the input's range
+    now: float
+    sentence: str
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Sensitivity:
+    point_total: float
+    bars: tuple[TornadoBar, ...]
+    curves: tuple[FmCurve, ...]
+    scenario_ratio: float | None  # [I]/Ki,u of the main pathway's strongest reversible inhibitor
+    scenario_fm: float | None
+    crossings: tuple[CrossingPoint, ...]
+    default_swing: bool
+
+
+DEFAULT_FOLD: Final = 2.0
+
+
+def _default_range(inp: Input, model: ScenarioModel) -> tuple[float, float]:
+    """x/÷ 2 around the point value; fractions capped at 1 (fm so that the fm values still add up to at most 1)."""
+    lo, hi = inp.value / DEFAULT_FOLD, inp.value * DEFAULT_FOLD
+    if inp.is_fraction:
+        cap = 1.0
+        if inp.path.endswith(".fm"):
+            others = sum(model.point(p) for _, p in model._pathways if p != inp.path)
+            cap = max(inp.value, 1.0 - others)
+        hi = min(hi, cap)
+    return lo, hi
+
+
+def tornado(model: ScenarioModel, vary: Sequence[tuple[str, str]] = ()) -> tuple[tuple[TornadoBar, ...], bool]:
+    """One input at a time swung across its 95% interval (or x/÷ 2 when none is declared), ranked by effect.
+
+    Returns the bars (largest effect first) and whether the default swing was used.
+    """
+    pairs = _resolve(model, vary)
+    default = not pairs
+    chosen: list[tuple[Input, Distribution | None]]
+    if default:
+        chosen = [(i, None) for i in model.inputs(relevant_only=True) if i.value > 0]
+    else:
+        chosen = [(i, d) for i, d in pairs if d.kind != "fixed"]
+    if not chosen:
+        return (), default
+    ranges = []
+    for inp, dist in chosen:
+        if dist is None:
+            lo, hi = _default_range(inp, model)
+            ranges.append((inp, lo, hi, f"x/÷ {DEFAULT_FOLD:g} (no distribution declared)"))
+        else:
+            lo, hi = dist.interval(inp.value)
+            if inp.is_fraction:
+                lo, hi = max(lo, _TINY), min(hi, 1.0)
+            ranges.append((inp, lo, hi, "95% interval of " + dist.describe(inp.unit)))
+    n = len(ranges)
+    values: dict[str, NDArray[np.float64]] = {}
+    for k, (inp, lo, hi, _) in enumerate(ranges):
+        arr = values.setdefault(inp.path, np.full(2 * n, inp.value))
+        arr[2 * k], arr[2 * k + 1] = lo, hi
+    total = model.evaluate(values).total
+    total = np.broadcast_to(total, (2 * n,))
+    bars = [
+        TornadoBar(input=inp, low=lo, high=hi, aucr_low=float(total[2 * k]), aucr_high=float(total[2 * k + 1]), swing=why)
+        for k, (inp, lo, hi, why) in enumerate(ranges)
+    ]
+    bars.sort(key=lambda b: -b.effect)
+    return tuple(bars), default
+
+
+CURVE_RATIOS: Final = (0.1, 0.5, 1.0, 2.0, 5.0, 10.0, 50.0)
+
+
+def fm_curves(ratios: Sequence[float] = CURVE_RATIOS, points: int = 101) -> tuple[FmCurve, ...]:
+    """Liver AUC ratio against fm for reversible inhibition at several [I]/Ki,u (no gut term).
+
+    AUCR = 1 / (fm / (1 + [I]/Ki,u) + 1 - fm)   (the liver term of :mod:`interact.prediction`)
+    """
+    fm = np.linspace(0.0, 1.0, points)
+    out = []
+    for r in ratios:
+        a = reversible_term(r)
+        aucr = liver_ratio(fm[:, None], np.full((points, 1), a))
+        out.append(FmCurve(label=f"[I]/Ki,u = {r:g}", fm=tuple(float(x) for x in fm), aucr=tuple(float(x) for x in aucr)))
+    return tuple(out)
+
+
+def _main_pathway(model: ScenarioModel) -> tuple[str, str] | None:
+    if not model._pathways:
+        return None
+    k = int(np.argmax([model.point(p) for _, p in model._pathways]))
+    return model._pathways[k]
+
+
+def crossing_points(model: ScenarioModel) -> tuple[CrossingPoint, ...]:
+    """Ki (or IC50) of each reversible constant on the victim's pathways, and the main pathway's fm,
+    at which the total AUC ratio reaches the victim's no-effect boundary (brentq on a log scale)."""
+    from scipy.optimize import brentq
+
+    a = model.assessment
+    lower, upper = a.dose.boundary
+    point = a.prediction.total
+    boundary = upper if point >= 1.0 else lower
+    word = "above" if boundary == upper else "below"
+    out: list[CrossingPoint] = []
+    targets = {e for e, _ in model._pathways} | ({model._gut_enzyme} if model._gut_enzyme else set())
+
+    def total_at(path: str, x: float) -> float:
+        return float(model.evaluate({path: np.asarray(x)}).total)
+
+    for c in model._consts:
+        if c.ki is None or c.target not in targets:
+            continue
+        inp = model.input(c.ki)
+        now = inp.value
+        name = "Ki" if c.ki.endswith(".ki") else "IC50"
+
+        def g(log_x: float, path: str = c.ki) -> float:
+            return total_at(path, math.exp(log_x)) - boundary
+
+        lo_x, hi_x = math.log(now) - 30.0, math.log(now) + 30.0
+        if g(lo_x) * g(hi_x) > 0:
+            side = "above" if point >= boundary else "below"
+            sentence = (f"Changing only the {name} of {c.species} on {c.target} cannot bring the AUC ratio to {boundary:g}: "
+                        f"it stays {side} for any value from {now * math.exp(-30):.3g} to {now * math.exp(30):.3g} uM.")
+            out.append(CrossingPoint(input=inp, boundary=boundary, value=None, now=now, sentence=sentence))
+            continue
+        x = math.exp(brentq(g, lo_x, hi_x, xtol=1e-12, rtol=1e-10))
+        fu = model.point(c.fu_inc)
+        unbound_now = float(np.multiply(ki_from_ic50(now, *c.ic50_route) if c.ic50_route else now, fu))
+        unbound_x = float(np.multiply(ki_from_ic50(x, *c.ic50_route) if c.ic50_route else x, fu))
+        if boundary == upper:
+            if point < upper:
+                sentence = (f"The AUC ratio stays below {upper:g} as long as the {name} of {c.species} on {c.target} "
+                            f"exceeds {x:.3g} uM (Ki,u {unbound_x:.3g} uM); it is {now:.3g} uM "
+                            f"(Ki,u {unbound_now:.3g} uM), a margin of {now / x:.3g}-fold.")
+            else:
+                sentence = (f"The AUC ratio would fall to {upper:g} only if the {name} of {c.species} on {c.target} rose to {x:.3g} uM "
+                            f"(Ki,u {unbound_x:.3g} uM) from {now:.3g} uM ({x / now:.3g}-fold).")
+        else:
+            sentence = f"The AUC ratio crosses {boundary:g} ({word} is outside) at {name} {x:.3g} uM for {inp.label}; it is {now:.3g} uM."
+        out.append(CrossingPoint(input=inp, boundary=boundary, value=x, now=now, sentence=sentence))
+
+    main = _main_pathway(model)
+    if main is not None:
+        enzyme, path = main
+        inp = model.input(path)
+        others = sum(model.point(p) for _, p in model._pathways if p != path)
+        cap = max(0.0, 1.0 - others)
+
+        def h(fm: float) -> float:
+            return total_at(path, fm) - boundary
+
+        if cap > 0 and h(0.0) * h(cap) < 0:
+            x = brentq(h, 0.0, cap, xtol=1e-12)
+            if point < boundary:
+                sentence = f"The AUC ratio stays below {boundary:g} as long as fm {enzyme} is under {x:.3g}; it is {inp.value:.3g}."
+            else:
+                sentence = f"The AUC ratio reaches {boundary:g} at fm {enzyme} = {x:.3g}; it is {inp.value:.3g}."
+            out.append(CrossingPoint(input=inp, boundary=boundary, value=x, now=inp.value, sentence=sentence))
+        else:
+            out.append(CrossingPoint(
+                input=inp, boundary=boundary, value=None, now=inp.value,
+                sentence=f"No fm {enzyme} between 0 and {cap:.3g} brings the AUC ratio to {boundary:g}.",
+            ))
+    return tuple(out)
+
+
+def sensitivity(assessment: Assessment, vary: Sequence[tuple[str, str]] = ()) -> Sensitivity:
+    """Tornado, AUCR-versus-fm curves and boundary crossings for one scenario."""
+    model = ScenarioModel(assessment)
+    bars, default = tornado(model, vary)
+    ratio = fm = None
+    main = _main_pathway(model)
+    curves = list(fm_curves())
+    if main is not None:
+        enzyme, path = main
+        fm = model.point(path)
+        effects = {e.enzyme: e for e in assessment.prediction.effects}
+        eff = effects.get(enzyme)
+        if eff is not None and eff.liver.reversible < 1.0:
+            ratio = 1.0 / eff.liver.reversible - 1.0  # sum [I]/Ki,u on that enzyme in the liver
+        others = sum(model.point(p) for _, p in model._pathways if p != path)
+        grid = np.linspace(0.0, max(0.0, 1.0 - others), 101)
+        tot = np.broadcast_to(model.evaluate({path: grid}).total, grid.shape)
+        curves.append(FmCurve(label=f"this scenario (fm {enzyme} varied)", fm=tuple(float(x) for x in grid),
+                              aucr=tuple(float(x) for x in tot)))
+    return Sensitivity(
+        point_total=assessment.prediction.total,
+        bars=bars,
+        curves=tuple(curves),
+        scenario_ratio=ratio,
+        scenario_fm=fm,
+        crossings=crossing_points(model),
+        default_swing=default,
+    )
