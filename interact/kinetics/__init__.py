@@ -25,16 +25,16 @@ from .fitting import (
 
 __all__ = [
     "CHENG_PRUSOFF_SOURCE",
-    "MODELS",
-    "WEIGHTS",
     "CurveModel",
     "Estimate",
     "FTest",
     "FitResult",
     "IncubationData",
+    "MODELS",
     "ModelComparison",
     "RankedModel",
     "Verdict",
+    "WEIGHTS",
     "fit_curve",
     "fit_inhibition",
     "fit_substrate_inhibition",
