@@ -8,6 +8,7 @@ only inside the commands that need them.
 from __future__ import annotations
 
 import argparse
+import math
 import sys
 from collections.abc import Callable, Sequence
 from pathlib import Path
@@ -175,6 +176,179 @@ def _parser() -> argparse.ArgumentParser:
 
 #: other modules add their subcommands here (each a function taking the subparsers object)
 _EXTRA_COMMANDS: list[Callable[[argparse._SubParsersAction], None]] = []  # type: ignore[type-arg]
+
+
+# --------------------------------------------------------------------------- interact fit (incubation data)
+
+
+def _cmd_fit(args: argparse.Namespace) -> int:
+    import datetime
+
+    from .kinetics.data import columns_of
+
+    path = Path(args.data)
+    try:
+        header = columns_of(path.read_text(encoding="utf-8-sig"))
+    except (OSError, UnicodeDecodeError) as exc:
+        raise InputError("data", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+    ic50_mode = args.ic50 or ("substrate" not in header and "inhibitor" in header)
+    today = datetime.datetime.now(datetime.UTC).date().isoformat()
+    fu_inc, fu_origin, binding = _fit_binding(args)
+    if ic50_mode:
+        return _cmd_fit_ic50(args, path, today, fu_inc, fu_origin)
+    from .kinetics.binding import unbound_constant
+    from .kinetics.data import read_incubation_csv
+    from .kinetics.diagnostics import diagnostic_plots, double_reciprocal_data
+    from .kinetics.fitting import MODELS, fit_inhibition
+    from .report.fit import format_comparison
+
+    data = read_incubation_csv(path, substrate_unit=args.substrate_unit, inhibitor_unit=args.inhibitor_unit, velocity_unit=args.velocity_unit)
+    models = tuple(m.strip() for m in args.models.split(",") if m.strip()) if args.models else MODELS
+    if "none" not in models:
+        models = ("none", *models)
+    comp = fit_inhibition(data, models=models, weights=args.weights, level=args.level)
+    unbound = None
+    ki = comp.ki
+    if ki is not None and fu_inc is not None and fu_origin:
+        low, high, kind = (ki.profile_low, ki.profile_high, "profile likelihood") if ki.profile_low is not None else (ki.ci_low, ki.ci_high, "asymptotic")
+        unbound = unbound_constant(ki.name, ki.value, low, high, fu_inc, interval=f"{comp.level:.0%} {kind}", fu_origin=fu_origin)
+    plots_text = ""
+    if args.format == "text" and not args.no_terminal_plot:
+        from .report.fit_plots import render_terminal
+
+        plots_text = render_terminal(double_reciprocal_data(comp), width=min(args.width, 100) - 4, height=20)
+    if args.plot:
+        from .report.fit_plots import save_figure
+
+        save_figure(diagnostic_plots(comp), args.plot)
+    _out(format_comparison(comp, args.format, width=args.width, unbound=unbound, binding=binding, plots=plots_text), args.output)
+    if args.plot:
+        sys.stderr.write(f"interact: diagnostic plots written to {args.plot}\n")
+    if args.into:
+        if ki is None or comp.verdict.mechanism is None:
+            raise InputError("--into", args.into, "was not updated: the data show no inhibition, so there is no Ki to carry")
+        if not math.isfinite(ki.value):
+            raise InputError("--into", args.into, f"was not updated: {ki.name} is unbounded")
+        origin = f"fit of {path.name}, {comp.verdict.mechanism} model ({args.weights} weights), {today}"
+        _write_into(args, ki.value, comp.verdict.mechanism, comp.alpha, fu_inc, origin)
+    return 0
+
+
+def _fit_binding(args: argparse.Namespace) -> tuple[float | None, str, object | None]:
+    from . import units
+
+    if args.fu_inc is not None and args.logp is not None:
+        raise InputError("--fu-inc", args.fu_inc, "and --logp were both given; expected a measured fu,inc or a lipophilicity to predict it, not both")
+    if args.fu_inc is not None:
+        return units.parse_fraction(args.fu_inc, field="--fu-inc"), "measured (given with --fu-inc)", None
+    if args.logp is None:
+        return None, "", None
+    from .kinetics.binding import predict_fu_inc
+
+    try:
+        logp = float(args.logp)
+    except ValueError:
+        raise InputError("--logp", args.logp, "is not a number (logP for bases, logD7.4 for acids and neutrals)") from None
+    protein = cells = None
+    if args.method_binding == "kilford-2008":
+        if args.cells is None:
+            raise InputError("--cells", None, "is needed for kilford-2008: hepatocyte density in 10^6 cells/mL")
+        cells = float(args.cells)
+    else:
+        if args.protein is None:
+            raise InputError("--protein", None, 'is needed to predict fu,inc in microsomes, e.g. --protein "0.5 mg/mL"')
+        protein = units.magnitude(units.parse(args.protein, "protein", field="--protein"), "mg/mL")
+    pred = predict_fu_inc(logp, method=args.method_binding, protein_mg_per_ml=protein, cells_million_per_ml=cells)
+    return pred.fu_inc, f"predicted, {pred.title} ({pred.status})", pred
+
+
+def _write_into(args: argparse.Namespace, ki_um: float, mechanism: str, alpha: float | None, fu_inc: float | None, origin: str) -> None:
+    from .kinetics.scenario_update import update_inhibition_text
+    from .scenario import write_text_atomic
+
+    if not args.target:
+        raise InputError("--target", None, "is needed with --into: the enzyme the Ki belongs to, e.g. --target CYP3A")
+    target = Path(args.into)
+    try:
+        text = target.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise InputError("--into", str(target), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+    new = update_inhibition_text(
+        text, target=args.target, ki_um=ki_um, mechanism=mechanism, origin=origin, alpha=alpha, fu_inc=fu_inc, source=str(target)
+    )
+    write_text_atomic(target, new)
+    sys.stderr.write(f"interact: {target} updated: {args.target} ki = {ki_um:.4g} uM ({mechanism}); origin recorded\n")
+
+
+def _cmd_fit_ic50(args: argparse.Namespace, path: Path, today: str, fu_inc: float | None, fu_origin: str) -> int:
+    from .kinetics.data import read_ic50_csv
+    from .kinetics.ic50 import fit_ic50, ki_from_ic50_fit
+    from .report.fit import format_ic50
+
+    data = read_ic50_csv(path, inhibitor_unit=args.inhibitor_unit)
+    result = fit_ic50(data.inhibitor_um, data.response, bottom=args.bottom, weights=args.weights, level=args.level,
+                      response_unit=data.response_unit, source=data.source)
+    ki = None
+    if args.mechanism:
+        s = units_um(args.substrate_conc, "--substrate-conc") if args.substrate_conc else None
+        km = units_um(args.km, "--km") if args.km else None
+        ki = ki_from_ic50_fit(result, args.mechanism, substrate_um=s, km_um=km, alpha=args.alpha)
+    _out(format_ic50(result, ki, args.format, width=args.width), args.output)
+    if args.into:
+        if ki is None:
+            raise InputError("--mechanism", None, "is needed with --into for an IC50 curve (the Cheng-Prusoff conversion depends on it)")
+        origin = f"Cheng-Prusoff from {result.fit.model} IC50 fit of {path.name}, {ki.mechanism}, {today}"
+        _write_into(args, ki.ki_um, ki.mechanism, ki.alpha, fu_inc, origin)
+    return 0
+
+
+def units_um(text: str, field: str) -> float:
+    from . import units
+
+    return units.magnitude(units.parse(text, "molar_concentration", field=field), "uM")
+
+
+def _add_fit_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+    p = sub.add_parser(
+        "fit",
+        help="fit incubation data: all inhibition mechanisms, verdict, Ki with intervals (or an IC50 curve)",
+        description=(
+            "Fit a CSV of initial velocities over a substrate x inhibitor grid (columns substrate, inhibitor, velocity; "
+            "optional depletion %%) to every inhibition model, or an IC50 curve (columns inhibitor, response; chosen with "
+            "--ic50 or when the file has no substrate column). In vitro constants feed model predictions, not clinical advice."
+        ),
+    )
+    p.add_argument("data", metavar="DATA.csv")
+    p.add_argument("--substrate-unit", metavar="UNIT", help="unit of the substrate column when the header does not say (e.g. uM)")
+    p.add_argument("--inhibitor-unit", metavar="UNIT", help="unit of the inhibitor column when the header does not say (e.g. uM)")
+    p.add_argument("--velocity-unit", metavar="UNIT", help="unit of the velocity column (a label, e.g. pmol/min/mg)")
+    p.add_argument("--models", metavar="LIST", help="comma-separated subset of competitive,noncompetitive,uncompetitive,mixed (default: all)")
+    p.add_argument("--weights", choices=("none", "1/y", "1/y2", "poisson"), default="none", help="weighting (default: none)")
+    p.add_argument("--level", type=float, default=0.95, help="confidence level (default 0.95)")
+    p.add_argument("--format", choices=FORMATS, default="text", help="output format (default: text)")
+    p.add_argument("--width", type=int, default=100, help="text width (default: 100)")
+    p.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
+    p.add_argument("--plot", metavar="FILE", help="write the diagnostic plots (double reciprocal, Dixon, residuals) to FILE.svg/.png/.pdf")
+    p.add_argument("--no-terminal-plot", action="store_true", help="leave the double-reciprocal plot out of the text report")
+    p.add_argument("--into", metavar="SCENARIO.toml", help="write the chosen Ki (and fu,inc) into this scenario, keeping the rest of the file")
+    p.add_argument("--target", metavar="ENZYME", help="with --into: the enzyme the Ki belongs to, e.g. CYP3A")
+    p.add_argument("--fu-inc", metavar="X", help="measured fraction unbound in the incubation, gives Ki,u = Ki x fu,inc")
+    p.add_argument("--logp", metavar="X", help="predict fu,inc from logP (bases) or logD7.4 (acids, neutrals)")
+    p.add_argument("--protein", metavar="CONC", help='microsomal protein for the prediction, e.g. "0.5 mg/mL"')
+    p.add_argument("--cells", metavar="N", help="hepatocytes, 10^6 cells/mL (kilford-2008)")
+    p.add_argument("--binding-method", dest="method_binding", choices=("austin-2002", "hallifax-2006", "kilford-2008"),
+                   default="hallifax-2006", help="fu,inc relation (default hallifax-2006; coefficients from memory)")
+    p.add_argument("--ic50", action="store_true", help="treat the file as an IC50 curve (inhibitor, response)")
+    p.add_argument("--bottom", type=float, metavar="Y", help="IC50 mode: fix the bottom plateau (3-parameter fit), e.g. 0")
+    p.add_argument("--mechanism", choices=("competitive", "noncompetitive", "uncompetitive", "mixed"),
+                   help="IC50 mode: mechanism for the Cheng-Prusoff conversion")
+    p.add_argument("--substrate-conc", metavar="CONC", help='IC50 mode: substrate concentration in the assay, e.g. "5 uM"')
+    p.add_argument("--km", metavar="CONC", help='IC50 mode: Km of the substrate, e.g. "5 uM"')
+    p.add_argument("--alpha", type=float, help="IC50 mode, mixed: Kiu/Kic")
+    p.set_defaults(run=_cmd_fit)
+
+
+_EXTRA_COMMANDS.append(_add_fit_command)
 
 
 def main(argv: Sequence[str] | None = None) -> int:

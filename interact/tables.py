@@ -20,11 +20,13 @@ from .errors import InputError
 __all__ = [
     "STATUSES",
     "Band",
+    "BindingEquation",
     "Classes",
     "Criterion",
     "RuleSet",
     "Sourced",
     "Target",
+    "load_binding",
     "load_classes",
     "load_physiology",
     "load_rules",
@@ -362,3 +364,67 @@ def _choice(data: dict[str, Any], key: str, options: tuple[str, ...], where: str
     if value not in options:
         raise InputError(f"{where}.{key}", value, f"is not one of {', '.join(options)}")
     return str(value)
+
+
+# --------------------------------------------------------------------------- binding (kinetics)
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class BindingEquation:
+    """One published fu,inc relation from ``binding.toml``: coefficients and stated domain, each sourced."""
+
+    id: str
+    title: str
+    system: str
+    equation: str
+    source: str
+    status: str
+    note: str
+    values: tuple[Sourced, ...]
+
+    def item(self, name: str) -> Sourced:
+        for v in self.values:
+            if v.name == name:
+                return v
+        raise KeyError(f"{self.id}: {name}")
+
+    def number(self, name: str) -> float:
+        return float(self.item(name).value)
+
+    def span(self, name: str) -> tuple[float, float]:
+        low, high = self.item(name).value
+        return float(low), float(high)
+
+
+@lru_cache(maxsize=1)
+def load_binding() -> tuple[BindingEquation, ...]:
+    """The nonspecific-binding equations (Austin 2002, Hallifax & Houston 2006, Kilford 2008)."""
+    data = _read(tables_dir() / "binding.toml", "binding")
+    out = []
+    for i, raw in enumerate(_list(data, "equation", "binding")):
+        at = f"binding.equation[{i}]"
+        values = []
+        for key, item in raw.items():
+            if not isinstance(item, dict):
+                continue
+            entry = _sourced(raw, key, at)
+            v = entry.value
+            ok = (isinstance(v, (int, float)) and not isinstance(v, bool)) or (
+                isinstance(v, list) and len(v) == 2 and all(isinstance(x, (int, float)) for x in v) and v[0] < v[1]
+            )
+            if not ok:
+                raise InputError(f"{at}.{key}.value", v, "is not a number or a [low, high] pair")
+            values.append(entry)
+        out.append(
+            BindingEquation(
+                id=_str(raw, "id", at),
+                title=_str(raw, "title", at),
+                system=_choice(raw, "system", ("microsomes", "hepatocytes"), at),
+                equation=_str(raw, "equation", at),
+                source=_str(raw, "source", at),
+                status=_status(raw, at),
+                note=str(raw.get("note", "")),
+                values=tuple(values),
+            )
+        )
+    return tuple(out)

@@ -33,12 +33,22 @@ from numpy.typing import NDArray
 from .. import units
 from ..errors import InputError, UnitError
 
-__all__ = ["IncubationData", "incubation_data", "parse_incubation_csv", "read_incubation_csv"]
+__all__ = [
+    "IC50Data",
+    "IncubationData",
+    "columns_of",
+    "incubation_data",
+    "parse_ic50_csv",
+    "parse_incubation_csv",
+    "read_ic50_csv",
+    "read_incubation_csv",
+]
 
 _ALIASES: Final = {
     "substrate": ("substrate", "s", "substrateconc", "substrateconcentration", "conc", "concentration"),
     "inhibitor": ("inhibitor", "i", "inhibitorconc", "inhibitorconcentration"),
-    "velocity": ("velocity", "v", "rate", "v0", "activity"),
+    "velocity": ("velocity", "v", "rate", "v0"),
+    "response": ("response", "activity", "percentofcontrol", "%control", "remaining", "signal"),
     "depletion": ("depletion", "turnover", "substratedepletion", "consumed"),
 }
 _HEADER: Final = re.compile(r"^\s*([^\(\[]*?)\s*(?:[\(\[]\s*(.*?)\s*[\)\]])?\s*$")
@@ -291,3 +301,62 @@ def _velocity_unit(header_unit: str, given: str | None, line: int) -> str:
     if header_unit and given and header_unit.replace(" ", "") != given.replace(" ", ""):
         raise InputError("velocity unit", given, f"differs from the unit in the header (line {line}): '{header_unit}'")
     return header_unit or (given or "")  # a label only: velocity units do not change Ki
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class IC50Data:
+    """Activity against inhibitor concentration (uM) for an IC50 curve."""
+
+    inhibitor_um: tuple[float, ...]
+    response: tuple[float, ...]
+    response_unit: str = ""
+    lines: tuple[int, ...] = ()
+    source: str = ""
+
+
+def columns_of(text: str) -> tuple[str, ...]:
+    """The recognised column names of a CSV header (for choosing between grid and IC50 modes)."""
+    rows = _rows(text)
+    if not rows:
+        return ()
+    return tuple(_columns(rows[0][1], rows[0][0]))
+
+
+def read_ic50_csv(path: str | Path, *, inhibitor_unit: str | None = None) -> IC50Data:
+    """Read an IC50 CSV: columns ``inhibitor`` and ``response`` (or ``activity``, ``velocity``)."""
+    p = Path(path)
+    try:
+        text = p.read_text(encoding="utf-8-sig")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise InputError("data", str(p), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+    return parse_ic50_csv(text, source=p.name, inhibitor_unit=inhibitor_unit)
+
+
+def parse_ic50_csv(text: str, *, source: str = "data", inhibitor_unit: str | None = None) -> IC50Data:
+    """Parse IC50 CSV text (see :func:`read_ic50_csv`); zero inhibitor rows are controls."""
+    rows = _rows(text)
+    if not rows:
+        raise InputError(source, "empty file", "expected a header row (inhibitor, response) and data rows")
+    header_line, header = rows[0]
+    cols = _columns(header, header_line)
+    resp_key = "response" if "response" in cols else ("velocity" if "velocity" in cols else None)
+    if "inhibitor" not in cols or resp_key is None:
+        raise InputError(
+            f"{source} header (line {header_line})", ",".join(header),
+            "lacks the columns for an IC50 curve; expected inhibitor (with its unit, e.g. 'inhibitor (uM)') and response (or activity, velocity)",
+        )
+    factor = _unit_factor("inhibitor", cols["inhibitor"][1], inhibitor_unit, header_line)
+    width = max(cols["inhibitor"][0], cols[resp_key][0]) + 1
+    xs, ys, lines = [], [], []
+    for line, row in rows[1:]:
+        if len(row) < width:
+            raise InputError(f"{source} line {line}", ",".join(row), f"has {len(row)} fields; expected at least {width} (as in the header)")
+        x = _number(row[cols["inhibitor"][0]], "inhibitor", line, source) * factor
+        if x < 0:
+            raise InputError(f"{source} line {line}, inhibitor", row[cols["inhibitor"][0]], "must not be negative")
+        xs.append(x)
+        ys.append(_number(row[cols[resp_key][0]], resp_key, line, source))
+        lines.append(line)
+    if not lines:
+        raise InputError(source, "no data rows", "expected rows of inhibitor and response under the header")
+    return IC50Data(inhibitor_um=tuple(xs), response=tuple(ys), response_unit=cols[resp_key][1], lines=tuple(lines), source=source)

@@ -1,0 +1,144 @@
+"""Carry a fitted Ki into a scenario file's text, keeping everything else as written.
+
+Works on the TOML text (tomlkit keeps comments, order and layout): the
+``[[perpetrator.inhibits]]`` entry for the target is updated, or created when
+absent.  Values that are replaced stay visible in a comment on the new line;
+keys that a Ki makes contradictory (``ic50``, ``substrate_conc``, ``km``) are
+removed and recorded in a comment too, so nothing the user wrote is lost.
+The result is validated with :func:`interact.scenario.loads_scenario` before
+it is returned; writing the file (atomically) is the caller's job.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+import tomlkit
+from tomlkit.exceptions import TOMLKitError
+from tomlkit.items import AoT, Table, Whitespace
+
+from ..errors import InputError
+from ..scenario import MECHANISMS, loads_scenario
+from ..tables import load_targets, resolve_target
+
+__all__ = ["update_inhibition_text"]
+
+_CONFLICTING = ("ic50", "substrate_conc", "km")
+
+
+def _shown(value: Any) -> str:
+    return tomlkit.item(value).as_string() if not isinstance(value, str) else f'"{value}"'
+
+
+def update_inhibition_text(
+    text: str,
+    *,
+    target: str,
+    ki_um: float,
+    mechanism: str,
+    origin: str,
+    alpha: float | None = None,
+    fu_inc: float | None = None,
+    source: str = "scenario",
+) -> str:
+    """The scenario text with the target's inhibition constant set to ``ki_um`` (uM).
+
+    Parameters
+    ----------
+    text
+        The scenario TOML as saved by the user.
+    target
+        Enzyme name or alias (``CYP3A``, ``3A4`` ...).
+    ki_um
+        The constant to carry: Ki, or Kic for mixed inhibition, in uM.
+    mechanism
+        One of competitive, noncompetitive, uncompetitive, mixed.
+    origin
+        Provenance written to the entry's ``origin`` key (file, model, date).
+    alpha
+        Kiu/Kic for mixed inhibition.
+    fu_inc
+        Written when given; otherwise an existing ``fu_inc`` is kept.
+
+    Raises
+    ------
+    InputError
+        Unreadable TOML, unknown target, a value out of range, or an update
+        that would make the scenario invalid (the message lists the problems).
+    """
+    if not (isinstance(ki_um, float | int) and math.isfinite(ki_um) and ki_um > 0):
+        raise InputError("ki", ki_um, "is not a finite constant above zero; an unbounded Ki cannot be carried into a scenario")
+    if mechanism not in MECHANISMS:
+        raise InputError("mechanism", mechanism, f"is not one of {', '.join(MECHANISMS)}")
+    if mechanism == "mixed" and (alpha is None or not math.isfinite(alpha) or alpha <= 0):
+        raise InputError("alpha", alpha, "is needed (finite, above zero) for a mixed mechanism")
+    if fu_inc is not None and not (math.isfinite(fu_inc) and 0 < fu_inc <= 1):
+        raise InputError("fu_inc", fu_inc, "is not in (0, 1]")
+    resolved = resolve_target(target)
+    if resolved is None:
+        known = ", ".join(t.name for t in load_targets())
+        raise InputError("target", target, f"is not a known enzyme or transporter; expected one of {known}")
+    try:
+        doc = tomlkit.parse(text)
+    except TOMLKitError as exc:
+        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
+    perp = doc.get("perpetrator")
+    if not isinstance(perp, Table):
+        raise InputError(f"{source}: perpetrator", None, "is missing; expected a [perpetrator] table to carry the fitted Ki into")
+    inhibits = perp.get("inhibits")
+    if inhibits is None:
+        inhibits = tomlkit.aot()
+        perp.append("inhibits", inhibits)
+    if not isinstance(inhibits, AoT):
+        raise InputError(f"{source}: perpetrator.inhibits", "value", "is not a list of [[perpetrator.inhibits]] tables")
+    entry: Table | None = None
+    for item in inhibits:
+        name = item.get("target")
+        found = resolve_target(str(name)) if name is not None else None
+        if found is not None and found.name == resolved.name:
+            entry = item
+            break
+    created = entry is None
+    if entry is None:
+        entry = tomlkit.table()
+        entry["target"] = resolved.name
+        inhibits.append(entry)
+    body = entry.value.body
+    trail = []
+    while body and body[-1][0] is None and isinstance(body[-1][1], Whitespace):
+        trail.insert(0, body.pop())
+    stamp = origin.split(",")[-1].strip() if "," in origin else "fit"
+
+    def put(key: str, value: Any) -> None:
+        old = entry.get(key) if entry is not None else None
+        entry[key] = value  # type: ignore[index]
+        if old is not None and str(old) != str(value) and key != "origin":
+            entry[key].trivia.comment = f"# {stamp}: was {_shown(old.unwrap() if hasattr(old, 'unwrap') else old)}"  # type: ignore[index, union-attr]
+            entry[key].trivia.comment_ws = "  "  # type: ignore[index]
+
+    removed = []
+    for key in _CONFLICTING:
+        if key in entry:
+            old = entry[key]
+            removed.append(f"{key} = {_shown(old.unwrap() if hasattr(old, 'unwrap') else old)}")
+            del entry[key]
+    if mechanism != "mixed" and "alpha" in entry:
+        old = entry["alpha"]
+        removed.append(f"alpha = {_shown(old.unwrap() if hasattr(old, 'unwrap') else old)}")
+        del entry["alpha"]
+    put("ki", f"{ki_um:.6g} uM")
+    put("mechanism", mechanism)
+    if mechanism == "mixed" and alpha is not None:
+        put("alpha", float(f"{alpha:.6g}"))
+    if fu_inc is not None:
+        put("fu_inc", float(f"{fu_inc:.6g}"))
+    put("origin", origin)
+    if removed:
+        entry.add(tomlkit.comment(f"replaced by the fitted Ki ({stamp}): " + "; ".join(removed)))
+    body.extend(trail)
+    if created:
+        entry.add(tomlkit.nl())
+    new_text = tomlkit.dumps(doc)
+    loads_scenario(new_text, source=source)  # raises ScenarioError (an InputError) listing problems
+    return new_text
