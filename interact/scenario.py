@@ -117,6 +117,7 @@ class Perpetrator:
     ka: Q | None = None
     inhibits: tuple[Inhibition, ...] = ()
     metabolites: tuple[Metabolite, ...] = ()
+    half_life: Q | None = None  # elimination half-life; used only by the time course (interact.dynamic)
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -141,6 +142,10 @@ class Victim:
     no_effect_lower: float | None = None
     no_effect_upper: float | None = None
     narrow_therapeutic_index: bool = False
+    # used only by the time course (interact.dynamic):
+    half_life: Q | None = None  # elimination half-life without the perpetrator
+    hepatic_extraction: float | None = None  # hepatic (blood) extraction ratio without the perpetrator
+    ka: Q | None = None  # first-order absorption rate constant (oral)
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -462,6 +467,7 @@ class _Reader:
         fa_fg = self.fraction(data, "fa_fg", path)
         fa = self.fraction(data, "fa", path)
         ka = self.quantity(data, "ka", path, "rate")
+        half_life = self.quantity(data, "half_life", path, "time")
         self._mass_conc_needs_mw(cmax, mw, f"{path}.cmax")
         if dose is not None and mw is None and dose.dimensionality == units.KINDS["mass"][0][0]:
             self.fail(f"{path}.molar_mass", 'is missing; a dose in mass units needs it to give molar concentrations (e.g. "452.5 g/mol")')
@@ -491,6 +497,7 @@ class _Reader:
             ka=ka,
             inhibits=inhibits,
             metabolites=tuple(metabolites),
+            half_life=half_life,
         )
 
     def metabolite(self, raw: object, path: str) -> Metabolite | None:
@@ -521,6 +528,12 @@ class _Reader:
         if route not in ROUTES:
             self.fail(f"{path}.route", f'"{route[:40]}" is not one of {", ".join(ROUTES)}')
         nti = self.flag(data, "narrow_therapeutic_index", path)
+        v_half_life = self.quantity(data, "half_life", path, "time")
+        v_extraction = self.fraction(data, "hepatic_extraction", path)
+        if v_extraction is not None and v_extraction >= 1.0:
+            self.fail(f"{path}.hepatic_extraction", f"{v_extraction:g} is not below 1; expected an extraction ratio in (0, 1)")
+            v_extraction = None
+        v_ka = self.quantity(data, "ka", path, "rate")
         strengths: list[Q] = []
         raw_strengths = data.get("strengths", [])
         if not isinstance(raw_strengths, list):
@@ -583,6 +596,9 @@ class _Reader:
             no_effect_lower=lower,
             no_effect_upper=upper,
             narrow_therapeutic_index=nti,
+            half_life=v_half_life,
+            hepatic_extraction=v_extraction,
+            ka=v_ka,
         )
 
     def physiology(self, raw: object) -> Physiology | None:
@@ -696,7 +712,7 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
         put(perp, key, getattr(p, key))
     if p.fu_plasma_measured:
         perp["fu_plasma_measured"] = True
-    for key in ("blood_plasma_ratio", "fa_fg", "fa", "ka"):
+    for key in ("blood_plasma_ratio", "fa_fg", "fa", "ka", "half_life"):
         put(perp, key, getattr(p, key))
     perp["inhibits"] = [inhibition(i) for i in p.inhibits]
     if p.metabolites:
@@ -721,6 +737,8 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
         vic["no_effect_boundary"] = [v.no_effect_lower, v.no_effect_upper]
     if v.narrow_therapeutic_index:
         vic["narrow_therapeutic_index"] = True
+    for key in ("half_life", "hepatic_extraction", "ka"):
+        put(vic, key, getattr(v, key))
     vic["pathways"] = [{"enzyme": pw.enzyme, "fm": pw.fm} for pw in v.pathways]
     out: dict[str, Any] = {"title": scenario.title}
     if scenario.invented:
