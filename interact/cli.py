@@ -37,8 +37,61 @@ def _cmd_assess(args: argparse.Namespace) -> int:
 
     path = demo_path() if args.command == "demo" else Path(args.scenario)
     result = assess(load_scenario(path), rules=args.rules)
-    _out(format_assessment(result, args.format, width=args.width), args.output)
+    course, note = _assess_time_course(result, args)
+    _out(format_assessment(result, args.format, width=args.width, time_course=course, time_course_note=note), args.output)
     return 0
+
+
+# -- time course (interact.dynamic): a block of its own
+def _assess_time_course(result, args: argparse.Namespace):  # type: ignore[no-untyped-def]
+    """The time course for ``assess``: computed for time-dependent inhibition or induction ("auto"), or on request."""
+    choice = getattr(args, "time_course", "off")
+    wanted = choice == "on" or (choice == "auto" and ({"time-dependent", "induction"} & set(result.prediction.mechanisms)))
+    if not wanted:
+        return None, ""
+    from .dynamic import simulate
+
+    try:
+        return simulate(result, days=args.days), ""
+    except InputError as exc:
+        if choice == "on":
+            raise
+        return None, f"Not computed: {exc}. Add it to the scenario to see when the interaction starts and fades."
+
+
+def _cmd_timecourse(args: argparse.Namespace) -> int:
+    from .assessment import assess
+    from .dynamic import simulate
+    from .report.timecourse import format_timecourse, timecourse_svg
+    from .scenario import load_scenario, write_text_atomic
+
+    result = assess(load_scenario(Path(args.scenario)), rules=args.rules)
+    course = simulate(result, days=args.days, washout_days=args.washout_days,
+                      mode="constant" if args.constant else "regimen", effect_fraction=args.fraction)
+    if args.plot:
+        write_text_atomic(Path(args.plot), timecourse_svg(course, title=result.scenario.title))
+    _out(format_timecourse(course, result, args.format, width=args.width), args.output)
+    return 0
+
+
+def _days_arg(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a number of days") from None
+    if not (0 < value <= 365):
+        raise argparse.ArgumentTypeError(f"{text!r} is outside (0, 365] days")
+    return value
+
+
+def _fraction_arg(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a fraction") from None
+    if not (0 < value < 1):
+        raise argparse.ArgumentTypeError(f"{text!r} is outside (0, 1), e.g. 0.9")
+    return value
 
 
 def _cmd_tables(args: argparse.Namespace) -> int:
@@ -134,7 +187,20 @@ def _parser() -> argparse.ArgumentParser:
     p = sub.add_parser("assess", help="assess a scenario file: basic models, AUC ratio, dose suggestion")
     p.add_argument("scenario", metavar="SCENARIO.toml")
     with_report_options(p)
+    p.add_argument("--time-course", choices=("auto", "on", "off"), default="auto",
+                   help="add the dynamic check and dose timing (auto: for time-dependent inhibition or induction)")
+    p.add_argument("--days", type=_days_arg, default=30.0, help="days of perpetrator dosing in the time course (default 30)")
     p.set_defaults(run=_cmd_assess)
+
+    p = sub.add_parser("timecourse", help="time course of the interaction: curves, dynamic vs static ratio, onset and offset")
+    p.add_argument("scenario", metavar="SCENARIO.toml")
+    with_report_options(p)
+    p.add_argument("--days", type=_days_arg, default=30.0, help="days of perpetrator dosing (default 30)")
+    p.add_argument("--washout-days", type=_days_arg, default=None, help="days followed after stopping (default: long enough to fade)")
+    p.add_argument("--fraction", type=_fraction_arg, default=0.9, help="share of the effect that defines onset and offset (default 0.9)")
+    p.add_argument("--constant", action="store_true", help="hold the perpetrator's site concentrations at their static values")
+    p.add_argument("--plot", metavar="FILE.svg", help="also write the curves as an SVG image")
+    p.set_defaults(run=_cmd_timecourse)
 
     p = sub.add_parser("demo", help="assess the built-in invented demo scenario (same output as assess)")
     with_report_options(p)

@@ -28,6 +28,7 @@ __all__ = [
     "fm_from_observed_ratio",
     "highest_perpetrator_scale",
     "suggest_dose",
+    "timing_advice",
 ]
 
 #: dosing intervals (h) offered when stretching the interval: common practice
@@ -281,3 +282,125 @@ def highest_perpetrator_scale(ratio_at: Callable[[float], float], upper: float) 
                 f_hi /= 2.0
             side = 1
     return (lo + hi) / 2.0
+
+
+def _days(hours: float) -> str:
+    d = hours / 24.0
+    return f"{d:.1f}" if d < 10 else f"{d:.0f}"
+
+
+def timing_advice(
+    *,
+    action: str,
+    steady_ratio: float,
+    static_ratio: float,
+    onset_h: float | None,
+    offset_h: float | None,
+    peak_ratio: float,
+    peak_h: float,
+    boundary: tuple[float, float],
+    effect_fraction: float,
+    follow_up_h: float,
+    mechanisms: tuple[str, ...],
+    usual_dose: float | None = None,
+    dose_unit: str = "",
+) -> tuple[str, ...]:
+    """When to change the victim's dose and when to go back, from a simulated time course.
+
+    Parameters
+    ----------
+    action
+        The static suggestion's action (``DoseSuggestion.action``).
+    steady_ratio, static_ratio
+        Dynamic steady-state and static AUC ratios.
+    onset_h, offset_h
+        Time (h) from starting the perpetrator to reach and stay within
+        (1 - f) of the steady effect, and from stopping it to fall within
+        (1 - f) of no effect; None when not reached.
+    peak_ratio, peak_h
+        The largest exposure change while dosing (log scale) and when.
+    boundary
+        The victim's no-effect boundary (lower, upper).
+    follow_up_h
+        How long after stopping the course was followed.
+    mechanisms
+        Mechanisms present (``Prediction.mechanisms``).
+    usual_dose, dose_unit
+        The victim's usual dose, to show the dose the dynamic ratio implies
+        when it differs from the static one by more than 25 %.
+
+    Timing is read from a minimal model (one compartment, kdeg values often
+    from memory); it guides monitoring, not a schedule.
+    """
+    lower, upper = boundary
+    pct = f"{effect_fraction:.0%}"
+    out: list[str] = [
+        f"Time course (dynamic check): steady-state AUC ratio {steady_ratio:.3g} against the static {static_ratio:.3g}"
+        + (" (the static model uses peak concentrations, so it is usually the larger)." if steady_ratio < static_ratio else ".")
+    ]
+    if usual_dose is not None and abs(math.log(steady_ratio / static_ratio)) > math.log(1.25):
+        out.append(
+            f"The two models disagree: with the dynamic ratio the dose restoring the usual exposure would be "
+            f"{usual_dose / steady_ratio:.3g} {dose_unit} instead of {usual_dose / static_ratio:.3g} {dose_unit}. The static "
+            "figure is the conservative screen; a dose chosen from it may undershoot the usual exposure, so confirm with "
+            "monitoring or clinical data."
+        )
+    inside = lower <= steady_ratio <= upper and lower <= peak_ratio <= upper
+    if action == "no change" and inside:
+        out.append("The simulated exposure stays inside the no-effect boundary throughout: no dose timing applies.")
+        return tuple(out)
+    increase = steady_ratio < 1.0
+    if onset_h is not None:
+        if onset_h <= 24.0:
+            out.append(
+                f"Start: {pct} of the change is reached within {_days(onset_h)} days of starting the perpetrator; "
+                "change the victim's dose when the perpetrator is started."
+            )
+        elif increase:
+            out.append(
+                f"Start: induction builds over about {_days(onset_h)} days ({pct} of its steady effect); raise the victim's "
+                "dose stepwise over that time, guided by monitoring, rather than all at once."
+            )
+        else:
+            out.append(
+                f"Start: the rise in exposure builds over about {_days(onset_h)} days ({pct} of its steady effect); a reduced "
+                "dose from the first day of co-administration is the cautious choice, with review over that time."
+            )
+    ln_ss = math.log(steady_ratio) if steady_ratio > 0 else 0.0
+    if abs(math.log(peak_ratio) - ln_ss) > (1.0 - effect_fraction) * abs(ln_ss) + 1e-9 and not lower <= peak_ratio <= upper:
+        out.append(
+            f"The exposure ratio passes through {peak_ratio:.3g} around day {_days(peak_h)} before settling at "
+            f"{steady_ratio:.3g} (the mechanisms act at different speeds): one dose change does not fit the whole course; "
+            "monitor closely in the first weeks."
+        )
+    if offset_h is not None:
+        why = []
+        if "time-dependent" in mechanisms:
+            why.append("inactivated enzyme must be resynthesised (set by kdeg)")
+        if "induction" in mechanisms:
+            why.append("induced enzyme returns to baseline (set by kdeg)")
+        if not why:
+            why.append("the perpetrator is eliminated")
+        reason = "; ".join(why)
+        if increase:
+            out.append(
+                f"Stop: after the perpetrator is stopped the effect fades over about {_days(offset_h)} days ({reason}); "
+                "bring the victim's dose back to the usual dose progressively over that time - keeping the higher dose "
+                "risks toxicity as induction fades."
+            )
+        else:
+            out.append(
+                f"Stop: after the perpetrator is stopped the effect fades over about {_days(offset_h)} days ({reason}); "
+                "return to the usual dose after that time"
+                + (", not on the day the perpetrator stops." if offset_h > 24.0 else ".")
+            )
+    else:
+        out.append(
+            f"Stop: the effect had not faded within the {_days(follow_up_h)} days simulated after stopping; return to "
+            "the usual dose only under monitoring."
+        )
+    out.append(
+        "Timing comes from a minimal one-compartment model and enzyme turnover rates that are often from memory: "
+        "a guide for monitoring, not a schedule."
+    )
+    return tuple(out)

@@ -10,7 +10,7 @@ import pint
 
 import json
 import math
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from .. import units
 from ..assessment import Assessment
@@ -18,6 +18,9 @@ from ..cautions import CAUTION_LINE
 from ..exposure import Setting
 from .document import Note, Section, Table, render_markdown, render_text
 from .numbers import fmt, fmt_ratio
+
+if TYPE_CHECKING:
+    from ..dynamic import TimeCourse
 
 __all__ = ["JSON_SCHEMA", "assessment_sections", "assessment_to_dict", "format_assessment"]
 
@@ -47,8 +50,12 @@ def _q(q: pint.Quantity | None) -> str:
     return "-" if q is None else units.format_quantity(q)
 
 
-def assessment_sections(a: Assessment) -> list[Section]:
-    """The assessment as document sections (shared by every format)."""
+def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, time_course_note: str = "") -> list[Section]:
+    """The assessment as document sections (shared by every format).
+
+    With ``time_course`` (from :func:`interact.dynamic.simulate`) the dynamic
+    check and the dose timing are added; ``time_course_note`` says why it is absent.
+    """
     s = a.scenario
     p = s.perpetrator
     v = s.victim
@@ -203,9 +210,19 @@ def assessment_sections(a: Assessment) -> list[Section]:
     )
     sections.append(Section(title="Mechanistic static model", blocks=tuple(blocks)))
 
+    # -- time course (interact.dynamic), when computed
+    timing: tuple[str, ...] = ()
+    if time_course is not None:
+        from .timecourse import timecourse_advice, timecourse_sections
+
+        sections.extend(timecourse_sections(time_course))
+        timing = timecourse_advice(time_course, a)
+    elif time_course_note:
+        sections.append(Section(title="Time course (dynamic check)", blocks=(time_course_note,)))
+
     # -- dose
     d = a.dose
-    dose_blocks: list[str | Table | Note] = [Note(text=f"Suggested action: {d.action}.", kind="result"), *d.reasons]
+    dose_blocks: list[str | Table | Note] = [Note(text=f"Suggested action: {d.action}.", kind="result"), *d.reasons, *timing]
     lim = a.perpetrator_limit
     dose_blocks.append(
         f"Perpetrator dose ceiling: {fmt(lim.dose)} {lim.dose_unit} ({lim.reason})." if lim.dose is not None else f"Perpetrator dose ceiling: {lim.reason}."
@@ -247,8 +264,21 @@ def _setting_dict(s: Setting) -> dict[str, Any]:
             "source": s.source, "status": s.status, "note": s.note}
 
 
-def assessment_to_dict(a: Assessment) -> dict[str, Any]:
-    """JSON-ready data; concentrations in uM, rates in 1/h, ratios dimensionless."""
+def assessment_to_dict(a: Assessment, time_course: TimeCourse | None = None) -> dict[str, Any]:
+    """JSON-ready data; concentrations in uM, rates in 1/h, ratios dimensionless.
+
+    With ``time_course``, a ``time_course`` entry holds its summary and the dose timing (no curves;
+    ``interact timecourse --format json`` gives them).
+    """
+    out = _assessment_dict(a)
+    if time_course is not None:
+        from .timecourse import timecourse_to_dict
+
+        out["time_course"] = timecourse_to_dict(time_course, a, curves=False)
+    return out
+
+
+def _assessment_dict(a: Assessment) -> dict[str, Any]:
     pr = a.prediction
     d = a.dose
     lim = a.perpetrator_limit
@@ -361,11 +391,16 @@ def assessment_to_dict(a: Assessment) -> dict[str, Any]:
     }
 
 
-def format_assessment(a: Assessment, fmt_name: str = "text", width: int = 100) -> str:
-    """The assessment as ``text``, ``markdown`` or ``json``."""
+def format_assessment(
+    a: Assessment, fmt_name: str = "text", width: int = 100, *, time_course: TimeCourse | None = None, time_course_note: str = ""
+) -> str:
+    """The assessment as ``text``, ``markdown`` or ``json`` (with the time course when given)."""
     if fmt_name == "json":
-        return json.dumps(assessment_to_dict(a), indent=2, allow_nan=False) + "\n"
-    sections = assessment_sections(a)
+        data = assessment_to_dict(a, time_course)
+        if time_course is None and time_course_note:
+            data["time_course"] = {"computed": False, "reason": time_course_note}
+        return json.dumps(data, indent=2, allow_nan=False) + "\n"
+    sections = assessment_sections(a, time_course, time_course_note)
     if fmt_name == "markdown":
         return render_markdown(sections, title=f"interact assessment: {a.scenario.title}")
     return render_text(sections, width=width)
