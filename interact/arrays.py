@@ -19,7 +19,15 @@ from numpy.typing import ArrayLike, NDArray
 from .dosing import PRACTICAL_INTERVALS_H, _candidates
 from .tables import Classes
 
-__all__ = ["ACTIONS", "band_codes", "band_labels", "dose_action_codes", "dose_candidates"]
+__all__ = [
+    "ACTIONS",
+    "band_codes",
+    "band_labels",
+    "dose_action_breakpoints",
+    "dose_action_codes",
+    "dose_action_codes_by_victim",
+    "dose_candidates",
+]
 
 #: suggested actions, indexed by the codes of :func:`dose_action_codes`
 ACTIONS: Final = ("no change", "reduce dose", "increase dose", "avoid or monitor")
@@ -129,3 +137,94 @@ def dose_action_codes(
     action = np.where(nti & (action != 0), np.int8(3), action)
     return np.broadcast_to(action, np.broadcast(r, usual, tau, lo, hi, nti).shape).astype(np.int8)
 
+
+
+def dose_action_breakpoints(
+    *, usual_dose: float, interval_h: float, candidates: NDArray[np.float64], lower: float, upper: float
+) -> NDArray[np.float64]:
+    """The AUC ratios at which any test inside :func:`dose_action_codes` can change its outcome, sorted.
+
+    Between two neighbouring breakpoints every comparison in the dose rule
+    (the boundary, each candidate dose's exposure ratio, whether a dose fits
+    below the exact dose, each practical interval, the interval closeness
+    tests) keeps its value, because each is monotone in the AUC ratio and
+    flips once, within a few ulps of one of these values.
+    """
+    d = candidates[~np.isnan(candidates)]
+    t = np.asarray(PRACTICAL_INTERVALS_H, dtype=float)
+    points = [
+        np.array([lower, upper, 1.0 - _TOL, 1.0 / (1.0 - _TOL), 1.0 + _TOL]),
+        lower * usual_dose / d,
+        upper * usual_dose / d,
+        usual_dose * (1 + _TOL) / d,
+        t / (interval_h * (1 - _TOL)),
+        t / (interval_h * (1 + _TOL)),
+    ]
+    b = np.unique(np.concatenate(points))
+    return b[np.isfinite(b) & (b > 0)]
+
+
+#: AUC ratios closer than this (relative) to a breakpoint are decided by the full rule
+_NEAR: Final = 1e-9
+
+
+def dose_action_codes_by_victim(
+    auc_ratio: NDArray[np.float64],
+    *,
+    usual_dose: NDArray[np.float64],
+    interval_h: NDArray[np.float64],
+    candidates: NDArray[np.float64],
+    lower: NDArray[np.float64],
+    upper: NDArray[np.float64],
+    narrow_therapeutic_index: NDArray[np.bool_],
+) -> NDArray[np.int8]:
+    """:func:`dose_action_codes` for a (pairs, victims) array of AUC ratios, faster for many pairs per victim.
+
+    For each victim the action is a step function of the AUC ratio: it is
+    evaluated once per step (at a point between two breakpoints, see
+    :func:`dose_action_breakpoints`) and looked up for every pair by one
+    binary search over all victims' breakpoints.  Ratios within a relative
+    1e-9 of a breakpoint are decided by :func:`dose_action_codes` itself, so
+    the result is the same, case by case (a test checks this at and around
+    every breakpoint).
+    """
+    r = np.asarray(auc_ratio, dtype=float)
+    n_v = r.shape[1]
+    usual = np.asarray(usual_dose, dtype=float)[:, None]
+    tau = np.asarray(interval_h, dtype=float)[:, None]
+    lo = np.asarray(lower, dtype=float)[:, None]
+    hi = np.asarray(upper, dtype=float)[:, None]
+    d = np.asarray(candidates, dtype=float)
+    t = np.asarray(PRACTICAL_INTERVALS_H, dtype=float)[None, :]
+    fixed = np.broadcast_to(np.array([1.0 - _TOL, 1.0 / (1.0 - _TOL), 1.0 + _TOL]), (n_v, 3))
+    b = np.concatenate(
+        [lo, hi, fixed, lo * usual / d, hi * usual / d, usual * (1 + _TOL) / d, t / (tau * (1 - _TOL)), t / (tau * (1 + _TOL))], axis=1
+    )
+    b = np.where(np.isfinite(b) & (b > 0), b, np.inf)
+    b.sort(axis=1)
+    width = b.shape[1]
+    below = np.concatenate([b[:, :1] / 2.0, b], axis=1)[:, :-1]  # neighbour below each step's upper breakpoint
+    reps = np.where(np.isinf(b), below * 2.0, np.sqrt(below * b))
+    reps[:, 0] = b[:, 0] / 2.0
+    reps = np.concatenate([reps, b[:, -1:] * 2.0], axis=1)  # the step above the last breakpoint
+    reps = np.where(np.isfinite(reps), reps, 1.0)  # steps past the last finite breakpoint: never looked up
+    args = {"usual_dose": usual, "interval_h": tau, "lower": lo, "upper": hi, "narrow_therapeutic_index": np.asarray(narrow_therapeutic_index)[:, None]}
+    step = dose_action_codes(reps, candidates=d[:, None, :], **args)  # (victims, width + 1)
+    # one binary search for all victims: row j's breakpoints live in [j * span - 100, j * span + 100] on a log scale
+    span = 400.0
+    offsets = np.arange(n_v, dtype=float) * span
+    g = np.where(np.isinf(b), offsets[:, None] + span / 2, np.log(np.where(np.isinf(b), 1.0, b)) + offsets[:, None]).ravel()
+    key = np.clip(np.log(r.T), -150.0, 150.0) + offsets[:, None]  # victim-major: each victim's keys search one region
+    idx = (np.searchsorted(g, key) - (np.arange(n_v) * width)[:, None]).T
+    idx = np.clip(idx, 0, width)
+    codes = step[np.arange(n_v)[None, :], idx]
+    lo_b = b[np.arange(n_v)[None, :], np.maximum(idx - 1, 0)]
+    hi_b = b[np.arange(n_v)[None, :], np.minimum(idx, width - 1)]
+    near = (np.abs(r - lo_b) <= _NEAR * lo_b) | (np.isfinite(hi_b) & (np.abs(r - hi_b) <= _NEAR * hi_b)) | ~np.isfinite(r)
+    if np.any(near):
+        ii, jj = np.nonzero(near)
+        codes[ii, jj] = dose_action_codes(
+            r[ii, jj], usual_dose=usual[jj, 0], interval_h=tau[jj, 0], candidates=d[jj], lower=lo[jj, 0], upper=hi[jj, 0],
+            narrow_therapeutic_index=np.asarray(narrow_therapeutic_index)[jj],
+        )
+    return codes.astype(np.int8)

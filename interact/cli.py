@@ -165,6 +165,79 @@ def _cmd_uncertainty(args: argparse.Namespace) -> int:
     return 0
 
 
+def _progress_bar(label: str):  # type: ignore[no-untyped-def]
+    """A progress callback drawing a bar on standard error when it is a terminal (else None)."""
+    if not sys.stderr.isatty():
+        return None
+
+    def show(done: int, total: int) -> None:
+        width = 30
+        filled = int(width * done / total) if total else width
+        sys.stderr.write(f"\r{label} [{'#' * filled}{' ' * (width - filled)}] {100 * done / max(total, 1):3.0f}% {done:,}/{total:,}")
+        if done >= total:
+            sys.stderr.write("\n")
+        sys.stderr.flush()
+
+    return show
+
+
+def _read_text(path: str, what: str) -> str:
+    try:
+        return Path(path).read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise InputError(what, path, f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+
+
+def _write_streamed(path: str | None, write) -> int:  # type: ignore[no-untyped-def]
+    """Call ``write(handle)``: to standard output, or to a temporary file renamed over ``path`` when complete."""
+    import os
+    import tempfile
+
+    if not path:
+        return int(write(sys.stdout))
+    target = Path(path)
+    try:
+        handle, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=target.resolve().parent)
+    except OSError as exc:
+        raise InputError("--output", path, f"cannot be written ({exc.strerror})") from None
+    try:
+        with os.fdopen(handle, "w", encoding="utf-8", newline="") as out:
+            count = int(write(out))
+        os.replace(tmp, target)
+    except BaseException:
+        Path(tmp).unlink(missing_ok=True)
+        raise
+    return count
+
+
+def _cmd_screen_batch(args: argparse.Namespace) -> int:
+    import time
+
+    from .batch import evaluate_pairs, loads_perpetrators, loads_victims
+    from .report.batch import write_results
+    from .tables import load_rules
+
+    t0 = time.perf_counter()
+    rules = load_rules(args.rules)
+    if args.top is not None and args.top < 1:
+        raise InputError("--top", args.top, "is not a whole number of at least 1")
+    perps = loads_perpetrators(_read_text(args.perpetrators, "perpetrators"), rules, source=args.perpetrators, on_error=args.on_error)
+    victims = loads_victims(_read_text(args.victims, "victims"), source=args.victims, on_error=args.on_error)
+    for problem in (*perps.skipped, *victims.skipped):
+        sys.stderr.write(f"interact: skipped {problem}\n")
+    n = len(perps.rows) * len(victims.rows)
+    result = evaluate_pairs(perps, victims, rules, progress=_progress_bar("screening") if n >= 200_000 and not args.quiet else None)
+    fmt_name = args.format or {".json": "json", ".md": "markdown", ".markdown": "markdown"}.get(Path(args.output or "").suffix.lower(), "csv")
+    rows = _write_streamed(args.output, lambda h: write_results(result, h, fmt_name, top=args.top))
+    if args.output and not args.quiet:
+        skipped = len(perps.skipped) + len(victims.skipped)
+        sys.stderr.write(
+            f"interact: {n:,} pairs screened in {time.perf_counter() - t0:.2f} s; {rows:,} rows, worst first, written to {args.output}"
+            + (f"; {skipped} bad rows left out (listed above)" if skipped else "") + "\n"
+        )
+    return 0
+
+
 def _parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="interact",
@@ -234,6 +307,18 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--list-inputs", action="store_true", help="list the input paths this scenario's model reads, and stop")
     with_report_options(p)
     p.set_defaults(run=_cmd_uncertainty)
+
+    p = sub.add_parser("screen-batch", help="every perpetrator of one table against every victim of another, worst pairs first")
+    p.add_argument("perpetrators", metavar="PERPETRATORS.csv", help="perpetrator table (CSV or TOML; columns in README)")
+    p.add_argument("victims", metavar="VICTIMS.csv", help="victim table (CSV or TOML; columns in README)")
+    p.add_argument("-o", "--output", metavar="FILE", help="write results to FILE (.csv, .json or .md) instead of standard output")
+    p.add_argument("--format", choices=("csv", "json", "markdown"), help="output format (default: from the file name, else csv)")
+    p.add_argument("--rules", metavar="NAME|PATH", help="rule set (default ich-m12-2024)")
+    p.add_argument("--on-error", choices=("fail", "skip"), default="fail",
+                   help="a bad row stops the run (fail, default) or is left out and listed (skip)")
+    p.add_argument("--top", type=int, metavar="N", help="write only the N worst pairs")
+    p.add_argument("-q", "--quiet", action="store_true", help="no progress bar or summary line")
+    p.set_defaults(run=_cmd_screen_batch)
 
     for register in _EXTRA_COMMANDS:
         register(sub)

@@ -1,0 +1,715 @@
+"""Batch screening: every perpetrator of one table against every victim of another.
+
+Each row is validated exactly as a scenario file would be (the same reader,
+the same messages), then the mechanistic static model is evaluated for all
+pairs at once on numpy arrays, in chunks that bound memory, with the same
+equations and order of operations as :func:`interact.assessment.assess`, so
+that every pair's result equals ``assess()`` on that pair alone (a test
+holds them equal).
+
+Tables are CSV (a header line, ``#`` comment lines allowed) or TOML
+(``[[perpetrator]]`` / ``[[victim]]`` entries with the same keys).  A column
+name may carry its unit in parentheses, ``cmax (ng/mL)``; cells are then plain
+numbers.  Without a unit in the header, each cell carries its own
+(``812 ng/mL``).  The columns are listed in :data:`PERPETRATOR_COLUMNS` and
+:data:`VICTIM_COLUMNS` and documented in README.md ("Batch screening").
+
+Scope (kept simple on purpose): one reversible inhibition constant per
+perpetrator and target (``ki TARGET`` with ``fu_inc TARGET``, or ``ki_u
+TARGET``), no metabolites, no time-dependent inhibition or induction; use a
+scenario file for those.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import math
+import re
+import tomllib
+from collections.abc import Callable, Iterator
+from dataclasses import dataclass
+from typing import Any, Final
+
+import numpy as np
+from numpy.typing import NDArray
+
+from . import units
+from .arrays import ACTIONS, band_codes, band_labels, dose_action_codes_by_victim, dose_candidates
+from .constants import resolve_constants
+from .errors import InputError, InteractError, Problem, ScenarioError
+from .exposure import resolve_exposure, resolve_settings
+from .prediction import gut_ratio, reversible_term
+from .scenario import Perpetrator, Scenario, Victim, scenario_from_dict
+from .screening import screen
+from .tables import RuleSet, load_classes, load_rules, load_targets, resolve_target
+
+__all__ = [
+    "FLAGS",
+    "OUTPUT_COLUMNS",
+    "PERPETRATOR_COLUMNS",
+    "VICTIM_COLUMNS",
+    "BadRowsError",
+    "BatchResult",
+    "PerpetratorTable",
+    "RowProblem",
+    "VictimTable",
+    "evaluate_pairs",
+    "loads_perpetrators",
+    "loads_victims",
+    "pair_ratios",
+    "pair_scenario",
+    "ranking",
+    "result_rows",
+]
+
+#: perpetrator columns: (name, unit kind or type, required, meaning)
+PERPETRATOR_COLUMNS: Final = (
+    ("name", "text", True, "compound name"),
+    ("dose", "dose, e.g. (mg)", True, "highest dose"),
+    ("molar mass", "(g/mol)", False, "needed when dose or a concentration is a mass"),
+    ("cmax", "concentration, e.g. (uM) or (ng/mL)", True, "total plasma Cmax at steady state"),
+    ("fu_p", "fraction", True, "unbound fraction in plasma"),
+    ("fu_p measured", "true/false", False, "a measured fu,p may stand below the rule set's floor"),
+    ("route", "oral/intravenous", False, "default oral"),
+    ("rb", "number", False, "blood-to-plasma ratio (default from the tables)"),
+    ("fa_fg", "fraction", False, "Fa x Fg for the hepatic inlet (default from the tables)"),
+    ("fa", "fraction", False, "Fa for the enterocyte (default from the tables)"),
+    ("ka", "rate, e.g. (1/min)", False, "absorption rate (default from the tables)"),
+    ("ki TARGET", "concentration, e.g. (uM)", False, "in vitro Ki on TARGET (an enzyme or transporter)"),
+    ("fu_inc TARGET", "fraction", False, "unbound fraction in the incubation for that Ki (default 1)"),
+    ("ki_u TARGET", "concentration, e.g. (uM)", False, "unbound Ki on TARGET (instead of ki with fu_inc)"),
+)
+
+#: victim columns: (name, unit kind or type, required, meaning)
+VICTIM_COLUMNS: Final = (
+    ("name", "text", True, "drug name"),
+    ("dose", "dose, e.g. (mg)", True, "usual dose"),
+    ("interval", "time, e.g. (h)", True, "usual dosing interval"),
+    ("fg", "fraction", False, "intestinal availability (1 when not given: no gut-wall interaction)"),
+    ("route", "oral/intravenous", False, "default oral"),
+    ("strengths", "dose, e.g. (mg), separated by ';'", False, "available unit strengths"),
+    ("nti", "true/false", False, "narrow therapeutic index"),
+    ("no_effect_lower", "AUC ratio", False, "lower no-effect boundary (default 0.8)"),
+    ("no_effect_upper", "AUC ratio", False, "upper no-effect boundary (default 1.25)"),
+    ("fm ENZYME", "fraction", False, "fraction of clearance through ENZYME"),
+)
+
+#: flags, as bits of :attr:`BatchResult.flags`
+FLAGS: Final = (
+    "fg not given: no gut-wall interaction predicted",
+    "fu,p raised to the floor",
+    "narrow therapeutic index",
+    "a victim pathway is not inhibited by this perpetrator",
+    "basic model flags a study",
+)
+
+OUTPUT_COLUMNS: Final = (
+    "rank", "perpetrator", "victim", "Imax,u (uM)", "Iin,max,u (uM)", "Igut (uM)", "I,ent (uM)", "basic models",
+    "AUCR gut", "AUCR liver", "AUCR", "class", "study indicated", "action", "flags",
+)
+
+_PAIRS_PER_CHUNK: Final = 262_144
+MAX_ROWS: Final = 1_000_000
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class RowProblem:
+    source: str
+    line: int
+    message: str
+
+    def __str__(self) -> str:
+        return f"{self.source} line {self.line}: {self.message}"
+
+
+class BadRowsError(InputError):
+    """One or more rows of a table are unusable; each is named with its line."""
+
+    def __init__(self, problems: tuple[RowProblem, ...], source: str) -> None:
+        self.problems = problems
+        n = len(problems)
+        shown = "; ".join(f"line {p.line}: {p.message}" for p in problems[:3])
+        more = f" (and {n - 3} more)" if n > 3 else ""
+        InteractError.__init__(
+            self, f"{source}: {n} bad row{'s' if n != 1 else ''}: {shown}{more}; fix them, or use --on-error skip to leave them out and list them"
+        )
+        self.field = source
+        self.value = None
+        self.expected = f"{n} bad rows"
+
+
+# --------------------------------------------------------------------------- reading
+
+
+_HEAD = re.compile(r"^\s*([^()]*?)\s*(?:\(([^()]*)\))?\s*$")
+_TRUE = {"true", "yes", "y", "1"}
+_FALSE = {"false", "no", "n", "0", ""}
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class _Column:
+    header: str
+    key: str  # normalised key, e.g. "ki", "fm", "cmax"
+    target: str | None
+    unit: str | None
+
+
+_PERP_KEYS: Final = {
+    "name": "name", "dose": "dose", "molar mass": "molar_mass", "molar_mass": "molar_mass", "mw": "molar_mass",
+    "cmax": "cmax", "fu_p": "fu_plasma", "fu_plasma": "fu_plasma", "fu_p measured": "fu_plasma_measured",
+    "fu_plasma_measured": "fu_plasma_measured", "route": "route", "rb": "blood_plasma_ratio",
+    "blood_plasma_ratio": "blood_plasma_ratio", "fa_fg": "fa_fg", "fa": "fa", "ka": "ka",
+}
+_VICTIM_KEYS: Final = {
+    "name": "name", "dose": "dose", "interval": "interval", "fg": "fg", "route": "route", "strengths": "strengths",
+    "nti": "narrow_therapeutic_index", "narrow_therapeutic_index": "narrow_therapeutic_index",
+    "no_effect_lower": "no_effect_lower", "no_effect_upper": "no_effect_upper",
+}
+_UNIT_KINDS: Final = {"dose": "dose", "molar_mass": "molar_mass", "cmax": "concentration", "ka": "rate", "ki": "concentration",
+                      "ki_u": "concentration", "interval": "time", "strengths": "dose"}
+_PER_TARGET: Final = {"perpetrator": ("ki", "ki_u", "fu_inc"), "victim": ("fm",)}
+
+
+def _columns(headers: list[str], side: str, source: str) -> list[_Column]:
+    keys = _PERP_KEYS if side == "perpetrator" else _VICTIM_KEYS
+    out: list[_Column] = []
+    seen: dict[tuple[str, str | None], str] = {}
+    for raw in headers:
+        m = _HEAD.match(raw or "")
+        words = (m.group(1) if m else raw).strip()
+        unit = (m.group(2) or "").strip() or None if m else None
+        low = " ".join(words.lower().split())
+        target: str | None = None
+        key = keys.get(low)
+        if key is None:
+            first, _, rest = low.partition(" ")
+            if first in _PER_TARGET[side] and rest:
+                t = resolve_target(words.split(None, 1)[1])
+                if t is None:
+                    known = ", ".join(x.name for x in load_targets())
+                    raise InputError(f"{source}: column", raw, f"names an unknown target; expected one of {known}")
+                key, target = first, t.name
+        if key is None:
+            expected = ", ".join(c[0] for c in (PERPETRATOR_COLUMNS if side == "perpetrator" else VICTIM_COLUMNS))
+            raise InputError(f"{source}: column", raw, f"is not a known {side} column; expected {expected}")
+        if unit is not None and key in _UNIT_KINDS:
+            try:
+                units.parse(f"1 {unit}", _UNIT_KINDS[key], field=f"{source}: column {raw}")
+            except InputError as exc:
+                raise InputError(f"{source}: column", raw, f"has a unit that is not {exc.expected.split('expected ', 1)[-1]}") from None
+        elif unit is not None:
+            raise InputError(f"{source}: column", raw, "takes no unit (it is a fraction, number, flag or text)")
+        if (key, target) in seen:
+            raise InputError(f"{source}: column", raw, f'repeats column "{seen[(key, target)]}"')
+        seen[(key, target)] = raw
+        out.append(_Column(header=raw, key=key, target=target, unit=unit))
+    for name, _, required, _ in PERPETRATOR_COLUMNS if side == "perpetrator" else VICTIM_COLUMNS:
+        if not required:
+            continue
+        want = keys[name]
+        if required and not any(c.key == want for c in out):
+            raise InputError(f"{source}: columns", ", ".join(headers), f'lack the required column "{name}"')
+    return out
+
+
+def _rows_csv(text: str) -> tuple[list[str], list[tuple[int, list[str]]]]:
+    lines = text.splitlines()
+    numbered = [(i + 1, line) for i, line in enumerate(lines) if line.strip() and not line.lstrip().startswith("#")]
+    if not numbered:
+        return [], []
+    reader = csv.reader(io.StringIO("\n".join(line for _, line in numbered)))
+    parsed = list(reader)
+    header = [h.strip() for h in parsed[0]]
+    return header, [(numbered[k][0], row) for k, row in enumerate(parsed[1:], start=1)]
+
+
+def _rows_toml(text: str, side: str, source: str) -> tuple[list[str], list[tuple[int, dict[str, Any]]]]:
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
+    entries = data.get(side)
+    if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
+        raise InputError(source, side, f"has no [[{side}]] entries; expected one [[{side}]] table per row")
+    starts = [i + 1 for i, line in enumerate(text.splitlines()) if re.match(rf"^\s*\[\[\s*{side}\s*\]\]", line)]
+    headers: list[str] = []
+    for e in entries:
+        for k in e:
+            if k not in headers:
+                headers.append(k)
+    return headers, [(starts[k] if k < len(starts) else 0, e) for k, e in enumerate(entries)]
+
+
+def _cell_text(value: Any) -> str:
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    return str(value).strip()
+
+
+def _row_dict(cols: list[_Column], cells: dict[str, Any], side: str) -> tuple[dict[str, Any], dict[str, str]]:
+    """A scenario-style dict for one row and a map from scenario key paths to column headers."""
+    out: dict[str, Any] = {}
+    where: dict[str, str] = {}
+    per_target: dict[str, dict[str, Any]] = {}
+    for c in cols:
+        raw = cells.get(c.header)
+        text = "" if raw is None else _cell_text(raw)
+        if text == "":
+            continue
+        if c.key in ("fu_plasma_measured", "narrow_therapeutic_index"):
+            low = text.lower()
+            out[c.key] = True if low in _TRUE else False if low in _FALSE else text
+            where[f"{side}.{c.key}"] = c.header
+            continue
+        if c.key == "strengths":
+            parts = [p.strip() for p in re.split(r"[;|]", text) if p.strip()]
+            out["strengths"] = [f"{p} {c.unit}" if c.unit else p for p in parts]
+            for k in range(len(parts)):
+                where[f"{side}.strengths[{k}]"] = c.header
+            where[f"{side}.strengths"] = c.header
+            continue
+        value: Any = f"{text} {c.unit}" if c.unit else text
+        if c.key in ("blood_plasma_ratio", "no_effect_lower", "no_effect_upper"):
+            try:
+                value = float(text)
+            except ValueError:
+                value = text
+        if c.target is not None:
+            per_target.setdefault(c.target, {})[c.key] = value
+            continue
+        out[c.key] = value
+        where[f"{side}.{c.key}"] = c.header
+    if "no_effect_lower" in out or "no_effect_upper" in out:
+        lo, hi = out.pop("no_effect_lower", 0.8), out.pop("no_effect_upper", 1.25)
+        out["no_effect_boundary"] = [lo, hi]
+        where[f"{side}.no_effect_boundary"] = "no_effect_lower / no_effect_upper"
+    headers_of = {(c.key, c.target): c.header for c in cols}
+    if side == "perpetrator":
+        items = []
+        for target, d in per_target.items():
+            if "ki" in d and "ki_u" in d:
+                items.append({"target": target, "ki": d["ki"], "ki_u_conflict": True})
+            elif "ki_u" in d:
+                item = {"target": target, "ki": d["ki_u"], "fu_inc": 1.0}
+                if "fu_inc" in d:
+                    item["fu_inc_conflict"] = True
+                items.append(item)
+            elif "ki" in d:
+                items.append({"target": target, "ki": d["ki"], **({"fu_inc": d["fu_inc"]} if "fu_inc" in d else {})})
+            else:
+                items.append({"target": target, "fu_inc_alone": True})
+            k = len(items) - 1
+            where[f"perpetrator.inhibits[{k}].ki"] = headers_of.get(("ki", target)) or headers_of.get(("ki_u", target), "")
+            where[f"perpetrator.inhibits[{k}].fu_inc"] = headers_of.get(("fu_inc", target), "")
+            where[f"perpetrator.inhibits[{k}]"] = where[f"perpetrator.inhibits[{k}].ki"] or where[f"perpetrator.inhibits[{k}].fu_inc"]
+        if items:
+            out["inhibits"] = items
+        where["perpetrator.inhibits"] = "ki / ki_u columns"
+    else:
+        out["pathways"] = [{"enzyme": t, "fm": d["fm"]} for t, d in per_target.items()]
+        for k, t in enumerate(per_target):
+            where[f"victim.pathways[{k}].fm"] = where[f"victim.pathways[{k}].enzyme"] = headers_of[("fm", t)]
+            where[f"victim.pathways[{k}]"] = headers_of[("fm", t)]
+        where["victim.pathways"] = "fm columns"
+    return out, where
+
+
+_DUMMY_VICTIM: Final = {"name": "-", "dose": "1 mg", "interval": "24 h"}
+_DUMMY_PERPETRATOR: Final = {"name": "-", "dose": "1 umol", "cmax": "1 uM", "fu_plasma": 1.0,
+                             "inhibits": [{"target": "CYP3A", "ki": "1 uM"}]}
+
+
+def _validate(side: str, data: dict[str, Any], where: dict[str, str]) -> Perpetrator | Victim:
+    """The row as a Perpetrator or Victim, validated by the scenario reader (messages name the column)."""
+    problems: list[str] = []
+    if side == "perpetrator":
+        for k, item in enumerate(data.get("inhibits", [])):
+            col = where.get(f"perpetrator.inhibits[{k}]", "")
+            if item.pop("ki_u_conflict", False):
+                problems.append(f"column '{col}': gives both ki and ki_u for {item['target']}; expected one of them")
+            if item.pop("fu_inc_conflict", False):
+                problems.append(f"column '{where.get(f'perpetrator.inhibits[{k}].fu_inc')}': fu_inc does not apply to ki_u (already unbound)")
+            if item.pop("fu_inc_alone", False):
+                problems.append(f"column '{col}': fu_inc {item['target']} is given without ki {item['target']}")
+                item["ki"] = "1 uM"  # placeholder so that the rest of the row is still checked
+        doc = {"title": "row", "perpetrator": data, "victim": dict(_DUMMY_VICTIM)}
+    else:
+        doc = {"title": "row", "perpetrator": dict(_DUMMY_PERPETRATOR), "victim": data}
+    try:
+        scenario = scenario_from_dict(doc)
+    except ScenarioError as exc:
+        for p in exc.problems:
+            problems.append(_explain(p, where, side))
+        raise InputError("row", "", "; ".join(problems)) from None
+    if problems:
+        raise InputError("row", "", "; ".join(problems))
+    return scenario.perpetrator if side == "perpetrator" else scenario.victim
+
+
+def _explain(p: Problem, where: dict[str, str], side: str) -> str:
+    probe = p.field
+    while probe and probe not in where:
+        probe = re.sub(r"(\[\d+\]|\.[^.\[]*)$", "", probe) if ("." in probe or "[" in probe) else ""
+    col = where.get(probe)
+    msg = p.message
+    if p.field == f"{side}.inhibits":
+        return "no ki or ki_u value: expected at least one inhibition constant"
+    return f"column '{col}': {msg}" if col else f"{p.field.removeprefix(side + '.')}: {msg}"
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class PerpetratorTable:
+    """Validated perpetrators with the per-perpetrator floats the pair model needs (concentrations in uM)."""
+
+    rows: tuple[Perpetrator, ...]
+    lines: tuple[int, ...]
+    targets: tuple[str, ...]  # one column per target, in first-seen order
+    imax_u_um: NDArray[np.float64]
+    inlet_um: NDArray[np.float64]
+    enterocyte_um: NDArray[np.float64]
+    gut_lumen_um: NDArray[np.float64]
+    ki_u_um: NDArray[np.float64]  # (n, targets); NaN where not given
+    fu_floored: NDArray[np.bool_]
+    basic: tuple[str, ...]
+    basic_flag: NDArray[np.bool_]
+    skipped: tuple[RowProblem, ...]
+    source: str
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class VictimTable:
+    rows: tuple[Victim, ...]
+    lines: tuple[int, ...]
+    enzymes: tuple[str, ...]
+    fm: NDArray[np.float64]  # (n, enzymes); 0 where not given
+    has_pathway: NDArray[np.bool_]  # (n, enzymes)
+    fg: NDArray[np.float64]
+    fg_given: NDArray[np.bool_]
+    oral: NDArray[np.bool_]
+    usual_dose: NDArray[np.float64]
+    interval_h: NDArray[np.float64]
+    candidates: NDArray[np.float64]  # (n, k), NaN-padded
+    lower: NDArray[np.float64]
+    upper: NDArray[np.float64]
+    nti: NDArray[np.bool_]
+    skipped: tuple[RowProblem, ...]
+    source: str
+
+
+def _read(text: str, side: str, source: str, fmt_name: str | None) -> tuple[list[_Column], list[tuple[int, dict[str, Any]]]]:
+    kind = fmt_name or ("toml" if source.lower().endswith(".toml") else "csv")
+    if kind == "toml":
+        headers, entries = _rows_toml(text, side, source)
+        cols = _columns(headers, side, source)
+        return cols, entries
+    headers, rows = _rows_csv(text)
+    if not headers:
+        raise InputError(source, "", f"has no header line; expected CSV with columns such as {PERPETRATOR_COLUMNS[0][0]}, ...")
+    cols = _columns(headers, side, source)
+    out = []
+    for line, cells in rows:
+        if len(cells) > len(headers):
+            out.append((line, {"__error__": f"has {len(cells)} cells but the header has {len(headers)} columns"}))
+            continue
+        out.append((line, {h: (cells[k] if k < len(cells) else "") for k, h in enumerate(headers)}))
+    return cols, out
+
+
+def _parse_rows(
+    text: str, side: str, source: str, on_error: str, fmt_name: str | None
+) -> tuple[list[Any], list[int], list[_Column], list[RowProblem]]:
+    if on_error not in ("fail", "skip"):
+        raise InputError("on_error", on_error, "is not 'fail' or 'skip'")
+    cols, entries = _read(text, side, source, fmt_name)
+    if len(entries) > MAX_ROWS:
+        raise InputError(source, len(entries), f"rows is more than the {MAX_ROWS:,} a table may have")
+    valid: list[Any] = []
+    lines: list[int] = []
+    problems: list[RowProblem] = []
+    for line, cells in entries:
+        if "__error__" in cells:
+            problems.append(RowProblem(source=source, line=line, message=cells["__error__"]))
+            continue
+        unknown = [k for k in cells if k not in {c.header for c in cols}]
+        if unknown:
+            problems.append(RowProblem(source=source, line=line, message=f"unknown key '{unknown[0]}'"))
+            continue
+        data, where = _row_dict(cols, cells, side)
+        try:
+            valid.append(_validate(side, data, where))
+            lines.append(line)
+        except InputError as exc:
+            problems.append(RowProblem(source=source, line=line, message=exc.expected))
+    if problems and on_error == "fail":
+        raise BadRowsError(tuple(problems), source)
+    if not valid:
+        raise InputError(source, "no rows", f"has no valid {side} row")
+    return valid, lines, cols, problems
+
+
+def loads_perpetrators(
+    text: str, rules: RuleSet | str | None = None, *, source: str = "perpetrators.csv", on_error: str = "fail",
+    fmt_name: str | None = None,
+) -> PerpetratorTable:
+    """Read and validate a perpetrator table; compute each perpetrator's concentrations and basic-model values.
+
+    ``on_error`` is ``fail`` (any bad row raises, naming each with its line) or
+    ``skip`` (bad rows are left out and listed in ``skipped``).
+    """
+    rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules)
+    rows, lines, cols, problems = _parse_rows(text, "perpetrator", source, on_error, fmt_name)
+    targets = tuple(dict.fromkeys(c.target for c in cols if c.target is not None and c.key in ("ki", "ki_u")))
+    n = len(rows)
+    ki_u = np.full((n, len(targets)), np.nan)
+    imax_u = np.empty(n)
+    inlet = np.empty(n)
+    ent = np.empty(n)
+    igut = np.empty(n)
+    floored = np.zeros(n, dtype=bool)
+    basic: list[str] = []
+    basic_flag = np.zeros(n, dtype=bool)
+    victim = Victim(name="-", dose=units.parse("1 mg", "dose", field="-"), interval=units.parse("24 h", "time", field="-"))
+    for i, p in enumerate(rows):
+        s = Scenario(title="row", perpetrator=p, victim=victim)
+        settings = resolve_settings(s, rule_set)
+        species, fus = resolve_exposure(s, rule_set, settings)
+        constants = resolve_constants(s)
+        sp = species[0]
+        imax_u[i], inlet[i], ent[i], igut[i] = sp.unbound_cmax_um, sp.unbound_inlet_um, sp.enterocyte_um, sp.gut_lumen_um
+        floored[i] = fus[0].origin == "floor"
+        for c in constants:
+            if c.ki_u_um is not None and c.target in targets:
+                ki_u[i, targets.index(c.target)] = c.ki_u_um
+        results = screen(rule_set, constants, species, oral=p.route == "oral", kdeg_liver={})
+        basic.append("; ".join(f"{r.label} {r.target} {r.value:.4g}{' STUDY' if r.indicated else ''}" for r in results))
+        basic_flag[i] = any(r.indicated for r in results)
+    return PerpetratorTable(
+        rows=tuple(rows), lines=tuple(lines), targets=targets, imax_u_um=imax_u, inlet_um=inlet, enterocyte_um=ent,
+        gut_lumen_um=igut, ki_u_um=ki_u, fu_floored=floored, basic=tuple(basic), basic_flag=basic_flag,
+        skipped=tuple(problems), source=source,
+    )
+
+
+def loads_victims(text: str, *, source: str = "victims.csv", on_error: str = "fail", fmt_name: str | None = None) -> VictimTable:
+    """Read and validate a victim table."""
+    rows, lines, cols, problems = _parse_rows(text, "victim", source, on_error, fmt_name)
+    enzymes = tuple(dict.fromkeys(c.target for c in cols if c.key == "fm" and c.target is not None))
+    n = len(rows)
+    fm = np.zeros((n, len(enzymes)))
+    has = np.zeros((n, len(enzymes)), dtype=bool)
+    classes = load_classes()
+    strengths = []
+    usual = np.empty(n)
+    interval = np.empty(n)
+    lower = np.empty(n)
+    upper = np.empty(n)
+    for i, v in enumerate(rows):
+        for pw in v.pathways:
+            k = enzymes.index(pw.enzyme)
+            fm[i, k] = pw.fm
+            has[i, k] = True
+        unit = units.unit_text(v.dose)
+        usual[i] = float(v.dose.magnitude)
+        interval[i] = units.magnitude(v.interval, "h")
+        strengths.append(tuple(units.magnitude(q, unit) for q in v.strengths))
+        if v.no_effect_lower is not None and v.no_effect_upper is not None:
+            lower[i], upper[i] = v.no_effect_lower, v.no_effect_upper
+        else:
+            lower[i], upper[i] = classes.no_effect_lower, classes.no_effect_upper
+    return VictimTable(
+        rows=tuple(rows), lines=tuple(lines), enzymes=enzymes, fm=fm, has_pathway=has,
+        fg=np.array([1.0 if v.fg is None else v.fg for v in rows]),
+        fg_given=np.array([v.fg is not None for v in rows], dtype=bool),
+        oral=np.array([v.route == "oral" for v in rows], dtype=bool),
+        usual_dose=usual, interval_h=interval, candidates=dose_candidates(strengths), lower=lower, upper=upper,
+        nti=np.array([v.narrow_therapeutic_index for v in rows], dtype=bool), skipped=tuple(problems), source=source,
+    )
+
+
+def pair_scenario(perpetrators: PerpetratorTable, victims: VictimTable, i: int, j: int, rules: str | None = None) -> Scenario:
+    """Perpetrator ``i`` and victim ``j`` as a scenario (to assess one pair alone, or save it as a file)."""
+    p, v = perpetrators.rows[i], victims.rows[j]
+    return Scenario(title=f"{p.name} with {v.name} (from batch tables)", perpetrator=p, victim=v, rules=rules)
+
+
+# --------------------------------------------------------------------------- evaluating
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class BatchResult:
+    """Results for every pair; arrays are (perpetrators, victims)."""
+
+    perpetrators: PerpetratorTable
+    victims: VictimTable
+    rules: RuleSet
+    gut: NDArray[np.float64]
+    liver: NDArray[np.float64]
+    total: NDArray[np.float64]
+    band: NDArray[np.int8]
+    action: NDArray[np.int8]
+    study: NDArray[np.bool_]
+    flags: NDArray[np.uint8]
+    band_names: tuple[str, ...]
+
+    @property
+    def pairs(self) -> int:
+        return int(self.total.size)
+
+
+def _chunks(n_p: int, n_v: int) -> Iterator[tuple[int, int]]:
+    step = max(1, _PAIRS_PER_CHUNK // max(n_v, 1))
+    for start in range(0, n_p, step):
+        yield start, min(n_p, start + step)
+
+
+def pair_ratios(
+    perpetrators: PerpetratorTable,
+    victims: VictimTable,
+    *,
+    progress: Callable[[int, int], None] | None = None,
+) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64]]:
+    """Gut, liver and total AUC ratios of the mechanistic static model for every pair, vectorised.
+
+    With perpetrators along axis 0 and victims along axis 1 (in chunks of perpetrators):
+
+    - activity_e = 1 / (1 + Iin,max,u / Ki,u,e) per enzyme (1 where no Ki is given), per perpetrator;
+    - AUCR_liver = 1 / (sum_e fm_e x activity_e + 1 - sum_e fm_e)  (:func:`interact.prediction.liver_ratio`,
+      summed term by term in column order);
+    - AUCR_gut = 1 / (activity_gut x (1 - Fg) + Fg) with I,ent on the gut-wall enzyme, for an oral victim;
+    - AUCR = AUCR_gut x AUCR_liver  (Fahmi et al. 2008 net-effect model, see :mod:`interact.prediction`).
+
+    ``progress(done_pairs, all_pairs)`` is called after each chunk.
+    """
+    n_p, n_v = len(perpetrators.rows), len(victims.rows)
+    gut = np.empty((n_p, n_v))
+    liver = np.empty((n_p, n_v))
+    e_cols = victims.enzymes
+    t_index = [perpetrators.targets.index(e) if e in perpetrators.targets else -1 for e in e_cols]
+    # per perpetrator (n_p, E): the reversible term of each victim enzyme at the hepatic inlet
+    act = np.ones((n_p, len(e_cols)))
+    for k, t in enumerate(t_index):
+        if t >= 0:
+            ki = perpetrators.ki_u_um[:, t]
+            given = ~np.isnan(ki)
+            act[given, k] = reversible_term(perpetrators.inlet_um[given] / ki[given])
+    gut_col = _gut_column(perpetrators)
+    if gut_col >= 0:
+        ki_g = perpetrators.ki_u_um[:, gut_col]
+        perp_gut = ~np.isnan(ki_g)
+        acts_gut = np.ones(n_p)
+        acts_gut[perp_gut] = reversible_term(perpetrators.enterocyte_um[perp_gut] / ki_g[perp_gut])
+    else:
+        acts_gut = np.ones(n_p)
+        perp_gut = np.zeros(n_p, dtype=bool)
+    fm = victims.fm
+    fm_sum = np.zeros(n_v)
+    for k in range(fm.shape[1]):
+        fm_sum += fm[:, k]
+    fg = np.where(victims.oral, victims.fg, 1.0)[None, :]  # Fg = 1 gives a gut ratio of exactly 1 (intravenous victim)
+    done = 0
+    for a0, a1 in _chunks(n_p, n_v):
+        a = act[a0:a1]
+        # liver: sum over enzymes of fm x activity, term by term in column order (the order of the
+        # sums in interact.prediction, so that each pair equals assess() to the last bit)
+        weighted = np.zeros((a1 - a0, n_v))
+        for k in range(fm.shape[1]):
+            weighted += fm[None, :, k] * a[:, k, None]
+        out = liver[a0:a1]
+        np.add(weighted, 1.0, out=out)
+        out -= fm_sum[None, :]
+        np.divide(1.0, out, out=out)
+        g = gut[a0:a1]
+        g[...] = gut_ratio(fg, acts_gut[a0:a1, None])
+        g[~perp_gut[a0:a1]] = 1.0  # no gut-wall enzyme inhibited: no gut term, as assess() does
+        done += (a1 - a0) * n_v
+        if progress is not None:
+            progress(done, n_p * n_v)
+    return gut, liver, gut * liver
+
+
+def _gut_column(perpetrators: PerpetratorTable) -> int:
+    """The perpetrator column of the gut-wall enzyme (CYP3A), or -1."""
+    for k, t in enumerate(perpetrators.targets):
+        target = resolve_target(t)
+        if target is not None and target.gut_wall:
+            return k
+    return -1
+
+
+def evaluate_pairs(
+    perpetrators: PerpetratorTable,
+    victims: VictimTable,
+    rules: RuleSet | str | None = None,
+    *,
+    progress: Callable[[int, int], None] | None = None,
+) -> BatchResult:
+    """Every pair: AUC ratios (:func:`pair_ratios`), class band, study verdict, suggested action and flags."""
+    rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules)
+    classes = load_classes()
+    n_p, n_v = len(perpetrators.rows), len(victims.rows)
+    gut, liver, total = pair_ratios(perpetrators, victims, progress=progress)
+    band = band_codes(total, classes)
+    action = dose_action_codes_by_victim(
+        total, usual_dose=victims.usual_dose, interval_h=victims.interval_h, candidates=victims.candidates,
+        lower=victims.lower, upper=victims.upper, narrow_therapeutic_index=victims.nti,
+    )
+    study = (total >= float(rule_set.aucr_inhibition_cutoff.value)) | (total <= float(rule_set.aucr_induction_cutoff.value))
+    # per-perpetrator and per-victim bits first, then broadcast once
+    e_cols = victims.enzymes
+    t_index = [perpetrators.targets.index(e) if e in perpetrators.targets else -1 for e in e_cols]
+    gut_col = _gut_column(perpetrators)
+    perp_gut = ~np.isnan(perpetrators.ki_u_um[:, gut_col]) if gut_col >= 0 else np.zeros(n_p, dtype=bool)
+    p_bits = (perpetrators.fu_floored.astype(np.uint8) << 1) | (perpetrators.basic_flag.astype(np.uint8) << 4)
+    v_bits = victims.nti.astype(np.uint8) << 2
+    flags = p_bits[:, None] | v_bits[None, :]
+    flags |= (perp_gut[:, None] & (victims.oral & ~victims.fg_given)[None, :]).astype(np.uint8)
+    # a victim pathway without a Ki of this perpetrator: bit masks of enzymes (victim has, perpetrator acts on)
+    has_ki = np.zeros((n_p, len(e_cols)), dtype=bool)
+    for k, t in enumerate(t_index):
+        if t >= 0:
+            has_ki[:, k] = ~np.isnan(perpetrators.ki_u_um[:, t])
+    weights = (1 << np.arange(len(e_cols), dtype=np.int64)) if e_cols else np.zeros(0, dtype=np.int64)
+    p_mask = has_ki.astype(np.int64) @ weights if e_cols else np.zeros(n_p, dtype=np.int64)
+    v_mask = victims.has_pathway.astype(np.int64) @ weights if e_cols else np.zeros(n_v, dtype=np.int64)
+    flags |= ((v_mask[None, :] & ~p_mask[:, None]) != 0).astype(np.uint8) << 3
+    return BatchResult(
+        perpetrators=perpetrators, victims=victims, rules=rule_set, gut=gut, liver=liver, total=total, band=band, action=action,
+        study=study, flags=flags.astype(np.uint8), band_names=band_labels(classes),
+    )
+
+
+def ranking(result: BatchResult, top: int | None = None) -> NDArray[np.int64]:
+    """Flat pair indices (perpetrator x victims + victim), worst first: largest |log AUCR|, ties in table order."""
+    severity = np.abs(np.log(result.total.ravel()))
+    if top is not None and top < severity.size:
+        part = np.argpartition(-severity, top - 1)[:top]
+        return part[np.lexsort((part, -severity[part]))]
+    return np.argsort(-severity, kind="stable")
+
+
+# --------------------------------------------------------------------------- output
+
+
+def _flag_text(bits: int) -> str:
+    return "; ".join(FLAGS[k] for k in range(len(FLAGS)) if bits >> k & 1)
+
+
+def _num(x: float) -> str:
+    return repr(float(x)) if math.isfinite(x) else ""
+
+
+def result_rows(result: BatchResult, top: int | None = None) -> Iterator[tuple[str, ...]]:
+    """Output rows (see :data:`OUTPUT_COLUMNS`), worst pair first; ``top`` limits the count."""
+    p, v = result.perpetrators, result.victims
+    n_v = len(v.rows)
+    order = ranking(result, top)
+    for rank, flat in enumerate(order.tolist(), start=1):
+        i, j = divmod(flat, n_v)
+        yield (
+            str(rank), p.rows[i].name, v.rows[j].name,
+            _num(p.imax_u_um[i]), _num(p.inlet_um[i]), _num(p.gut_lumen_um[i]), _num(p.enterocyte_um[i]), p.basic[i],
+            _num(result.gut[i, j]), _num(result.liver[i, j]), _num(result.total[i, j]),
+            result.band_names[result.band[i, j]], "yes" if result.study[i, j] else "no", ACTIONS[result.action[i, j]],
+            _flag_text(int(result.flags[i, j])),
+        )
