@@ -194,6 +194,7 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         boundary=boundary,
         boundary_origin=origin,
         narrow_therapeutic_index=v.narrow_therapeutic_index,
+        mechanism_parts=tuple((pt.mechanism, pt.total) for pt in prediction.parts) if "induction" in prediction.mechanisms else (),
     )
 
     ratio_at = ratio_function(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
@@ -230,6 +231,12 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         sorted(
             {f"{s.label}: {s.source}" for s in (*all_settings, *kdeg_used) if s.from_memory and s.origin in ("default", "rule set")}
             | {f"{r.label} cutoff for {r.target} ({rule_set.id}): {r.cutoff.source}" for r in screen_results if r.cutoff.from_memory}
+            | {
+                f"Induction calibration factor d = 1 for {c.species} on {c.target}: default (S1 shows d in the R3 equation; "
+                "the default value 1 is from memory)"
+                for c in constants
+                if c.emax is not None and c.calibration_origin == "default"
+            }
             | {
                 f"{r.label} multiplier ({rule_set.id}): {r.multiplier_source.source}"
                 for r in screen_results

@@ -78,6 +78,7 @@ def suggest_dose(
     boundary: tuple[float, float],
     boundary_origin: str,
     narrow_therapeutic_index: bool = False,
+    mechanism_parts: tuple[tuple[str, float], ...] = (),
 ) -> DoseSuggestion:
     """Suggest a victim dose or interval that restores the reference exposure.
 
@@ -96,6 +97,10 @@ def suggest_dose(
         dose not above the exact dose.
     boundary
         The no-effect boundary (lower, upper) of AUC ratios.
+    mechanism_parts
+        For mixed effects (inhibition and induction), (mechanism, AUC ratio
+        with that mechanism alone) pairs: the suggestion then states the net and
+        each part, and warns when a part alone lies outside the boundary.
     """
     lower, upper = boundary
     exact = usual_dose / auc_ratio
@@ -179,6 +184,16 @@ def suggest_dose(
             reasons.append("Neither a dose nor an interval change is feasible: avoid the combination or monitor closely.")
         if increase:
             cautions.insert(0, INCREASE_CAUTION)
+    if mechanism_parts:
+        shown = ", ".join(f"{name} alone {ratio:.3g}" for name, ratio in mechanism_parts)
+        reasons.append(f"Mixed effect: the net AUC ratio {auc_ratio:.3g} combines opposite mechanisms ({shown}).")
+        outside = [(n, r) for n, r in mechanism_parts if not lower <= r <= upper]
+        if outside:
+            reasons.append(
+                "A part alone lies outside the boundary: if the mechanisms do not develop together (induction builds and fades "
+                "over days to weeks; reversible inhibition follows the perpetrator's concentration at once), exposure can move "
+                f"towards {', '.join(f'{r:.3g}' for _, r in outside)} for a time; the time course shows when."
+            )
     if narrow_therapeutic_index:
         if action != "no change":
             action = "avoid or monitor"

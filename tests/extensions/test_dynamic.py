@@ -226,3 +226,34 @@ def test_missing_inputs_name_the_field() -> None:
         simulate(ok, mode="sometimes")
     with pytest.raises(InputError, match="profile"):
         simulate(ok, mode="profile")
+
+
+def test_constant_infusion_with_an_inhibitory_metabolite() -> None:
+    d = base_dict()
+    d["perpetrator"].update({"interval": "24 h", "half_life": "10 h"})
+    d["perpetrator"]["inhibits"] = [{"target": "CYP3A", "fu_inc": 1.0, **TDI}]
+    d["perpetrator"]["metabolites"] = [{"name": "M1", "cmax": "0.5 uM", "fu_plasma": 0.2,
+                                        "inhibits": [{"target": "CYP3A", "ki": "1 uM", "emax": 2.0, "ec50": "1 uM"}]}]
+    d["victim"].update({"half_life": "6 h"})
+    a = assess(scenario_from_dict(d))
+    tc = simulate(a, mode="constant", days=40, washout_days=2, rtol=1e-9, atol=1e-12)
+    assert tc.steady_state_ratio == pytest.approx(a.prediction.total, rel=1e-6)
+    reg = simulate(a, days=20)
+    assert any("metabolite" in n for n in reg.notes)
+
+
+def test_intravenous_perpetrator_reproduces_cmax() -> None:
+    a = _assess(REV, perp={"route": "intravenous"})
+    tc = simulate(a, days=10, points_per_interval=96)
+    # bolus model: the peak right after each dose equals Cmax,ss (1 uM) at steady state
+    assert max(tc.perpetrator_um) == pytest.approx(1.0, rel=1e-6)
+    assert tc.steady_state_ratio <= a.prediction.total
+
+
+def test_window_spans_both_dosing_intervals() -> None:
+    from interact.dynamic import _lcm_window
+
+    assert _lcm_window(12.0, 24.0) == 24.0
+    assert _lcm_window(8.0, 12.0) == 24.0
+    assert _lcm_window(24.0, 24.0) == 24.0
+    assert _lcm_window(24.0, 7 * 24.0 + 1 / 60) == 192.0  # no common multiple within a week: next victim multiple

@@ -251,3 +251,17 @@ def test_kdeg_and_mechanisms_appear_in_text_and_json() -> None:
     crit = {r["criterion"] for r in data["screen"]}
     assert {"tdi-liver", "induction-liver", "induction-fold-change"} <= crit
     assert all(math.isfinite(r["value"]) for r in data["screen"])
+
+
+def test_mixed_effect_dose_text_reports_net_and_parts() -> None:
+    a = assess(scenario_from_dict(_scenario(**TDI, **IND)))
+    text = " ".join(a.dose.reasons)
+    assert "Mixed effect" in text and "induction alone" in text and "time-dependent alone" in text
+    assert f"{a.prediction.total:.3g}" in text
+
+
+def test_default_calibration_factor_is_listed_as_from_memory() -> None:
+    a = assess(scenario_from_dict(_scenario(**IND)))
+    assert any("calibration factor d = 1" in m for m in a.memory_values)
+    given = assess(scenario_from_dict(_scenario(**IND, calibration=0.8)))
+    assert not any("calibration factor d" in m for m in given.memory_values)
