@@ -119,6 +119,35 @@ def _jacobian(name: str):  # type: ignore[no-untyped-def]
     return jac
 
 
+def _fused(name: str):  # type: ignore[no-untyped-def]
+    def both(u: Array, x: Array) -> tuple[Array, Array]:
+        s, i = x[0], x[1]
+        kc, ku = _kappas(name, u)
+        a = 1.0 + i * kc
+        d = u[1] * a + s * (1.0 + i * ku)
+        g = s / d
+        f = u[0] * g
+        fd = f / d
+        jac = np.empty((s.size, _NPAR[name]))
+        jac[:, 0] = g
+        jac[:, 1] = -fd * a
+        if name == "competitive":
+            jac[:, 2] = -fd * u[1] * i
+        elif name == "uncompetitive":
+            jac[:, 2] = -fd * s * i
+        elif name == "noncompetitive":
+            jac[:, 2] = -fd * (u[1] + s) * i
+        elif name == "mixed":
+            jac[:, 2] = -fd * u[1] * i
+            jac[:, 3] = -fd * s * i
+        return f, jac
+
+    return both
+
+
+_NPAR: Final = {"none": 2, "competitive": 3, "noncompetitive": 3, "uncompetitive": 3, "mixed": 4}
+
+
 def inhibition_model(name: str, velocity_unit: str = "") -> CurveModel:
     """The fitting model for ``name`` (one of :data:`MODELS`), in 1/Ki form.
 
@@ -142,6 +171,7 @@ def inhibition_model(name: str, velocity_unit: str = "") -> CurveModel:
         reported_names=("Vmax", "Km", *const),
         units=(velocity_unit, "uM", *("uM",) * len(const)),
         equation=EQUATIONS[name],
+        function_jacobian=_fused(name),
     )
 
 
@@ -419,11 +449,22 @@ def _substrate_model(velocity_unit: str) -> CurveModel:
         v = u[0] * s / d
         return np.column_stack((s / d, -v / d, -v * s**2 / d))
 
+    def both(u: Array, s: Array) -> tuple[Array, Array]:
+        d = u[1] + s * (1.0 + s * u[2])
+        g = s / d
+        v = u[0] * g
+        out = np.empty((s.size, 3))
+        out[:, 0] = g
+        out[:, 1] = -v / d
+        out[:, 2] = out[:, 1] * s**2
+        return v, out
+
     return CurveModel(
         name="substrate-inhibition",
         parameters=("vmax", "km", "1/Ksi"),
         function=f,
         jacobian=jac,
+        function_jacobian=both,
         lower=(0.0, 0.0, 0.0),
         upper=(math.inf,) * 3,
         reported=("value", "value", "inverse"),
@@ -458,12 +499,12 @@ def fit_substrate_inhibition(data: IncubationData, *, weights: str = "none") -> 
 
 
 def _f_test(reduced_name: str, reduced: FitResult, full_name: str, full: FitResult) -> FTest:
-    from scipy.stats import f as f_dist
+    from scipy.special import fdtrc
 
     df_num = reduced.df - full.df
     drop = max(reduced.rss - full.rss, 0.0)
     f_val = (drop / df_num) / (full.rss / full.df) if full.rss > 0 else math.inf
-    p_val = float(f_dist.sf(f_val, df_num, full.df)) if math.isfinite(f_val) else 0.0
+    p_val = float(fdtrc(df_num, full.df, f_val)) if math.isfinite(f_val) else 0.0
     return FTest(reduced=reduced_name, full=full_name, f=f_val, df_num=df_num, df_den=full.df, p_value=p_val)
 
 
