@@ -11,10 +11,14 @@ import argparse
 import math
 import sys
 from collections.abc import Callable, Sequence
+from typing import TYPE_CHECKING
 from pathlib import Path
 
 from . import __version__
 from .errors import InputError, InteractError
+
+if TYPE_CHECKING:
+    from .kinetics.binding import BindingPrediction
 
 __all__ = ["main"]
 
@@ -385,7 +389,7 @@ def _cmd_fit(args: argparse.Namespace) -> int:
     return 0
 
 
-def _fit_binding(args: argparse.Namespace) -> tuple[float | None, str, object | None]:
+def _fit_binding(args: argparse.Namespace) -> tuple[float | None, str, BindingPrediction | None]:
     from . import units
 
     if args.fu_inc is not None and args.logp is not None:

@@ -132,7 +132,9 @@ def predict_fu_inc(
             raise InputError("cells (10^6/mL)", n, "must be above zero")
         clo, chi = eq.span("cell_range_million_per_ml")
         if not clo <= n <= chi:
-            warnings.append(f"cell density {n:g} x 10^6/mL is outside {clo:g}-{chi:g} ({eq.item('cell_range_million_per_ml').status})")
+            warnings.append(
+                f"cell density {n:g} x 10^6/mL is outside {clo:g}-{chi:g} ({eq.item('cell_range_million_per_ml').status})"
+            )
         accurate = eq.number("accurate_below_lipophilicity")
         if x > accurate:
             warnings.append(f"logP/D {x:g} is above {accurate:g}, where {eq.title} is less accurate (S17)")
@@ -211,6 +213,14 @@ def unbound_constant(
         return None if x is None else x * fu
 
     return UnboundConstant(
-        name=name, ki_um=ki_um, low_um=low_um, high_um=high_um, interval=interval, fu_inc=fu, fu_origin=fu_origin,
-        ki_u_um=ki_um * fu, low_u_um=scale(low_um), high_u_um=scale(high_um),
+        name=name,
+        ki_um=ki_um,
+        low_um=low_um,
+        high_um=high_um,
+        interval=interval,
+        fu_inc=fu,
+        fu_origin=fu_origin,
+        ki_u_um=ki_um * fu,
+        low_u_um=scale(low_um),
+        high_u_um=scale(high_um),
     )

@@ -328,7 +328,9 @@ def read_ic50_csv(path: str | Path, *, inhibitor_unit: str | None = None) -> IC5
     try:
         text = p.read_text(encoding="utf-8-sig")
     except (OSError, UnicodeDecodeError) as exc:
-        raise InputError("data", str(p), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+        raise InputError(
+            "data", str(p), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})"
+        ) from None
     return parse_ic50_csv(text, source=p.name, inhibitor_unit=inhibitor_unit)
 
 
@@ -342,15 +344,19 @@ def parse_ic50_csv(text: str, *, source: str = "data", inhibitor_unit: str | Non
     resp_key = "response" if "response" in cols else ("velocity" if "velocity" in cols else None)
     if "inhibitor" not in cols or resp_key is None:
         raise InputError(
-            f"{source} header (line {header_line})", ",".join(header),
-            "lacks the columns for an IC50 curve; expected inhibitor (with its unit, e.g. 'inhibitor (uM)') and response (or activity, velocity)",
+            f"{source} header (line {header_line})",
+            ",".join(header),
+            "lacks the columns for an IC50 curve; expected inhibitor (with its unit, e.g. 'inhibitor (uM)') and "
+            "response (or activity, velocity)",
         )
     factor = _unit_factor("inhibitor", cols["inhibitor"][1], inhibitor_unit, header_line)
     width = max(cols["inhibitor"][0], cols[resp_key][0]) + 1
     xs, ys, lines = [], [], []
     for line, row in rows[1:]:
         if len(row) < width:
-            raise InputError(f"{source} line {line}", ",".join(row), f"has {len(row)} fields; expected at least {width} (as in the header)")
+            raise InputError(
+                f"{source} line {line}", ",".join(row), f"has {len(row)} fields; expected at least {width} (as in the header)"
+            )
         x = _number(row[cols["inhibitor"][0]], "inhibitor", line, source) * factor
         if x < 0:
             raise InputError(f"{source} line {line}, inhibitor", row[cols["inhibitor"][0]], "must not be negative")
@@ -359,4 +365,6 @@ def parse_ic50_csv(text: str, *, source: str = "data", inhibitor_unit: str | Non
         lines.append(line)
     if not lines:
         raise InputError(source, "no data rows", "expected rows of inhibitor and response under the header")
-    return IC50Data(inhibitor_um=tuple(xs), response=tuple(ys), response_unit=cols[resp_key][1], lines=tuple(lines), source=source)
+    return IC50Data(
+        inhibitor_um=tuple(xs), response=tuple(ys), response_unit=cols[resp_key][1], lines=tuple(lines), source=source
+    )

@@ -239,7 +239,7 @@ def _lm(
     u0: Array,
     lo: Array,
     hi: Array,
-    fixed: Array,
+    fixed: NDArray[np.bool_],
     *,
     max_iter: int = 200,
     ftol: float = 1e-15,
@@ -384,7 +384,7 @@ def _profile_side(
     s2: float,
     lo: Array,
     hi: Array,
-    fixed: Array,
+    fixed: NDArray[np.bool_],
 ) -> float:
     """The profile limit of parameter ``j`` on one side (fitting scale); +/-inf or the bound when open."""
     mask = fixed.copy()

@@ -327,11 +327,13 @@ def _check_design(data: IncubationData, models: Sequence[str]) -> None:
     s, i, _ = data.arrays()
     if np.unique(s).size < 3:
         raise FitError(
-            f"{data.source or 'data'}: {np.unique(s).size} substrate level(s); a Michaelis-Menten fit needs at least 3 distinct substrate concentrations"
+            f"{data.source or 'data'}: {np.unique(s).size} substrate level(s); a Michaelis-Menten fit needs at least "
+            f"3 distinct substrate concentrations"
         )
     if any(m != "none" for m in models) and np.unique(i).size < 2:
         raise FitError(
-            f"{data.source or 'data'}: one inhibitor level only ({i[0]:g} uM); inhibition models need at least two (a control without inhibitor and one or more levels)"
+            f"{data.source or 'data'}: one inhibitor level only ({i[0]:g} uM); inhibition models need at least two (a "
+            f"control without inhibitor and one or more levels)"
         )
 
 
@@ -427,7 +429,7 @@ def _step_hints(i: Array) -> float:
 
 
 def _mixed_starts(fits: dict[str, FitResult]) -> list[tuple[float, ...]]:
-    out = []
+    out: list[tuple[float, ...]] = []
     if "competitive" in fits and fits["competitive"].success:
         vm, km, kc = fits["competitive"].theta
         out.append((vm, km, kc, 1e-3 * kc))
@@ -560,14 +562,16 @@ def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests
             unidentifiable.append("Kic")
             support = weight["mixed"] + weight["uncompetitive"]
             notes.append(
-                "The mixed fit collapses onto the uncompetitive model: its competitive constant Kic runs to infinity (unbounded), so it is not identifiable."
+                "The mixed fit collapses onto the uncompetitive model: its competitive constant Kic runs to infinity "
+                "(unbounded), so it is not identifiable."
             )
         elif _at_bound(mixed, "Kiu") and "competitive" in weight:
             chosen = "competitive"
             unidentifiable.append("Kiu")
             support = weight["mixed"] + weight["competitive"]
             notes.append(
-                "The mixed fit collapses onto the competitive model: its uncompetitive constant Kiu runs to infinity (unbounded), so it is not identifiable."
+                "The mixed fit collapses onto the competitive model: its uncompetitive constant Kiu runs to infinity "
+                "(unbounded), so it is not identifiable."
             )
         else:
             simpler = [t for t in tests if t.full == "mixed" and not t.significant and t.reduced in weight]
@@ -602,14 +606,18 @@ def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests
         text += f"; next best {LABELS[runner.model]} at delta AICc {delta:.1f}"
     text += "."
     if strength == "weak" and runner is not None:
-        text += f" The data do not clearly separate {chosen} from {runner.model}; more substrate levels around Km and inhibitor levels around Ki would help."
+        text += (
+            f" The data do not clearly separate {chosen} from {runner.model}; more substrate levels around Km and "
+            "inhibitor levels around Ki would help."
+        )
     for name in ("Ki", "Kic", "Kiu"):
         if name in fit.names:
             e = fit.estimate(name)
             if e.profile_high == math.inf and name not in unidentifiable:
                 unidentifiable.append(name)
                 notes.append(
-                    f"{name} has no upper confidence limit (profile never crosses): inhibition is too weak at the concentrations tested to bound it."
+                    f"{name} has no upper confidence limit (profile never crosses): inhibition is too weak at the "
+                    f"concentrations tested to bound it."
                 )
     if notes:
         text += " " + " ".join(notes)
@@ -650,11 +658,13 @@ def _design_warnings(
     if math.isfinite(km) and km > 0:
         if s.min() > km:
             out.append(
-                f"Lowest substrate concentration {s.min():.3g} uM is above Km ({km:.3g} uM): Km and the mechanism are poorly defined; include concentrations below Km."
+                f"Lowest substrate concentration {s.min():.3g} uM is above Km ({km:.3g} uM): Km and the mechanism are "
+                f"poorly defined; include concentrations below Km."
             )
         elif s.max() < km:
             out.append(
-                f"Highest substrate concentration {s.max():.3g} uM is below Km ({km:.3g} uM): Vmax and the mechanism are poorly defined; include concentrations above Km."
+                f"Highest substrate concentration {s.max():.3g} uM is below Km ({km:.3g} uM): Vmax and the mechanism "
+                f"are poorly defined; include concentrations above Km."
             )
         elif s.min() > 0.5 * km or s.max() < 2.0 * km:
             out.append(
@@ -676,7 +686,8 @@ def _design_warnings(
                 break
     if est is not None and levels.size and levels.max() < est.value:
         out.append(
-            f"Highest inhibitor concentration {levels.max():.3g} uM is below {est.name} ({est.value:.3g} uM): inhibition is slight and {est.name} is poorly defined."
+            f"Highest inhibitor concentration {levels.max():.3g} uM is below {est.name} ({est.value:.3g} uM): "
+            f"inhibition is slight and {est.name} is poorly defined."
         )
     if data.depletion_pct is not None:
         dep = np.asarray(data.depletion_pct)
@@ -685,7 +696,8 @@ def _design_warnings(
             worst = float(dep.max())
             limit = " and above the 20 % limit (FDA, from memory)" if worst > DEPLETION_LIMIT_PCT else ""
             out.append(
-                f"Substrate depletion above 10 % on {hi.size} row(s) (lines {_lines(data, hi.tolist())}; up to {worst:.3g} %){limit}: "
+                f"Substrate depletion above 10 % on {hi.size} row(s) (lines {_lines(data, hi.tolist())}; up to "
+                f"{worst:.3g} %){limit}: "
                 "initial-rate conditions are doubtful there (S1: keep turnover below 10 % for kinetic constants)."
             )
     else:

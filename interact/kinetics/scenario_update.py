@@ -105,7 +105,7 @@ def update_inhibition_text(
         entry["target"] = resolved.name
         inhibits.append(entry)
     body = entry.value.body
-    trail = []
+    trail: list[Any] = []
     while body and body[-1][0] is None and isinstance(body[-1][1], Whitespace):
         trail.insert(0, body.pop())
     stamp = origin.split(",")[-1].strip() if "," in origin else "fit"

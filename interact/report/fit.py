@@ -96,7 +96,19 @@ def fit_sections(
         Section(
             title="Model comparison",
             blocks=(
-                Table(headers=("model", "p", "RSS", "residual SD", "AICc", "dAICc", "weight", f"constants (uM) [{level} profile interval]"), rows=tuple(rows)),
+                Table(
+                    headers=(
+                        "model",
+                        "p",
+                        "RSS",
+                        "residual SD",
+                        "AICc",
+                        "dAICc",
+                        "weight",
+                        f"constants (uM) [{level} profile interval]",
+                    ),
+                    rows=tuple(rows),
+                ),
             ),
         )
     )
@@ -195,7 +207,9 @@ def _fit_dict(f: FitResult) -> dict[str, Any]:
     }
 
 
-def comparison_to_dict(comp: ModelComparison, *, unbound: UnboundConstant | None = None, binding: BindingPrediction | None = None) -> dict[str, Any]:
+def comparison_to_dict(
+    comp: ModelComparison, *, unbound: UnboundConstant | None = None, binding: BindingPrediction | None = None
+) -> dict[str, Any]:
     """Plain data for JSON (non-finite numbers become null with an explicit flag)."""
     d = comp.data
     out: dict[str, Any] = {
@@ -213,7 +227,8 @@ def comparison_to_dict(comp: ModelComparison, *, unbound: UnboundConstant | None
             {"model": r.model, "aicc": _num(r.aicc), "delta_aicc": _num(r.delta_aicc), "weight": r.weight} for r in comp.ranking
         ],
         "f_tests": [
-            {"reduced": t.reduced, "full": t.full, "f": _num(t.f), "df": [t.df_num, t.df_den], "p_value": t.p_value} for t in comp.f_tests
+            {"reduced": t.reduced, "full": t.full, "f": _num(t.f), "df": [t.df_num, t.df_den], "p_value": t.p_value}
+            for t in comp.f_tests
         ],
         "verdict": {
             "model": comp.verdict.model,
@@ -272,7 +287,12 @@ def format_comparison(
 
 
 def ic50_to_dict(result: IC50Fit, ki: KiFromIC50 | None = None) -> dict[str, Any]:
-    out: dict[str, Any] = {"source": result.source, "fit": _fit_dict(result.fit), "warnings": list(result.warnings), "caution": FIT_CAUTION}
+    out: dict[str, Any] = {
+        "source": result.source,
+        "fit": _fit_dict(result.fit),
+        "warnings": list(result.warnings),
+        "caution": FIT_CAUTION,
+    }
     if ki is not None:
         out["cheng_prusoff"] = {
             "mechanism": ki.mechanism,
@@ -296,7 +316,8 @@ def format_ic50(result: IC50Fit, ki: KiFromIC50 | None = None, fmt_name: str = "
         Section(
             title=f"IC50 curve ({f.model})",
             blocks=(
-                f"{result.source or 'data'}: {f.n} rows; {f.equation}; residual SD {fmt(f.residual_sd)} on {f.df} df; {f.message}.",
+                f"{result.source or 'data'}: {f.n} rows; {f.equation}; residual SD {fmt(f.residual_sd)} on {f.df} df; "
+                f"{f.message}.",
                 Table(
                     headers=("parameter", "estimate", "unit", "SE", f"{level} CI (asymptotic)", f"{level} CI (profile)", "note"),
                     rows=tuple(_est_cells(e) for e in f.estimates),

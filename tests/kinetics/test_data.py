@@ -11,7 +11,10 @@ from .conftest import DATA
 
 
 def test_reads_units_from_headers_and_converts_to_micromolar() -> None:
-    text = "# invented example rows\nSubstrate (nM),inhibitor [uM],velocity (pmol/min/mg),depletion (%)\n500,0,10.5,3\n500,0,10.9,4\n\n2000,1.5,12,8\n"
+    text = (
+        "# invented example rows\nSubstrate (nM),inhibitor [uM],velocity (pmol/min/mg),depletion "
+        "(%)\n500,0,10.5,3\n500,0,10.9,4\n\n2000,1.5,12,8\n"
+    )
     data = parse_incubation_csv(text)
     assert data.substrate_um == (0.5, 0.5, 2.0)
     assert data.inhibitor_um == (0.0, 0.0, 1.5)

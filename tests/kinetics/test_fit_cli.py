@@ -56,7 +56,9 @@ def test_into_updates_the_scenario_keeps_comments_and_assess_uses_it(tmp_path: P
     scenario = tmp_path / "scenario.toml"
     shutil.copy(demo_path(), scenario)
     before = scenario.read_text(encoding="utf-8")
-    assert main(["fit", VMKMKI, *UNITS, "--into", str(scenario), "--target", "CYP3A4", "--fu-inc", "0.5", "--format", "json"]) == 0
+    assert (
+        main(["fit", VMKMKI, *UNITS, "--into", str(scenario), "--target", "CYP3A4", "--fu-inc", "0.5", "--format", "json"]) == 0
+    )
     fitted = json.loads(capsys.readouterr().out)["unbound"]["ki_um"]
     after = scenario.read_text(encoding="utf-8")
     for line in before.splitlines():  # every comment line the user wrote is still there
@@ -82,7 +84,7 @@ def test_into_creates_a_missing_entry_and_replaces_ic50(tmp_path: Path, capsys: 
     assert main(["fit", VMKMKI, *UNITS, "--into", str(scenario), "--target", "CYP2C9", "--no-terminal-plot"]) == 0
     capsys.readouterr()
     text = scenario.read_text(encoding="utf-8")
-    assert 'replaced by the fitted Ki' in text and 'ic50 = "14 uM"' in text  # kept as a comment
+    assert "replaced by the fitted Ki" in text and 'ic50 = "14 uM"' in text  # kept as a comment
     loaded = load_scenario(scenario)
     targets = {i.target: i for i in loaded.perpetrator.inhibits}
     assert targets["CYP2D6"].ki is not None and targets["CYP2C9"].ic50 is None

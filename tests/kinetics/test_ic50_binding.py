@@ -78,7 +78,11 @@ def test_binding_table_rows_name_source_and_status() -> None:
             assert item.source and item.status in ("seen in source", "from memory", "common practice")
     # coefficients as recalled in the project's reference notes, section 4 (from memory)
     assert (eqs["austin-2002"].number("a"), eqs["austin-2002"].number("b")) == (0.56, -1.41)
-    assert (eqs["hallifax-2006"].number("a2"), eqs["hallifax-2006"].number("a1"), eqs["hallifax-2006"].number("b")) == (0.072, 0.067, -1.126)
+    assert (eqs["hallifax-2006"].number("a2"), eqs["hallifax-2006"].number("a1"), eqs["hallifax-2006"].number("b")) == (
+        0.072,
+        0.067,
+        -1.126,
+    )
 
 
 @pytest.mark.parametrize("logp", [-0.5, 1.0, 2.5, 4.0])
