@@ -319,6 +319,9 @@ def timing_advice(
     mechanisms: tuple[str, ...],
     usual_dose: float | None = None,
     dose_unit: str = "",
+    after_stop_ratio: float | None = None,
+    after_stop_h: float | None = None,
+    half_offset_h: float | None = None,
 ) -> tuple[str, ...]:
     """When to change the victim's dose and when to go back, from a simulated time course.
 
@@ -343,6 +346,12 @@ def timing_advice(
     usual_dose, dose_unit
         The victim's usual dose, to show the dose the dynamic ratio implies
         when it differs from the static one by more than 25 %.
+    half_offset_h
+        Time (h) after stopping for half the effect (log scale) to go.
+    after_stop_ratio, after_stop_h
+        The largest exposure change after stopping, and when (h after the
+        stop): a rebound across 1 (for example reversible inhibition gone at
+        once while induced enzyme lingers) is called out.
 
     Timing is read from a minimal model (one compartment, kdeg values often
     from memory); it guides monitoring, not a schedule.
@@ -388,26 +397,43 @@ def timing_advice(
             f"{steady_ratio:.3g} (the mechanisms act at different speeds): one dose change does not fit the whole course; "
             "monitor closely in the first weeks."
         )
+    if after_stop_ratio is not None and after_stop_h is not None and not lower <= after_stop_ratio <= upper and (
+        (after_stop_ratio - 1.0) * (steady_ratio - 1.0) < 0 or abs(math.log(after_stop_ratio)) > abs(ln_ss) * 1.1
+    ):
+        out.append(
+            f"After the perpetrator is stopped, exposure swings to {after_stop_ratio:.3g} times the usual about day "
+            f"{_days(after_stop_h)} of the washout (the mechanisms fade at different speeds): "
+            + ("exposure falls below the usual level, so efficacy may be lost if the reduced dose is kept; "
+               if after_stop_ratio < 1.0 else "exposure rises above the usual level; ")
+            + "adjust the dose and monitor through the washout."
+        )
     if offset_h is not None:
         why = []
         if "time-dependent" in mechanisms:
             why.append("inactivated enzyme must be resynthesised (set by kdeg)")
         if "induction" in mechanisms:
             why.append("induced enzyme returns to baseline (set by kdeg)")
-        if not why:
-            why.append("the perpetrator is eliminated")
+        if "reversible" in mechanisms or not why:
+            why.append("reversible inhibition ends as the perpetrator is eliminated")
         reason = "; ".join(why)
-        if increase:
+        half = f"half of it within {_days(half_offset_h)} days and " if half_offset_h is not None and half_offset_h < offset_h else ""
+        if offset_h <= 24.0:
             out.append(
-                f"Stop: after the perpetrator is stopped the effect fades over about {_days(offset_h)} days ({reason}); "
-                "bring the victim's dose back to the usual dose progressively over that time - keeping the higher dose "
-                "risks toxicity as induction fades."
+                f"Stop: the effect is gone within {_days(offset_h)} days of stopping ({reason}); return to the usual dose "
+                "when the perpetrator is stopped."
+            )
+        elif increase:
+            out.append(
+                f"Stop: after the perpetrator is stopped the effect fades, {half}{pct} of it within {_days(offset_h)} days "
+                f"({reason}); bring the victim's dose back to the usual dose progressively over that time - keeping the "
+                "higher dose risks toxicity as induction fades."
             )
         else:
             out.append(
-                f"Stop: after the perpetrator is stopped the effect fades over about {_days(offset_h)} days ({reason}); "
-                "return to the usual dose after that time"
-                + (", not on the day the perpetrator stops." if offset_h > 24.0 else ".")
+                f"Stop: after the perpetrator is stopped the effect fades, {half}{pct} of it within {_days(offset_h)} days "
+                f"({reason}); step back up to the usual dose over that time, fully by about day {_days(offset_h)}: "
+                "returning at once risks overexposure while the effect lasts, keeping the reduced dose too long risks "
+                "underexposure."
             )
     else:
         out.append(

@@ -127,9 +127,12 @@ class TimeCourse:
     cmax_ratio: float
     peak_ratio: float
     peak_h: float
+    after_stop_ratio: float  # the largest change after stopping (a rebound when it is on the other side of 1)
+    after_stop_h: float  # when, after stopping
     effect_fraction: float
     onset_h: float | None
     offset_h: float | None
+    half_offset_h: float | None  # after stopping, time for half the effect (log scale) to go
     settings: tuple[Setting, ...]
     kdeg_used: tuple[Setting, ...]
     warnings: tuple[str, ...]
@@ -703,16 +706,30 @@ def simulate(
             f"The exposure ratio was still changing at the end of {days:g} days of dosing: the steady state is not reached; "
             "simulate more days."
         )
-    band = (1.0 - effect_fraction) * abs(ln_ss)
-    meaningful = abs(ln_ss) >= math.log(1.01)
     on_sel = tk <= stop + 1e-9
+    off_sel = tk >= stop + window - 1e-9  # windows wholly after the last dose interval
     i_peak = int(np.argmax(np.abs(log_r[on_sel])))
+    i_after = int(np.argmax(np.abs(log_r[off_sel]))) if off_sel.any() else None
+    after_ratio = float(ratio[off_sel][i_after]) if i_after is not None else r_ss
+    after_h = float(tk[off_sel][i_after] - stop) if i_after is not None else 0.0
+    # the size of the effect: the steady change, or a larger transient one (mechanisms at different speeds)
+    scale = max(abs(ln_ss), float(np.abs(log_r[on_sel]).max()), abs(math.log(after_ratio)))
+    band = (1.0 - effect_fraction) * scale
+    meaningful = scale >= math.log(1.01)
     onset = _settle(tk, log_r, ln_ss, band, 0.0, stop) if meaningful else None
     offset = _settle(tk, log_r, 0.0, band, stop, float(tk[-1])) if meaningful else None
+    half_offset = _settle(tk, log_r, 0.0, 0.5 * scale, stop, float(tk[-1])) if meaningful else None
     if meaningful and offset is None:
         warnings.append("The effect had not faded by the end of the follow-up: simulate a longer washout.")
     if not meaningful:
-        notes.append("the dynamic effect is below 1 % at steady state: onset and offset times are not given")
+        notes.append("the dynamic effect stays below 1 %: onset and offset times are not given")
+    if meaningful and (math.log(after_ratio) * ln_ss < 0 or abs(math.log(after_ratio)) > abs(ln_ss) + band) and abs(
+        math.log(after_ratio)
+    ) > band:
+        warnings.append(
+            f"After stopping, exposure moves to {after_ratio:.3g} times baseline about {after_h / 24:.1f} days later "
+            f"(steady state while dosing: {r_ss:.3g}): the mechanisms fade at different speeds."
+        )
 
     # Cmax ratio over the last victim interval before stopping
     last = (t > stop - tau_v - 1e-9) & (t <= stop + 1e-9)
@@ -771,9 +788,12 @@ def simulate(
         cmax_ratio=cmax_ratio,
         peak_ratio=float(ratio[on_sel][i_peak]),
         peak_h=float(tk[on_sel][i_peak]),
+        after_stop_ratio=after_ratio,
+        after_stop_h=after_h,
         effect_fraction=effect_fraction,
         onset_h=onset,
         offset_h=offset,
+        half_offset_h=half_offset,
         settings=tuple(settings),
         kdeg_used=tuple(kdeg_used),
         warnings=tuple(warnings),

@@ -41,7 +41,8 @@ def timecourse_advice(tc: TimeCourse, a: Assessment) -> tuple[str, ...]:
         action=a.dose.action, steady_ratio=tc.steady_state_ratio, static_ratio=tc.static_ratio, onset_h=tc.onset_h,
         offset_h=tc.offset_h, peak_ratio=tc.peak_ratio, peak_h=tc.peak_h, boundary=a.dose.boundary,
         effect_fraction=tc.effect_fraction, follow_up_h=tc.end_h - tc.stop_h, mechanisms=a.prediction.mechanisms,
-        usual_dose=a.dose.usual_dose, dose_unit=a.dose.dose_unit,
+        usual_dose=a.dose.usual_dose, dose_unit=a.dose.dose_unit, after_stop_ratio=tc.after_stop_ratio,
+        after_stop_h=tc.after_stop_h, half_offset_h=tc.half_offset_h,
     )
 
 
@@ -65,7 +66,9 @@ def timecourse_sections(tc: TimeCourse, a: Assessment | None = None) -> list[Sec
              f"over the last {fmt(tc.window_h)} h before stopping" + ("" if tc.steady else "; NOT at steady state")),
             ("Cmax ratio, dynamic", fmt_ratio(tc.cmax_ratio), "last victim interval before stopping"),
             ("Largest change while dosing", fmt_ratio(tc.peak_ratio), f"on day {fmt(tc.peak_h / 24.0)}"),
+            ("Largest change after stopping", fmt_ratio(tc.after_stop_ratio), f"{fmt(tc.after_stop_h / 24.0)} d after the stop (windows after dosing)"),
             (f"Onset ({pct} of the effect)", _days(tc.onset_h), "after the first perpetrator dose"),
+            ("Half the effect gone", _days(tc.half_offset_h), "after the last day of dosing"),
             (f"Offset (within {1 - tc.effect_fraction:.0%} of none)", _days(tc.offset_h), "after the last day of dosing"),
             ("Perpetrator given", f"{fmt(tc.stop_h / 24.0)} d", f"followed to day {fmt(tc.end_h / 24.0)}"),
             ("Model", tc.mode, tc.solver),
@@ -100,8 +103,8 @@ def timecourse_sections(tc: TimeCourse, a: Assessment | None = None) -> list[Sec
     )
     blocks: list[str | Table | Note] = [
         summary,
-        f"Exposure ratio = victim AUC over the preceding {fmt(tc.window_h)} h with the perpetrator / without it; "
-        "enzyme amount relative to baseline (1 = unchanged).",
+        f"Exposure ratio = victim AUC over the preceding {fmt(tc.window_h)} h with the perpetrator / without it (so onset "
+        f"and offset times include a lag of up to {fmt(tc.window_h)} h); enzyme amount relative to baseline (1 = unchanged).",
         curve,
     ]
     if tc.enzymes:
@@ -133,9 +136,12 @@ def timecourse_to_dict(tc: TimeCourse, a: Assessment | None = None, *, curves: b
         "cmax_ratio": tc.cmax_ratio,
         "peak_ratio": tc.peak_ratio,
         "peak_h": tc.peak_h,
+        "after_stop_ratio": tc.after_stop_ratio,
+        "after_stop_h": tc.after_stop_h,
         "effect_fraction": tc.effect_fraction,
         "onset_h": _num(tc.onset_h),
         "offset_h": _num(tc.offset_h),
+        "half_offset_h": _num(tc.half_offset_h),
         "stop_h": tc.stop_h,
         "end_h": tc.end_h,
         "solver": tc.solver,

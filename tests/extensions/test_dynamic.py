@@ -257,3 +257,15 @@ def test_window_spans_both_dosing_intervals() -> None:
     assert _lcm_window(8.0, 12.0) == 24.0
     assert _lcm_window(24.0, 24.0) == 24.0
     assert _lcm_window(24.0, 7 * 24.0 + 1 / 60) == 192.0  # no common multiple within a week: next victim multiple
+
+
+def test_rebound_below_baseline_after_stopping_a_reversible_inhibitor_that_induces() -> None:
+    # algebra of the model: after stopping, the reversible term returns to 1 as the perpetrator is eliminated,
+    # while induced enzyme (E > 1) decays only with kdeg, so exposure falls below baseline for a while
+    a = _assess({"ki": "0.05 uM", "emax": 4.0, "ec50": "1 uM"}, perp={"half_life": "3 h"}, victim={"fg": 1.0})
+    tc = simulate(a, days=20)
+    assert tc.steady_state_ratio > 1.25
+    assert tc.enzymes[0].amount_at_stop > 1.0
+    assert tc.after_stop_ratio < 1.0
+    assert any("After stopping" in w for w in tc.warnings)
+    assert tc.half_offset_h is not None and tc.half_offset_h <= tc.offset_h

@@ -121,13 +121,19 @@ def _advice(**kw: object) -> tuple[str, ...]:
 
 def test_timing_advice_covers_start_stop_and_limits() -> None:
     text = " ".join(_advice())
-    assert "Start:" in text and "Stop:" in text and "resynthesised" in text and "not on the day" in text
+    assert "Start:" in text and "Stop:" in text and "resynthesised" in text and "returning at once risks overexposure" in text
     assert "guide for monitoring, not a schedule" in text
     inducer = " ".join(_advice(action="increase dose", steady_ratio=0.4, static_ratio=0.35, peak_ratio=0.4,
                                mechanisms=("induction",)))
     assert "stepwise" in inducer and "risks toxicity" in inducer
     fast = " ".join(_advice(onset_h=6.0, offset_h=12.0, mechanisms=("reversible",)))
-    assert "when the perpetrator is started" in fast and "eliminated" in fast and "not on the day" not in fast
+    assert "when the perpetrator is started" in fast and "eliminated" in fast
+    assert "return to the usual dose when the perpetrator is stopped" in fast
+    halves = " ".join(_advice(half_offset_h=40.0))
+    assert "half of it within 1.7 days" in halves
+    rebound = " ".join(_advice(steady_ratio=2.0, after_stop_ratio=0.6, after_stop_h=30.0,
+                               mechanisms=("reversible", "induction")))
+    assert "swings to 0.6" in rebound and "efficacy may be lost" in rebound
     none = _advice(action="no change", steady_ratio=1.1, static_ratio=1.15, peak_ratio=1.1)
     assert any("no dose timing applies" in x for x in none)
     never = " ".join(_advice(offset_h=None))
