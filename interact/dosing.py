@@ -68,6 +68,11 @@ def _candidates(strengths: tuple[float, ...]) -> list[tuple[float, str]]:
     return sorted(out.items())
 
 
+def _made_of(units_text: str, dose_unit: str) -> str:
+    """' (2 x 2.5 mg)' for a dose of several units; '' for a single unit."""
+    return f" ({units_text} {dose_unit})" if " x " in units_text else ""
+
+
 def suggest_dose(
     *,
     auc_ratio: float,
@@ -136,15 +141,15 @@ def suggest_dose(
                 ratio_dose = auc_ratio * chosen / usual_dose
                 reasons.append(
                     f"Available dose bringing exposure back inside the boundary, closest to the usual exposure: "
-                    f"{chosen:g} {dose_unit} ({chosen_units} {dose_unit}), predicted exposure ratio {ratio_dose:.3g} "
+                    f"{chosen:g} {dose_unit}{_made_of(chosen_units, dose_unit)}, predicted exposure ratio {ratio_dose:.3g} "
                     "against the usual regimen alone."
                 )
             elif fitting:
                 chosen, chosen_units = fitting[-1]
                 ratio_dose = auc_ratio * chosen / usual_dose
                 reasons.append(
-                    f"No available dose lands inside the boundary; nearest not above the exact dose: {chosen:g} {dose_unit} "
-                    f"({chosen_units} {dose_unit}), predicted exposure ratio {ratio_dose:.3g} against the usual regimen alone."
+                    f"No available dose lands inside the boundary; nearest not above the exact dose: {chosen:g} {dose_unit}"
+                    f"{_made_of(chosen_units, dose_unit)}, predicted exposure ratio {ratio_dose:.3g} against the usual regimen alone."
                 )
                 if ratio_dose < lower:
                     reasons.append(
