@@ -242,6 +242,38 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
     return 0
 
 
+def _cmd_report(args: argparse.Namespace) -> int:
+    from datetime import UTC, datetime
+
+    from .assessment import assess
+    from .report.html import render_report_html, render_report_markdown, report_parts
+    from .scenario import loads_scenario
+    from .uncertainty import run_uncertainty, sensitivity
+
+    path = Path(args.scenario)
+    try:
+        raw = path.read_bytes()
+        text = raw.decode("utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise InputError("scenario", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+    result = assess(loads_scenario(text, source=str(path)), rules=args.rules)
+    spec, vary = _uncertainty_spec(args)
+    spread = None
+    if vary:
+        spread = run_uncertainty(
+            result, vary, samples=args.samples if args.samples is not None else (spec.samples or 10_000),
+            seed=args.seed if args.seed is not None else (spec.seed if spec.seed is not None else 0),
+            method=args.method or spec.method or "lhs",
+        )
+    parts = report_parts(result, spread=spread, sens=sensitivity(result, vary), scenario_bytes=raw, source_name=path.name,
+                         generated_at=datetime.now(UTC))
+    suffix = Path(args.output or "").suffix.lower()
+    fmt_name = args.format or ("markdown" if suffix in (".md", ".markdown") else "html")
+    text_out = render_report_markdown(result, parts) if fmt_name == "markdown" else render_report_html(result, parts)
+    _out(text_out, args.output)
+    return 0
+
+
 def _parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="interact",
@@ -323,6 +355,18 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--top", type=int, metavar="N", help="write only the N worst pairs")
     p.add_argument("-q", "--quiet", action="store_true", help="no progress bar or summary line")
     p.set_defaults(run=_cmd_screen_batch)
+
+    p = sub.add_parser("report", help="a self-contained HTML (or Markdown) report of a scenario, with uncertainty and sensitivity")
+    p.add_argument("scenario", metavar="SCENARIO.toml")
+    p.add_argument("-o", "--output", metavar="FILE", help="write to FILE (.html or .md) instead of standard output")
+    p.add_argument("--format", choices=("html", "markdown"), help="default: from the file name, else html")
+    p.add_argument("--rules", metavar="NAME|PATH", help="rule set (default: the scenario's 'rules' key, else ich-m12-2024)")
+    p.add_argument("--vary", action="append", metavar="PATH=SPEC", help="an input's distribution, as for 'interact uncertainty' (repeatable)")
+    p.add_argument("--spec", metavar="FILE.toml", help="a file with a [vary] table and an optional [sampling] table")
+    p.add_argument("--samples", type=int, metavar="N", help="number of samples (default 10000)")
+    p.add_argument("--seed", type=int, metavar="S", help="random seed (default 0)")
+    p.add_argument("--method", choices=("mc", "lhs"), help="mc: Monte Carlo; lhs: Latin hypercube (default)")
+    p.set_defaults(run=_cmd_report)
 
     for register in _EXTRA_COMMANDS:
         register(sub)

@@ -46,7 +46,7 @@ import pint
 from numpy.typing import NDArray
 
 from . import units
-from .arrays import ACTIONS, band_codes, band_labels, dose_action_codes, dose_candidates
+from .arrays import ACTIONS, band_codes, band_labels, dose_action_codes_by_victim, dose_candidates
 from .assessment import Assessment, _kdeg
 from .errors import InputError
 from .exposure import enterocyte_um, unbound_cmax_um, unbound_inlet_um
@@ -467,28 +467,23 @@ class ScenarioModel:
                     tdi = True
                 if c.emax is not None and c.ec50 is not None:
                     effect = effect + get(c.calibration) * get(c.emax) * conc / (get(c.ec50) + conc)
-            rev = reversible_term(ratio)
-            inact: Any = 1.0
+            act = reversible_term(ratio)
             if tdi and kdeg_path is not None:
-                inact = np.where(np.equal(kobs, 0.0), 1.0, inactivation_term(kobs, get(kdeg_path)))
-            return rev * inact * induction_term(effect)
+                act = act * np.where(np.equal(kobs, 0.0), 1.0, inactivation_term(kobs, get(kdeg_path)))
+            if not (isinstance(effect, float) and effect == 0.0):
+                act = act * induction_term(effect)
+            return act  # reversible x inactivation x induction; multiplying by an exact 1 is skipped (it changes nothing)
 
         fms = [get(path) for _, path in self._pathways]
         acts = [activity(enzyme, liver_conc, self._kdeg.get(enzyme, (None, None))[0]) for enzyme, _ in self._pathways]
-        if fms:
-            f = np.stack(np.broadcast_arrays(*fms, *acts)[: len(fms)], axis=-1)
-            act = np.stack(np.broadcast_arrays(*fms, *acts)[len(fms):], axis=-1)
-            if f.shape[-1] < 8:
-                liver = liver_ratio(f, act)  # numpy sums fewer than 8 terms in order, as predict() does
-            else:
-                weighted: Any = 0.0
-                total_fm: Any = 0.0
-                for k in range(f.shape[-1]):
-                    weighted = weighted + f[..., k] * act[..., k]
-                    total_fm = total_fm + f[..., k]
-                liver = 1.0 / (weighted + 1.0 - total_fm)
-        else:
-            liver = np.asarray(1.0)
+        # AUCR_liver = 1 / (sum fm x activity + 1 - sum fm)  (interact.prediction.liver_ratio), summed term by
+        # term in pathway order as predict() does, so that point values give its result to the last bit
+        weighted: Any = 0.0
+        total_fm: Any = 0.0
+        for f, act in zip(fms, acts, strict=True):
+            weighted = weighted + f * act
+            total_fm = total_fm + f
+        liver = 1.0 / (weighted + 1.0 - total_fm)
         if self._gut_enzyme is not None:
             gut = gut_ratio(get("victim.fg"), activity(self._gut_enzyme, gut_conc, self._kdeg.get(self._gut_enzyme, (None, None))[1]))
         else:
@@ -501,11 +496,13 @@ class ScenarioModel:
         d = self.assessment.dose
         strengths = tuple(units.magnitude(q, d.dose_unit) for q in self.assessment.scenario.victim.strengths)
         cand = dose_candidates([strengths])[0]
-        return dose_action_codes(
-            total, usual_dose=d.usual_dose, interval_h=d.usual_interval_h, candidates=cand,
-            lower=d.boundary[0], upper=d.boundary[1],
-            narrow_therapeutic_index=self.assessment.scenario.victim.narrow_therapeutic_index,
+        r = np.asarray(total, dtype=float)
+        codes = dose_action_codes_by_victim(
+            r.reshape(-1, 1), usual_dose=np.array([d.usual_dose]), interval_h=np.array([d.usual_interval_h]),
+            candidates=cand[None, :], lower=np.array([d.boundary[0]]), upper=np.array([d.boundary[1]]),
+            narrow_therapeutic_index=np.array([self.assessment.scenario.victim.narrow_therapeutic_index]),
         )
+        return codes.reshape(r.shape)
 
 
 # --------------------------------------------------------------------------- declarations
@@ -669,20 +666,33 @@ def run_uncertainty(
         raise InputError("vary", "nothing", "declares no uncertain input; give --vary PATH=SPEC or a --spec file")
     drawn = _draw(pairs, samples, method, seed)
     adjusted: dict[str, int] = {}
-    for inp, _ in pairs:
+    for inp, dist in pairs:
         x = drawn.get(inp.path)
+        adjusted[inp.path] = 0
         if x is None:
-            adjusted[inp.path] = 0
             continue
-        low = _TINY if not inp.path.endswith(".fm") else 0.0
-        high = 1.0 if inp.is_fraction else np.inf
-        bad = (x < low) | (x > high)
-        adjusted[inp.path] = int(np.count_nonzero(bad))
-        if adjusted[inp.path]:
-            drawn[inp.path] = np.clip(x, low, high)
+        # only the bounds a distribution can cross are checked: a log-normal is positive, a uniform stays in its range
+        low = 0.0 if inp.path.endswith(".fm") else _TINY
+        high = 1.0 if inp.is_fraction else math.inf
+        check_low = dist.kind == "uniform" and dist.low < low
+        check_high = dist.kind == "lognormal" and high < math.inf
+        if check_low or check_high:
+            bad = np.count_nonzero(x < low) if check_low else 0
+            bad += np.count_nonzero(x > high) if check_high else 0
+            adjusted[inp.path] = int(bad)
+            if bad:
+                drawn[inp.path] = np.clip(x, low, high)
     fm_paths = [p for _, p in model._pathways]
     fm_scaled = 0
-    if any(p in drawn for p in fm_paths):
+    dist_of = {i.path: d for i, d in pairs}
+
+    def fm_max(path: str) -> float:
+        d = dist_of.get(path)
+        if d is None or d.kind == "fixed":
+            return model.point(path)
+        return d.high if d.kind == "uniform" else 1.0
+
+    if any(p in drawn for p in fm_paths) and sum(fm_max(p) for p in fm_paths) > 1.0:
         total_fm = sum((drawn.get(p, model.point(p)) for p in fm_paths), start=np.zeros(samples))
         over = total_fm > 1.0
         fm_scaled = int(np.count_nonzero(over))
@@ -718,8 +728,8 @@ def summarise(
 ) -> UncertaintyResult:
     classes = load_classes()
     n = total.size
-    pcts = np.percentile(np.stack([gut, liver, total]), PERCENTS, axis=1)
-    percentiles = tuple((q, float(pcts[k, 0]), float(pcts[k, 1]), float(pcts[k, 2])) for k, q in enumerate(PERCENTS))
+    pg, pl, pt = (np.percentile(x, PERCENTS) for x in (gut, liver, total))
+    percentiles = tuple((q, float(pg[k]), float(pl[k]), float(pt[k])) for k, q in enumerate(PERCENTS))
     exceed = [(">=", b.bound, float(np.count_nonzero(total >= b.bound)) / n) for b in sorted(classes.inhibition, key=lambda b: b.bound)]
     if "induction" in assessment.prediction.mechanisms or float(np.min(total)) < 1.0:
         exceed += [("<=", b.bound, float(np.count_nonzero(total <= b.bound)) / n) for b in sorted(classes.induction, key=lambda b: -b.bound)]

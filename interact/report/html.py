@@ -1,0 +1,237 @@
+"""Reports to hand on: one self-contained HTML page (or Markdown file) per scenario.
+
+The body reuses the assessment's document sections
+(:func:`interact.report.assessment.assessment_sections`) and adds the rule
+set, the equations, the AUC ratio with its uncertainty, the sensitivity
+charts (inline SVG) and the provenance (tool and table versions, SHA-256 of
+the scenario file, time).  Every user-supplied string is escaped; the page
+loads nothing from anywhere (a Content-Security-Policy forbids it) and has
+print styles.
+"""
+
+from __future__ import annotations
+
+import base64
+import hashlib
+import html
+import platform
+from collections.abc import Sequence
+from dataclasses import dataclass
+from datetime import datetime
+
+from .. import __version__
+from ..assessment import Assessment
+from ..cautions import CAUTION_LINE
+from ..kinetics.conversion import CHENG_PRUSOFF_SOURCE
+from ..uncertainty import Sensitivity, UncertaintyResult
+from .assessment import assessment_sections
+from .document import Note, Section, Table, render_markdown
+from .svg import fm_curves_svg, histogram_svg, tornado_svg
+from .uncertainty import sensitivity_sections, uncertainty_sections
+
+__all__ = ["Figure", "ReportPart", "render_report_html", "render_report_markdown", "report_parts"]
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Figure:
+    svg: str
+    caption: str
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class ReportPart:
+    section: Section
+    figures: tuple[Figure, ...] = ()
+
+
+def _equations(a: Assessment) -> Section:
+    rows = [
+        ("Imax,u", "fu,p x Cmax (fu,p raised to the rule set's floor unless measured and allowed)", "S7, S1"),
+        ("Igut", "Dose / 250 mL (oral perpetrator)", "S7, S8"),
+        ("Iin,max,u", "fu,p x (Cmax + Fa x Fg x ka x Dose / (Qh x Rb))", "S7, S8, S10"),
+        ("I,ent", "fu,gut x Fa x ka x Dose / Qent", "from memory"),
+        ("Ki,u", "Ki x fu,inc; from IC50 by Cheng-Prusoff: competitive Ki = IC50 / (1 + [S]/Km), "
+         "uncompetitive Ki = IC50 / (1 + Km/[S]), noncompetitive Ki = IC50", CHENG_PRUSOFF_SOURCE),
+    ]
+    seen: set[str] = set()
+    for r in a.screen:
+        if r.criterion not in seen:
+            seen.add(r.criterion)
+            rows.append((r.label, r.equation, f"rule set {a.rules.id}"))
+    rows += [
+        ("reversible term", "1 / (1 + sum [I] / Ki,u)", "Fahmi et al. 2008 (net-effect model)"),
+        ("inactivation term", "kdeg / (kdeg + sum kinact [I] / (KI,u + [I]))", "Fahmi et al. 2008"),
+        ("induction term", "1 + d x sum Emax [I] / (EC50,u + [I])", "Fahmi et al. 2008"),
+        ("AUCR liver", "1 / (sum fm x activity + (1 - sum fm)), [I] = Iin,max,u", "Fahmi et al. 2008"),
+        ("AUCR gut", "1 / (activity x (1 - Fg) + Fg), [I] = I,ent, gut-wall enzyme only", "Fahmi et al. 2008"),
+        ("AUCR", "AUCR gut x AUCR liver", "Fahmi et al. 2008"),
+        ("dose restoring exposure", "usual dose / AUCR; or interval x AUCR", "linear pharmacokinetics (common practice)"),
+        ("log-normal from CV", "sigma = sqrt(ln(1 + CV^2)), median = the scenario's value", "standard log-normal moments"),
+        ("log-normal from a 95% interval", "median = sqrt(lower x upper), sigma = ln(upper / lower) / (2 x 1.96)", "normal quantiles"),
+    ]
+    return Section(title="Equations used", blocks=(Table(headers=("quantity", "equation", "source"), rows=tuple(rows)),
+                                                 "Source keys (S1, S7 ...) are listed in README.md and reference_tables/README.md."))
+
+
+def _rule_set(a: Assessment) -> Section:
+    r = a.rules
+    rows = (
+        ("identifier", r.id, ""),
+        ("title", r.title, ""),
+        ("version", r.version, ""),
+        ("table version", r.table_version, ""),
+        ("file", r.path, ""),
+        ("fu,p floor", f"{r.fu_plasma_floor.value:g}", f"{r.fu_plasma_floor.source} ({r.fu_plasma_floor.status})"),
+        ("mechanistic-model inhibition cutoff (AUCR >=)", f"{r.aucr_inhibition_cutoff.value:g}",
+         f"{r.aucr_inhibition_cutoff.source} ({r.aucr_inhibition_cutoff.status})"),
+        ("mechanistic-model induction cutoff (AUCR <=)", f"{r.aucr_induction_cutoff.value:g}",
+         f"{r.aucr_induction_cutoff.source} ({r.aucr_induction_cutoff.status})"),
+    )
+    return Section(title="Rule set", blocks=(Table(headers=("item", "value", "source and status"), rows=rows),))
+
+
+def report_parts(
+    a: Assessment,
+    *,
+    spread: UncertaintyResult | None,
+    sens: Sensitivity,
+    scenario_bytes: bytes,
+    source_name: str,
+    generated_at: datetime,
+) -> list[ReportPart]:
+    """The report as sections with their figures, in reading order."""
+    base = assessment_sections(a)
+    titles = [s.title for s in base]
+    cut = titles.index("Dose suggestion") if "Dose suggestion" in titles else len(base)
+    parts = [ReportPart(section=s) for s in base[:cut]]
+    # the rule set and the equations right after the inputs
+    at = next((k + 1 for k, p in enumerate(parts) if p.section.title == "Inputs"), len(parts))
+    parts[at:at] = [ReportPart(section=_rule_set(a)), ReportPart(section=_equations(a))]
+    boundary = a.dose.boundary
+    if spread is not None:
+        u = uncertainty_sections(spread)[0]
+        thresholds = sorted({b for _, b, _ in spread.exceedance})
+        fig = Figure(
+            svg=histogram_svg(spread.total, tuple(spread.percentile(q) for q in (5.0, 50.0, 95.0)), thresholds),  # type: ignore[arg-type]
+            caption=f"Distribution of {spread.samples:,} sampled AUC ratios.",
+        )
+        parts.append(ReportPart(section=u, figures=(fig,)))
+    else:
+        parts.append(ReportPart(section=Section(title="Uncertainty of the AUC ratio", blocks=(
+            "No input distributions were declared, so no spread is shown: the AUC ratio above is a point estimate. "
+            "Declare them with --vary PATH=SPEC or --spec FILE.toml (see README, 'Uncertainty').",))))
+    s = sensitivity_sections(sens)[0]
+    figs = [Figure(svg=tornado_svg(sens.bars, sens.point_total, boundary),
+                   caption="Each input swung on its own; bars run from the AUC ratio at the input's low end to its high end.")]
+    figs.append(Figure(svg=fm_curves_svg(sens.curves, boundary[1]),
+                       caption="Liver AUC ratio against fm for several [I]/Ki,u (reversible inhibition), and this scenario's "
+                               "total AUC ratio as the main pathway's fm varies."))
+    parts.append(ReportPart(section=s, figures=tuple(figs)))
+    for sec in base[cut:]:
+        if sec.title == "Provenance":
+            continue
+        parts.append(ReportPart(section=sec))
+    pv = a.provenance
+    digest = hashlib.sha256(scenario_bytes).hexdigest()
+    rows = [
+        ("tool", f"interact {__version__} (Python {platform.python_version()})"),
+        ("scenario file", source_name),
+        ("scenario file SHA-256", digest),
+        ("generated", generated_at.isoformat(timespec="seconds")),
+        ("rule set", f"{pv.rules_id} version {pv.rules_version}, table {pv.rules_table_version} ({pv.rules_path})"),
+        *((f"{k} table", ver) for k, ver in pv.table_versions),
+    ]
+    if spread is not None:
+        rows.append(("sampling", f"{spread.samples:,} samples, {'Latin hypercube' if spread.method == 'lhs' else 'Monte Carlo'}, "
+                                 f"seed {spread.seed}"))
+    parts.append(ReportPart(section=Section(title="Provenance", blocks=(Table(headers=("item", "value"), rows=tuple(rows)),))))
+    return parts
+
+
+_CSS = """
+:root { --ink: #1d1d1d; --muted: #5a5a5a; --rule: #c9c9c9; --caution: #fff4e0; --result: #e8f1fb; }
+* { box-sizing: border-box; }
+body { font: 14px/1.45 Helvetica, Arial, sans-serif; color: var(--ink); max-width: 60rem; margin: 2rem auto; padding: 0 1rem; }
+h1 { font-size: 1.5rem; margin-bottom: 0.3rem; }
+h2 { font-size: 1.15rem; border-bottom: 1px solid var(--rule); padding-bottom: 0.2rem; margin-top: 2rem; }
+.flag { display: inline-block; padding: 0.2rem 0.6rem; border: 1px solid var(--ink); font-weight: bold; }
+table { border-collapse: collapse; margin: 0.6rem 0 1rem; width: 100%; font-size: 12.5px; }
+th, td { border: 1px solid var(--rule); padding: 0.25rem 0.4rem; text-align: left; vertical-align: top; overflow-wrap: anywhere; }
+th { background: #f2f2f2; }
+.note { padding: 0.5rem 0.7rem; border-left: 4px solid #b36b00; background: var(--caution); }
+.note.result { border-left-color: #0b5394; background: var(--result); }
+figure { margin: 1rem 0; }
+figure svg { max-width: 100%; height: auto; border: 1px solid var(--rule); }
+figcaption { color: var(--muted); font-size: 12px; }
+footer { margin-top: 2.5rem; color: var(--muted); font-size: 12px; border-top: 1px solid var(--rule); padding-top: 0.5rem; }
+@media print {
+  body { margin: 0; max-width: none; font-size: 10pt; }
+  h2 { break-after: avoid; }
+  table, figure, .note { break-inside: avoid; }
+  th { background: none; }
+  .note, .note.result { background: none; }
+  a { color: inherit; text-decoration: none; }
+  @page { margin: 15mm; }
+}
+"""
+
+
+def _block_html(block: str | Table | Note) -> str:
+    e = html.escape
+    if isinstance(block, Table):
+        head = "".join(f"<th>{e(h)}</th>" for h in block.headers)
+        body = "".join("<tr>" + "".join(f"<td>{e(c)}</td>" for c in row) + "</tr>" for row in block.rows)
+        return f"<table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"
+    if isinstance(block, Note):
+        return f'<p class="note {e(block.kind)}">{e(block.text)}</p>'
+    return f"<p>{e(block)}</p>"
+
+
+def render_report_html(a: Assessment, parts: Sequence[ReportPart]) -> str:
+    """A complete, self-contained HTML document; every string from the user is escaped."""
+    e = html.escape
+    s = a.scenario
+    flag = ("INVENTED scenario: its compounds and values describe no real drug." if s.invented
+            else "Not marked as invented: the values are presented as real data; check each against its source.")
+    out = [
+        "<!DOCTYPE html>",
+        '<html lang="en">',
+        "<head>",
+        '<meta charset="utf-8">',
+        '<meta name="viewport" content="width=device-width, initial-scale=1">',
+        "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; style-src 'unsafe-inline'; img-src data:\">",
+        f"<title>{e(f'interact report: {s.title}')}</title>",
+        f"<style>{_CSS}</style>",
+        "</head>",
+        "<body>",
+        f"<header><h1>{e(s.title)}</h1>",
+        f'<p class="flag {"invented" if s.invented else "real"}">{e(flag)}</p></header>',
+        "<main>",
+    ]
+    for part in parts:
+        sec = part.section
+        out.append("<section>")
+        if sec.title:
+            out.append(f"<h2>{e(sec.title)}</h2>")
+        out.extend(_block_html(b) for b in sec.blocks)
+        for fig in part.figures:
+            out.append(f"<figure>{fig.svg}<figcaption>{e(fig.caption)}</figcaption></figure>")
+        out.append("</section>")
+    out += ["</main>", f"<footer>{e(CAUTION_LINE)} Produced by interact {e(__version__)}.</footer>", "</body>", "</html>", ""]
+    return "\n".join(out)
+
+
+def render_report_markdown(a: Assessment, parts: Sequence[ReportPart]) -> str:
+    """The report as Markdown: tables as pipe tables, charts as embedded SVG data URIs."""
+    s = a.scenario
+    flag = ("**INVENTED scenario**: its compounds and values describe no real drug." if s.invented
+            else "**Not marked as invented**: the values are presented as real data; check each against its source.")
+    out = [render_markdown([], title=f"interact report: {s.title}").rstrip("\n"), "", flag, ""]
+    for part in parts:
+        out.append(render_markdown([part.section]).rstrip("\n"))
+        out.append("")
+        for fig in part.figures:
+            data = base64.b64encode(fig.svg.encode("utf-8")).decode("ascii")
+            out.append(f"![{fig.caption}](data:image/svg+xml;base64,{data})")
+            out.append("")
+    return "\n".join(out).rstrip("\n") + "\n"
