@@ -78,6 +78,66 @@ def _cmd_timecourse(args: argparse.Namespace) -> int:
     return 0
 
 
+def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
+    """Fit time-dependent inhibition (kinact, KI) or induction (Emax, EC50) data; optionally carry them into a scenario."""
+    import datetime
+
+    from .kinetics.carry import carry_constants_text, parse_fold_change_csv, parse_preincubation_csv
+    from .report.mechanism_fits import format_mechanism_fit
+    from .scenario import write_text_atomic
+
+    path = Path(args.data)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise InputError("data", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+    if args.fu_inc is not None and not 0 < args.fu_inc <= 1:
+        raise InputError("--fu-inc", args.fu_inc, "is not in (0, 1]")
+    fu = 1.0 if args.fu_inc is None else args.fu_inc
+    today = datetime.date.today().isoformat()
+    values: dict[str, object]
+    if args.command == "fit-tdi":
+        from .kinetics.inactivation import fit_inactivation_raw
+
+        data = parse_preincubation_csv(text, source=path.name)
+        c = data.columns
+        result = fit_inactivation_raw(c["inhibitor"], c["time"], c["activity"], subtract_vehicle=not args.keep_vehicle,
+                                      weighted=args.weighted)
+        ok = result.success and math.isfinite(result.ki.value) and result.ki.value > 0
+        values = {"kinact": f"{result.kinact.value:.6g} 1/min", "ki_inact": f"{result.ki.value * fu:.6g} uM"}
+        what = "kinact/KI hyperbola"
+    else:
+        from .kinetics.induction import fit_induction
+
+        data = parse_fold_change_csv(text, source=path.name)
+        c = data.columns
+        result = fit_induction(c["concentration"], c["fold_change"], hill=args.hill)  # type: ignore[assignment]
+        ok = result.success and result.ec50.value > 0
+        values = {"emax": float(f"{result.emax.value:.6g}"), "ec50": f"{result.ec50.value * fu:.6g} uM"}  # type: ignore[union-attr]
+        what = "Emax model" + (" with Hill slope" if args.hill else "")
+    _out(format_mechanism_fit(result, path.name, args.format, width=args.width), args.output)
+    if args.into:
+        if not args.target:
+            raise InputError("--target", None, "is needed with --into: the enzyme, e.g. --target CYP3A")
+        if not ok:
+            raise InputError("fit", "not usable", "did not converge to finite constants; nothing was written")
+        if args.command == "fit-induction" and args.hill and result.hill is not None and abs(result.hill.value - 1) > 0.05:  # type: ignore[union-attr]
+            raise InputError("--hill", "fitted slope", "is not 1; the scenario's induction term assumes h = 1: refit without --hill to carry")
+        target = Path(args.into)
+        try:
+            scenario_text = target.read_text(encoding="utf-8")
+        except (OSError, UnicodeDecodeError) as exc:
+            raise InputError("--into", str(target), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+        origin = f"{what} fit of {path.name}" + (f", x fu,inc {fu:g}" if args.fu_inc is not None else "") + f", {today}"
+        new = carry_constants_text(scenario_text, target=args.target, values=values, origin=origin, source=str(target))
+        write_text_atomic(target, new)
+        shown = ", ".join(f"{k} = {v}" for k, v in values.items())
+        sys.stderr.write(f"interact: {target} updated: {args.target} {shown}; origin recorded\n")
+        if args.fu_inc is None:
+            sys.stderr.write("interact: no --fu-inc given: the fitted constant is written as if unbound\n")
+    return 0
+
+
 def _days_arg(text: str) -> float:
     try:
         value = float(text)
@@ -310,6 +370,24 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--constant", action="store_true", help="hold the perpetrator's site concentrations at their static values")
     p.add_argument("--plot", metavar="FILE.svg", help="also write the curves as an SVG image")
     p.set_defaults(run=_cmd_timecourse)
+
+    for name, text in (("fit-tdi", "fit kinact and KI from pre-incubation data (columns inhibitor, time, activity)"),
+                       ("fit-induction", "fit Emax and EC50 from mRNA fold-change data (columns concentration, fold_change)")):
+        p = sub.add_parser(name, help=text)
+        p.add_argument("data", metavar="DATA.csv")
+        p.add_argument("--format", choices=FORMATS, default="text")
+        p.add_argument("--width", type=int, default=100)
+        p.add_argument("-o", "--output", metavar="FILE")
+        p.add_argument("--into", metavar="SCENARIO.toml", help="write the fitted constants into this scenario (atomically)")
+        p.add_argument("--target", metavar="ENZYME", help="the enzyme they belong to (with --into)")
+        p.add_argument("--fu-inc", type=float, default=None, metavar="FU",
+                       help="unbound fraction in the incubation: the carried KI or EC50 is multiplied by it")
+        if name == "fit-tdi":
+            p.add_argument("--keep-vehicle", action="store_true", help="do not subtract the vehicle (0 uM) loss of activity")
+            p.add_argument("--weighted", action="store_true", help="weight the hyperbola by the kobs standard errors")
+        else:
+            p.add_argument("--hill", action="store_true", help="also fit a Hill slope (reported; not carried unless it is 1)")
+        p.set_defaults(run=_cmd_fit_mechanism)
 
     p = sub.add_parser("demo", help="assess the built-in invented demo scenario (same output as assess)")
     with_report_options(p)

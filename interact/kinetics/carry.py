@@ -1,0 +1,169 @@
+"""Reading time-dependent-inhibition and induction data, and carrying fitted constants into a scenario.
+
+CSV text (not files: the shell reads the file and hands over the text):
+
+- pre-incubation data: columns ``inhibitor`` (or ``conc``, ``i``), ``time`` (or
+  ``t``, ``preincubation``) and ``activity`` (or ``remaining``, ``percent``); a
+  unit may follow a name in parentheses, ``inhibitor (nM)``, ``time (h)``;
+  defaults uM and min;
+- induction data: columns ``concentration`` (or ``conc``, ``inducer``) and
+  ``fold_change`` (or ``fold``, ``mrna``); default uM.
+
+Lines starting with ``#`` are comments.  :func:`carry_constants_text` writes
+kinact/ki_inact or emax/ec50 into the target's ``[[perpetrator.inhibits]]``
+entry with tomlkit, keeping comments and layout; a replaced value stays
+visible in a comment, and the result is validated before it is returned.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import math
+import re
+from dataclasses import dataclass
+from typing import Any
+
+import tomlkit
+from tomlkit.exceptions import TOMLKitError
+from tomlkit.items import AoT, Table
+
+from .. import units
+from ..errors import InputError
+from ..scenario import loads_scenario
+from ..tables import load_targets, resolve_target
+
+__all__ = ["ColumnData", "carry_constants_text", "parse_fold_change_csv", "parse_preincubation_csv"]
+
+_HEADER = re.compile(r"^\s*([A-Za-z_ %.-]+?)\s*(?:\((.*)\))?\s*$")
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class ColumnData:
+    """Numeric columns read from CSV text, in canonical units (uM, min, plain numbers)."""
+
+    columns: dict[str, tuple[float, ...]]
+    units: dict[str, str]
+    source: str
+    n: int
+
+
+def _parse(text: str, spec: dict[str, tuple[tuple[str, ...], str, str]], source: str) -> ColumnData:
+    """spec: canonical name -> (accepted header names, kind for units.parse or "", canonical unit)."""
+    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
+    if not lines:
+        raise InputError(source, "empty", "has no data rows; expected a header line and rows of numbers")
+    rows = list(csv.reader(io.StringIO("\n".join(lines))))
+    header = rows[0]
+    found: dict[str, tuple[int, float]] = {}
+    unit_used: dict[str, str] = {}
+    for idx, raw in enumerate(header):
+        m = _HEADER.match(raw)
+        if not m:
+            continue
+        name = m.group(1).strip().lower().replace(" ", "_")
+        for canon, (names, kind, canon_unit) in spec.items():
+            if name in names:
+                factor = 1.0
+                unit_text = (m.group(2) or "").strip()
+                if kind and unit_text:
+                    q = units.parse(f"1 {unit_text}", kind, field=f"{source}: column {raw.strip()!r}")
+                    factor = units.magnitude(q, canon_unit)
+                unit_used[canon] = unit_text or canon_unit
+                found[canon] = (idx, factor)
+    missing = [canon for canon in spec if canon not in found]
+    if missing:
+        want = "; ".join(f"{c}: one of {', '.join(spec[c][0])}" for c in missing)
+        raise InputError(f"{source}: header", ",".join(header), f"lacks columns ({want})")
+    cols: dict[str, list[float]] = {c: [] for c in spec}
+    for line_no, row in enumerate(rows[1:], start=2):
+        for canon, (idx, factor) in found.items():
+            cell = row[idx].strip() if idx < len(row) else ""
+            try:
+                value = float(cell)
+            except ValueError:
+                raise InputError(f"{source}: row {line_no}, column {header[idx].strip()!r}", cell, "is not a number") from None
+            if not math.isfinite(value):
+                raise InputError(f"{source}: row {line_no}, column {header[idx].strip()!r}", cell, "is not a finite number")
+            cols[canon].append(value * factor)
+    return ColumnData(columns={k: tuple(v) for k, v in cols.items()}, units=unit_used, source=source, n=len(rows) - 1)
+
+
+def parse_preincubation_csv(text: str, *, source: str = "data") -> ColumnData:
+    """Pre-incubation data: ``inhibitor`` (uM), ``time`` (min), ``activity`` (any positive scale)."""
+    return _parse(
+        text,
+        {
+            "inhibitor": (("inhibitor", "conc", "concentration", "i"), "molar_concentration", "uM"),
+            "time": (("time", "t", "preincubation", "preincubation_time"), "time", "min"),
+            "activity": (("activity", "remaining", "percent", "remaining_activity"), "", ""),
+        },
+        source,
+    )
+
+
+def parse_fold_change_csv(text: str, *, source: str = "data") -> ColumnData:
+    """Induction data: ``concentration`` (uM) and ``fold_change`` over vehicle."""
+    return _parse(
+        text,
+        {
+            "concentration": (("concentration", "conc", "inducer", "c"), "molar_concentration", "uM"),
+            "fold_change": (("fold_change", "fold", "mrna", "fold_induction"), "", ""),
+        },
+        source,
+    )
+
+
+def _shown(value: Any) -> str:
+    return f'"{value}"' if isinstance(value, str) else tomlkit.item(value).as_string()
+
+
+def carry_constants_text(text: str, *, target: str, values: dict[str, Any], origin: str, source: str = "scenario") -> str:
+    """The scenario text with ``values`` (e.g. kinact, ki_inact) set on the target's inhibition entry.
+
+    The entry is created when absent.  Every replaced value is kept in a
+    comment beside the new one; ``origin`` records where the numbers came
+    from.  Raises :class:`InputError` for unreadable TOML, an unknown target or
+    an update that would make the scenario invalid.
+    """
+    resolved = resolve_target(target)
+    if resolved is None:
+        known = ", ".join(t.name for t in load_targets())
+        raise InputError("target", target, f"is not a known enzyme or transporter; expected one of {known}")
+    try:
+        doc = tomlkit.parse(text)
+    except TOMLKitError as exc:
+        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
+    perp = doc.get("perpetrator")
+    if not isinstance(perp, Table):
+        raise InputError(f"{source}: perpetrator", None, "is missing; expected a [perpetrator] table")
+    inhibits = perp.get("inhibits")
+    if inhibits is None:
+        inhibits = tomlkit.aot()
+        perp.append("inhibits", inhibits)
+    if not isinstance(inhibits, AoT):
+        raise InputError(f"{source}: perpetrator.inhibits", "value", "is not a list of [[perpetrator.inhibits]] tables")
+    entry = None
+    for item in inhibits:
+        name = item.get("target")
+        found = resolve_target(str(name)) if name is not None else None
+        if found is not None and found.name == resolved.name:
+            entry = item
+            break
+    if entry is None:
+        entry = tomlkit.table()
+        entry["target"] = resolved.name
+        inhibits.append(entry)
+    for key, value in (*values.items(), ("origin", origin)):
+        old = entry.get(key)
+        old_comment = old.trivia.comment.lstrip("#").strip() if old is not None and hasattr(old, "trivia") else ""
+        entry[key] = value
+        if old is not None:
+            shown = _shown(old.unwrap() if hasattr(old, "unwrap") else old)
+            if shown != _shown(value):
+                # nothing the user wrote is lost: the old value and its comment stay beside the new one
+                entry[key].trivia.comment = f"# was {shown}" + (f"; {old_comment}" if old_comment else "")
+                entry[key].trivia.comment_ws = "  "
+    new_text = tomlkit.dumps(doc)
+    loads_scenario(new_text, source=source)  # raises ScenarioError (an InputError) listing problems
+    return new_text
