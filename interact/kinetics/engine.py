@@ -247,78 +247,72 @@ def _lm(
     gtol: float = 1e-14,
     mu0: float = 1e-6,
 ) -> _Solution:
-    """Minimise ||r(u)||^2 by bounded Levenberg-Marquardt (see module docstring)."""
-    u = np.minimum(np.maximum(np.asarray(u0, dtype=float), lo), hi)
+    """Minimise ||r(u)||^2 by bounded Levenberg-Marquardt (see module docstring).
+
+    The n-vectors live in numpy; the p x p algebra (p is 2 to 4 here) runs on
+    Python floats, which is several times faster than numpy at that size.
+    """
+    del gtol  # the rounding-floor test below subsumes a gradient test
+    p = len(u0)
+    lo_l = [float(v) for v in lo]
+    hi_l = [float(v) for v in hi]
+    ul = [min(max(float(v), lo_l[k]), hi_l[k]) for k, v in enumerate(u0)]
+    fixed_l = [bool(v) for v in fixed]
+    u = np.array(ul)
     r, jac = prob.resid_jac(u)
     cost = float(r @ r)
     if not math.isfinite(cost) or not np.isfinite(jac).all():
         return _Solution(u, math.inf, False, "the model is not finite at the starting values", 0)
-    a = jac.T @ jac
-    g = jac.T @ r
-    dmax = a.diagonal().copy()
-    free0 = ~fixed
-    if not free0.any():
+    a = (jac.T @ jac).tolist()
+    g = (jac.T @ r).tolist()
+    dmax = [a[k][k] for k in range(p)]
+    if all(fixed_l):
         return _Solution(u, cost, True, "all parameters fixed", 0)
-    has_lo = bool(np.isfinite(lo).any())
-    has_hi = bool(np.isfinite(hi).any())
-    all_free0 = bool(free0.all())
     mu = mu0  # damping relative to the Marquardt scaling diag(J^T J)
     nu = 2.0
     for it in range(1, max_iter + 1):
         if cost == 0.0:
             return _Solution(u, cost, True, "exact fit", it)
-        free = free0
-        if has_lo:
-            free = free & ~((u <= lo) & (g > 0))
-        if has_hi:
-            free = free & ~((u >= hi) & (g < 0))
-        if (free is free0 and all_free0) or free.all():
-            idx = None
-            gf, af, scale = g, a, dmax
-        else:
-            idx = np.flatnonzero(free)
-            if idx.size == 0:
-                return _Solution(u, cost, True, "converged at the bounds", it)
-            gf, af, scale = g[idx], a[idx[:, None], idx], dmax[idx]
-        scale = np.maximum(scale, _TINY)
-        m = af + np.diag(mu * scale)
-        try:
-            h = np.linalg.solve(m, -gf)
-        except np.linalg.LinAlgError:
+        idx = [
+            k for k in range(p) if not fixed_l[k] and not (ul[k] <= lo_l[k] and g[k] > 0) and not (ul[k] >= hi_l[k] and g[k] < 0)
+        ]
+        if not idx:
+            return _Solution(u, cost, True, "converged at the bounds", it)
+        gf = [g[k] for k in idx]
+        af = [[a[i][j] for j in idx] for i in idx]
+        h = _solve_damped(af, gf, [max(dmax[k], _TINY) * mu for k in idx])
+        if h is None:
             mu *= nu
             nu *= 2.0
             continue
-        if idx is None:
-            trial = u + h
-        else:
-            trial = u.copy()
-            trial[idx] += h
-        if has_lo:
-            trial = np.maximum(trial, lo)
-        if has_hi:
-            trial = np.minimum(trial, hi)
-        step = trial - u
-        sf = step if idx is None else step[idx]
-        # the linear model's predicted decrease, and the rounding floor below which nothing is gained
-        predicted = -2.0 * float(sf @ gf) - float(sf @ af @ sf)
-        promised = -2.0 * float(h @ gf) - float(h @ af @ h) if has_lo or has_hi else predicted
-        floor = promised <= 1e-14 * cost  # of the unclipped step, which the linear model always favours
-        small = bool((np.abs(step) <= xtol * (np.abs(u) + xtol)).all())
-        rt = prob.resid(trial)
+        trial = list(ul)
+        for k, hk in zip(idx, h, strict=True):
+            trial[k] = min(max(trial[k] + hk, lo_l[k]), hi_l[k])
+        sf = [trial[k] - ul[k] for k in idx]
+        a_sf = [sum(row[j] * sf[j] for j in range(len(idx))) for row in af]
+        predicted = -2.0 * sum(x * y for x, y in zip(sf, gf, strict=True)) - sum(x * y for x, y in zip(sf, a_sf, strict=True))
+        if sf == h:
+            promised = predicted
+        else:  # the unclipped step, which the linear model always favours
+            a_h = [sum(row[j] * h[j] for j in range(len(idx))) for row in af]
+            promised = -2.0 * sum(x * y for x, y in zip(h, gf, strict=True)) - sum(x * y for x, y in zip(h, a_h, strict=True))
+        floor = promised <= 1e-14 * cost  # the linear model promises less than rounding can show
+        small = all(abs(trial[k] - ul[k]) <= xtol * (abs(ul[k]) + xtol) for k in range(p))
+        ut = np.array(trial)
+        rt = prob.resid(ut)
         ct = float(rt @ rt)
         if ct != ct:  # NaN: the model is undefined there
             ct = math.inf
         if ct < cost:
             rho = (cost - ct) / predicted if predicted > 0 else 1.0
             reduction = cost - ct
-            u = trial
-            cost = ct
+            u, ul, cost = ut, trial, ct
             r, jac = prob.resid_jac(u)
-            a = jac.T @ jac
-            g = jac.T @ r
-            if not (math.isfinite(float(a.sum())) and math.isfinite(float(g.sum()))):
+            a = (jac.T @ jac).tolist()
+            g = (jac.T @ r).tolist()
+            if not (all(math.isfinite(x) for x in g) and all(math.isfinite(a[k][k]) for k in range(p))):
                 return _Solution(u, cost, False, "the Jacobian is not finite at the solution", it)
-            np.maximum(dmax, a.diagonal(), out=dmax)
+            dmax = [max(dmax[k], a[k][k]) for k in range(p)]
             mu *= max(0.1, 1.0 - (2.0 * rho - 1.0) ** 3)
             nu = 2.0
             if reduction <= ftol * cost or small or floor:
@@ -331,6 +325,29 @@ def _lm(
             if mu > 1e300:
                 return _Solution(u, cost, True, "converged (no further decrease possible)", it)
     return _Solution(u, cost, False, f"did not converge in {max_iter} iterations", max_iter)
+
+
+def _solve_damped(a: list[list[float]], g: list[float], damping: list[float]) -> list[float] | None:
+    """Solve (A + diag(damping)) h = -g by Cholesky on Python floats; None when not positive definite."""
+    n = len(g)
+    m = [[a[i][j] + (damping[i] if i == j else 0.0) for j in range(n)] for i in range(n)]
+    chol = [[0.0] * n for _ in range(n)]
+    for i in range(n):
+        for j in range(i + 1):
+            acc = m[i][j] - sum(chol[i][k] * chol[j][k] for k in range(j))
+            if i == j:
+                if not acc > 0.0 or not math.isfinite(acc):
+                    return None
+                chol[i][i] = math.sqrt(acc)
+            else:
+                chol[i][j] = acc / chol[j][j]
+    y = [0.0] * n
+    for i in range(n):
+        y[i] = (-g[i] - sum(chol[i][k] * y[k] for k in range(i))) / chol[i][i]
+    x = [0.0] * n
+    for i in reversed(range(n)):
+        x[i] = (y[i] - sum(chol[k][i] * x[k] for k in range(i + 1, n))) / chol[i][i]
+    return x
 
 
 def _scipy_fallback(prob: _Problem, u0: Array, lo: Array, hi: Array) -> _Solution:
