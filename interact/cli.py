@@ -11,8 +11,8 @@ import argparse
 import math
 import sys
 from collections.abc import Callable, Sequence
-from typing import TYPE_CHECKING
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from . import __version__
 from .errors import InputError, InteractError

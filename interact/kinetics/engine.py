@@ -573,12 +573,13 @@ def fit_curve(
 
     r, jac = prob.resid_jac(u)
     s2 = cost / df
+    exact = cost <= 1e-30 * max(float(yv @ yv), 1e-300)  # noise-free data: no residual variance to work with
     on_bound = ((u <= lo) | (u >= hi)) & (np.isfinite(lo) | np.isfinite(hi))
     free = ~on_bound
     cov_u: Array | None = None
     leverage = np.zeros(n)
     jf = jac[:, free]
-    if jf.size:
+    if jf.size and not exact:
         uu, sv, vt = np.linalg.svd(jf, full_matrices=False)
         if sv.size and sv[-1] > sv[0] * 1e-12 and sv[-1] > 0:
             cf = (vt.T / sv**2) @ vt * s2
@@ -599,7 +600,7 @@ def fit_curve(
     w = prob.weights_at(u)
     fitted = prob.fitted(u)
     with np.errstate(divide="ignore", invalid="ignore"):
-        loglik = -0.5 * n * (math.log(2.0 * math.pi * cost / n) + 1.0) + 0.5 * float(np.sum(np.log(w))) if cost > 0 else math.inf
+        loglik = -0.5 * n * (math.log(2.0 * math.pi * cost / n) + 1.0) + 0.5 * float(np.sum(np.log(w))) if not exact else math.inf
     k = p + 1
     aic = -2.0 * loglik + 2.0 * k
     aicc = aic + (2.0 * k * (k + 1) / (n - k - 1) if n - k - 1 > 0 else math.inf)
@@ -609,10 +610,10 @@ def fit_curve(
         one_h = np.clip(1.0 - leverage, 1e-12, None)
         s_i2 = (cost - r**2 / one_h) / (df - 1) if df > 1 else np.full(n, np.nan)
         stud = r / np.sqrt(np.clip(s_i2, _TINY, None) * one_h)
-    stud = np.where(np.isfinite(stud), stud, 0.0)
+    stud = np.where(np.isfinite(stud), stud, 0.0) if not exact else np.zeros(n)
 
     profiles: dict[int, tuple[float, float]] = {}
-    for j in profile:
+    for j in profile if not exact else ():
         se_j = math.sqrt(cov_u[j, j]) if cov_u is not None and free[j] and cov_u[j, j] > 0 else float(hint[j])
         if not math.isfinite(se_j) or se_j <= 0:
             se_j = max(abs(float(u[j])) * 0.5, 1e-12)
@@ -628,7 +629,9 @@ def fit_curve(
     if cov_u is not None and free.all():
         d = np.array([(-1.0 / u[j] ** 2 if model.kind(j) == "inverse" else 1.0) for j in range(p)])
         cov_rep = tuple(tuple(float(v) for v in row) for row in (cov_u * np.outer(d, d)))
-    if cov_u is None:
+    if exact:
+        warnings.append(f"{model.name}: the model fits the data exactly; standard errors and intervals are not defined")
+    elif cov_u is None:
         warnings.append(f"{model.name}: the information matrix is singular; standard errors cannot be estimated")
     return FitResult(
         model=model.name,

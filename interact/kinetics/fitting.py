@@ -519,15 +519,24 @@ def _f_tests(fits: dict[str, FitResult]) -> tuple[FTest, ...]:
 
 
 def _rank(fits: tuple[FitResult, ...]) -> tuple[RankedModel, ...]:
-    ok = [f for f in fits if f.success and math.isfinite(f.aicc)]
+    ok = [f for f in fits if f.success and f.aicc < math.inf]
     if not ok:
         return ()
     best = min(f.aicc for f in ok)
-    rel = [math.exp(-0.5 * (f.aicc - best)) for f in ok]
+    if best == -math.inf:  # exact fits (noise-free data): share the weight among them
+        rel = [1.0 if f.aicc == best else 0.0 for f in ok]
+    else:
+        rel = [math.exp(-0.5 * (f.aicc - best)) for f in ok]
     total = sum(rel)
     ranked = [
         RankedModel(
-            model=f.model, aicc=f.aicc, delta_aicc=f.aicc - best, weight=r / total, bic=f.bic, rss=f.rss, n_params=f.n_params
+            model=f.model,
+            aicc=f.aicc,
+            delta_aicc=0.0 if f.aicc == best else f.aicc - best,
+            weight=r / total,
+            bic=f.bic,
+            rss=f.rss,
+            n_params=f.n_params,
         )
         for f, r in zip(ok, rel, strict=True)
     ]
@@ -603,7 +612,10 @@ def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests
     text = f"{LABELS[chosen].capitalize()} inhibition: {strength} support (Akaike weight {support:.2f})"
     if runner is not None:
         delta = runner.aicc - fits[chosen].aicc
-        text += f"; next best {LABELS[runner.model]} at delta AICc {delta:.1f}"
+        if math.isfinite(delta):
+            text += f"; next best {LABELS[runner.model]} at delta AICc {delta:.1f}"
+        else:
+            text += f"; {LABELS[runner.model]} fits exactly too (noise-free data cannot separate them)"
     text += "."
     if strength == "weak" and runner is not None:
         text += (

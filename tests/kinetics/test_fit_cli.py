@@ -109,3 +109,40 @@ def test_ic50_mode_with_cheng_prusoff(tmp_path: Path, capsys: pytest.CaptureFixt
     ic50 = next(e for e in data["fit"]["estimates"] if e["name"] == "IC50")["value"]
     assert ic50 == pytest.approx(3.058, abs=5e-4)  # drc ryegrass LL.4 (auto-detected: no substrate column)
     assert data["cheng_prusoff"]["ki_um"] == pytest.approx(ic50 / 2)
+
+
+def test_markdown_weights_models_and_predicted_binding(capsys: pytest.CaptureFixture[str], tmp_path: Path) -> None:
+    lines = (DATA / "nlstools_vmkmki.csv").read_text(encoding="utf-8").splitlines()
+    positive = tmp_path / "positive.csv"  # the blank rows (S = 0, v = 0) cannot carry weights
+    positive.write_text("\n".join([lines[1], *(r for r in lines[2:] if not r.startswith("0,"))]) + "\n", encoding="utf-8")
+    args = ["fit", str(positive), *UNITS, "--format", "markdown", "--models", "competitive,uncompetitive", "--weights", "poisson"]
+    assert main([*args, "--logp", "2.0", "--protein", "0.5 mg/mL"]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("# Incubation fit") and "| uncompetitive |" in out
+    assert "Hallifax & Houston 2006" in out and "from memory" in out
+    assert "Poisson-like weights" in out
+
+
+def test_option_errors_are_one_line(capsys: pytest.CaptureFixture[str], tmp_path: Path) -> None:
+    assert main(["fit", VMKMKI, *UNITS, "--logp", "2", "--fu-inc", "0.5"]) == 2
+    assert "both" in capsys.readouterr().err
+    assert main(["fit", VMKMKI, *UNITS, "--logp", "2"]) == 2
+    assert "--protein" in capsys.readouterr().err
+    assert main(["fit", VMKMKI, *UNITS, "--plot", str(tmp_path / "plot.gif")]) == 2
+    assert "suffix" in capsys.readouterr().err
+    assert main(["fit", str(tmp_path / "absent.csv")]) == 2
+    assert "could not be read" in capsys.readouterr().err
+
+
+def test_ic50_into_writes_the_cheng_prusoff_ki(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    rows = (DATA / "drc_ryegrass.csv").read_text(encoding="utf-8").splitlines()[2:]
+    curve = tmp_path / "curve.csv"
+    curve.write_text("inhibitor (uM),activity\n" + "\n".join(rows) + "\n", encoding="utf-8")
+    scenario = tmp_path / "scenario.toml"
+    shutil.copy(demo_path(), scenario)
+    args = ["fit", str(curve), "--mechanism", "noncompetitive", "--into", str(scenario), "--target", "CYP2C9", "--fu-inc", "0.7"]
+    assert main(args) == 0
+    assert "IC50 CURVE (4PL)" in capsys.readouterr().out
+    inh = next(i for i in load_scenario(scenario).perpetrator.inhibits if i.target == "CYP2C9")
+    assert inh.ki.to("uM").magnitude == pytest.approx(3.058, abs=5e-4)  # noncompetitive: Ki = IC50
+    assert inh.origin.startswith("Cheng-Prusoff from 4PL IC50 fit of curve.csv")
