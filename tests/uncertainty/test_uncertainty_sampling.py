@@ -243,3 +243,12 @@ def test_spec_file_and_vary_option() -> None:
         loads_spec('[sampling]\nmethod = "sobol"\n')
     with pytest.raises(InputError, match="not a known table"):
         loads_spec('[varry]\n"a" = "b"\n')
+
+
+def test_unit_on_the_upper_bound_applies_to_both() -> None:
+    a = assess(scenario_from_dict(_iv_dict()))
+    inp = ScenarioModel(a).input("perpetrator.inhibits[0].ki")
+    one, both = parse_distribution("ci:0.5, 8 uM", inp), parse_distribution("ci:0.5 uM,8 uM", inp)
+    assert (one.median, one.sigma) == (both.median, both.sigma)
+    with pytest.raises(InputError, match="concentration"):
+        parse_distribution("ci:0.5,8", inp)  # a Ki bound needs a unit
