@@ -57,6 +57,7 @@ formats a :class:`TimeCourse`.
 
 from __future__ import annotations
 
+import itertools
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass, field
@@ -70,6 +71,8 @@ from .errors import InputError
 from .exposure import Setting
 
 if TYPE_CHECKING:
+    import pint
+
     from .assessment import Assessment
 
 __all__ = [
@@ -166,7 +169,9 @@ def _ss_shape(ka: float, ke: float, tau: float) -> tuple[float, float]:
     b = ke * (1.0 - math.exp(-ka * tau))
     tmax = math.log(a / b) / (ka - ke)
     tmax = min(max(tmax, 0.0), tau)
-    shape = ka / (ka - ke) * (math.exp(-ke * tmax) / (1.0 - math.exp(-ke * tau)) - math.exp(-ka * tmax) / (1.0 - math.exp(-ka * tau)))
+    shape = (
+        ka / (ka - ke) * (math.exp(-ke * tmax) / (1.0 - math.exp(-ke * tau)) - math.exp(-ka * tmax) / (1.0 - math.exp(-ka * tau)))
+    )
     return shape, tmax
 
 
@@ -196,7 +201,7 @@ class _Perp:
         """Doses given at or before t (t at a dose time counts that dose)."""
         if t < -1e-9:
             return 0
-        return min(int(math.floor(t / self.tau + 1e-9)) + 1, self.n_doses)
+        return min(math.floor(t / self.tau + 1e-9) + 1, self.n_doses)
 
     def sites(self, t: float, m: int, on: bool) -> tuple[list[float], list[float]]:
         """Unbound liver-inlet and enterocyte concentrations (uM) per species at time t."""
@@ -212,8 +217,12 @@ class _Perp:
             assert self.profile_t is not None and self.profile_c is not None
             c = float(np.interp(t, self.profile_t, self.profile_c))
         elif self.oral:
-            c = self.dose / self.vf * self.ka / (self.ka - self.ke) * (
-                _geometric(t, self.tau, m, self.ke) - _geometric(t, self.tau, m, self.ka)
+            c = (
+                self.dose
+                / self.vf
+                * self.ka
+                / (self.ka - self.ke)
+                * (_geometric(t, self.tau, m, self.ke) - _geometric(t, self.tau, m, self.ka))
             )
         else:
             c = self.dose / self.vf * _geometric(t, self.tau, m, self.ke)
@@ -238,8 +247,12 @@ class _Perp:
             assert self.profile_t is not None and self.profile_c is not None
             c = np.interp(t, self.profile_t, self.profile_c)
         elif self.oral:
-            c = self.dose / self.vf * self.ka / (self.ka - self.ke) * (
-                _geometric_v(t, self.tau, m, self.ke) - _geometric_v(t, self.tau, m, self.ka)
+            c = (
+                self.dose
+                / self.vf
+                * self.ka
+                / (self.ka - self.ke)
+                * (_geometric_v(t, self.tau, m, self.ke) - _geometric_v(t, self.tau, m, self.ka))
             )
         else:
             c = self.dose / self.vf * _geometric_v(t, self.tau, m, self.ke)
@@ -253,6 +266,7 @@ def _fast_forcing(perp: _Perp):  # type: ignore[no-untyped-def]
     """``t -> (liver-inlet, enterocyte)`` unbound concentrations per species; the same as
     :meth:`_Perp.sites` (a test keeps them equal), specialised for speed in the ODE's right-hand side."""
     if perp.mode != "regimen":
+
         def generic(t: float) -> tuple[list[float], list[float]]:
             return perp.sites(t, perp.doses_by(t), t < perp.stop - 1e-9)
 
@@ -330,15 +344,20 @@ def _sites(a: Assessment, kdeg: dict[str, tuple[float | None, float | None]], gu
         k = kdeg.get(enzyme, (None, None))[0 if site == "liver" else 1]
         out.append(
             _Site(
-                enzyme=enzyme, site=site, fm=fm, kdeg=k,
+                enzyme=enzyme,
+                site=site,
+                fm=fm,
+                kdeg=k,
                 inv_ki=tuple((c.species_index, 1.0 / c.ki_u_um) for c in acting if c.ki_u_um is not None),
                 inact=tuple(
                     (c.species_index, c.kinact_per_h, c.ki_inact_u_um)
-                    for c in acting if c.kinact_per_h is not None and c.ki_inact_u_um is not None
+                    for c in acting
+                    if c.kinact_per_h is not None and c.ki_inact_u_um is not None
                 ),
                 induce=tuple(
                     (c.species_index, c.calibration * c.emax, c.ec50_u_um)
-                    for c in acting if c.emax is not None and c.ec50_u_um is not None
+                    for c in acting
+                    if c.emax is not None and c.ec50_u_um is not None
                 ),
             )
         )
@@ -348,7 +367,7 @@ def _sites(a: Assessment, kdeg: dict[str, tuple[float | None, float | None]], gu
 # --------------------------------------------------------------------------- helpers
 
 
-def _hours(q: units.Quantity | None) -> float | None:
+def _hours(q: pint.Quantity | None) -> float | None:
     return None if q is None else units.magnitude(q, "h")
 
 
@@ -444,7 +463,9 @@ def simulate(
         raise InputError("perpetrator.interval", None, 'is missing; the time course needs the dosing interval, e.g. "24 h"')
     half_p = _hours(p.half_life)
     if half_p is None and mode == "regimen":
-        raise InputError("perpetrator.half_life", None, 'is missing; the time course needs the elimination half-life, e.g. "18 h"')
+        raise InputError(
+            "perpetrator.half_life", None, 'is missing; the time course needs the elimination half-life, e.g. "18 h"'
+        )
     half_v = _hours(v.half_life)
     if half_v is None:
         raise InputError("victim.half_life", None, 'is missing; the time course needs the victim\'s half-life, e.g. "6 h"')
@@ -472,13 +493,31 @@ def simulate(
                 ka_p *= 1.0 + 1e-4  # the flip-flop singularity: an imperceptible shift keeps the formula finite
             shape, tmax = _ss_shape(ka_p, ke, tau_p)
             vf = dose * shape / cmax
-            settings.append(Setting(name="perpetrator_vf", label="Perpetrator V/F (fitted to Cmax,ss)", value=vf, unit="L",
-                                    origin="derived", note=f"one-compartment oral model; tmax,ss {tmax:.3g} h"))
+            settings.append(
+                Setting(
+                    name="perpetrator_vf",
+                    label="Perpetrator V/F (fitted to Cmax,ss)",
+                    value=vf,
+                    unit="L",
+                    origin="derived",
+                    note=f"one-compartment oral model; tmax,ss {tmax:.3g} h",
+                )
+            )
         else:
             vf = dose / cmax / (1.0 - math.exp(-ke * tau_p))
-            settings.append(Setting(name="perpetrator_v", label="Perpetrator V (fitted to Cmax,ss)", value=vf, unit="L",
-                                    origin="derived", note="one-compartment intravenous bolus model"))
-        settings.append(Setting(name="perpetrator_half_life", label="Perpetrator half-life", value=half_p, unit="h", origin="given"))
+            settings.append(
+                Setting(
+                    name="perpetrator_v",
+                    label="Perpetrator V (fitted to Cmax,ss)",
+                    value=vf,
+                    unit="L",
+                    origin="derived",
+                    note="one-compartment intravenous bolus model",
+                )
+            )
+        settings.append(
+            Setting(name="perpetrator_half_life", label="Perpetrator half-life", value=half_p, unit="h", origin="given")
+        )
         acc = 1.0 / (1.0 - math.exp(-ke * tau_p))
         if acc > 1.0 + 1e-9:
             notes.append(f"perpetrator accumulation factor {acc:.3g}: steady state after about {5 * half_p / 24:.3g} days")
@@ -489,24 +528,43 @@ def simulate(
         profile_t = np.asarray(profile[0], dtype=float)
         profile_c = np.asarray(profile[1], dtype=float)
         if profile_t.ndim != 1 or profile_t.shape != profile_c.shape or profile_t.size < 2:
-            raise InputError("profile", f"{profile_t.size} times, {profile_c.size} values", "expected two sequences of equal length >= 2")
+            raise InputError(
+                "profile", f"{profile_t.size} times, {profile_c.size} values", "expected two sequences of equal length >= 2"
+            )
         if not (np.all(np.isfinite(profile_t)) and np.all(np.isfinite(profile_c)) and np.all(profile_c >= 0)):
             raise InputError("profile", "non-finite or negative values", "expected finite times and concentrations >= 0")
         if np.any(np.diff(profile_t) <= 0) or profile_t[0] > 0:
-            raise InputError("profile", f"times from {profile_t[0]:g} h", "expected strictly increasing times starting at or before 0 h")
+            raise InputError(
+                "profile", f"times from {profile_t[0]:g} h", "expected strictly increasing times starting at or before 0 h"
+            )
     fa_fg = st["fa_fg"].value
     fa = st["fraction_absorbed"].value
     rb = st["blood_plasma_ratio"].value
     fu_gut = st["fu_gut"].value
     perp = _Perp(
-        mode=mode, oral=oral, dose=dose, tau=tau_p, n_doses=n_doses, stop=stop, ka=ka_p, ke=ke, vf=vf,
-        fu=parent.fu_plasma_used, portal=fa_fg / (qh * rb), enterocyte=fu_gut * fa / qent, cmax=cmax,
+        mode=mode,
+        oral=oral,
+        dose=dose,
+        tau=tau_p,
+        n_doses=n_doses,
+        stop=stop,
+        ka=ka_p,
+        ke=ke,
+        vf=vf,
+        fu=parent.fu_plasma_used,
+        portal=fa_fg / (qh * rb),
+        enterocyte=fu_gut * fa / qent,
+        cmax=cmax,
         metabolites=tuple((m.fu_plasma_used, m.cmax_um / cmax) for m in sp[1:]),
-        const_inlet=tuple(x.unbound_inlet_um for x in sp), const_ent=tuple(x.enterocyte_um for x in sp),
-        profile_t=profile_t, profile_c=profile_c,
+        const_inlet=tuple(x.unbound_inlet_um for x in sp),
+        const_ent=tuple(x.enterocyte_um for x in sp),
+        profile_t=profile_t,
+        profile_c=profile_c,
     )
     if len(sp) > 1 and mode != "constant":
-        notes.append("metabolite concentrations follow the parent's profile scaled to their Cmax (formation-rate limited; an assumption)")
+        notes.append(
+            "metabolite concentrations follow the parent's profile scaled to their Cmax (formation-rate limited; an assumption)"
+        )
 
     # -- enzymes
     gut_enzyme = assessment.prediction.gut_enzyme
@@ -525,7 +583,9 @@ def simulate(
             )
     for kd in kdeg_used:
         if kd.from_memory:
-            warnings.append(f"{kd.label} = {kd.value:.4g} 1/h is from memory ({kd.source}): the onset and offset times scale with 1/kdeg.")
+            warnings.append(
+                f"{kd.label} = {kd.value:.4g} 1/h is from memory ({kd.source}): the onset and offset times scale with 1/kdeg."
+            )
     turn = [i for i, x in enumerate(sites) if x.turnover]
     liver_sites = [x for x in sites if x.site == "liver"]
     gut_site = next((x for x in sites if x.site == "gut"), None)
@@ -533,19 +593,31 @@ def simulate(
 
     # -- the victim
     ka_v_q = units.magnitude(v.ka, "1/h") if v.ka is not None else st["absorption_rate"].value * 60.0
-    settings.append(Setting(
-        name="victim_ka", label="Victim absorption rate ka", value=ka_v_q, unit="1/h",
-        origin="given" if v.ka is not None else "default",
-        source="" if v.ka is not None else "the default perpetrator ka (S7, S8, S10) reused for the victim",
-        status="" if v.ka is not None else "assumption",
-    ))
+    settings.append(
+        Setting(
+            name="victim_ka",
+            label="Victim absorption rate ka",
+            value=ka_v_q,
+            unit="1/h",
+            origin="given" if v.ka is not None else "default",
+            source="" if v.ka is not None else "the default perpetrator ka (S7, S8, S10) reused for the victim",
+            status="" if v.ka is not None else "assumption",
+        )
+    )
     e_h = v.hepatic_extraction if v.hepatic_extraction is not None else DEFAULT_EXTRACTION
-    settings.append(Setting(
-        name="victim_hepatic_extraction", label="Victim hepatic extraction E_h", value=e_h, unit="",
-        origin="given" if v.hepatic_extraction is not None else "default",
-        source="" if v.hepatic_extraction is not None else "assumed; shapes the curves and Cmax, not the steady-state AUC ratio",
-        status="" if v.hepatic_extraction is not None else "assumption",
-    ))
+    settings.append(
+        Setting(
+            name="victim_hepatic_extraction",
+            label="Victim hepatic extraction E_h",
+            value=e_h,
+            unit="",
+            origin="given" if v.hepatic_extraction is not None else "default",
+            source=""
+            if v.hepatic_extraction is not None
+            else "assumed; shapes the curves and Cmax, not the steady-state AUC ratio",
+            status="" if v.hepatic_extraction is not None else "assumption",
+        )
+    )
     settings.append(Setting(name="victim_half_life", label="Victim half-life", value=half_v, unit="h", origin="given"))
     k_v = LN2 / half_v
     clint0 = qh * e_h / (1.0 - e_h)
@@ -556,10 +628,14 @@ def simulate(
     ka_v = ka_v_q
     if victim_oral and abs(ka_v - k_v) < 1e-6 * ka_v:
         ka_v *= 1.0 + 1e-4
-    settings.append(Setting(name="victim_volume", label="Victim volume (from CL_h and half-life)", value=vol, unit="L", origin="derived"))
+    settings.append(
+        Setting(name="victim_volume", label="Victim volume (from CL_h and half-life)", value=vol, unit="L", origin="derived")
+    )
     auc_tau0 = f0 / cl0  # per unit dose, over one interval at steady state
     gut_factor = (1.0 / fg0 - 1.0) if gut_site is not None else 0.0
-    notes.append("all victim clearance is taken as hepatic (well-stirred); fm values are fractions of hepatic intrinsic clearance")
+    notes.append(
+        "all victim clearance is taken as hepatic (well-stirred); fm values are fractions of hepatic intrinsic clearance"
+    )
     if not victim_oral and e_h > 0.1:
         notes.append(
             f"intravenous victim with hepatic extraction {e_h:.2g}: blood flow limits the change in clearance, so the "
@@ -571,15 +647,21 @@ def simulate(
         window = tau_v
     t_start = -window  # a window multiple of the victim's interval, so the victim is at a dose time
     slowest = min([x.kdeg for x in sites if x.turnover and x.kdeg] or [1.0])
-    wash = 24.0 * washout_days if washout_days is not None else min(
-        _MAX_WASHOUT_H, max(5.0 / slowest, 5.0 * (half_p or 0.0) + 24.0, 2.0 * window, 48.0)
+    wash = (
+        24.0 * washout_days
+        if washout_days is not None
+        else min(_MAX_WASHOUT_H, max(5.0 / slowest, 5.0 * (half_p or 0.0) + 24.0, 2.0 * window, 48.0))
     )
     end = stop + wash
     end = tau_v * math.ceil(end / tau_v - 1e-9)
     if mode == "profile":
         assert profile_t is not None
         if profile_t[-1] < end - 1e-9:
-            raise InputError("profile", f"ends at {profile_t[-1]:g} h", f"must cover the simulated span to {end:g} h (dosing {stop:g} h + follow-up)")
+            raise InputError(
+                "profile",
+                f"ends at {profile_t[-1]:g} h",
+                f"must cover the simulated span to {end:g} h (dosing {stop:g} h + follow-up)",
+            )
 
     # -- the ODE: y = [victim central amount, AUC, E for each turnover site], per unit victim dose.
     # The victim's gut amount is analytic (absorption is not inhibited): G_v(t) = exp(-ka (t - t_last)) / (1 - exp(-ka tau)).
@@ -654,15 +736,16 @@ def simulate(
     ts_all: list[Array] = []
     ys_all: list[Array] = []
     nfev = 0
-    for a_, b_ in zip(edges[:-1], edges[1:], strict=True):
+    for a_, b_ in itertools.pairwise(edges):
         if not victim_oral and round(a_, 9) in victim_times:
             y[0] += 1.0
         grid = grid_all[(grid_all >= a_ - 1e-9) & (grid_all <= b_ + 1e-9)]
         last_seg = b_ >= edges[-1] - 1e-9
         if method == "odeint":
             crit = np.array(sorted(k for k in kinks if a_ < k < b_))
-            out, info = odeint(rhs, y, grid, tfirst=True, rtol=rtol, atol=atol, tcrit=crit if crit.size else None,
-                               full_output=True, mxstep=50000)
+            out, info = odeint(
+                rhs, y, grid, tfirst=True, rtol=rtol, atol=atol, tcrit=crit if crit.size else None, full_output=True, mxstep=50000
+            )
             if info["message"] != "Integration successful.":
                 raise InputError("time course", f"solver failure at t = {a_:g} h", f"could not be integrated ({info['message']})")
             nfev += int(info["nfe"][-1])
@@ -683,8 +766,12 @@ def simulate(
     # baseline (analytic periodic steady state)
     tp = np.mod(t - t_start, tau_v)
     if victim_oral:
-        conc_without = f0 / vol * ka_v / (ka_v - k_v) * (
-            np.exp(-k_v * tp) / (1.0 - math.exp(-k_v * tau_v)) - np.exp(-ka_v * tp) / (1.0 - qv)
+        conc_without = (
+            f0
+            / vol
+            * ka_v
+            / (ka_v - k_v)
+            * (np.exp(-k_v * tp) / (1.0 - math.exp(-k_v * tau_v)) - np.exp(-ka_v * tp) / (1.0 - qv))
         )
     else:
         conc_without = 1.0 / vol * np.exp(-k_v * tp) / (1.0 - math.exp(-k_v * tau_v))
@@ -723,9 +810,11 @@ def simulate(
         warnings.append("The effect had not faded by the end of the follow-up: simulate a longer washout.")
     if not meaningful:
         notes.append("the dynamic effect stays below 1 %: onset and offset times are not given")
-    if meaningful and (math.log(after_ratio) * ln_ss < 0 or abs(math.log(after_ratio)) > abs(ln_ss) + band) and abs(
-        math.log(after_ratio)
-    ) > band:
+    if (
+        meaningful
+        and (math.log(after_ratio) * ln_ss < 0 or abs(math.log(after_ratio)) > abs(ln_ss) + band)
+        and abs(math.log(after_ratio)) > band
+    ):
         warnings.append(
             f"After stopping, exposure moves to {after_ratio:.3g} times baseline about {after_h / 24:.1f} days later "
             f"(steady state while dosing: {r_ss:.3g}): the mechanisms fade at different speeds."
@@ -747,7 +836,7 @@ def simulate(
         cum = np.concatenate(([0.0], np.cumsum(0.5 * (full[1:] + full[:-1]) * np.diff(t))))
         avg = (cum[keep] - np.interp(tk - window, t, cum)) / window
         e_stop = float(avg[i_stop])
-        rev_s, kobs_s, ind_s = x.terms(static_species[0] if x.site == "liver" else static_species[1])
+        _, kobs_s, ind_s = x.terms(static_species[0] if x.site == "liver" else static_species[1])
         assert x.kdeg is not None
         e_static = ind_s * x.kdeg / (x.kdeg + kobs_s)
         ln_e = np.log(np.maximum(avg, 1e-300))
@@ -761,8 +850,13 @@ def simulate(
             acts.append(x.terms(cl_ if x.site == "liver" else cg_)[0] * amount[k_])
         enzymes.append(
             EnzymeCourse(
-                enzyme=x.enzyme, site=x.site, kdeg_per_h=x.kdeg, amount=tuple(float(a) for a in amount),
-                activity=tuple(float(a) for a in acts), amount_at_stop=e_stop, amount_static=e_static,
+                enzyme=x.enzyme,
+                site=x.site,
+                kdeg_per_h=x.kdeg,
+                amount=tuple(float(a) for a in amount),
+                activity=tuple(float(a) for a in acts),
+                amount_at_stop=e_stop,
+                amount_static=e_static,
                 onset_h=_settle(tk, ln_e, lne_stop, bnd, 0.0, stop) if ok else None,
                 recovery_h=_settle(tk, ln_e, 0.0, bnd, stop, float(tk[-1])) if ok else None,
             )
@@ -797,8 +891,11 @@ def simulate(
         settings=tuple(settings),
         kdeg_used=tuple(kdeg_used),
         warnings=tuple(warnings),
-        solver=(f"scipy.integrate.odeint (LSODA), rtol {rtol:g}, atol {atol:g}" if method == "odeint"
-                else f"scipy.integrate.solve_ivp {method}, rtol {rtol:g}, atol {atol:g}"),
+        solver=(
+            f"scipy.integrate.odeint (LSODA), rtol {rtol:g}, atol {atol:g}"
+            if method == "odeint"
+            else f"scipy.integrate.solve_ivp {method}, rtol {rtol:g}, atol {atol:g}"
+        ),
         nfev=nfev,
         notes=tuple(notes),
     )

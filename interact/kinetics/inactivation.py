@@ -161,8 +161,9 @@ def fit_curve(
     hi = np.asarray(upper, dtype=float)
     x0 = np.clip(np.asarray(start, dtype=float), lo + 1e-12 * np.abs(lo) + 1e-300, hi)
     with np.errstate(all="ignore"):
-        sol = least_squares(resid, x0, jac=jac, bounds=(lo, hi), method="trf", x_scale="jac",
-                            xtol=1e-15, ftol=1e-15, gtol=1e-15, max_nfev=2000)
+        sol = least_squares(
+            resid, x0, jac=jac, bounds=(lo, hi), method="trf", x_scale="jac", xtol=1e-15, ftol=1e-15, gtol=1e-15, max_nfev=2000
+        )
     theta = sol.x
     r = resid(theta)
     rss = float(r @ r)
@@ -190,7 +191,10 @@ def fit_curve(
         at_bound = bool(np.isclose(theta[i], lo[i], rtol=1e-9, atol=0.0) or np.isclose(theta[i], hi[i], rtol=1e-9, atol=0.0))
         estimates.append(
             Estimate(
-                name=names[i], value=float(theta[i]), unit=units[i], std_error=se,
+                name=names[i],
+                value=float(theta[i]),
+                unit=units[i],
+                std_error=se,
                 ci_low=None if se is None or tq is None else float(theta[i] - tq * se),
                 ci_high=None if se is None or tq is None else float(theta[i] + tq * se),
                 at_bound=at_bound,
@@ -200,10 +204,22 @@ def fit_curve(
         message += "; an estimate sits on its bound (the data do not define it)"
     aic = float(n * math.log(rss / n) + 2 * (p + 1)) if rss > 0 else None
     return CurveFit(
-        model=model, equation=equation, success=success, message=message, estimates=tuple(estimates),
-        n=n, n_params=p, df=df, rss=rss, residual_sd=None if s2 is None else math.sqrt(s2), aic=aic,
-        nfev=int(sol.nfev), fitted=tuple(float(v) for v in function(x, theta)),
-        residuals=tuple(float(v) for v in (y - function(x, theta))), covariance=cov, level=level,
+        model=model,
+        equation=equation,
+        success=success,
+        message=message,
+        estimates=tuple(estimates),
+        n=n,
+        n_params=p,
+        df=df,
+        rss=rss,
+        residual_sd=None if s2 is None else math.sqrt(s2),
+        aic=aic,
+        nfev=int(sol.nfev),
+        fitted=tuple(float(v) for v in function(x, theta)),
+        residuals=tuple(float(v) for v in (y - function(x, theta))),
+        covariance=cov,
+        level=level,
     )
 
 
@@ -261,8 +277,14 @@ def fit_kobs(time_min: ArrayLike, activity: ArrayLike, *, concentration_um: floa
     syy = float(((y - y.mean()) ** 2).sum())
     r2 = 1.0 - float(resid @ resid) / syy if syy > 0 else None
     return KobsFit(
-        concentration_um=float(concentration_um), kobs_per_min=-slope, std_error=se, intercept=intercept, n=n,
-        r_squared=r2, time_min=tuple(float(v) for v in t), log_activity=tuple(float(v) for v in y),
+        concentration_um=float(concentration_um),
+        kobs_per_min=-slope,
+        std_error=se,
+        intercept=intercept,
+        n=n,
+        r_squared=r2,
+        time_min=tuple(float(v) for v in t),
+        log_activity=tuple(float(v) for v in y),
     )
 
 
@@ -365,9 +387,19 @@ def fit_inactivation(
     if s is not None and s.shape != c.shape:
         raise FitError(f"sigma has {s.size} values for {c.size} points")
     fit = fit_curve(
-        model="inactivation hyperbola", equation=HYPERBOLA_EQUATION, x=c, y=k, function=_hyp, jacobian=_hyp_jac,
-        start=start or guess_inactivation(c, k), names=("kinact", "KI"), units=("1/min", "uM"),
-        lower=(0.0, 0.0), upper=(np.inf, np.inf), sigma=s, level=level,
+        model="inactivation hyperbola",
+        equation=HYPERBOLA_EQUATION,
+        x=c,
+        y=k,
+        function=_hyp,
+        jacobian=_hyp_jac,
+        start=start or guess_inactivation(c, k),
+        names=("kinact", "KI"),
+        units=("1/min", "uM"),
+        lower=(0.0, 0.0),
+        upper=(np.inf, np.inf),
+        sigma=s,
+        level=level,
     )
     kin, ki = fit.estimates
     notes = []
@@ -377,8 +409,13 @@ def fit_inactivation(
             "are poorly defined apart; their ratio kinact/KI is the better-determined quantity"
         )
     return InactivationFit(
-        kinact=kin, ki=ki, fit=fit, efficiency=_efficiency(kin, ki, fit),
-        concentration_um=tuple(float(v) for v in c), kobs_per_min=tuple(float(v) for v in k), notes=tuple(notes),
+        kinact=kin,
+        ki=ki,
+        fit=fit,
+        efficiency=_efficiency(kin, ki, fit),
+        concentration_um=tuple(float(v) for v in c),
+        kobs_per_min=tuple(float(v) for v in k),
+        notes=tuple(notes),
     )
 
 
@@ -429,7 +466,13 @@ def fit_inactivation_raw(
     if vehicle is not None and subtract_vehicle and vehicle.kobs_per_min != 0.0:
         notes.append(f"vehicle loss kobs {vehicle.kobs_per_min:.3g} 1/min subtracted from every concentration")
     return InactivationFit(
-        kinact=fit.kinact, ki=fit.ki, fit=fit.fit, efficiency=fit.efficiency, concentration_um=fit.concentration_um,
-        kobs_per_min=fit.kobs_per_min, kobs_fits=series,
-        vehicle_kobs_per_min=None if vehicle is None else vehicle.kobs_per_min, notes=tuple(notes),
+        kinact=fit.kinact,
+        ki=fit.ki,
+        fit=fit.fit,
+        efficiency=fit.efficiency,
+        concentration_um=fit.concentration_um,
+        kobs_per_min=fit.kobs_per_min,
+        kobs_fits=series,
+        vehicle_kobs_per_min=None if vehicle is None else vehicle.kobs_per_min,
+        notes=tuple(notes),
     )

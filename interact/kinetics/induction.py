@@ -145,9 +145,19 @@ def fit_induction(
     notes: list[str] = []
     if hill:
         fit = fit_curve(
-            model="induction Emax (Hill)", equation=HILL_EQUATION, x=c, y=f, function=_hill, jacobian=_hill_jac,
-            start=start or (g_emax, g_ec50, 1.0), names=("Emax", "EC50", "h"), units=("", "uM", ""),
-            lower=(0.0, 1e-12, 0.1), upper=(np.inf, np.inf, 10.0), sigma=s, level=level,
+            model="induction Emax (Hill)",
+            equation=HILL_EQUATION,
+            x=c,
+            y=f,
+            function=_hill,
+            jacobian=_hill_jac,
+            start=start or (g_emax, g_ec50, 1.0),
+            names=("Emax", "EC50", "h"),
+            units=("", "uM", ""),
+            lower=(0.0, 1e-12, 0.1),
+            upper=(np.inf, np.inf, 10.0),
+            sigma=s,
+            level=level,
         )
         h_est = fit.estimates[2]
         if abs(h_est.value - 1.0) > 0.05:
@@ -157,14 +167,29 @@ def fit_induction(
             )
     else:
         fit = fit_curve(
-            model="induction Emax", equation=EMAX_EQUATION, x=c, y=f, function=_emax, jacobian=_emax_jac,
-            start=start or (g_emax, g_ec50), names=("Emax", "EC50"), units=("", "uM"),
-            lower=(0.0, 0.0), upper=(np.inf, np.inf), sigma=s, level=level,
+            model="induction Emax",
+            equation=EMAX_EQUATION,
+            x=c,
+            y=f,
+            function=_emax,
+            jacobian=_emax_jac,
+            start=start or (g_emax, g_ec50),
+            names=("Emax", "EC50"),
+            units=("", "uM"),
+            lower=(0.0, 0.0),
+            upper=(np.inf, np.inf),
+            sigma=s,
+            level=level,
         )
         h_est = None
     if float(c.max()) < fit.estimates[1].value:
         notes.append("the highest concentration tested lies below the fitted EC50: Emax is an extrapolation")
     return InductionFit(
-        emax=fit.estimates[0], ec50=fit.estimates[1], hill=h_est, fit=fit,
-        concentration_um=tuple(float(v) for v in c), fold_change=tuple(float(v) for v in f), notes=tuple(notes),
+        emax=fit.estimates[0],
+        ec50=fit.estimates[1],
+        hill=h_est,
+        fit=fit,
+        concentration_um=tuple(float(v) for v in c),
+        fold_change=tuple(float(v) for v in f),
+        notes=tuple(notes),
     )

@@ -13,7 +13,9 @@ from .numbers import fmt
 
 __all__ = ["format_mechanism_fit", "mechanism_fit_to_dict"]
 
-_CAUTION = "Fitted constants are estimates with uncertainty: check the residuals and the design before carrying them into a prediction."
+_CAUTION = (
+    "Fitted constants are estimates with uncertainty: check the residuals and the design before carrying them into a prediction."
+)
 
 
 def _num(x: float | None) -> float | None:
@@ -24,8 +26,13 @@ def _est_rows(ests: tuple[Estimate, ...], level: float) -> Table:
     return Table(
         headers=("parameter", "estimate", "std. error", f"{level:.0%} interval (Wald)", "unit"),
         rows=tuple(
-            (e.name, fmt(e.value, 4), fmt(e.std_error), "-" if e.ci_low is None else f"{fmt(e.ci_low)} to {fmt(e.ci_high)}",
-             e.unit + (" (at bound)" if e.at_bound else ""))
+            (
+                e.name,
+                fmt(e.value, 4),
+                fmt(e.std_error),
+                "-" if e.ci_low is None else f"{fmt(e.ci_low)} to {fmt(e.ci_high)}",
+                e.unit + (" (at bound)" if e.at_bound else ""),
+            )
             for e in ests
         ),
     )
@@ -70,8 +77,14 @@ def mechanism_fit_to_dict(result: InactivationFit | InductionFit, source: str) -
     def est(e: Estimate | None) -> dict[str, Any] | None:
         if e is None:
             return None
-        return {"value": e.value, "unit": e.unit, "std_error": _num(e.std_error), "ci_low": _num(e.ci_low),
-                "ci_high": _num(e.ci_high), "at_bound": e.at_bound}
+        return {
+            "value": e.value,
+            "unit": e.unit,
+            "std_error": _num(e.std_error),
+            "ci_low": _num(e.ci_low),
+            "ci_high": _num(e.ci_high),
+            "at_bound": e.at_bound,
+        }
 
     out: dict[str, Any] = {
         "schema": "interact.mechanism-fit/1",
@@ -88,10 +101,16 @@ def mechanism_fit_to_dict(result: InactivationFit | InductionFit, source: str) -
         "notes": list(result.notes),
     }
     if isinstance(result, InactivationFit):
-        out.update(kinact_per_min=est(result.kinact), ki_um=est(result.ki), kinact_over_ki=est(result.efficiency),
-                   vehicle_kobs_per_min=result.vehicle_kobs_per_min,
-                   kobs=[{"concentration_um": k.concentration_um, "kobs_per_min": k.kobs_per_min, "std_error": _num(k.std_error),
-                          "n": k.n} for k in result.kobs_fits])
+        out.update(
+            kinact_per_min=est(result.kinact),
+            ki_um=est(result.ki),
+            kinact_over_ki=est(result.efficiency),
+            vehicle_kobs_per_min=result.vehicle_kobs_per_min,
+            kobs=[
+                {"concentration_um": k.concentration_um, "kobs_per_min": k.kobs_per_min, "std_error": _num(k.std_error), "n": k.n}
+                for k in result.kobs_fits
+            ],
+        )
     else:
         out.update(emax=est(result.emax), ec50_um=est(result.ec50), hill=est(result.hill))
     return out

@@ -38,11 +38,22 @@ def _days(h: float | None) -> str:
 def timecourse_advice(tc: TimeCourse, a: Assessment) -> tuple[str, ...]:
     """When to change the victim's dose and when to return, for this course."""
     return timing_advice(
-        action=a.dose.action, steady_ratio=tc.steady_state_ratio, static_ratio=tc.static_ratio, onset_h=tc.onset_h,
-        offset_h=tc.offset_h, peak_ratio=tc.peak_ratio, peak_h=tc.peak_h, boundary=a.dose.boundary,
-        effect_fraction=tc.effect_fraction, follow_up_h=tc.end_h - tc.stop_h, mechanisms=a.prediction.mechanisms,
-        usual_dose=a.dose.usual_dose, dose_unit=a.dose.dose_unit, after_stop_ratio=tc.after_stop_ratio,
-        after_stop_h=tc.after_stop_h, half_offset_h=tc.half_offset_h,
+        action=a.dose.action,
+        steady_ratio=tc.steady_state_ratio,
+        static_ratio=tc.static_ratio,
+        onset_h=tc.onset_h,
+        offset_h=tc.offset_h,
+        peak_ratio=tc.peak_ratio,
+        peak_h=tc.peak_h,
+        boundary=a.dose.boundary,
+        effect_fraction=tc.effect_fraction,
+        follow_up_h=tc.end_h - tc.stop_h,
+        mechanisms=a.prediction.mechanisms,
+        usual_dose=a.dose.usual_dose,
+        dose_unit=a.dose.dose_unit,
+        after_stop_ratio=tc.after_stop_ratio,
+        after_stop_h=tc.after_stop_h,
+        half_offset_h=tc.half_offset_h,
     )
 
 
@@ -62,11 +73,18 @@ def timecourse_sections(tc: TimeCourse, a: Assessment | None = None) -> list[Sec
         headers=("quantity", "value", "note"),
         rows=(
             ("AUC ratio, static (mechanistic)", fmt_ratio(tc.static_ratio), "peak concentrations held constant"),
-            ("AUC ratio, dynamic steady state", fmt_ratio(tc.steady_state_ratio),
-             f"over the last {fmt(tc.window_h)} h before stopping" + ("" if tc.steady else "; NOT at steady state")),
+            (
+                "AUC ratio, dynamic steady state",
+                fmt_ratio(tc.steady_state_ratio),
+                f"over the last {fmt(tc.window_h)} h before stopping" + ("" if tc.steady else "; NOT at steady state"),
+            ),
             ("Cmax ratio, dynamic", fmt_ratio(tc.cmax_ratio), "last victim interval before stopping"),
             ("Largest change while dosing", fmt_ratio(tc.peak_ratio), f"on day {fmt(tc.peak_h / 24.0)}"),
-            ("Largest change after stopping", fmt_ratio(tc.after_stop_ratio), f"{fmt(tc.after_stop_h / 24.0)} d after the stop (windows after dosing)"),
+            (
+                "Largest change after stopping",
+                fmt_ratio(tc.after_stop_ratio),
+                f"{fmt(tc.after_stop_h / 24.0)} d after the stop (windows after dosing)",
+            ),
             (f"Onset ({pct} of the effect)", _days(tc.onset_h), "after the first perpetrator dose"),
             ("Half the effect gone", _days(tc.half_offset_h), "after the last day of dosing"),
             (f"Offset (within {1 - tc.effect_fraction:.0%} of none)", _days(tc.offset_h), "after the last day of dosing"),
@@ -80,24 +98,41 @@ def timecourse_sections(tc: TimeCourse, a: Assessment | None = None) -> list[Sec
     rows = []
     for d in _sample_days(tc):
         h = d * 24.0
-        row = [fmt(d), "on" if h < tc.stop_h - 1e-9 else ("last" if abs(h - tc.stop_h) < 1e-9 else "off"),
-               fmt_ratio(float(np.interp(h, t, ratio)))]
+        row = [
+            fmt(d),
+            "on" if h < tc.stop_h - 1e-9 else ("last" if abs(h - tc.stop_h) < 1e-9 else "off"),
+            fmt_ratio(float(np.interp(h, t, ratio))),
+        ]
         row += [fmt_ratio(float(np.interp(h, t, np.asarray(e.amount)))) for e in tc.enzymes]
         rows.append(tuple(row))
     curve = Table(headers=("day", "perpetrator", "exposure ratio", *(f"enzyme {c}" for c in enz_cols)), rows=tuple(rows))
     enz = Table(
         headers=("enzyme", "site", "kdeg 1/h", "amount at stop", "static", "onset", "recovery"),
         rows=tuple(
-            (e.enzyme, e.site, fmt(e.kdeg_per_h), fmt_ratio(e.amount_at_stop), fmt_ratio(e.amount_static), _days(e.onset_h),
-             _days(e.recovery_h))
+            (
+                e.enzyme,
+                e.site,
+                fmt(e.kdeg_per_h),
+                fmt_ratio(e.amount_at_stop),
+                fmt_ratio(e.amount_static),
+                _days(e.onset_h),
+                _days(e.recovery_h),
+            )
             for e in tc.enzymes
         ),
     )
     settings = Table(
         headers=("setting", "value", "origin"),
         rows=tuple(
-            (st.label, f"{fmt(st.value, 4)} {st.unit}".strip(),
-             "; ".join(x for x in (st.origin, st.source, st.status.upper() if st.status == "from memory" else st.status, st.note) if x))
+            (
+                st.label,
+                f"{fmt(st.value, 4)} {st.unit}".strip(),
+                "; ".join(
+                    x
+                    for x in (st.origin, st.source, st.status.upper() if st.status == "from memory" else st.status, st.note)
+                    if x
+                ),
+            )
             for st in (*tc.settings, *tc.kdeg_used)
         ),
     )
@@ -146,12 +181,30 @@ def timecourse_to_dict(tc: TimeCourse, a: Assessment | None = None, *, curves: b
         "end_h": tc.end_h,
         "solver": tc.solver,
         "enzymes": [
-            {"enzyme": e.enzyme, "site": e.site, "kdeg_per_h": e.kdeg_per_h, "amount_at_stop": e.amount_at_stop,
-             "amount_static": e.amount_static, "onset_h": _num(e.onset_h), "recovery_h": _num(e.recovery_h)}
+            {
+                "enzyme": e.enzyme,
+                "site": e.site,
+                "kdeg_per_h": e.kdeg_per_h,
+                "amount_at_stop": e.amount_at_stop,
+                "amount_static": e.amount_static,
+                "onset_h": _num(e.onset_h),
+                "recovery_h": _num(e.recovery_h),
+            }
             for e in tc.enzymes
         ],
-        "settings": [{"name": s.name, "label": s.label, "value": s.value, "unit": s.unit, "origin": s.origin,
-                      "source": s.source, "status": s.status, "note": s.note} for s in (*tc.settings, *tc.kdeg_used)],
+        "settings": [
+            {
+                "name": s.name,
+                "label": s.label,
+                "value": s.value,
+                "unit": s.unit,
+                "origin": s.origin,
+                "source": s.source,
+                "status": s.status,
+                "note": s.note,
+            }
+            for s in (*tc.settings, *tc.kdeg_used)
+        ],
         "warnings": list(tc.warnings),
         "notes": list(tc.notes),
     }
@@ -190,7 +243,9 @@ def format_timecourse(tc: TimeCourse, a: Assessment | None = None, fmt_name: str
 # --------------------------------------------------------------------------- SVG
 
 
-def _path(xs: np.ndarray, ys: np.ndarray, x0: float, x1: float, y0: float, y1: float, box: tuple[float, float, float, float]) -> str:
+def _path(
+    xs: np.ndarray, ys: np.ndarray, x0: float, x1: float, y0: float, y1: float, box: tuple[float, float, float, float]
+) -> str:
     left, top, w, h = box
     px = left + (xs - x0) / (x1 - x0) * w
     py = top + h - (ys - y0) / (y1 - y0 if y1 > y0 else 1.0) * h
@@ -207,15 +262,19 @@ def timecourse_svg(tc: TimeCourse, title: str = "") -> str:
     W, H = 900, 620
     e = html.escape
     panels = [(70.0, 50.0, 800.0, 220.0), (70.0, 340.0, 800.0, 220.0)]
-    parts = [f'<svg xmlns="http://www.w3.org/2000/svg" width="{W}" height="{H}" viewBox="0 0 {W} {H}" font-family="sans-serif" font-size="12">',
-             f'<rect width="{W}" height="{H}" fill="white"/>',
-             f'<text x="{W / 2}" y="22" text-anchor="middle" font-size="14">{e(title or "Time course")} (model estimate, not clinical advice)</text>']
+    parts = [
+        f'<svg xmlns="http://www.w3.org/2000/svg" width="{W}" height="{H}" viewBox="0 0 {W} {H}" font-family="sans-serif" font-size="12">',
+        f'<rect width="{W}" height="{H}" fill="white"/>',
+        f'<text x="{W / 2}" y="22" text-anchor="middle" font-size="14">{e(title or "Time course")} (model estimate, not clinical advice)</text>',
+    ]
     stop_d = tc.stop_h / 24.0
 
     def frame(box: tuple[float, float, float, float], y0: float, y1: float, label: str) -> None:
         left, top, w, h = box
         parts.append(f'<rect x="{left}" y="{top}" width="{w}" height="{h}" fill="none" stroke="#444"/>')
-        parts.append(f'<text x="{left - 50}" y="{top + h / 2}" text-anchor="middle" transform="rotate(-90 {left - 50} {top + h / 2})">{e(label)}</text>')
+        parts.append(
+            f'<text x="{left - 50}" y="{top + h / 2}" text-anchor="middle" transform="rotate(-90 {left - 50} {top + h / 2})">{e(label)}</text>'
+        )
         for k in range(5):
             v = y0 + (y1 - y0) * k / 4
             yy = top + h - h * k / 4
@@ -234,7 +293,9 @@ def timecourse_svg(tc: TimeCourse, title: str = "") -> str:
     ymax = float(max(vw.max(), vo.max())) * 1.05 or 1.0
     frame(panels[0], 0.0, ymax, f"victim ({tc.victim_unit})")
     parts.append(f'<polyline fill="none" stroke="#888" stroke-width="1" points="{_path(x, vo, x0, x1, 0.0, ymax, panels[0])}"/>')
-    parts.append(f'<polyline fill="none" stroke="#c0392b" stroke-width="1" points="{_path(x, vw, x0, x1, 0.0, ymax, panels[0])}"/>')
+    parts.append(
+        f'<polyline fill="none" stroke="#c0392b" stroke-width="1" points="{_path(x, vw, x0, x1, 0.0, ymax, panels[0])}"/>'
+    )
     parts.append('<text x="80" y="66" fill="#c0392b">with perpetrator</text><text x="200" y="66" fill="#888">without</text>')
 
     series = [("exposure ratio", arr["exposure_ratio"], "#c0392b")]
@@ -245,7 +306,9 @@ def timecourse_svg(tc: TimeCourse, title: str = "") -> str:
     hi = max(float(max(s[1].max() for s in series)), 1.0) * 1.05
     frame(panels[1], lo, hi, "relative to baseline")
     for k, (name, ys, colour) in enumerate(series):
-        parts.append(f'<polyline fill="none" stroke="{colour}" stroke-width="1.5" points="{_path(x, ys, x0, x1, lo, hi, panels[1])}"/>')
+        parts.append(
+            f'<polyline fill="none" stroke="{colour}" stroke-width="1.5" points="{_path(x, ys, x0, x1, lo, hi, panels[1])}"/>'
+        )
         parts.append(f'<text x="{80 + 170 * k}" y="356" fill="{colour}">{e(name)}</text>')
     parts.append(f'<text x="{W / 2}" y="{H - 12}" text-anchor="middle">days after the first perpetrator dose</text>')
     parts.append("</svg>")

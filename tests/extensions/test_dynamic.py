@@ -22,8 +22,8 @@ import math
 
 import numpy as np
 import pytest
-
 from conftest import base_dict
+
 from interact import assess
 from interact.dynamic import _fast_forcing, simulate, time_course_arrays
 from interact.errors import InputError
@@ -105,8 +105,9 @@ def test_recovery_after_tdi_is_governed_by_kdeg_and_reversible_offset_is_fast() 
     mild = {"kinact": "0.001 1/min", "ki_inact": "3 uM"}
     times = {}
     for kdeg in (0.02, 0.04):
-        a = _assess(mild, perp={"half_life": "3 h"}, victim={"fg": 1.0},
-                    turnover=[{"enzyme": "CYP3A", "kdeg_liver": f"{kdeg} 1/h"}])
+        a = _assess(
+            mild, perp={"half_life": "3 h"}, victim={"fg": 1.0}, turnover=[{"enzyme": "CYP3A", "kdeg_liver": f"{kdeg} 1/h"}]
+        )
         tc = simulate(a, days=20)
         e = tc.enzymes[0]
         assert e.recovery_h == pytest.approx(math.log(10) / kdeg, rel=0.2)
@@ -119,8 +120,9 @@ def test_recovery_after_tdi_is_governed_by_kdeg_and_reversible_offset_is_fast() 
 
 def test_kinact_and_emax_to_zero_reduce_to_the_reversible_course() -> None:
     base = simulate(_assess(REV), days=10, washout_days=3)
-    tiny = simulate(_assess({**REV, "kinact": "1e-12 1/min", "ki_inact": "3 uM", "emax": 1e-12, "ec50": "2 uM"}), days=10,
-                    washout_days=3)
+    tiny = simulate(
+        _assess({**REV, "kinact": "1e-12 1/min", "ki_inact": "3 uM", "emax": 1e-12, "ec50": "2 uM"}), days=10, washout_days=3
+    )
     assert tiny.steady_state_ratio == pytest.approx(base.steady_state_ratio, rel=1e-6)
     assert np.asarray(tiny.victim_with) == pytest.approx(np.asarray(base.victim_with), rel=1e-6)
 
@@ -146,8 +148,24 @@ def test_fast_forcing_equals_the_reference_forcing() -> None:
     a = _assess(REV, perp={"ka": "0.02 1/min"})
     from interact.dynamic import _Perp
 
-    p = _Perp(mode="regimen", oral=True, dose=250.0, tau=24.0, n_doses=10, stop=240.0, ka=1.2, ke=0.07, vf=80.0, fu=0.1,
-              portal=0.01, enterocyte=0.05, cmax=2.0, metabolites=((0.2, 0.4),), const_inlet=(1.0, 0.1), const_ent=(1.0, 0.1))
+    p = _Perp(
+        mode="regimen",
+        oral=True,
+        dose=250.0,
+        tau=24.0,
+        n_doses=10,
+        stop=240.0,
+        ka=1.2,
+        ke=0.07,
+        vf=80.0,
+        fu=0.1,
+        portal=0.01,
+        enterocyte=0.05,
+        cmax=2.0,
+        metabolites=((0.2, 0.4),),
+        const_inlet=(1.0, 0.1),
+        const_ent=(1.0, 0.1),
+    )
     fast = _fast_forcing(p)
     for t in (0.0, 0.3, 23.999, 24.0, 100.7, 239.0, 240.0, 300.0):
         ref = p.sites(t, p.doses_by(t), t < p.stop)
@@ -186,8 +204,15 @@ def test_baseline_curve_and_outputs_are_consistent() -> None:
     assert tc.victim_with[0] == pytest.approx(tc.victim_without[0], rel=1e-6)
     assert auc > 0
     arrays = time_course_arrays(tc)
-    assert set(arrays) >= {"time_day", "victim_with", "victim_without", "exposure_ratio", "perpetrator_um", "enzyme:CYP3A:liver",
-                           "enzyme:CYP3A:gut"}
+    assert set(arrays) >= {
+        "time_day",
+        "victim_with",
+        "victim_without",
+        "exposure_ratio",
+        "perpetrator_um",
+        "enzyme:CYP3A:liver",
+        "enzyme:CYP3A:gut",
+    }
     assert all(len(v) == len(t) for v in arrays.values())
     assert all(np.all(np.isfinite(v)) for v in arrays.values())
     assert {s.label for s in tc.kdeg_used} == {"kdeg CYP3A (liver)", "kdeg CYP3A (gut)"}
@@ -210,13 +235,13 @@ def test_profile_mode_reproduces_the_regimen() -> None:
 def test_missing_inputs_name_the_field() -> None:
     d = base_dict()
     a = assess(scenario_from_dict(d))
-    with pytest.raises(InputError, match="perpetrator.interval"):
+    with pytest.raises(InputError, match=r"perpetrator\.interval"):
         simulate(a)
     d["perpetrator"]["interval"] = "24 h"
-    with pytest.raises(InputError, match="perpetrator.half_life"):
+    with pytest.raises(InputError, match=r"perpetrator\.half_life"):
         simulate(assess(scenario_from_dict(d)))
     d["perpetrator"]["half_life"] = "10 h"
-    with pytest.raises(InputError, match="victim.half_life"):
+    with pytest.raises(InputError, match=r"victim\.half_life"):
         simulate(assess(scenario_from_dict(d)))
     d["victim"]["half_life"] = "5 h"
     ok = assess(scenario_from_dict(d))
@@ -232,8 +257,14 @@ def test_constant_infusion_with_an_inhibitory_metabolite() -> None:
     d = base_dict()
     d["perpetrator"].update({"interval": "24 h", "half_life": "10 h"})
     d["perpetrator"]["inhibits"] = [{"target": "CYP3A", "fu_inc": 1.0, **TDI}]
-    d["perpetrator"]["metabolites"] = [{"name": "M1", "cmax": "0.5 uM", "fu_plasma": 0.2,
-                                        "inhibits": [{"target": "CYP3A", "ki": "1 uM", "emax": 2.0, "ec50": "1 uM"}]}]
+    d["perpetrator"]["metabolites"] = [
+        {
+            "name": "M1",
+            "cmax": "0.5 uM",
+            "fu_plasma": 0.2,
+            "inhibits": [{"target": "CYP3A", "ki": "1 uM", "emax": 2.0, "ec50": "1 uM"}],
+        }
+    ]
     d["victim"].update({"half_life": "6 h"})
     a = assess(scenario_from_dict(d))
     tc = simulate(a, mode="constant", days=40, washout_days=2, rtol=1e-9, atol=1e-12)

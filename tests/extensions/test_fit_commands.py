@@ -14,8 +14,8 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-
 from conftest import read_checks
+
 from interact import load_scenario
 from interact.cli import main
 from interact.errors import InputError
@@ -48,7 +48,7 @@ def test_bad_csv_names_row_and_column() -> None:
 def test_carry_keeps_comments_and_validates() -> None:
     text = EXAMPLE.read_text(encoding="utf-8")
     new = carry_constants_text(text, target="CYP3A4", values={"kinact": "0.05 1/min", "ki_inact": "2 uM"}, origin="test fit")
-    assert "# was \"0.006 1/min\"; time-dependent part" in new
+    assert '# was "0.006 1/min"; time-dependent part' in new
     assert "INVENTED" in new and "reversible part, invented microsomal incubation" in new
     s = load_scenario_text(new)
     assert s.perpetrator.inhibits[0].origin == "test fit"
@@ -89,8 +89,9 @@ def test_fit_tdi_command_recovers_and_carries(tmp_path: Path, capsys: pytest.Cap
 def test_fit_induction_command_matches_puromycin(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     rows = [r for r in read_checks("r_datasets_Puromycin.csv") if r["state"] == "treated"]
     data = tmp_path / "fold.csv"
-    data.write_text("concentration (uM),fold_change\n" + "".join(f"{r['conc']},{1 + float(r['rate'])}\n" for r in rows),
-                    encoding="utf-8")
+    data.write_text(
+        "concentration (uM),fold_change\n" + "".join(f"{r['conc']},{1 + float(r['rate'])}\n" for r in rows), encoding="utf-8"
+    )
     assert main(["fit-induction", str(data), "--format", "json"]) == 0
     out = json.loads(capsys.readouterr().out)
     assert out["emax"]["value"] == pytest.approx(212.68370711, rel=1e-6)

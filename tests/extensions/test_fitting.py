@@ -45,8 +45,11 @@ def _misra1d() -> tuple[np.ndarray, np.ndarray]:
 
 
 def _certified(dataset: str) -> dict[str, tuple[float, float]]:
-    return {r["param"]: (float(r["certified_value"]), float(r["certified_sd"]))
-            for r in read_checks("nist_strd_certified.csv") if r["dataset"] == dataset}
+    return {
+        r["param"]: (float(r["certified_value"]), float(r["certified_sd"]))
+        for r in read_checks("nist_strd_certified.csv")
+        if r["dataset"] == dataset
+    }
 
 
 def _summary(dataset: str) -> dict[str, str]:

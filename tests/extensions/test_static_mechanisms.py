@@ -119,9 +119,22 @@ def test_fold_change_concentration_limit_is_marked_from_memory() -> None:
 # --------------------------------------------------------------------------- mechanistic model
 
 
-def _hand_aucr(*, ki: float | None, kinact_h: float, ki_inact: float, emax: float, ec50: float, d: float,
-               conc_liver: float, conc_gut: float, fm: float, fg: float, kdeg_l: float, kdeg_g: float,
-               include: tuple[str, ...] = ("reversible", "time-dependent", "induction")) -> tuple[float, float]:
+def _hand_aucr(
+    *,
+    ki: float | None,
+    kinact_h: float,
+    ki_inact: float,
+    emax: float,
+    ec50: float,
+    d: float,
+    conc_liver: float,
+    conc_gut: float,
+    fm: float,
+    fg: float,
+    kdeg_l: float,
+    kdeg_g: float,
+    include: tuple[str, ...] = ("reversible", "time-dependent", "induction"),
+) -> tuple[float, float]:
     """Reference-notes section 2 equations, written out independently of the engine."""
 
     def activity(c: float, kdeg: float) -> float:
@@ -139,14 +152,30 @@ def test_net_and_each_mechanism_alone_match_the_equations() -> None:
     a = assess(scenario_from_dict(_scenario(**TDI, **IND, calibration=0.7)))
     pr = a.prediction
     sp = a.species[0]
-    common = dict(ki=2.0, kinact_h=3.0, ki_inact=1.5, emax=4.0, ec50=0.8, d=0.7, conc_liver=sp.unbound_inlet_um,
-                  conc_gut=sp.enterocyte_um, fm=0.8, fg=0.5, kdeg_l=KDEG_LIVER_CYP3A, kdeg_g=KDEG_GUT_CYP3A)
+    common = dict(
+        ki=2.0,
+        kinact_h=3.0,
+        ki_inact=1.5,
+        emax=4.0,
+        ec50=0.8,
+        d=0.7,
+        conc_liver=sp.unbound_inlet_um,
+        conc_gut=sp.enterocyte_um,
+        fm=0.8,
+        fg=0.5,
+        kdeg_l=KDEG_LIVER_CYP3A,
+        kdeg_g=KDEG_GUT_CYP3A,
+    )
     g, h = _hand_aucr(**common)
     assert (pr.gut, pr.liver, pr.total) == pytest.approx((g, h, g * h), rel=1e-12)
     parts = {p.mechanism: p for p in pr.parts}
     assert set(parts) == {"reversible", "time-dependent", "induction", INHIBITION_PART}
-    for name, include in (("reversible", ("reversible",)), ("time-dependent", ("time-dependent",)),
-                          ("induction", ("induction",)), (INHIBITION_PART, ("reversible", "time-dependent"))):
+    for name, include in (
+        ("reversible", ("reversible",)),
+        ("time-dependent", ("time-dependent",)),
+        ("induction", ("induction",)),
+        (INHIBITION_PART, ("reversible", "time-dependent")),
+    ):
         g, h = _hand_aucr(**common, include=include)
         assert (parts[name].gut, parts[name].liver) == pytest.approx((g, h), rel=1e-12), name
     assert parts["induction"].total < 1.0 < parts["time-dependent"].total
@@ -196,16 +225,25 @@ def test_ratio_function_matches_predict_with_tdi_and_induction() -> None:
     from interact.assessment import _kdeg
 
     kdeg, _ = _kdeg(a.scenario, a.constants)
-    f = ratio_function(pathways=(("CYP3A", 0.8),), fg=0.5, gut_enzyme="CYP3A", constants=a.constants, species=a.species,
-                       kdeg=kdeg)
+    f = ratio_function(
+        pathways=(("CYP3A", 0.8),), fg=0.5, gut_enzyme="CYP3A", constants=a.constants, species=a.species, kdeg=kdeg
+    )
     assert f(1.0) == pytest.approx(a.prediction.total, rel=1e-12)
-    doubled = dataclasses.replace(a.species[0], unbound_inlet_um=2 * a.species[0].unbound_inlet_um,
-                                  enterocyte_um=2 * a.species[0].enterocyte_um)
+    doubled = dataclasses.replace(
+        a.species[0], unbound_inlet_um=2 * a.species[0].unbound_inlet_um, enterocyte_um=2 * a.species[0].enterocyte_um
+    )
     from interact.prediction import predict
     from interact.tables import load_classes
 
-    p2 = predict(pathways=(("CYP3A", 0.8),), fg=0.5, gut_enzyme="CYP3A", constants=a.constants, species=(doubled,),
-                 kdeg=kdeg, classes=load_classes())
+    p2 = predict(
+        pathways=(("CYP3A", 0.8),),
+        fg=0.5,
+        gut_enzyme="CYP3A",
+        constants=a.constants,
+        species=(doubled,),
+        kdeg=kdeg,
+        classes=load_classes(),
+    )
     assert f(2.0) == pytest.approx(p2.total, rel=1e-12)
 
 
@@ -239,8 +277,18 @@ def test_kdeg_used_lists_both_sites_of_the_gut_wall_enzyme() -> None:
 def test_kdeg_and_mechanisms_appear_in_text_and_json() -> None:
     a = assess(scenario_from_dict(_scenario(**TDI, **IND)))
     text = format_assessment(a, "text", width=200)
-    for needle in ("kdeg CYP3A (liver)", "FROM MEMORY", "R2", "R3", "mRNA fold change", "time-dependent alone",
-                   "induction alone", f"{INHIBITION_PART} alone", "kinact", "EC50,u"):
+    for needle in (
+        "kdeg CYP3A (liver)",
+        "FROM MEMORY",
+        "R2",
+        "R3",
+        "mRNA fold change",
+        "time-dependent alone",
+        "induction alone",
+        f"{INHIBITION_PART} alone",
+        "kinact",
+        "EC50,u",
+    ):
         assert needle in text, needle
     data = json.loads(format_assessment(a, "json"))
     assert data == json.loads(json.dumps(assessment_to_dict(a)))

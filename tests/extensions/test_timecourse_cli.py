@@ -49,17 +49,25 @@ def test_example_gives_every_mechanism_the_net_and_the_course(course) -> None:  
 
 
 def test_assess_text_has_course_and_timing(capsys: pytest.CaptureFixture[str], course) -> None:  # type: ignore[no-untyped-def]
-    a, tc = course
+    _, tc = course
     assert main(["assess", str(EXAMPLE), "--width", "140"]) == 0
     out = capsys.readouterr().out
-    for needle in ("TIME COURSE (DYNAMIC CHECK)", "AUC ratio, dynamic steady state", "Start:", "Stop:",
-                   "time-dependent alone", "induction alone", "not a prescription", "kdeg CYP3A (liver)"):
+    for needle in (
+        "TIME COURSE (DYNAMIC CHECK)",
+        "AUC ratio, dynamic steady state",
+        "Start:",
+        "Stop:",
+        "time-dependent alone",
+        "induction alone",
+        "not a prescription",
+        "kdeg CYP3A (liver)",
+    ):
         assert needle in out, needle
     assert f"{tc.steady_state_ratio:.3g}" in out
 
 
 def test_assess_json_carries_course_summary(capsys: pytest.CaptureFixture[str], course) -> None:  # type: ignore[no-untyped-def]
-    a, tc = course
+    _, tc = course
     assert main(["assess", str(EXAMPLE), "--format", "json"]) == 0
     data = json.loads(capsys.readouterr().out)
     t = data["time_course"]
@@ -112,9 +120,21 @@ def test_formats_agree(course) -> None:  # type: ignore[no-untyped-def]
 
 
 def _advice(**kw: object) -> tuple[str, ...]:
-    base = dict(action="reduce dose", steady_ratio=2.0, static_ratio=2.2, onset_h=90.0, offset_h=130.0, peak_ratio=2.0,
-                peak_h=600.0, boundary=(0.8, 1.25), effect_fraction=0.9, follow_up_h=300.0, mechanisms=("time-dependent",),
-                usual_dose=8.0, dose_unit="mg")
+    base = dict(
+        action="reduce dose",
+        steady_ratio=2.0,
+        static_ratio=2.2,
+        onset_h=90.0,
+        offset_h=130.0,
+        peak_ratio=2.0,
+        peak_h=600.0,
+        boundary=(0.8, 1.25),
+        effect_fraction=0.9,
+        follow_up_h=300.0,
+        mechanisms=("time-dependent",),
+        usual_dose=8.0,
+        dose_unit="mg",
+    )
     base.update(kw)
     return timing_advice(**base)  # type: ignore[arg-type]
 
@@ -123,23 +143,24 @@ def test_timing_advice_covers_start_stop_and_limits() -> None:
     text = " ".join(_advice())
     assert "Start:" in text and "Stop:" in text and "resynthesised" in text and "returning at once risks overexposure" in text
     assert "guide for monitoring, not a schedule" in text
-    inducer = " ".join(_advice(action="increase dose", steady_ratio=0.4, static_ratio=0.35, peak_ratio=0.4,
-                               mechanisms=("induction",)))
+    inducer = " ".join(
+        _advice(action="increase dose", steady_ratio=0.4, static_ratio=0.35, peak_ratio=0.4, mechanisms=("induction",))
+    )
     assert "stepwise" in inducer and "risks toxicity" in inducer
     fast = " ".join(_advice(onset_h=6.0, offset_h=12.0, mechanisms=("reversible",)))
     assert "when the perpetrator is started" in fast and "eliminated" in fast
     assert "return to the usual dose when the perpetrator is stopped" in fast
     halves = " ".join(_advice(half_offset_h=40.0))
     assert "half of it within 1.7 days" in halves
-    rebound = " ".join(_advice(steady_ratio=2.0, after_stop_ratio=0.6, after_stop_h=30.0,
-                               mechanisms=("reversible", "induction")))
+    rebound = " ".join(_advice(steady_ratio=2.0, after_stop_ratio=0.6, after_stop_h=30.0, mechanisms=("reversible", "induction")))
     assert "swings to 0.6" in rebound and "efficacy may be lost" in rebound
     none = _advice(action="no change", steady_ratio=1.1, static_ratio=1.15, peak_ratio=1.1)
     assert any("no dose timing applies" in x for x in none)
     never = " ".join(_advice(offset_h=None))
     assert "had not faded" in never
-    overshoot = " ".join(_advice(steady_ratio=1.6, static_ratio=1.7, peak_ratio=3.0, peak_h=48.0,
-                                 mechanisms=("time-dependent", "induction")))
+    overshoot = " ".join(
+        _advice(steady_ratio=1.6, static_ratio=1.7, peak_ratio=3.0, peak_h=48.0, mechanisms=("time-dependent", "induction"))
+    )
     assert "passes through 3" in overshoot
     disagree = " ".join(_advice(steady_ratio=1.8, static_ratio=3.2))
     assert "disagree" in disagree and "4.44 mg" in disagree
