@@ -700,16 +700,34 @@ def _num(x: float) -> str:
 
 
 def result_rows(result: BatchResult, top: int | None = None) -> Iterator[tuple[str, ...]]:
-    """Output rows (see :data:`OUTPUT_COLUMNS`), worst pair first; ``top`` limits the count."""
+    """Output rows (see :data:`OUTPUT_COLUMNS`), worst pair first; ``top`` limits the count.
+
+    Built column by column for blocks of ranked pairs (numpy gathers, then one string conversion per column).
+    """
     p, v = result.perpetrators, result.victims
     n_v = len(v.rows)
     order = ranking(result, top)
-    for rank, flat in enumerate(order.tolist(), start=1):
-        i, j = divmod(flat, n_v)
-        yield (
-            str(rank), p.rows[i].name, v.rows[j].name,
-            _num(p.imax_u_um[i]), _num(p.inlet_um[i]), _num(p.gut_lumen_um[i]), _num(p.enterocyte_um[i]), p.basic[i],
-            _num(result.gut[i, j]), _num(result.liver[i, j]), _num(result.total[i, j]),
-            result.band_names[result.band[i, j]], "yes" if result.study[i, j] else "no", ACTIONS[result.action[i, j]],
-            _flag_text(int(result.flags[i, j])),
+    p_names = [r.name for r in p.rows]
+    v_names = [r.name for r in v.rows]
+    per_p = [[_num(x) for x in arr.tolist()] for arr in (p.imax_u_um, p.inlet_um, p.gut_lumen_um, p.enterocyte_um)]
+    flag_texts = [_flag_text(k) for k in range(1 << len(FLAGS))]
+    flat_gut, flat_liver, flat_total = result.gut.ravel(), result.liver.ravel(), result.total.ravel()
+    flat_band, flat_study, flat_action, flat_flags = result.band.ravel(), result.study.ravel(), result.action.ravel(), result.flags.ravel()
+    block = 65_536
+    for start in range(0, order.size, block):
+        idx = order[start:start + block]
+        ii, jj = np.divmod(idx, n_v)
+        il, jl = ii.tolist(), jj.tolist()
+        cols = (
+            [str(k) for k in range(start + 1, start + 1 + idx.size)],
+            [p_names[i] for i in il],
+            [v_names[j] for j in jl],
+            *([col[i] for i in il] for col in per_p),
+            [p.basic[i] for i in il],
+            *([_num(x) for x in arr[idx].tolist()] for arr in (flat_gut, flat_liver, flat_total)),
+            [result.band_names[k] for k in flat_band[idx].tolist()],
+            ["yes" if x else "no" for x in flat_study[idx].tolist()],
+            [ACTIONS[k] for k in flat_action[idx].tolist()],
+            [flag_texts[k] for k in flat_flags[idx].tolist()],
         )
+        yield from zip(*cols, strict=True)

@@ -30,9 +30,8 @@ def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *,
     if fmt_name == "csv":
         w = csv.writer(handle, lineterminator="\n")
         w.writerow(OUTPUT_COLUMNS)
-        for row in result_rows(result, top):
-            w.writerow(row)
-            count += 1
+        w.writerows(result_rows(result, top))
+        count = result.pairs if top is None else min(top, result.pairs)
     elif fmt_name == "json":
         head = {
             "schema": "interact.batch/1",
