@@ -210,21 +210,21 @@ def dose_action_codes_by_victim(
     reps = np.where(np.isfinite(reps), reps, 1.0)  # steps past the last finite breakpoint: never looked up
     args = {"usual_dose": usual, "interval_h": tau, "lower": lo, "upper": hi, "narrow_therapeutic_index": np.asarray(narrow_therapeutic_index)[:, None]}
     step = dose_action_codes(reps, candidates=d[:, None, :], **args)  # (victims, width + 1)
-    # one binary search for all victims: row j's breakpoints live in [j * span - 100, j * span + 100] on a log scale
-    span = 400.0
-    offsets = np.arange(n_v, dtype=float) * span
-    g = np.where(np.isinf(b), offsets[:, None] + span / 2, np.log(np.where(np.isinf(b), 1.0, b)) + offsets[:, None]).ravel()
-    key = np.clip(np.log(r.T), -150.0, 150.0) + offsets[:, None]  # victim-major: each victim's keys search one region
-    idx = (np.searchsorted(g, key) - (np.arange(n_v) * width)[:, None]).T
-    idx = np.clip(idx, 0, width)
-    codes = step[np.arange(n_v)[None, :], idx]
-    lo_b = b[np.arange(n_v)[None, :], np.maximum(idx - 1, 0)]
-    hi_b = b[np.arange(n_v)[None, :], np.minimum(idx, width - 1)]
-    near = (np.abs(r - lo_b) <= _NEAR * lo_b) | (np.isfinite(hi_b) & (np.abs(r - hi_b) <= _NEAR * hi_b)) | ~np.isfinite(r)
-    if np.any(near):
-        ii, jj = np.nonzero(near)
-        codes[ii, jj] = dose_action_codes(
-            r[ii, jj], usual_dose=usual[jj, 0], interval_h=tau[jj, 0], candidates=d[jj], lower=lo[jj, 0], upper=hi[jj, 0],
-            narrow_therapeutic_index=np.asarray(narrow_therapeutic_index)[jj],
-        )
+    # per victim (a loop over victims, not pairs): find each ratio's step among the victim's few breakpoints;
+    # a ratio with a breakpoint within a relative 1e-9 of it is decided by the full rule instead
+    rt = np.ascontiguousarray(r.T)
+    codes_t = np.empty(rt.shape, dtype=np.int8)
+    nti = np.asarray(narrow_therapeutic_index, dtype=bool)
+    for j in range(n_v):
+        rj = rt[j]
+        below = np.searchsorted(b[j], rj * (1.0 - _NEAR), side="left")
+        above = np.searchsorted(b[j], rj * (1.0 + _NEAR), side="right")
+        codes_t[j] = step[j][below]
+        near = (below != above) | ~np.isfinite(rj)
+        if near.any():
+            codes_t[j][near] = dose_action_codes(
+                rj[near], usual_dose=usual[j, 0], interval_h=tau[j, 0], candidates=d[j], lower=lo[j, 0], upper=hi[j, 0],
+                narrow_therapeutic_index=nti[j],
+            )
+    codes = codes_t.T
     return codes.astype(np.int8)
