@@ -182,8 +182,8 @@ def dose_action_codes_by_victim(
 
     For each victim the action is a step function of the AUC ratio: it is
     evaluated once per step (at a point between two breakpoints, see
-    :func:`dose_action_breakpoints`) and looked up for every pair by one
-    binary search over all victims' breakpoints.  Ratios within a relative
+    :func:`dose_action_breakpoints`) and looked up for every pair by a binary
+    search over that victim's few breakpoints.  Ratios within a relative
     1e-9 of a breakpoint are decided by :func:`dose_action_codes` itself, so
     the result is the same, case by case (a test checks this at and around
     every breakpoint).
@@ -202,7 +202,6 @@ def dose_action_codes_by_victim(
     )
     b = np.where(np.isfinite(b) & (b > 0), b, np.inf)
     b.sort(axis=1)
-    width = b.shape[1]
     below = np.concatenate([b[:, :1] / 2.0, b], axis=1)[:, :-1]  # neighbour below each step's upper breakpoint
     reps = np.where(np.isinf(b), below * 2.0, np.sqrt(below * b))
     reps[:, 0] = b[:, 0] / 2.0
@@ -217,10 +216,10 @@ def dose_action_codes_by_victim(
     nti = np.asarray(narrow_therapeutic_index, dtype=bool)
     for j in range(n_v):
         rj = rt[j]
-        below = np.searchsorted(b[j], rj * (1.0 - _NEAR), side="left")
-        above = np.searchsorted(b[j], rj * (1.0 + _NEAR), side="right")
-        codes_t[j] = step[j][below]
-        near = (below != above) | ~np.isfinite(rj)
+        first = np.searchsorted(b[j], rj * (1.0 - _NEAR), side="left")
+        last = np.searchsorted(b[j], rj * (1.0 + _NEAR), side="right")
+        codes_t[j] = step[j][first]
+        near = (first != last) | ~np.isfinite(rj)
         if near.any():
             codes_t[j][near] = dose_action_codes(
                 rj[near], usual_dose=usual[j, 0], interval_h=tau[j, 0], candidates=d[j], lower=lo[j, 0], upper=hi[j, 0],

@@ -252,3 +252,13 @@ def test_unit_on_the_upper_bound_applies_to_both() -> None:
     assert (one.median, one.sigma) == (both.median, both.sigma)
     with pytest.raises(InputError, match="concentration"):
         parse_distribution("ci:0.5,8", inp)  # a Ki bound needs a unit
+
+
+def test_induction_thresholds_reported_when_the_ratio_can_fall() -> None:
+    d = _rich_dict()
+    a = assess(scenario_from_dict(d))
+    assert "induction" in a.prediction.mechanisms
+    res = run_uncertainty(a, [("perpetrator.inhibits[3].emax", "uniform:0,40")], samples=2000, seed=2)
+    lows = [(b, p) for op, b, p in res.exceedance if op == "<="]
+    assert [b for b, _ in lows] == [0.8, 0.5, 0.2]
+    assert all(p == pytest.approx(float(np.mean(res.total <= b)), abs=1e-12) for b, p in lows)
