@@ -69,6 +69,7 @@ from numpy.typing import NDArray
 from . import units
 from .errors import InputError
 from .exposure import Setting
+from .tables import load_physiology
 
 if TYPE_CHECKING:
     import pint
@@ -406,8 +407,8 @@ def simulate(
     effect_fraction: float = 0.9,
     points_per_interval: int = 24,
     method: str = "odeint",
-    rtol: float = 1e-7,
-    atol: float = 1e-10,
+    rtol: float = 1e-6,
+    atol: float = 1e-9,
 ) -> TimeCourse:
     """Simulate the perpetrator's course and its effect on the victim.
 
@@ -572,7 +573,8 @@ def simulate(
     victim_oral = v.route == "oral"
     if not victim_oral or fg0 >= 1.0:
         gut_enzyme = None
-    needed = {c.target for c in assessment.constants if c.kinact_per_h is not None or c.emax is not None}
+    affected = {pw.enzyme for pw in v.pathways} | ({gut_enzyme} if gut_enzyme else set())
+    needed = {c.target for c in assessment.constants if c.kinact_per_h is not None or c.emax is not None} & affected
     kdeg, kdeg_used = _kdeg(s, assessment.constants, needed)
     sites = _sites(assessment, kdeg, gut_enzyme)
     for site in sites:
@@ -592,7 +594,11 @@ def simulate(
     fm_sum = sum(x.fm for x in liver_sites)
 
     # -- the victim
-    ka_v_q = units.magnitude(v.ka, "1/h") if v.ka is not None else st["absorption_rate"].value * 60.0
+    if v.ka is not None:
+        ka_v_q = units.magnitude(v.ka, "1/h")
+    else:  # the table's default absorption rate (not the perpetrator's own, which may have been given)
+        row = next(x for x in load_physiology() if x.name == "absorption_rate")
+        ka_v_q = units.magnitude(units.parse(row.value, "rate", field="physiology.absorption_rate"), "1/h")
     settings.append(
         Setting(
             name="victim_ka",

@@ -119,9 +119,13 @@ def test_recovery_after_tdi_is_governed_by_kdeg_and_reversible_offset_is_fast() 
 
 
 def test_kinact_and_emax_to_zero_reduce_to_the_reversible_course() -> None:
-    base = simulate(_assess(REV), days=10, washout_days=3)
+    base = simulate(_assess(REV), days=10, washout_days=3, rtol=1e-10, atol=1e-13)
     tiny = simulate(
-        _assess({**REV, "kinact": "1e-12 1/min", "ki_inact": "3 uM", "emax": 1e-12, "ec50": "2 uM"}), days=10, washout_days=3
+        _assess({**REV, "kinact": "1e-12 1/min", "ki_inact": "3 uM", "emax": 1e-12, "ec50": "2 uM"}),
+        days=10,
+        washout_days=3,
+        rtol=1e-10,
+        atol=1e-13,
     )
     assert tiny.steady_state_ratio == pytest.approx(base.steady_state_ratio, rel=1e-6)
     assert np.asarray(tiny.victim_with) == pytest.approx(np.asarray(base.victim_with), rel=1e-6)
