@@ -232,6 +232,7 @@ class _Solution:
     success: bool
     message: str
     iterations: int
+    grad: list[float] | None = None  # J^T r at u (half the gradient of the cost)
 
 
 def _lm(
@@ -246,6 +247,7 @@ def _lm(
     xtol: float = 1e-13,
     gtol: float = 1e-14,
     mu0: float = 1e-6,
+    floor_tol: float = 1e-14,
 ) -> _Solution:
     """Minimise ||r(u)||^2 by bounded Levenberg-Marquardt (see module docstring).
 
@@ -258,6 +260,10 @@ def _lm(
     hi_l = [float(v) for v in hi]
     ul = [min(max(float(v), lo_l[k]), hi_l[k]) for k, v in enumerate(u0)]
     fixed_l = [bool(v) for v in fixed]
+    bounded = any(math.isfinite(v) for v in lo_l) or any(math.isfinite(v) for v in hi_l)
+    base_idx = [k for k in range(p) if not fixed_l[k]]
+    if not base_idx:
+        return _Solution(np.array(ul), math.nan, True, "all parameters fixed", 0)
     u = np.array(ul)
     r, jac = prob.resid_jac(u)
     cost = float(r @ r)
@@ -265,39 +271,56 @@ def _lm(
         return _Solution(u, math.inf, False, "the model is not finite at the starting values", 0)
     a = (jac.T @ jac).tolist()
     g = (jac.T @ r).tolist()
-    dmax = [a[k][k] for k in range(p)]
-    if all(fixed_l):
-        return _Solution(u, cost, True, "all parameters fixed", 0)
+    dmax = [max(a[k][k], _TINY) for k in range(p)]
     mu = mu0  # damping relative to the Marquardt scaling diag(J^T J)
     nu = 2.0
     for it in range(1, max_iter + 1):
         if cost == 0.0:
-            return _Solution(u, cost, True, "exact fit", it)
-        idx = [
-            k for k in range(p) if not fixed_l[k] and not (ul[k] <= lo_l[k] and g[k] > 0) and not (ul[k] >= hi_l[k] and g[k] < 0)
-        ]
-        if not idx:
-            return _Solution(u, cost, True, "converged at the bounds", it)
+            return _Solution(u, cost, True, "exact fit", it, grad=g)
+        if bounded:
+            idx = [k for k in base_idx if not ((ul[k] <= lo_l[k] and g[k] > 0) or (ul[k] >= hi_l[k] and g[k] < 0))]
+            if not idx:
+                return _Solution(u, cost, True, "converged at the bounds", it, grad=g)
+        else:
+            idx = base_idx
+        q = len(idx)
         gf = [g[k] for k in idx]
         af = [[a[i][j] for j in idx] for i in idx]
-        h = _solve_damped(af, gf, [max(dmax[k], _TINY) * mu for k in idx])
+        damp = [mu * dmax[k] for k in idx]
+        h = _solve_damped(af, gf, damp)
         if h is None:
             mu *= nu
             nu *= 2.0
             continue
-        trial = list(ul)
-        for k, hk in zip(idx, h, strict=True):
-            trial[k] = min(max(trial[k] + hk, lo_l[k]), hi_l[k])
-        sf = [trial[k] - ul[k] for k in idx]
-        a_sf = [sum(row[j] * sf[j] for j in range(len(idx))) for row in af]
-        predicted = -2.0 * sum(x * y for x, y in zip(sf, gf, strict=True)) - sum(x * y for x, y in zip(sf, a_sf, strict=True))
-        if sf == h:
-            promised = predicted
-        else:  # the unclipped step, which the linear model always favours
-            a_h = [sum(row[j] * h[j] for j in range(len(idx))) for row in af]
-            promised = -2.0 * sum(x * y for x, y in zip(h, gf, strict=True)) - sum(x * y for x, y in zip(h, a_h, strict=True))
-        floor = promised <= 1e-14 * cost  # the linear model promises less than rounding can show
-        small = all(abs(trial[k] - ul[k]) <= xtol * (abs(ul[k]) + xtol) for k in range(p))
+        # decrease promised by the linear model for the LM step: -h.g + mu h.D.h (exact for (A + mu D) h = -g)
+        promised = 0.0
+        for k in range(q):
+            promised += -h[k] * gf[k] + damp[k] * h[k] * h[k]
+        trial = ul[:]
+        clipped = False
+        small = True
+        for n_k, k in enumerate(idx):
+            t = trial[k] + h[n_k]
+            if bounded:
+                if t < lo_l[k]:
+                    t, clipped = lo_l[k], True
+                elif t > hi_l[k]:
+                    t, clipped = hi_l[k], True
+            if abs(t - ul[k]) > xtol * (abs(ul[k]) + xtol):
+                small = False
+            trial[k] = t
+        if clipped:
+            sf = [trial[k] - ul[k] for k in idx]
+            predicted = 0.0
+            for i in range(q):
+                row = af[i]
+                acc = 0.0
+                for j in range(q):
+                    acc += row[j] * sf[j]
+                predicted += -2.0 * sf[i] * gf[i] - sf[i] * acc
+        else:
+            predicted = promised
+        floor = promised <= floor_tol * cost  # the linear model promises less than rounding (or the caller) needs
         ut = np.array(trial)
         rt = prob.resid(ut)
         ct = float(rt @ rt)
@@ -310,43 +333,56 @@ def _lm(
             r, jac = prob.resid_jac(u)
             a = (jac.T @ jac).tolist()
             g = (jac.T @ r).tolist()
-            if not (all(math.isfinite(x) for x in g) and all(math.isfinite(a[k][k]) for k in range(p))):
-                return _Solution(u, cost, False, "the Jacobian is not finite at the solution", it)
-            dmax = [max(dmax[k], a[k][k]) for k in range(p)]
+            if not math.isfinite(sum(g)):
+                return _Solution(u, cost, False, "the Jacobian is not finite at the solution", it, grad=g)
+            for k in range(p):
+                if a[k][k] > dmax[k]:
+                    dmax[k] = a[k][k]
             mu *= max(0.1, 1.0 - (2.0 * rho - 1.0) ** 3)
             nu = 2.0
             if reduction <= ftol * cost or small or floor:
-                return _Solution(u, cost, True, "converged", it)
+                return _Solution(u, cost, True, "converged", it, grad=g)
         else:
             if small or floor:
-                return _Solution(u, cost, True, "converged (step)", it)
+                return _Solution(u, cost, True, "converged (step)", it, grad=g)
             mu *= nu
             nu *= 2.0
             if mu > 1e300:
-                return _Solution(u, cost, True, "converged (no further decrease possible)", it)
-    return _Solution(u, cost, False, f"did not converge in {max_iter} iterations", max_iter)
+                return _Solution(u, cost, True, "converged (no further decrease possible)", it, grad=g)
+    return _Solution(u, cost, False, f"did not converge in {max_iter} iterations", max_iter, grad=g)
 
 
 def _solve_damped(a: list[list[float]], g: list[float], damping: list[float]) -> list[float] | None:
     """Solve (A + diag(damping)) h = -g by Cholesky on Python floats; None when not positive definite."""
     n = len(g)
-    m = [[a[i][j] + (damping[i] if i == j else 0.0) for j in range(n)] for i in range(n)]
     chol = [[0.0] * n for _ in range(n)]
     for i in range(n):
+        ci = chol[i]
+        ai = a[i]
         for j in range(i + 1):
-            acc = m[i][j] - sum(chol[i][k] * chol[j][k] for k in range(j))
+            cj = chol[j]
+            acc = ai[j] + (damping[i] if i == j else 0.0)
+            for k in range(j):
+                acc -= ci[k] * cj[k]
             if i == j:
-                if not acc > 0.0 or not math.isfinite(acc):
+                if not acc > 0.0 or acc == math.inf:
                     return None
-                chol[i][i] = math.sqrt(acc)
+                ci[i] = math.sqrt(acc)
             else:
-                chol[i][j] = acc / chol[j][j]
+                ci[j] = acc / cj[j]
     y = [0.0] * n
     for i in range(n):
-        y[i] = (-g[i] - sum(chol[i][k] * y[k] for k in range(i))) / chol[i][i]
+        acc = -g[i]
+        ci = chol[i]
+        for k in range(i):
+            acc -= ci[k] * y[k]
+        y[i] = acc / ci[i]
     x = [0.0] * n
-    for i in reversed(range(n)):
-        x[i] = (y[i] - sum(chol[k][i] * x[k] for k in range(i + 1, n))) / chol[i][i]
+    for i in range(n - 1, -1, -1):
+        acc = y[i]
+        for k in range(i + 1, n):
+            acc -= chol[k][i] * x[k]
+        x[i] = acc / chol[i][i]
     return x
 
 
@@ -402,78 +438,78 @@ def _profile_side(
     lo: Array,
     hi: Array,
     fixed: NDArray[np.bool_],
+    trend: Array | None = None,
 ) -> float:
-    """The profile limit of parameter ``j`` on one side (fitting scale); +/-inf or the bound when open."""
+    """The profile limit of parameter ``j`` on one side (fitting scale); +/-inf or the bound when open.
+
+    ``trend`` is d(u)/d(u_j) along the asymptotic profile trace (cov[:, j] / cov[j, j]), used to
+    start the first conditional fit close to its optimum.
+    """
     mask = fixed.copy()
     mask[j] = True
     bound = lo[j] if direction < 0 else hi[j]
     centre = float(u_hat[j])
     trace: list[tuple[float, Array]] = [(centre, u_hat)]
 
-    def tau(val: float, start: Array) -> tuple[float, Array]:
+    def tau(val: float, start: Array) -> tuple[float, Array, float]:
         u0 = start.copy()
-        if len(trace) >= 2:  # extrapolate the profile trace linearly from the two nearest points
+        if len(trace) == 1 and trend is not None:  # first step: follow the asymptotic profile trace
+            guess = u_hat + trend * (val - centre)
+            if np.all(np.isfinite(guess)):
+                u0 = np.minimum(np.maximum(guess, lo), hi)
+        elif len(trace) >= 2:  # extrapolate the profile trace linearly from the two nearest points
             (v1, u1), (v2, u2) = sorted(trace, key=lambda p: abs(p[0] - val))[:2]
             if v1 != v2:
                 guess = u1 + (val - v1) / (v1 - v2) * (u1 - u2)
                 if np.all(np.isfinite(guess)):
                     u0 = np.minimum(np.maximum(guess, lo), hi)
         u0[j] = val
-        sol = _lm(prob, u0, lo, hi, mask, max_iter=100, ftol=1e-12, xtol=1e-10, gtol=1e-10, mu0=1e-6)
+        sol = _lm(prob, u0, lo, hi, mask, max_iter=100, ftol=1e-11, xtol=1e-10, gtol=1e-10, mu0=1e-6, floor_tol=1e-11)
         t = math.sqrt(max(sol.cost - cost_hat, 0.0) / s2) if math.isfinite(sol.cost) else math.inf
         trace.append((val, sol.u))
-        return t, sol.u
+        slope = sol.grad[j] / (s2 * t) if sol.grad is not None and 0 < t < math.inf else math.nan
+        return t, sol.u, slope
 
-    prev_val, prev_tau, prev_u = centre, 0.0, u_hat
+    # Safeguarded Newton on tau(value) = tq.  By the envelope theorem the derivative of the
+    # profiled cost is 2 (J^T r)_j at the conditional optimum, so d tau / d value = (J^T r)_j / (s2 tau).
     val = centre + direction * step0
-    tol = 5e-3 * tq  # endpoint within about 0.5 % of a standard error
-    bracket: tuple[float, float, float, float, Array] | None = None
-    for _ in range(40):
+    tol = 1e-3 * tq  # endpoint within about 0.1 % of a standard error
+    inside_val, inside_tau, inside_u = centre, 0.0, u_hat
+    outside: tuple[float, float] | None = None
+    for _ in range(60):
         at_bound = (direction < 0 and val <= bound) or (direction > 0 and val >= bound)
         if at_bound:
             val = float(bound)
-        t, u_new = tau(val, prev_u)
+        t, u_new, slope = tau(val, inside_u)
         if abs(t - tq) <= tol:
             return val
-        if t > tq:
-            bracket = (prev_val, prev_tau, val, t, prev_u)
-            break
-        if at_bound:
-            return float(bound)  # open on this side: the data do not bound the parameter
-        if abs(val - centre) > 1e8 * (abs(centre) + step0):
-            return direction * math.inf
-        grow = 4.0 * abs(val - prev_val)
-        if t > prev_tau + 1e-9:
-            new = val + (tq - t) * (val - prev_val) / (t - prev_tau)
-            new = val + direction * min(abs(new - val), grow)
-            new = val + direction * max(abs(new - val), 1e-3 * abs(val - prev_val))
+        if t < tq:
+            if at_bound:
+                return float(bound)  # open on this side: the data do not bound the parameter
+            inside_val, inside_tau, inside_u = val, t, u_new
         else:
-            new = val + direction * grow
-        prev_val, prev_tau, prev_u = val, t, u_new
+            outside = (val, t)
+        newton = val + (tq - t) / slope if slope * direction > 0 and math.isfinite(slope) else None
+        if outside is None:
+            span = abs(val - centre)
+            if newton is None or (newton - val) * direction <= 0:
+                newton = val + direction * 2.0 * span
+            new = val + direction * min(abs(newton - val), 4.0 * span)
+            if abs(new - centre) > 1e8 * (abs(centre) + step0):
+                return direction * math.inf
+        else:
+            o_val, o_tau = outside
+            lo_v, hi_v = sorted((inside_val, o_val))
+            if abs(hi_v - lo_v) <= 1e-10 * (abs(val) + 1e-300):
+                return val
+            if newton is not None and lo_v < newton < hi_v:
+                new = newton
+            else:  # regula falsi inside the bracket
+                new = inside_val + (tq - inside_tau) * (o_val - inside_val) / (o_tau - inside_tau)
+                if not lo_v < new < hi_v:
+                    new = 0.5 * (lo_v + hi_v)
         val = new
-    if bracket is None:
-        return direction * math.inf
-    a, ta, b, tb, ua = bracket
-    fa, fb = ta - tq, tb - tq
-    side = 0
-    c = b
-    for _ in range(30):  # Illinois (modified regula falsi) on tau - tq
-        c = (a * fb - b * fa) / (fb - fa) if fb != fa else 0.5 * (a + b)
-        tc, uc = tau(c, ua)
-        fc = tc - tq
-        if abs(fc) <= tol or abs(b - a) <= 1e-10 * (abs(c) + 1e-300):
-            return c
-        if fc > 0:
-            b, fb = c, fc
-            if side == 1:
-                fa /= 2.0
-            side = 1
-        else:
-            a, fa, ua = c, fc, uc
-            if side == -1:
-                fb /= 2.0
-            side = -1
-    return c
+    return val
 
 
 # --------------------------------------------------------------------------- public
@@ -617,8 +653,11 @@ def fit_curve(
         se_j = math.sqrt(cov_u[j, j]) if cov_u is not None and free[j] and cov_u[j, j] > 0 else float(hint[j])
         if not math.isfinite(se_j) or se_j <= 0:
             se_j = max(abs(float(u[j])) * 0.5, 1e-12)
-        low = _profile_side(prob, u, cost, j, -1, tq * se_j, tq, s2, lo, hi, fixed)
-        high = _profile_side(prob, u, cost, j, +1, tq * se_j, tq, s2, lo, hi, fixed)
+        trend = None
+        if cov_u is not None and free[j] and cov_u[j, j] > 0:
+            trend = np.nan_to_num(cov_u[:, j] / cov_u[j, j], nan=0.0)
+        low = _profile_side(prob, u, cost, j, -1, tq * se_j, tq, s2, lo, hi, fixed, trend)
+        high = _profile_side(prob, u, cost, j, +1, tq * se_j, tq, s2, lo, hi, fixed, trend)
         profiles[j] = (low, high)
 
     estimates = []
