@@ -353,8 +353,39 @@ def _lm(
 
 
 def _solve_damped(a: list[list[float]], g: list[float], damping: list[float]) -> list[float] | None:
-    """Solve (A + diag(damping)) h = -g by Cholesky on Python floats; None when not positive definite."""
+    """Solve (A + diag(damping)) h = -g on Python floats; None when not positive definite.
+
+    Closed forms for 1-3 unknowns (Cramer's rule on the symmetric matrix), Cholesky above.
+    """
     n = len(g)
+    if n <= 3:
+        if n == 1:
+            m11 = a[0][0] + damping[0]
+            return [-g[0] / m11] if m11 > 0.0 and m11 != math.inf else None
+        if n == 2:
+            m11, m12, m22 = a[0][0] + damping[0], a[0][1], a[1][1] + damping[1]
+            det = m11 * m22 - m12 * m12
+            if not (m11 > 0.0 and det > 0.0 and math.isfinite(det)):
+                return None
+            return [(-g[0] * m22 + g[1] * m12) / det, (g[0] * m12 - g[1] * m11) / det]
+        m11, m12, m13 = a[0][0] + damping[0], a[0][1], a[0][2]
+        m22, m23, m33 = a[1][1] + damping[1], a[1][2], a[2][2] + damping[2]
+        c11 = m22 * m33 - m23 * m23
+        c12 = m13 * m23 - m12 * m33
+        c13 = m12 * m23 - m13 * m22
+        det = m11 * c11 + m12 * c12 + m13 * c13
+        minor2 = m11 * m22 - m12 * m12
+        if not (m11 > 0.0 and minor2 > 0.0 and det > 0.0 and math.isfinite(det)):
+            return None
+        c22 = m11 * m33 - m13 * m13
+        c23 = m12 * m13 - m11 * m23
+        c33 = minor2
+        g1, g2, g3 = -g[0], -g[1], -g[2]
+        return [
+            (c11 * g1 + c12 * g2 + c13 * g3) / det,
+            (c12 * g1 + c22 * g2 + c23 * g3) / det,
+            (c13 * g1 + c23 * g2 + c33 * g3) / det,
+        ]
     chol = [[0.0] * n for _ in range(n)]
     for i in range(n):
         ci = chol[i]
@@ -464,7 +495,7 @@ def _profile_side(
                 if np.all(np.isfinite(guess)):
                     u0 = np.minimum(np.maximum(guess, lo), hi)
         u0[j] = val
-        sol = _lm(prob, u0, lo, hi, mask, max_iter=100, ftol=1e-11, xtol=1e-10, gtol=1e-10, mu0=1e-6, floor_tol=1e-11)
+        sol = _lm(prob, u0, lo, hi, mask, max_iter=100, ftol=1e-10, xtol=1e-9, gtol=1e-10, mu0=1e-6, floor_tol=1e-10)
         t = math.sqrt(max(sol.cost - cost_hat, 0.0) / s2) if math.isfinite(sol.cost) else math.inf
         trace.append((val, sol.u))
         slope = sol.grad[j] / (s2 * t) if sol.grad is not None and 0 < t < math.inf else math.nan

@@ -88,59 +88,98 @@ def _kappas(name: str, u: Array) -> tuple[float, float]:
     return u[2], u[3]
 
 
+class _Grid:
+    """The grid's arrays and their product S x I, computed once per data set (x is never modified)."""
+
+    __slots__ = ("i", "s", "si", "x")
+
+    def __init__(self) -> None:
+        self.x: Array | None = None
+
+    def of(self, x: Array) -> _Grid:
+        if self.x is not x:
+            self.x, self.s, self.i = x, x[0], x[1]
+            self.si = self.s * self.i
+        return self
+
+
+def _denominator(name: str, grid: _Grid, u: list[float]) -> tuple[Array, Array | None]:
+    """D = Km (1 + I/Kic) + S (1 + I/Kiu) in 1/K form, and (1 + I/Kic) when it is not 1."""
+    km = u[1]
+    if name == "none":
+        return grid.s + km, None
+    if name == "competitive":
+        a = grid.i * u[2]
+        a += 1.0
+        return a * km + grid.s, a
+    if name == "uncompetitive":
+        d = grid.si * u[2]
+        d += grid.s
+        d += km
+        return d, None
+    kc = u[2]
+    ku = u[2] if name == "noncompetitive" else u[3]
+    a = grid.i * kc
+    a += 1.0
+    d = a * km
+    d += grid.si * ku
+    d += grid.s
+    return d, a
+
+
 def _function(name: str):  # type: ignore[no-untyped-def]
+    grid = _Grid()
+
     def f(u: Array, x: Array) -> Array:
-        s, i = x[0], x[1]
-        kc, ku = _kappas(name, u)
-        return u[0] * s / (u[1] * (1.0 + i * kc) + s * (1.0 + i * ku))
+        g = grid.of(x)
+        ul = u.tolist()
+        d, _ = _denominator(name, g, ul)
+        return (ul[0] * g.s) / d
 
     return f
 
 
 def _jacobian(name: str):  # type: ignore[no-untyped-def]
+    both = _fused(name)
+
     def jac(u: Array, x: Array) -> Array:
-        s, i = x[0], x[1]
-        kc, ku = _kappas(name, u)
-        a = 1.0 + i * kc
-        d = u[1] * a + s * (1.0 + i * ku)
-        g = s / d
-        f = u[0] * g
-        cols = [g, -f * a / d]
-        if name == "competitive":
-            cols.append(-f * u[1] * i / d)
-        elif name == "uncompetitive":
-            cols.append(-f * s * i / d)
-        elif name == "noncompetitive":
-            cols.append(-f * (u[1] + s) * i / d)
-        elif name == "mixed":
-            cols.extend((-f * u[1] * i / d, -f * s * i / d))
-        return np.column_stack(cols)
+        return both(u, x)[1]
 
     return jac
 
 
 def _fused(name: str):  # type: ignore[no-untyped-def]
+    grid = _Grid()
+    p = 2 if name == "none" else (4 if name == "mixed" else 3)
+
     def both(u: Array, x: Array) -> tuple[Array, Array]:
-        s, i = x[0], x[1]
-        kc, ku = _kappas(name, u)
-        a = 1.0 + i * kc
-        d = u[1] * a + s * (1.0 + i * ku)
-        g = s / d
-        f = u[0] * g
+        gr = grid.of(x)
+        ul = u.tolist()
+        d, a = _denominator(name, gr, ul)
+        out = np.empty((p, d.size))
+        g = np.divide(gr.s, d, out=out[0])
+        f = g * ul[0]
         fd = f / d
-        jac = np.empty((s.size, _NPAR[name]))
-        jac[:, 0] = g
-        jac[:, 1] = -fd * a
+        if a is None:
+            np.negative(fd, out=out[1])
+        else:
+            np.multiply(fd, a, out=out[1])
+            np.negative(out[1], out=out[1])
         if name == "competitive":
-            jac[:, 2] = -fd * u[1] * i
+            np.multiply(fd, gr.i, out=out[2])
+            out[2] *= -ul[1]
         elif name == "uncompetitive":
-            jac[:, 2] = -fd * s * i
+            np.multiply(fd, gr.si, out=out[2])
+            np.negative(out[2], out=out[2])
         elif name == "noncompetitive":
-            jac[:, 2] = -fd * (u[1] + s) * i
+            np.multiply(fd, gr.i * ul[1] + gr.si, out=out[2])
+            np.negative(out[2], out=out[2])
         elif name == "mixed":
-            jac[:, 2] = -fd * u[1] * i
-            jac[:, 3] = -fd * s * i
-        return f, jac
+            np.multiply(fd, gr.i, out=out[2])
+            out[2] *= -ul[1]
+            np.multiply(fd, gr.si, out=out[3])
+            np.negative(out[3], out=out[3])
+        return f, out.T
 
     return both
 
@@ -432,10 +471,10 @@ def _mixed_starts(fits: dict[str, FitResult]) -> list[tuple[float, ...]]:
     out: list[tuple[float, ...]] = []
     if "competitive" in fits and fits["competitive"].success:
         vm, km, kc = fits["competitive"].theta
-        out.append((vm, km, kc, 1e-3 * kc))
+        out.append((vm, km, kc, 0.0))  # on the bound: stays there unless the data pull it off
     if "uncompetitive" in fits and fits["uncompetitive"].success:
         vm, km, ku = fits["uncompetitive"].theta
-        out.append((vm, km, 1e-3 * ku, ku))
+        out.append((vm, km, 0.0, ku))
     if "noncompetitive" in fits and fits["noncompetitive"].success:
         vm, km, k = fits["noncompetitive"].theta
         out.append((vm, km, k, k))

@@ -88,3 +88,20 @@ def test_fitting_models_jacobian_in_reciprocal_constants(name: str) -> None:
         down[k] -= h
         numeric = (model.function(up, x) - model.function(down, x)) / (2 * h)
         assert np.allclose(j_fused[:, k], numeric, rtol=1e-5, atol=1e-8)
+
+
+@pytest.mark.parametrize("size", [1, 2, 3, 4, 5])
+def test_damped_solver_matches_numpy(size: int) -> None:
+    # the engine's small closed-form / Cholesky solver against numpy.linalg.solve (general-purpose library)
+    from interact.kinetics import engine
+
+    rng = np.random.default_rng(size)
+    for _ in range(50):
+        b = rng.normal(size=(size, size))
+        a = b @ b.T + 0.05 * np.eye(size)
+        g = rng.normal(size=size)
+        damping = rng.uniform(0.0, 1.0, size)
+        h = engine._solve_damped(a.tolist(), g.tolist(), damping.tolist())
+        assert h is not None
+        assert np.allclose(h, np.linalg.solve(a + np.diag(damping), -g), rtol=1e-8, atol=1e-10)
+    assert engine._solve_damped([[1.0, 2.0], [2.0, 1.0]], [1.0, 1.0], [0.0, 0.0]) is None  # indefinite
