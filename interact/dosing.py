@@ -195,9 +195,9 @@ def suggest_dose(
         outside = [(n, r) for n, r in mechanism_parts if not lower <= r <= upper]
         if outside:
             reasons.append(
-                "A part alone lies outside the boundary: if the mechanisms do not develop together (induction builds and fades "
-                "over days to weeks; reversible inhibition follows the perpetrator's concentration at once), exposure can move "
-                f"towards {', '.join(f'{r:.3g}' for _, r in outside)} for a time; the time course shows when."
+                f"Parts outside the boundary ({', '.join(f'{n} alone {r:.3g}' for n, r in outside)}): if the mechanisms develop "
+                "at different speeds, exposure can move towards a part for a time (reversible inhibition ends at once when the "
+                "perpetrator stops, enzyme changes last days); the time course shows whether it does."
             )
     if narrow_therapeutic_index:
         if action != "no change":

@@ -25,6 +25,8 @@ import math
 
 import pytest
 from conftest import base_dict
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from interact import assess
 from interact.prediction import INHIBITION_PART, inactivation_term, induction_term, ratio_function
@@ -313,3 +315,27 @@ def test_default_calibration_factor_is_listed_as_from_memory() -> None:
     assert any("calibration factor d = 1" in m for m in a.memory_values)
     given = assess(scenario_from_dict(_scenario(**IND, calibration=0.8)))
     assert not any("calibration factor d" in m for m in given.memory_values)
+
+
+@settings(max_examples=40, deadline=None)
+@given(
+    kinact=st.floats(1e-4, 10.0),
+    ki_inact=st.floats(0.01, 100.0),
+    emax=st.floats(0.0, 20.0),
+    ec50=st.floats(0.01, 100.0),
+    fm=st.floats(0.05, 0.95),
+    fg=st.floats(0.2, 1.0),
+)
+def test_properties_of_the_net_effect(kinact: float, ki_inact: float, emax: float, ec50: float, fm: float, fg: float) -> None:
+    # algebra of the net-effect model: more kinact never lowers the ratio, more Emax never raises it,
+    # TDI alone stays under the complete-inhibition ceiling 1/((1 - fm) Fg), induction alone stays <= 1
+    from interact.prediction import gut_ratio, liver_ratio
+
+    def ratio(k: float, e: float, conc: float = 0.5, kdeg: float = 0.02) -> float:
+        act = float(inactivation_term(k * conc / (ki_inact + conc), kdeg) * induction_term(e * conc / (ec50 + conc)))
+        return float(liver_ratio([fm], [act]) * gut_ratio(fg, act))
+
+    assert ratio(kinact * 2, emax) >= ratio(kinact, emax) * (1 - 1e-12)
+    assert ratio(kinact, emax + 1.0) <= ratio(kinact, emax) * (1 + 1e-12)
+    assert 1.0 <= ratio(kinact, 0.0) <= 1.0 / ((1.0 - fm) * fg) * (1 + 1e-12)
+    assert ratio(0.0, emax) <= 1.0 + 1e-12
