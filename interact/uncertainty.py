@@ -728,16 +728,21 @@ def summarise(
 ) -> UncertaintyResult:
     classes = load_classes()
     n = total.size
-    pg, pl, pt = (np.percentile(x, PERCENTS) for x in (gut, liver, total))
+    # one sort of the total ratios serves its percentiles, the threshold counts, the classes and the
+    # actions (counts do not depend on the order; searching sorted values is fast)
+    ts = np.sort(total)
+    pg, pl, pt = (np.percentile(x, PERCENTS) for x in (gut, liver, ts))
     percentiles = tuple((q, float(pg[k]), float(pl[k]), float(pt[k])) for k, q in enumerate(PERCENTS))
-    exceed = [(">=", b.bound, float(np.count_nonzero(total >= b.bound)) / n) for b in sorted(classes.inhibition, key=lambda b: b.bound)]
-    if "induction" in assessment.prediction.mechanisms or float(np.min(total)) < 1.0:
-        exceed += [("<=", b.bound, float(np.count_nonzero(total <= b.bound)) / n) for b in sorted(classes.induction, key=lambda b: -b.bound)]
+    exceed = [(">=", b.bound, float(n - np.searchsorted(ts, b.bound, side="left")) / n)
+              for b in sorted(classes.inhibition, key=lambda b: b.bound)]
+    if "induction" in assessment.prediction.mechanisms or float(ts[0]) < 1.0:
+        exceed += [("<=", b.bound, float(np.searchsorted(ts, b.bound, side="right")) / n)
+                   for b in sorted(classes.induction, key=lambda b: -b.bound)]
     labels = band_labels(classes)
-    codes = band_codes(total, classes)
+    codes = band_codes(ts, classes)
     counts = np.bincount(codes, minlength=len(labels))
     point_code = int(band_codes(assessment.prediction.total, classes))
-    actions = model.actions(total)
+    actions = model.actions(ts)
     action_counts = np.bincount(actions, minlength=len(ACTIONS))
     point_action = assessment.dose.action
     change = 1.0 - float(action_counts[ACTIONS.index(point_action)]) / n
