@@ -267,6 +267,12 @@ def _write_streamed(path: str | None, write) -> int:  # type: ignore[no-untyped-
     try:
         with os.fdopen(handle, "w", encoding="utf-8", newline="") as out:
             count = int(write(out))
+        if target.exists():
+            os.chmod(tmp, target.stat().st_mode & 0o777)
+        else:  # a new file gets the usual permissions (mkstemp makes it private)
+            mask = os.umask(0)
+            os.umask(mask)
+            os.chmod(tmp, 0o666 & ~mask)
         os.replace(tmp, target)
     except BaseException:
         Path(tmp).unlink(missing_ok=True)
