@@ -514,6 +514,8 @@ def _cmd_fit(args: argparse.Namespace) -> int:
             raise InputError("--into", args.into, f"was not updated: {ki.name} is unbounded")
         origin = f"fit of {path.name}, {comp.verdict.mechanism} model ({args.weights} weights), {today}"
         _write_into(args, ki.value, comp.verdict.mechanism, comp.alpha, fu_inc, origin)
+        if not ki.identifiable:
+            sys.stderr.write(f"interact: caution: {ki.name} is poorly determined by these data ({ki.note}); check it first\n")
     return 0
 
 
@@ -536,7 +538,10 @@ def _fit_binding(args: argparse.Namespace) -> tuple[float | None, str, BindingPr
     if args.method_binding == "kilford-2008":
         if args.cells is None:
             raise InputError("--cells", None, "is needed for kilford-2008: hepatocyte density in 10^6 cells/mL")
-        cells = float(args.cells)
+        try:
+            cells = float(args.cells)
+        except ValueError:
+            raise InputError("--cells", args.cells, "is not a number (hepatocytes in 10^6 cells/mL)") from None
     else:
         if args.protein is None:
             raise InputError("--protein", None, 'is needed to predict fu,inc in microsomes, e.g. --protein "0.5 mg/mL"')
@@ -576,7 +581,12 @@ def _cmd_fit_ic50(args: argparse.Namespace, path: Path, today: str, fu_inc: floa
         s = units_um(args.substrate_conc, "--substrate-conc") if args.substrate_conc else None
         km = units_um(args.km, "--km") if args.km else None
         ki = ki_from_ic50_fit(result, args.mechanism, substrate_um=s, km_um=km, alpha=args.alpha)
-    _out(format_ic50(result, ki, args.format, width=args.width), args.output)
+    unbound = None
+    if ki is not None and fu_inc is not None:
+        from .kinetics.binding import unbound_constant
+
+        unbound = unbound_constant("Ki", ki.ki_um, ki.low_um, ki.high_um, fu_inc, interval="from the IC50 interval", fu_origin=fu_origin)
+    _out(format_ic50(result, ki, args.format, width=args.width, unbound=unbound), args.output)
     if args.into:
         if ki is None:
             raise InputError("--mechanism", None, "is needed with --into for an IC50 curve (the Cheng-Prusoff conversion depends on it)")
@@ -597,7 +607,7 @@ def _add_fit_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[t
         help="fit incubation data: all inhibition mechanisms, verdict, Ki with intervals (or an IC50 curve)",
         description=(
             "Fit a CSV of initial velocities over a substrate x inhibitor grid (columns substrate, inhibitor, velocity; "
-            "optional depletion %%) to every inhibition model, or an IC50 curve (columns inhibitor, response; chosen with "
+            "optional depletion %) to every inhibition model, or an IC50 curve (columns inhibitor, response; chosen with "
             "--ic50 or when the file has no substrate column). In vitro constants feed model predictions, not clinical advice."
         ),
     )

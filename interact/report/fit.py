@@ -141,26 +141,7 @@ def fit_sections(
             )
         )
     if unbound is not None:
-        blocks: list[str | Table | Note] = [
-            Table(
-                headers=("constant", "in vitro (uM)", "interval (uM)", "fu,inc", "unbound (uM)", "interval (uM)"),
-                rows=(
-                    (
-                        f"{unbound.name} -> {unbound.name},u",
-                        fmt(unbound.ki_um),
-                        _interval(unbound.low_um, unbound.high_um),
-                        fmt(unbound.fu_inc),
-                        fmt(unbound.ki_u_um),
-                        _interval(unbound.low_u_um, unbound.high_u_um),
-                    ),
-                ),
-            ),
-            f"fu,inc: {unbound.fu_origin}. Interval: {unbound.interval}; the uncertainty of fu,inc is not included.",
-        ]
-        if binding is not None:
-            blocks.append(f"Predicted with {binding.title}: {binding.equation}. Source: {binding.source} ({binding.status}).")
-            blocks.extend(Note(text=w, kind="caution") for w in binding.warnings)
-        out.append(Section(title="Unbound inhibition constant", blocks=tuple(blocks)))
+        out.append(_unbound_section(unbound, binding))
     if comp.warnings:
         out.append(Section(title="Design and fit warnings", blocks=tuple(Note(text=w, kind="caution") for w in comp.warnings)))
     if plots:
@@ -242,15 +223,7 @@ def comparison_to_dict(
         "caution": FIT_CAUTION,
     }
     if unbound is not None:
-        out["unbound"] = {
-            "name": unbound.name,
-            "ki_um": _num(unbound.ki_um),
-            "interval_um": [_num(unbound.low_um), _num(unbound.high_um)],
-            "fu_inc": unbound.fu_inc,
-            "fu_origin": unbound.fu_origin,
-            "ki_u_um": _num(unbound.ki_u_um),
-            "interval_u_um": [_num(unbound.low_u_um), _num(unbound.high_u_um)],
-        }
+        out["unbound"] = _unbound_dict(unbound)
     if binding is not None:
         out["binding"] = {
             "method": binding.method,
@@ -286,13 +259,50 @@ def format_comparison(
     return text
 
 
-def ic50_to_dict(result: IC50Fit, ki: KiFromIC50 | None = None) -> dict[str, Any]:
+def _unbound_dict(unbound: UnboundConstant) -> dict[str, Any]:
+    return {
+        "name": unbound.name,
+        "ki_um": _num(unbound.ki_um),
+        "interval_um": [_num(unbound.low_um), _num(unbound.high_um)],
+        "fu_inc": unbound.fu_inc,
+        "fu_origin": unbound.fu_origin,
+        "ki_u_um": _num(unbound.ki_u_um),
+        "interval_u_um": [_num(unbound.low_u_um), _num(unbound.high_u_um)],
+    }
+
+
+def _unbound_section(unbound: UnboundConstant, binding: BindingPrediction | None = None) -> Section:
+    blocks: list[str | Table | Note] = [
+        Table(
+            headers=("constant", "in vitro (uM)", "interval (uM)", "fu,inc", "unbound (uM)", "interval (uM)"),
+            rows=(
+                (
+                    f"{unbound.name} -> {unbound.name},u",
+                    fmt(unbound.ki_um),
+                    _interval(unbound.low_um, unbound.high_um),
+                    fmt(unbound.fu_inc),
+                    fmt(unbound.ki_u_um),
+                    _interval(unbound.low_u_um, unbound.high_u_um),
+                ),
+            ),
+        ),
+        f"fu,inc: {unbound.fu_origin}. Interval: {unbound.interval}; the uncertainty of fu,inc is not included.",
+    ]
+    if binding is not None:
+        blocks.append(f"Predicted with {binding.title}: {binding.equation}. Source: {binding.source} ({binding.status}).")
+        blocks.extend(Note(text=w, kind="caution") for w in binding.warnings)
+    return Section(title="Unbound inhibition constant", blocks=tuple(blocks))
+
+
+def ic50_to_dict(result: IC50Fit, ki: KiFromIC50 | None = None, unbound: UnboundConstant | None = None) -> dict[str, Any]:
     out: dict[str, Any] = {
         "source": result.source,
         "fit": _fit_dict(result.fit),
         "warnings": list(result.warnings),
         "caution": FIT_CAUTION,
     }
+    if unbound is not None:
+        out["unbound"] = _unbound_dict(unbound)
     if ki is not None:
         out["cheng_prusoff"] = {
             "mechanism": ki.mechanism,
@@ -306,10 +316,17 @@ def ic50_to_dict(result: IC50Fit, ki: KiFromIC50 | None = None) -> dict[str, Any
     return out
 
 
-def format_ic50(result: IC50Fit, ki: KiFromIC50 | None = None, fmt_name: str = "text", *, width: int = 100) -> str:
-    """An IC50 fit (and its Cheng-Prusoff Ki) as ``text``, ``markdown`` or ``json``."""
+def format_ic50(
+    result: IC50Fit,
+    ki: KiFromIC50 | None = None,
+    fmt_name: str = "text",
+    *,
+    width: int = 100,
+    unbound: UnboundConstant | None = None,
+) -> str:
+    """An IC50 fit (and its Cheng-Prusoff Ki, and Ki,u) as ``text``, ``markdown`` or ``json``."""
     if fmt_name == "json":
-        return json.dumps(ic50_to_dict(result, ki), indent=2) + "\n"
+        return json.dumps(ic50_to_dict(result, ki, unbound), indent=2) + "\n"
     f = result.fit
     level = f"{f.level:.0%}"
     sections = [
@@ -339,6 +356,8 @@ def format_ic50(result: IC50Fit, ki: KiFromIC50 | None = None, fmt_name: str = "
                 ),
             )
         )
+    if unbound is not None:
+        sections.append(_unbound_section(unbound))
     if result.warnings:
         sections.append(Section(title="Warnings", blocks=tuple(Note(text=w, kind="caution") for w in result.warnings)))
     sections.append(Section(title="Caution", blocks=(Note(text=FIT_CAUTION, kind="caution"),)))

@@ -142,7 +142,8 @@ def test_ic50_into_writes_the_cheng_prusoff_ki(tmp_path: Path, capsys: pytest.Ca
     shutil.copy(demo_path(), scenario)
     args = ["fit", str(curve), "--mechanism", "noncompetitive", "--into", str(scenario), "--target", "CYP2C9", "--fu-inc", "0.7"]
     assert main(args) == 0
-    assert "IC50 CURVE (4PL)" in capsys.readouterr().out
+    out = capsys.readouterr().out
+    assert "IC50 CURVE (4PL)" in out and "Ki -> Ki,u" in out
     inh = next(i for i in load_scenario(scenario).perpetrator.inhibits if i.target == "CYP2C9")
     assert inh.ki.to("uM").magnitude == pytest.approx(3.058, abs=5e-4)  # noncompetitive: Ki = IC50
     assert inh.origin.startswith("Cheng-Prusoff from 4PL IC50 fit of curve.csv")
