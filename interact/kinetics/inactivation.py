@@ -17,10 +17,11 @@ Optionally the vehicle (zero-concentration) loss of activity is subtracted
 from every kobs before step 2 (common practice when the vehicle arm decays).
 
 Units: times in minutes, concentrations in uM (unbound if the incubation was
-corrected for binding), kobs and kinact in 1/min.  The generic pieces here
-(:class:`Estimate`, :class:`CurveFit`, :func:`fit_curve`) are self-contained,
-with field names chosen to match the reversible-inhibition fitting so that
-the two can be unified.
+corrected for binding), kobs and kinact in 1/min.  The least squares run
+through the shared engine of the reversible-inhibition fitting
+(:mod:`interact.kinetics.engine`: analytic Jacobian, asymptotic standard
+errors, Wald and profile-likelihood intervals); :func:`fit_curve` here only
+adapts the call (and per-point standard deviations) to it.
 """
 
 from __future__ import annotations
@@ -34,6 +35,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from ..errors import FitError, InputError
+from .engine import Estimate, FitResult
 
 __all__ = [
     "HYPERBOLA_EQUATION",
@@ -56,45 +58,8 @@ LOG_LINEAR_EQUATION: Final = "ln(activity) = ln(A0) - kobs x t"
 Array = NDArray[np.float64]
 
 
-@dataclass(frozen=True, slots=True, kw_only=True)
-class Estimate:
-    """One fitted parameter with its asymptotic standard error and Wald interval."""
-
-    name: str
-    value: float
-    unit: str = ""
-    std_error: float | None = None
-    ci_low: float | None = None
-    ci_high: float | None = None
-    at_bound: bool = False
-
-
-@dataclass(frozen=True, slots=True, kw_only=True)
-class CurveFit:
-    """Result of a nonlinear least-squares fit; non-convergence is ``success=False``."""
-
-    model: str
-    equation: str
-    success: bool
-    message: str
-    estimates: tuple[Estimate, ...]
-    n: int
-    n_params: int
-    df: int
-    rss: float
-    residual_sd: float | None
-    aic: float | None
-    nfev: int
-    fitted: tuple[float, ...]
-    residuals: tuple[float, ...]
-    covariance: tuple[tuple[float, ...], ...] | None
-    level: float = 0.95
-
-    def estimate(self, name: str) -> Estimate:
-        for e in self.estimates:
-            if e.name == name:
-                return e
-        raise KeyError(name)
+#: the fit result of the shared least-squares engine (:mod:`interact.kinetics.engine`)
+CurveFit = FitResult
 
 
 def _t_quantile(level: float, df: int) -> float | None:
@@ -139,88 +104,30 @@ def fit_curve(
     upper: Sequence[float],
     sigma: Array | None = None,
     level: float = 0.95,
-) -> CurveFit:
-    """Least squares of ``y ~ function(x, theta)`` with an analytic Jacobian.
+) -> FitResult:
+    """Least squares of ``y ~ function(x, theta)`` through the shared engine (analytic Jacobian).
 
-    ``sigma`` (optional) gives absolute standard deviations per point; the
-    fit then minimises sum(((y - f)/sigma)^2) and the covariance is scaled by
-    the residual variance as usual (relative weights).
+    ``sigma`` (optional) gives standard deviations per point: the engine then
+    fits f/sigma to y/sigma, i.e. minimises sum(((y - f)/sigma)^2), with the
+    covariance scaled by the residual variance as usual (relative weights);
+    the result's residuals are then on that scaled form.  Wald and profile
+    intervals are computed for every parameter.
     """
-    from scipy.optimize import least_squares
+    from .engine import CurveModel
+    from .engine import fit_curve as engine_fit
 
     w = np.ones_like(y) if sigma is None else 1.0 / sigma
-    p = len(start)
-
-    def resid(theta: Array) -> Array:
-        return (function(x, theta) - y) * w
-
-    def jac(theta: Array) -> Array:
-        return jacobian(x, theta) * w[:, None]
-
-    lo = np.asarray(lower, dtype=float)
-    hi = np.asarray(upper, dtype=float)
-    x0 = np.clip(np.asarray(start, dtype=float), lo + 1e-12 * np.abs(lo) + 1e-300, hi)
-    with np.errstate(all="ignore"):
-        sol = least_squares(
-            resid, x0, jac=jac, bounds=(lo, hi), method="trf", x_scale="jac", xtol=1e-15, ftol=1e-15, gtol=1e-15, max_nfev=2000
-        )
-    theta = sol.x
-    r = resid(theta)
-    rss = float(r @ r)
-    n = len(y)
-    df = n - p
-    success = bool(sol.success) and bool(np.all(np.isfinite(theta)))
-    message = str(sol.message)
-    cov = None
-    ses: list[float | None] = [None] * p
-    s2 = rss / df if df > 0 else None
-    J = jac(theta)
-    if s2 is not None and np.all(np.isfinite(J)):
-        jtj = J.T @ J
-        if np.linalg.matrix_rank(jtj) == p:
-            c = np.linalg.inv(jtj) * s2
-            cov = tuple(tuple(float(v) for v in row) for row in c)
-            ses = [math.sqrt(c[i, i]) if c[i, i] >= 0 else None for i in range(p)]
-        else:
-            success = False
-            message += "; Jacobian rank-deficient at the solution: parameters not identifiable, no standard errors"
-    tq = _t_quantile(level, df)
-    estimates = []
-    for i in range(p):
-        se = ses[i]
-        at_bound = bool(np.isclose(theta[i], lo[i], rtol=1e-9, atol=0.0) or np.isclose(theta[i], hi[i], rtol=1e-9, atol=0.0))
-        estimates.append(
-            Estimate(
-                name=names[i],
-                value=float(theta[i]),
-                unit=units[i],
-                std_error=se,
-                ci_low=None if se is None or tq is None else float(theta[i] - tq * se),
-                ci_high=None if se is None or tq is None else float(theta[i] + tq * se),
-                at_bound=at_bound,
-            )
-        )
-    if any(e.at_bound for e in estimates):
-        message += "; an estimate sits on its bound (the data do not define it)"
-    aic = float(n * math.log(rss / n) + 2 * (p + 1)) if rss > 0 else None
-    return CurveFit(
-        model=model,
+    curve = CurveModel(
+        name=model,
+        parameters=tuple(names),
+        function=lambda th, xx: function(xx, th) * w,
+        jacobian=lambda th, xx: jacobian(xx, th) * w[:, None],
+        lower=tuple(float(v) for v in lower),
+        upper=tuple(float(v) for v in upper),
+        units=tuple(units),
         equation=equation,
-        success=success,
-        message=message,
-        estimates=tuple(estimates),
-        n=n,
-        n_params=p,
-        df=df,
-        rss=rss,
-        residual_sd=None if s2 is None else math.sqrt(s2),
-        aic=aic,
-        nfev=int(sol.nfev),
-        fitted=tuple(float(v) for v in function(x, theta)),
-        residuals=tuple(float(v) for v in (y - function(x, theta))),
-        covariance=cov,
-        level=level,
     )
+    return engine_fit(curve, x, y * w, [list(start)], profile=tuple(range(len(start))), level=level)
 
 
 # --------------------------------------------------------------------------- step 1: kobs

@@ -22,15 +22,23 @@ def _num(x: float | None) -> float | None:
     return None if x is None or not math.isfinite(x) else x
 
 
+def _profile(e: Estimate) -> str:
+    lo, hi = getattr(e, "profile_low", None), getattr(e, "profile_high", None)
+    if lo is None and hi is None:
+        return "-"
+    return f"{fmt(lo)} to {fmt(hi)}"
+
+
 def _est_rows(ests: tuple[Estimate, ...], level: float) -> Table:
     return Table(
-        headers=("parameter", "estimate", "std. error", f"{level:.0%} interval (Wald)", "unit"),
+        headers=("parameter", "estimate", "std. error", f"{level:.0%} interval (Wald)", "profile interval", "unit"),
         rows=tuple(
             (
                 e.name,
                 fmt(e.value, 4),
                 fmt(e.std_error),
                 "-" if e.ci_low is None else f"{fmt(e.ci_low)} to {fmt(e.ci_high)}",
+                _profile(e),
                 e.unit + (" (at bound)" if e.at_bound else ""),
             )
             for e in ests
@@ -83,6 +91,8 @@ def mechanism_fit_to_dict(result: InactivationFit | InductionFit, source: str) -
             "std_error": _num(e.std_error),
             "ci_low": _num(e.ci_low),
             "ci_high": _num(e.ci_high),
+            "profile_low": _num(getattr(e, "profile_low", None)),
+            "profile_high": _num(getattr(e, "profile_high", None)),
             "at_bound": e.at_bound,
         }
 
