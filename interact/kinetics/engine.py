@@ -769,11 +769,12 @@ def _estimate(
     identifiable = not on_bound and se is not None
     note = ""
     if on_bound:
-        note = (
-            "on its bound: not identifiable from these data"
-            if not inverse
-            else "runs to infinity: not identifiable (the data show no inhibition through this route)"
-        )
+        if inverse and uj == 0:
+            note = "runs to infinity: not identifiable (the data show no inhibition through this route)"
+        elif inverse:
+            note = "runs to zero (stopped at the cap): not identifiable, the model degenerates on these data"
+        else:
+            note = "on its bound: not identifiable from these data"
     elif se is None:
         note = "standard error not estimable (singular information matrix)"
     elif p_high == math.inf:

@@ -187,11 +187,16 @@ def _fused(name: str):  # type: ignore[no-untyped-def]
 _NPAR: Final = {"none": 2, "competitive": 3, "noncompetitive": 3, "uncompetitive": 3, "mixed": 4}
 
 
-def inhibition_model(name: str, velocity_unit: str = "") -> CurveModel:
+def inhibition_model(
+    name: str, velocity_unit: str = "", *, vmax_max: float = math.inf, km_max: float = math.inf, kappa_max: float = math.inf
+) -> CurveModel:
     """The fitting model for ``name`` (one of :data:`MODELS`), in 1/Ki form.
 
     Fitting parameters: Vmax, Km (uM) and, per inhibition route, 1/Ki (1/uM);
     the estimates are reported as Vmax, Km, Ki (or Kic, Kiu for mixed), in uM.
+    ``vmax_max``, ``km_max`` and ``kappa_max`` (on 1/Ki) cap the parameters, so that a
+    model the data drive towards a degenerate limit (Km and Ki to zero, say) stops on
+    a cap and is reported as not identifiable.
     """
     if name not in MODELS:
         raise InputError("models", name, f"is not one of {', '.join(MODELS)}")
@@ -205,7 +210,7 @@ def inhibition_model(name: str, velocity_unit: str = "") -> CurveModel:
         function=_function(name),
         jacobian=_jacobian(name),
         lower=(0.0,) * p,
-        upper=(math.inf,) * p,
+        upper=(vmax_max, km_max, *(kappa_max,) * len(const)),
         reported=("value", "value", *("inverse",) * len(const)),
         reported_names=("Vmax", "Km", *const),
         units=(velocity_unit, "uM", *("uM",) * len(const)),
@@ -424,10 +429,17 @@ def fit_inhibition(
     x = np.vstack((s, i))
     starts = guess_inhibition(data)
     hints = _step_hints(i)
+    # caps far outside any sensible value (10^4 x the data): reaching one means "not identifiable", not a result
+    positive_i = i[i > 0]
+    caps = (
+        1e4 * float(np.max(np.abs(v))) or math.inf,
+        1e4 * float(np.max(s)),
+        1e4 / float(np.min(positive_i)) if positive_i.size else math.inf,
+    )
     fits: dict[str, FitResult] = {}
     order = [m for m in MODELS if m in chosen_models]
     for name in order:
-        model = inhibition_model(name, data.velocity_unit)
+        model = inhibition_model(name, data.velocity_unit, vmax_max=caps[0], km_max=caps[1], kappa_max=caps[2])
         st = list(starts[name])
         if name == "mixed":
             st.extend(_mixed_starts(fits))
@@ -664,7 +676,10 @@ def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests
     for name in ("Ki", "Kic", "Kiu"):
         if name in fit.names:
             e = fit.estimate(name)
-            if e.profile_high == math.inf and name not in unidentifiable:
+            if e.at_bound and math.isfinite(e.value) and name not in unidentifiable:
+                unidentifiable.append(name)
+                notes.append(f"{name} ran to zero and stopped at the fitting cap: the {chosen} model degenerates on these data.")
+            elif e.profile_high == math.inf and name not in unidentifiable:
                 unidentifiable.append(name)
                 notes.append(
                     f"{name} has no upper confidence limit (profile never crosses): inhibition is too weak at the "

@@ -79,6 +79,10 @@ def test_substrate_inhibition_on_the_control_curve_is_flagged() -> None:
     comp = fit_inhibition(incubation_data(s, i, v))
     assert comp.substrate_inhibition is not None
     assert any("substrate inhibition" in w for w in comp.warnings)
+    # the competitive model degenerates on these data (Km and Ki run to zero together): it must stop on its
+    # cap, converge and say so, not spin to the iteration limit or report a number as if it were a result
+    competitive = comp.fit("competitive")
+    assert competitive.success and competitive.estimate("Ki").at_bound and not competitive.estimate("Ki").identifiable
 
 
 def test_weak_inhibition_leaves_ki_open_above() -> None:
