@@ -786,12 +786,18 @@ def write_text_atomic(path: Path, text: str) -> None:
             out.write(text)
             out.flush()
             os.fsync(out.fileno())
-        if path.exists():
-            os.chmod(tmp, path.stat().st_mode & 0o777)
+        os.chmod(tmp, path.stat().st_mode & 0o777 if path.exists() else 0o666 & ~_umask())
         os.replace(tmp, path)
     except OSError as exc:
         Path(tmp).unlink(missing_ok=True)
         raise InputError("path", str(path), f"cannot be written ({exc.strerror})") from None
+
+
+def _umask() -> int:
+    """The process umask (read by setting and restoring it; there is no getter)."""
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
 
 
 def _toml_value(value: Any) -> str:

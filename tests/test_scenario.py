@@ -150,3 +150,12 @@ def test_hostile_strings_survive_round_trip(scenario_dict: dict, tmp_path: Path)
     s = scenario_from_dict(scenario_dict)
     save_scenario(s, tmp_path / "h.toml")
     assert load_scenario(tmp_path / "h.toml").title == scenario_dict["title"]
+
+
+def test_new_file_gets_usual_permissions(tmp_path: Path) -> None:
+    mask = os.umask(0o022)
+    try:
+        save_scenario(load_scenario(demo_path()), tmp_path / "new.toml")
+    finally:
+        os.umask(mask)
+    assert (tmp_path / "new.toml").stat().st_mode & 0o777 == 0o644
