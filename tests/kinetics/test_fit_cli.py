@@ -35,7 +35,9 @@ def test_fit_prints_comparison_verdict_interval_and_plot(capsys: pytest.CaptureF
 def test_fit_json_and_files(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     svg = tmp_path / "diag.svg"
     assert main(["fit", VMKMKI, *UNITS, "--format", "json", "--plot", str(svg), "--fu-inc", "0.5"]) == 0
-    data = json.loads(capsys.readouterr().out)
+    text = capsys.readouterr().out
+    assert "Infinity" not in text and "NaN" not in text  # strict JSON: unbounded values are null with a flag
+    data = json.loads(text)
     assert data["verdict"]["model"] == "uncompetitive" and data["verdict"]["unidentifiable"] == ["Kic"]
     mixed = next(f for f in data["fits"] if f["model"] == "mixed")
     kic = next(e for e in mixed["estimates"] if e["name"] == "Kic")
