@@ -650,8 +650,11 @@ def fit_curve(
         uu, sv, vt = np.linalg.svd(jf, full_matrices=False)
         if sv.size and sv[-1] > sv[0] * 1e-12 and sv[-1] > 0:
             cf = (vt.T / sv**2) @ vt * s2
-            cov_u = np.full((p, p), np.nan)
-            cov_u[np.ix_(free, free)] = cf
+            if free.all():
+                cov_u = cf
+            else:
+                cov_u = np.full((p, p), np.nan)
+                cov_u[np.ix_(free, free)] = cf
             leverage = np.sum(uu**2, axis=1)
     # step scales for the profile where no standard error exists (unconstrained curvature)
     hint = np.full(p, np.nan)
@@ -667,7 +670,11 @@ def fit_curve(
     w = prob.weights_at(u)
     fitted = prob.fitted(u)
     with np.errstate(divide="ignore", invalid="ignore"):
-        loglik = -0.5 * n * (math.log(2.0 * math.pi * cost / n) + 1.0) + 0.5 * float(np.sum(np.log(w))) if not exact else math.inf
+        loglik = (
+            -0.5 * n * (math.log(2.0 * math.pi * cost / n) + 1.0) + (0.5 * float(np.sum(np.log(w))) if weights != "none" else 0.0)
+            if not exact
+            else math.inf
+        )
     k = p + 1
     aic = -2.0 * loglik + 2.0 * k
     aicc = aic + (2.0 * k * (k + 1) / (n - k - 1) if n - k - 1 > 0 else math.inf)
