@@ -12,6 +12,7 @@ import math
 import sys
 from collections.abc import Callable, Sequence
 from pathlib import Path
+from typing import Any
 from typing import TYPE_CHECKING
 
 from . import __version__
@@ -96,6 +97,7 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
     fu = 1.0 if args.fu_inc is None else args.fu_inc
     today = datetime.date.today().isoformat()
     values: dict[str, object]
+    result: Any  # an InactivationFit or an InductionFit
     if args.command == "fit-tdi":
         from .kinetics.inactivation import fit_inactivation_raw
 
