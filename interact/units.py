@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import math
 import re
+import tokenize
 from functools import lru_cache
 from pathlib import Path
 from typing import Any, Final
@@ -248,7 +249,8 @@ def _parse_text(text: str, field: str, wanted: str) -> pint.Quantity:
     except pint.UndefinedUnitError as exc:
         names = ", ".join(f'"{n}"' for n in getattr(exc, "unit_names", ())) or f'"{unit_text}"'
         raise UnitError(field, text, f"has an unknown unit {names}; {wanted}") from None
-    except (pint.PintError, SyntaxError, ValueError, TypeError, AttributeError, KeyError, OverflowError):
+    except (pint.PintError, SyntaxError, ValueError, TypeError, AttributeError, KeyError, OverflowError,
+            AssertionError, IndexError, tokenize.TokenError):  # pint's parser asserts on text such as "ng/"
         raise UnitError(field, text, f"has an unreadable unit \"{unit_text}\"; {wanted}") from None
     return Quantity(float(number), unit)
 

@@ -85,3 +85,14 @@ def test_format_round_trip() -> None:
         q = units.parse(text, kind, field="x")
         again = units.parse(units.format_quantity(q), kind, field="x")
         assert units.magnitude(again, str(q.units)) == units.magnitude(q, str(q.units))
+
+
+@pytest.mark.parametrize(
+    "text",
+    ["812 ng/", "0.1 min^", "0.1 min-", "1 *", "1 **", "1 (", "1 )", "1 ()", "5 mg/(kg", "2 (mg)/", "1e-", "1 mg/ mL/"],
+)
+def test_half_typed_units_are_unit_errors(text: str) -> None:
+    """What a user has typed halfway through a unit is a clear UnitError, never a parser crash."""
+    with pytest.raises(UnitError, match="perpetrator.cmax") as info:
+        units.parse(text, "concentration", field="perpetrator.cmax")
+    assert info.value.value == text
