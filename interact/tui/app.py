@@ -13,22 +13,24 @@ from __future__ import annotations
 import copy
 import tomllib
 from pathlib import Path
-from typing import Any
+from typing import Any, ClassVar
 
 from rich.text import Text
-from textual import on
 from textual.app import App, ComposeResult
-from textual.binding import Binding
-from textual.containers import Horizontal, VerticalScroll
+from textual.binding import Binding, BindingType
+from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.widget import Widget
-from textual.widgets import Button, Footer, Header, Static, TabbedContent, TabPane
+from textual.widgets import Footer, Header, Static, TabbedContent, TabPane
 
 from ..assessment import Assessment, assess
 from ..cautions import CAUTION_LINE
 from ..errors import InputError, InteractError, Problem, ScenarioError
 from ..scenario import Scenario, demo_path, save_scenario, scenario_from_dict
 from . import plots
-from .form import MISSING, FieldInput, FieldRow, ItemBox, ListBox, build_form, get_path, key_of, set_path, value_of
+from .doc import Doc
+from .document_view import DocumentView
+from .form import MISSING, get_path, key_of, set_path, value_of
+from .form_view import FieldState, FormView
 from .notes import field_note
 from .results import Comparison, compare, render_answer, render_stale
 from .screens import AskPath, CautionsScreen, ConfirmDiscard, HelpScreen, LoadProblems
@@ -49,7 +51,9 @@ def read_scenario_file(path: str | Path) -> tuple[dict[str, Any], Scenario]:
     try:
         text = p.read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError) as exc:
-        raise InputError("scenario", str(p), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+        raise InputError(
+            "scenario", str(p), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})"
+        ) from None
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
@@ -61,7 +65,7 @@ def read_scenario_file(path: str | Path) -> tuple[dict[str, Any], Scenario]:
 class PlotView(Widget):
     """One terminal chart with its title and legend."""
 
-    def __init__(self, *, id: str) -> None:  # noqa: A002 - Textual's name
+    def __init__(self, *, id: str) -> None:
         super().__init__(id=id)
         self.chart: plots.Chart | None = None
         self.stale = False
@@ -96,14 +100,16 @@ class PlotView(Widget):
 class InteractApp(App[int]):
     """Scenario editor with live assessment, plots, pinning, files and cautions."""
 
-    CSS_PATH = "app.tcss"
+    CSS_PATH = Path(__file__).with_name("app.tcss")
     TITLE = "interact"
     ENABLE_COMMAND_PALETTE = False
-    BINDINGS = [
+    BINDINGS: ClassVar[list[BindingType]] = [
         Binding("f1", "help", "Help"),
         Binding("f2", "cautions", "Cautions"),
         Binding("f3", "pin", "Pin"),
         Binding("f4", "next_view", "Views"),
+        Binding("f5", "group(1)", "Next group"),
+        Binding("shift+f5", "group(-1)", "Previous group", show=False),
         Binding("ctrl+s", "save", "Save"),
         Binding("f6", "save_as", "Save as"),
         Binding("ctrl+o", "open", "Open"),
@@ -117,6 +123,13 @@ class InteractApp(App[int]):
         ("F2", "the full cautions"),
         ("F3", "pin the current result; later edits show as differences from it (F3 again unpins)"),
         ("F4", "switch the right side between the answer and the plots"),
+        ("F5", "next group of inputs (targets, metabolites, victim, ...)"),
+        ("Shift+F5", "previous group of inputs"),
+        ("Up / Down", "in the form: previous / next field; PageUp / PageDown by a screen"),
+        ("Enter", "in the form: next field, or do the selected 'add ...' / 'remove ...'"),
+        ("Right", "at the end of a value: accept the greyed suggestion (targets, mechanisms, yes/no)"),
+        ("Ctrl+U / Ctrl+K", "in a value: delete to its start / end (Home, End, Backspace, Delete as usual)"),
+        ("Tab", "move between the form and the answer (scroll the answer with the arrows)"),
         ("Ctrl+S", "save (the built-in demo asks for a new file name)"),
         ("F6", "save as a new file"),
         ("Ctrl+O", "open another scenario file"),
@@ -146,13 +159,12 @@ class InteractApp(App[int]):
     def compose(self) -> ComposeResult:
         yield Header(show_clock=False)
         with Horizontal(id="main"):
-            with VerticalScroll(id="form"):
-                yield from build_form(self.data)
+            with Vertical(id="left"):
+                yield FormView(self.data, id="form")
+                yield Static("", id="detail", markup=False)
             with TabbedContent(id="views", initial="answer"):
                 with TabPane("Answer", id="answer"):
-                    with VerticalScroll(id="answer-scroll"):
-                        yield Static("", id="stale")
-                        yield Static("", id="answer-body")
+                    yield DocumentView(id="answer-body")
                 with TabPane("Plots", id="plots"):
                     with VerticalScroll(id="plot-scroll"):
                         yield PlotView(id="plot-fm")
@@ -160,16 +172,13 @@ class InteractApp(App[int]):
         yield Static(f"{CAUTION_LINE}  (F2: cautions)", id="caution-line", markup=False)
         yield Footer()
 
+    @property
+    def form(self) -> FormView:
+        return self.query_one("#form", FormView)
+
     def on_mount(self) -> None:
         self.recompute()
-        self._show_starts()
-        first = self.query(FieldInput).first()
-        first.focus()
-
-    def _show_starts(self) -> None:
-        """Show the start of each value (long names), not its end."""
-        for inp in self.query(FieldInput):
-            inp.cursor_position = 0
+        self.form.focus()
 
     def on_resize(self) -> None:
         if self.assessment is not None:
@@ -185,19 +194,27 @@ class InteractApp(App[int]):
         return "built-in demo (invented), not saved to a file" if self.path is None else str(self.path)
 
     def update_title(self) -> None:
-        self.title = "interact"
-        self.sub_title = self.file_label + ("  * unsaved edits" if self.dirty else "")
+        sub = self.file_label + ("  * unsaved edits" if self.dirty else "")
+        if self.sub_title != sub:
+            self.sub_title = sub
 
-    def field(self, key: str) -> FieldRow:
+    def field(self, key: str) -> FieldState:
         """The field for a dotted key path (for tests and the problem list)."""
-        for row in self.query(FieldRow):
-            if row.key == key:
-                return row
-        raise KeyError(key)
+        return self.form.fields[key]
 
     def recompute(self) -> None:
         """Rebuild the scenario from the form data, assess it, refresh everything that shows it."""
         self.generation += 1
+        with self.batch_update():
+            self._recompute()
+
+    def _recompute(self) -> None:
+        if self.valid and self.assessment is not None and self.data == self.valid_data:
+            # nothing changed since the last valid result (a section switch): just redraw
+            self._show_problems()
+            self._show_results()
+            self.update_title()
+            return
         self.problems = ()
         self.general = []
         try:
@@ -218,141 +235,141 @@ class InteractApp(App[int]):
         self._show_results()
         self.update_title()
 
+    async def reveal(self, key: str) -> FieldState:
+        """Select the field ``key`` in the form and scroll it into view."""
+        return self.form.select(key)
+
     def _show_problems(self) -> None:
         by_key: dict[str, list[str]] = {}
         for p in self.problems:
             by_key.setdefault(p.field, []).append(p.message)
         current = self.assessment if self.valid else None
-        shown: set[str] = set()
-        for row in self.query(FieldRow):
-            text, error = field_note(row.spec, row.path, row.key, row.input.value, self.data, current)
+        form = self.form
+        for st in form.fields.values():
+            text, error = field_note(st.spec, st.path, st.key, st.text, self.data, current)
             if not error:
-                own = by_key.get(row.key) or _indexed_problems(by_key, row.key)
+                own = by_key.get(st.key) or _indexed_problems(by_key, st.key)
                 if own:
                     text, error = "; ".join(own), True
-            if error:
-                shown.add(row.key)
-            row.show(text, error=error)
-        for box in self.query(ItemBox).results():
-            box.show_problem("; ".join(by_key.get(box.key, [])))
-        for lst in self.query(ListBox).results():
-            lst.show_problem("; ".join(by_key.get(lst.key, [])))
+            form.set_note(st, text, error)
+        form.set_problems({k: "; ".join(v) for k, v in by_key.items()})
+        self.show_detail()
+
+    def show_detail(self) -> None:
+        """The selected field in full: its key path and the whole note (the line under it may be cut)."""
+        st = self.form.current_field
+        row = self.form.current
+        if st is not None:
+            text = f"{st.spec.label} [{st.key}]: {st.note_text or st.spec.hint}"
+        elif row is not None and row.kind in ("add", "remove"):
+            text = f"Enter: {row.text}."
+        else:
+            text = "Up/Down move between fields; type values with units; F1 lists every key."
+        detail = self.query_one("#detail", Static)
+        if str(detail.content) != text:
+            detail.update(text, layout=False)
+
+    def on_form_view_selected(self) -> None:
+        self.show_detail()
 
     def problem_lines(self) -> list[str]:
         lines = [str(p) for p in self.problems] + self.general
-        for row in self.query(FieldRow):
-            if row.has_error and row.key not in {p.field for p in self.problems}:
-                lines.append(f"{row.key}: {row.note_text.removeprefix('error: ')}")
+        known = {p.field for p in self.problems}
+        for st in self.form.fields.values():
+            if st.error and st.key not in known and not _indexed_problems({p.field: [p.message] for p in self.problems}, st.key):
+                lines.append(f"{st.key}: {st.note}")
         return lines
 
     def _show_results(self) -> None:
-        stale = self.query_one("#stale", Static)
-        body = self.query_one("#answer-body", Static)
+        body = self.query_one("#answer-body", DocumentView)
         problems = self.problem_lines() if not self.valid else []
-        stale.display = bool(problems)
-        if problems:
-            stale.update(render_stale(problems))
-        body.set_class(bool(problems), "stale")
         a = self.assessment
+        doc = render_stale(problems) if problems else Doc()
         if a is None:
-            body.update("No valid result yet: fix the problems listed above.")
+            body.show(doc.para("No valid result yet: fix the problems listed above."))
             for pid in ("#plot-fm", "#plot-dose"):
                 self.query_one(pid, PlotView).show(None, stale=True, empty_text="No valid result yet.")
             return
         comparison: Comparison | None = None
         if self.pinned is not None:
             comparison = compare(self.pinned[0], self.pinned[1], a, self.valid_data)
-        body.update(render_answer(a, comparison, narrow=self.size.width < 120))
+        body.show(doc.extend(render_answer(a, comparison, narrow=self.size.width < 120, stale=bool(problems))))
         if self.valid:
             self.query_one("#plot-fm", PlotView).show(
                 plots.fm_curve(a), stale=False, empty_text="No fm plot: the perpetrator acts on none of the victim's pathways."
             )
-            self.query_one("#plot-dose", PlotView).show(plots.dose_curve(a), stale=False, empty_text="No dose plot: no inhibition constants.")
+            self.query_one("#plot-dose", PlotView).show(
+                plots.dose_curve(a), stale=False, empty_text="No dose plot: no inhibition constants."
+            )
         else:
             for pid in ("#plot-fm", "#plot-dose"):
                 view = self.query_one(pid, PlotView)
                 view.show(view.chart, stale=True, empty_text=view.empty_text)
 
     # ------------------------------------------------------------------ editing
-    def on_input_changed(self, event: FieldInput.Changed) -> None:
-        inp = event.input
-        if not isinstance(inp, FieldInput):
-            return
-        value = value_of(inp.spec.kind, event.value)
-        current = get_path(self.data, inp.path)
+    def on_form_view_edited(self, event: FormView.Edited) -> None:
+        st = event.state
+        value = value_of(st.spec.kind, st.text)
+        current = get_path(self.data, st.path)
         if type(value) is type(current) and value == current:
+            self.show_detail()
             return
         if value is MISSING and current is MISSING:
             return
-        set_path(self.data, inp.path, value)
-        if inp.path[-1] in ("target", "enzyme", "name"):
-            for box in inp.ancestors:
-                if isinstance(box, ItemBox) and box.path == inp.path[:-1]:
-                    from .form import _item_title
-
-                    box.query_one(".item-title", Static).update(_item_title(box.spec, int(box.path[-1]), get_path(self.data, box.path)))
-                    break
+        set_path(self.data, st.path, value)
+        if st.path[-1] in ("target", "enzyme", "name") and len(st.path) > 2:
+            self.form.set_item_title(st.path[:-1], self.data)
         self.recompute()
 
-    @on(Button.Pressed, ".add")
-    async def _add_pressed(self, event: Button.Pressed) -> None:
-        await self.add_entry(event.button.list_path)  # type: ignore[attr-defined]
+    def on_form_view_action_chosen(self, event: FormView.ActionChosen) -> None:
+        if event.kind == "add":
+            self.add_entry(event.path)
+        else:
+            self.remove_entry(event.path)
 
-    @on(Button.Pressed, ".remove")
-    async def _remove_pressed(self, event: Button.Pressed) -> None:
-        await self.remove_entry(event.button.item_path)  # type: ignore[attr-defined]
-
-    async def add_entry(self, list_path: tuple[str | int, ...]) -> None:
+    def add_entry(self, list_path: tuple[str | int, ...]) -> None:
         entries = get_path(self.data, list_path, None)
         if not isinstance(entries, list):
             entries = []
             set_path(self.data, list_path, entries)
         entries.append({})
-        await self.rebuild_form(focus=key_of((*list_path, len(entries) - 1)))
+        self.form.load(self.data, select_key=key_of((*list_path, len(entries) - 1)) + ".")
+        self.recompute()
 
-    async def remove_entry(self, item_path: tuple[str | int, ...]) -> None:
+    def remove_entry(self, item_path: tuple[str | int, ...]) -> None:
         entries = get_path(self.data, item_path[:-1], None)
         index = int(item_path[-1])
         if isinstance(entries, list) and 0 <= index < len(entries):
             del entries[index]
-        await self.rebuild_form(focus=key_of(item_path[:-1]))
-
-    async def rebuild_form(self, focus: str | None = None) -> None:
-        """Rebuild the form after entries were added or removed (the data keeps every value)."""
-        form = self.query_one("#form", VerticalScroll)
-        await form.remove_children()
-        await form.mount_all(build_form(self.data))
+        self.form.load(self.data, select_key=key_of(item_path[:-1]))
         self.recompute()
-        self._show_starts()
-        if focus is not None:
-            target = next((i for i in self.query(FieldInput) if i.key.startswith(focus + ".")), None)
-            if target is None:
-                target = next((b for b in self.query(".add").results(Button) if key_of(b.list_path) == focus), None)  # type: ignore[attr-defined]
-            if target is not None:
-                target.focus()
-                target.scroll_visible(animate=False)
 
-    def _focused_box(self, kind: type) -> Any:
-        node = self.focused
-        while node is not None:
-            if isinstance(node, kind):
-                return node
-            node = node.parent  # type: ignore[assignment]
-        return None
+    def _list_path(self, items_only: bool) -> tuple[str | int, ...] | None:
+        """The list (or, with ``items_only``, the entry) the form's selection is in."""
+        row = self.form.current
+        if row is None:
+            return None
+        path = row.path
+        if row.kind == "add":
+            return None if items_only else path
+        ints = [i for i, p in enumerate(path) if isinstance(p, int)]
+        if not ints:
+            return None
+        return path[: ints[-1] + 1] if items_only else path[: ints[-1]]
 
-    async def action_add_entry(self) -> None:
-        box = self._focused_box(ListBox)
-        if box is None:
-            self.notify("Move the cursor into a list (targets, metabolites, pathways) to add an entry.", severity="warning")
+    def action_add_entry(self) -> None:
+        path = self._list_path(items_only=False)
+        if path is None:
+            self.notify("Select a field of a list (targets, metabolites, pathways) to add an entry to it.", severity="warning")
             return
-        await self.add_entry(box.path)
+        self.add_entry(path)
 
-    async def action_remove_entry(self) -> None:
-        box = self._focused_box(ItemBox)
-        if box is None:
-            self.notify("Move the cursor into an entry (a target, metabolite or pathway) to remove it.", severity="warning")
+    def action_remove_entry(self) -> None:
+        path = self._list_path(items_only=True)
+        if path is None:
+            self.notify("Select a field of an entry (a target, metabolite or pathway) to remove it.", severity="warning")
             return
-        await self.remove_entry(box.path)
+        self.remove_entry(path)
 
     # ------------------------------------------------------------------ views
     def action_help(self) -> None:
@@ -360,6 +377,10 @@ class InteractApp(App[int]):
 
     def action_cautions(self) -> None:
         self.push_screen(CautionsScreen())
+
+    def action_group(self, step: int) -> None:
+        self.form.focus()
+        self.form.action_group(step)
 
     def action_next_view(self) -> None:
         tabs = self.query_one("#views", TabbedContent)
@@ -457,11 +478,12 @@ class InteractApp(App[int]):
         self.data = data
         self.saved_data = copy.deepcopy(data)
         self.assessment = None
+        self.valid = False
         self.pinned = None
-        await self.rebuild_form()
+        self.form.load(data)
+        self.recompute()
         self.notify(f"Opened {path}")
-        first = self.query(FieldInput).first()
-        first.focus()
+        self.form.focus()
         return True
 
 

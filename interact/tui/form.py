@@ -1,6 +1,6 @@
 """The input form: what each field is, how its text becomes scenario data, and the widgets.
 
-The form edits a plain dictionary in the layout of the scenario file (the data
+The form (drawn by :mod:`interact.tui.form_view`) edits a plain dictionary in the layout of the scenario file (the data
 :func:`interact.scenario.scenario_from_dict` reads).  A field writes the user's
 text into the dictionary (unit values stay text; plain numbers become floats);
 the app rebuilds the scenario from the dictionary after every edit, so the
@@ -13,14 +13,9 @@ from __future__ import annotations
 
 import math
 import re
-from collections.abc import Iterator
 from dataclasses import dataclass
+from functools import lru_cache
 from typing import Any, Final
-
-from textual.app import ComposeResult
-from textual.containers import Horizontal, Vertical
-from textual.suggester import SuggestFromList
-from textual.widgets import Button, Input, Label, Static
 
 from .. import units
 from ..errors import InputError
@@ -29,14 +24,14 @@ from ..tables import load_targets, rule_set_names
 
 __all__ = [
     "MISSING",
-    "FieldInput",
-    "FieldRow",
+    "SCHEMA",
     "FieldSpec",
-    "ItemBox",
-    "ListBox",
-    "build_form",
+    "Heading",
+    "ListSpec",
+    "choices_for",
     "get_path",
     "key_of",
+    "local_check",
     "set_path",
     "text_of",
     "value_of",
@@ -118,67 +113,68 @@ PATHWAYS: Final = ListSpec(
     ),
 )
 
-#: the whole form: (group title, table key, items)
+_PERPETRATOR: Final = (
+    FieldSpec("name", "Name", "text", "e.g. Compound A"),
+    Heading("Exposure"),
+    FieldSpec("dose", "Dose", "dose", "highest dose, e.g. 200 mg"),
+    FieldSpec("route", "Route", "choice:route", "oral or intravenous"),
+    FieldSpec("interval", "Interval", "time", "e.g. 24 h"),
+    FieldSpec("cmax", "Cmax (total)", "concentration", "steady state, e.g. 812 ng/mL"),
+    FieldSpec("molar_mass", "Molar mass", "molar_mass", "e.g. 452.5 g/mol"),
+    Heading("Binding"),
+    FieldSpec("fu_plasma", "fu,p", "fraction", "unbound in plasma, e.g. 0.02"),
+    FieldSpec("fu_plasma_measured", "fu,p measured", "flag", "yes if reliably measured"),
+    FieldSpec("blood_plasma_ratio", "Rb (blood:plasma)", "number", "e.g. 0.8"),
+    Heading("Absorption"),
+    FieldSpec("fa_fg", "Fa x Fg", "fraction", "e.g. 1"),
+    FieldSpec("fa", "Fa", "fraction", "fraction absorbed"),
+    FieldSpec("ka", "ka", "rate", "e.g. 0.1 1/min"),
+)
+
+_VICTIM: Final = (
+    FieldSpec("name", "Name", "text", "e.g. Drug B"),
+    FieldSpec("dose", "Dose", "dose", "usual dose, e.g. 10 mg"),
+    FieldSpec("interval", "Interval", "time", "e.g. 24 h"),
+    FieldSpec("route", "Route", "choice:route", "oral or intravenous"),
+    FieldSpec("fg", "Fg", "fraction", "intestinal availability, e.g. 0.5"),
+    FieldSpec("strengths", "Strengths", "doses", "e.g. 2.5 mg, 5 mg, 10 mg"),
+    FieldSpec("no_effect_boundary", "No-effect range", "pair", "AUC ratios, e.g. 0.8, 1.25"),
+    FieldSpec("narrow_therapeutic_index", "Narrow ther. index", "flag", "yes or no"),
+    PATHWAYS,
+)
+
+_SCENARIO: Final = (
+    FieldSpec("title", "Title", "text", "a short description"),
+    FieldSpec("rules", "Rule set", "choice:rules", "ich-m12-2024"),
+)
+
+_PHYSIOLOGY: Final = (
+    FieldSpec("hepatic_blood_flow", "Qh (liver)", "flow", "e.g. 97 L/h"),
+    FieldSpec("enterocytic_blood_flow", "Qent (gut wall)", "flow", "e.g. 18 L/h"),
+    FieldSpec("gut_volume", "Gut volume", "volume", "for Igut, e.g. 250 mL"),
+    FieldSpec("fu_gut", "fu,gut", "fraction", "unbound in enterocytes"),
+    FieldSpec("fu_plasma_floor", "fu,p floor", "fraction", "replaces the rule set's lowest fu,p"),
+)
+
+#: the whole form: (group title, table key, items), in the order a pharmacologist fills it
 SCHEMA: Final = (
-    (
-        "Scenario",
-        "",
-        (
-            FieldSpec("title", "Title", "text", "a short description"),
-            FieldSpec("rules", "Rule set", "choice:rules", "ich-m12-2024"),
-        ),
-    ),
-    (
-        "Perpetrator (inhibitor)",
-        "perpetrator",
-        (
-            FieldSpec("name", "Name", "text", "e.g. Compound A"),
-            Heading("Exposure"),
-            FieldSpec("dose", "Dose", "dose", "highest dose, e.g. 200 mg"),
-            FieldSpec("route", "Route", "choice:route", "oral or intravenous"),
-            FieldSpec("interval", "Interval", "time", "e.g. 24 h"),
-            FieldSpec("cmax", "Cmax (total)", "concentration", "steady state, e.g. 812 ng/mL"),
-            FieldSpec("molar_mass", "Molar mass", "molar_mass", "e.g. 452.5 g/mol"),
-            Heading("Binding"),
-            FieldSpec("fu_plasma", "fu,p", "fraction", "unbound in plasma, e.g. 0.02"),
-            FieldSpec("fu_plasma_measured", "fu,p measured", "flag", "yes if reliably measured"),
-            FieldSpec("blood_plasma_ratio", "Rb (blood:plasma)", "number", "e.g. 0.8"),
-            Heading("Absorption"),
-            FieldSpec("fa_fg", "Fa x Fg", "fraction", "e.g. 1"),
-            FieldSpec("fa", "Fa", "fraction", "fraction absorbed"),
-            FieldSpec("ka", "ka", "rate", "e.g. 0.1 1/min"),
-            TARGETS,
-            METABOLITES,
-        ),
-    ),
-    (
-        "Victim (affected drug)",
-        "victim",
-        (
-            FieldSpec("name", "Name", "text", "e.g. Drug B"),
-            FieldSpec("dose", "Dose", "dose", "usual dose, e.g. 10 mg"),
-            FieldSpec("interval", "Interval", "time", "e.g. 24 h"),
-            FieldSpec("route", "Route", "choice:route", "oral or intravenous"),
-            FieldSpec("fg", "Fg", "fraction", "intestinal availability, e.g. 0.5"),
-            FieldSpec("strengths", "Strengths", "doses", "e.g. 2.5 mg, 5 mg, 10 mg"),
-            FieldSpec("no_effect_boundary", "No-effect range", "pair", "AUC ratios, e.g. 0.8, 1.25"),
-            FieldSpec("narrow_therapeutic_index", "Narrow ther. index", "flag", "yes or no"),
-            PATHWAYS,
-        ),
-    ),
-    (
-        "Physiology (leave empty for the defaults)",
-        "physiology",
-        (
-            FieldSpec("hepatic_blood_flow", "Qh (liver)", "flow", "e.g. 97 L/h"),
-            FieldSpec("enterocytic_blood_flow", "Qent (gut wall)", "flow", "e.g. 18 L/h"),
-            FieldSpec("gut_volume", "Gut volume", "volume", "for Igut, e.g. 250 mL"),
-            FieldSpec("fu_gut", "fu,gut", "fraction", "unbound in enterocytes"),
-        ),
-    ),
+    ("Perpetrator (inhibitor)", "perpetrator", (*_PERPETRATOR, TARGETS, METABOLITES)),
+    ("Victim (affected drug)", "victim", _VICTIM),
+    ("Scenario", "", _SCENARIO),
+    ("Physiology (leave empty for the defaults)", "physiology", _PHYSIOLOGY),
 )
 
 
+def choices_for(kind: str) -> tuple[str, ...]:
+    """The values a choice or yes/no field offers as suggestions (empty for other kinds)."""
+    if kind == "flag":
+        return ("yes", "no")
+    if kind.startswith("choice:"):
+        return _choices(kind.split(":", 1)[1])
+    return ()
+
+
+@lru_cache(maxsize=8)
 def _choices(name: str) -> tuple[str, ...]:
     if name == "mechanism":
         return MECHANISMS
@@ -316,132 +312,3 @@ def local_check(kind: str, text: str, key: str) -> tuple[str | None, Any]:
         shown = f'"{exc.value}"' if isinstance(exc.value, str) else repr(exc.value)
         return f"{shown} {exc.expected}", None
     return None, t
-
-
-# --------------------------------------------------------------------------- widgets
-
-
-class FieldInput(Input):
-    """A one-line input that knows where its value goes in the scenario data."""
-
-    def __init__(self, spec: FieldSpec, path: Path, text: str) -> None:
-        suggester = None
-        if spec.kind.startswith("choice:"):
-            suggester = SuggestFromList(_choices(spec.kind.split(":", 1)[1]), case_sensitive=False)
-        elif spec.kind == "flag":
-            suggester = SuggestFromList(("yes", "no"), case_sensitive=False)
-        super().__init__(value=text, placeholder=spec.hint, suggester=suggester, compact=True, classes="value")
-        self.spec = spec
-        self.path = path
-        self.key = key_of(path)
-
-
-class FieldRow(Vertical):
-    """Label and input on one line; below them what the value was understood as, or the error."""
-
-    def __init__(self, spec: FieldSpec, path: Path, text: str) -> None:
-        super().__init__(classes="field")
-        self.spec = spec
-        self.path = path
-        self.key = key_of(path)
-        self.input = FieldInput(spec, path, text)
-        self.note = Static("", classes="note", markup=False)
-        self.note.display = False
-        self._note_text = ""
-        self._error = False
-
-    def compose(self) -> ComposeResult:
-        with Horizontal(classes="row"):
-            yield Label(self.spec.label, classes="label")
-            yield self.input
-        yield self.note
-
-    def show(self, text: str, *, error: bool = False) -> None:
-        """Set the line under the field (changes only when the text does)."""
-        if text == self._note_text and error == self._error:
-            return
-        self._note_text = text
-        self._error = error
-        self.note.update(f"error: {text}" if error else text)
-        self.note.set_class(error, "error")
-        self.set_class(error, "invalid")
-        self.note.display = bool(text)
-
-    @property
-    def note_text(self) -> str:
-        return ("error: " if self._error else "") + self._note_text
-
-    @property
-    def has_error(self) -> bool:
-        return self._error
-
-
-class ItemBox(Vertical):
-    """One entry of a list (a target, a metabolite, a pathway) with its remove button."""
-
-    def __init__(self, spec: ListSpec, path: Path, title: str, children: list[Any]) -> None:
-        self.spec = spec
-        self.path = path
-        self.key = key_of(path)
-        self.problem = Static("", classes="note error item-problem", markup=False)
-        self.problem.display = False
-        remove = Button(f"remove {spec.noun}", classes="remove", compact=True)
-        remove.item_path = path  # type: ignore[attr-defined]
-        head = Horizontal(Label(title, classes="item-title"), remove, classes="item-head")
-        super().__init__(head, self.problem, *children, classes="item")
-
-    def show_problem(self, text: str) -> None:
-        self.problem.update(f"error: {text}" if text else "")
-        self.problem.display = bool(text)
-
-
-class ListBox(Vertical):
-    """A list of entries with an add button and a line for list-wide problems (fm sum)."""
-
-    def __init__(self, spec: ListSpec, path: Path, children: list[Any]) -> None:
-        self.spec = spec
-        self.path = path
-        self.key = key_of(path)
-        self.problem = Static("", classes="note error list-problem", markup=False)
-        self.problem.display = False
-        add = Button(f"add a {spec.noun}", classes="add", compact=True)
-        add.list_path = path  # type: ignore[attr-defined]
-        super().__init__(Label(spec.title, classes="list-title"), self.problem, *children, add, classes="list")
-
-    def show_problem(self, text: str) -> None:
-        self.problem.update(f"error: {text}" if text else "")
-        self.problem.display = bool(text)
-
-
-def _item_title(spec: ListSpec, index: int, entry: Any) -> str:
-    label = ""
-    if isinstance(entry, dict):
-        label = str(entry.get("target") or entry.get("enzyme") or entry.get("name") or "")
-    return f"{spec.noun.capitalize()} {index + 1}" + (f": {label}" if label else "")
-
-
-def _widgets(items: tuple[Any, ...], base: Path, data: dict[str, Any]) -> Iterator[Any]:
-    for item in items:
-        if isinstance(item, Heading):
-            yield Label(item.text, classes="heading")
-        elif isinstance(item, FieldSpec):
-            path = (*base, item.key)
-            yield FieldRow(item, path, text_of(item.kind, get_path(data, path)))
-        elif isinstance(item, ListSpec):
-            lpath = (*base, item.key)
-            entries = get_path(data, lpath, [])
-            entries = entries if isinstance(entries, list) else []
-            boxes = []
-            for i, entry in enumerate(entries):
-                ipath = (*lpath, i)
-                boxes.append(ItemBox(item, ipath, _item_title(item, i, entry), list(_widgets(item.items, ipath, data))))
-            yield ListBox(item, lpath, boxes)
-
-
-def build_form(data: dict[str, Any]) -> list[Any]:
-    """The form's widgets for the scenario data, group by group."""
-    out: list[Any] = []
-    for title, key, items in SCHEMA:
-        base: Path = (key,) if key else ()
-        out.append(Vertical(Label(title, classes="group-title"), *_widgets(items, base, data), classes="group"))
-    return out

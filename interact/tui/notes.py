@@ -10,6 +10,8 @@ from __future__ import annotations
 
 from typing import Any, Final
 
+import pint
+
 from .. import units
 from ..assessment import Assessment
 from ..errors import InteractError
@@ -34,7 +36,7 @@ _SETTINGS: Final = {
 }
 
 
-def _molar_mass(data: dict[str, Any], path: Path) -> units.Quantity | None:
+def _molar_mass(data: dict[str, Any], path: Path) -> pint.Quantity | None:
     where: Path = path[:3] if len(path) > 2 and path[1] == "metabolites" else ("perpetrator",)
     text = get_path(data, (*where, "molar_mass"), None)
     if not isinstance(text, str):
@@ -56,6 +58,8 @@ def _understood(spec: FieldSpec, path: Path, value: Any, data: dict[str, Any]) -
     if not isinstance(value, units.Quantity):
         return ""
     q = value
+    if kind == "molar_mass":
+        return ""
     shown = units.format_quantity(q)
     try:
         if kind == "concentration":
@@ -88,7 +92,7 @@ def _setting(a: Assessment, name: str) -> Setting | None:
 
 
 def _default_text(s: Setting) -> str:
-    value = f"{fmt(s.value, 4)} {s.unit}".strip()
+    value = f"{s.value:.4g} {s.unit}".strip()
     return f"empty: {value} used, {_origin(s)}"
 
 

@@ -76,7 +76,10 @@ def fm_curve(a: Assessment, points: int = 101) -> Chart | None:
     ceiling = pr.ceiling_gut / (1.0 - np.clip(fm + other_inhibited, 0.0, 0.999))
     upper = float(a.aucr_cutoff.value)
     return Chart(
-        title=f"AUC ratio against fm of {main.enzyme} (inhibitor effect as now: {fmt(main.liver.activity)} of {main.enzyme} activity left in the liver)",
+        title=(
+            f"AUC ratio against fm of {main.enzyme} (inhibitor effect as now: "
+            f"{fmt(main.liver.activity)} of {main.enzyme} activity left in the liver)"
+        ),
         x_label=f"fm of {main.enzyme}",
         y_label="AUC ratio",
         curve=Series(x=tuple(fm.tolist()), y=tuple(total.tolist())),
@@ -85,7 +88,9 @@ def fm_curve(a: Assessment, points: int = 101) -> Chart | None:
         point_label=f"now: fm {main.fm:g}, AUC ratio {fmt_ratio(pr.total)}",
         extra=(Series(x=tuple(fm.tolist()), y=tuple(ceiling.tolist())),),
         extra_label="complete inhibition",
-        notes=(f"other pathways held: {', '.join(f'{e.enzyme} fm {e.fm:g}' for e in others) or 'none'}; gut part {fmt_ratio(gut)}",),
+        notes=(
+            f"other pathways held: {', '.join(f'{e.enzyme} fm {e.fm:g}' for e in others) or 'none'}; gut part {fmt_ratio(gut)}",
+        ),
     )
 
 

@@ -12,29 +12,30 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
-from rich.console import Group, RenderableType
-from rich.table import Table as RichTable
-from rich.text import Text
+from rich.style import Style
 
 from ..assessment import Assessment
 from ..cautions import DOSE_CAUTIONS, INCREASE_CAUTION
 from ..report.assessment import assessment_sections
 from ..report.document import Note, Section, Table
 from ..report.numbers import fmt, fmt_ratio
+from .doc import Doc
 
 __all__ = ["Comparison", "compare", "flatten", "render_answer", "render_stale"]
 
 
-#: Rich styles, chosen to read on dark and light terminals; words carry every verdict
+#: styles chosen to read on dark and light terminals; words carry every verdict
 STYLE = {
-    "flag": "bold red3",
-    "ok": "green4",
-    "heading": "bold underline",
-    "result": "bold",
-    "stale": "bold reverse",
-    "caution": "italic",
-    "warning": "dark_orange3",
-    "dim": "dim",
+    "flag": Style.parse("bold red3"),
+    "ok": Style.parse("green4"),
+    "heading": Style.parse("bold underline"),
+    "result": Style.parse("bold"),
+    "stale": Style.parse("bold reverse"),
+    "stale_text": Style.parse("bold"),
+    "caution": Style.parse("italic"),
+    "caution_head": Style.parse("bold italic"),
+    "warning": Style.parse("dark_orange3"),
+    "dim": Style.parse("dim"),
 }
 
 
@@ -48,20 +49,8 @@ def _table(section: Section | None, first_header: str) -> Table | None:
     return next((b for b in section.blocks if isinstance(b, Table) and b.headers[0] == first_header), None)
 
 
-def _verdict_style(word: str) -> str:
+def _verdict_style(word: str) -> Style:
     return STYLE["flag"] if "INDICATED" in word.upper() and "NOT" not in word.upper() else STYLE["ok"]
-
-
-def _rich_table(headers: tuple[str, ...], rows: list[tuple[str, ...]], verdict_col: int | None = None) -> RichTable:
-    t = RichTable(show_edge=False, box=None, pad_edge=False, padding=(0, 1), header_style="bold", expand=False)
-    for h in headers:
-        t.add_column(h, overflow="fold")
-    for row in rows:
-        cells: list[Any] = list(row)
-        if verdict_col is not None:
-            cells[verdict_col] = Text(row[verdict_col], style=_verdict_style(row[verdict_col]))
-        t.add_row(*cells)
-    return t
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -119,7 +108,14 @@ def compare(pinned: Assessment, pinned_data: dict[str, Any], now: Assessment, no
         if o is None:
             rows.append((f"{r.label} {r.target}", "-", fmt_ratio(r.value), "new"))
         elif o.value != r.value or o.indicated != r.indicated:
-            rows.append((f"{r.label} {r.target}", f"{fmt_ratio(o.value)} {o.verdict}", f"{fmt_ratio(r.value)} {r.verdict}", _change(o.value, r.value)))
+            rows.append(
+                (
+                    f"{r.label} {r.target}",
+                    f"{fmt_ratio(o.value)} {o.verdict}",
+                    f"{fmt_ratio(r.value)} {r.verdict}",
+                    _change(o.value, r.value),
+                )
+            )
     before, after = flatten(pinned_data), flatten(now_data)
     inputs = []
     for key in sorted(set(before) | set(after)):
@@ -129,96 +125,105 @@ def compare(pinned: Assessment, pinned_data: dict[str, Any], now: Assessment, no
     return Comparison(rows=tuple(rows), inputs=tuple(inputs))
 
 
-def render_stale(problems: list[str]) -> Text:
+def render_stale(problems: list[str]) -> Doc:
     """The banner over a result that no longer matches the inputs."""
     n = len(problems)
-    t = Text(style=STYLE["stale"])
-    t.append("NOT UPDATED: ", style="bold")
-    t.append(
-        f"the inputs have {n} problem{'s' if n != 1 else ''} (marked 'error' under the fields). "
-        "The numbers below are for the last valid inputs, not for what is typed now.\n"
+    doc = Doc()
+    doc.para(
+        ("NOT UPDATED:", STYLE["stale"]),
+        (
+            f" the inputs have {n} problem{'s' if n != 1 else ''} (marked 'error' in the form). "
+            "The numbers below are for the last valid inputs, not for what is typed now.",
+            STYLE["stale_text"],
+        ),
     )
     for p in problems[:6]:
-        t.append(f"  - {p}\n")
+        doc.para(f"- {p}", indent=2, hanging=2)
     if n > 6:
-        t.append(f"  ... and {n - 6} more\n")
-    return t
+        doc.para(f"... and {n - 6} more", indent=2)
+    return doc.blank()
 
 
-def render_answer(a: Assessment, comparison: Comparison | None = None, *, narrow: bool = False) -> RenderableType:
+def render_answer(a: Assessment, comparison: Comparison | None = None, *, narrow: bool = False, stale: bool = False) -> Doc:
     """The results: summary, ratios and ceiling, basic models, dose, warnings.
 
     ``narrow`` lays the basic-model table out as one line per test, for panels
-    under about 60 columns.
+    under about 60 columns; ``stale`` dims everything (the inputs are invalid).
     """
     sections = assessment_sections(a)
-    out: list[RenderableType] = []
+    doc = Doc()
     pr = a.prediction
+    dim = STYLE["dim"] if stale else None
+
+    def st(name: str) -> Style:
+        return dim or STYLE[name]
 
     if comparison is not None:
-        out.append(Text("What-if: pinned result against now", style=STYLE["heading"]))
-        out.append(_rich_table(("", "pinned", "now", "change"), list(comparison.rows)))
+        doc.para(("What-if: pinned result against now", st("heading")))
+        doc.table(("", "pinned", "now", "change"), list(comparison.rows))
         if comparison.inputs:
-            out.append(Text("Inputs changed since pinning:\n" + "\n".join(f"  {c}" for c in comparison.inputs), style=STYLE["dim"]))
+            doc.para(("Inputs changed since pinning:", st("dim")))
+            for c in comparison.inputs:
+                doc.para((c, st("dim")), indent=2, hanging=2)
         else:
-            out.append(Text("No input changed since pinning.", style=STYLE["dim"]))
-        out.append(Text(""))
+            doc.para(("No input changed since pinning.", st("dim")))
+        doc.blank()
 
     # -- the answer first, in the report's words
     summary = _section(sections, "Summary")
     if summary is not None:
         for b in summary.blocks:
             if isinstance(b, Note):
-                out.append(Text(b.text, style=STYLE["result"]))
-    big = Text()
-    big.append("AUC ratio ", style="bold")
-    big.append(fmt_ratio(pr.total), style=STYLE["result"])
-    big.append(f"  ({pr.band.name})" if pr.band else "")
-    big.append(f"   study {'INDICATED' if a.study_indicated else 'not indicated'} at cutoff {a.aucr_cutoff.value:g}")
-    out.append(big)
+                doc.para((b.text, st("result")))
+    doc.para(
+        ("AUC ratio ", st("result")),
+        (fmt_ratio(pr.total), st("result")),
+        f" ({pr.band.name})" if pr.band else "",
+        f"  study {'INDICATED' if a.study_indicated else 'not indicated'} at cutoff {a.aucr_cutoff.value:g}",
+    )
     ratios = _table(_section(sections, "Mechanistic static model"), "AUC ratio")
     if ratios is not None:
-        out.append(_rich_table(("AUC ratio", "predicted", "complete inhibition"), [tuple(r) for r in ratios.rows]))
-    out.append(Text(""))
+        doc.table(("AUC ratio", "predicted", "complete inhibition"), [tuple(r) for r in ratios.rows])
+    doc.blank()
 
     # -- basic models (first five columns of the report's table)
     basic = _section(sections, "Basic static models")
     screen = _table(basic, "target")
-    out.append(Text(basic.title if basic else "Basic static models", style=STYLE["heading"]))
+    doc.para((basic.title if basic else "Basic static models", st("heading")))
     if screen is not None and screen.rows and narrow:
         for r in screen.rows:
-            line = Text(f"{r[0]} {r[1]} = {r[2]} (cutoff {r[3]}): ")
-            line.append(r[4], style=_verdict_style(r[4]))
-            out.append(line)
+            doc.para(f"{r[0]} {r[1]} = {r[2]} (cutoff {r[3]}): ", (r[4], dim or _verdict_style(r[4])), hanging=2)
     elif screen is not None and screen.rows:
-        out.append(_rich_table(("target", "test", "value", "cutoff", "verdict"), [tuple(r[:5]) for r in screen.rows], verdict_col=4))
+        rows = [tuple(r[:5]) for r in screen.rows]
+        doc.table(
+            ("target", "test", "value", "cutoff", "verdict"),
+            rows,
+            {(i, 4): dim or _verdict_style(r[4]) for i, r in enumerate(rows)},
+        )
     else:
-        out.append(Text("No criterion of this rule set applies to the targets given."))
-    out.append(Text(""))
+        doc.para("No criterion of this rule set applies to the targets given.")
+    doc.blank()
 
     # -- dose
     dose = _section(sections, "Dose suggestion")
-    out.append(Text(f"Dose of {a.scenario.victim.name}", style=STYLE["heading"]))
+    doc.para((f"Dose of {a.scenario.victim.name}", st("heading")))
     if dose is not None:
         for b in dose.blocks:
             if isinstance(b, Note) and b.kind == "result":
-                out.append(Text(b.text, style=STYLE["result"]))
+                doc.para((b.text, st("result")))
             elif isinstance(b, str):
-                out.append(Text(f"- {b}"))
-    caution = Text(style=STYLE["caution"])
-    caution.append("Caution: ", style="bold")
-    caution.append(DOSE_CAUTIONS[0])
-    if a.dose.action == "increase dose":
-        caution.append(" " + INCREASE_CAUTION)
-    caution.append(" (F2: all cautions)")
-    out.append(caution)
-    out.append(Text(""))
+                doc.para(f"- {b}", hanging=2)
+    extra = f" {INCREASE_CAUTION}" if a.dose.action == "increase dose" else ""
+    doc.para(("Caution: ", st("caution_head")), (DOSE_CAUTIONS[0] + extra + " (F2: all cautions)", st("caution")))
+    doc.blank()
 
     if a.warnings:
-        out.append(Text("Warnings", style=STYLE["heading"]))
-        out.extend(Text(f"- {w}", style=STYLE["warning"]) for w in a.warnings)
-        out.append(Text(""))
+        doc.para(("Warnings", st("heading")))
+        for w in a.warnings:
+            doc.para((f"- {w}", st("warning")), hanging=2)
+        doc.blank()
     if a.memory_values:
-        out.append(Text(f"Values from memory ({len(a.memory_values)}): verify before relying on them", style=STYLE["heading"]))
-        out.extend(Text(f"- {m}", style=STYLE["dim"]) for m in a.memory_values)
-    return Group(*out)
+        doc.para((f"Values from memory ({len(a.memory_values)}): verify before relying on them", st("heading")))
+        for m in a.memory_values:
+            doc.para((f"- {m}", st("dim")), hanging=2)
+    return doc

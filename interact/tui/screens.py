@@ -3,9 +3,10 @@
 from __future__ import annotations
 
 from pathlib import Path
+from typing import ClassVar
 
 from textual.app import ComposeResult
-from textual.binding import Binding
+from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, Static
@@ -77,7 +78,7 @@ def equations_text() -> str:
 
 
 class _Popup(ModalScreen[object]):
-    BINDINGS = [Binding("escape", "close", "Close")]
+    BINDINGS: ClassVar[list[BindingType]] = [Binding("escape", "close", "Close")]
 
     def action_close(self) -> None:
         self.dismiss(None)
@@ -88,10 +89,10 @@ class HelpScreen(_Popup):
 
     def __init__(self, bindings: list[tuple[str, str]]) -> None:
         super().__init__()
-        self._bindings = bindings
+        self._key_help = bindings
 
     def compose(self) -> ComposeResult:
-        keys = "\n".join(f"  {k:<14} {d}" for k, d in self._bindings)
+        keys = "\n".join(f"  {k:<14} {d}" for k, d in self._key_help)
         with Vertical(classes="popup wide"):
             yield Label("Keys and equations (Escape closes)", classes="popup-title")
             with VerticalScroll():
@@ -124,7 +125,7 @@ class CautionsScreen(_Popup):
 class AskPath(_Popup):
     """Ask for a file name (open or save as)."""
 
-    def __init__(self, title: str, start: str = "", *, confirm_existing: Path | None | bool = False) -> None:
+    def __init__(self, title: str, start: str = "", *, confirm_existing: Path | bool | None = False) -> None:
         """``confirm_existing``: ask before replacing an existing file other than this one (False: never ask)."""
         super().__init__()
         self._title = title
@@ -157,7 +158,7 @@ class AskPath(_Popup):
 class ConfirmDiscard(ModalScreen[str]):
     """Unsaved edits: save first, discard them, or go back."""
 
-    BINDINGS = [
+    BINDINGS: ClassVar[list[BindingType]] = [
         Binding("escape", "choose('back')", "Go back"),
         Binding("s", "choose('save')", "Save first"),
         Binding("d", "choose('discard')", "Discard"),

@@ -1,0 +1,59 @@
+"""A scrolling view of a :class:`~interact.tui.doc.Doc`, drawn line by line.
+
+Updating it lays the document out once at the view's width and repaints,
+without a screen layout pass: that keeps the answer panel cheap to refresh on
+every keystroke (a Static with automatic height would be measured and laid
+out again each time).
+"""
+
+from __future__ import annotations
+
+from textual.geometry import Size
+from textual.scroll_view import ScrollView
+from textual.strip import Strip
+
+from .doc import Doc
+
+__all__ = ["DocumentView"]
+
+
+class DocumentView(ScrollView, can_focus=True):
+    """Read-only document (the answer), scrollable with the keyboard when focused."""
+
+    def __init__(self, *, id: str) -> None:
+        super().__init__(id=id)
+        self._document = Doc()
+        self._lines: list[Strip] = []
+        self._width = 0
+
+    def show(self, document: Doc) -> None:
+        self._document = document
+        self._render_document()
+
+    @property
+    def plain_text(self) -> str:
+        """The document as plain text at the current width (for tests and copying)."""
+        return "\n".join(strip.text.rstrip() for strip in self._lines)
+
+    def _render_document(self) -> None:
+        width = self.scrollable_content_region.width or self.size.width
+        if width <= 0:
+            return
+        self._width = width
+        self._lines = [Strip(line) for line in self._document.lines(width)] or [Strip.blank(width)]
+        size = Size(width, len(self._lines))
+        if self.virtual_size != size:
+            self.virtual_size = size
+        self.refresh()
+
+    def on_resize(self) -> None:
+        if (self.scrollable_content_region.width or self.size.width) != self._width:
+            self._render_document()
+
+    def render_line(self, y: int) -> Strip:
+        scroll_x, scroll_y = self.scroll_offset
+        index = scroll_y + y
+        width = self.scrollable_content_region.width
+        if index >= len(self._lines):
+            return Strip.blank(width, self.rich_style)
+        return self._lines[index].crop_extend(scroll_x, scroll_x + width, self.rich_style).apply_style(self.rich_style)
