@@ -11,28 +11,33 @@ When the inputs are invalid the last valid result stays on screen under a
 from __future__ import annotations
 
 import copy
+import time
 import tomllib
 from pathlib import Path
 from typing import Any, ClassVar
 
 from rich.text import Text
+from textual import on, work
 from textual.app import App, ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.widget import Widget
-from textual.widgets import Footer, Header, Static, TabbedContent, TabPane
+from textual.widgets import Button, Footer, Header, Input, ProgressBar, Static, TabbedContent, TabPane
+from textual.worker import get_current_worker
 
 from ..assessment import Assessment, assess
 from ..cautions import CAUTION_LINE
 from ..errors import InputError, InteractError, Problem, ScenarioError
+from ..report.numbers import fmt
 from ..scenario import Scenario, demo_path, save_scenario, scenario_from_dict
 from . import plots
 from .doc import Doc
 from .document_view import DocumentView
+from .fitting_view import STEPS, FitPane, ki_entry
 from .form import MISSING, get_path, key_of, set_path, value_of
 from .form_view import FieldState, FormView
 from .notes import field_note
-from .results import Comparison, compare, render_answer, render_stale
+from .results import STYLE, Comparison, compare, render_answer, render_stale, sections_doc
 from .screens import AskPath, CautionsScreen, ConfirmDiscard, HelpScreen, LoadProblems
 
 __all__ = ["InteractApp", "read_scenario_file"]
@@ -122,7 +127,7 @@ class InteractApp(App[int]):
         ("F1", "this help: every key, and the equations behind each result with their sources"),
         ("F2", "the full cautions"),
         ("F3", "pin the current result; later edits show as differences from it (F3 again unpins)"),
-        ("F4", "switch the right side between the answer and the plots"),
+        ("F4", "switch the right side between the answer, the plots and the fitting view"),
         ("F5", "next group of inputs (targets, metabolites, victim, ...)"),
         ("Shift+F5", "previous group of inputs"),
         ("Up / Down", "in the form: previous / next field; PageUp / PageDown by a screen"),
@@ -154,6 +159,9 @@ class InteractApp(App[int]):
         self.general: list[str] = []
         self.pinned: tuple[Assessment, dict[str, Any]] | None = None
         self.generation = 0
+        self.fit: Any = None  # the last ModelComparison
+        self._fit_started = 0.0
+        self._fit_step = ""
 
     # ------------------------------------------------------------------ layout
     def compose(self) -> ComposeResult:
@@ -169,6 +177,9 @@ class InteractApp(App[int]):
                     with VerticalScroll(id="plot-scroll"):
                         yield PlotView(id="plot-fm")
                         yield PlotView(id="plot-dose")
+                        yield Static("", id="plot-fit", markup=False)
+                with TabPane("Fitting", id="fitting"):
+                    yield FitPane(id="fit-pane")
         yield Static(f"{CAUTION_LINE}  (F2: cautions)", id="caution-line", markup=False)
         yield Footer()
 
@@ -178,6 +189,7 @@ class InteractApp(App[int]):
 
     def on_mount(self) -> None:
         self.recompute()
+        self.on_mount_fit_defaults()
         self.form.focus()
 
     def on_resize(self) -> None:
@@ -386,6 +398,10 @@ class InteractApp(App[int]):
         tabs = self.query_one("#views", TabbedContent)
         order = [p.id for p in tabs.query(TabPane) if p.id]
         tabs.active = order[(order.index(tabs.active) + 1) % len(order)] if tabs.active in order else order[0]
+        if tabs.active == "fitting":
+            self.query_one("#fit-path", Input).focus()
+        elif isinstance(self.focused, Input):
+            self.form.focus()
 
     def action_pin(self) -> None:
         if self.pinned is not None:
@@ -398,6 +414,111 @@ class InteractApp(App[int]):
             self.pinned = (self.assessment, copy.deepcopy(self.valid_data))
             self.notify("Pinned: later edits show as differences from this result (F3 unpins).")
         self._show_results()
+
+    # ------------------------------------------------------------------ fitting
+    def on_mount_fit_defaults(self) -> None:
+        target = get_path(self.data, ("perpetrator", "inhibits", 0, "target"), "")
+        box = self.query_one("#fit-target", Input)
+        if not box.value and isinstance(target, str):
+            box.value = target
+
+    @on(Button.Pressed, "#fit-run")
+    @on(Input.Submitted, "#fit-path, #fit-unit")
+    def _fit_requested(self) -> None:
+        path = self.query_one("#fit-path", Input).value.strip()
+        if not path:
+            self._fit_status("error: give the CSV file name first")
+            return
+        unit = self.query_one("#fit-unit", Input).value.strip() or None
+        self.query_one("#fit-accept", Button).disabled = True
+        self.query_one("#fit-progress", ProgressBar).update(progress=0)
+        self._fit_started = time.monotonic()
+        self._fit_step = STEPS[0]
+        self._fit_timer = self.set_interval(0.2, self._fit_tick)
+        self.run_fit(path, unit)
+
+    def _fit_tick(self) -> None:
+        self._fit_status(f"{self._fit_step} ... {time.monotonic() - self._fit_started:.1f} s")
+
+    def _fit_status(self, text: str) -> None:
+        self.query_one("#fit-status", Static).update(text)
+
+    def _fit_progress(self, step: int) -> None:
+        self._fit_step = STEPS[step] if step < len(STEPS) else "done"
+        self.query_one("#fit-progress", ProgressBar).update(progress=step)
+
+    @work(thread=True, exclusive=True, group="fit")
+    def run_fit(self, path: str, unit: str | None) -> None:
+        """Read and fit in a worker thread; the screen keeps answering keys meanwhile."""
+        from ..kinetics.data import read_incubation_csv
+        from ..kinetics.diagnostics import double_reciprocal_data
+        from ..kinetics.fitting import fit_inhibition
+        from ..report.fit_plots import render_terminal
+
+        worker = get_current_worker()
+        try:
+            data = read_incubation_csv(path, substrate_unit=unit, inhibitor_unit=unit)
+            self.call_from_thread(self._fit_progress, 1)
+            comp = fit_inhibition(data)
+            if worker.is_cancelled:
+                return
+            self.call_from_thread(self._fit_progress, 2)
+            plot = render_terminal(double_reciprocal_data(comp), width=72, height=18)
+        except InteractError as exc:
+            self.call_from_thread(self._fit_failed, str(exc))
+            return
+        self.call_from_thread(self._fit_done, comp, plot, path)
+
+    def _fit_failed(self, message: str) -> None:
+        self._fit_timer.stop()
+        self.query_one("#fit-progress", ProgressBar).update(progress=0)
+        self._fit_status(f"error: {message}")
+
+    def _fit_done(self, comp: Any, plot: str, path: str) -> None:
+        from ..report.fit import fit_sections
+
+        self._fit_timer.stop()
+        self._fit_progress(len(STEPS))
+        self.fit = comp
+        self._fit_source = path
+        elapsed = time.monotonic() - self._fit_started
+        ki = comp.ki
+        found = f"{ki.name} = {fmt(ki.value)} {ki.unit}" if ki is not None else "no inhibition constant"
+        self._fit_status(f"fitted in {elapsed:.1f} s: {comp.verdict.model} model, {found}")
+        doc = Doc().para((comp.verdict.text, STYLE["result"])).blank()
+        doc.pre(plot).blank()
+        self.query_one("#fit-body", DocumentView).show(doc.extend(sections_doc(fit_sections(comp))))
+        self.query_one("#plot-fit", Static).update(plot)
+        self.query_one("#fit-accept", Button).disabled = ki is None
+
+    @on(Button.Pressed, "#fit-accept")
+    def accept_fit(self) -> None:
+        """Write the fitted Ki into the chosen target of the scenario (an unsaved edit, as any other)."""
+        if self.fit is None:
+            return
+        target = self.query_one("#fit-target", Input).value
+        try:
+            fitted = ki_entry(self.fit, self.data, target, self._fit_source)
+        except ValueError as exc:
+            self._fit_status(f"error: {exc}")
+            return
+        entries = get_path(self.data, ("perpetrator", "inhibits"), None)
+        if not isinstance(entries, list):
+            entries = []
+            set_path(self.data, ("perpetrator", "inhibits"), entries)
+        if fitted.index is None:
+            entries.append(fitted.entry)
+            index = len(entries) - 1
+        else:
+            entries[fitted.index] = fitted.entry
+            index = fitted.index
+        self.form.load(self.data, select_key=f"perpetrator.inhibits[{index}].ki")
+        self.recompute()
+        text = f"{fitted.entry['ki']} ({fitted.entry['mechanism']}) written into target {fitted.target}; Ctrl+S saves it."
+        if fitted.caution:
+            text += f" Caution: {fitted.caution}"
+        self._fit_status(text)
+        self.notify(text, severity="warning" if fitted.caution else "information", timeout=8)
 
     # ------------------------------------------------------------------ files
     def _why_not_savable(self) -> str:

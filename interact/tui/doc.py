@@ -34,14 +34,25 @@ class _Table:
 
 
 @dataclass(slots=True)
+class _Pre:
+    text: str
+    style: Style
+
+
+@dataclass(slots=True)
 class Doc:
     """Blocks of styled text; :meth:`lines` lays them out at a width."""
 
-    blocks: list[_Para | _Table] = field(default_factory=list)
+    blocks: list[_Para | _Table | _Pre] = field(default_factory=list)
 
     def para(self, *spans: str | Span, indent: int = 0, hanging: int = 0) -> Doc:
         """A paragraph of spans (plain strings take no style); ``hanging`` indents the wrapped lines."""
         self.blocks.append(_Para([(s, Style()) if isinstance(s, str) else s for s in spans], indent, hanging))
+        return self
+
+    def pre(self, text: str, style: Style | None = None) -> Doc:
+        """Lines kept exactly as given (a text plot); too-long lines are cut by the view."""
+        self.blocks.append(_Pre(text, style or Style()))
         return self
 
     def blank(self) -> Doc:
@@ -67,6 +78,8 @@ class Doc:
         for b in self.blocks:
             if isinstance(b, _Para):
                 out.extend(_wrap_spans(b.spans, width - b.indent, b.indent, b.hanging))
+            elif isinstance(b, _Pre):
+                out.extend([Segment(line, b.style)] for line in b.text.rstrip("\n").split("\n"))
             else:
                 out.extend(_table_lines(b, width))
         return out

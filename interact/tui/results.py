@@ -21,7 +21,7 @@ from ..report.document import Note, Section, Table
 from ..report.numbers import fmt, fmt_ratio
 from .doc import Doc
 
-__all__ = ["Comparison", "compare", "flatten", "render_answer", "render_stale"]
+__all__ = ["Comparison", "compare", "flatten", "render_answer", "render_stale", "sections_doc"]
 
 
 #: styles chosen to read on dark and light terminals; words carry every verdict
@@ -226,4 +226,21 @@ def render_answer(a: Assessment, comparison: Comparison | None = None, *, narrow
         doc.para((f"Values from memory ({len(a.memory_values)}): verify before relying on them", st("heading")))
         for m in a.memory_values:
             doc.para((f"- {m}", st("dim")), hanging=2)
+    return doc
+
+
+def sections_doc(sections: list[Section]) -> Doc:
+    """Report sections (any of the report module's) as a document for the terminal."""
+    doc = Doc()
+    for sec in sections:
+        if sec.title:
+            doc.para((sec.title, STYLE["heading"]))
+        for b in sec.blocks:
+            if isinstance(b, Table):
+                doc.table(b.headers, [tuple(r) for r in b.rows])
+            elif isinstance(b, Note):
+                doc.para((b.text, STYLE["result"] if b.kind == "result" else STYLE["caution"]))
+            else:
+                doc.para(str(b))
+        doc.blank()
     return doc
