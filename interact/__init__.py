@@ -12,23 +12,69 @@ Predictions are screening estimates, not clinical advice.
 
 __version__ = "0.1.0"
 
-from .assessment import Assessment, assess
-from .errors import FitError, InputError, InteractError, ScenarioError, UnitError
-from .scenario import (
-    Inhibition,
-    Metabolite,
-    Pathway,
-    Perpetrator,
-    Physiology,
-    Scenario,
-    Victim,
-    demo_path,
-    dumps_scenario,
-    load_scenario,
-    loads_scenario,
-    save_scenario,
-)
-from .tables import load_rules, rule_set_names
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:  # the names for type checkers; at run time they load on first use
+    from .assessment import Assessment, assess
+    from .errors import FitError, InputError, InteractError, ScenarioError, UnitError
+    from .scenario import (
+        Inhibition,
+        Metabolite,
+        Pathway,
+        Perpetrator,
+        Physiology,
+        Scenario,
+        Victim,
+        demo_path,
+        dumps_scenario,
+        load_scenario,
+        loads_scenario,
+        save_scenario,
+    )
+    from .tables import load_rules, rule_set_names
+
+# Each public name and the module that defines it.  Loading on first use keeps
+# `import interact.tui` and `interact --version` from paying for pint and the
+# engine before they need them; `from interact import assess` works as before.
+_WHERE = {
+    "Assessment": "assessment",
+    "assess": "assessment",
+    "FitError": "errors",
+    "InputError": "errors",
+    "InteractError": "errors",
+    "ScenarioError": "errors",
+    "UnitError": "errors",
+    "Inhibition": "scenario",
+    "Metabolite": "scenario",
+    "Pathway": "scenario",
+    "Perpetrator": "scenario",
+    "Physiology": "scenario",
+    "Scenario": "scenario",
+    "Victim": "scenario",
+    "demo_path": "scenario",
+    "dumps_scenario": "scenario",
+    "load_scenario": "scenario",
+    "loads_scenario": "scenario",
+    "save_scenario": "scenario",
+    "load_rules": "tables",
+    "rule_set_names": "tables",
+}
+
+
+def __getattr__(name: str) -> Any:
+    module = _WHERE.get(name)
+    if module is None:
+        raise AttributeError(f"module 'interact' has no attribute {name!r}")
+    import importlib
+
+    value = getattr(importlib.import_module(f".{module}", __name__), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(__all__))
+
 
 __all__ = [
     "Assessment",
