@@ -11,10 +11,11 @@ When the inputs are invalid the last valid result stays on screen under a
 from __future__ import annotations
 
 import copy
+import sys
 import time
 import tomllib
 from pathlib import Path
-from typing import Any, ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar
 
 from rich.text import Text
 from textual import on, work
@@ -25,22 +26,58 @@ from textual.widget import Widget
 from textual.widgets import Button, Footer, Header, Input, ProgressBar, Static, TabbedContent, TabPane
 from textual.worker import get_current_worker
 
-from ..assessment import Assessment, assess
 from ..cautions import CAUTION_LINE
 from ..errors import InputError, InteractError, Problem, ScenarioError
 from ..report.numbers import fmt
-from ..scenario import Scenario, demo_path, save_scenario, scenario_from_dict
-from . import plots
 from .doc import Doc
 from .document_view import DocumentView
 from .fitting_view import STEPS, FitPane, ki_entry
 from .form import MISSING, get_path, key_of, set_path, value_of
 from .form_view import FieldState, FormView
-from .notes import field_note
-from .results import STYLE, Comparison, compare, render_answer, render_stale, sections_doc
 from .screens import AskPath, CautionsScreen, ConfirmDiscard, HelpScreen, LoadProblems
 
-__all__ = ["InteractApp", "read_scenario_file"]
+if TYPE_CHECKING:  # the engine loads after the first screen is painted (see InteractApp.on_mount)
+    from ..assessment import Assessment
+    from ..scenario import Scenario
+    from . import plots
+
+__all__ = ["InteractApp", "read_scenario_data", "read_scenario_file"]
+
+#: the built-in invented demo (the same file as interact.scenario.demo_path(), found without loading pint)
+DEMO_PATH = Path(__file__).resolve().parents[1] / "demo.toml"
+
+#: the engine modules; the app shows its first screen before they are imported
+_CORE = ("interact.assessment", "interact.tui.notes", "interact.tui.results", "interact.tui.plots")
+
+
+def core_loaded() -> bool:
+    return all(m in sys.modules for m in _CORE)
+
+
+def load_core() -> None:
+    """Import the engine and warm its caches (unit registry, reference tables) on the demo."""
+    import importlib
+
+    for m in _CORE:
+        importlib.import_module(m)
+    from ..assessment import assess
+    from ..scenario import load_scenario
+
+    assess(load_scenario(DEMO_PATH))
+
+
+def read_scenario_data(path: str | Path) -> dict[str, Any]:
+    """The file's TOML data, not yet validated (the built-in demo at start-up)."""
+    p = Path(path)
+    try:
+        text = p.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        why = getattr(exc, "strerror", None) or exc.__class__.__name__
+        raise InputError("scenario", str(p), f"could not be read ({why})") from None
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(str(p), "TOML", f"could not be parsed: {exc}") from None
 
 
 def read_scenario_file(path: str | Path) -> tuple[dict[str, Any], Scenario]:
@@ -63,6 +100,8 @@ def read_scenario_file(path: str | Path) -> tuple[dict[str, Any], Scenario]:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise InputError(str(p), "TOML", f"could not be parsed: {exc}") from None
+    from ..scenario import scenario_from_dict
+
     scenario = scenario_from_dict(data, source=str(p), text=text)
     return data, scenario
 
@@ -92,6 +131,8 @@ class PlotView(Widget):
         if self.stale:
             out.append("  NOT UPDATED: inputs invalid", style="bold reverse")
         out.append("\n")
+        from . import plots
+
         legend = plots.legend(c)
         legend_rows = max(1, -(-len(legend) // max(width, 1)))
         for line in plots.draw(c, width, height - 2 - legend_rows - len(c.notes)):
@@ -147,7 +188,7 @@ class InteractApp(App[int]):
     def __init__(self, path: str | Path | None = None, *, data: dict[str, Any] | None = None) -> None:
         super().__init__()
         if data is None:
-            data, _ = read_scenario_file(path if path is not None else demo_path())
+            data = read_scenario_file(path)[0] if path is not None else read_scenario_data(DEMO_PATH)
         self.path: Path | None = None if path is None else Path(path)
         self.data: dict[str, Any] = data
         self.saved_data: dict[str, Any] = copy.deepcopy(data)
@@ -159,6 +200,7 @@ class InteractApp(App[int]):
         self.general: list[str] = []
         self.pinned: tuple[Assessment, dict[str, Any]] | None = None
         self.generation = 0
+        self.core_ready = False
         self.fit: Any = None  # the last ModelComparison
         self._fit_started = 0.0
         self._fit_step = ""
@@ -178,8 +220,7 @@ class InteractApp(App[int]):
                         yield PlotView(id="plot-fm")
                         yield PlotView(id="plot-dose")
                         yield Static("", id="plot-fit", markup=False)
-                with TabPane("Fitting", id="fitting"):
-                    yield FitPane(id="fit-pane")
+                yield TabPane("Fitting", id="fitting")  # filled once the engine is in (keeps the first screen quick)
         yield Static(f"{CAUTION_LINE}  (F2: cautions)", id="caution-line", markup=False)
         yield Footer()
 
@@ -188,9 +229,29 @@ class InteractApp(App[int]):
         return self.query_one("#form", FormView)
 
     def on_mount(self) -> None:
-        self.recompute()
-        self.on_mount_fit_defaults()
         self.form.focus()
+        if core_loaded():
+            self._mount_fit_pane()
+            self.core_ready = True
+            self.recompute()
+        else:
+            # first screen now (the form with its values); the engine loads in a thread, then the answer appears
+            loading = Doc().para("Loading the models ... (the answer appears in a moment)")
+            self.query_one("#answer-body", DocumentView).show(loading)
+            self.call_after_refresh(lambda: self.run_worker(self._load_core, thread=True, exclusive=True, group="core"))
+
+    def _load_core(self) -> None:
+        load_core()
+        self.call_from_thread(self._core_loaded)
+
+    def _core_loaded(self) -> None:
+        self._mount_fit_pane()
+        self.core_ready = True
+        self.recompute()
+
+    def _mount_fit_pane(self) -> None:
+        self.query_one("#fitting", TabPane).mount(FitPane(id="fit-pane"))
+        self.call_after_refresh(self.on_mount_fit_defaults)
 
     def on_resize(self) -> None:
         if self.assessment is not None:
@@ -216,6 +277,9 @@ class InteractApp(App[int]):
 
     def recompute(self) -> None:
         """Rebuild the scenario from the form data, assess it, refresh everything that shows it."""
+        if not self.core_ready:
+            self.update_title()
+            return  # the engine is still loading; it recomputes from the latest data when it is in
         self.generation += 1
         with self.batch_update():
             self._recompute()
@@ -229,6 +293,9 @@ class InteractApp(App[int]):
             return
         self.problems = ()
         self.general = []
+        from ..assessment import assess
+        from ..scenario import scenario_from_dict
+
         try:
             scenario = scenario_from_dict(self.data, source=self.path.name if self.path else "scenario")
             result = assess(scenario)
@@ -252,6 +319,8 @@ class InteractApp(App[int]):
         return self.form.select(key)
 
     def _show_problems(self) -> None:
+        from .notes import field_note
+
         by_key: dict[str, list[str]] = {}
         for p in self.problems:
             by_key.setdefault(p.field, []).append(p.message)
@@ -293,6 +362,10 @@ class InteractApp(App[int]):
         return lines
 
     def _show_results(self) -> None:
+        from . import plots
+        from .results import compare as compare_results
+        from .results import render_answer, render_stale
+
         body = self.query_one("#answer-body", DocumentView)
         problems = self.problem_lines() if not self.valid else []
         a = self.assessment
@@ -302,9 +375,9 @@ class InteractApp(App[int]):
             for pid in ("#plot-fm", "#plot-dose"):
                 self.query_one(pid, PlotView).show(None, stale=True, empty_text="No valid result yet.")
             return
-        comparison: Comparison | None = None
+        comparison = None
         if self.pinned is not None:
-            comparison = compare(self.pinned[0], self.pinned[1], a, self.valid_data)
+            comparison = compare_results(self.pinned[0], self.pinned[1], a, self.valid_data)
         body.show(doc.extend(render_answer(a, comparison, narrow=self.size.width < 120, stale=bool(problems))))
         if self.valid:
             self.query_one("#plot-fm", PlotView).show(
@@ -476,6 +549,7 @@ class InteractApp(App[int]):
 
     def _fit_done(self, comp: Any, plot: str, path: str) -> None:
         from ..report.fit import fit_sections
+        from .results import STYLE, sections_doc
 
         self._fit_timer.stop()
         self._fit_progress(len(STEPS))
@@ -522,6 +596,8 @@ class InteractApp(App[int]):
 
     # ------------------------------------------------------------------ files
     def _why_not_savable(self) -> str:
+        if not self.core_ready:
+            return "the models are still loading; try again in a moment"
         n = len(self.problem_lines())
         return f"the inputs have {n} problem{'s' if n != 1 else ''}; fix them first (your text stays in the fields)"
 
@@ -530,6 +606,8 @@ class InteractApp(App[int]):
             self.notify(f"Not saved: {self._why_not_savable()}.", severity="error", timeout=8)
             return False
         try:
+            from ..scenario import save_scenario
+
             save_scenario(self.scenario, path)
         except InteractError as exc:
             self.notify(f"Not saved: {exc}", severity="error", timeout=8)

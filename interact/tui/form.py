@@ -17,9 +17,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 from typing import Any, Final
 
-from .. import units
 from ..errors import InputError
-from ..scenario import MECHANISMS, ROUTES
 from ..tables import load_targets, rule_set_names
 
 __all__ = [
@@ -176,6 +174,8 @@ def choices_for(kind: str) -> tuple[str, ...]:
 
 @lru_cache(maxsize=8)
 def _choices(name: str) -> tuple[str, ...]:
+    from ..scenario import MECHANISMS, ROUTES
+
     if name == "mechanism":
         return MECHANISMS
     if name == "route":
@@ -288,6 +288,8 @@ def value_of(kind: str, text: str) -> Any:
 
 def local_check(kind: str, text: str, key: str) -> tuple[str | None, Any]:
     """Check one field on its own: (error message or None, parsed quantity or value)."""
+    from .. import units
+
     t = text.strip()
     if not t:
         return None, None
