@@ -8,6 +8,7 @@ out again each time).
 
 from __future__ import annotations
 
+from rich.style import Style
 from textual.geometry import Size
 from textual.scroll_view import ScrollView
 from textual.strip import Strip
@@ -25,6 +26,7 @@ class DocumentView(ScrollView, can_focus=True):
         self._document = Doc()
         self._lines: list[Strip] = []
         self._width = 0
+        self._base = Style()
 
     def show(self, document: Doc) -> None:
         self._document = document
@@ -40,8 +42,14 @@ class DocumentView(ScrollView, can_focus=True):
         if width <= 0:
             return
         self._width = width
-        self._lines = [Strip(line) for line in self._document.lines(width)] or [Strip.blank(width)]
-        size = Size(width, len(self._lines))
+        style = self._base = self.rich_style
+        self._lines = [Strip(line).apply_style(style) for line in self._document.lines(width)] or [Strip.blank(width)]
+        # keep the scroll height when the document shrinks a little (a changed number re-wrapping a line):
+        # a new virtual size costs a layout of the whole screen, blank lines at the end cost nothing
+        height = len(self._lines)
+        if self.virtual_size.width == width and height <= self.virtual_size.height < height + 20:
+            height = self.virtual_size.height
+        size = Size(width, height)
         if self.virtual_size != size:
             self.virtual_size = size
         self.refresh()
@@ -50,10 +58,13 @@ class DocumentView(ScrollView, can_focus=True):
         if (self.scrollable_content_region.width or self.size.width) != self._width:
             self._render_document()
 
+    def on_mount(self) -> None:
+        self.watch(self.app, "theme", lambda _: self._render_document(), init=False)
+
     def render_line(self, y: int) -> Strip:
         scroll_x, scroll_y = self.scroll_offset
         index = scroll_y + y
         width = self.scrollable_content_region.width
         if index >= len(self._lines):
-            return Strip.blank(width, self.rich_style)
-        return self._lines[index].crop_extend(scroll_x, scroll_x + width, self.rich_style).apply_style(self.rich_style)
+            return Strip.blank(width, self._base)
+        return self._lines[index].crop_extend(scroll_x, scroll_x + width, self._base)

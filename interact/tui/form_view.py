@@ -216,6 +216,7 @@ class FormView(ScrollView, can_focus=True):
         self.rows: list[Row] = []
         self.fields: dict[str, FieldState] = {}
         self.selected = 0
+        self._styles: dict[str, Style] = {}
         self.load(data)
 
     # ---------------------------------------------------------------- model
@@ -291,15 +292,29 @@ class FormView(ScrollView, can_focus=True):
             self.refresh_lines(max(y, 0), 2)
 
     # ---------------------------------------------------------------- drawing
+    def _style(self, name: str) -> Style:
+        """A component style (cached: computing styles per line is the costly part of drawing)."""
+        cache = self._styles
+        if name not in cache:
+            cache[name] = self.rich_style if name == "base" else self.get_component_rich_style(f"formview--{name}")
+        return cache[name]
+
+    def _restyle(self, *_: object) -> None:
+        self._styles.clear()
+        self.refresh()
+
+    def on_mount(self) -> None:
+        self.watch(self.app, "theme", self._restyle, init=False)
+
     def render_line(self, y: int) -> Strip:
         width = self.scrollable_content_region.width
         line = y + self.scroll_offset.y
         row, offset = self._row_at(line)
-        base = self.rich_style
+        base = self._style("base")
         if row is None:
             return Strip.blank(width, base)
-        selected = self.rows.index(row) == self.selected and self.has_focus
-        sel = self.get_component_rich_style("formview--selected") if selected else Style()
+        selected = row is self.current and self.has_focus
+        sel = self._style("selected") if selected else Style()
         indent = "  " * row.depth
         segments: list[Segment] = []
         if row.kind == "field" and row.state is not None:
@@ -307,27 +322,27 @@ class FormView(ScrollView, can_focus=True):
             if offset == 0:
                 label = f" {indent}{st.spec.label}"
                 label = label[: self.LABEL_WIDTH - 1].ljust(self.LABEL_WIDTH)
-                err = self.get_component_rich_style("formview--error") if st.error else Style()
+                err = self._style("error") if st.error else Style()
                 segments.append(Segment(label, base + err + sel))
-                value_style = base + self.get_component_rich_style("formview--value") + sel
+                value_style = base + self._style("value") + sel
                 text = st.text if st.text or selected else ""
                 if not st.text and not selected:
-                    segments.append(Segment(st.spec.hint, base + self.get_component_rich_style("formview--suggestion")))
+                    segments.append(Segment(st.spec.hint, base + self._style("suggestion")))
                 elif selected:
                     c = min(st.cursor, len(text))
                     segments.append(Segment(text[:c], value_style))
                     cursor_char = text[c] if c < len(text) else " "
-                    segments.append(Segment(cursor_char, value_style + self.get_component_rich_style("formview--cursor")))
+                    segments.append(Segment(cursor_char, value_style + self._style("cursor")))
                     rest = text[c + 1 :]
                     if rest:
                         segments.append(Segment(rest, value_style))
                     hint = st.suggestion()
                     if hint:
-                        segments.append(Segment(hint, base + self.get_component_rich_style("formview--suggestion")))
+                        segments.append(Segment(hint, base + self._style("suggestion")))
                 else:
                     segments.append(Segment(text, value_style))
             else:
-                style = self.get_component_rich_style("formview--error" if st.error else "formview--note")
+                style = self._style("error" if st.error else "note")
                 note = st.note_text
                 prefix = f"   {indent}"
                 room = width - len(prefix)
@@ -335,21 +350,19 @@ class FormView(ScrollView, can_focus=True):
                     note = note[: max(room - 1, 0)] + "…"
                 segments.append(Segment(prefix + note, base + style))
         elif row.kind == "group":
-            segments.append(Segment(f" {row.text}".ljust(width), base + self.get_component_rich_style("formview--group")))
+            segments.append(Segment(f" {row.text}".ljust(width), base + self._style("group")))
         elif row.kind in ("heading", "list"):
             text = f" {indent}{row.text}"
-            segments.append(Segment(text, base + self.get_component_rich_style("formview--heading")))
+            segments.append(Segment(text, base + self._style("heading")))
             if row.problem:
-                segments.append(Segment(f"  error: {row.problem}", base + self.get_component_rich_style("formview--error")))
+                segments.append(Segment(f"  error: {row.problem}", base + self._style("error")))
         elif row.kind == "item":
             segments.append(Segment(f" {indent}{row.text}", base + Style(bold=True)))
             if row.problem:
-                segments.append(Segment(f"  error: {row.problem}", base + self.get_component_rich_style("formview--error")))
+                segments.append(Segment(f"  error: {row.problem}", base + self._style("error")))
         elif row.kind in ("add", "remove"):
             mark = "+" if row.kind == "add" else "-"
-            segments.append(
-                Segment(f" {indent}  [{mark} {row.text}]", base + self.get_component_rich_style("formview--action") + sel)
-            )
+            segments.append(Segment(f" {indent}  [{mark} {row.text}]", base + self._style("action") + sel))
         strip = Strip(segments)
         return strip.crop_extend(self.scroll_offset.x, self.scroll_offset.x + width, base)
 
@@ -370,10 +383,10 @@ class FormView(ScrollView, can_focus=True):
         self.virtual_size = Size(self.scrollable_content_region.width, self._lines)
 
     def on_focus(self) -> None:
-        self.refresh()
+        self._restyle()
 
     def on_blur(self) -> None:
-        self.refresh()
+        self._restyle()
 
     def on_click(self, event: events.Click) -> None:
         row, _ = self._row_at(event.y + self.scroll_offset.y)

@@ -352,3 +352,30 @@ async def test_layout_fits_80_by_24() -> None:
         assert app.query_one("#left").region.width >= 38
         assert app.query_one("#detail").region.height >= 3
         assert app.query_one("#views").region.width >= 38
+
+
+def test_first_screen_does_not_wait_for_the_engine() -> None:
+    """Importing the app must not import pint or the engine: they load in a thread after the first paint."""
+    import subprocess
+    import sys
+
+    code = (
+        "import sys, interact.tui.app;"
+        "print(','.join(m for m in ('pint', 'interact.units', 'interact.assessment', 'scipy') if m in sys.modules))"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout.strip()
+    assert out == "", f"imported before the first screen: {out}"
+
+
+def test_run_app_refuses_a_broken_file_with_every_problem(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    from interact.tui import run_app
+
+    bad = tmp_path / "broken.toml"
+    text = (
+        demo_path().read_text(encoding="utf-8").replace("fu_plasma = 0.04", "fu_plasma = 4").replace("fm = 0.82", 'fm = "high"')
+    )
+    bad.write_text(text, encoding="utf-8")
+    assert run_app(bad) == 2
+    err = capsys.readouterr().err
+    assert "perpetrator.fu_plasma" in err and "victim.pathways[0].fm" in err
+    assert "Traceback" not in err
