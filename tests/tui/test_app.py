@@ -379,3 +379,33 @@ def test_run_app_refuses_a_broken_file_with_every_problem(tmp_path: Path, capsys
     err = capsys.readouterr().err
     assert "perpetrator.fu_plasma" in err and "victim.pathways[0].fm" in err
     assert "Traceback" not in err
+
+
+@asynctest
+async def test_rule_set_choice_changes_the_rules_used() -> None:
+    app = InteractApp()
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        await replace_text(pilot, app, "rules", "fda-2020")
+        assert app.valid and app.assessment is not None
+        assert app.assessment.rules.id == "fda-2020"
+        assert "ich-m12" not in text_of(app, "#answer-body").split("Basic static models")[1][:30]
+
+
+@asynctest
+async def test_save_as_asks_before_replacing_another_file(tmp_path: Path) -> None:
+    other = tmp_path / "other.toml"
+    other.write_text("# someone else's file\n", encoding="utf-8")
+    app = InteractApp()
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        await pilot.press("f6")
+        await pilot.pause()
+        await type_path(pilot, app, str(other))
+        assert isinstance(app.screen, AskPath)  # first Enter only warns
+        assert "exists" in str(app.screen.query_one("#path-note").content)  # type: ignore[attr-defined]
+        assert other.read_text(encoding="utf-8") == "# someone else's file\n"
+        await pilot.press("enter")
+        await pilot.pause()
+        assert not isinstance(app.screen, AskPath)
+        assert load_scenario(other) == app.scenario

@@ -30,3 +30,11 @@ def test_invalid_unit_marks_the_answer_not_updated(snap_compare: Any) -> None:
 
 def test_plots_at_120_by_40(snap_compare: Any) -> None:
     assert snap_compare(InteractApp(), press=["f4"], terminal_size=(120, 40))
+
+
+def test_light_theme_at_100_by_30(snap_compare: Any) -> None:
+    async def light(pilot: Any) -> None:
+        pilot.app.theme = "textual-light"
+        await pilot.pause()
+
+    assert snap_compare(InteractApp(), terminal_size=(100, 30), run_before=light)
