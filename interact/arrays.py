@@ -138,7 +138,6 @@ def dose_action_codes(
     return np.broadcast_to(action, np.broadcast(r, usual, tau, lo, hi, nti).shape).astype(np.int8)
 
 
-
 def dose_action_breakpoints(
     *, usual_dose: float, interval_h: float, candidates: NDArray[np.float64], lower: float, upper: float
 ) -> NDArray[np.float64]:
@@ -198,7 +197,8 @@ def dose_action_codes_by_victim(
     t = np.asarray(PRACTICAL_INTERVALS_H, dtype=float)[None, :]
     fixed = np.broadcast_to(np.array([1.0 - _TOL, 1.0 / (1.0 - _TOL), 1.0 + _TOL]), (n_v, 3))
     b = np.concatenate(
-        [lo, hi, fixed, lo * usual / d, hi * usual / d, usual * (1 + _TOL) / d, t / (tau * (1 - _TOL)), t / (tau * (1 + _TOL))], axis=1
+        [lo, hi, fixed, lo * usual / d, hi * usual / d, usual * (1 + _TOL) / d, t / (tau * (1 - _TOL)), t / (tau * (1 + _TOL))],
+        axis=1,
     )
     b = np.where(np.isfinite(b) & (b > 0), b, np.inf)
     b.sort(axis=1)
@@ -207,7 +207,13 @@ def dose_action_codes_by_victim(
     reps[:, 0] = b[:, 0] / 2.0
     reps = np.concatenate([reps, b[:, -1:] * 2.0], axis=1)  # the step above the last breakpoint
     reps = np.where(np.isfinite(reps), reps, 1.0)  # steps past the last finite breakpoint: never looked up
-    args = {"usual_dose": usual, "interval_h": tau, "lower": lo, "upper": hi, "narrow_therapeutic_index": np.asarray(narrow_therapeutic_index)[:, None]}
+    args = {
+        "usual_dose": usual,
+        "interval_h": tau,
+        "lower": lo,
+        "upper": hi,
+        "narrow_therapeutic_index": np.asarray(narrow_therapeutic_index)[:, None],
+    }
     step = dose_action_codes(reps, candidates=d[:, None, :], **args)  # (victims, width + 1)
     # per victim (a loop over victims, not pairs): find each ratio's step among the victim's few breakpoints;
     # a ratio with a breakpoint within a relative 1e-9 of it is decided by the full rule instead
@@ -222,7 +228,12 @@ def dose_action_codes_by_victim(
         near = (first != last) | ~np.isfinite(rj)
         if near.any():
             codes_t[j][near] = dose_action_codes(
-                rj[near], usual_dose=usual[j, 0], interval_h=tau[j, 0], candidates=d[j], lower=lo[j, 0], upper=hi[j, 0],
+                rj[near],
+                usual_dose=usual[j, 0],
+                interval_h=tau[j, 0],
+                candidates=d[j],
+                lower=lo[j, 0],
+                upper=hi[j, 0],
                 narrow_therapeutic_index=nti[j],
             )
     codes = codes_t.T

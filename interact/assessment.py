@@ -84,8 +84,13 @@ def _kdeg(
                 v = units.magnitude(units.parse(table.value, "rate", field=f"targets.{enzyme}.kdeg_{site}"), "1/h")
                 used.append(
                     Setting(
-                        name=f"kdeg_{site}", label=f"kdeg {enzyme} ({site})", value=v, unit="1/h", origin="default",
-                        source=table.source, status=table.status,
+                        name=f"kdeg_{site}",
+                        label=f"kdeg {enzyme} ({site})",
+                        value=v,
+                        unit="1/h",
+                        origin="default",
+                        source=table.source,
+                        status=table.status,
                     )
                 )
             else:
@@ -136,9 +141,7 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
     fg_setting_default = v.fg is None
     fg = 1.0 if v.fg is None else v.fg
     pathways = tuple((pw.enzyme, pw.fm) for pw in v.pathways)
-    prediction = predict(
-        pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, classes=classes
-    )
+    prediction = predict(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, classes=classes)
 
     # -- warnings a reviewer would want
     if gut_enzyme is not None and fg_setting_default:
@@ -158,10 +161,14 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
             warnings.append(f"{c.species} on {c.target}: fu,inc not given; Ki taken as unbound (fu,inc = 1).")
     for kd in kdeg_used:
         if kd.from_memory:
-            warnings.append(f"{kd.label} = {kd.value:.4g} 1/h is from memory ({kd.source}); override it under [[turnover]] if you have a better value.")
+            warnings.append(
+                f"{kd.label} = {kd.value:.4g} 1/h is from memory ({kd.source}); override it under [[turnover]] if you have a better value."
+            )
     for enzyme, (lv, gv) in kdeg.items():
         if lv is None:
-            warnings.append(f"No hepatic kdeg is known for {enzyme}: its time-dependent inhibition is left out; give it under [[turnover]].")
+            warnings.append(
+                f"No hepatic kdeg is known for {enzyme}: its time-dependent inhibition is left out; give it under [[turnover]]."
+            )
         if gv is None and enzyme == gut_enzyme:
             warnings.append(
                 f"No intestinal kdeg is known for {enzyme}: its time-dependent inhibition in the gut wall is left out; "
@@ -283,16 +290,29 @@ def _perpetrator_limit(p, prediction: Prediction, ratio_at, upper: float) -> Dos
     unit = units.unit_text(p.dose)
     dose = float(p.dose.magnitude)
     if "induction" in prediction.mechanisms:
-        return DoseLimit(scale=None, dose=None, dose_unit=unit, boundary_upper=upper,
-                         reason="not computed: the perpetrator also induces, so the ratio need not rise with dose")
+        return DoseLimit(
+            scale=None,
+            dose=None,
+            dose_unit=unit,
+            boundary_upper=upper,
+            reason="not computed: the perpetrator also induces, so the ratio need not rise with dose",
+        )
     if prediction.ceiling_total < upper:
-        return DoseLimit(scale=None, dose=None, dose_unit=unit, boundary_upper=upper,
-                         reason=f"no limit: even complete inhibition (AUCR {prediction.ceiling_total:.3g}) stays below {upper:g}")
+        return DoseLimit(
+            scale=None,
+            dose=None,
+            dose_unit=unit,
+            boundary_upper=upper,
+            reason=f"no limit: even complete inhibition (AUCR {prediction.ceiling_total:.3g}) stays below {upper:g}",
+        )
     scale = highest_perpetrator_scale(ratio_at, upper)
     if scale is None:
         return DoseLimit(scale=None, dose=None, dose_unit=unit, boundary_upper=upper, reason=f"no dose reaches AUCR {upper:g}")
     return DoseLimit(
-        scale=scale, dose=scale * dose, dose_unit=unit, boundary_upper=upper,
+        scale=scale,
+        dose=scale * dose,
+        dose_unit=unit,
+        boundary_upper=upper,
         reason=(
             f"highest perpetrator dose keeping the victim's AUCR at or below {upper:g}, assuming the perpetrator's "
             "concentrations scale linearly with its dose"

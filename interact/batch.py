@@ -105,8 +105,21 @@ FLAGS: Final = (
 )
 
 OUTPUT_COLUMNS: Final = (
-    "rank", "perpetrator", "victim", "Imax,u (uM)", "Iin,max,u (uM)", "Igut (uM)", "I,ent (uM)", "basic models",
-    "AUCR gut", "AUCR liver", "AUCR", "class", "study indicated", "action", "flags",
+    "rank",
+    "perpetrator",
+    "victim",
+    "Imax,u (uM)",
+    "Iin,max,u (uM)",
+    "Igut (uM)",
+    "I,ent (uM)",
+    "basic models",
+    "AUCR gut",
+    "AUCR liver",
+    "AUCR",
+    "class",
+    "study indicated",
+    "action",
+    "flags",
 )
 
 _PAIRS_PER_CHUNK: Final = 262_144
@@ -132,7 +145,8 @@ class BadRowsError(InputError):
         shown = "; ".join(f"line {p.line}: {p.message}" for p in problems[:3])
         more = f" (and {n - 3} more)" if n > 3 else ""
         InteractError.__init__(
-            self, f"{source}: {n} bad row{'s' if n != 1 else ''}: {shown}{more}; fix them, or use --on-error skip to leave them out and list them"
+            self,
+            f"{source}: {n} bad row{'s' if n != 1 else ''}: {shown}{more}; fix them, or use --on-error skip to leave them out and list them",  # noqa: E501
         )
         self.field = source
         self.value = None
@@ -156,18 +170,45 @@ class _Column:
 
 
 _PERP_KEYS: Final = {
-    "name": "name", "dose": "dose", "molar mass": "molar_mass", "molar_mass": "molar_mass", "mw": "molar_mass",
-    "cmax": "cmax", "fu_p": "fu_plasma", "fu_plasma": "fu_plasma", "fu_p measured": "fu_plasma_measured",
-    "fu_plasma_measured": "fu_plasma_measured", "route": "route", "rb": "blood_plasma_ratio",
-    "blood_plasma_ratio": "blood_plasma_ratio", "fa_fg": "fa_fg", "fa": "fa", "ka": "ka",
+    "name": "name",
+    "dose": "dose",
+    "molar mass": "molar_mass",
+    "molar_mass": "molar_mass",
+    "mw": "molar_mass",
+    "cmax": "cmax",
+    "fu_p": "fu_plasma",
+    "fu_plasma": "fu_plasma",
+    "fu_p measured": "fu_plasma_measured",
+    "fu_plasma_measured": "fu_plasma_measured",
+    "route": "route",
+    "rb": "blood_plasma_ratio",
+    "blood_plasma_ratio": "blood_plasma_ratio",
+    "fa_fg": "fa_fg",
+    "fa": "fa",
+    "ka": "ka",
 }
 _VICTIM_KEYS: Final = {
-    "name": "name", "dose": "dose", "interval": "interval", "fg": "fg", "route": "route", "strengths": "strengths",
-    "nti": "narrow_therapeutic_index", "narrow_therapeutic_index": "narrow_therapeutic_index",
-    "no_effect_lower": "no_effect_lower", "no_effect_upper": "no_effect_upper",
+    "name": "name",
+    "dose": "dose",
+    "interval": "interval",
+    "fg": "fg",
+    "route": "route",
+    "strengths": "strengths",
+    "nti": "narrow_therapeutic_index",
+    "narrow_therapeutic_index": "narrow_therapeutic_index",
+    "no_effect_lower": "no_effect_lower",
+    "no_effect_upper": "no_effect_upper",
 }
-_UNIT_KINDS: Final = {"dose": "dose", "molar_mass": "molar_mass", "cmax": "concentration", "ka": "rate", "ki": "concentration",
-                      "ki_u": "concentration", "interval": "time", "strengths": "dose"}
+_UNIT_KINDS: Final = {
+    "dose": "dose",
+    "molar_mass": "molar_mass",
+    "cmax": "concentration",
+    "ka": "rate",
+    "ki": "concentration",
+    "ki_u": "concentration",
+    "interval": "time",
+    "strengths": "dose",
+}
 _PER_TARGET: Final = {"perpetrator": ("ki", "ki_u", "fu_inc"), "victim": ("fm",)}
 
 
@@ -316,8 +357,13 @@ def _row_dict(cols: list[_Column], cells: dict[str, Any], side: str) -> tuple[di
 
 
 _DUMMY_VICTIM: Final = {"name": "-", "dose": "1 mg", "interval": "24 h"}
-_DUMMY_PERPETRATOR: Final = {"name": "-", "dose": "1 umol", "cmax": "1 uM", "fu_plasma": 1.0,
-                             "inhibits": [{"target": "CYP3A", "ki": "1 uM"}]}
+_DUMMY_PERPETRATOR: Final = {
+    "name": "-",
+    "dose": "1 umol",
+    "cmax": "1 uM",
+    "fu_plasma": 1.0,
+    "inhibits": [{"target": "CYP3A", "ki": "1 uM"}],
+}
 
 
 def _validate(side: str, data: dict[str, Any], where: dict[str, str]) -> Perpetrator | Victim:
@@ -329,7 +375,9 @@ def _validate(side: str, data: dict[str, Any], where: dict[str, str]) -> Perpetr
             if item.pop("ki_u_conflict", False):
                 problems.append(f"column '{col}': gives both ki and ki_u for {item['target']}; expected one of them")
             if item.pop("fu_inc_conflict", False):
-                problems.append(f"column '{where.get(f'perpetrator.inhibits[{k}].fu_inc')}': fu_inc does not apply to ki_u (already unbound)")
+                problems.append(
+                    f"column '{where.get(f'perpetrator.inhibits[{k}].fu_inc')}': fu_inc does not apply to ki_u (already unbound)"
+                )
             if item.pop("fu_inc_alone", False):
                 problems.append(f"column '{col}': fu_inc {item['target']} is given without ki {item['target']}")
                 item["ki"] = "1 uM"  # placeholder so that the rest of the row is still checked
@@ -449,7 +497,11 @@ def _parse_rows(
 
 
 def loads_perpetrators(
-    text: str, rules: RuleSet | str | None = None, *, source: str = "perpetrators.csv", on_error: str = "fail",
+    text: str,
+    rules: RuleSet | str | None = None,
+    *,
+    source: str = "perpetrators.csv",
+    on_error: str = "fail",
     fmt_name: str | None = None,
 ) -> PerpetratorTable:
     """Read and validate a perpetrator table; compute each perpetrator's concentrations and basic-model values.
@@ -485,9 +537,19 @@ def loads_perpetrators(
         basic.append("; ".join(f"{r.label} {r.target} {r.value:.4g}{' STUDY' if r.indicated else ''}" for r in results))
         basic_flag[i] = any(r.indicated for r in results)
     return PerpetratorTable(
-        rows=tuple(rows), lines=tuple(lines), targets=targets, imax_u_um=imax_u, inlet_um=inlet, enterocyte_um=ent,
-        gut_lumen_um=igut, ki_u_um=ki_u, fu_floored=floored, basic=tuple(basic), basic_flag=basic_flag,
-        skipped=tuple(problems), source=source,
+        rows=tuple(rows),
+        lines=tuple(lines),
+        targets=targets,
+        imax_u_um=imax_u,
+        inlet_um=inlet,
+        enterocyte_um=ent,
+        gut_lumen_um=igut,
+        ki_u_um=ki_u,
+        fu_floored=floored,
+        basic=tuple(basic),
+        basic_flag=basic_flag,
+        skipped=tuple(problems),
+        source=source,
     )
 
 
@@ -518,12 +580,22 @@ def loads_victims(text: str, *, source: str = "victims.csv", on_error: str = "fa
         else:
             lower[i], upper[i] = classes.no_effect_lower, classes.no_effect_upper
     return VictimTable(
-        rows=tuple(rows), lines=tuple(lines), enzymes=enzymes, fm=fm, has_pathway=has,
+        rows=tuple(rows),
+        lines=tuple(lines),
+        enzymes=enzymes,
+        fm=fm,
+        has_pathway=has,
         fg=np.array([1.0 if v.fg is None else v.fg for v in rows]),
         fg_given=np.array([v.fg is not None for v in rows], dtype=bool),
         oral=np.array([v.route == "oral" for v in rows], dtype=bool),
-        usual_dose=usual, interval_h=interval, candidates=dose_candidates(strengths), lower=lower, upper=upper,
-        nti=np.array([v.narrow_therapeutic_index for v in rows], dtype=bool), skipped=tuple(problems), source=source,
+        usual_dose=usual,
+        interval_h=interval,
+        candidates=dose_candidates(strengths),
+        lower=lower,
+        upper=upper,
+        nti=np.array([v.narrow_therapeutic_index for v in rows], dtype=bool),
+        skipped=tuple(problems),
+        source=source,
     )
 
 
@@ -651,8 +723,13 @@ def evaluate_pairs(
     gut, liver, total = pair_ratios(perpetrators, victims, progress=progress)
     band = band_codes(total, classes)
     action = dose_action_codes_by_victim(
-        total, usual_dose=victims.usual_dose, interval_h=victims.interval_h, candidates=victims.candidates,
-        lower=victims.lower, upper=victims.upper, narrow_therapeutic_index=victims.nti,
+        total,
+        usual_dose=victims.usual_dose,
+        interval_h=victims.interval_h,
+        candidates=victims.candidates,
+        lower=victims.lower,
+        upper=victims.upper,
+        narrow_therapeutic_index=victims.nti,
     )
     study = (total >= float(rule_set.aucr_inhibition_cutoff.value)) | (total <= float(rule_set.aucr_induction_cutoff.value))
     # per-perpetrator and per-victim bits first, then broadcast once
@@ -674,8 +751,17 @@ def evaluate_pairs(
     v_mask = victims.has_pathway.astype(np.int64) @ weights if e_cols else np.zeros(n_v, dtype=np.int64)
     flags |= ((v_mask[None, :] & ~p_mask[:, None]) != 0).astype(np.uint8) << 3
     return BatchResult(
-        perpetrators=perpetrators, victims=victims, rules=rule_set, gut=gut, liver=liver, total=total, band=band, action=action,
-        study=study, flags=flags.astype(np.uint8), band_names=band_labels(classes),
+        perpetrators=perpetrators,
+        victims=victims,
+        rules=rule_set,
+        gut=gut,
+        liver=liver,
+        total=total,
+        band=band,
+        action=action,
+        study=study,
+        flags=flags.astype(np.uint8),
+        band_names=band_labels(classes),
     )
 
 
@@ -712,10 +798,15 @@ def result_rows(result: BatchResult, top: int | None = None) -> Iterator[tuple[s
     per_p = [[_num(x) for x in arr.tolist()] for arr in (p.imax_u_um, p.inlet_um, p.gut_lumen_um, p.enterocyte_um)]
     flag_texts = [_flag_text(k) for k in range(1 << len(FLAGS))]
     flat_gut, flat_liver, flat_total = result.gut.ravel(), result.liver.ravel(), result.total.ravel()
-    flat_band, flat_study, flat_action, flat_flags = result.band.ravel(), result.study.ravel(), result.action.ravel(), result.flags.ravel()
+    flat_band, flat_study, flat_action, flat_flags = (
+        result.band.ravel(),
+        result.study.ravel(),
+        result.action.ravel(),
+        result.flags.ravel(),
+    )
     block = 65_536
     for start in range(0, order.size, block):
-        idx = order[start:start + block]
+        idx = order[start : start + block]
         ii, jj = np.divmod(idx, n_v)
         il, jl = ii.tolist(), jj.tolist()
         cols = (

@@ -6,9 +6,7 @@ from typing import Final
 
 __all__ = ["CAUTIONS", "CAUTION_LINE", "DOSE_CAUTIONS", "INCREASE_CAUTION"]
 
-CAUTION_LINE: Final = (
-    "Model estimate, not clinical advice: the prescriber, the product label and local guidance decide."
-)
+CAUTION_LINE: Final = "Model estimate, not clinical advice: the prescriber, the product label and local guidance decide."
 
 CAUTIONS: Final = (
     "These are predictions of static models: screening estimates, not clinical advice.",

@@ -12,8 +12,7 @@ import math
 import sys
 from collections.abc import Callable, Sequence
 from pathlib import Path
-from typing import Any
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from . import __version__
 from .errors import InputError, InteractError
@@ -71,8 +70,13 @@ def _cmd_timecourse(args: argparse.Namespace) -> int:
     from .scenario import load_scenario, write_text_atomic
 
     result = assess(load_scenario(Path(args.scenario)), rules=args.rules)
-    course = simulate(result, days=args.days, washout_days=args.washout_days,
-                      mode="constant" if args.constant else "regimen", effect_fraction=args.fraction)
+    course = simulate(
+        result,
+        days=args.days,
+        washout_days=args.washout_days,
+        mode="constant" if args.constant else "regimen",
+        effect_fraction=args.fraction,
+    )
     if args.plot:
         write_text_atomic(Path(args.plot), timecourse_svg(course, title=result.scenario.title))
     _out(format_timecourse(course, result, args.format, width=args.width), args.output)
@@ -103,8 +107,9 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
 
         data = parse_preincubation_csv(text, source=path.name)
         c = data.columns
-        result = fit_inactivation_raw(c["inhibitor"], c["time"], c["activity"], subtract_vehicle=not args.keep_vehicle,
-                                      weighted=args.weighted)
+        result = fit_inactivation_raw(
+            c["inhibitor"], c["time"], c["activity"], subtract_vehicle=not args.keep_vehicle, weighted=args.weighted
+        )
         ok = result.success and math.isfinite(result.ki.value) and result.ki.value > 0
         values = {"kinact": f"{result.kinact.value:.6g} 1/min", "ki_inact": f"{result.ki.value * fu:.6g} uM"}
         what = "kinact/KI hyperbola"
@@ -124,12 +129,16 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
         if not ok:
             raise InputError("fit", "not usable", "did not converge to finite constants; nothing was written")
         if args.command == "fit-induction" and args.hill and result.hill is not None and abs(result.hill.value - 1) > 0.05:  # type: ignore[union-attr]
-            raise InputError("--hill", "fitted slope", "is not 1; the scenario's induction term assumes h = 1: refit without --hill to carry")
+            raise InputError(
+                "--hill", "fitted slope", "is not 1; the scenario's induction term assumes h = 1: refit without --hill to carry"
+            )
         target = Path(args.into)
         try:
             scenario_text = target.read_text(encoding="utf-8")
         except (OSError, UnicodeDecodeError) as exc:
-            raise InputError("--into", str(target), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+            raise InputError(
+                "--into", str(target), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})"
+            ) from None
         origin = f"{what} fit of {path.name}" + (f", x fu,inc {fu:g}" if args.fu_inc is not None else "") + f", {today}"
         new = carry_constants_text(scenario_text, target=args.target, values=values, origin=origin, source=str(target))
         write_text_atomic(target, new)
@@ -199,7 +208,9 @@ def _uncertainty_spec(args: argparse.Namespace):  # type: ignore[no-untyped-def]
         try:
             text = path.read_text(encoding="utf-8")
         except (OSError, UnicodeDecodeError) as exc:
-            raise InputError("--spec", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+            raise InputError(
+                "--spec", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})"
+            ) from None
         spec = loads_spec(text, source=str(path))
     vary = dict(spec.vary)
     for item in getattr(args, "vary", None) or []:
@@ -299,13 +310,16 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         sys.stderr.write(f"interact: skipped {problem}\n")
     n = len(perps.rows) * len(victims.rows)
     result = evaluate_pairs(perps, victims, rules, progress=_progress_bar("screening") if n >= 200_000 and not args.quiet else None)
-    fmt_name = args.format or {".json": "json", ".md": "markdown", ".markdown": "markdown"}.get(Path(args.output or "").suffix.lower(), "csv")
+    fmt_name = args.format or {".json": "json", ".md": "markdown", ".markdown": "markdown"}.get(
+        Path(args.output or "").suffix.lower(), "csv"
+    )
     rows = _write_streamed(args.output, lambda h: write_results(result, h, fmt_name, top=args.top))
     if args.output and not args.quiet:
         skipped = len(perps.skipped) + len(victims.skipped)
         sys.stderr.write(
             f"interact: {n:,} pairs screened in {time.perf_counter() - t0:.2f} s; {rows:,} rows, worst first, written to {args.output}"
-            + (f"; {skipped} bad rows left out (listed above)" if skipped else "") + "\n"
+            + (f"; {skipped} bad rows left out (listed above)" if skipped else "")
+            + "\n"
         )
     return 0
 
@@ -329,12 +343,20 @@ def _cmd_report(args: argparse.Namespace) -> int:
     spread = None
     if vary:
         spread = run_uncertainty(
-            result, vary, samples=args.samples if args.samples is not None else (spec.samples or 10_000),
+            result,
+            vary,
+            samples=args.samples if args.samples is not None else (spec.samples or 10_000),
             seed=args.seed if args.seed is not None else (spec.seed if spec.seed is not None else 0),
             method=args.method or spec.method or "lhs",
         )
-    parts = report_parts(result, spread=spread, sens=sensitivity(result, vary), scenario_bytes=raw, source_name=path.name,
-                         generated_at=datetime.now(UTC))
+    parts = report_parts(
+        result,
+        spread=spread,
+        sens=sensitivity(result, vary),
+        scenario_bytes=raw,
+        source_name=path.name,
+        generated_at=datetime.now(UTC),
+    )
     suffix = Path(args.output or "").suffix.lower()
     fmt_name = args.format or ("markdown" if suffix in (".md", ".markdown") else "html")
     text_out = render_report_markdown(result, parts) if fmt_name == "markdown" else render_report_html(result, parts)
@@ -355,8 +377,11 @@ def _parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
 
     def with_report_options(p: argparse.ArgumentParser) -> None:
-        p.add_argument("--rules", metavar="NAME|PATH", help="rule set by name (see 'interact tables') or a TOML file; "
-                       "default: the scenario's 'rules' key, else ich-m12-2024")
+        p.add_argument(
+            "--rules",
+            metavar="NAME|PATH",
+            help="rule set by name (see 'interact tables') or a TOML file; default: the scenario's 'rules' key, else ich-m12-2024",
+        )
         p.add_argument("--format", choices=FORMATS, default="text", help="output format (default: text)")
         p.add_argument("--width", type=int, default=100, help="text width (default: 100)")
         p.add_argument("-o", "--output", metavar="FILE", help="write to FILE instead of standard output")
@@ -364,8 +389,12 @@ def _parser() -> argparse.ArgumentParser:
     p = sub.add_parser("assess", help="assess a scenario file: basic models, AUC ratio, dose suggestion")
     p.add_argument("scenario", metavar="SCENARIO.toml")
     with_report_options(p)
-    p.add_argument("--time-course", choices=("auto", "on", "off"), default="auto",
-                   help="add the dynamic check and dose timing (auto: for time-dependent inhibition or induction)")
+    p.add_argument(
+        "--time-course",
+        choices=("auto", "on", "off"),
+        default="auto",
+        help="add the dynamic check and dose timing (auto: for time-dependent inhibition or induction)",
+    )
     p.add_argument("--days", type=_days_arg, default=30.0, help="days of perpetrator dosing in the time course (default 30)")
     p.set_defaults(run=_cmd_assess)
 
@@ -379,8 +408,10 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--plot", metavar="FILE.svg", help="also write the curves as an SVG image")
     p.set_defaults(run=_cmd_timecourse)
 
-    for name, text in (("fit-tdi", "fit kinact and KI from pre-incubation data (columns inhibitor, time, activity)"),
-                       ("fit-induction", "fit Emax and EC50 from mRNA fold-change data (columns concentration, fold_change)")):
+    for name, text in (
+        ("fit-tdi", "fit kinact and KI from pre-incubation data (columns inhibitor, time, activity)"),
+        ("fit-induction", "fit Emax and EC50 from mRNA fold-change data (columns concentration, fold_change)"),
+    ):
         p = sub.add_parser(name, help=text)
         p.add_argument("data", metavar="DATA.csv")
         p.add_argument("--format", choices=FORMATS, default="text")
@@ -388,8 +419,13 @@ def _parser() -> argparse.ArgumentParser:
         p.add_argument("-o", "--output", metavar="FILE")
         p.add_argument("--into", metavar="SCENARIO.toml", help="write the fitted constants into this scenario (atomically)")
         p.add_argument("--target", metavar="ENZYME", help="the enzyme they belong to (with --into)")
-        p.add_argument("--fu-inc", type=float, default=None, metavar="FU",
-                       help="unbound fraction in the incubation: the carried KI or EC50 is multiplied by it")
+        p.add_argument(
+            "--fu-inc",
+            type=float,
+            default=None,
+            metavar="FU",
+            help="unbound fraction in the incubation: the carried KI or EC50 is multiplied by it",
+        )
         if name == "fit-tdi":
             p.add_argument("--keep-vehicle", action="store_true", help="do not subtract the vehicle (0 uM) loss of activity")
             p.add_argument("--weighted", action="store_true", help="weight the hyperbola by the kobs standard errors")
@@ -409,8 +445,13 @@ def _parser() -> argparse.ArgumentParser:
     p = sub.add_parser("fm", help="back-calculate fm from an AUC ratio observed with a strong inhibitor")
     p.add_argument("--observed", type=float, required=True, metavar="AUCR", help="observed AUC ratio")
     p.add_argument("--gut-ratio", type=float, default=1.0, metavar="AUCR_G", help="part of the ratio from the gut wall (default 1)")
-    p.add_argument("--remaining", type=float, default=0.0, metavar="A",
-                   help="fraction of enzyme activity left with the inhibitor (default 0: complete inhibition)")
+    p.add_argument(
+        "--remaining",
+        type=float,
+        default=0.0,
+        metavar="A",
+        help="fraction of enzyme activity left with the inhibitor (default 0: complete inhibition)",
+    )
     p.set_defaults(run=_cmd_fm)
 
     p = sub.add_parser("open", help="open a scenario in the terminal app")
@@ -419,10 +460,14 @@ def _parser() -> argparse.ArgumentParser:
 
     p = sub.add_parser("uncertainty", help="spread of the AUC ratio under input distributions, and sensitivity")
     p.add_argument("scenario", metavar="SCENARIO.toml")
-    p.add_argument("--vary", action="append", metavar="PATH=SPEC",
-                   help="an input's distribution, e.g. perpetrator.inhibits[0].ki=cv:30%% or "
-                   "perpetrator.cmax=ci:1.2 uM,2.5 uM or victim.pathways[0].fm=uniform:0.6,0.9 (repeatable)")
-    p.add_argument("--spec", metavar="FILE.toml", help="a file with a [vary] table of \"PATH\" = \"SPEC\" and an optional [sampling] table")
+    p.add_argument(
+        "--vary",
+        action="append",
+        metavar="PATH=SPEC",
+        help="an input's distribution, e.g. perpetrator.inhibits[0].ki=cv:30%% or "
+        "perpetrator.cmax=ci:1.2 uM,2.5 uM or victim.pathways[0].fm=uniform:0.6,0.9 (repeatable)",
+    )
+    p.add_argument("--spec", metavar="FILE.toml", help='a file with a [vary] table of "PATH" = "SPEC" and an optional [sampling] table')
     p.add_argument("--samples", type=int, metavar="N", help="number of samples (default 10000)")
     p.add_argument("--seed", type=int, metavar="S", help="random seed (default 0); the same seed gives the same numbers")
     p.add_argument("--method", choices=("mc", "lhs"), help="mc: Monte Carlo; lhs: Latin hypercube (default)")
@@ -436,8 +481,12 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("-o", "--output", metavar="FILE", help="write results to FILE (.csv, .json or .md) instead of standard output")
     p.add_argument("--format", choices=("csv", "json", "markdown"), help="output format (default: from the file name, else csv)")
     p.add_argument("--rules", metavar="NAME|PATH", help="rule set (default ich-m12-2024)")
-    p.add_argument("--on-error", choices=("fail", "skip"), default="fail",
-                   help="a bad row stops the run (fail, default) or is left out and listed (skip)")
+    p.add_argument(
+        "--on-error",
+        choices=("fail", "skip"),
+        default="fail",
+        help="a bad row stops the run (fail, default) or is left out and listed (skip)",
+    )
     p.add_argument("--top", type=int, metavar="N", help="write only the N worst pairs")
     p.add_argument("-q", "--quiet", action="store_true", help="no progress bar or summary line")
     p.set_defaults(run=_cmd_screen_batch)
@@ -447,7 +496,9 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("-o", "--output", metavar="FILE", help="write to FILE (.html or .md) instead of standard output")
     p.add_argument("--format", choices=("html", "markdown"), help="default: from the file name, else html")
     p.add_argument("--rules", metavar="NAME|PATH", help="rule set (default: the scenario's 'rules' key, else ich-m12-2024)")
-    p.add_argument("--vary", action="append", metavar="PATH=SPEC", help="an input's distribution, as for 'interact uncertainty' (repeatable)")
+    p.add_argument(
+        "--vary", action="append", metavar="PATH=SPEC", help="an input's distribution, as for 'interact uncertainty' (repeatable)"
+    )
     p.add_argument("--spec", metavar="FILE.toml", help="a file with a [vary] table and an optional [sampling] table")
     p.add_argument("--samples", type=int, metavar="N", help="number of samples (default 10000)")
     p.add_argument("--seed", type=int, metavar="S", help="random seed (default 0)")
@@ -487,7 +538,9 @@ def _cmd_fit(args: argparse.Namespace) -> int:
     from .kinetics.fitting import MODELS, fit_inhibition
     from .report.fit import format_comparison
 
-    data = read_incubation_csv(path, substrate_unit=args.substrate_unit, inhibitor_unit=args.inhibitor_unit, velocity_unit=args.velocity_unit)
+    data = read_incubation_csv(
+        path, substrate_unit=args.substrate_unit, inhibitor_unit=args.inhibitor_unit, velocity_unit=args.velocity_unit
+    )
     models = tuple(m.strip() for m in args.models.split(",") if m.strip()) if args.models else MODELS
     if "none" not in models:
         models = ("none", *models)
@@ -495,7 +548,9 @@ def _cmd_fit(args: argparse.Namespace) -> int:
     unbound = None
     ki = comp.ki
     if ki is not None and fu_inc is not None and fu_origin:
-        low, high, kind = (ki.profile_low, ki.profile_high, "profile likelihood") if ki.profile_low is not None else (ki.ci_low, ki.ci_high, "asymptotic")
+        low, high, kind = (
+            (ki.profile_low, ki.profile_high, "profile likelihood") if ki.profile_low is not None else (ki.ci_low, ki.ci_high, "asymptotic")
+        )
         unbound = unbound_constant(ki.name, ki.value, low, high, fu_inc, interval=f"{comp.level:.0%} {kind}", fu_origin=fu_origin)
     plots_text = ""
     if args.format == "text" and not args.no_terminal_plot:
@@ -525,7 +580,11 @@ def _fit_binding(args: argparse.Namespace) -> tuple[float | None, str, BindingPr
     from . import units
 
     if args.fu_inc is not None and args.logp is not None:
-        raise InputError("--fu-inc", args.fu_inc, "and --logp were both given; expected a measured fu,inc or a lipophilicity to predict it, not both")
+        raise InputError(
+            "--fu-inc",
+            args.fu_inc,
+            "and --logp were both given; expected a measured fu,inc or a lipophilicity to predict it, not both",
+        )
     if args.fu_inc is not None:
         return units.parse_fraction(args.fu_inc, field="--fu-inc"), "measured (given with --fu-inc)", None
     if args.logp is None:
@@ -576,8 +635,15 @@ def _cmd_fit_ic50(args: argparse.Namespace, path: Path, today: str, fu_inc: floa
     from .report.fit import format_ic50
 
     data = read_ic50_csv(path, inhibitor_unit=args.inhibitor_unit)
-    result = fit_ic50(data.inhibitor_um, data.response, bottom=args.bottom, weights=args.weights, level=args.level,
-                      response_unit=data.response_unit, source=data.source)
+    result = fit_ic50(
+        data.inhibitor_um,
+        data.response,
+        bottom=args.bottom,
+        weights=args.weights,
+        level=args.level,
+        response_unit=data.response_unit,
+        source=data.source,
+    )
     ki = None
     if args.mechanism:
         s = units_um(args.substrate_conc, "--substrate-conc") if args.substrate_conc else None
@@ -617,7 +683,9 @@ def _add_fit_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[t
     p.add_argument("--substrate-unit", metavar="UNIT", help="unit of the substrate column when the header does not say (e.g. uM)")
     p.add_argument("--inhibitor-unit", metavar="UNIT", help="unit of the inhibitor column when the header does not say (e.g. uM)")
     p.add_argument("--velocity-unit", metavar="UNIT", help="unit of the velocity column (a label, e.g. pmol/min/mg)")
-    p.add_argument("--models", metavar="LIST", help="comma-separated subset of competitive,noncompetitive,uncompetitive,mixed (default: all)")
+    p.add_argument(
+        "--models", metavar="LIST", help="comma-separated subset of competitive,noncompetitive,uncompetitive,mixed (default: all)"
+    )
     p.add_argument("--weights", choices=("none", "1/y", "1/y2", "poisson"), default="none", help="weighting (default: none)")
     p.add_argument("--level", type=float, default=0.95, help="confidence level (default 0.95)")
     p.add_argument("--format", choices=FORMATS, default="text", help="output format (default: text)")
@@ -625,18 +693,30 @@ def _add_fit_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[t
     p.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
     p.add_argument("--plot", metavar="FILE", help="write the diagnostic plots (double reciprocal, Dixon, residuals) to FILE.svg/.png/.pdf")
     p.add_argument("--no-terminal-plot", action="store_true", help="leave the double-reciprocal plot out of the text report")
-    p.add_argument("--into", metavar="SCENARIO.toml", help="write the chosen Ki (and fu,inc) into this scenario, keeping the rest of the file")
+    p.add_argument(
+        "--into",
+        metavar="SCENARIO.toml",
+        help="write the chosen Ki (and fu,inc) into this scenario, keeping the rest of the file",
+    )
     p.add_argument("--target", metavar="ENZYME", help="with --into: the enzyme the Ki belongs to, e.g. CYP3A")
     p.add_argument("--fu-inc", metavar="X", help="measured fraction unbound in the incubation, gives Ki,u = Ki x fu,inc")
     p.add_argument("--logp", metavar="X", help="predict fu,inc from logP (bases) or logD7.4 (acids, neutrals)")
     p.add_argument("--protein", metavar="CONC", help='microsomal protein for the prediction, e.g. "0.5 mg/mL"')
     p.add_argument("--cells", metavar="N", help="hepatocytes, 10^6 cells/mL (kilford-2008)")
-    p.add_argument("--binding-method", dest="method_binding", choices=("austin-2002", "hallifax-2006", "kilford-2008"),
-                   default="hallifax-2006", help="fu,inc relation (default hallifax-2006; coefficients from memory)")
+    p.add_argument(
+        "--binding-method",
+        dest="method_binding",
+        choices=("austin-2002", "hallifax-2006", "kilford-2008"),
+        default="hallifax-2006",
+        help="fu,inc relation (default hallifax-2006; coefficients from memory)",
+    )
     p.add_argument("--ic50", action="store_true", help="treat the file as an IC50 curve (inhibitor, response)")
     p.add_argument("--bottom", type=float, metavar="Y", help="IC50 mode: fix the bottom plateau (3-parameter fit), e.g. 0")
-    p.add_argument("--mechanism", choices=("competitive", "noncompetitive", "uncompetitive", "mixed"),
-                   help="IC50 mode: mechanism for the Cheng-Prusoff conversion")
+    p.add_argument(
+        "--mechanism",
+        choices=("competitive", "noncompetitive", "uncompetitive", "mixed"),
+        help="IC50 mode: mechanism for the Cheng-Prusoff conversion",
+    )
     p.add_argument("--substrate-conc", metavar="CONC", help='IC50 mode: substrate concentration in the assay, e.g. "5 uM"')
     p.add_argument("--km", metavar="CONC", help='IC50 mode: Km of the substrate, e.g. "5 uM"')
     p.add_argument("--alpha", type=float, help="IC50 mode, mixed: Kiu/Kic")

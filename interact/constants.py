@@ -7,9 +7,9 @@ when given, kinact (1/h) with KI,u (uM) and Emax with EC50,u (uM) and d.
 
 from __future__ import annotations
 
-import pint
-
 from dataclasses import dataclass
+
+import pint
 
 from . import units
 from .kinetics.conversion import CHENG_PRUSOFF_SOURCE, ki_from_ic50
@@ -101,7 +101,6 @@ def resolve_constants(scenario: Scenario) -> tuple[Constant, ...]:
     out = [_one(item, p.name, 0, p.molar_mass, f"perpetrator.inhibits[{i}]") for i, item in enumerate(p.inhibits)]
     for j, m in enumerate(p.metabolites, start=1):
         out.extend(
-            _one(item, m.name, j, m.molar_mass, f"perpetrator.metabolites[{j - 1}].inhibits[{i}]")
-            for i, item in enumerate(m.inhibits)
+            _one(item, m.name, j, m.molar_mass, f"perpetrator.metabolites[{j - 1}].inhibits[{i}]") for i, item in enumerate(m.inhibits)
         )
     return tuple(out)

@@ -133,8 +133,7 @@ def suggest_dose(
         )
         if strengths:
             options = _candidates(strengths)
-            inside = [(abs(math.log(auc_ratio * d / usual_dose)), d, u) for d, u in options
-                      if lower <= auc_ratio * d / usual_dose <= upper]
+            inside = [(abs(math.log(auc_ratio * d / usual_dose)), d, u) for d, u in options if lower <= auc_ratio * d / usual_dose <= upper]
             fitting = [(d, u) for d, u in options if d <= exact * (1 + 1e-9)]
             if inside:
                 _, chosen, chosen_units = min(inside)
@@ -161,14 +160,14 @@ def suggest_dose(
                     ratio_dose = None
                     reasons.append("No available dose lies between the usual dose and the exact dose.")
             else:
-                reasons.append(
-                    f"The smallest available dose ({min(strengths):g} {dose_unit}) exceeds {exact:.3g} {dose_unit}."
-                )
+                reasons.append(f"The smallest available dose ({min(strengths):g} {dose_unit}) exceeds {exact:.3g} {dose_unit}.")
         else:
             reasons.append("No strengths were given: the exact figure is shown unrounded.")
-        tau_options = [t for t in PRACTICAL_INTERVALS_H if t >= exact_tau * (1 - 1e-9)] if not increase else [
-            t for t in PRACTICAL_INTERVALS_H if t <= exact_tau * (1 + 1e-9)
-        ]
+        tau_options = (
+            [t for t in PRACTICAL_INTERVALS_H if t >= exact_tau * (1 - 1e-9)]
+            if not increase
+            else [t for t in PRACTICAL_INTERVALS_H if t <= exact_tau * (1 + 1e-9)]
+        )
         if tau_options and not math.isclose(interval_h, exact_tau):
             chosen_tau = tau_options[0] if not increase else tau_options[-1]
             ratio_tau = auc_ratio * interval_h / chosen_tau
@@ -226,9 +225,7 @@ def suggest_dose(
     )
 
 
-def fm_from_observed_ratio(
-    observed_ratio: float, *, remaining_activity: float = 0.0, gut_ratio: float = 1.0
-) -> float:
+def fm_from_observed_ratio(observed_ratio: float, *, remaining_activity: float = 0.0, gut_ratio: float = 1.0) -> float:
     """Back-calculate fm from an AUC ratio observed with a strong inhibitor.
 
     From AUCR_h = 1/(fm x a + 1 - fm): fm = (1 - 1/AUCR_h) / (1 - a), with
@@ -250,7 +247,9 @@ def fm_from_observed_ratio(
     fm = (1.0 - 1.0 / hepatic) / (1.0 - remaining_activity)
     if fm > 1.0 + 1e-12:
         raise InputError(
-            "observed_ratio", observed_ratio, f"implies fm = {fm:.3g} > 1 at remaining activity {remaining_activity:g}; the inputs are inconsistent"
+            "observed_ratio",
+            observed_ratio,
+            f"implies fm = {fm:.3g} > 1 at remaining activity {remaining_activity:g}; the inputs are inconsistent",
         )
     return min(fm, 1.0)
 
@@ -402,14 +401,20 @@ def timing_advice(
             f"{steady_ratio:.3g} (the mechanisms act at different speeds): one dose change does not fit the whole course; "
             "monitor closely in the first weeks."
         )
-    if after_stop_ratio is not None and after_stop_h is not None and not lower <= after_stop_ratio <= upper and (
-        (after_stop_ratio - 1.0) * (steady_ratio - 1.0) < 0 or abs(math.log(after_stop_ratio)) > abs(ln_ss) * 1.1
+    if (
+        after_stop_ratio is not None
+        and after_stop_h is not None
+        and not lower <= after_stop_ratio <= upper
+        and ((after_stop_ratio - 1.0) * (steady_ratio - 1.0) < 0 or abs(math.log(after_stop_ratio)) > abs(ln_ss) * 1.1)
     ):
         out.append(
             f"After the perpetrator is stopped, exposure swings to {after_stop_ratio:.3g} times the usual about day "
             f"{_days(after_stop_h)} of the washout (the mechanisms fade at different speeds): "
-            + ("exposure falls below the usual level, so efficacy may be lost if the reduced dose is kept; "
-               if after_stop_ratio < 1.0 else "exposure rises above the usual level; ")
+            + (
+                "exposure falls below the usual level, so efficacy may be lost if the reduced dose is kept; "
+                if after_stop_ratio < 1.0
+                else "exposure rises above the usual level; "
+            )
             + "adjust the dose and monitor through the washout."
         )
     if offset_h is not None:

@@ -170,9 +170,7 @@ def _ss_shape(ka: float, ke: float, tau: float) -> tuple[float, float]:
     b = ke * (1.0 - math.exp(-ka * tau))
     tmax = math.log(a / b) / (ka - ke)
     tmax = min(max(tmax, 0.0), tau)
-    shape = (
-        ka / (ka - ke) * (math.exp(-ke * tmax) / (1.0 - math.exp(-ke * tau)) - math.exp(-ka * tmax) / (1.0 - math.exp(-ka * tau)))
-    )
+    shape = ka / (ka - ke) * (math.exp(-ke * tmax) / (1.0 - math.exp(-ke * tau)) - math.exp(-ka * tmax) / (1.0 - math.exp(-ka * tau)))
     return shape, tmax
 
 
@@ -356,9 +354,7 @@ def _sites(a: Assessment, kdeg: dict[str, tuple[float | None, float | None]], gu
                     if c.kinact_per_h is not None and c.ki_inact_u_um is not None
                 ),
                 induce=tuple(
-                    (c.species_index, c.calibration * c.emax, c.ec50_u_um)
-                    for c in acting
-                    if c.emax is not None and c.ec50_u_um is not None
+                    (c.species_index, c.calibration * c.emax, c.ec50_u_um) for c in acting if c.emax is not None and c.ec50_u_um is not None
                 ),
             )
         )
@@ -464,9 +460,7 @@ def simulate(
         raise InputError("perpetrator.interval", None, 'is missing; the time course needs the dosing interval, e.g. "24 h"')
     half_p = _hours(p.half_life)
     if half_p is None and mode == "regimen":
-        raise InputError(
-            "perpetrator.half_life", None, 'is missing; the time course needs the elimination half-life, e.g. "18 h"'
-        )
+        raise InputError("perpetrator.half_life", None, 'is missing; the time course needs the elimination half-life, e.g. "18 h"')
     half_v = _hours(v.half_life)
     if half_v is None:
         raise InputError("victim.half_life", None, 'is missing; the time course needs the victim\'s half-life, e.g. "6 h"')
@@ -516,9 +510,7 @@ def simulate(
                     note="one-compartment intravenous bolus model",
                 )
             )
-        settings.append(
-            Setting(name="perpetrator_half_life", label="Perpetrator half-life", value=half_p, unit="h", origin="given")
-        )
+        settings.append(Setting(name="perpetrator_half_life", label="Perpetrator half-life", value=half_p, unit="h", origin="given"))
         acc = 1.0 / (1.0 - math.exp(-ke * tau_p))
         if acc > 1.0 + 1e-9:
             notes.append(f"perpetrator accumulation factor {acc:.3g}: steady state after about {5 * half_p / 24:.3g} days")
@@ -529,15 +521,11 @@ def simulate(
         profile_t = np.asarray(profile[0], dtype=float)
         profile_c = np.asarray(profile[1], dtype=float)
         if profile_t.ndim != 1 or profile_t.shape != profile_c.shape or profile_t.size < 2:
-            raise InputError(
-                "profile", f"{profile_t.size} times, {profile_c.size} values", "expected two sequences of equal length >= 2"
-            )
+            raise InputError("profile", f"{profile_t.size} times, {profile_c.size} values", "expected two sequences of equal length >= 2")
         if not (np.all(np.isfinite(profile_t)) and np.all(np.isfinite(profile_c)) and np.all(profile_c >= 0)):
             raise InputError("profile", "non-finite or negative values", "expected finite times and concentrations >= 0")
         if np.any(np.diff(profile_t) <= 0) or profile_t[0] > 0:
-            raise InputError(
-                "profile", f"times from {profile_t[0]:g} h", "expected strictly increasing times starting at or before 0 h"
-            )
+            raise InputError("profile", f"times from {profile_t[0]:g} h", "expected strictly increasing times starting at or before 0 h")
     fa_fg = st["fa_fg"].value
     fa = st["fraction_absorbed"].value
     rb = st["blood_plasma_ratio"].value
@@ -563,9 +551,7 @@ def simulate(
         profile_c=profile_c,
     )
     if len(sp) > 1 and mode != "constant":
-        notes.append(
-            "metabolite concentrations follow the parent's profile scaled to their Cmax (formation-rate limited; an assumption)"
-        )
+        notes.append("metabolite concentrations follow the parent's profile scaled to their Cmax (formation-rate limited; an assumption)")
 
     # -- enzymes
     gut_enzyme = assessment.prediction.gut_enzyme
@@ -585,9 +571,7 @@ def simulate(
             )
     for kd in kdeg_used:
         if kd.from_memory:
-            warnings.append(
-                f"{kd.label} = {kd.value:.4g} 1/h is from memory ({kd.source}): the onset and offset times scale with 1/kdeg."
-            )
+            warnings.append(f"{kd.label} = {kd.value:.4g} 1/h is from memory ({kd.source}): the onset and offset times scale with 1/kdeg.")
     turn = [i for i, x in enumerate(sites) if x.turnover]
     liver_sites = [x for x in sites if x.site == "liver"]
     gut_site = next((x for x in sites if x.site == "gut"), None)
@@ -618,9 +602,7 @@ def simulate(
             value=e_h,
             unit="",
             origin="given" if v.hepatic_extraction is not None else "default",
-            source=""
-            if v.hepatic_extraction is not None
-            else "assumed; shapes the curves and Cmax, not the steady-state AUC ratio",
+            source="" if v.hepatic_extraction is not None else "assumed; shapes the curves and Cmax, not the steady-state AUC ratio",
             status="" if v.hepatic_extraction is not None else "assumption",
         )
     )
@@ -634,14 +616,10 @@ def simulate(
     ka_v = ka_v_q
     if victim_oral and abs(ka_v - k_v) < 1e-6 * ka_v:
         ka_v *= 1.0 + 1e-4
-    settings.append(
-        Setting(name="victim_volume", label="Victim volume (from CL_h and half-life)", value=vol, unit="L", origin="derived")
-    )
+    settings.append(Setting(name="victim_volume", label="Victim volume (from CL_h and half-life)", value=vol, unit="L", origin="derived"))
     auc_tau0 = f0 / cl0  # per unit dose, over one interval at steady state
     gut_factor = (1.0 / fg0 - 1.0) if gut_site is not None else 0.0
-    notes.append(
-        "all victim clearance is taken as hepatic (well-stirred); fm values are fractions of hepatic intrinsic clearance"
-    )
+    notes.append("all victim clearance is taken as hepatic (well-stirred); fm values are fractions of hepatic intrinsic clearance")
     if not victim_oral and e_h > 0.1:
         notes.append(
             f"intravenous victim with hepatic extraction {e_h:.2g}: blood flow limits the change in clearance, so the "
@@ -673,10 +651,7 @@ def simulate(
     # The victim's gut amount is analytic (absorption is not inhibited): G_v(t) = exp(-ka (t - t_last)) / (1 - exp(-ka tau)).
     n_e = len(turn)
     qv = math.exp(-ka_v * tau_v)
-    flat = [
-        (x.site == "liver", x.fm, x.turnover, x.kdeg or 0.0, x.inv_ki, x.inact if x.kdeg is not None else (), x.induce)
-        for x in sites
-    ]
+    flat = [(x.site == "liver", x.fm, x.turnover, x.kdeg or 0.0, x.inv_ki, x.inact if x.kdeg is not None else (), x.induce) for x in sites]
     has_gut = gut_site is not None
     other = 1.0 - fm_sum
     inv_vol = 1.0 / vol
@@ -773,11 +748,7 @@ def simulate(
     tp = np.mod(t - t_start, tau_v)
     if victim_oral:
         conc_without = (
-            f0
-            / vol
-            * ka_v
-            / (ka_v - k_v)
-            * (np.exp(-k_v * tp) / (1.0 - math.exp(-k_v * tau_v)) - np.exp(-ka_v * tp) / (1.0 - qv))
+            f0 / vol * ka_v / (ka_v - k_v) * (np.exp(-k_v * tp) / (1.0 - math.exp(-k_v * tau_v)) - np.exp(-ka_v * tp) / (1.0 - qv))
         )
     else:
         conc_without = 1.0 / vol * np.exp(-k_v * tp) / (1.0 - math.exp(-k_v * tau_v))

@@ -110,9 +110,7 @@ def _table_setting(name: str, label: str, unit: str, rules: RuleSet) -> Setting:
         origin = "default"
     value = item.value
     number = units.magnitude(units.parse(value, _KIND[unit], field=name), unit) if isinstance(value, str) else float(value)
-    return Setting(
-        name=name, label=label, value=number, unit=unit, origin=origin, source=item.source, status=item.status, note=item.note
-    )
+    return Setting(name=name, label=label, value=number, unit=unit, origin=origin, source=item.source, status=item.status, note=item.note)
 
 
 _KIND: Final = {"L/min": "flow", "1/min": "rate", "L": "volume", "": ""}
@@ -138,20 +136,36 @@ def resolve_settings(scenario: Scenario, rules: RuleSet) -> dict[str, Setting]:
     phys = scenario.physiology
     out = {
         "hepatic_blood_flow": _given_or(
-            "hepatic_blood_flow", "Hepatic blood flow Qh", "L/min",
-            None if phys.hepatic_blood_flow is None else units.magnitude(phys.hepatic_blood_flow, "L/min"), rules, "override",
+            "hepatic_blood_flow",
+            "Hepatic blood flow Qh",
+            "L/min",
+            None if phys.hepatic_blood_flow is None else units.magnitude(phys.hepatic_blood_flow, "L/min"),
+            rules,
+            "override",
         ),
         "enterocytic_blood_flow": _given_or(
-            "enterocytic_blood_flow", "Enterocytic blood flow Qent", "L/min",
-            None if phys.enterocytic_blood_flow is None else units.magnitude(phys.enterocytic_blood_flow, "L/min"), rules, "override",
+            "enterocytic_blood_flow",
+            "Enterocytic blood flow Qent",
+            "L/min",
+            None if phys.enterocytic_blood_flow is None else units.magnitude(phys.enterocytic_blood_flow, "L/min"),
+            rules,
+            "override",
         ),
         "gut_volume": _given_or(
-            "gut_volume", "Intestinal volume for Igut", "L",
-            None if phys.gut_volume is None else units.magnitude(phys.gut_volume, "L"), rules, "override",
+            "gut_volume",
+            "Intestinal volume for Igut",
+            "L",
+            None if phys.gut_volume is None else units.magnitude(phys.gut_volume, "L"),
+            rules,
+            "override",
         ),
         "fu_gut": _given_or("fu_gut", "Unbound fraction in enterocytes fu,gut", "", phys.fu_gut, rules, "override"),
         "absorption_rate": _given_or(
-            "absorption_rate", "Perpetrator absorption rate ka", "1/min", None if p.ka is None else units.magnitude(p.ka, "1/min"), rules
+            "absorption_rate",
+            "Perpetrator absorption rate ka",
+            "1/min",
+            None if p.ka is None else units.magnitude(p.ka, "1/min"),
+            rules,
         ),
         "fa_fg": _given_or("fa_fg", "Perpetrator Fa x Fg", "", p.fa_fg, rules),
         "fraction_absorbed": _given_or("fraction_absorbed", "Perpetrator Fa", "", p.fa, rules),
@@ -211,14 +225,10 @@ def resolve_exposure(
         fu_plasma_used=fu,
         unbound_cmax_um=imax_u,
         gut_lumen_um=float(gut_lumen_um(dose_umol, settings["gut_volume"].value)) if oral else 0.0,
-        unbound_inlet_um=float(
-            unbound_inlet_um(cmax, fu, dose_umol, settings["fa_fg"].value, ka, qh, settings["blood_plasma_ratio"].value)
-        )
+        unbound_inlet_um=float(unbound_inlet_um(cmax, fu, dose_umol, settings["fa_fg"].value, ka, qh, settings["blood_plasma_ratio"].value))
         if oral
         else imax_u,
-        enterocyte_um=float(
-            enterocyte_um(dose_umol, settings["fraction_absorbed"].value, ka, qent, settings["fu_gut"].value)
-        )
+        enterocyte_um=float(enterocyte_um(dose_umol, settings["fraction_absorbed"].value, ka, qent, settings["fu_gut"].value))
         if oral
         else imax_u,
         dose_umol=dose_umol,

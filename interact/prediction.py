@@ -142,7 +142,6 @@ def _site(
 ) -> SiteTerms:
     ratio = kobs = effect = 0.0
     concs = []
-    calibration = 1.0
     for c in constants:
         if c.target != enzyme:
             continue
@@ -280,7 +279,9 @@ def ratio_function(
     Used for root finding over the perpetrator's dose; ``predict`` is the
     reference and a test keeps the two equal.
     """
-    rows: list[tuple[float, bool, list[tuple[float, float, float | None, float | None, float | None, float | None, float | None, float]]]] = []
+    rows: list[
+        tuple[float, bool, list[tuple[float, float, float | None, float | None, float | None, float | None, float | None, float]]]
+    ] = []
     enzymes = [e for e, _ in pathways]
     if gut_enzyme is not None and gut_enzyme not in enzymes:
         pathways = (*pathways, (gut_enzyme, 0.0))
@@ -291,7 +292,18 @@ def ratio_function(
             if c.target != enzyme:
                 continue
             exp = species[c.species_index]
-            acts.append((exp.unbound_inlet_um, exp.enterocyte_um, c.ki_u_um, c.kinact_per_h, c.ki_inact_u_um, c.emax, c.ec50_u_um, c.calibration))
+            acts.append(
+                (
+                    exp.unbound_inlet_um,
+                    exp.enterocyte_um,
+                    c.ki_u_um,
+                    c.kinact_per_h,
+                    c.ki_inact_u_um,
+                    c.emax,
+                    c.ec50_u_um,
+                    c.calibration,
+                )
+            )
         rows.append((fm, enzyme == gut_enzyme, [(*a, k_liver, k_gut) for a in acts]))  # type: ignore[misc]
 
     def activity(items: list[tuple[float, ...]], site: int, scale: float) -> float:

@@ -399,7 +399,10 @@ class _Reader:
             if mechanism != "noncompetitive":
                 for key, value in (("substrate_conc", sub), ("km", km)):
                     if value is None and key not in data:
-                        self.fail(f"{path}.{key}", f"is missing; the Cheng-Prusoff conversion of ic50 for {mechanism} inhibition needs it")
+                        self.fail(
+                            f"{path}.{key}",
+                            f"is missing; the Cheng-Prusoff conversion of ic50 for {mechanism} inhibition needs it",
+                        )
             if mechanism == "mixed" and alpha is None and "alpha" not in data:
                 self.fail(f"{path}.alpha", "is missing; mixed inhibition needs alpha (Kiu = alpha x Kic)")
         if (kinact is None) != (ki_inact is None) and ("kinact" in data) != ("ki_inact" in data):
@@ -407,10 +410,23 @@ class _Reader:
         if (emax is None) != (ec50 is None) and ("emax" in data) != ("ec50" in data):
             self.fail(path, "induction needs both emax and ec50")
         if not has_reversible and kinact is None and emax is None and not {"ki", "ic50", "kinact", "emax"} & set(data):
-            self.fail(path, "gives no inhibition or induction constant; expected ki, or ic50 with substrate_conc and km, or kinact with ki_inact, or emax with ec50")
-        for key, value in (("ki", ki), ("ic50", ic50), ("substrate_conc", sub), ("km", km), ("ki_inact", ki_inact), ("ec50", ec50)):
+            self.fail(
+                path,
+                "gives no inhibition or induction constant; expected ki, or ic50 with substrate_conc and km, or kinact with ki_inact, or emax with ec50",  # noqa: E501
+            )
+        for key, value in (
+            ("ki", ki),
+            ("ic50", ic50),
+            ("substrate_conc", sub),
+            ("km", km),
+            ("ki_inact", ki_inact),
+            ("ec50", ec50),
+        ):
             if value is not None and molar_mass is None and value.dimensionality != units.KINDS["molar_concentration"][0][0]:
-                self.fail(f"{path}.{key}", f'"{units.format_quantity(value)}" is a mass concentration; give molar_mass for this compound or a molar value such as "0.35 uM"')
+                self.fail(
+                    f"{path}.{key}",
+                    f'"{units.format_quantity(value)}" is a mass concentration; give molar_mass for this compound or a molar value such as "0.35 uM"',  # noqa: E501
+                )
         if target is None:
             return None
         return Inhibition(
@@ -438,7 +454,10 @@ class _Reader:
             if item is None:
                 continue
             if item.target in seen:
-                self.fail(f"{path}.inhibits[{i}].target", f'"{item.target}" is listed twice (also inhibits[{seen[item.target]}]); combine them')
+                self.fail(
+                    f"{path}.inhibits[{i}].target",
+                    f'"{item.target}" is listed twice (also inhibits[{seen[item.target]}]); combine them',
+                )
                 continue
             seen[item.target] = i
             out.append(item)
@@ -446,7 +465,10 @@ class _Reader:
 
     def _mass_conc_needs_mw(self, q: Q | None, mw: Q | None, path: str) -> None:
         if q is not None and mw is None and q.dimensionality != units.KINDS["molar_concentration"][0][0]:
-            self.fail(path, f'"{units.format_quantity(q)}" is a mass concentration; give molar_mass (e.g. "452.5 g/mol") or a molar value such as "1.8 uM"')
+            self.fail(
+                path,
+                f'"{units.format_quantity(q)}" is a mass concentration; give molar_mass (e.g. "452.5 g/mol") or a molar value such as "1.8 uM"',  # noqa: E501
+            )
 
     def perpetrator(self, raw: object) -> Perpetrator | None:
         path = "perpetrator"
@@ -470,7 +492,10 @@ class _Reader:
         half_life = self.quantity(data, "half_life", path, "time")
         self._mass_conc_needs_mw(cmax, mw, f"{path}.cmax")
         if dose is not None and mw is None and dose.dimensionality == units.KINDS["mass"][0][0]:
-            self.fail(f"{path}.molar_mass", 'is missing; a dose in mass units needs it to give molar concentrations (e.g. "452.5 g/mol")')
+            self.fail(
+                f"{path}.molar_mass",
+                'is missing; a dose in mass units needs it to give molar concentrations (e.g. "452.5 g/mol")',
+            )
         inhibits = self.inhibitions(data, path, mw)
         metabolites = []
         for i, mraw in self.items(data, "metabolites", path):
@@ -517,7 +542,7 @@ class _Reader:
 
     def victim(self, raw: object) -> Victim | None:
         path = "victim"
-        data = self.table(raw, path, tuple(f.name for f in fields(Victim)) + ("no_effect_boundary",))
+        data = self.table(raw, path, (*(f.name for f in fields(Victim)), "no_effect_boundary"))
         if data is None:
             return None
         name = self.name(data, "name", path)
@@ -559,7 +584,10 @@ class _Reader:
             if enzyme is not None:
                 target = resolve_target(enzyme)
                 if target is not None and target.kind != "enzyme":
-                    self.fail(f"{at}.enzyme", f'"{enzyme}" is a transporter; the mechanistic static model here takes metabolic pathways (enzymes) only')
+                    self.fail(
+                        f"{at}.enzyme",
+                        f'"{enzyme}" is a transporter; the mechanistic static model here takes metabolic pathways (enzymes) only',
+                    )
                     continue
                 if enzyme in seen:
                     self.fail(f"{at}.enzyme", f'"{enzyme}" is listed twice; give one fm per enzyme')
@@ -569,7 +597,10 @@ class _Reader:
                 pathways.append(Pathway(enzyme=enzyme, fm=fm))
         total = sum(p.fm for p in pathways)
         if total > 1.0 + 1e-9:
-            self.fail(f"{path}.pathways", f"fm values sum to {total:.4g}; expected a total of at most 1 (the rest is renal and other routes)")
+            self.fail(
+                f"{path}.pathways",
+                f"fm values sum to {total:.4g}; expected a total of at most 1 (the rest is renal and other routes)",
+            )
         lower = upper = None
         if "no_effect_boundary" in data:
             b = data["no_effect_boundary"]

@@ -132,7 +132,9 @@ def screen(
                     assert c.kinact_per_h is not None and c.ki_inact_u_um is not None
                     parts.append(
                         Contribution(
-                            species=c.species, concentration_um=x, constant_um=c.ki_inact_u_um,
+                            species=c.species,
+                            concentration_um=x,
+                            constant_um=c.ki_inact_u_um,
                             term=c.kinact_per_h * x / (c.ki_inact_u_um + x),
                         )
                     )
@@ -141,7 +143,9 @@ def screen(
                     d = 1.0 if crit.form == "fold-change" else c.calibration
                     parts.append(
                         Contribution(
-                            species=c.species, concentration_um=x, constant_um=c.ec50_u_um,
+                            species=c.species,
+                            concentration_um=x,
+                            constant_um=c.ec50_u_um,
                             term=d * c.emax * x / (c.ec50_u_um + x),
                         )
                     )

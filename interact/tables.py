@@ -233,8 +233,7 @@ def load_classes() -> Classes:
         for b in data["inhibition"]
     )
     induction = tuple(
-        Band(name=b["name"], bound=float(b["upper"]), source=b["source"], status=_status(b, "classes.induction"))
-        for b in data["induction"]
+        Band(name=b["name"], bound=float(b["upper"]), source=b["source"], status=_status(b, "classes.induction")) for b in data["induction"]
     )
     boundary = data["no_effect_boundary"]
     return Classes(

@@ -155,7 +155,7 @@ class Input:
 
 
 _SPEC = re.compile(r"^\s*(cv|ci|ci95|uniform|fixed)\s*(?::\s*(.*?))?\s*$", re.IGNORECASE)
-_SPEC_HELP: Final = 'expected cv:30%, ci:LOW,HIGH (a 95% interval), uniform:LOW,HIGH or fixed'
+_SPEC_HELP: Final = "expected cv:30%, ci:LOW,HIGH (a 95% interval), uniform:LOW,HIGH or fixed"
 
 
 def _bound(text: str, inp: Input, field: str) -> float:
@@ -329,9 +329,21 @@ class ScenarioModel:
             add("perpetrator.ka", "Perpetrator absorption rate ka", "1/min", "rate", settings["absorption_rate"].value)
             add("perpetrator.fa_fg", "Perpetrator Fa x Fg", "", "fraction", settings["fa_fg"].value)
             add("perpetrator.fa", "Perpetrator Fa", "", "fraction", settings["fraction_absorbed"].value)
-            add("perpetrator.blood_plasma_ratio", "Perpetrator blood-to-plasma ratio Rb", "", "number", settings["blood_plasma_ratio"].value)
+            add(
+                "perpetrator.blood_plasma_ratio",
+                "Perpetrator blood-to-plasma ratio Rb",
+                "",
+                "number",
+                settings["blood_plasma_ratio"].value,
+            )
             add("physiology.hepatic_blood_flow", "Hepatic blood flow Qh", "L/min", "flow", settings["hepatic_blood_flow"].value)
-            add("physiology.enterocytic_blood_flow", "Enterocytic blood flow Qent", "L/min", "flow", settings["enterocytic_blood_flow"].value)
+            add(
+                "physiology.enterocytic_blood_flow",
+                "Enterocytic blood flow Qent",
+                "L/min",
+                "flow",
+                settings["enterocytic_blood_flow"].value,
+            )
             add("physiology.fu_gut", "Unbound fraction in enterocytes fu,gut", "", "fraction", settings["fu_gut"].value)
 
         pathway_enzymes = {pw.enzyme for pw in v.pathways}
@@ -349,7 +361,11 @@ class ScenarioModel:
                     ki_path = add(f"{prefix}.ic50", f"IC50 of {who}", "uM", "concentration", ic50, mw)
                     target = resolve_target(c.target)
                     if target is not None and target.kind != "transporter" and item.mechanism != "noncompetitive":
-                        sub = units.concentration_um(item.substrate_conc, mw, field=f"{prefix}.substrate_conc") if item.substrate_conc else None
+                        sub = (
+                            units.concentration_um(item.substrate_conc, mw, field=f"{prefix}.substrate_conc")
+                            if item.substrate_conc
+                            else None
+                        )
                         km = units.concentration_um(item.km, mw, field=f"{prefix}.km") if item.km else None
                         route = (item.mechanism, sub, km, item.alpha)
             self._consts.append(
@@ -361,13 +377,19 @@ class ScenarioModel:
                     ki=ki_path,
                     ic50_route=route,
                     fu_inc=add(f"{prefix}.fu_inc", f"fu,inc of {who}", "", "fraction", c.fu_inc),
-                    kinact=add(f"{prefix}.kinact", f"kinact of {who}", "1/h", "rate", c.kinact_per_h) if c.kinact_per_h is not None else None,
+                    kinact=add(f"{prefix}.kinact", f"kinact of {who}", "1/h", "rate", c.kinact_per_h)
+                    if c.kinact_per_h is not None
+                    else None,
                     ki_inact=add(f"{prefix}.ki_inact", f"KI of {who}", "uM", "concentration", c.ki_inact_u_um, mw)
-                    if c.ki_inact_u_um is not None else None,
+                    if c.ki_inact_u_um is not None
+                    else None,
                     emax=add(f"{prefix}.emax", f"Emax of {who}", "", "number", c.emax) if c.emax is not None else None,
-                    ec50=add(f"{prefix}.ec50", f"EC50 of {who}", "uM", "concentration", c.ec50_u_um, mw) if c.ec50_u_um is not None else None,
+                    ec50=add(f"{prefix}.ec50", f"EC50 of {who}", "uM", "concentration", c.ec50_u_um, mw)
+                    if c.ec50_u_um is not None
+                    else None,
                     calibration=add(f"{prefix}.calibration", f"Induction calibration d of {who}", "", "number", c.calibration)
-                    if c.emax is not None else f"{prefix}.calibration",
+                    if c.emax is not None
+                    else f"{prefix}.calibration",
                 )
             )
 
@@ -391,8 +413,7 @@ class ScenarioModel:
         self._by_path = {i.path: i for i in inputs}
         self._point: dict[str, float] = {i.path: i.value for i in inputs}
         self._relevant = tuple(
-            i for i in inputs
-            if not any(i.path.startswith(c.prefix + ".") and c.target not in relevant_targets for c in self._consts)
+            i for i in inputs if not any(i.path.startswith(c.prefix + ".") and c.target not in relevant_targets for c in self._consts)
         )
 
     # -- what can vary
@@ -432,10 +453,19 @@ class ScenarioModel:
             if sp.parent and self._oral:
                 dose, ka = get("perpetrator.dose"), get("perpetrator.ka")
                 liver_conc.append(
-                    unbound_inlet_um(cmax, fu, dose, get("perpetrator.fa_fg"), ka, get("physiology.hepatic_blood_flow"),
-                                     get("perpetrator.blood_plasma_ratio"))
+                    unbound_inlet_um(
+                        cmax,
+                        fu,
+                        dose,
+                        get("perpetrator.fa_fg"),
+                        ka,
+                        get("physiology.hepatic_blood_flow"),
+                        get("perpetrator.blood_plasma_ratio"),
+                    )
                 )
-                gut_conc.append(enterocyte_um(dose, get("perpetrator.fa"), ka, get("physiology.enterocytic_blood_flow"), get("physiology.fu_gut")))
+                gut_conc.append(
+                    enterocyte_um(dose, get("perpetrator.fa"), ka, get("physiology.enterocytic_blood_flow"), get("physiology.fu_gut"))
+                )
             else:
                 imax_u = unbound_cmax_um(cmax, fu)
                 liver_conc.append(imax_u)
@@ -498,8 +528,12 @@ class ScenarioModel:
         cand = dose_candidates([strengths])[0]
         r = np.asarray(total, dtype=float)
         codes = dose_action_codes_by_victim(
-            r.reshape(-1, 1), usual_dose=np.array([d.usual_dose]), interval_h=np.array([d.usual_interval_h]),
-            candidates=cand[None, :], lower=np.array([d.boundary[0]]), upper=np.array([d.boundary[1]]),
+            r.reshape(-1, 1),
+            usual_dose=np.array([d.usual_dose]),
+            interval_h=np.array([d.usual_interval_h]),
+            candidates=cand[None, :],
+            lower=np.array([d.boundary[0]]),
+            upper=np.array([d.boundary[1]]),
             narrow_therapeutic_index=np.array([self.assessment.scenario.victim.narrow_therapeutic_index]),
         )
         return codes.reshape(r.shape)
@@ -613,9 +647,7 @@ def _resolve(model: ScenarioModel, vary: Sequence[tuple[str, str]]) -> list[tupl
     return out
 
 
-def _draw(
-    pairs: list[tuple[Input, Distribution]], n: int, method: str, seed: int
-) -> dict[str, NDArray[np.float64]]:
+def _draw(pairs: list[tuple[Input, Distribution]], n: int, method: str, seed: int) -> dict[str, NDArray[np.float64]]:
     rng = np.random.default_rng(seed)
     drawn: dict[str, NDArray[np.float64]] = {}
     active = [(i, d) for i, d in pairs if d.kind != "fixed"]
@@ -733,11 +765,14 @@ def summarise(
     ts = np.sort(total)
     pg, pl, pt = (np.percentile(x, PERCENTS) for x in (gut, liver, ts))
     percentiles = tuple((q, float(pg[k]), float(pl[k]), float(pt[k])) for k, q in enumerate(PERCENTS))
-    exceed = [(">=", b.bound, float(n - np.searchsorted(ts, b.bound, side="left")) / n)
-              for b in sorted(classes.inhibition, key=lambda b: b.bound)]
+    exceed = [
+        (">=", b.bound, float(n - np.searchsorted(ts, b.bound, side="left")) / n) for b in sorted(classes.inhibition, key=lambda b: b.bound)
+    ]
     if "induction" in assessment.prediction.mechanisms or float(ts[0]) < 1.0:
-        exceed += [("<=", b.bound, float(np.searchsorted(ts, b.bound, side="right")) / n)
-                   for b in sorted(classes.induction, key=lambda b: -b.bound)]
+        exceed += [
+            ("<=", b.bound, float(np.searchsorted(ts, b.bound, side="right")) / n)
+            for b in sorted(classes.induction, key=lambda b: -b.bound)
+        ]
     labels = band_labels(classes)
     codes = band_codes(ts, classes)
     counts = np.bincount(codes, minlength=len(labels))
@@ -919,8 +954,10 @@ def crossing_points(model: ScenarioModel) -> tuple[CrossingPoint, ...]:
         lo_x, hi_x = math.log(now) - 30.0, math.log(now) + 30.0
         if g(lo_x) * g(hi_x) > 0:
             side = "above" if point >= boundary else "below"
-            sentence = (f"Changing only the {name} of {c.species} on {c.target} cannot bring the AUC ratio to {boundary:g}: "
-                        f"it stays {side} for any value from {now * math.exp(-30):.3g} to {now * math.exp(30):.3g} uM.")
+            sentence = (
+                f"Changing only the {name} of {c.species} on {c.target} cannot bring the AUC ratio to {boundary:g}: "
+                f"it stays {side} for any value from {now * math.exp(-30):.3g} to {now * math.exp(30):.3g} uM."
+            )
             out.append(CrossingPoint(input=inp, boundary=boundary, value=None, now=now, sentence=sentence))
             continue
         x = math.exp(brentq(g, lo_x, hi_x, xtol=1e-12, rtol=1e-10))
@@ -929,12 +966,16 @@ def crossing_points(model: ScenarioModel) -> tuple[CrossingPoint, ...]:
         unbound_x = float(np.multiply(ki_from_ic50(x, *c.ic50_route) if c.ic50_route else x, fu))
         if boundary == upper:
             if point < upper:
-                sentence = (f"The AUC ratio stays below {upper:g} as long as the {name} of {c.species} on {c.target} "
-                            f"exceeds {x:.3g} uM (Ki,u {unbound_x:.3g} uM); it is {now:.3g} uM "
-                            f"(Ki,u {unbound_now:.3g} uM), a margin of {now / x:.3g}-fold.")
+                sentence = (
+                    f"The AUC ratio stays below {upper:g} as long as the {name} of {c.species} on {c.target} "
+                    f"exceeds {x:.3g} uM (Ki,u {unbound_x:.3g} uM); it is {now:.3g} uM "
+                    f"(Ki,u {unbound_now:.3g} uM), a margin of {now / x:.3g}-fold."
+                )
             else:
-                sentence = (f"The AUC ratio would fall to {upper:g} only if the {name} of {c.species} on {c.target} rose to {x:.3g} uM "
-                            f"(Ki,u {unbound_x:.3g} uM) from {now:.3g} uM ({x / now:.3g}-fold).")
+                sentence = (
+                    f"The AUC ratio would fall to {upper:g} only if the {name} of {c.species} on {c.target} rose to {x:.3g} uM "
+                    f"(Ki,u {unbound_x:.3g} uM) from {now:.3g} uM ({x / now:.3g}-fold)."
+                )
         else:
             sentence = f"The AUC ratio crosses {boundary:g} ({word} is outside) at {name} {x:.3g} uM for {inp.label}; it is {now:.3g} uM."
         out.append(CrossingPoint(input=inp, boundary=boundary, value=x, now=now, sentence=sentence))
@@ -957,10 +998,15 @@ def crossing_points(model: ScenarioModel) -> tuple[CrossingPoint, ...]:
                 sentence = f"The AUC ratio reaches {boundary:g} at fm {enzyme} = {x:.3g}; it is {inp.value:.3g}."
             out.append(CrossingPoint(input=inp, boundary=boundary, value=x, now=inp.value, sentence=sentence))
         else:
-            out.append(CrossingPoint(
-                input=inp, boundary=boundary, value=None, now=inp.value,
-                sentence=f"No fm {enzyme} between 0 and {cap:.3g} brings the AUC ratio to {boundary:g}.",
-            ))
+            out.append(
+                CrossingPoint(
+                    input=inp,
+                    boundary=boundary,
+                    value=None,
+                    now=inp.value,
+                    sentence=f"No fm {enzyme} between 0 and {cap:.3g} brings the AUC ratio to {boundary:g}.",
+                )
+            )
     return tuple(out)
 
 
@@ -981,8 +1027,9 @@ def sensitivity(assessment: Assessment, vary: Sequence[tuple[str, str]] = ()) ->
         others = sum(model.point(p) for _, p in model._pathways if p != path)
         grid = np.linspace(0.0, max(0.0, 1.0 - others), 101)
         tot = np.broadcast_to(model.evaluate({path: grid}).total, grid.shape)
-        curves.append(FmCurve(label=f"this scenario (fm {enzyme} varied)", fm=tuple(float(x) for x in grid),
-                              aucr=tuple(float(x) for x in tot)))
+        curves.append(
+            FmCurve(label=f"this scenario (fm {enzyme} varied)", fm=tuple(float(x) for x in grid), aucr=tuple(float(x) for x in tot))
+        )
     return Sensitivity(
         point_total=assessment.prediction.total,
         bars=bars,

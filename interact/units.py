@@ -135,7 +135,7 @@ def parse_fraction(text: object, *, field: str, allow_zero: bool = False, upper:
     The value must lie in (0, upper] (or [0, upper] with ``allow_zero``).
     """
     span = f"[0, {upper:g}]" if allow_zero else f"(0, {upper:g}]"
-    wanted = f"expected a number in {span} (a fraction, or a percentage such as \"2 %\")"
+    wanted = f'expected a number in {span} (a fraction, or a percentage such as "2 %")'
     value: float
     if isinstance(text, bool):
         raise UnitError(field, text, f"is not a number; {wanted}")
@@ -160,9 +160,7 @@ def magnitude(quantity: pint.Quantity, unit: str) -> float:
     return float(quantity.magnitude) * _factor(quantity._units, unit)
 
 
-def concentration_um(
-    quantity: pint.Quantity, molar_mass: pint.Quantity | None, *, field: str
-) -> float:
+def concentration_um(quantity: pint.Quantity, molar_mass: pint.Quantity | None, *, field: str) -> float:
     """A concentration in micromolar; a mass concentration needs the molar mass."""
     dims = quantity.dimensionality
     if dims == _DIM("[substance]/[length]**3"):
@@ -171,8 +169,7 @@ def concentration_um(
         raise UnitError(
             field,
             format_quantity(quantity),
-            "is a mass concentration; give the compound's molar_mass (e.g. \"452.5 g/mol\") "
-            "or a molar value such as \"1.8 uM\"",
+            'is a mass concentration; give the compound\'s molar_mass (e.g. "452.5 g/mol") or a molar value such as "1.8 uM"',
         )
     per = _ratio_factor(quantity._units, molar_mass._units, "uM")
     return float(quantity.magnitude) / float(molar_mass.magnitude) * per
@@ -186,7 +183,7 @@ def amount_umol(quantity: pint.Quantity, molar_mass: pint.Quantity | None, *, fi
         raise UnitError(
             field,
             format_quantity(quantity),
-            "is a mass; give the compound's molar_mass (e.g. \"452.5 g/mol\") or an amount in umol",
+            'is a mass; give the compound\'s molar_mass (e.g. "452.5 g/mol") or an amount in umol',
         )
     per = _ratio_factor(quantity._units, molar_mass._units, "umol")
     return float(quantity.magnitude) / float(molar_mass.magnitude) * per
@@ -242,16 +239,26 @@ def _parse_text(text: str, field: str, wanted: str) -> pint.Quantity:
     if not unit_text:
         raise UnitError(field, text, f"has no unit; {wanted}")
     if not _UNIT_CHARS.match(unit_text):
-        raise UnitError(field, text, f"has an unreadable unit \"{unit_text}\"; {wanted}")
+        raise UnitError(field, text, f'has an unreadable unit "{unit_text}"; {wanted}')
     normal = _DASH_POWER.sub(r"\1**-\2", unit_text.replace("^", "**"))
     try:
         unit = _unit(normal)
     except pint.UndefinedUnitError as exc:
         names = ", ".join(f'"{n}"' for n in getattr(exc, "unit_names", ())) or f'"{unit_text}"'
         raise UnitError(field, text, f"has an unknown unit {names}; {wanted}") from None
-    except (pint.PintError, SyntaxError, ValueError, TypeError, AttributeError, KeyError, OverflowError,
-            AssertionError, IndexError, tokenize.TokenError):  # pint's parser asserts on text such as "ng/"
-        raise UnitError(field, text, f"has an unreadable unit \"{unit_text}\"; {wanted}") from None
+    except (
+        pint.PintError,
+        SyntaxError,
+        ValueError,
+        TypeError,
+        AttributeError,
+        KeyError,
+        OverflowError,
+        AssertionError,
+        IndexError,
+        tokenize.TokenError,
+    ):  # pint's parser asserts on text such as "ng/"
+        raise UnitError(field, text, f'has an unreadable unit "{unit_text}"; {wanted}') from None
     return Quantity(float(number), unit)
 
 

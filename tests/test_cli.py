@@ -14,8 +14,16 @@ from interact.cli import main
 def test_demo_text(capsys: pytest.CaptureFixture[str]) -> None:
     assert main(["demo"]) == 0
     out = capsys.readouterr().out
-    for heading in ("SUMMARY", "INPUTS", "PERPETRATOR CONCENTRATIONS", "BASIC STATIC MODELS", "MECHANISTIC STATIC MODEL",
-                    "DOSE SUGGESTION", "CAUTIONS", "PROVENANCE"):
+    for heading in (
+        "SUMMARY",
+        "INPUTS",
+        "PERPETRATOR CONCENTRATIONS",
+        "BASIC STATIC MODELS",
+        "MECHANISTIC STATIC MODEL",
+        "DOSE SUGGESTION",
+        "CAUTIONS",
+        "PROVENANCE",
+    ):
         assert heading in out
     assert "not clinical advice" in out
     assert "INVENTED" in out

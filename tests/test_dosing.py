@@ -7,8 +7,8 @@ restores exposure is dose / AUCR; the interval that does is tau x AUCR.
 from __future__ import annotations
 
 import pytest
-
 from conftest import base_dict
+
 from interact import assess
 from interact.cautions import DOSE_CAUTIONS, INCREASE_CAUTION
 from interact.dosing import fm_from_observed_ratio, suggest_dose
@@ -18,8 +18,14 @@ from interact.scenario import scenario_from_dict
 
 def _suggest(aucr: float, strengths=(2.5, 5.0, 10.0), nti: bool = False):
     return suggest_dose(
-        auc_ratio=aucr, usual_dose=10.0, dose_unit="mg", interval_h=24.0, strengths=strengths,
-        boundary=(0.8, 1.25), boundary_origin="test", narrow_therapeutic_index=nti,
+        auc_ratio=aucr,
+        usual_dose=10.0,
+        dose_unit="mg",
+        interval_h=24.0,
+        strengths=strengths,
+        boundary=(0.8, 1.25),
+        boundary_origin="test",
+        narrow_therapeutic_index=nti,
     )
 
 
@@ -71,7 +77,11 @@ def test_fm_back_calculation() -> None:
     assert fm_from_observed_ratio(5.0) == pytest.approx(0.8)
     assert fm_from_observed_ratio(10.0, gut_ratio=2.0) == pytest.approx(0.8)
     assert fm_from_observed_ratio(5.0, remaining_activity=0.1) == pytest.approx(0.8 / 0.9)
-    for kwargs in ({"observed_ratio": 0.5}, {"observed_ratio": 20.0, "remaining_activity": 0.5}, {"observed_ratio": 2.0, "gut_ratio": 3.0}):
+    for kwargs in (
+        {"observed_ratio": 0.5},
+        {"observed_ratio": 20.0, "remaining_activity": 0.5},
+        {"observed_ratio": 2.0, "gut_ratio": 3.0},
+    ):
         with pytest.raises(InputError):
             fm_from_observed_ratio(**kwargs)
 

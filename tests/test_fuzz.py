@@ -5,10 +5,10 @@ from __future__ import annotations
 import math
 from typing import Any
 
+from conftest import base_dict
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from conftest import base_dict
 from interact import assess
 from interact.errors import InputError, ScenarioError
 from interact.scenario import loads_scenario, scenario_from_dict
@@ -16,23 +16,48 @@ from interact.scenario import loads_scenario, scenario_from_dict
 HOSTILE = st.one_of(
     st.none(),
     st.booleans(),
-    st.integers(-10**30, 10**30),
+    st.integers(-(10**30), 10**30),
     st.floats(allow_nan=True, allow_infinity=True),
     st.text(max_size=30),
-    st.sampled_from(["1 uM", "nan uM", "inf mg", "-5 mg", "1e308 uM", "1 kg", "0 L/h", "x" * 5000, "<script>", "1 uM**99", "()", "1 1/1/1"]),
+    st.sampled_from(
+        ["1 uM", "nan uM", "inf mg", "-5 mg", "1e308 uM", "1 kg", "0 L/h", "x" * 5000, "<script>", "1 uM**99", "()", "1 1/1/1"]
+    ),
     st.lists(st.integers(), max_size=3),
     st.dictionaries(st.text(max_size=5), st.integers(), max_size=2),
 )
 
 PATHS = [
-    ("title",), ("rules",), ("invented",),
-    ("perpetrator",), ("perpetrator", "dose"), ("perpetrator", "cmax"), ("perpetrator", "fu_plasma"), ("perpetrator", "molar_mass"),
-    ("perpetrator", "ka"), ("perpetrator", "fa_fg"), ("perpetrator", "blood_plasma_ratio"), ("perpetrator", "route"),
-    ("perpetrator", "inhibits"), ("perpetrator", "inhibits", 0, "ki"), ("perpetrator", "inhibits", 0, "target"),
-    ("perpetrator", "inhibits", 0, "fu_inc"), ("perpetrator", "inhibits", 0, "mechanism"), ("perpetrator", "metabolites"),
-    ("victim",), ("victim", "dose"), ("victim", "interval"), ("victim", "fg"), ("victim", "strengths"),
-    ("victim", "pathways"), ("victim", "pathways", 0, "fm"), ("victim", "pathways", 0, "enzyme"), ("victim", "no_effect_boundary"),
-    ("physiology",), ("physiology", "hepatic_blood_flow"), ("unknown_key",), ("victim", "surprise"),
+    ("title",),
+    ("rules",),
+    ("invented",),
+    ("perpetrator",),
+    ("perpetrator", "dose"),
+    ("perpetrator", "cmax"),
+    ("perpetrator", "fu_plasma"),
+    ("perpetrator", "molar_mass"),
+    ("perpetrator", "ka"),
+    ("perpetrator", "fa_fg"),
+    ("perpetrator", "blood_plasma_ratio"),
+    ("perpetrator", "route"),
+    ("perpetrator", "inhibits"),
+    ("perpetrator", "inhibits", 0, "ki"),
+    ("perpetrator", "inhibits", 0, "target"),
+    ("perpetrator", "inhibits", 0, "fu_inc"),
+    ("perpetrator", "inhibits", 0, "mechanism"),
+    ("perpetrator", "metabolites"),
+    ("victim",),
+    ("victim", "dose"),
+    ("victim", "interval"),
+    ("victim", "fg"),
+    ("victim", "strengths"),
+    ("victim", "pathways"),
+    ("victim", "pathways", 0, "fm"),
+    ("victim", "pathways", 0, "enzyme"),
+    ("victim", "no_effect_boundary"),
+    ("physiology",),
+    ("physiology", "hepatic_blood_flow"),
+    ("unknown_key",),
+    ("victim", "surprise"),
 ]
 
 

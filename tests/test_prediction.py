@@ -4,10 +4,10 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
+from conftest import base_dict
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from conftest import base_dict
 from interact import assess
 from interact.prediction import gut_ratio, liver_ratio, reversible_term
 from interact.scenario import scenario_from_dict
@@ -103,8 +103,12 @@ def test_two_pathways_and_ratio_function_agree() -> None:
     c = a.constants
     kdeg = {}
     f = ratio_function(
-        pathways=tuple((e.enzyme, e.fm) for e in a.prediction.effects), fg=0.5, gut_enzyme="CYP3A",
-        constants=c, species=a.species, kdeg=kdeg,
+        pathways=tuple((e.enzyme, e.fm) for e in a.prediction.effects),
+        fg=0.5,
+        gut_enzyme="CYP3A",
+        constants=c,
+        species=a.species,
+        kdeg=kdeg,
     )
     assert f(1.0) == pytest.approx(a.prediction.total, rel=1e-12)
     assert f(0.0) == pytest.approx(1.0)

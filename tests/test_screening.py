@@ -12,8 +12,8 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
-
 from conftest import base_dict, read_checks
+
 from interact import assess
 from interact.scenario import scenario_from_dict
 from interact.tables import load_rules

@@ -8,7 +8,16 @@ from pathlib import Path
 import pytest
 
 from interact.errors import InputError
-from interact.tables import STATUSES, load_classes, load_physiology, load_rules, load_targets, resolve_target, rule_set_names, tables_dir
+from interact.tables import (
+    STATUSES,
+    load_classes,
+    load_physiology,
+    load_rules,
+    load_targets,
+    resolve_target,
+    rule_set_names,
+    tables_dir,
+)
 
 
 def _walk(node: object, path: str = ""):

@@ -81,7 +81,12 @@ def test_fraction_errors(bad: object) -> None:
 
 
 def test_format_round_trip() -> None:
-    for text, kind in (("812 ng/mL", "concentration"), ("0.1 1/min", "rate"), ("1.617 L/min", "flow"), ("0.333333 uM", "concentration")):
+    for text, kind in (
+        ("812 ng/mL", "concentration"),
+        ("0.1 1/min", "rate"),
+        ("1.617 L/min", "flow"),
+        ("0.333333 uM", "concentration"),
+    ):
         q = units.parse(text, kind, field="x")
         again = units.parse(units.format_quantity(q), kind, field="x")
         assert units.magnitude(again, str(q.units)) == units.magnitude(q, str(q.units))
@@ -93,6 +98,6 @@ def test_format_round_trip() -> None:
 )
 def test_half_typed_units_are_unit_errors(text: str) -> None:
     """What a user has typed halfway through a unit is a clear UnitError, never a parser crash."""
-    with pytest.raises(UnitError, match="perpetrator.cmax") as info:
+    with pytest.raises(UnitError, match=r"perpetrator\.cmax") as info:
         units.parse(text, "concentration", field="perpetrator.cmax")
     assert info.value.value == text

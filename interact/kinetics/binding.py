@@ -132,9 +132,7 @@ def predict_fu_inc(
             raise InputError("cells (10^6/mL)", n, "must be above zero")
         clo, chi = eq.span("cell_range_million_per_ml")
         if not clo <= n <= chi:
-            warnings.append(
-                f"cell density {n:g} x 10^6/mL is outside {clo:g}-{chi:g} ({eq.item('cell_range_million_per_ml').status})"
-            )
+            warnings.append(f"cell density {n:g} x 10^6/mL is outside {clo:g}-{chi:g} ({eq.item('cell_range_million_per_ml').status})")
         accurate = eq.number("accurate_below_lipophilicity")
         if x > accurate:
             warnings.append(f"logP/D {x:g} is above {accurate:g}, where {eq.title} is less accurate (S17)")

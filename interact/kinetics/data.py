@@ -118,9 +118,7 @@ def incubation_data(
     i = [float(v) for v in inhibitor_um]
     v = [float(x) for x in velocity]
     if not (len(s) == len(i) == len(v)):
-        raise InputError(
-            "data", f"{len(s)}/{len(i)}/{len(v)} values", "need equal numbers of substrate, inhibitor and velocity values"
-        )
+        raise InputError("data", f"{len(s)}/{len(i)}/{len(v)} values", "need equal numbers of substrate, inhibitor and velocity values")
     line_nos = tuple(lines) if lines else tuple(range(1, len(s) + 1))
     dep = None if depletion_pct is None else [float(x) for x in depletion_pct]
     for k in range(len(s)):
@@ -174,9 +172,7 @@ def read_incubation_csv(
     try:
         text = p.read_text(encoding="utf-8-sig")
     except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(
-            "data", str(p), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})"
-        ) from None
+        raise InputError("data", str(p), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
     return parse_incubation_csv(
         text,
         source=p.name,
@@ -209,9 +205,7 @@ def _columns(header: list[str], line: int) -> dict[str, tuple[int, str]]:
         for column, aliases in _ALIASES.items():
             if key in aliases:
                 if column in found:
-                    raise InputError(
-                        f"header (line {line})", cell, f"names the {column} column twice; expected one {column} column"
-                    )
+                    raise InputError(f"header (line {line})", cell, f"names the {column} column twice; expected one {column} column")
                 found[column] = (k, unit)
     return found
 
@@ -249,9 +243,7 @@ def parse_incubation_csv(
     width = max(k for k, _ in cols.values()) + 1
     for line, row in rows[1:]:
         if len(row) < width:
-            raise InputError(
-                f"{source} line {line}", ",".join(row), f"has {len(row)} fields; expected at least {width} (as in the header)"
-            )
+            raise InputError(f"{source} line {line}", ",".join(row), f"has {len(row)} fields; expected at least {width} (as in the header)")
         s_vals.append(_number(row[cols["substrate"][0]], "substrate", line, source) * s_factor)
         i_vals.append(_number(row[cols["inhibitor"][0]], "inhibitor", line, source) * i_factor if "inhibitor" in cols else 0.0)
         v_vals.append(_number(row[cols["velocity"][0]], "velocity", line, source))
@@ -287,9 +279,7 @@ def _unit_factor(column: str, header_unit: str, given: str | None, line: int) ->
     if header_unit and given and header_unit.replace(" ", "") != given.replace(" ", ""):
         raise InputError(f"{column} unit", given, f"differs from the unit in the header (line {line}): '{header_unit}'")
     if not unit:
-        raise InputError(
-            f"{column} unit", "none", f"is not stated; put it in the header like '{column} (uM)' or pass --{column}-unit uM"
-        )
+        raise InputError(f"{column} unit", "none", f"is not stated; put it in the header like '{column} (uM)' or pass --{column}-unit uM")
     try:
         q = units.parse(f"1 {unit}", "molar_concentration", field=f"{column} unit")
     except UnitError:
@@ -328,9 +318,7 @@ def read_ic50_csv(path: str | Path, *, inhibitor_unit: str | None = None) -> IC5
     try:
         text = p.read_text(encoding="utf-8-sig")
     except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(
-            "data", str(p), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})"
-        ) from None
+        raise InputError("data", str(p), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
     return parse_ic50_csv(text, source=p.name, inhibitor_unit=inhibitor_unit)
 
 
@@ -354,9 +342,7 @@ def parse_ic50_csv(text: str, *, source: str = "data", inhibitor_unit: str | Non
     xs, ys, lines = [], [], []
     for line, row in rows[1:]:
         if len(row) < width:
-            raise InputError(
-                f"{source} line {line}", ",".join(row), f"has {len(row)} fields; expected at least {width} (as in the header)"
-            )
+            raise InputError(f"{source} line {line}", ",".join(row), f"has {len(row)} fields; expected at least {width} (as in the header)")
         x = _number(row[cols["inhibitor"][0]], "inhibitor", line, source) * factor
         if x < 0:
             raise InputError(f"{source} line {line}, inhibitor", row[cols["inhibitor"][0]], "must not be negative")
@@ -365,6 +351,4 @@ def parse_ic50_csv(text: str, *, source: str = "data", inhibitor_unit: str | Non
         lines.append(line)
     if not lines:
         raise InputError(source, "no data rows", "expected rows of inhibitor and response under the header")
-    return IC50Data(
-        inhibitor_um=tuple(xs), response=tuple(ys), response_unit=cols[resp_key][1], lines=tuple(lines), source=source
-    )
+    return IC50Data(inhibitor_um=tuple(xs), response=tuple(ys), response_unit=cols[resp_key][1], lines=tuple(lines), source=source)

@@ -82,16 +82,12 @@ def double_reciprocal_data(comp: ModelComparison, model: str | None = None) -> P
     series: list[Series] = []
     for level in comp.data.inhibitor_levels:
         sel = ok & (i == level)
-        series.append(
-            Series(label=f"I = {_fmt(level)} uM", x=tuple(1.0 / s[sel]), y=tuple(1.0 / v[sel]), kind="points", level_um=level)
-        )
+        series.append(Series(label=f"I = {_fmt(level)} uM", x=tuple(1.0 / s[sel]), y=tuple(1.0 / v[sel]), kind="points", level_um=level))
     for level in comp.data.inhibitor_levels:
         slope = km * (1.0 + level * kc) / vmax
         icpt = (1.0 + level * ku) / vmax
         xs = (xmin, xmax)
-        series.append(
-            Series(label=f"fit, I = {_fmt(level)} uM", x=xs, y=tuple(icpt + slope * x for x in xs), kind="line", level_um=level)
-        )
+        series.append(Series(label=f"fit, I = {_fmt(level)} uM", x=xs, y=tuple(icpt + slope * x for x in xs), kind="line", level_um=level))
     hint = {
         "competitive": "competitive: lines meet on the 1/v axis",
         "noncompetitive": "noncompetitive: lines meet on the 1/S axis",
@@ -123,18 +119,14 @@ def dixon_data(comp: ModelComparison, model: str | None = None) -> PlotData:
         if level <= 0:
             continue
         sel = ok & (s == level)
-        series.append(
-            Series(label=f"S = {_fmt(level)} uM", x=tuple(i[sel]), y=tuple(1.0 / v[sel]), kind="points", level_um=level)
-        )
+        series.append(Series(label=f"S = {_fmt(level)} uM", x=tuple(i[sel]), y=tuple(1.0 / v[sel]), kind="points", level_um=level))
     for level in comp.data.substrate_levels:
         if level <= 0:
             continue
         icpt = (km / level + 1.0) / vmax
         slope = (km * kc / level + ku) / vmax
         xs = (xmin, imax)
-        series.append(
-            Series(label=f"fit, S = {_fmt(level)} uM", x=xs, y=tuple(icpt + slope * x for x in xs), kind="line", level_um=level)
-        )
+        series.append(Series(label=f"fit, S = {_fmt(level)} uM", x=xs, y=tuple(icpt + slope * x for x in xs), kind="line", level_um=level))
     return PlotData(
         kind="dixon",
         title=f"Dixon ({name} fit)",
@@ -155,9 +147,7 @@ def residual_data(comp: ModelComparison, model: str | None = None) -> PlotData:
     series = []
     for level in comp.data.inhibitor_levels:
         sel = i == level
-        series.append(
-            Series(label=f"I = {_fmt(level)} uM", x=tuple(fitted[sel]), y=tuple(resid[sel]), kind="points", level_um=level)
-        )
+        series.append(Series(label=f"I = {_fmt(level)} uM", x=tuple(fitted[sel]), y=tuple(resid[sel]), kind="points", level_um=level))
     lo, hi = (float(fitted.min()), float(fitted.max())) if fitted.size else (0.0, 1.0)
     series.append(Series(label="zero", x=(lo, hi), y=(0.0, 0.0), kind="line"))
     unit = comp.data.velocity_unit or "data units"

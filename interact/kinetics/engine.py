@@ -449,9 +449,7 @@ def _scipy_fallback(prob: _Problem, u0: Array, lo: Array, hi: Array) -> _Solutio
         return _Solution(u0, math.inf, False, f"scipy least_squares failed: {exc}", 0)
     r = prob.resid(res.x)
     cost = float(r @ r) if np.all(np.isfinite(r)) else math.inf
-    return _Solution(
-        np.asarray(res.x, dtype=float), cost, bool(res.success) and math.isfinite(cost), str(res.message), int(res.nfev)
-    )
+    return _Solution(np.asarray(res.x, dtype=float), cost, bool(res.success) and math.isfinite(cost), str(res.message), int(res.nfev))
 
 
 # --------------------------------------------------------------------------- profile
@@ -601,9 +599,7 @@ def fit_curve(
         raise InputError("data", f"{n} observations", f"are too few for the {model.name} model; expected more than {p}")
     if weights in ("1/y", "1/y2", "poisson") and np.any(yv <= 0):
         bad = int(np.flatnonzero(yv <= 0)[0])
-        raise InputError(
-            "weights", weights, f"needs positive observations; observation {bad + 1} is {yv[bad]:g} (use weights none)"
-        )
+        raise InputError("weights", weights, f"needs positive observations; observation {bad + 1} is {yv[bad]:g} (use weights none)")
     if not 0 < level < 1:
         raise InputError("level", level, "is not between 0 and 1")
     lo = np.asarray(model.lower, dtype=float) if model.lower else np.full(p, -np.inf)
@@ -802,9 +798,7 @@ def _estimate(
     )
 
 
-def _failed(
-    model: CurveModel, prob: _Problem, u: Array, weights: str, n: int, p: int, df: int, message: str, level: float
-) -> FitResult:
+def _failed(model: CurveModel, prob: _Problem, u: Array, weights: str, n: int, p: int, df: int, message: str, level: float) -> FitResult:
     with np.errstate(all="ignore"):
         fitted = prob.fitted(u)
     inf = math.inf
@@ -813,9 +807,7 @@ def _failed(
         equation=model.equation,
         success=False,
         message=message,
-        estimates=tuple(
-            Estimate(name=model.shown_name(j), value=float(u[j]), identifiable=False, note="fit failed") for j in range(p)
-        ),
+        estimates=tuple(Estimate(name=model.shown_name(j), value=float(u[j]), identifiable=False, note="fit failed") for j in range(p)),
         weights=weights,
         n=n,
         n_params=p,

@@ -200,9 +200,7 @@ def inhibition_model(
     """
     if name not in MODELS:
         raise InputError("models", name, f"is not one of {', '.join(MODELS)}")
-    const = {"none": (), "competitive": ("Ki",), "noncompetitive": ("Ki",), "uncompetitive": ("Ki",), "mixed": ("Kic", "Kiu")}[
-        name
-    ]
+    const = {"none": (), "competitive": ("Ki",), "noncompetitive": ("Ki",), "uncompetitive": ("Ki",), "mixed": ("Kic", "Kiu")}[name]
     p = 2 + len(const)
     return CurveModel(
         name=name,
@@ -543,9 +541,7 @@ def fit_substrate_inhibition(data: IncubationData, *, weights: str = "none") -> 
     model = _substrate_model(data.velocity_unit)
     starts = [(vmax, km, 0.1 / float(np.max(sb))), (vmax, km, 1.0 / float(np.max(sb)))]
     sub = fit_curve(model, sb, vb, starts, weights=weights)
-    mm = fit_curve(
-        inhibition_model("none", data.velocity_unit), np.vstack((sb, np.zeros_like(sb))), vb, [(vmax, km)], weights=weights
-    )
+    mm = fit_curve(inhibition_model("none", data.velocity_unit), np.vstack((sb, np.zeros_like(sb))), vb, [(vmax, km)], weights=weights)
     if not (sub.success and mm.success) or sub.df < 1:
         return sub, None
     return sub, _f_test("none", mm, "substrate-inhibition", sub)
@@ -687,9 +683,7 @@ def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests
                 )
     if notes:
         text += " " + " ".join(notes)
-    return Verdict(
-        model=chosen, mechanism=chosen, strength=strength, support=support, text=text, unidentifiable=tuple(unidentifiable)
-    )
+    return Verdict(model=chosen, mechanism=chosen, strength=strength, support=support, text=text, unidentifiable=tuple(unidentifiable))
 
 
 def _strength(weight: float) -> str:
@@ -741,9 +735,7 @@ def _design_warnings(
     if not np.any(i == 0):
         out.append("No control rows without inhibitor: the uninhibited curve is not measured directly.")
     if levels.size < 3:
-        out.append(
-            f"Only {levels.size} inhibitor level(s) above zero; at least 3 spanning Ki are common practice for a reliable Ki."
-        )
+        out.append(f"Only {levels.size} inhibitor level(s) above zero; at least 3 spanning Ki are common practice for a reliable Ki.")
     est = None
     if chosen is not None:
         for name in ("Ki", "Kic", "Kiu"):
@@ -773,9 +765,7 @@ def _design_warnings(
         flagged = np.flatnonzero(np.abs(t) > OUTLIER_T)
         if flagged.size:
             detail = "; ".join(f"line {data.line_of(k)}: v = {v[k]:g}, t = {t[k]:.1f}" for k in flagged[:6])
-            out.append(
-                f"Possible outlier(s) by externally studentised residual |t| > {OUTLIER_T:g} in the {chosen.model} fit: {detail}."
-            )
+            out.append(f"Possible outlier(s) by externally studentised residual |t| > {OUTLIER_T:g} in the {chosen.model} fit: {detail}.")
     if sub_fit is not None and sub_test is not None and sub_test.significant and math.isfinite(sub_fit.value("Ksi")):
         out.append(
             f"Velocity falls at high substrate without inhibitor: substrate inhibition (Ksi {sub_fit.value('Ksi'):.3g} uM, "

@@ -142,13 +142,10 @@ class IC50Fit:
         levels = np.unique(x[x > 0])
         if levels.size and (ic50 > levels.max() or ic50 < levels.min()):
             out.append(
-                f"IC50 {ic50:.3g} uM lies outside the tested range {levels.min():.3g}-{levels.max():.3g} uM: it is an "
-                f"extrapolation."
+                f"IC50 {ic50:.3g} uM lies outside the tested range {levels.min():.3g}-{levels.max():.3g} uM: it is an extrapolation."
             )
         if levels.size < 5:
-            out.append(
-                f"Only {levels.size} inhibitor level(s) above zero; 5 or more spanning the IC50 are common practice for a curve."
-            )
+            out.append(f"Only {levels.size} inhibitor level(s) above zero; 5 or more spanning the IC50 are common practice for a curve.")
         return tuple(out)
 
 
@@ -188,9 +185,7 @@ def fit_ic50(
         if not math.isfinite(y[k]):
             raise InputError(f"response (row {k + 1})", float(y[k]), "is not a finite number")
     if np.unique(x[x > 0]).size < 3:
-        raise InputError(
-            "inhibitor", f"{np.unique(x[x > 0]).size} level(s)", "are too few; an IC50 curve needs at least 3 positive levels"
-        )
+        raise InputError("inhibitor", f"{np.unique(x[x > 0]).size} level(s)", "are too few; an IC50 curve needs at least 3 positive levels")
     if bottom is not None and not math.isfinite(bottom):
         raise InputError("bottom", bottom, "is not a finite number")
     model = ic50_model(bottom, response_unit)

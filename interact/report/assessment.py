@@ -6,11 +6,11 @@ documented in README.md ("JSON output") and versioned by ``schema``.
 
 from __future__ import annotations
 
-import pint
-
 import json
 import math
 from typing import TYPE_CHECKING, Any
+
+import pint
 
 from .. import units
 from ..assessment import Assessment
@@ -105,13 +105,36 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
     for c in a.constants:
         if c.ki_u_um is not None:
             const_rows.append(
-                (c.target, c.species, f"{fmt(c.ki_um)} uM", c.ki_route, f"{c.fu_inc:g} ({c.fu_inc_origin})", f"{fmt(c.ki_u_um)} uM")
+                (
+                    c.target,
+                    c.species,
+                    f"{fmt(c.ki_um)} uM",
+                    c.ki_route,
+                    f"{c.fu_inc:g} ({c.fu_inc_origin})",
+                    f"{fmt(c.ki_u_um)} uM",
+                )
             )
         if c.kinact_per_h is not None:
-            const_rows.append((c.target, c.species, f"kinact {fmt(c.kinact_per_h)} 1/h", "time-dependent", "-", f"KI,u {fmt(c.ki_inact_u_um)} uM"))
+            const_rows.append(
+                (
+                    c.target,
+                    c.species,
+                    f"kinact {fmt(c.kinact_per_h)} 1/h",
+                    "time-dependent",
+                    "-",
+                    f"KI,u {fmt(c.ki_inact_u_um)} uM",
+                )
+            )
         if c.emax is not None:
             const_rows.append(
-                (c.target, c.species, f"Emax {fmt(c.emax)}, d {c.calibration:g} ({c.calibration_origin})", "induction", "-", f"EC50,u {fmt(c.ec50_u_um)} uM")
+                (
+                    c.target,
+                    c.species,
+                    f"Emax {fmt(c.emax)}, d {c.calibration:g} ({c.calibration_origin})",
+                    "induction",
+                    "-",
+                    f"EC50,u {fmt(c.ec50_u_um)} uM",
+                )
             )
     settings_rows = tuple((st.label, f"{fmt(st.value, 4)} {st.unit}".strip(), _origin(st)) for st in (*a.settings, *a.kdeg_used))
     sections.append(
@@ -179,14 +202,30 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
     for e in pr.effects:
         conc = ", ".join(f"{fmt(cv)}" for _, cv in e.liver.concentration_um) or "-"
         eff_rows.append(
-            (e.enzyme, "liver", f"{e.fm:g}", conc, fmt_ratio(e.liver.reversible), fmt_ratio(e.liver.inactivation),
-             fmt_ratio(e.liver.induction), fmt_ratio(e.liver.activity))
+            (
+                e.enzyme,
+                "liver",
+                f"{e.fm:g}",
+                conc,
+                fmt_ratio(e.liver.reversible),
+                fmt_ratio(e.liver.inactivation),
+                fmt_ratio(e.liver.induction),
+                fmt_ratio(e.liver.activity),
+            )
         )
         if e.gut is not None:
             gconc = ", ".join(f"{fmt(cv)}" for _, cv in e.gut.concentration_um) or "-"
             eff_rows.append(
-                (e.enzyme, "gut", f"Fg {pr.fg_used:g}", gconc, fmt_ratio(e.gut.reversible), fmt_ratio(e.gut.inactivation),
-                 fmt_ratio(e.gut.induction), fmt_ratio(e.gut.activity))
+                (
+                    e.enzyme,
+                    "gut",
+                    f"Fg {pr.fg_used:g}",
+                    gconc,
+                    fmt_ratio(e.gut.reversible),
+                    fmt_ratio(e.gut.inactivation),
+                    fmt_ratio(e.gut.induction),
+                    fmt_ratio(e.gut.activity),
+                )
             )
     ratio_rows = [
         ("gut", fmt_ratio(pr.gut), fmt_ratio(pr.ceiling_gut)),
@@ -225,7 +264,9 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
     dose_blocks: list[str | Table | Note] = [Note(text=f"Suggested action: {d.action}.", kind="result"), *d.reasons, *timing]
     lim = a.perpetrator_limit
     dose_blocks.append(
-        f"Perpetrator dose ceiling: {fmt(lim.dose)} {lim.dose_unit} ({lim.reason})." if lim.dose is not None else f"Perpetrator dose ceiling: {lim.reason}."
+        f"Perpetrator dose ceiling: {fmt(lim.dose)} {lim.dose_unit} ({lim.reason})."
+        if lim.dose is not None
+        else f"Perpetrator dose ceiling: {lim.reason}."
     )
     dose_blocks.extend(Note(text=c) for c in d.cautions)
     sections.append(Section(title="Dose suggestion", blocks=tuple(dose_blocks)))
@@ -260,8 +301,16 @@ def _num(x: float | None) -> float | None:
 
 
 def _setting_dict(s: Setting) -> dict[str, Any]:
-    return {"name": s.name, "label": s.label, "value": s.value, "unit": s.unit, "origin": s.origin,
-            "source": s.source, "status": s.status, "note": s.note}
+    return {
+        "name": s.name,
+        "label": s.label,
+        "value": s.value,
+        "unit": s.unit,
+        "origin": s.origin,
+        "source": s.source,
+        "status": s.status,
+        "note": s.note,
+    }
 
 
 def assessment_to_dict(a: Assessment, time_course: TimeCourse | None = None) -> dict[str, Any]:
@@ -353,10 +402,20 @@ def _assessment_dict(a: Assessment) -> dict[str, Any]:
                 {
                     "enzyme": e.enzyme,
                     "fm": e.fm,
-                    "liver": {"reversible": e.liver.reversible, "inactivation": e.liver.inactivation,
-                              "induction": e.liver.induction, "activity": e.liver.activity},
-                    "gut": None if e.gut is None else {"reversible": e.gut.reversible, "inactivation": e.gut.inactivation,
-                                                       "induction": e.gut.induction, "activity": e.gut.activity},
+                    "liver": {
+                        "reversible": e.liver.reversible,
+                        "inactivation": e.liver.inactivation,
+                        "induction": e.liver.induction,
+                        "activity": e.liver.activity,
+                    },
+                    "gut": None
+                    if e.gut is None
+                    else {
+                        "reversible": e.gut.reversible,
+                        "inactivation": e.gut.inactivation,
+                        "induction": e.gut.induction,
+                        "activity": e.gut.activity,
+                    },
                 }
                 for e in pr.effects
             ],

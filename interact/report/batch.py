@@ -58,8 +58,10 @@ def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *,
         handle.write("\n ]\n}\n")
     elif fmt_name == "markdown":
         handle.write(f"# interact batch screen ({result.rules.id})\n\n> **Caution:** {CAUTION_LINE}\n\n")
-        handle.write(f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
-                     "worst first (largest |log AUCR|).\n\n")
+        handle.write(
+            f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
+            "worst first (largest |log AUCR|).\n\n"
+        )
         shown = ("rank", "perpetrator", "victim", "Iin,max,u (uM)", "AUCR gut", "AUCR liver", "AUCR", "class", "action", "flags")
         idx = [OUTPUT_COLUMNS.index(c) for c in shown]
         handle.write("| " + " | ".join(shown) + " |\n|" + "|".join("---" for _ in shown) + "|\n")

@@ -133,9 +133,7 @@ def fit_sections(
                 blocks=(
                     Table(
                         headers=("reduced", "full", "F", "df", "p"),
-                        rows=tuple(
-                            (t.reduced, t.full, fmt(t.f), f"{t.df_num}, {t.df_den}", f"{t.p_value:.3g}") for t in comp.f_tests
-                        ),
+                        rows=tuple((t.reduced, t.full, fmt(t.f), f"{t.df_num}, {t.df_den}", f"{t.p_value:.3g}") for t in comp.f_tests),
                     ),
                 ),
             )
@@ -204,12 +202,9 @@ def comparison_to_dict(
         "weights": comp.weights,
         "level": comp.level,
         "fits": [_fit_dict(f) for f in comp.fits],
-        "ranking": [
-            {"model": r.model, "aicc": _num(r.aicc), "delta_aicc": _num(r.delta_aicc), "weight": r.weight} for r in comp.ranking
-        ],
+        "ranking": [{"model": r.model, "aicc": _num(r.aicc), "delta_aicc": _num(r.delta_aicc), "weight": r.weight} for r in comp.ranking],
         "f_tests": [
-            {"reduced": t.reduced, "full": t.full, "f": _num(t.f), "df": [t.df_num, t.df_den], "p_value": t.p_value}
-            for t in comp.f_tests
+            {"reduced": t.reduced, "full": t.full, "f": _num(t.f), "df": [t.df_num, t.df_den], "p_value": t.p_value} for t in comp.f_tests
         ],
         "verdict": {
             "model": comp.verdict.model,
@@ -333,8 +328,7 @@ def format_ic50(
         Section(
             title=f"IC50 curve ({f.model})",
             blocks=(
-                f"{result.source or 'data'}: {f.n} rows; {f.equation}; residual SD {fmt(f.residual_sd)} on {f.df} df; "
-                f"{f.message}.",
+                f"{result.source or 'data'}: {f.n} rows; {f.equation}; residual SD {fmt(f.residual_sd)} on {f.df} df; {f.message}.",
                 Table(
                     headers=("parameter", "estimate", "unit", "SE", f"{level} CI (asymptotic)", f"{level} CI (profile)", "note"),
                     rows=tuple(_est_cells(e) for e in f.estimates),

@@ -50,8 +50,12 @@ def _equations(a: Assessment) -> Section:
         ("Igut", "Dose / 250 mL (oral perpetrator)", "S7, S8"),
         ("Iin,max,u", "fu,p x (Cmax + Fa x Fg x ka x Dose / (Qh x Rb))", "S7, S8, S10"),
         ("I,ent", "fu,gut x Fa x ka x Dose / Qent", "from memory"),
-        ("Ki,u", "Ki x fu,inc; from IC50 by Cheng-Prusoff: competitive Ki = IC50 / (1 + [S]/Km), "
-         "uncompetitive Ki = IC50 / (1 + Km/[S]), noncompetitive Ki = IC50", CHENG_PRUSOFF_SOURCE),
+        (
+            "Ki,u",
+            "Ki x fu,inc; from IC50 by Cheng-Prusoff: competitive Ki = IC50 / (1 + [S]/Km), "
+            "uncompetitive Ki = IC50 / (1 + Km/[S]), noncompetitive Ki = IC50",
+            CHENG_PRUSOFF_SOURCE,
+        ),
     ]
     seen: set[str] = set()
     for r in a.screen:
@@ -67,10 +71,19 @@ def _equations(a: Assessment) -> Section:
         ("AUCR", "AUCR gut x AUCR liver", "Fahmi et al. 2008"),
         ("dose restoring exposure", "usual dose / AUCR; or interval x AUCR", "linear pharmacokinetics (common practice)"),
         ("log-normal from CV", "sigma = sqrt(ln(1 + CV^2)), median = the scenario's value", "standard log-normal moments"),
-        ("log-normal from a 95% interval", "median = sqrt(lower x upper), sigma = ln(upper / lower) / (2 x 1.96)", "normal quantiles"),
+        (
+            "log-normal from a 95% interval",
+            "median = sqrt(lower x upper), sigma = ln(upper / lower) / (2 x 1.96)",
+            "normal quantiles",
+        ),
     ]
-    return Section(title="Equations used", blocks=(Table(headers=("quantity", "equation", "source"), rows=tuple(rows)),
-                                                 "Source keys (S1, S7 ...) are listed in README.md and reference_tables/README.md."))
+    return Section(
+        title="Equations used",
+        blocks=(
+            Table(headers=("quantity", "equation", "source"), rows=tuple(rows)),
+            "Source keys (S1, S7 ...) are listed in README.md and reference_tables/README.md.",
+        ),
+    )
 
 
 def _rule_set(a: Assessment) -> Section:
@@ -82,10 +95,16 @@ def _rule_set(a: Assessment) -> Section:
         ("table version", r.table_version, ""),
         ("file", r.path, ""),
         ("fu,p floor", f"{r.fu_plasma_floor.value:g}", f"{r.fu_plasma_floor.source} ({r.fu_plasma_floor.status})"),
-        ("mechanistic-model inhibition cutoff (AUCR >=)", f"{r.aucr_inhibition_cutoff.value:g}",
-         f"{r.aucr_inhibition_cutoff.source} ({r.aucr_inhibition_cutoff.status})"),
-        ("mechanistic-model induction cutoff (AUCR <=)", f"{r.aucr_induction_cutoff.value:g}",
-         f"{r.aucr_induction_cutoff.source} ({r.aucr_induction_cutoff.status})"),
+        (
+            "mechanistic-model inhibition cutoff (AUCR >=)",
+            f"{r.aucr_inhibition_cutoff.value:g}",
+            f"{r.aucr_inhibition_cutoff.source} ({r.aucr_inhibition_cutoff.status})",
+        ),
+        (
+            "mechanistic-model induction cutoff (AUCR <=)",
+            f"{r.aucr_induction_cutoff.value:g}",
+            f"{r.aucr_induction_cutoff.source} ({r.aucr_induction_cutoff.status})",
+        ),
     )
     return Section(title="Rule set", blocks=(Table(headers=("item", "value", "source and status"), rows=rows),))
 
@@ -117,15 +136,31 @@ def report_parts(
         )
         parts.append(ReportPart(section=u, figures=(fig,)))
     else:
-        parts.append(ReportPart(section=Section(title="Uncertainty of the AUC ratio", blocks=(
-            "No input distributions were declared, so no spread is shown: the AUC ratio above is a point estimate. "
-            "Declare them with --vary PATH=SPEC or --spec FILE.toml (see README, 'Uncertainty').",))))
+        parts.append(
+            ReportPart(
+                section=Section(
+                    title="Uncertainty of the AUC ratio",
+                    blocks=(
+                        "No input distributions were declared, so no spread is shown: the AUC ratio above is a point estimate. "
+                        "Declare them with --vary PATH=SPEC or --spec FILE.toml (see README, 'Uncertainty').",
+                    ),
+                )
+            )
+        )
     s = sensitivity_sections(sens)[0]
-    figs = [Figure(svg=tornado_svg(sens.bars, sens.point_total, boundary),
-                   caption="Each input swung on its own; bars run from the AUC ratio at the input's low end to its high end.")]
-    figs.append(Figure(svg=fm_curves_svg(sens.curves, boundary[1]),
-                       caption="Liver AUC ratio against fm for several [I]/Ki,u (reversible inhibition), and this scenario's "
-                               "total AUC ratio as the main pathway's fm varies."))
+    figs = [
+        Figure(
+            svg=tornado_svg(sens.bars, sens.point_total, boundary),
+            caption="Each input swung on its own; bars run from the AUC ratio at the input's low end to its high end.",
+        )
+    ]
+    figs.append(
+        Figure(
+            svg=fm_curves_svg(sens.curves, boundary[1]),
+            caption="Liver AUC ratio against fm for several [I]/Ki,u (reversible inhibition), and this scenario's "
+            "total AUC ratio as the main pathway's fm varies.",
+        )
+    )
     parts.append(ReportPart(section=s, figures=tuple(figs)))
     for sec in base[cut:]:
         if sec.title == "Provenance":
@@ -142,8 +177,12 @@ def report_parts(
         *((f"{k} table", ver) for k, ver in pv.table_versions),
     ]
     if spread is not None:
-        rows.append(("sampling", f"{spread.samples:,} samples, {'Latin hypercube' if spread.method == 'lhs' else 'Monte Carlo'}, "
-                                 f"seed {spread.seed}"))
+        rows.append(
+            (
+                "sampling",
+                f"{spread.samples:,} samples, {'Latin hypercube' if spread.method == 'lhs' else 'Monte Carlo'}, seed {spread.seed}",
+            )
+        )
     parts.append(ReportPart(section=Section(title="Provenance", blocks=(Table(headers=("item", "value"), rows=tuple(rows)),))))
     return parts
 
@@ -191,8 +230,11 @@ def render_report_html(a: Assessment, parts: Sequence[ReportPart]) -> str:
     """A complete, self-contained HTML document; every string from the user is escaped."""
     e = html.escape
     s = a.scenario
-    flag = ("INVENTED scenario: its compounds and values describe no real drug." if s.invented
-            else "Not marked as invented: the values are presented as real data; check each against its source.")
+    flag = (
+        "INVENTED scenario: its compounds and values describe no real drug."
+        if s.invented
+        else "Not marked as invented: the values are presented as real data; check each against its source."
+    )
     out = [
         "<!DOCTYPE html>",
         '<html lang="en">',
@@ -224,8 +266,11 @@ def render_report_html(a: Assessment, parts: Sequence[ReportPart]) -> str:
 def render_report_markdown(a: Assessment, parts: Sequence[ReportPart]) -> str:
     """The report as Markdown: tables as pipe tables, charts as embedded SVG data URIs."""
     s = a.scenario
-    flag = ("**INVENTED scenario**: its compounds and values describe no real drug." if s.invented
-            else "**Not marked as invented**: the values are presented as real data; check each against its source.")
+    flag = (
+        "**INVENTED scenario**: its compounds and values describe no real drug."
+        if s.invented
+        else "**Not marked as invented**: the values are presented as real data; check each against its source."
+    )
     out = [render_markdown([], title=f"interact report: {s.title}").rstrip("\n"), "", flag, ""]
     for part in parts:
         out.append(render_markdown([part.section]).rstrip("\n"))

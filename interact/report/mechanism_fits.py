@@ -13,9 +13,7 @@ from .numbers import fmt
 
 __all__ = ["format_mechanism_fit", "mechanism_fit_to_dict"]
 
-_CAUTION = (
-    "Fitted constants are estimates with uncertainty: check the residuals and the design before carrying them into a prediction."
-)
+_CAUTION = "Fitted constants are estimates with uncertainty: check the residuals and the design before carrying them into a prediction."
 
 
 def _num(x: float | None) -> float | None:

@@ -75,16 +75,18 @@ def tornado_svg(bars: Sequence[TornadoBar], point: float, boundary: tuple[float,
         for end, colour in ((b.aucr_low, _LOW), (b.aucr_high, _HIGH)):
             x0, x1 = sorted((x(point), x(end)))
             out.append(f'<rect x="{x0:.1f}" y="{y + 4}" width="{max(x1 - x0, 1):.1f}" height="{row - 8}" fill="{colour}"/>')
-        out.append(f'<title>{_e(f"{b.input.path}: {fmt(b.low)} to {fmt(b.high)} gives AUCR {fmt_ratio(a0)} to {fmt_ratio(a1)}")}</title>')
+        out.append(f"<title>{_e(f'{b.input.path}: {fmt(b.low)} to {fmt(b.high)} gives AUCR {fmt_ratio(a0)} to {fmt_ratio(a1)}')}</title>")
     out.append(f'<line x1="{x(point):.1f}" y1="{top - 6}" x2="{x(point):.1f}" y2="{bottom}" stroke="{_INK}" stroke-width="1.5"/>')
     out.append(
-        f'<text x="{_W / 2:.0f}" y="{height - 10}" text-anchor="middle" fill="{_INK}">AUC ratio (log scale); point estimate {fmt_ratio(point)}; '
-        f'dashed: no-effect boundary {boundary[0]:g}-{boundary[1]:g}</text>'
+        f'<text x="{_W / 2:.0f}" y="{height - 10}" text-anchor="middle" fill="{_INK}">AUC ratio (log scale); point estimate {fmt_ratio(point)}; '  # noqa: E501
+        f"dashed: no-effect boundary {boundary[0]:g}-{boundary[1]:g}</text>"
     )
-    out.append(f'<rect x="{_W - 170}" y="20" width="10" height="10" fill="{_LOW}"/>'
-               f'<text x="{_W - 156}" y="29" fill="{_INK}">input low</text>'
-               f'<rect x="{_W - 95}" y="20" width="10" height="10" fill="{_HIGH}"/>'
-               f'<text x="{_W - 81}" y="29" fill="{_INK}">input high</text>')
+    out.append(
+        f'<rect x="{_W - 170}" y="20" width="10" height="10" fill="{_LOW}"/>'
+        f'<text x="{_W - 156}" y="29" fill="{_INK}">input low</text>'
+        f'<rect x="{_W - 95}" y="20" width="10" height="10" fill="{_HIGH}"/>'
+        f'<text x="{_W - 81}" y="29" fill="{_INK}">input high</text>'
+    )
     out.append("</svg>")
     return "\n".join(out)
 
@@ -111,7 +113,9 @@ def fm_curves_svg(curves: Sequence[FmCurve], boundary: float = 1.25, title: str 
         out.append(f'<text x="{left - 6}" y="{py(t) + 4:.1f}" text-anchor="end" fill="{_INK}">{t:g}</text>')
     for f in (0.0, 0.25, 0.5, 0.75, 1.0):
         out.append(f'<text x="{px(f):.1f}" y="{top + ph + 16}" text-anchor="middle" fill="{_INK}">{f:g}</text>')
-    out.append(f'<line x1="{left}" y1="{py(boundary):.1f}" x2="{left + pw}" y2="{py(boundary):.1f}" stroke="{_INK}" stroke-dasharray="4 3"/>')
+    out.append(
+        f'<line x1="{left}" y1="{py(boundary):.1f}" x2="{left + pw}" y2="{py(boundary):.1f}" stroke="{_INK}" stroke-dasharray="4 3"/>'
+    )
     out.append(f'<rect x="{left}" y="{top}" width="{pw}" height="{ph}" fill="none" stroke="{_INK}"/>')
     n = len(curves)
     for k, c in enumerate(curves):
@@ -121,18 +125,26 @@ def fm_curves_svg(curves: Sequence[FmCurve], boundary: float = 1.25, title: str 
         pts = " ".join(f"{px(f):.1f},{py(v):.1f}" for f, v in zip(c.fm, c.aucr, strict=True) if v > 0 and math.isfinite(v))
         out.append(f'<polyline points="{pts}" fill="none" stroke="{colour}" stroke-width="{2.5 if mine else 1.2}"/>')
         ly = top + 12 + 15 * k
-        out.append(f'<line x1="{left + pw + 10}" y1="{ly - 4}" x2="{left + pw + 28}" y2="{ly - 4}" stroke="{colour}" '
-                   f'stroke-width="{2.5 if mine else 1.2}"/>')
+        out.append(
+            f'<line x1="{left + pw + 10}" y1="{ly - 4}" x2="{left + pw + 28}" y2="{ly - 4}" stroke="{colour}" '
+            f'stroke-width="{2.5 if mine else 1.2}"/>'
+        )
         label = c.label.replace("this scenario (fm ", "this scenario (").replace(" varied)", ")")
         out.append(f'<text x="{left + pw + 32}" y="{ly}" fill="{_INK}">{_e(label[:22])}</text>')
-    out.append(f'<text x="{left + pw / 2:.0f}" y="{height - 8}" text-anchor="middle" fill="{_INK}">'
-               f'fm of the inhibited pathway; AUC ratio on a log scale; dashed: {boundary:g}</text>')
+    out.append(
+        f'<text x="{left + pw / 2:.0f}" y="{height - 8}" text-anchor="middle" fill="{_INK}">'
+        f"fm of the inhibited pathway; AUC ratio on a log scale; dashed: {boundary:g}</text>"
+    )
     out.append("</svg>")
     return "\n".join(out)
 
 
-def histogram_svg(total: Sequence[float], percentiles: tuple[float, float, float], thresholds: Sequence[float],
-                  title: str = "Sampled AUC ratios") -> str:
+def histogram_svg(
+    total: Sequence[float],
+    percentiles: tuple[float, float, float],
+    thresholds: Sequence[float],
+    title: str = "Sampled AUC ratios",
+) -> str:
     """Histogram of sampled AUC ratios on a log axis, with the 5th/50th/95th percentiles and class thresholds."""
     import numpy as np
 
@@ -156,18 +168,24 @@ def histogram_svg(total: Sequence[float], percentiles: tuple[float, float, float
     out = _head(height, title)
     for k, c in enumerate(counts.tolist()):
         h = ph * c / peak
-        out.append(f'<rect x="{px(edges[k]):.1f}" y="{top + ph - h:.1f}" width="{max(px(edges[k + 1]) - px(edges[k]) - 0.5, 0.5):.1f}" '
-                   f'height="{h:.1f}" fill="{_LOW}" fill-opacity="0.75"/>')
+        out.append(
+            f'<rect x="{px(edges[k]):.1f}" y="{top + ph - h:.1f}" width="{max(px(edges[k + 1]) - px(edges[k]) - 0.5, 0.5):.1f}" '
+            f'height="{h:.1f}" fill="{_LOW}" fill-opacity="0.75"/>'
+        )
     for t in thresholds:
         if lo < t < hi:
             out.append(f'<line x1="{px(t):.1f}" y1="{top}" x2="{px(t):.1f}" y2="{top + ph}" stroke="{_INK}" stroke-dasharray="4 3"/>')
             out.append(f'<text x="{px(t) + 3:.1f}" y="{top + 10}" fill="{_INK}">{t:g}</text>')
     for q, v in zip((5, 50, 95), percentiles, strict=True):
-        out.append(f'<line x1="{px(v):.1f}" y1="{top}" x2="{px(v):.1f}" y2="{top + ph}" stroke="{_HIGH}" stroke-width="{2 if q == 50 else 1}"/>')
+        out.append(
+            f'<line x1="{px(v):.1f}" y1="{top}" x2="{px(v):.1f}" y2="{top + ph}" stroke="{_HIGH}" stroke-width="{2 if q == 50 else 1}"/>'
+        )
     for t in _log_ticks(lo, hi):
         out.append(f'<text x="{px(t):.1f}" y="{top + ph + 14}" text-anchor="middle" fill="{_INK}">{t:g}</text>')
     out.append(f'<rect x="{left}" y="{top}" width="{pw}" height="{ph}" fill="none" stroke="{_INK}"/>')
-    out.append(f'<text x="{left + pw / 2:.0f}" y="{height - 8}" text-anchor="middle" fill="{_INK}">'
-               f'AUC ratio (log scale); orange: 5th, 50th, 95th percentiles; dashed: class thresholds</text>')
+    out.append(
+        f'<text x="{left + pw / 2:.0f}" y="{height - 8}" text-anchor="middle" fill="{_INK}">'
+        f"AUC ratio (log scale); orange: 5th, 50th, 95th percentiles; dashed: class thresholds</text>"
+    )
     out.append("</svg>")
     return "\n".join(out)

@@ -20,31 +20,66 @@ def format_tables(rules: str | None = None, fmt_name: str = "text") -> str:
         rs = load_rules(name)
         rows = [
             ("fu,p floor", f"{rs.fu_plasma_floor.value:g}", _status(rs.fu_plasma_floor.status), rs.fu_plasma_floor.source),
-            ("measured fu,p below floor allowed", str(rs.fu_plasma_floor_measured_exempt.value).lower(),
-             _status(rs.fu_plasma_floor_measured_exempt.status), rs.fu_plasma_floor_measured_exempt.source),
-            ("MSM inhibition cutoff (AUCR >=)", f"{rs.aucr_inhibition_cutoff.value:g}", _status(rs.aucr_inhibition_cutoff.status),
-             rs.aucr_inhibition_cutoff.source),
-            ("MSM induction cutoff (AUCR <=)", f"{rs.aucr_induction_cutoff.value:g}", _status(rs.aucr_induction_cutoff.status),
-             rs.aucr_induction_cutoff.source),
+            (
+                "measured fu,p below floor allowed",
+                str(rs.fu_plasma_floor_measured_exempt.value).lower(),
+                _status(rs.fu_plasma_floor_measured_exempt.status),
+                rs.fu_plasma_floor_measured_exempt.source,
+            ),
+            (
+                "MSM inhibition cutoff (AUCR >=)",
+                f"{rs.aucr_inhibition_cutoff.value:g}",
+                _status(rs.aucr_inhibition_cutoff.status),
+                rs.aucr_inhibition_cutoff.source,
+            ),
+            (
+                "MSM induction cutoff (AUCR <=)",
+                f"{rs.aucr_induction_cutoff.value:g}",
+                _status(rs.aucr_induction_cutoff.status),
+                rs.aucr_induction_cutoff.source,
+            ),
         ]
         for c in rs.criteria:
             scope = ", ".join(c.groups) + (" (gut-wall enzyme)" if c.gut_wall_only else "") + (" (oral)" if c.oral_only else "")
             rows.append((f"{c.label} [{scope}]", f"{c.comparison} {c.cutoff.value:g}", _status(c.cutoff.status), c.cutoff.source))
             if c.multiplier is not None:
-                rows.append((f"{c.label} concentration multiplier", f"x {c.multiplier.value:g}", _status(c.multiplier.status),
-                             c.multiplier.source))
+                rows.append(
+                    (
+                        f"{c.label} concentration multiplier",
+                        f"x {c.multiplier.value:g}",
+                        _status(c.multiplier.status),
+                        c.multiplier.source,
+                    )
+                )
         for item in rs.physiology:
             rows.append((item.name, str(item.value), _status(item.status), item.source))
-        sections.append(Section(title=f"Rule set {rs.id}: {rs.title}", blocks=(
-            Table(headers=("item", "value", "status", "source"), rows=tuple(rows)), f"File: {rs.path}")))
+        sections.append(
+            Section(
+                title=f"Rule set {rs.id}: {rs.title}",
+                blocks=(Table(headers=("item", "value", "status", "source"), rows=tuple(rows)), f"File: {rs.path}"),
+            )
+        )
     phys = tuple((p.name, str(p.value), _status(p.status), p.source) for p in load_physiology())
     sections.append(Section(title="Physiological defaults", blocks=(Table(headers=("item", "value", "status", "source"), rows=phys),)))
     cl = load_classes()
     rows = [(f"inhibition: {b.name}", f">= {b.bound:g}", _status(b.status), b.source) for b in cl.inhibition]
     rows += [(f"induction: {b.name}", f"<= {b.bound:g}", _status(b.status), b.source) for b in cl.induction]
-    rows.append(("victim study when fm >=", f"{cl.victim_study_fm.value:g}", _status(cl.victim_study_fm.status), cl.victim_study_fm.source))
-    rows.append(("default no-effect boundary", f"{cl.no_effect_lower:g}-{cl.no_effect_upper:g}", _status(cl.no_effect_source.status),
-                 cl.no_effect_source.source))
+    rows.append(
+        (
+            "victim study when fm >=",
+            f"{cl.victim_study_fm.value:g}",
+            _status(cl.victim_study_fm.status),
+            cl.victim_study_fm.source,
+        )
+    )
+    rows.append(
+        (
+            "default no-effect boundary",
+            f"{cl.no_effect_lower:g}-{cl.no_effect_upper:g}",
+            _status(cl.no_effect_source.status),
+            cl.no_effect_source.source,
+        )
+    )
     sections.append(Section(title="Classes by AUC ratio", blocks=(Table(headers=("item", "value", "status", "source"), rows=tuple(rows)),)))
     trows = []
     for t in load_targets():

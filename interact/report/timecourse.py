@@ -127,11 +127,7 @@ def timecourse_sections(tc: TimeCourse, a: Assessment | None = None) -> list[Sec
             (
                 st.label,
                 f"{fmt(st.value, 4)} {st.unit}".strip(),
-                "; ".join(
-                    x
-                    for x in (st.origin, st.source, st.status.upper() if st.status == "from memory" else st.status, st.note)
-                    if x
-                ),
+                "; ".join(x for x in (st.origin, st.source, st.status.upper() if st.status == "from memory" else st.status, st.note) if x),
             )
             for st in (*tc.settings, *tc.kdeg_used)
         ),
@@ -149,9 +145,7 @@ def timecourse_sections(tc: TimeCourse, a: Assessment | None = None) -> list[Sec
     blocks.extend(f"Note: {n}." for n in tc.notes)
     sections = [Section(title="Time course (dynamic check)", blocks=tuple(blocks))]
     if a is not None:
-        sections.append(
-            Section(title="Dose timing", blocks=(*timecourse_advice(tc, a), *(Note(text=c) for c in a.dose.cautions)))
-        )
+        sections.append(Section(title="Dose timing", blocks=(*timecourse_advice(tc, a), *(Note(text=c) for c in a.dose.cautions))))
     return sections
 
 
@@ -243,9 +237,7 @@ def format_timecourse(tc: TimeCourse, a: Assessment | None = None, fmt_name: str
 # --------------------------------------------------------------------------- SVG
 
 
-def _path(
-    xs: np.ndarray, ys: np.ndarray, x0: float, x1: float, y0: float, y1: float, box: tuple[float, float, float, float]
-) -> str:
+def _path(xs: np.ndarray, ys: np.ndarray, x0: float, x1: float, y0: float, y1: float, box: tuple[float, float, float, float]) -> str:
     left, top, w, h = box
     px = left + (xs - x0) / (x1 - x0) * w
     py = top + h - (ys - y0) / (y1 - y0 if y1 > y0 else 1.0) * h
@@ -265,7 +257,7 @@ def timecourse_svg(tc: TimeCourse, title: str = "") -> str:
     parts = [
         f'<svg xmlns="http://www.w3.org/2000/svg" width="{W}" height="{H}" viewBox="0 0 {W} {H}" font-family="sans-serif" font-size="12">',
         f'<rect width="{W}" height="{H}" fill="white"/>',
-        f'<text x="{W / 2}" y="22" text-anchor="middle" font-size="14">{e(title or "Time course")} (model estimate, not clinical advice)</text>',
+        f'<text x="{W / 2}" y="22" text-anchor="middle" font-size="14">{e(title or "Time course")} (model estimate, not clinical advice)</text>',  # noqa: E501
     ]
     stop_d = tc.stop_h / 24.0
 
@@ -273,7 +265,7 @@ def timecourse_svg(tc: TimeCourse, title: str = "") -> str:
         left, top, w, h = box
         parts.append(f'<rect x="{left}" y="{top}" width="{w}" height="{h}" fill="none" stroke="#444"/>')
         parts.append(
-            f'<text x="{left - 50}" y="{top + h / 2}" text-anchor="middle" transform="rotate(-90 {left - 50} {top + h / 2})">{e(label)}</text>'
+            f'<text x="{left - 50}" y="{top + h / 2}" text-anchor="middle" transform="rotate(-90 {left - 50} {top + h / 2})">{e(label)}</text>'  # noqa: E501
         )
         for k in range(5):
             v = y0 + (y1 - y0) * k / 4
@@ -293,9 +285,7 @@ def timecourse_svg(tc: TimeCourse, title: str = "") -> str:
     ymax = float(max(vw.max(), vo.max())) * 1.05 or 1.0
     frame(panels[0], 0.0, ymax, f"victim ({tc.victim_unit})")
     parts.append(f'<polyline fill="none" stroke="#888" stroke-width="1" points="{_path(x, vo, x0, x1, 0.0, ymax, panels[0])}"/>')
-    parts.append(
-        f'<polyline fill="none" stroke="#c0392b" stroke-width="1" points="{_path(x, vw, x0, x1, 0.0, ymax, panels[0])}"/>'
-    )
+    parts.append(f'<polyline fill="none" stroke="#c0392b" stroke-width="1" points="{_path(x, vw, x0, x1, 0.0, ymax, panels[0])}"/>')
     parts.append('<text x="80" y="66" fill="#c0392b">with perpetrator</text><text x="200" y="66" fill="#888">without</text>')
 
     series = [("exposure ratio", arr["exposure_ratio"], "#c0392b")]
@@ -306,9 +296,7 @@ def timecourse_svg(tc: TimeCourse, title: str = "") -> str:
     hi = max(float(max(s[1].max() for s in series)), 1.0) * 1.05
     frame(panels[1], lo, hi, "relative to baseline")
     for k, (name, ys, colour) in enumerate(series):
-        parts.append(
-            f'<polyline fill="none" stroke="{colour}" stroke-width="1.5" points="{_path(x, ys, x0, x1, lo, hi, panels[1])}"/>'
-        )
+        parts.append(f'<polyline fill="none" stroke="{colour}" stroke-width="1.5" points="{_path(x, ys, x0, x1, lo, hi, panels[1])}"/>')
         parts.append(f'<text x="{80 + 170 * k}" y="356" fill="{colour}">{e(name)}</text>')
     parts.append(f'<text x="{W / 2}" y="{H - 12}" text-anchor="middle">days after the first perpetrator dose</text>')
     parts.append("</svg>")

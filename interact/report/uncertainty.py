@@ -95,9 +95,7 @@ def sensitivity_sections(s: Sensitivity) -> list[Section]:
     )
     blocks: list[str | Table | Note] = [
         swing,
-        Table(headers=("input", "range", "AUCR at low", "AUCR at high", "|difference|"), rows=rows)
-        if rows
-        else "No input to swing.",
+        Table(headers=("input", "range", "AUCR at low", "AUCR at high", "|difference|"), rows=rows) if rows else "No input to swing.",
     ]
     blocks.extend(c.sentence for c in s.crossings)
     curve_rows = []
@@ -107,7 +105,9 @@ def sensitivity_sections(s: Sensitivity) -> list[Section]:
             inside = c.fm[0] - 1e-12 <= f <= c.fm[-1] + 1e-12
             values.append(fmt_ratio(float(np.interp(f, c.fm, c.aucr))) if inside else "-")
         curve_rows.append((c.label, *values))
-    blocks.append(Table(headers=("AUCR vs fm (liver, reversible; interpolated)", *(f"fm {f:g}" for f in _FM_SHOWN)), rows=tuple(curve_rows)))
+    blocks.append(
+        Table(headers=("AUCR vs fm (liver, reversible; interpolated)", *(f"fm {f:g}" for f in _FM_SHOWN)), rows=tuple(curve_rows))
+    )
     if s.scenario_ratio is not None and s.scenario_fm is not None:
         blocks.append(f"This scenario: [I]/Ki,u = {fmt(s.scenario_ratio)} on its main pathway, fm {fmt(s.scenario_fm)}.")
     return [Section(title="Sensitivity", blocks=tuple(blocks))]
@@ -156,8 +156,14 @@ def uncertainty_to_dict(r: UncertaintyResult, s: Sensitivity | None = None) -> d
         out["sensitivity"] = {
             "default_swing": s.default_swing,
             "tornado": [
-                {"path": b.input.path, "low": b.low, "high": b.high, "auc_ratio_low": b.aucr_low, "auc_ratio_high": b.aucr_high,
-                 "swing": b.swing}
+                {
+                    "path": b.input.path,
+                    "low": b.low,
+                    "high": b.high,
+                    "auc_ratio_low": b.aucr_low,
+                    "auc_ratio_high": b.aucr_high,
+                    "swing": b.swing,
+                }
                 for b in s.bars
             ],
             "crossings": [
@@ -169,8 +175,9 @@ def uncertainty_to_dict(r: UncertaintyResult, s: Sensitivity | None = None) -> d
     return out
 
 
-def format_uncertainty(r: UncertaintyResult, s: Sensitivity | None = None, fmt_name: str = "text", *,
-                       title: str = "", width: int = 100) -> str:
+def format_uncertainty(
+    r: UncertaintyResult, s: Sensitivity | None = None, fmt_name: str = "text", *, title: str = "", width: int = 100
+) -> str:
     """The result as ``text``, ``markdown`` or ``json``."""
     if fmt_name == "json":
         return json.dumps(uncertainty_to_dict(r, s), indent=2, allow_nan=False) + "\n"

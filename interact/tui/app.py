@@ -93,9 +93,7 @@ def read_scenario_file(path: str | Path) -> tuple[dict[str, Any], Scenario]:
     try:
         text = p.read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(
-            "scenario", str(p), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})"
-        ) from None
+        raise InputError("scenario", str(p), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:

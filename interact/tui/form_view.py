@@ -131,9 +131,7 @@ def build_rows(data: dict[str, Any]) -> list[Row]:
                         )
                     )
                     items(spec.items, ipath, depth + 1)
-                    rows.append(
-                        Row(kind="remove", text=f"remove {spec.noun} {i + 1}", path=ipath, key=key_of(ipath), depth=depth + 1)
-                    )
+                    rows.append(Row(kind="remove", text=f"remove {spec.noun} {i + 1}", path=ipath, key=key_of(ipath), depth=depth + 1))
                 rows.append(Row(kind="add", text=f"add a {spec.noun}", path=lpath, key=key_of(lpath), depth=depth))
 
     for title, key, specs in SCHEMA:

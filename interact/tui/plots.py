@@ -88,9 +88,7 @@ def fm_curve(a: Assessment, points: int = 101) -> Chart | None:
         point_label=f"now: fm {main.fm:g}, AUC ratio {fmt_ratio(pr.total)}",
         extra=(Series(x=tuple(fm.tolist()), y=tuple(ceiling.tolist())),),
         extra_label="complete inhibition",
-        notes=(
-            f"other pathways held: {', '.join(f'{e.enzyme} fm {e.fm:g}' for e in others) or 'none'}; gut part {fmt_ratio(gut)}",
-        ),
+        notes=(f"other pathways held: {', '.join(f'{e.enzyme} fm {e.fm:g}' for e in others) or 'none'}; gut part {fmt_ratio(gut)}",),
     )
 
 

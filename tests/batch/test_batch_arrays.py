@@ -18,14 +18,30 @@ def test_step_lookup_equals_direct_rule_at_and_near_breakpoints() -> None:
     ):
         cand = dose_candidates([strengths])
         bp = dose_action_breakpoints(usual_dose=usual, interval_h=interval, candidates=cand[0], lower=b[0], upper=b[1])
-        r = np.concatenate([np.geomspace(0.05, 60, 400), bp, np.nextafter(bp, 0), np.nextafter(bp, np.inf),
-                            bp * (1 + 1e-10), bp * (1 - 1e-10), bp * (1 + 2e-9), bp * (1 - 2e-9)])
+        r = np.concatenate(
+            [
+                np.geomspace(0.05, 60, 400),
+                bp,
+                np.nextafter(bp, 0),
+                np.nextafter(bp, np.inf),
+                bp * (1 + 1e-10),
+                bp * (1 - 1e-10),
+                bp * (1 + 2e-9),
+                bp * (1 - 2e-9),
+            ]
+        )
         fast = dose_action_codes_by_victim(
-            r[:, None], usual_dose=np.array([usual]), interval_h=np.array([interval]), candidates=cand,
-            lower=np.array([b[0]]), upper=np.array([b[1]]), narrow_therapeutic_index=np.array([nti]),
+            r[:, None],
+            usual_dose=np.array([usual]),
+            interval_h=np.array([interval]),
+            candidates=cand,
+            lower=np.array([b[0]]),
+            upper=np.array([b[1]]),
+            narrow_therapeutic_index=np.array([nti]),
         )[:, 0]
-        slow = dose_action_codes(r, usual_dose=usual, interval_h=interval, candidates=cand[0], lower=b[0], upper=b[1],
-                                 narrow_therapeutic_index=nti)
+        slow = dose_action_codes(
+            r, usual_dose=usual, interval_h=interval, candidates=cand[0], lower=b[0], upper=b[1], narrow_therapeutic_index=nti
+        )
         assert np.array_equal(fast, slow), (usual, interval, strengths, b, nti)
         checked += r.size
     assert checked > 10_000

@@ -23,7 +23,20 @@ def test_example_batch_tables(capsys: pytest.CaptureFixture[str]) -> None:
 
 
 def test_example_spread_file(capsys: pytest.CaptureFixture[str]) -> None:
-    assert main(["uncertainty", str(demo_path()), "--spec", str(EXAMPLES / "demo_spread.toml"), "--samples", "2000",
-                 "--format", "json"]) == 0
+    assert (
+        main(
+            [
+                "uncertainty",
+                str(demo_path()),
+                "--spec",
+                str(EXAMPLES / "demo_spread.toml"),
+                "--samples",
+                "2000",
+                "--format",
+                "json",
+            ]
+        )
+        == 0
+    )
     data = json.loads(capsys.readouterr().out)
     assert len(data["varied"]) == 7 and data["samples"] == 2000 and data["seed"] == 1

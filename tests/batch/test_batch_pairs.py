@@ -29,9 +29,16 @@ def perpetrator_row(draw: st.DrawFn, k: int) -> list[str]:
         kis[draw(st.integers(0, len(ENZYMES) - 1))] = draw(pos)
     fu_incs = [draw(st.one_of(st.none(), frac)) for _ in ENZYMES]
     return [
-        f"P{k}", repr(draw(pos)), repr(draw(st.floats(100, 900))), repr(draw(pos)), repr(draw(frac)),
-        draw(st.sampled_from(["", "true"])), draw(st.sampled_from(["", "oral", "intravenous"])),
-        draw(st.sampled_from(["", "0.6", "1.3"])), draw(st.sampled_from(["", "0.7"])), draw(st.sampled_from(["", "0.05"])),
+        f"P{k}",
+        repr(draw(pos)),
+        repr(draw(st.floats(100, 900))),
+        repr(draw(pos)),
+        repr(draw(frac)),
+        draw(st.sampled_from(["", "true"])),
+        draw(st.sampled_from(["", "oral", "intravenous"])),
+        draw(st.sampled_from(["", "0.6", "1.3"])),
+        draw(st.sampled_from(["", "0.7"])),
+        draw(st.sampled_from(["", "0.05"])),
         *("" if x is None else repr(x) for x in kis),
         *("" if (f is None or kis[e] is None) else repr(f) for e, f in enumerate(fu_incs)),
     ]
@@ -42,15 +49,31 @@ def victim_row(draw: st.DrawFn, k: int) -> list[str]:
     fms = [draw(st.one_of(st.none(), st.floats(0.0, 0.33))) for _ in ENZYMES]
     strengths = draw(st.lists(st.sampled_from(["1", "2.5", "5", "10", "20"]), max_size=3, unique=True))
     return [
-        f"V{k}", draw(st.sampled_from(["2.5", "5", "10", "40"])), draw(st.sampled_from(["8", "12", "24"])),
-        draw(st.one_of(st.just(""), st.floats(0.05, 1.0).map(repr))), draw(st.sampled_from(["", "oral", "intravenous"])),
-        ";".join(strengths), draw(st.sampled_from(["", "yes"])),
+        f"V{k}",
+        draw(st.sampled_from(["2.5", "5", "10", "40"])),
+        draw(st.sampled_from(["8", "12", "24"])),
+        draw(st.one_of(st.just(""), st.floats(0.05, 1.0).map(repr))),
+        draw(st.sampled_from(["", "oral", "intravenous"])),
+        ";".join(strengths),
+        draw(st.sampled_from(["", "yes"])),
         *("" if f is None else repr(f) for f in fms),
     ]
 
 
-P_HEAD = ["name", "dose (mg)", "molar mass (g/mol)", "cmax (uM)", "fu_p", "fu_p measured", "route", "rb", "fa_fg", "ka (1/min)",
-          *(f"ki {e} (uM)" for e in ENZYMES), *(f"fu_inc {e}" for e in ENZYMES)]
+P_HEAD = [
+    "name",
+    "dose (mg)",
+    "molar mass (g/mol)",
+    "cmax (uM)",
+    "fu_p",
+    "fu_p measured",
+    "route",
+    "rb",
+    "fa_fg",
+    "ka (1/min)",
+    *(f"ki {e} (uM)" for e in ENZYMES),
+    *(f"fu_inc {e}" for e in ENZYMES),
+]
 V_HEAD = ["name", "dose (mg)", "interval (h)", "fg", "route", "strengths (mg)", "nti", *(f"fm {e}" for e in ENZYMES)]
 
 
@@ -79,8 +102,9 @@ def test_each_pair_equals_assess_alone(texts: tuple[str, str]) -> None:
             assert result.gut[i, j] == pr.gut and result.liver[i, j] == pr.liver
             assert ACTIONS[result.action[i, j]] == a.dose.action
             band = classes.classify(pr.total)
-            assert labels[result.band[i, j]] == ("no class" if band is None else
-                                                 f"{band.name} {'inhibition' if band in classes.inhibition else 'induction'}")
+            assert labels[result.band[i, j]] == (
+                "no class" if band is None else f"{band.name} {'inhibition' if band in classes.inhibition else 'induction'}"
+            )
             assert bool(result.study[i, j]) == a.study_indicated
             sp = a.species[0]
             assert perps.inlet_um[i] == sp.unbound_inlet_um and perps.enterocyte_um[i] == sp.enterocyte_um

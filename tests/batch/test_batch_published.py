@@ -34,8 +34,16 @@ def _basic(text: str, target: str) -> tuple[float, bool]:
 def test_cyp_r1_values_table2() -> None:
     rows = [r for r in _rows("cpt2015_table2_cyp_r_values.csv") if r["row_usable_as_oracle"] == "yes"]
     targets = sorted({r["pathway"] for r in rows})
-    head = ["name", "dose (mg)", "molar mass (g/mol)", "cmax (uM)", "fu_p", "route",
-            *(f"ki {t} (uM)" for t in targets), *(f"fu_inc {t}" for t in targets)]
+    head = [
+        "name",
+        "dose (mg)",
+        "molar mass (g/mol)",
+        "cmax (uM)",
+        "fu_p",
+        "route",
+        *(f"ki {t} (uM)" for t in targets),
+        *(f"fu_inc {t}" for t in targets),
+    ]
     lines = [",".join(head)]
     for r in rows:
         ki = [r["Ki_uM"] if t == r["pathway"] else "" for t in targets]
@@ -47,4 +55,3 @@ def test_cyp_r1_values_table2() -> None:
         value, flagged = _basic(table.basic[k], r["pathway"])
         assert value == pytest.approx(float(r["R_published"]), abs=0.005)  # printed to 2 decimals
         assert flagged == (r["flag_published"] == "yes")
-

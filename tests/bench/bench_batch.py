@@ -42,16 +42,36 @@ ENZYMES = ("CYP3A", "CYP2C9", "CYP2D6")
 
 def tables(n_p: int, n_v: int, seed: int = 1) -> tuple[str, str]:
     rng = np.random.default_rng(seed)
-    head = ["name", "dose (mg)", "molar mass (g/mol)", "cmax (ng/mL)", "fu_p", "ka (1/min)", *(f"ki {e} (uM)" for e in ENZYMES),
-            *(f"fu_inc {e}" for e in ENZYMES)]
+    head = [
+        "name",
+        "dose (mg)",
+        "molar mass (g/mol)",
+        "cmax (ng/mL)",
+        "fu_p",
+        "ka (1/min)",
+        *(f"ki {e} (uM)" for e in ENZYMES),
+        *(f"fu_inc {e}" for e in ENZYMES),
+    ]
     lines = [",".join(head)]
     for i in range(n_p):
         ki = [f"{x:.4g}" if rng.random() < 0.7 else "" for x in 10 ** rng.uniform(-1.5, 2, len(ENZYMES))]
         if not any(ki):
             ki[0] = "1"
         fu = [f"{rng.uniform(0.2, 1):.3g}" if k else "" for k in ki]
-        lines.append(",".join([f"Invented-P{i}", f"{rng.choice([25, 50, 100, 200, 400])}", f"{rng.uniform(250, 700):.1f}",
-                               f"{10 ** rng.uniform(1, 3.5):.4g}", f"{10 ** rng.uniform(-2.5, -0.1):.3g}", "0.1", *ki, *fu]))
+        lines.append(
+            ",".join(
+                [
+                    f"Invented-P{i}",
+                    f"{rng.choice([25, 50, 100, 200, 400])}",
+                    f"{rng.uniform(250, 700):.1f}",
+                    f"{10 ** rng.uniform(1, 3.5):.4g}",
+                    f"{10 ** rng.uniform(-2.5, -0.1):.3g}",
+                    "0.1",
+                    *ki,
+                    *fu,
+                ]
+            )
+        )
     ptext = "\n".join(lines) + "\n"
     vhead = ["name", "dose (mg)", "interval (h)", "fg", "strengths (mg)", *(f"fm {e}" for e in ENZYMES)]
     vlines = [",".join(vhead)]
@@ -147,18 +167,28 @@ def main() -> None:
     rss_mb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
 
     print(f"pairs: {pairs:,} ({n_p} perpetrators x {n_v} victims); best of {args.runs} runs; {os.cpu_count()} cores")
-    print(f"read + validate tables: {t_read_plain:.3f} s ({(t_read_plain / (n_p + n_v)) * 1e6:.0f} us per row; "
-          f"{t_read:.3f} s under tracemalloc)")
-    print(f"numpy floor (same formula on prepared arrays, plain numpy): {t_floor * 1e3:.1f} ms; "
-          f"with the enzyme sum as a BLAS matrix product: {t_blas * 1e3:.1f} ms")
-    print(f"pair_ratios (mechanistic model, gut/liver/total for every pair): {t_model * 1e3:.1f} ms; "
-          f"ratio {t_model / t_floor:.2f}x the plain floor (goal <= 2x), {t_model / t_blas:.2f}x the BLAS floor")
-    print(f"evaluate_pairs (model + class band, study verdict, dose action, flags): {t_eval * 1e3:.1f} ms "
-          f"(first run {t_first * 1e3:.1f} ms); ratio {t_eval / t_floor:.2f}x the floor")
+    print(
+        f"read + validate tables: {t_read_plain:.3f} s ({(t_read_plain / (n_p + n_v)) * 1e6:.0f} us per row; "
+        f"{t_read:.3f} s under tracemalloc)"
+    )
+    print(
+        f"numpy floor (same formula on prepared arrays, plain numpy): {t_floor * 1e3:.1f} ms; "
+        f"with the enzyme sum as a BLAS matrix product: {t_blas * 1e3:.1f} ms"
+    )
+    print(
+        f"pair_ratios (mechanistic model, gut/liver/total for every pair): {t_model * 1e3:.1f} ms; "
+        f"ratio {t_model / t_floor:.2f}x the plain floor (goal <= 2x), {t_model / t_blas:.2f}x the BLAS floor"
+    )
+    print(
+        f"evaluate_pairs (model + class band, study verdict, dose action, flags): {t_eval * 1e3:.1f} ms "
+        f"(first run {t_first * 1e3:.1f} ms); ratio {t_eval / t_floor:.2f}x the floor"
+    )
     print(f"ranking all pairs worst first: {t_rank * 1e3:.1f} ms")
     print(f"  floor vs evaluate_pairs: largest relative difference {max_diff:.1e}")
-    print(f"assess() per pair: {per_pair * 1e6:.0f} us (mean of {len(sample)} pairs) -> {t_assess:.0f} s for all pairs; "
-          f"batch is {t_assess / t_eval:.0f}x faster (goal >= 100x)")
+    print(
+        f"assess() per pair: {per_pair * 1e6:.0f} us (mean of {len(sample)} pairs) -> {t_assess:.0f} s for all pairs; "
+        f"batch is {t_assess / t_eval:.0f}x faster (goal >= 100x)"
+    )
     print(f"peak traced memory (read + evaluate): {peak / 2**20:.0f} MiB; max resident size {rss_mb:.0f} MiB (goal < 1024 MiB)")
     print(f"write ranked CSV ({rows:,} rows, in memory): {t_write:.2f} s")
 

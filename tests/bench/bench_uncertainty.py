@@ -78,8 +78,10 @@ def main() -> None:
         for _ in range(args.runs):
             t_draw = min(t_draw, best(draw, 1))
             t_run = min(t_run, best(lambda m=method: run_uncertainty(a, VARY, samples=n, seed=1, method=m), 1))
-        print(f"{method}: run_uncertainty {t_run * 1e3:.1f} ms; drawing the random numbers alone {t_draw * 1e3:.1f} ms; "
-              f"ratio {t_run / t_draw:.2f}x (goal < 3x)")
+        print(
+            f"{method}: run_uncertainty {t_run * 1e3:.1f} ms; drawing the random numbers alone {t_draw * 1e3:.1f} ms; "
+            f"ratio {t_run / t_draw:.2f}x (goal < 3x)"
+        )
     t_eval = best(lambda: model.evaluate({p: np.full(n, model.point(p)) for p, _ in VARY}), args.runs)
     print(f"model evaluation alone on {n:,} samples: {t_eval * 1e3:.1f} ms")
 

@@ -105,9 +105,7 @@ def test_recovery_after_tdi_is_governed_by_kdeg_and_reversible_offset_is_fast() 
     mild = {"kinact": "0.001 1/min", "ki_inact": "3 uM"}
     times = {}
     for kdeg in (0.02, 0.04):
-        a = _assess(
-            mild, perp={"half_life": "3 h"}, victim={"fg": 1.0}, turnover=[{"enzyme": "CYP3A", "kdeg_liver": f"{kdeg} 1/h"}]
-        )
+        a = _assess(mild, perp={"half_life": "3 h"}, victim={"fg": 1.0}, turnover=[{"enzyme": "CYP3A", "kdeg_liver": f"{kdeg} 1/h"}])
         tc = simulate(a, days=20)
         e = tc.enzymes[0]
         assert e.recovery_h == pytest.approx(math.log(10) / kdeg, rel=0.2)

@@ -89,9 +89,7 @@ def test_fit_tdi_command_recovers_and_carries(tmp_path: Path, capsys: pytest.Cap
 def test_fit_induction_command_matches_puromycin(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     rows = [r for r in read_checks("r_datasets_Puromycin.csv") if r["state"] == "treated"]
     data = tmp_path / "fold.csv"
-    data.write_text(
-        "concentration (uM),fold_change\n" + "".join(f"{r['conc']},{1 + float(r['rate'])}\n" for r in rows), encoding="utf-8"
-    )
+    data.write_text("concentration (uM),fold_change\n" + "".join(f"{r['conc']},{1 + float(r['rate'])}\n" for r in rows), encoding="utf-8")
     assert main(["fit-induction", str(data), "--format", "json"]) == 0
     out = json.loads(capsys.readouterr().out)
     assert out["emax"]["value"] == pytest.approx(212.68370711, rel=1e-6)

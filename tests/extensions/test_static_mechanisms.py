@@ -227,9 +227,7 @@ def test_ratio_function_matches_predict_with_tdi_and_induction() -> None:
     from interact.assessment import _kdeg
 
     kdeg, _ = _kdeg(a.scenario, a.constants)
-    f = ratio_function(
-        pathways=(("CYP3A", 0.8),), fg=0.5, gut_enzyme="CYP3A", constants=a.constants, species=a.species, kdeg=kdeg
-    )
+    f = ratio_function(pathways=(("CYP3A", 0.8),), fg=0.5, gut_enzyme="CYP3A", constants=a.constants, species=a.species, kdeg=kdeg)
     assert f(1.0) == pytest.approx(a.prediction.total, rel=1e-12)
     doubled = dataclasses.replace(
         a.species[0], unbound_inlet_um=2 * a.species[0].unbound_inlet_um, enterocyte_um=2 * a.species[0].enterocyte_um

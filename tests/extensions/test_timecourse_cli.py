@@ -143,9 +143,7 @@ def test_timing_advice_covers_start_stop_and_limits() -> None:
     text = " ".join(_advice())
     assert "Start:" in text and "Stop:" in text and "resynthesised" in text and "returning at once risks overexposure" in text
     assert "guide for monitoring, not a schedule" in text
-    inducer = " ".join(
-        _advice(action="increase dose", steady_ratio=0.4, static_ratio=0.35, peak_ratio=0.4, mechanisms=("induction",))
-    )
+    inducer = " ".join(_advice(action="increase dose", steady_ratio=0.4, static_ratio=0.35, peak_ratio=0.4, mechanisms=("induction",)))
     assert "stepwise" in inducer and "risks toxicity" in inducer
     fast = " ".join(_advice(onset_h=6.0, offset_h=12.0, mechanisms=("reversible",)))
     assert "when the perpetrator is started" in fast and "eliminated" in fast

@@ -58,9 +58,7 @@ def test_into_updates_the_scenario_keeps_comments_and_assess_uses_it(tmp_path: P
     scenario = tmp_path / "scenario.toml"
     shutil.copy(demo_path(), scenario)
     before = scenario.read_text(encoding="utf-8")
-    assert (
-        main(["fit", VMKMKI, *UNITS, "--into", str(scenario), "--target", "CYP3A4", "--fu-inc", "0.5", "--format", "json"]) == 0
-    )
+    assert main(["fit", VMKMKI, *UNITS, "--into", str(scenario), "--target", "CYP3A4", "--fu-inc", "0.5", "--format", "json"]) == 0
     fitted = json.loads(capsys.readouterr().out)["unbound"]["ki_um"]
     after = scenario.read_text(encoding="utf-8")
     for line in before.splitlines():  # every comment line the user wrote is still there

@@ -168,9 +168,7 @@ def test_vmkmki_selects_uncompetitive_and_reports_kic_unbounded() -> None:
 def test_vmkmki_estimates_agree_with_the_scipy_refits(model: str, names: tuple[str, ...]) -> None:
     # second line of evidence: tests/data/fit_reference_values.csv rows "nlstools vmkmki", status computed
     row = next(
-        r
-        for r in read_table("fit_reference_values.csv")
-        if r["dataset"] == "nlstools vmkmki (n=72)" and r["model"].startswith(model)
+        r for r in read_table("fit_reference_values.csv") if r["dataset"] == "nlstools vmkmki (n=72)" and r["model"].startswith(model)
     )
     estimates = [float(v) for v in row["estimate"].split("|")]
     errors = [float(v) for v in row["std_error"].split("|")]

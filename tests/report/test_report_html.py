@@ -27,8 +27,18 @@ from interact.uncertainty import run_uncertainty, sensitivity
 EVIL = '<script>alert("x")</script> & "quotes" <img src=x onerror=alert(1)>'
 
 SECTIONS = (
-    "Summary", "Inputs", "Rule set", "Equations used", "Perpetrator concentrations (uM)", "Basic static models (ich-m12-2024)",
-    "Mechanistic static model", "Uncertainty of the AUC ratio", "Sensitivity", "Dose suggestion", "Cautions", "Provenance",
+    "Summary",
+    "Inputs",
+    "Rule set",
+    "Equations used",
+    "Perpetrator concentrations (uM)",
+    "Basic static models (ich-m12-2024)",
+    "Mechanistic static model",
+    "Uncertainty of the AUC ratio",
+    "Sensitivity",
+    "Dose suggestion",
+    "Cautions",
+    "Provenance",
 )
 
 
@@ -45,8 +55,14 @@ def _report(text: str, fmt: str = "html", vary: bool = True) -> tuple[str, bytes
     a = assess(loads_scenario(text))
     v = [("perpetrator.inhibits[0].ki", "ci:2 uM,8 uM"), ("perpetrator.cmax", "cv:30%")] if vary else []
     spread = run_uncertainty(a, v, samples=2000, seed=1) if v else None
-    parts = report_parts(a, spread=spread, sens=sensitivity(a, v), scenario_bytes=raw, source_name="evil.toml",
-                         generated_at=datetime(2026, 1, 2, 3, 4, 5, tzinfo=UTC))
+    parts = report_parts(
+        a,
+        spread=spread,
+        sens=sensitivity(a, v),
+        scenario_bytes=raw,
+        source_name="evil.toml",
+        generated_at=datetime(2026, 1, 2, 3, 4, 5, tzinfo=UTC),
+    )
     return (render_report_html(a, parts) if fmt == "html" else render_report_markdown(a, parts)), raw
 
 

@@ -371,9 +371,7 @@ def test_run_app_refuses_a_broken_file_with_every_problem(tmp_path: Path, capsys
     from interact.tui import run_app
 
     bad = tmp_path / "broken.toml"
-    text = (
-        demo_path().read_text(encoding="utf-8").replace("fu_plasma = 0.04", "fu_plasma = 4").replace("fm = 0.82", 'fm = "high"')
-    )
+    text = demo_path().read_text(encoding="utf-8").replace("fu_plasma = 0.04", "fu_plasma = 4").replace("fm = 0.82", 'fm = "high"')
     bad.write_text(text, encoding="utf-8")
     assert run_app(bad) == 2
     err = capsys.readouterr().err

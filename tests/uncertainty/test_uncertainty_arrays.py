@@ -39,12 +39,23 @@ def test_band_codes_match_classify(r: float) -> None:
 )
 def test_dose_action_codes_match_suggest_dose(r, usual, interval, strengths, boundary, nti) -> None:  # type: ignore[no-untyped-def]
     expected = suggest_dose(
-        auc_ratio=r, usual_dose=usual, dose_unit="mg", interval_h=interval, strengths=tuple(strengths),
-        boundary=boundary, boundary_origin="test", narrow_therapeutic_index=nti,
+        auc_ratio=r,
+        usual_dose=usual,
+        dose_unit="mg",
+        interval_h=interval,
+        strengths=tuple(strengths),
+        boundary=boundary,
+        boundary_origin="test",
+        narrow_therapeutic_index=nti,
     ).action
     cand = dose_candidates([tuple(strengths)])[0]
     code = dose_action_codes(
-        np.array([r]), usual_dose=usual, interval_h=interval, candidates=cand, lower=boundary[0], upper=boundary[1],
+        np.array([r]),
+        usual_dose=usual,
+        interval_h=interval,
+        candidates=cand,
+        lower=boundary[0],
+        upper=boundary[1],
         narrow_therapeutic_index=nti,
     )
     assert ACTIONS[int(code[0])] == expected
@@ -56,14 +67,27 @@ def test_dose_action_codes_match_suggest_dose_on_a_grid() -> None:
     rs = np.concatenate([np.geomspace(0.05, 60, 60), [0.8, 1.25, 2.0, 5.0]])
     seen = set()
     for usual, interval, strengths, b, nti in itertools.product(
-        [2.5, 10.0, 40.0], [4.0, 24.0, 168.0, 3.0], [(), (5.0,), (2.5, 5.0, 10.0), (0.5,)], [(0.8, 1.25), (0.5, 2.0)], [False, True]
+        [2.5, 10.0, 40.0],
+        [4.0, 24.0, 168.0, 3.0],
+        [(), (5.0,), (2.5, 5.0, 10.0), (0.5,)],
+        [(0.8, 1.25), (0.5, 2.0)],
+        [False, True],
     ):
         cand = dose_candidates([strengths])[0]
-        codes = dose_action_codes(rs, usual_dose=usual, interval_h=interval, candidates=cand, lower=b[0], upper=b[1],
-                                  narrow_therapeutic_index=nti)
+        codes = dose_action_codes(
+            rs, usual_dose=usual, interval_h=interval, candidates=cand, lower=b[0], upper=b[1], narrow_therapeutic_index=nti
+        )
         for r, c in zip(rs, codes, strict=True):
-            expected = suggest_dose(auc_ratio=float(r), usual_dose=usual, dose_unit="mg", interval_h=interval, strengths=strengths,
-                                    boundary=b, boundary_origin="", narrow_therapeutic_index=nti).action
+            expected = suggest_dose(
+                auc_ratio=float(r),
+                usual_dose=usual,
+                dose_unit="mg",
+                interval_h=interval,
+                strengths=strengths,
+                boundary=b,
+                boundary_origin="",
+                narrow_therapeutic_index=nti,
+            ).action
             assert ACTIONS[int(c)] == expected, (r, usual, interval, strengths, b, nti)
             seen.add(expected)
     assert seen == set(ACTIONS)

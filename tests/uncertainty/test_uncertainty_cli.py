@@ -22,8 +22,20 @@ def test_text_output_has_spread_and_cautions(capsys: pytest.CaptureFixture[str])
 
 
 def test_json_same_seed_same_numbers(capsys: pytest.CaptureFixture[str]) -> None:
-    args = ["uncertainty", DEMO, "--vary", "perpetrator.cmax=cv:25%", "--samples", "3000", "--seed", "7", "--method", "mc",
-            "--format", "json"]
+    args = [
+        "uncertainty",
+        DEMO,
+        "--vary",
+        "perpetrator.cmax=cv:25%",
+        "--samples",
+        "3000",
+        "--seed",
+        "7",
+        "--method",
+        "mc",
+        "--format",
+        "json",
+    ]
     assert main(args) == 0
     one = json.loads(capsys.readouterr().out)
     assert main(args) == 0

@@ -35,11 +35,21 @@ def _iv_dict(ki: str = "2 uM", cmax: str = "1 uM", fu: float = 0.5) -> dict[str,
     return {
         "title": "iv test pair",
         "perpetrator": {
-            "name": "P", "molar_mass": "400 g/mol", "dose": "100 mg", "route": "intravenous", "cmax": cmax,
-            "fu_plasma": fu, "inhibits": [{"target": "CYP3A", "ki": ki, "fu_inc": 1.0}],
+            "name": "P",
+            "molar_mass": "400 g/mol",
+            "dose": "100 mg",
+            "route": "intravenous",
+            "cmax": cmax,
+            "fu_plasma": fu,
+            "inhibits": [{"target": "CYP3A", "ki": ki, "fu_inc": 1.0}],
         },
-        "victim": {"name": "V", "dose": "10 mg", "interval": "24 h", "route": "intravenous",
-                   "pathways": [{"enzyme": "CYP3A", "fm": 1.0}]},
+        "victim": {
+            "name": "V",
+            "dose": "10 mg",
+            "interval": "24 h",
+            "route": "intravenous",
+            "pathways": [{"enzyme": "CYP3A", "fm": 1.0}],
+        },
     }
 
 
@@ -48,8 +58,15 @@ def _rich_dict() -> dict[str, Any]:
     return {
         "title": "every branch",
         "perpetrator": {
-            "name": "P", "molar_mass": "450 g/mol", "dose": "200 mg", "cmax": "900 ng/mL", "fu_plasma": 0.005,
-            "blood_plasma_ratio": 0.9, "ka": "0.05 1/min", "fa_fg": 0.8, "fa": 0.9,
+            "name": "P",
+            "molar_mass": "450 g/mol",
+            "dose": "200 mg",
+            "cmax": "900 ng/mL",
+            "fu_plasma": 0.005,
+            "blood_plasma_ratio": 0.9,
+            "ka": "0.05 1/min",
+            "fa_fg": 0.8,
+            "fa": 0.9,
             "inhibits": [
                 {"target": "CYP3A", "ki": "1.5 uM", "fu_inc": 0.7, "kinact": "2 1/h", "ki_inact": "3 uM"},
                 {"target": "CYP2C9", "ic50": "9 uM", "substrate_conc": "4 uM", "km": "6 uM", "mechanism": "mixed", "alpha": 3.0},
@@ -57,14 +74,27 @@ def _rich_dict() -> dict[str, Any]:
                 {"target": "CYP1A2", "emax": 4.0, "ec50": "2 uM", "calibration": 0.6},
             ],
             "metabolites": [
-                {"name": "M", "molar_mass": "466 g/mol", "cmax": "0.3 uM", "fu_plasma": 0.2,
-                 "inhibits": [{"target": "CYP3A", "ki": "2 uM"}, {"target": "CYP2C9", "ki": "5 uM", "fu_inc": 0.9}]},
+                {
+                    "name": "M",
+                    "molar_mass": "466 g/mol",
+                    "cmax": "0.3 uM",
+                    "fu_plasma": 0.2,
+                    "inhibits": [{"target": "CYP3A", "ki": "2 uM"}, {"target": "CYP2C9", "ki": "5 uM", "fu_inc": 0.9}],
+                },
             ],
         },
         "victim": {
-            "name": "V", "dose": "20 mg", "interval": "12 h", "fg": 0.4, "strengths": ["5 mg", "10 mg"],
-            "pathways": [{"enzyme": "CYP3A", "fm": 0.5}, {"enzyme": "CYP2C9", "fm": 0.2},
-                         {"enzyme": "CYP2D6", "fm": 0.1}, {"enzyme": "CYP1A2", "fm": 0.1}],
+            "name": "V",
+            "dose": "20 mg",
+            "interval": "12 h",
+            "fg": 0.4,
+            "strengths": ["5 mg", "10 mg"],
+            "pathways": [
+                {"enzyme": "CYP3A", "fm": 0.5},
+                {"enzyme": "CYP2C9", "fm": 0.2},
+                {"enzyme": "CYP2D6", "fm": 0.1},
+                {"enzyme": "CYP1A2", "fm": 0.1},
+            ],
         },
     }
 
@@ -231,9 +261,7 @@ def test_fraction_bounds_outside_zero_one_rejected() -> None:
 
 
 def test_spec_file_and_vary_option() -> None:
-    spec = loads_spec(
-        '[vary]\n"perpetrator.inhibits[0].ki" = "ci:1 uM, 4 uM"\n[sampling]\nsamples = 500\nseed = 9\nmethod = "mc"\n'
-    )
+    spec = loads_spec('[vary]\n"perpetrator.inhibits[0].ki" = "ci:1 uM, 4 uM"\n[sampling]\nsamples = 500\nseed = 9\nmethod = "mc"\n')
     assert spec.vary == (("perpetrator.inhibits[0].ki", "ci:1 uM, 4 uM"),)
     assert (spec.samples, spec.seed, spec.method) == (500, 9, "mc")
     assert parse_vary("victim.pathways[0].fm=uniform:0.5,0.9") == ("victim.pathways[0].fm", "uniform:0.5,0.9")

@@ -19,8 +19,10 @@ from interact.uncertainty import ScenarioModel, crossing_points, fm_curves, sens
 def test_tornado_ranks_by_effect_and_moves_the_right_way() -> None:
     a = assess(load_scenario(demo_path()))
     model = ScenarioModel(a)
-    bars, default = tornado(model, [("perpetrator.inhibits[0].ki", "ci:2 uM,8 uM"), ("perpetrator.cmax", "cv:20%"),
-                                    ("victim.pathways[1].fm", "fixed")])
+    bars, default = tornado(
+        model,
+        [("perpetrator.inhibits[0].ki", "ci:2 uM,8 uM"), ("perpetrator.cmax", "cv:20%"), ("victim.pathways[1].fm", "fixed")],
+    )
     assert not default
     assert [b.input.path for b in bars] == ["perpetrator.inhibits[0].ki", "perpetrator.cmax"]
     ki = bars[0]
