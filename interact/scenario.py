@@ -43,6 +43,7 @@ __all__ = [
     "dumps_scenario",
     "load_scenario",
     "loads_scenario",
+    "merge_scenario_text",
     "save_scenario",
     "scenario_from_dict",
     "scenario_to_dict",
@@ -801,8 +802,82 @@ def dumps_scenario(scenario: Scenario) -> str:
 
 
 def save_scenario(scenario: Scenario, path: str | Path) -> None:
-    """Write the scenario to ``path`` atomically (temporary file in the same folder, then rename)."""
-    write_text_atomic(Path(path), dumps_scenario(scenario))
+    """Write the scenario to ``path`` atomically (temporary file in the same folder, then rename).
+
+    When ``path`` already holds a TOML scenario, the new values are merged into
+    that text, so the user's comments, key order and the way unchanged values
+    were written survive the save (:func:`merge_scenario_text`).
+    """
+    target = Path(path)
+    text: str | None = None
+    if target.is_file():
+        try:
+            text = merge_scenario_text(target.read_text(encoding="utf-8"), scenario)
+        except (OSError, UnicodeDecodeError):
+            text = None
+    write_text_atomic(target, text if text is not None else dumps_scenario(scenario))
+
+
+def merge_scenario_text(text: str, scenario: Scenario) -> str | None:
+    """``text`` (a scenario file) updated to hold ``scenario``, comments and layout kept.
+
+    Unchanged values keep their original spelling (``"1.6 ug/mL"`` stays as
+    typed); changed values are rewritten and keep the comment on their line;
+    tables and entries the scenario no longer has are removed.  The merged text
+    is read back and must equal ``scenario``; otherwise (or when ``text`` is
+    not TOML) None is returned and the caller writes a fresh file.
+    """
+    import tomlkit
+    from tomlkit.exceptions import TOMLKitError
+
+    try:
+        doc = tomlkit.parse(text)
+    except TOMLKitError:
+        return None
+    _merge_table(doc, scenario_to_dict(scenario))
+    merged = tomlkit.dumps(doc)
+    try:
+        if loads_scenario(merged) == scenario:
+            return merged
+    except InputError:
+        pass
+    return None
+
+
+def _same(old: Any, new: Any) -> bool:
+    """Equal values, or two unit texts for the same quantity (e.g. "1.6 ug/mL" and "1.6 µg/mL")."""
+    if isinstance(old, bool) or isinstance(new, bool):
+        return old is new
+    if old == new:
+        return True
+    if isinstance(old, str) and isinstance(new, str):
+        return units.same_quantity_text(old, new)
+    if isinstance(old, list) and isinstance(new, list) and len(old) == len(new):
+        return all(_same(a, b) for a, b in zip(old, new, strict=True))
+    return False
+
+
+def _merge_table(node: Any, new: dict[str, Any]) -> None:
+    from tomlkit.items import AoT, Item
+
+    for key in list(node.keys()):
+        if key not in new:
+            del node[key]
+    for key, value in new.items():
+        if key not in node:
+            node[key] = value
+            continue
+        old = node[key]
+        if isinstance(value, dict) and isinstance(old, dict):
+            _merge_table(old, value)
+        elif _is_table_list(value) and isinstance(old, AoT) and len(old) == len(value):
+            for old_item, new_item in zip(old, value, strict=True):
+                _merge_table(old_item, new_item)
+        elif not _same(old.unwrap() if isinstance(old, Item) else old, value):
+            comment = getattr(getattr(old, "trivia", None), "comment", "")
+            node[key] = value
+            if comment and isinstance(node[key], Item) and not isinstance(node[key], AoT | dict):
+                node[key].comment(comment.lstrip("# "))
 
 
 def write_text_atomic(path: Path, text: str) -> None:

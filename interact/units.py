@@ -33,6 +33,7 @@ __all__ = [
     "magnitude",
     "parse",
     "parse_fraction",
+    "same_quantity_text",
     "unit_text",
     "ureg",
 ]
@@ -187,6 +188,18 @@ def amount_umol(quantity: pint.Quantity, molar_mass: pint.Quantity | None, *, fi
         )
     per = _ratio_factor(quantity._units, molar_mass._units, "umol")
     return float(quantity.magnitude) / float(molar_mass.magnitude) * per
+
+
+def same_quantity_text(a: str, b: str) -> bool:
+    """True when two texts such as ``"1.6 ug/mL"`` and ``"1.6 µg/mL"`` are the same quantity."""
+    try:
+        qa = _parse_text(a, "", "")
+        qb = _parse_text(b, "", "")
+    except UnitError:
+        return False
+    if qa.dimensionality != qb.dimensionality:
+        return False
+    return bool(float(qa.magnitude) * _factor(qa._units, str(qb.units)) == float(qb.magnitude))
 
 
 def format_quantity(quantity: pint.Quantity) -> str:

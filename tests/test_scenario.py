@@ -159,3 +159,39 @@ def test_new_file_gets_usual_permissions(tmp_path: Path) -> None:
     finally:
         os.umask(mask)
     assert (tmp_path / "new.toml").stat().st_mode & 0o777 == 0o644
+
+
+def test_save_over_a_file_keeps_comments_and_spelling(tmp_path: Path) -> None:
+    """Nothing the user wrote is lost: comments and unchanged values survive a save."""
+    import dataclasses
+
+    path = tmp_path / "mine.toml"
+    path.write_text(demo_path().read_text(encoding="utf-8"), encoding="utf-8")
+    s = load_scenario(path)
+    edited = dataclasses.replace(s, victim=dataclasses.replace(s.victim, fg=0.5))
+    save_scenario(edited, path)
+    text = path.read_text(encoding="utf-8")
+    assert "# Built-in demo scenario." in text  # the file's own header comment
+    assert 'cmax = "1.6 ug/mL"            # total plasma Cmax at steady state, highest dose' in text
+    assert "fg = 0.5" in text and "fg = 0.45" not in text
+    assert load_scenario(path) == edited
+
+
+def test_save_removes_entries_no_longer_there(tmp_path: Path) -> None:
+    import dataclasses
+
+    path = tmp_path / "mine.toml"
+    path.write_text(demo_path().read_text(encoding="utf-8"), encoding="utf-8")
+    s = load_scenario(path)
+    fewer = dataclasses.replace(s, perpetrator=dataclasses.replace(s.perpetrator, metabolites=(), inhibits=s.perpetrator.inhibits[:1]))
+    save_scenario(fewer, path)
+    assert load_scenario(path) == fewer
+    assert "Corvexazole M3" not in path.read_text(encoding="utf-8")
+
+
+def test_save_over_a_non_toml_file_writes_fresh(tmp_path: Path) -> None:
+    path = tmp_path / "junk.toml"
+    path.write_text("not [toml", encoding="utf-8")
+    s = load_scenario(demo_path())
+    save_scenario(s, path)
+    assert load_scenario(path) == s
