@@ -487,9 +487,14 @@ class InteractApp(App[int]):
         self._show_results()
 
     # ------------------------------------------------------------------ fitting
-    def on_mount_fit_defaults(self) -> None:
+    def on_mount_fit_defaults(self, tries: int = 0) -> None:
+        boxes = self.query("#fit-target")
+        if not boxes:  # the pane's inputs are not composed yet (a busy machine): try after the next refresh
+            if tries < 50:
+                self.call_after_refresh(self.on_mount_fit_defaults, tries + 1)
+            return
         target = get_path(self.data, ("perpetrator", "inhibits", 0, "target"), "")
-        box = self.query_one("#fit-target", Input)
+        box = boxes.first(Input)
         if not box.value and isinstance(target, str):
             box.value = target
 
