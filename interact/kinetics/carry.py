@@ -25,13 +25,11 @@ from dataclasses import dataclass
 from typing import Any
 
 import tomlkit
-from tomlkit.exceptions import TOMLKitError
-from tomlkit.items import AoT, Table
 
 from .. import units
 from ..errors import InputError
 from ..scenario import loads_scenario
-from ..tables import load_targets, resolve_target
+from .scenario_update import inhibition_entry
 
 __all__ = ["ColumnData", "carry_constants_text", "parse_fold_change_csv", "parse_preincubation_csv"]
 
@@ -126,34 +124,7 @@ def carry_constants_text(text: str, *, target: str, values: dict[str, Any], orig
     from.  Raises :class:`InputError` for unreadable TOML, an unknown target or
     an update that would make the scenario invalid.
     """
-    resolved = resolve_target(target)
-    if resolved is None:
-        known = ", ".join(t.name for t in load_targets())
-        raise InputError("target", target, f"is not a known enzyme or transporter; expected one of {known}")
-    try:
-        doc = tomlkit.parse(text)
-    except TOMLKitError as exc:
-        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
-    perp = doc.get("perpetrator")
-    if not isinstance(perp, Table):
-        raise InputError(f"{source}: perpetrator", None, "is missing; expected a [perpetrator] table")
-    inhibits = perp.get("inhibits")
-    if inhibits is None:
-        inhibits = tomlkit.aot()
-        perp.append("inhibits", inhibits)
-    if not isinstance(inhibits, AoT):
-        raise InputError(f"{source}: perpetrator.inhibits", "value", "is not a list of [[perpetrator.inhibits]] tables")
-    entry = None
-    for item in inhibits:
-        name = item.get("target")
-        found = resolve_target(str(name)) if name is not None else None
-        if found is not None and found.name == resolved.name:
-            entry = item
-            break
-    if entry is None:
-        entry = tomlkit.table()
-        entry["target"] = resolved.name
-        inhibits.append(entry)
+    doc, entry, _ = inhibition_entry(text, target=target, source=source)
     for key, value in (*values.items(), ("origin", origin)):
         old = entry.get(key)
         old_comment = old.trivia.comment.lstrip("#").strip() if old is not None and hasattr(old, "trivia") else ""

@@ -22,7 +22,7 @@ from ..errors import InputError
 from ..scenario import MECHANISMS, loads_scenario
 from ..tables import load_targets, resolve_target
 
-__all__ = ["update_inhibition_text"]
+__all__ = ["inhibition_entry", "update_inhibition_text"]
 
 _CONFLICTING = ("ic50", "substrate_conc", "km")
 
@@ -75,35 +75,7 @@ def update_inhibition_text(
         raise InputError("alpha", alpha, "is needed (finite, above zero) for a mixed mechanism")
     if fu_inc is not None and not (math.isfinite(fu_inc) and 0 < fu_inc <= 1):
         raise InputError("fu_inc", fu_inc, "is not in (0, 1]")
-    resolved = resolve_target(target)
-    if resolved is None:
-        known = ", ".join(t.name for t in load_targets())
-        raise InputError("target", target, f"is not a known enzyme or transporter; expected one of {known}")
-    try:
-        doc = tomlkit.parse(text)
-    except TOMLKitError as exc:
-        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
-    perp = doc.get("perpetrator")
-    if not isinstance(perp, Table):
-        raise InputError(f"{source}: perpetrator", None, "is missing; expected a [perpetrator] table to carry the fitted Ki into")
-    inhibits = perp.get("inhibits")
-    if inhibits is None:
-        inhibits = tomlkit.aot()
-        perp.append("inhibits", inhibits)
-    if not isinstance(inhibits, AoT):
-        raise InputError(f"{source}: perpetrator.inhibits", "value", "is not a list of [[perpetrator.inhibits]] tables")
-    entry: Table | None = None
-    for item in inhibits:
-        name = item.get("target")
-        found = resolve_target(str(name)) if name is not None else None
-        if found is not None and found.name == resolved.name:
-            entry = item
-            break
-    created = entry is None
-    if entry is None:
-        entry = tomlkit.table()
-        entry["target"] = resolved.name
-        inhibits.append(entry)
+    doc, entry, created = inhibition_entry(text, target=target, source=source, purpose="to carry the fitted Ki into")
     body = entry.value.body
     trail: list[Any] = []
     while body and body[-1][0] is None and isinstance(body[-1][1], Whitespace):
@@ -142,3 +114,38 @@ def update_inhibition_text(
     new_text = tomlkit.dumps(doc)
     loads_scenario(new_text, source=source)  # raises ScenarioError (an InputError) listing problems
     return new_text
+
+
+def inhibition_entry(text: str, *, target: str, source: str = "scenario", purpose: str = "") -> tuple[Any, Table, bool]:
+    """Parse scenario ``text`` and find the ``[[perpetrator.inhibits]]`` entry for ``target``.
+
+    The entry is created (holding only ``target``) when absent.  Returns the
+    tomlkit document, the entry and whether it was created; raises :class:`InputError` for an unknown
+    target, unreadable TOML or a file without a ``[perpetrator]`` table.
+    """
+    resolved = resolve_target(target)
+    if resolved is None:
+        known = ", ".join(t.name for t in load_targets())
+        raise InputError("target", target, f"is not a known enzyme or transporter; expected one of {known}")
+    try:
+        doc = tomlkit.parse(text)
+    except TOMLKitError as exc:
+        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
+    perp = doc.get("perpetrator")
+    if not isinstance(perp, Table):
+        raise InputError(f"{source}: perpetrator", None, "is missing; expected a [perpetrator] table" + (f" {purpose}" if purpose else ""))
+    inhibits = perp.get("inhibits")
+    if inhibits is None:
+        inhibits = tomlkit.aot()
+        perp.append("inhibits", inhibits)
+    if not isinstance(inhibits, AoT):
+        raise InputError(f"{source}: perpetrator.inhibits", "value", "is not a list of [[perpetrator.inhibits]] tables")
+    for item in inhibits:
+        name = item.get("target")
+        found = resolve_target(str(name)) if name is not None else None
+        if found is not None and found.name == resolved.name:
+            return doc, item, False
+    entry = tomlkit.table()
+    entry["target"] = resolved.name
+    inhibits.append(entry)
+    return doc, entry, True
