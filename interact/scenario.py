@@ -880,18 +880,24 @@ def _merge_table(node: Any, new: dict[str, Any]) -> None:
                 node[key].comment(comment.lstrip("# "))
 
 
-def write_text_atomic(path: Path, text: str) -> None:
-    """Write ``text`` to ``path`` so that a reader sees the old file or the new one, never a part."""
+def write_text_atomic(path: Path, text: str | bytes) -> None:
+    """Write ``text`` (or bytes) to ``path`` so that a reader sees the old file or the new one, never a part."""
     folder = path.resolve().parent
     try:
         handle, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
     except OSError as exc:
         raise InputError("path", str(path), f"cannot be written ({exc.strerror})") from None
     try:
-        with os.fdopen(handle, "w", encoding="utf-8", newline="\n") as out:
-            out.write(text)
-            out.flush()
-            os.fsync(out.fileno())
+        if isinstance(text, bytes):
+            with os.fdopen(handle, "wb") as raw:
+                raw.write(text)
+                raw.flush()
+                os.fsync(raw.fileno())
+        else:
+            with os.fdopen(handle, "w", encoding="utf-8", newline="\n") as out:
+                out.write(text)
+                out.flush()
+                os.fsync(out.fileno())
         os.chmod(tmp, path.stat().st_mode & 0o777 if path.exists() else 0o666 & ~_umask())
         os.replace(tmp, path)
     except OSError as exc:

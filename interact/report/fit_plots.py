@@ -88,8 +88,11 @@ def save_figure(plots: Sequence[PlotData], path: str | Path) -> Path:
         ax.set_ylabel(plot.y_label)
         ax.legend(fontsize=7, frameon=False)
     fig.suptitle("Diagnostics of the global nonlinear fit; not the fitting method", fontsize=8, color="0.4")
-    try:
-        fig.savefig(target)
-    except OSError as exc:
-        raise InputError("plot", str(path), f"cannot be written ({exc.strerror or exc.__class__.__name__})") from None
+    import io
+
+    from ..scenario import write_text_atomic
+
+    buffer = io.BytesIO()
+    fig.savefig(buffer, format=target.suffix.lower().lstrip("."))
+    write_text_atomic(target, buffer.getvalue())  # atomic: the old file or the new one, never a part
     return target
