@@ -223,16 +223,21 @@ def _hyp_jac(x: Array, th: Array) -> Array:
     return np.column_stack((x / d, -th[0] * x / d**2))
 
 
-def guess_inactivation(concentration_um: ArrayLike, kobs_per_min: ArrayLike) -> tuple[float, float]:
-    """Starting values (kinact, KI): 1.2 x the largest kobs, and the concentration nearest half of it."""
-    c = np.asarray(concentration_um, dtype=float)
-    k = np.asarray(kobs_per_min, dtype=float)
-    kinact = 1.2 * float(k.max()) if k.max() > 0 else 1.0
+def guess_hyperbola(x: ArrayLike, rise: ArrayLike) -> tuple[float, float]:
+    """Starting values for rise = top x / (half + x): 1.2 x the largest rise, and the x nearest half of it."""
+    c = np.asarray(x, dtype=float)
+    r = np.asarray(rise, dtype=float)
+    top = 1.2 * float(r.max()) if r.max() > 0 else 1.0
     pos = c > 0
     if not pos.any():
-        return kinact, 1.0
-    idx = int(np.argmin(np.abs(k[pos] - kinact / 2)))
-    return kinact, float(c[pos][idx])
+        return top, 1.0
+    idx = int(np.argmin(np.abs(r[pos] - top / 2)))
+    return top, float(c[pos][idx])
+
+
+def guess_inactivation(concentration_um: ArrayLike, kobs_per_min: ArrayLike) -> tuple[float, float]:
+    """Starting values (kinact, KI): 1.2 x the largest kobs, and the concentration nearest half of it."""
+    return guess_hyperbola(concentration_um, kobs_per_min)
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)

@@ -27,7 +27,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from ..errors import FitError
-from .inactivation import Array, CurveFit, Estimate, _checked, fit_curve
+from .inactivation import Array, CurveFit, Estimate, _checked, fit_curve, guess_hyperbola
 
 __all__ = ["EMAX_EQUATION", "HILL_EQUATION", "InductionFit", "fit_induction", "fold_change_model", "guess_induction"]
 
@@ -75,15 +75,7 @@ def _hill_jac(x: Array, th: Array) -> Array:
 
 def guess_induction(concentration_um: ArrayLike, fold: ArrayLike) -> tuple[float, float]:
     """Starting (Emax, EC50): 1.2 x the largest rise over 1, and the concentration nearest half of it."""
-    c = np.asarray(concentration_um, dtype=float)
-    f = np.asarray(fold, dtype=float)
-    rise = f - 1.0
-    emax = 1.2 * float(rise.max()) if rise.max() > 0 else 1.0
-    pos = c > 0
-    if not pos.any():
-        return emax, 1.0
-    idx = int(np.argmin(np.abs(rise[pos] - emax / 2)))
-    return emax, float(c[pos][idx])
+    return guess_hyperbola(concentration_um, np.asarray(fold, dtype=float) - 1.0)
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
