@@ -5,6 +5,7 @@ Both shells render an Assessment; neither recomputes anything.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Final
 
@@ -12,6 +13,7 @@ from . import __version__, units
 from .cautions import CAUTIONS
 from .constants import Constant, resolve_constants
 from .dosing import DoseLimit, DoseSuggestion, highest_perpetrator_scale, suggest_dose
+from .errors import InputError
 from .exposure import Setting, SpeciesExposure, resolve_exposure, resolve_settings
 from .prediction import Prediction, predict, ratio_function
 from .scenario import Scenario
@@ -142,6 +144,7 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
     fg = 1.0 if v.fg is None else v.fg
     pathways = tuple((pw.enzyme, pw.fm) for pw in v.pathways)
     prediction = predict(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, classes=classes)
+    _check_finite(screen_results, prediction, constants)
 
     # -- warnings a reviewer would want
     if gut_enzyme is not None and fg_setting_default:
@@ -284,6 +287,22 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         memory_values=memory,
         provenance=provenance,
     )
+
+
+def _check_finite(screen_results: tuple[ScreenResult, ...], prediction: Prediction, constants: tuple[Constant, ...]) -> None:
+    """Refuse a silent infinite or undefined number: extreme inputs (a Ki,u of 1e-300 uM) overflow floats."""
+    bad = [r for r in screen_results if not math.isfinite(r.value)]
+    if bad or not all(math.isfinite(x) and x > 0 for x in (prediction.gut, prediction.liver, prediction.total)):
+        target = bad[0].target if bad else next((e.enzyme for e in prediction.effects if not math.isfinite(e.liver.activity)), "")
+        shown = (
+            ", ".join(f"{c.species} Ki,u {c.ki_u_um:.3g} uM" for c in constants if c.target == target and c.ki_u_um is not None)
+            or "the inputs"
+        )
+        raise InputError(
+            f"perpetrator.inhibits ({target or 'all targets'})",
+            shown,
+            "give a ratio beyond floating-point range; expected constants and fractions (fu_inc, fu_plasma) of plausible size",
+        )
 
 
 def _perpetrator_limit(p, prediction: Prediction, ratio_at, upper: float) -> DoseLimit:  # type: ignore[no-untyped-def]

@@ -81,3 +81,12 @@ def test_assess_is_fast_enough_for_live_recompute() -> None:
     for _ in range(20):
         assess(s)
     assert (time.perf_counter() - t0) / 20 < 0.02
+
+
+def test_extreme_constants_give_an_error_not_infinity(scenario_dict: dict) -> None:
+    """Found by the fuzz test: fu_inc = 2.2e-308 made Ki,u so small that R1,gut overflowed to inf."""
+    from interact.errors import InputError
+
+    scenario_dict["perpetrator"]["inhibits"][0]["fu_inc"] = 2.2250738585072014e-308
+    with pytest.raises(InputError, match=r"^perpetrator\.inhibits \(CYP3A\): .*floating-point range"):
+        assess(scenario_from_dict(scenario_dict))
