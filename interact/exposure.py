@@ -34,8 +34,6 @@ __all__ = [
     "unbound_inlet_um",
 ]
 
-ORIGINS: Final = ("given", "default", "rule set", "override", "floor")
-
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Setting:

@@ -386,6 +386,9 @@ class _Reader:
             self.fail(f"{path}.mechanism", f'"{mechanism[:40]}" is not one of {", ".join(MECHANISMS)}')
         alpha = self.number(data, "alpha", path, low=0.0, high=1e6)
         fu_inc = self.fraction(data, "fu_inc", path)
+        if fu_inc is not None:
+            self.attempt(f"{path}.fu_inc", lambda: units.check_fraction_size(fu_inc, f"{path}.fu_inc", fu_inc))  # type: ignore[arg-type]
+            fu_inc = fu_inc if fu_inc >= units.MIN_FRACTION else None
         kinact = self.quantity(data, "kinact", path, "rate")
         ki_inact = self.quantity(data, "ki_inact", path, "concentration")
         emax = self.number(data, "emax", path, low=0.0, high=1e4, low_open=False)

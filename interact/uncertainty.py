@@ -168,6 +168,8 @@ def _bound(text: str, inp: Input, field: str) -> float:
             raise InputError(field, text, "is not a plain number; expected a number such as 0.4") from None
         if not math.isfinite(value):
             raise InputError(field, text, "is not finite; expected a number such as 0.4")
+        if inp.kind == "fraction" and field.endswith("fu_inc"):
+            units.check_fraction_size(value, field, text)
         return value
     q = units.parse(text, inp.kind, field=field)
     if inp.kind == "concentration":

@@ -86,6 +86,10 @@ _NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s
 _UNIT_CHARS = re.compile(r"^[A-Za-zµμ0-9/*^ ().%-]*$")
 _DASH_POWER = re.compile(r"([A-Za-zµμ])\s*-\s*(\d)\b")  # "min-1" -> "min**-1"
 _MAX_TEXT = 80
+#: the smallest fraction and the magnitude range accepted; beyond them ratios such as
+#: Igut / (Ki x fu,inc) overflow floating point (every path: assess, batch, uncertainty)
+MIN_FRACTION: Final = 1e-9
+MAGNITUDE_RANGE: Final = (1e-30, 1e30)
 
 
 def parse(
@@ -154,6 +158,12 @@ def parse_fraction(text: object, *, field: str, allow_zero: bool = False, upper:
     if value < 0 or value > upper or (value == 0 and not allow_zero):
         raise UnitError(field, text, f"is outside {span}; {wanted}")
     return value
+
+
+def check_fraction_size(value: float, field: str, shown: object) -> None:
+    """Refuse a divisor fraction (fu,inc) above zero but below :data:`MIN_FRACTION`: no binding is that tight."""
+    if 0 < value < MIN_FRACTION:
+        raise UnitError(field, shown, f"is below {MIN_FRACTION:g}; expected a fraction of plausible size")
 
 
 def magnitude(quantity: pint.Quantity, unit: str) -> float:
@@ -282,3 +292,6 @@ def _check_magnitude(value: float, field: str, shown: object, phrase: str, allow
         raise UnitError(field, shown, f"is negative; expected {phrase} above zero")
     if value == 0 and not allow_zero:
         raise UnitError(field, shown, f"is zero; expected {phrase} above zero")
+    low, high = MAGNITUDE_RANGE
+    if value and not low <= value <= high:
+        raise UnitError(field, shown, f"is beyond the plausible range ({low:g} to {high:g} in the unit given); expected {phrase}")

@@ -6,6 +6,7 @@ import pytest
 
 from interact import assess, load_scenario
 from interact.cautions import CAUTIONS
+from interact.errors import ScenarioError
 from interact.kinetics.conversion import ki_from_ic50
 from interact.scenario import demo_path, scenario_from_dict
 
@@ -84,9 +85,20 @@ def test_assess_is_fast_enough_for_live_recompute() -> None:
 
 
 def test_extreme_constants_give_an_error_not_infinity(scenario_dict: dict) -> None:
-    """Found by the fuzz test: fu_inc = 2.2e-308 made Ki,u so small that R1,gut overflowed to inf."""
+    """Found by the fuzz test: fu_inc = 2.2e-308 made Ki,u so small that R1,gut overflowed to inf.
+
+    The scenario reader refuses such a fraction; assess() also refuses an overflowing
+    ratio from a scenario built in code, past the reader."""
+    import dataclasses
+
     from interact.errors import InputError
 
     scenario_dict["perpetrator"]["inhibits"][0]["fu_inc"] = 2.2250738585072014e-308
+    with pytest.raises(ScenarioError, match=r"perpetrator\.inhibits\[0\]\.fu_inc.*below 1e-09"):
+        scenario_from_dict(scenario_dict)
+    scenario_dict["perpetrator"]["inhibits"][0]["fu_inc"] = 0.5
+    s = scenario_from_dict(scenario_dict)
+    tiny = dataclasses.replace(s.perpetrator.inhibits[0], fu_inc=2.2250738585072014e-308)
+    s = dataclasses.replace(s, perpetrator=dataclasses.replace(s.perpetrator, inhibits=(tiny,)))
     with pytest.raises(InputError, match=r"^perpetrator\.inhibits \(CYP3A\): .*floating-point range"):
-        assess(scenario_from_dict(scenario_dict))
+        assess(s)

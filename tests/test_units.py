@@ -101,3 +101,14 @@ def test_half_typed_units_are_unit_errors(text: str) -> None:
     with pytest.raises(UnitError, match=r"perpetrator\.cmax") as info:
         units.parse(text, "concentration", field="perpetrator.cmax")
     assert info.value.value == text
+
+
+def test_implausible_sizes_are_refused() -> None:
+    """Beyond these, ratios overflow floats (the fuzz test found fu_inc = 2.2e-308)."""
+    with pytest.raises(UnitError, match=r"^fu_inc: .*below 1e-09"):
+        units.check_fraction_size(2.2250738585072014e-308, "fu_inc", 2.2250738585072014e-308)
+    with pytest.raises(UnitError, match="plausible range"):
+        units.parse("1e-300 uM", "concentration", field="ki")
+    with pytest.raises(UnitError, match="plausible range"):
+        units.parse("1e300 mg", "dose", field="dose")
+    assert units.parse_fraction(1e-6, field="fu") == 1e-6
