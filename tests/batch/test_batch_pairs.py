@@ -12,7 +12,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from interact import assess
-from interact.arrays import ACTIONS
+from interact.dosing import ACTIONS
 from interact.batch import evaluate_pairs, loads_perpetrators, loads_victims, pair_scenario, ranking
 from interact.tables import load_classes
 
