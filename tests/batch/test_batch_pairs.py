@@ -12,8 +12,8 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from interact import assess
-from interact.dosing import ACTIONS
 from interact.batch import evaluate_pairs, loads_perpetrators, loads_victims, pair_scenario, ranking
+from interact.dosing import ACTIONS
 from interact.tables import load_classes
 
 ENZYMES = ("CYP3A", "CYP2C9", "CYP2D6")
