@@ -631,8 +631,8 @@ class _Reader:
         max_units = None
         if "max_units" in data:
             mu = data["max_units"]
-            if isinstance(mu, int) and not isinstance(mu, bool) and 1 <= mu <= 8:
-                max_units = mu
+            if isinstance(mu, (int, float)) and not isinstance(mu, bool) and math.isfinite(mu) and mu == int(mu) and 1 <= mu <= 8:
+                max_units = int(mu)
             else:
                 self.fail(f"{path}.max_units", f"{_brief(mu)} is not a whole number from 1 to 8 (units per administration)")
         pathways: list[Pathway] = []
