@@ -23,7 +23,7 @@ import dataclasses
 import itertools
 import math
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Final
 
 import numpy as np
@@ -159,18 +159,13 @@ class RegimenPlan:
     max_units: int
     intervals_h: tuple[float, ...]
 
-    @property
-    def factors(self) -> NDArray[np.float64]:
-        """Exposure ratio of each candidate per unit AUC ratio (dose / usual, or usual interval / interval); NaN for the exact dose."""
-        return np.array(
-            [
-                math.nan
-                if c.kind == "exact dose"
-                else (c.dose / self.usual_dose if c.kind == "dose" else self.usual_interval_h / c.interval_h)
-                for c in self.candidates
-            ],
-            dtype=float,
-        )
+    # derived arrays, one entry per candidate (built by plan_regimens)
+    factors: NDArray[np.float64] = field(repr=False, compare=False)  # exposure ratio per unit AUCR; NaN for the exact dose
+    log_factors: NDArray[np.float64] = field(repr=False, compare=False)
+    exact: NDArray[np.bool_] = field(repr=False, compare=False)
+    interval: NDArray[np.bool_] = field(repr=False, compare=False)
+    taus_h: NDArray[np.float64] = field(repr=False, compare=False)  # the interval candidates' intervals
+    codes: NDArray[np.int8] = field(repr=False, compare=False)  # action of each candidate, then AVOID (index -1)
 
 
 def _check_boundary(name: str, b: tuple[float, float]) -> tuple[float, float]:
@@ -264,6 +259,14 @@ def plan_regimens(
         {float(t) for t in intervals_h if not math.isclose(t, interval_h, rel_tol=1e-9)}, key=lambda t: (abs(math.log(t / interval_h)), t)
     )
     regimens = (*doses, *(Regimen(kind="interval", dose=usual_dose, interval_h=t, makeup="", units=0) for t in taus))
+    factors = np.array(
+        [
+            math.nan if c.kind == "exact dose" else (c.dose / usual_dose if c.kind == "dose" else interval_h / c.interval_h)
+            for c in regimens
+        ],
+        dtype=float,
+    )
+    codes = [INTERVAL if c.kind == "interval" else (INCREASE if c.kind == "dose" and c.dose > usual_dose else REDUCE) for c in regimens]
     return RegimenPlan(
         usual_dose=usual_dose,
         dose_unit=dose_unit,
@@ -278,6 +281,12 @@ def plan_regimens(
         narrow_therapeutic_index=narrow_therapeutic_index,
         max_units=max_units,
         intervals_h=tuple(sorted(float(t) for t in intervals_h)),
+        factors=factors,
+        log_factors=np.log(factors),
+        exact=np.array([c.kind == "exact dose" for c in regimens], dtype=bool),
+        interval=np.array([c.kind == "interval" for c in regimens], dtype=bool),
+        taus_h=np.array(taus, dtype=float),
+        codes=np.array([*codes, AVOID], dtype=np.int8),
     )
 
 
@@ -341,32 +350,39 @@ def regimen_feasibility(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | No
     its peak and trough ratios, lie inside their boundaries (inclusive, no
     tolerance).
     """
-    r = np.atleast_1d(np.asarray(total, dtype=float))[:, None]
-    g = np.ones_like(r) if gut is None else np.broadcast_to(np.atleast_1d(np.asarray(gut, dtype=float))[:, None], r.shape)
-    f = plan.factors[None, :]
-    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
-        exposure = r * f
-        exact = np.array([c.kind == "exact dose" for c in plan.candidates])
-        if exact.any():
-            exposure[:, exact] = np.where(np.isfinite(r) & (r > 0.0), 1.0, np.nan)
-        feasible = _inside(exposure, plan.boundary)
-        peak = np.full(exposure.shape, np.nan)
-        trough = np.full(exposure.shape, np.nan)
-        is_tau = np.array([c.kind == "interval" for c in plan.candidates])
-        if plan.half_life_h is not None and is_tau.any():
-            k = _LN2 / plan.half_life_h
-            tau0 = plan.usual_interval_h
-            taus = np.array([c.interval_h for c in plan.candidates if c.kind == "interval"])[None, :]
-            k_new = k * g / r  # clearance divided by the hepatic (non-gut) part AUCR / Rg
-            base = -np.expm1(-k * tau0)
-            den = -np.expm1(-k_new * taus)
-            pk = g * base / den
-            log_tr = np.log(g) + k * tau0 - k_new * taus + math.log(base) - np.log(den)
-            tr = np.exp(log_tr)
-            peak[:, is_tau] = pk
-            trough[:, is_tau] = tr
-            feasible[:, is_tau] &= _inside(pk, plan.peak_boundary) & _inside(tr, plan.trough_boundary)
+    r = np.atleast_1d(np.asarray(total, dtype=float))
+    g = None if gut is None else np.broadcast_to(np.atleast_1d(np.asarray(gut, dtype=float)), r.shape)
+    exposure, feasible, judged = _exposure_and_feasibility(plan, r, g)
+    peak = np.full(exposure.shape, np.nan)
+    trough = np.full(exposure.shape, np.nan)
+    if judged is not None:
+        peak[:, plan.interval], trough[:, plan.interval] = judged
     return CandidateRatios(exposure=exposure, peak=peak, trough=trough, feasible=feasible)
+
+
+def _exposure_and_feasibility(
+    plan: RegimenPlan, total: NDArray[np.float64], gut: NDArray[np.float64] | None
+) -> tuple[NDArray[np.float64], NDArray[np.bool_], tuple[NDArray[np.float64], NDArray[np.float64]] | None]:
+    """(exposure ratios, feasibility, (peak, trough) of the interval columns or None): rows x candidates."""
+    r = total[:, None]
+    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
+        exposure = r * plan.factors[None, :]
+        if plan.exact.any():
+            exposure[:, plan.exact] = np.where(np.isfinite(r) & (r > 0.0), 1.0, np.nan)
+        feasible = _inside(exposure, plan.boundary)
+        if plan.half_life_h is None or not plan.interval.any():
+            return exposure, feasible, None
+        g = np.ones_like(r) if gut is None else gut[:, None]
+        k = _LN2 / plan.half_life_h
+        tau0 = plan.usual_interval_h
+        taus = plan.taus_h[None, :]
+        k_new = k * g / r  # clearance divided by the hepatic (non-gut) part AUCR / Rg
+        base = -math.expm1(-k * tau0)
+        den = -np.expm1(-k_new * taus)
+        pk = g * base / den
+        tr = np.exp(np.log(g) + k * tau0 - k_new * taus + math.log(base) - np.log(den))
+        feasible[:, plan.interval] &= _inside(pk, plan.peak_boundary) & _inside(tr, plan.trough_boundary)
+    return exposure, feasible, (pk, tr)
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -377,13 +393,6 @@ class RegimenChoice:
     chosen: NDArray[np.intp]
 
 
-def _score(c: CandidateRatios) -> NDArray[np.float64]:
-    """Distance from the usual exposure (log scale) of feasible candidates, inf otherwise; rounded so ties fall to candidate order."""
-    with np.errstate(divide="ignore", invalid="ignore"):
-        s = np.abs(np.log(c.exposure))
-    return np.where(c.feasible, np.round(s, 12), np.inf)
-
-
 def _choose_chunk(
     plan: RegimenPlan, total: NDArray[np.float64], gut: NDArray[np.float64] | None
 ) -> tuple[NDArray[np.int8], NDArray[np.intp]]:
@@ -392,22 +401,21 @@ def _choose_chunk(
     if not plan.candidates:
         chosen = np.full(n, -1, dtype=np.intp)
     else:
-        score = _score(regimen_feasibility(plan, total, gut))
+        _, feasible, _ = _exposure_and_feasibility(plan, total, gut)
+        # distance from the usual exposure on the log scale, |log(AUCR x factor)|; 0 for the exact dose; ties go to the
+        # earlier candidate (argmin takes the first)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            score = np.abs(np.log(total)[:, None] + plan.log_factors[None, :])
+        if plan.exact.any():
+            score[:, plan.exact] = 0.0
+        score[~feasible] = np.inf
         chosen = np.argmin(score, axis=1).astype(np.intp)
-        chosen = np.where(np.isfinite(score[np.arange(n), chosen]), chosen, -1)
-    kind_code = np.array(
-        [
-            INTERVAL if c.kind == "interval" else (REDUCE if c.dose < plan.usual_dose else INCREASE) if c.kind == "dose" else REDUCE
-            for c in plan.candidates
-        ]
-        + [AVOID],
-        dtype=np.int8,
-    )
-    action = kind_code[chosen]  # chosen = -1 picks AVOID
-    exact = np.array([c.kind == "exact dose" for c in plan.candidates] + [False])
-    action = np.where(exact[chosen] & (total < 1.0), np.int8(INCREASE), action)
+        chosen[~np.isfinite(score[np.arange(n), chosen])] = -1
+    action = plan.codes[chosen]  # chosen = -1 picks AVOID
+    if plan.exact.any():
+        action = np.where(plan.exact[np.maximum(chosen, 0)] & (chosen >= 0) & (total < 1.0), np.int8(INCREASE), action)
     action = np.where(inside, np.int8(NO_CHANGE), action).astype(np.int8)
-    chosen = np.where(inside, -1, chosen)
+    chosen[inside] = -1
     return action, chosen
 
 
