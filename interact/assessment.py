@@ -195,6 +195,11 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         gut_ratio=prediction.gut,
         mechanism_parts=tuple((pt.mechanism, pt.total) for pt in prediction.parts) if "induction" in prediction.mechanisms else (),
     )
+    if plan.narrow_therapeutic_index and plan.boundary_origin.startswith("default"):
+        warnings.append(
+            f"The default no-effect boundary {boundary[0]:g}-{boundary[1]:g} was applied to a narrow-therapeutic-index victim; "
+            "give its own victim.no_effect_boundary (usually narrower) from its label or exposure-response data."
+        )
     if p.cmax_dose is not None:
         dose_now = units.magnitude(p.dose, units.unit_text(p.cmax_dose))
         measured_at = float(p.cmax_dose.magnitude)

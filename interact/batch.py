@@ -101,7 +101,7 @@ VICTIM_COLUMNS: Final = (
 FLAGS: Final = (
     "fg not given: no gut-wall interaction predicted",
     "fu,p raised to the floor",
-    "narrow therapeutic index",
+    "narrow therapeutic index: any change only with therapeutic drug monitoring",
     "a victim pathway is not inhibited by this perpetrator",
     "basic model flags a study",
 )
