@@ -18,7 +18,7 @@ from ..assessment import Assessment
 from ..cautions import DOSE_CAUTIONS, INCREASE_CAUTION
 from ..report.assessment import assessment_sections
 from ..report.document import Note, Section, Table
-from ..report.numbers import fmt, fmt_ratio
+from ..report.numbers import fmt_ratio
 from .doc import Doc
 
 __all__ = ["Comparison", "compare", "flatten", "render_answer", "render_stale", "sections_doc"]
