@@ -5,9 +5,10 @@ Both shells render an Assessment; neither recomputes anything.
 
 from __future__ import annotations
 
+import json
 import math
 from dataclasses import dataclass
-from typing import Final
+from typing import Any, Final
 
 from . import __version__, units
 from .cautions import CAUTIONS
@@ -60,6 +61,34 @@ class Assessment:
     cautions: tuple[str, ...]
     memory_values: tuple[str, ...]
     provenance: Provenance
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready data in the documented schema (``schema`` = :data:`interact.results.ASSESSMENT_SCHEMA`).
+
+        Returns
+        -------
+        dict
+            Concentrations in uM, rates in 1/h, ratios dimensionless; the same
+            data as ``interact assess --format json`` (without a time course).
+        """
+        from .results import assessment_dict
+
+        return assessment_dict(self)
+
+    def to_json(self, indent: int | None = 2) -> str:
+        """:meth:`to_dict` as JSON text (strict: no NaN or infinity)."""
+        return json.dumps(self.to_dict(), indent=indent, allow_nan=False)
+
+    def __repr__(self) -> str:
+        from .results import assessment_repr
+
+        return assessment_repr(self)
+
+    def _repr_html_(self) -> str:
+        """The summary, ratios, action, warnings and cautions as HTML (shown by Jupyter)."""
+        from .results import assessment_html
+
+        return assessment_html(self)
 
 
 def _kdeg(

@@ -27,11 +27,12 @@ import io
 import math
 import re
 import tomllib
-from collections.abc import Callable, Iterator
+from collections.abc import Callable, Iterable, Iterator, Mapping
 from dataclasses import dataclass
 from typing import Any, Final
 
 import numpy as np
+import pint
 from numpy.typing import NDArray
 
 from . import units
@@ -289,6 +290,8 @@ def _rows_toml(text: str, side: str, source: str) -> tuple[list[str], list[tuple
 def _cell_text(value: Any) -> str:
     if isinstance(value, bool):
         return "true" if value else "false"
+    if isinstance(value, pint.Quantity):  # from records: any registry, read back through its text
+        return f"{float(value.magnitude)!r} {value.units:~}"
     return str(value).strip()
 
 
@@ -445,7 +448,43 @@ class VictimTable:
     source: str
 
 
-def _read(text: str, side: str, source: str, fmt_name: str | None) -> tuple[list[_Column], list[tuple[int, dict[str, Any]]]]:
+def _rows_records(table: Any, source: str) -> tuple[list[str], list[tuple[int, dict[str, Any]]]]:
+    """Rows given as records (mappings of column to value) or a pandas DataFrame; row numbers count from 1.
+
+    Missing values (``None``, NaN, pandas' NA) are left out, as an empty CSV cell is; numpy scalars
+    become Python values.
+    """
+    if hasattr(table, "to_dict") and hasattr(table, "columns"):  # a pandas DataFrame (duck-typed: pandas is optional)
+        table = table.to_dict("records")
+    if isinstance(table, Mapping):
+        raise InputError(source, type(table).__name__, "is one mapping; expected a list of records (one mapping per row) or a DataFrame")
+    headers: list[str] = []
+    entries: list[tuple[int, dict[str, Any]]] = []
+    for k, record in enumerate(table, start=1):
+        if not isinstance(record, Mapping):
+            raise InputError(f"{source} row {k}", record, "is not a mapping of column names to values")
+        row: dict[str, Any] = {}
+        for key, value in record.items():
+            if not isinstance(key, str):
+                raise InputError(f"{source} row {k}", key, "is not a column name (text)")
+            if isinstance(value, np.generic):
+                value = value.item()
+            if value is None or (isinstance(value, float) and math.isnan(value)) or type(value).__name__ in ("NAType", "NaTType"):
+                continue
+            row[key] = value
+            if key not in headers:
+                headers.append(key)
+        entries.append((k, row))
+    return headers, entries
+
+
+def _read(table: Any, side: str, source: str, fmt_name: str | None) -> tuple[list[_Column], list[tuple[int, dict[str, Any]]]]:
+    if not isinstance(table, str):
+        headers, entries = _rows_records(table, source)
+        if not headers:
+            raise InputError(source, "no columns", "has no rows with values; expected records with columns such as name, ...")
+        return _columns(headers, side, source), entries
+    text = table
     kind = fmt_name or ("toml" if source.lower().endswith(".toml") else "csv")
     if kind == "toml":
         headers, entries = _rows_toml(text, side, source)
@@ -465,7 +504,7 @@ def _read(text: str, side: str, source: str, fmt_name: str | None) -> tuple[list
 
 
 def _parse_rows(
-    text: str, side: str, source: str, on_error: str, fmt_name: str | None
+    text: Any, side: str, source: str, on_error: str, fmt_name: str | None
 ) -> tuple[list[Any], list[int], list[_Column], list[RowProblem]]:
     if on_error not in ("fail", "skip"):
         raise InputError("on_error", on_error, "is not 'fail' or 'skip'")
@@ -497,7 +536,7 @@ def _parse_rows(
 
 
 def loads_perpetrators(
-    text: str,
+    text: str | Iterable[Mapping[str, Any]] | Any,
     rules: RuleSet | str | None = None,
     *,
     source: str = "perpetrators.csv",
@@ -506,8 +545,27 @@ def loads_perpetrators(
 ) -> PerpetratorTable:
     """Read and validate a perpetrator table; compute each perpetrator's concentrations and basic-model values.
 
-    ``on_error`` is ``fail`` (any bad row raises, naming each with its line) or
-    ``skip`` (bad rows are left out and listed in ``skipped``).
+    Parameters
+    ----------
+    text
+        The table as CSV or TOML text, or as records: a list of mappings (column name to value) or a
+        pandas DataFrame, with the columns of :data:`PERPETRATOR_COLUMNS` (a unit in the header,
+        ``cmax (ng/mL)``, or in each value, ``"812 ng/mL"``; a pint Quantity is accepted as a value).
+        Rows of records are numbered from 1 in messages.
+    rules
+        Rule set (name, path or :class:`~interact.tables.RuleSet`) for the fu,p floor and basic models.
+    source
+        Name used in messages (a file name, or e.g. ``"records"``).
+    on_error
+        ``fail`` (any bad row raises, naming each with its line) or ``skip`` (bad rows are left
+        out and listed in ``skipped``).
+    fmt_name
+        ``csv`` or ``toml`` for text (default: from the ``source`` suffix).
+
+    Returns
+    -------
+    PerpetratorTable
+        Concentrations in uM (Imax,u, Iin,max,u, Igut, I,ent) and unbound Ki in uM per target.
     """
     rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules)
     rows, lines, cols, problems = _parse_rows(text, "perpetrator", source, on_error, fmt_name)
@@ -553,8 +611,14 @@ def loads_perpetrators(
     )
 
 
-def loads_victims(text: str, *, source: str = "victims.csv", on_error: str = "fail", fmt_name: str | None = None) -> VictimTable:
-    """Read and validate a victim table."""
+def loads_victims(
+    text: str | Iterable[Mapping[str, Any]] | Any, *, source: str = "victims.csv", on_error: str = "fail", fmt_name: str | None = None
+) -> VictimTable:
+    """Read and validate a victim table.
+
+    ``text`` is CSV or TOML text, or records (a list of mappings or a pandas DataFrame) with the
+    columns of :data:`VICTIM_COLUMNS`; the other arguments are those of :func:`loads_perpetrators`.
+    """
     rows, lines, cols, problems = _parse_rows(text, "victim", source, on_error, fmt_name)
     enzymes = tuple(dict.fromkeys(c.target for c in cols if c.key == "fm" and c.target is not None))
     n = len(rows)
@@ -616,6 +680,62 @@ class BatchResult:
     @property
     def pairs(self) -> int:
         return int(self.total.size)
+
+    def columns(self, top: int | None = None) -> dict[str, NDArray[Any]]:
+        """The ranked results as named columns (worst pair first), numbers kept as numbers.
+
+        Parameters
+        ----------
+        top
+            Keep only the ``top`` worst pairs (all by default).
+
+        Returns
+        -------
+        dict of str to ndarray
+            ``rank``, ``perpetrator``, ``victim`` (names), ``imax_u_um``, ``iin_max_u_um``,
+            ``igut_um``, ``i_ent_um`` (perpetrator concentrations in uM), ``basic_models`` (text),
+            ``auc_ratio_gut``, ``auc_ratio_liver``, ``auc_ratio`` (dimensionless), ``class``,
+            ``study_indicated`` (bool), ``action`` and ``flags`` (text; ``flag_bits`` the same as
+            bits of :data:`FLAGS`).  The same rows, in the same order, as :func:`result_rows`.
+        """
+        order = ranking(self, top)
+        n_v = len(self.victims.rows)
+        ii, jj = np.divmod(order, n_v)
+        p = self.perpetrators
+        flag_texts = np.array([_flag_text(k) for k in range(1 << len(FLAGS))], dtype=object)
+        bits = self.flags.ravel()[order]
+        return {
+            "rank": np.arange(1, order.size + 1),
+            "perpetrator": np.array([r.name for r in p.rows], dtype=object)[ii],
+            "victim": np.array([r.name for r in self.victims.rows], dtype=object)[jj],
+            "imax_u_um": p.imax_u_um[ii],
+            "iin_max_u_um": p.inlet_um[ii],
+            "igut_um": p.gut_lumen_um[ii],
+            "i_ent_um": p.enterocyte_um[ii],
+            "basic_models": np.array(p.basic, dtype=object)[ii],
+            "auc_ratio_gut": self.gut.ravel()[order],
+            "auc_ratio_liver": self.liver.ravel()[order],
+            "auc_ratio": self.total.ravel()[order],
+            "class": np.array(self.band_names, dtype=object)[self.band.ravel()[order]],
+            "study_indicated": self.study.ravel()[order],
+            "action": np.array(ACTIONS, dtype=object)[self.action.ravel()[order]],
+            "flags": flag_texts[bits],
+            "flag_bits": bits,
+        }
+
+    def to_records(self, top: int | None = None) -> np.ndarray:
+        """:meth:`columns` as a numpy structured array (text columns as Python objects)."""
+        cols = self.columns(top)
+        records = np.empty(cols["rank"].size, dtype=[(k, v.dtype) for k, v in cols.items()])
+        for k, v in cols.items():
+            records[k] = v
+        return records
+
+    def to_pandas(self, top: int | None = None) -> Any:
+        """:meth:`columns` as a pandas DataFrame (needs pandas: ``pip install interact[data]``)."""
+        from .results import data_frame
+
+        return data_frame(self.columns(top))
 
 
 def _chunks(n_p: int, n_v: int) -> Iterator[tuple[int, int]]:

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Final
 
-__all__ = ["CAUTIONS", "CAUTION_LINE", "DOSE_CAUTIONS", "INCREASE_CAUTION"]
+__all__ = ["CAUTIONS", "CAUTION_LINE", "DOSE_CAUTIONS", "FIT_CAUTION", "INCREASE_CAUTION"]
 
 CAUTION_LINE: Final = "Model estimate, not clinical advice: the prescriber, the product label and local guidance decide."
 
@@ -27,4 +27,9 @@ DOSE_CAUTIONS: Final = (
 INCREASE_CAUTION: Final = (
     "A predicted fall in exposure suggests a higher dose: risk of exposure-driven toxicity if the perpetrator is stopped "
     "or its effect wanes, and of lost efficacy if the dose is not raised; the label's maximum dose applies."
+)
+
+FIT_CAUTION: Final = (
+    "In vitro constants feed model predictions, not clinical advice. Check the fitted curves and residuals, "
+    "the design warnings and the binding correction before carrying a Ki into a scenario. " + CAUTION_LINE
 )

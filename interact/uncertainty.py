@@ -34,6 +34,7 @@ are scaled down together (counted too).
 
 from __future__ import annotations
 
+import dataclasses
 import math
 import re
 import tomllib
@@ -627,12 +628,55 @@ class UncertaintyResult:
     best_regimen: RegimenProbability  # the highest probability of staying inside (ties: the usual regimen, then dose changes)
     point_regimen: RegimenProbability | None  # the point suggestion's regimen (None when the point suggestion is no regimen)
     total: NDArray[np.float64] = field(repr=False, compare=False)
+    gut: NDArray[np.float64] = field(default_factory=lambda: np.empty(0), repr=False, compare=False)
+    liver: NDArray[np.float64] = field(default_factory=lambda: np.empty(0), repr=False, compare=False)
+    inputs: dict[str, NDArray[np.float64]] = field(default_factory=dict, repr=False, compare=False)
 
     def percentile(self, q: float) -> float:
         for pct, _, _, t in self.percentiles:
             if pct == q:
                 return t
         raise KeyError(q)
+
+    def sample_columns(self) -> dict[str, NDArray[np.float64]]:
+        """Every sample as named columns of equal length.
+
+        Returns
+        -------
+        dict of str to ndarray
+            One column per varied input, named by its path (values in the
+            input's canonical unit, :attr:`Input.unit`, after clipping to its
+            bounds and scaling of fm sums), then ``auc_ratio_gut``,
+            ``auc_ratio_liver`` and ``auc_ratio`` (dimensionless).
+        """
+        n = self.total.size
+        out = {path: np.broadcast_to(x, (n,)) for path, x in self.inputs.items()}
+        out.update(auc_ratio_gut=self.gut, auc_ratio_liver=self.liver, auc_ratio=self.total)
+        return out
+
+    def to_records(self) -> np.ndarray:
+        """:meth:`sample_columns` as a numpy structured array (one record per sample)."""
+        cols = self.sample_columns()
+        records = np.empty(self.total.size, dtype=[(k, np.float64) for k in cols])
+        for k, v in cols.items():
+            records[k] = v
+        return records
+
+    def to_pandas(self) -> Any:
+        """:meth:`sample_columns` as a pandas DataFrame (needs pandas: ``pip install interact[data]``)."""
+        from .results import data_frame
+
+        return data_frame(self.sample_columns())
+
+    def __repr__(self) -> str:
+        from .results import uncertainty_repr
+
+        return uncertainty_repr(self)
+
+    def _repr_html_(self) -> str:
+        from .results import uncertainty_html
+
+        return uncertainty_html(self)
 
 
 PERCENTS: Final = (5.0, 50.0, 95.0)
@@ -745,7 +789,8 @@ def run_uncertainty(
         gut[start:stop] = np.broadcast_to(r.gut, (stop - start,))
         liver[start:stop] = np.broadcast_to(r.liver, (stop - start,))
         total[start:stop] = np.broadcast_to(r.total, (stop - start,))
-    return summarise(assessment, model, pairs, adjusted, fm_scaled, gut, liver, total, method=method, seed=seed)
+    result = summarise(assessment, model, pairs, adjusted, fm_scaled, gut, liver, total, method=method, seed=seed)
+    return dataclasses.replace(result, inputs=dict(drawn))
 
 
 def summarise(
@@ -805,6 +850,8 @@ def summarise(
         best_regimen=best,
         point_regimen=point_regimen,
         total=total,
+        gut=gut,
+        liver=liver,
     )
 
 

@@ -122,7 +122,7 @@ def parse(
     dims, phrase, examples = KINDS[expect]
     wanted = f"expected {phrase} such as {examples}"
     if isinstance(text, pint.Quantity):
-        quantity = text
+        quantity = text if text._REGISTRY is ureg else _from_other_registry(text, field, wanted)
     elif isinstance(text, str):
         quantity = _parse_text(text, field, wanted)
     else:
@@ -132,6 +132,25 @@ def parse(
         raise UnitError(field, _shown(text), f"is {what}; {wanted}")
     _check_magnitude(float(quantity.magnitude), field, _shown(text), phrase, allow_zero)
     return quantity
+
+
+def _from_other_registry(q: pint.Quantity, field: str, wanted: str) -> pint.Quantity:
+    """A quantity of another pint registry rebuilt in :data:`ureg` from its magnitude and unit text.
+
+    The unit is tried by symbol (``uM``), then by name (``micromolar``); a unit
+    this registry does not define, or a magnitude that is not one number,
+    is refused with a :class:`~interact.errors.UnitError` naming ``field``.
+    """
+    try:
+        value = float(q.magnitude)
+    except (TypeError, ValueError):
+        raise UnitError(field, str(q), f"is not a single number with a unit; {wanted}") from None
+    for text in (f"{q.units:~}", str(q.units)):
+        try:
+            return Quantity(value, _unit(text.replace(" ", "")))
+        except (pint.PintError, SyntaxError, ValueError, TypeError, AttributeError, KeyError, AssertionError, tokenize.TokenError):
+            continue
+    raise UnitError(field, f"{value!r} {q.units}", f"has a unit interact does not define ({q.units}); {wanted}")
 
 
 def parse_fraction(text: object, *, field: str, allow_zero: bool = False, upper: float = 1.0) -> float:

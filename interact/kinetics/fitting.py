@@ -361,6 +361,17 @@ class ModelComparison:
         c = self.chosen
         return c.value("Kiu") / c.value("Kic")
 
+    def __repr__(self) -> str:
+        from ..results import comparison_repr
+
+        return comparison_repr(self)
+
+    def _repr_html_(self) -> str:
+        """Ranking, verdict, carried constant, warnings and caution as HTML (shown by Jupyter)."""
+        from ..results import comparison_html
+
+        return comparison_html(self)
+
 
 # --------------------------------------------------------------------------- fitting
 

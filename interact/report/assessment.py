@@ -7,7 +7,6 @@ documented in README.md ("JSON output") and versioned by ``schema``.
 from __future__ import annotations
 
 import json
-import math
 from typing import TYPE_CHECKING, Any
 
 import pint
@@ -15,8 +14,9 @@ import pint
 from .. import units
 from ..assessment import Assessment
 from ..cautions import CAUTION_LINE
-from ..dosing import ACTIONS, DoseSuggestion, RegimenOutcome
+from ..dosing import DoseSuggestion, RegimenOutcome
 from ..exposure import Setting
+from ..results import ASSESSMENT_SCHEMA
 from .document import Note, Section, Table, render_markdown, render_text
 from .numbers import fmt, fmt_ratio
 
@@ -25,7 +25,7 @@ if TYPE_CHECKING:
 
 __all__ = ["JSON_SCHEMA", "assessment_sections", "assessment_to_dict", "format_assessment"]
 
-JSON_SCHEMA = "interact.assessment/1"
+JSON_SCHEMA = ASSESSMENT_SCHEMA  # the name other modules import; the value is declared in interact.results
 
 
 def _origin(s: Setting) -> str:
@@ -313,181 +313,18 @@ def regimen_table(d: DoseSuggestion, outcomes: tuple[RegimenOutcome, ...]) -> Ta
     )
 
 
-def _regimen_json(o: RegimenOutcome | None) -> dict[str, object] | None:
-    if o is None:
-        return None
-    r = o.regimen
-    return {
-        "kind": r.kind,
-        "dose": _num(r.dose),
-        "interval_h": r.interval_h,
-        "units": r.makeup or None,
-        "exposure_ratio": _num(o.exposure_ratio),
-        "peak_ratio": _num(o.peak_ratio),
-        "trough_ratio": _num(o.trough_ratio),
-        "inside_boundary": o.feasible,
-        "peak_and_trough_checked": o.checked,
-    }
-
-
-def _num(x: float | None) -> float | None:
-    if x is None or not math.isfinite(x):
-        return None
-    return x
-
-
-def _setting_dict(s: Setting) -> dict[str, Any]:
-    return {
-        "name": s.name,
-        "label": s.label,
-        "value": s.value,
-        "unit": s.unit,
-        "origin": s.origin,
-        "source": s.source,
-        "status": s.status,
-        "note": s.note,
-    }
-
-
 def assessment_to_dict(a: Assessment, time_course: TimeCourse | None = None) -> dict[str, Any]:
     """JSON-ready data; concentrations in uM, rates in 1/h, ratios dimensionless.
 
     With ``time_course``, a ``time_course`` entry holds its summary and the dose timing (no curves;
     ``interact timecourse --format json`` gives them).
     """
-    out = _assessment_dict(a)
+    out = a.to_dict()
     if time_course is not None:
         from .timecourse import timecourse_to_dict
 
         out["time_course"] = timecourse_to_dict(time_course, a, curves=False)
     return out
-
-
-def _assessment_dict(a: Assessment) -> dict[str, Any]:
-    pr = a.prediction
-    d = a.dose
-    lim = a.perpetrator_limit
-    return {
-        "schema": JSON_SCHEMA,
-        "title": a.scenario.title,
-        "invented": a.scenario.invented,
-        "rules": {"id": a.rules.id, "title": a.rules.title, "version": a.rules.version, "table_version": a.rules.table_version},
-        "settings": [_setting_dict(s) for s in (*a.settings, *a.kdeg_used)],
-        "concentrations_um": [
-            {
-                "species": sp.species,
-                "parent": sp.is_parent,
-                "cmax": sp.cmax_um,
-                "fu_plasma_used": sp.fu_plasma_used,
-                "imax_u": sp.unbound_cmax_um,
-                "igut": sp.gut_lumen_um if sp.is_parent else None,
-                "iin_max_u": sp.unbound_inlet_um,
-                "i_ent": sp.enterocyte_um,
-            }
-            for sp in a.species
-        ],
-        "constants": [
-            {
-                "species": c.species,
-                "target": c.target,
-                "ki_um": c.ki_um,
-                "fu_inc": c.fu_inc,
-                "fu_inc_origin": c.fu_inc_origin,
-                "ki_u_um": c.ki_u_um,
-                "ki_route": c.ki_route,
-                "mechanism": c.mechanism,
-                "kinact_per_h": c.kinact_per_h,
-                "ki_inact_u_um": c.ki_inact_u_um,
-                "emax": c.emax,
-                "ec50_u_um": c.ec50_u_um,
-                "calibration": c.calibration,
-            }
-            for c in a.constants
-        ],
-        "screen": [
-            {
-                "criterion": r.criterion,
-                "label": r.label,
-                "target": r.target,
-                "mechanism": r.mechanism,
-                "value": r.value,
-                "comparison": r.comparison,
-                "cutoff": r.cutoff.value,
-                "cutoff_source": r.cutoff.source,
-                "cutoff_status": r.cutoff.status,
-                "study_indicated": r.indicated,
-                "equation": r.equation,
-                "concentration": r.concentration,
-                "multiplier": r.multiplier,
-                "kdeg_per_h": r.kdeg_per_h,
-            }
-            for r in a.screen
-        ],
-        "auc_ratio": {
-            "gut": pr.gut,
-            "liver": pr.liver,
-            "total": pr.total,
-            "ceiling_gut": _num(pr.ceiling_gut),
-            "ceiling_liver": _num(pr.ceiling_liver),
-            "ceiling_total": _num(pr.ceiling_total),
-            "band": pr.band.name if pr.band else None,
-            "study_indicated": a.study_indicated,
-            "cutoff": a.aucr_cutoff.value,
-            "by_mechanism": [{"mechanism": m.mechanism, "gut": m.gut, "liver": m.liver, "total": m.total} for m in pr.parts],
-            "enzymes": [
-                {
-                    "enzyme": e.enzyme,
-                    "fm": e.fm,
-                    "liver": {
-                        "reversible": e.liver.reversible,
-                        "inactivation": e.liver.inactivation,
-                        "induction": e.liver.induction,
-                        "activity": e.liver.activity,
-                    },
-                    "gut": None
-                    if e.gut is None
-                    else {
-                        "reversible": e.gut.reversible,
-                        "inactivation": e.gut.inactivation,
-                        "induction": e.gut.induction,
-                        "activity": e.gut.activity,
-                    },
-                }
-                for e in pr.effects
-            ],
-        },
-        "dose": {
-            "action": d.action,
-            "actions": list(ACTIONS),
-            "monitoring_required": d.monitoring,
-            "headline": d.headline,
-            "unit": d.dose_unit,
-            "usual_dose": d.usual_dose,
-            "usual_interval_h": d.usual_interval_h,
-            "half_life_h": d.half_life_h,
-            "exact_dose": d.exact_dose,
-            "exact_interval_h": d.exact_interval_h,
-            "suggested": _regimen_json(d.chosen),
-            "options_inside_boundary": [_regimen_json(o) for o in d.options],
-            "nearest_outside": [_regimen_json(o) for o in d.nearest],
-            "no_effect_boundary": list(d.boundary),
-            "peak_boundary": list(d.peak_boundary),
-            "trough_boundary": list(d.trough_boundary),
-            "boundary_origin": d.boundary_origin,
-            "reasons": list(d.reasons),
-            "cautions": list(d.cautions),
-        },
-        "perpetrator_dose_limit": {"dose": lim.dose, "unit": lim.dose_unit, "scale": lim.scale, "reason": lim.reason},
-        "warnings": list(a.warnings),
-        "from_memory": list(a.memory_values),
-        "cautions": list(a.cautions),
-        "provenance": {
-            "tool_version": a.provenance.tool_version,
-            "rules_id": a.provenance.rules_id,
-            "rules_path": a.provenance.rules_path,
-            "tables": dict(a.provenance.table_versions),
-        },
-    }
 
 
 def format_assessment(

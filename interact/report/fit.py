@@ -6,7 +6,7 @@ import json
 import math
 from typing import Any
 
-from ..cautions import CAUTION_LINE
+from ..cautions import FIT_CAUTION
 from ..kinetics.binding import BindingPrediction, UnboundConstant
 from ..kinetics.engine import Estimate, FitResult
 from ..kinetics.fitting import LABELS, ModelComparison
@@ -15,11 +15,6 @@ from .document import Note, Section, Table, render_markdown, render_text
 from .numbers import fmt
 
 __all__ = ["comparison_to_dict", "fit_sections", "format_comparison", "format_ic50", "ic50_to_dict"]
-
-FIT_CAUTION = (
-    "In vitro constants feed model predictions, not clinical advice. Check the fitted curves and residuals, "
-    "the design warnings and the binding correction before carrying a Ki into a scenario. " + CAUTION_LINE
-)
 
 
 def _interval(low: float | None, high: float | None, unit: str = "") -> str:
