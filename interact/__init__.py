@@ -16,7 +16,18 @@ from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:  # the names for type checkers; at run time they load on first use
     from .assessment import Assessment, assess
-    from .errors import FitError, InputError, InteractError, ScenarioError, UnitError
+    from .errors import (
+        AssumptionWarning,
+        FitError,
+        FitWarning,
+        FromMemoryWarning,
+        InputError,
+        InteractError,
+        InteractWarning,
+        ModelLimitWarning,
+        ScenarioError,
+        UnitError,
+    )
     from .scenario import (
         Inhibition,
         Metabolite,
@@ -39,7 +50,12 @@ if TYPE_CHECKING:  # the names for type checkers; at run time they load on first
 _WHERE = {
     "Assessment": "assessment",
     "assess": "assessment",
+    "AssumptionWarning": "errors",
     "FitError": "errors",
+    "FitWarning": "errors",
+    "FromMemoryWarning": "errors",
+    "InteractWarning": "errors",
+    "ModelLimitWarning": "errors",
     "InputError": "errors",
     "InteractError": "errors",
     "ScenarioError": "errors",
@@ -78,11 +94,16 @@ def __dir__() -> list[str]:
 
 __all__ = [
     "Assessment",
+    "AssumptionWarning",
     "FitError",
+    "FitWarning",
+    "FromMemoryWarning",
     "Inhibition",
     "InputError",
     "InteractError",
+    "InteractWarning",
     "Metabolite",
+    "ModelLimitWarning",
     "Pathway",
     "Perpetrator",
     "Physiology",

@@ -14,7 +14,7 @@ from . import __version__, units
 from .cautions import CAUTIONS
 from .constants import Constant, resolve_constants
 from .dosing import DoseLimit, DoseSuggestion, RegimenPlan, highest_perpetrator_scale, plan_for_victim, suggest_dose
-from .errors import InputError
+from .errors import AssumptionWarning, FromMemoryWarning, InputError, InteractWarning, ModelLimitWarning, emit_warnings
 from .exposure import Setting, SpeciesExposure, resolve_exposure, resolve_settings
 from .prediction import Prediction, predict, ratio_function
 from .scenario import Scenario
@@ -132,7 +132,19 @@ def _kdeg(
     return out, used
 
 
-def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment:
+class _Warnings(list[str]):
+    """The assessment's warning texts, each with its :class:`~interact.errors.InteractWarning` category."""
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.categories: list[type[InteractWarning]] = []
+
+    def append(self, text: str, category: type[InteractWarning] = AssumptionWarning) -> None:  # type: ignore[override]
+        super().append(text)
+        self.categories.append(category)
+
+
+def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool = True) -> Assessment:
     """Assess a perpetrator-victim scenario.
 
     Parameters
@@ -154,6 +166,14 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
     InputError
         If a value the engine needs cannot be used (for example a mass
         concentration without molar mass in a hand-built scenario).
+
+    Warns
+    -----
+    InteractWarning
+        With ``warn`` (the default), each of the assessment's warnings is also emitted through
+        :func:`warnings.warn` under its topic (:class:`~interact.errors.AssumptionWarning`,
+        :class:`~interact.errors.FromMemoryWarning`, :class:`~interact.errors.ModelLimitWarning`),
+        so a notebook shows it; the shells pass ``warn=False`` and print ``Assessment.warnings``.
     """
     rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules if rules is not None else scenario.rules)
     classes = load_classes()
@@ -163,7 +183,7 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
     kdeg, kdeg_used = _kdeg(scenario, constants)
     p = scenario.perpetrator
     v = scenario.victim
-    warnings: list[str] = []
+    warnings = _Warnings()
     screen_results = screen(
         rule_set, constants, species, oral=p.route == "oral", kdeg_liver={k: lv for k, (lv, _) in kdeg.items() if lv is not None}
     )
@@ -189,13 +209,14 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         warnings.append("The victim lists no metabolic pathways: the liver term is 1 by construction.")
     for c in constants:
         if c.mechanism == "uncompetitive" and c.ki_u_um is not None:
-            warnings.append(f"{c.species} on {c.target}: {_UNCOMPETITIVE_NOTE}.")
+            warnings.append(f"{c.species} on {c.target}: {_UNCOMPETITIVE_NOTE}.", ModelLimitWarning)
         if c.fu_inc_origin == "default" and c.kind == "enzyme" and c.ki_u_um is not None:
             warnings.append(f"{c.species} on {c.target}: fu,inc not given; Ki taken as unbound (fu,inc = 1).")
     for kd in kdeg_used:
         if kd.from_memory:
             warnings.append(
-                f"{kd.label} = {kd.value:.4g} 1/h is from memory ({kd.source}); override it under [[turnover]] if you have a better value."
+                f"{kd.label} = {kd.value:.4g} 1/h is from memory ({kd.source}); override it under [[turnover]] if you have a better value.",
+                FromMemoryWarning,
             )
     for enzyme, (lv, gv) in kdeg.items():
         if lv is None:
@@ -213,7 +234,8 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         if missed and any(c.ki_u_um is not None and c.target in missed for c in constants):
             warnings.append(
                 f"The mechanistic model predicts AUCR >= {rule_set.aucr_inhibition_cutoff.value:g} although the basic R1 "
-                f"screen does not flag {', '.join(missed)}: the hepatic inlet concentration exceeds Cmax,u."
+                f"screen does not flag {', '.join(missed)}: the hepatic inlet concentration exceeds Cmax,u.",
+                ModelLimitWarning,
             )
     # -- dose
     plan = plan_for_victim(v, (classes.no_effect_lower, classes.no_effect_upper), "default 0.8-1.25, ICH M12 5.3.1")
@@ -257,7 +279,8 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
             study = True
             warnings.append(
                 f"The net AUCR {prediction.total:.3g} hides inhibition: {inhib.mechanism} alone gives {inhib.total:.3g} "
-                f"(>= {rule_set.aucr_inhibition_cutoff.value:g}); a clinical study is indicated on the inhibition alone."
+                f"(>= {rule_set.aucr_inhibition_cutoff.value:g}); a clinical study is indicated on the inhibition alone.",
+                ModelLimitWarning,
             )
         if induct is not None and induct.total <= float(rule_set.aucr_induction_cutoff.value) and not induced:
             if not study:
@@ -265,7 +288,8 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
             study = True
             warnings.append(
                 f"The net AUCR {prediction.total:.3g} hides induction: induction alone gives {induct.total:.3g} "
-                f"(<= {rule_set.aucr_induction_cutoff.value:g}); a clinical study is indicated on the induction alone."
+                f"(<= {rule_set.aucr_induction_cutoff.value:g}); a clinical study is indicated on the induction alone.",
+                ModelLimitWarning,
             )
 
     all_settings = (*settings.values(), *fu_settings)
@@ -301,6 +325,8 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         rules_path=rule_set.path,
         table_versions=table_versions(),
     )
+    if warn:
+        emit_warnings(zip(warnings.categories, warnings, strict=True))
     return Assessment(
         scenario=scenario,
         rules=rule_set,

@@ -40,7 +40,7 @@ def _cmd_assess(args: argparse.Namespace) -> int:
     from .scenario import demo_path, load_scenario
 
     path = demo_path() if args.command == "demo" else Path(args.scenario)
-    result = assess(load_scenario(path), rules=args.rules)
+    result = assess(load_scenario(path), rules=args.rules, warn=False)
     course, note = _assess_time_course(result, args)
     _out(format_assessment(result, args.format, width=args.width, time_course=course, time_course_note=note), args.output)
     return 0
@@ -69,7 +69,7 @@ def _cmd_timecourse(args: argparse.Namespace) -> int:
     from .report.timecourse import format_timecourse, timecourse_svg
     from .scenario import load_scenario, write_text_atomic
 
-    result = assess(load_scenario(Path(args.scenario)), rules=args.rules)
+    result = assess(load_scenario(Path(args.scenario)), rules=args.rules, warn=False)
     course = simulate(
         result,
         days=args.days,
@@ -226,7 +226,7 @@ def _cmd_uncertainty(args: argparse.Namespace) -> int:
     from .scenario import load_scenario
     from .uncertainty import ScenarioModel, run_uncertainty, sensitivity
 
-    result = assess(load_scenario(Path(args.scenario)), rules=args.rules)
+    result = assess(load_scenario(Path(args.scenario)), rules=args.rules, warn=False)
     if args.list_inputs:
         model = ScenarioModel(result)
         lines = [f"{i.path}  {fmt(i.value, 4)} {i.unit}  ({i.label})".replace("  ()", "") for i in model.inputs(relevant_only=True)]
@@ -338,7 +338,7 @@ def _cmd_report(args: argparse.Namespace) -> int:
         text = raw.decode("utf-8")
     except (OSError, UnicodeDecodeError) as exc:
         raise InputError("scenario", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
-    result = assess(loads_scenario(text, source=str(path)), rules=args.rules)
+    result = assess(loads_scenario(text, source=str(path)), rules=args.rules, warn=False)
     spec, vary = _uncertainty_spec(args)
     spread = None
     if vary:
@@ -544,7 +544,7 @@ def _cmd_fit(args: argparse.Namespace) -> int:
     models = tuple(m.strip() for m in args.models.split(",") if m.strip()) if args.models else MODELS
     if "none" not in models:
         models = ("none", *models)
-    comp = fit_inhibition(data, models=models, weights=args.weights, level=args.level)
+    comp = fit_inhibition(data, models=models, weights=args.weights, level=args.level, warn=False)
     unbound = None
     ki = comp.ki
     if ki is not None and fu_inc is not None and fu_origin:

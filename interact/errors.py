@@ -8,16 +8,56 @@ and what was expected, so that a shell can print it as one line.
 
 from __future__ import annotations
 
+import warnings as _warnings
+from collections.abc import Iterable
 from dataclasses import dataclass
 
 __all__ = [
+    "AssumptionWarning",
     "FitError",
+    "FitWarning",
+    "FromMemoryWarning",
     "InputError",
     "InteractError",
+    "InteractWarning",
+    "ModelLimitWarning",
     "Problem",
     "ScenarioError",
     "UnitError",
+    "emit_warnings",
 ]
+
+
+class InteractWarning(UserWarning):
+    """Root of the model warnings interact emits through Python's :mod:`warnings`.
+
+    The same texts stay on the results (``Assessment.warnings`` and the like);
+    the command line and the terminal app print them from there and do not
+    emit them.  Filter by topic with the subclasses, e.g.
+    ``warnings.simplefilter("ignore", interact.FromMemoryWarning)``.
+    """
+
+
+class AssumptionWarning(InteractWarning):
+    """A value was not given and a default was assumed (Fg = 1, fu,inc = 1, a default boundary ...)."""
+
+
+class FromMemoryWarning(InteractWarning):
+    """A value used comes from memory (not verified against its source): check it before relying on it."""
+
+
+class ModelLimitWarning(InteractWarning):
+    """The model's own limits bear on this result (uncompetitive Ki, a net ratio hiding inhibition or induction ...)."""
+
+
+class FitWarning(InteractWarning):
+    """An incubation design or fit weakness (too few levels, depletion, a constant the data do not bound ...)."""
+
+
+def emit_warnings(items: Iterable[tuple[type[InteractWarning], str]], stacklevel: int = 3) -> None:
+    """Emit each (category, text) through :func:`warnings.warn`, pointing at the caller's caller by default."""
+    for category, text in items:
+        _warnings.warn(text, category, stacklevel=stacklevel)
 
 
 class InteractError(Exception):

@@ -10,6 +10,10 @@ from interact.dosing import fm_from_observed_ratio
 from interact.errors import InputError
 from interact.scenario import scenario_from_dict
 
+# Scenarios here trigger model warnings (Fg not given, fu,inc = 1, kdeg from memory ...) as a side effect of
+# what they test; the warnings themselves are checked in tests/api/test_warnings.py and where a test asks for one.
+pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")
+
 
 def test_fm_back_calculation() -> None:
     # complete inhibition: AUCR = 1/(1 - fm) (Rowland-Matin; common practice)

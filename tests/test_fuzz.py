@@ -5,6 +5,7 @@ from __future__ import annotations
 import math
 from typing import Any
 
+import pytest
 from conftest import base_dict
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
@@ -12,6 +13,10 @@ from hypothesis import strategies as st
 from interact import assess
 from interact.errors import InputError, ScenarioError
 from interact.scenario import loads_scenario, scenario_from_dict
+
+# Scenarios here trigger model warnings (Fg not given, fu,inc = 1, kdeg from memory ...) as a side effect of
+# what they test; the warnings themselves are checked in tests/api/test_warnings.py and where a test asks for one.
+pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")
 
 HOSTILE = st.one_of(
     st.none(),

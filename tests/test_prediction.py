@@ -12,6 +12,10 @@ from interact import assess
 from interact.prediction import gut_ratio, liver_ratio, reversible_term
 from interact.scenario import scenario_from_dict
 
+# Scenarios here trigger model warnings (Fg not given, fu,inc = 1, kdeg from memory ...) as a side effect of
+# what they test; the warnings themselves are checked in tests/api/test_warnings.py and where a test asks for one.
+pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")
+
 # Rowland-Matin relation: with one pathway, AUCR_h = 1 / (fm/(1 + I/Ki) + 1 - fm) (common practice, textbook form)
 
 

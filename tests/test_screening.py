@@ -18,6 +18,10 @@ from interact import assess
 from interact.scenario import scenario_from_dict
 from interact.tables import load_rules
 
+# Scenarios here trigger model warnings (Fg not given, fu,inc = 1, kdeg from memory ...) as a side effect of
+# what they test; the warnings themselves are checked in tests/api/test_warnings.py and where a test asks for one.
+pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")
+
 RULES = load_rules(Path(__file__).parent / "data" / "rules-cpt2015.toml")
 
 

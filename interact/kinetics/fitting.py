@@ -24,7 +24,7 @@ from typing import Final
 import numpy as np
 from numpy.typing import NDArray
 
-from ..errors import FitError, InputError
+from ..errors import FitError, FitWarning, InputError, emit_warnings
 from .data import IncubationData
 from .engine import WEIGHTS, CurveModel, Estimate, FitResult, fit_curve
 
@@ -397,6 +397,7 @@ def fit_inhibition(
     weights: str = "none",
     level: float = 0.95,
     profile: bool = True,
+    warn: bool = True,
 ) -> ModelComparison:
     """Fit every requested model to the whole grid and compare them.
 
@@ -412,6 +413,9 @@ def fit_inhibition(
         Confidence level of the intervals (default 0.95).
     profile
         Compute profile-likelihood intervals for the inhibition constants.
+    warn
+        Also emit each design warning as a :class:`~interact.errors.FitWarning` through
+        :func:`warnings.warn` (the shells pass False and print ``warnings`` themselves).
 
     Returns
     -------
@@ -469,6 +473,8 @@ def fit_inhibition(
     verdict = _verdict(fits, ranking, f_tests)
     sub_fit, sub_test = fit_substrate_inhibition(data, weights=weights) if np.count_nonzero(i == np.min(i)) >= 5 else (None, None)
     warnings = _design_warnings(data, fits, verdict, weights, sub_fit, sub_test)
+    if warn:
+        emit_warnings((FitWarning, w) for w in warnings)
     return ModelComparison(
         data=data,
         weights=weights,

@@ -63,7 +63,7 @@ def load_core() -> None:
     from ..assessment import assess
     from ..scenario import load_scenario
 
-    assess(load_scenario(DEMO_PATH))
+    assess(load_scenario(DEMO_PATH), warn=False)
 
 
 def read_scenario_data(path: str | Path) -> dict[str, Any]:
@@ -296,7 +296,7 @@ class InteractApp(App[int]):
 
         try:
             scenario = scenario_from_dict(self.data, source=self.path.name if self.path else "scenario")
-            result = assess(scenario)
+            result = assess(scenario, warn=False)
         except ScenarioError as exc:
             self.problems = exc.problems
             self.valid = False
@@ -535,7 +535,7 @@ class InteractApp(App[int]):
         try:
             data = read_incubation_csv(path, substrate_unit=unit, inhibitor_unit=unit)
             self.call_from_thread(self._fit_progress, 1)
-            comp = fit_inhibition(data)
+            comp = fit_inhibition(data, warn=False)
             if worker.is_cancelled:
                 return
             self.call_from_thread(self._fit_progress, 2)

@@ -72,6 +72,7 @@ def test_html_summary_has_ratios_action_cautions_and_escapes_user_text() -> None
     assert f"{a.prediction.total:.2f}" in page
 
 
+@pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")  # some draws warn (R1 vs mechanistic); not the point here
 @settings(max_examples=25, deadline=None)
 @given(cmax=st.floats(0.01, 50), fm=st.floats(0.05, 1.0))
 def test_to_json_is_strict_json_for_any_scenario(cmax: float, fm: float) -> None:
@@ -112,7 +113,7 @@ def test_uncertainty_keeps_every_sample_and_each_equals_assess(demo) -> None:  #
             perpetrator=dataclasses.replace(s.perpetrator, cmax=cmax),
             victim=dataclasses.replace(s.victim, pathways=tuple(pws)),
         )
-        again = assess(changed)
+        again = assess(changed, warn=False)  # the numbers are checked here, not the warnings
         assert again.prediction.total == pytest.approx(cols["auc_ratio"][k], rel=1e-9)
         assert again.prediction.gut == pytest.approx(cols["auc_ratio_gut"][k], rel=1e-9)
     frame = r.to_pandas()

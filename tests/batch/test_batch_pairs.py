@@ -8,6 +8,7 @@ this test shows that the vectorised batch path changes nothing.
 from __future__ import annotations
 
 import numpy as np
+import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -15,6 +16,10 @@ from interact import assess
 from interact.batch import evaluate_pairs, loads_perpetrators, loads_victims, pair_scenario, ranking
 from interact.dosing import ACTIONS
 from interact.tables import load_classes
+
+# Scenarios here trigger model warnings (Fg not given, fu,inc = 1, kdeg from memory ...) as a side effect of
+# what they test; the warnings themselves are checked in tests/api/test_warnings.py and where a test asks for one.
+pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")
 
 ENZYMES = ("CYP3A", "CYP2C9", "CYP2D6")
 

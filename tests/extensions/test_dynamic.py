@@ -29,6 +29,10 @@ from interact.dynamic import _fast_forcing, simulate, time_course_arrays
 from interact.errors import InputError
 from interact.scenario import scenario_from_dict
 
+# Scenarios here trigger model warnings (Fg not given, fu,inc = 1, kdeg from memory ...) as a side effect of
+# what they test; the warnings themselves are checked in tests/api/test_warnings.py and where a test asks for one.
+pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")
+
 
 def _assess(inhibits: dict, *, victim: dict | None = None, perp: dict | None = None, turnover: list | None = None):  # type: ignore[no-untyped-def]
     d = base_dict()

@@ -19,6 +19,10 @@ from interact.cli import main
 
 from .conftest import DATA
 
+# Scenarios here trigger model warnings (Fg not given, fu,inc = 1, kdeg from memory ...) as a side effect of
+# what they test; the warnings themselves are checked in tests/api/test_warnings.py and where a test asks for one.
+pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")
+
 VMKMKI = str(DATA / "nlstools_vmkmki.csv")
 UNITS = ["--substrate-unit", "uM", "--inhibitor-unit", "uM"]
 

@@ -19,6 +19,10 @@ from interact.kinetics.ratelaws import competitive, substrate_inhibition
 
 from .conftest import columns
 
+# The designs here trigger fit warnings (few levels, depletion, an unbounded constant ...) as a side effect; the
+# texts are checked on ModelComparison.warnings, their emission as FitWarning in tests/api/test_warnings.py.
+pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.FitWarning")
+
 S_LEVELS = np.array([2.5, 5.0, 10.0, 20.0, 40.0, 80.0])
 I_LEVELS = np.array([0.0, 2.5, 5.0, 10.0, 20.0])
 

@@ -16,6 +16,10 @@ from interact import assess
 from interact.kinetics import fit_inhibition, read_incubation_csv
 from interact.tui.app import InteractApp
 
+# Scenarios here trigger model warnings (Fg not given, fu,inc = 1, kdeg from memory ...) as a side effect of
+# what they test; the warnings themselves are checked in tests/api/test_warnings.py and where a test asks for one.
+pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")
+
 DATA = Path(__file__).resolve().parents[1] / "data" / "nlstools_vmkmki.csv"
 
 

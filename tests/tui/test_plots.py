@@ -13,6 +13,10 @@ from interact import assess, load_scenario
 from interact.scenario import demo_path
 from interact.tui import plots
 
+# Scenarios here trigger model warnings (Fg not given, fu,inc = 1, kdeg from memory ...) as a side effect of
+# what they test; the warnings themselves are checked in tests/api/test_warnings.py and where a test asks for one.
+pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")
+
 
 def test_fm_curve_points_equal_assess_with_that_fm() -> None:
     s = load_scenario(demo_path())

@@ -27,6 +27,10 @@ from interact.uncertainty import (
     run_uncertainty,
 )
 
+# Scenarios here trigger model warnings (Fg not given, fu,inc = 1, kdeg from memory ...) as a side effect of
+# what they test; the warnings themselves are checked in tests/api/test_warnings.py and where a test asks for one.
+pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")
+
 
 def _iv_dict(ki: str = "2 uM", cmax: str = "1 uM", fu: float = 0.5) -> dict[str, Any]:
     """Intravenous perpetrator, intravenous victim, fm = 1: total AUCR = 1 + Imax,u / Ki,u exactly.
