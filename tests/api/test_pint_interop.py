@@ -57,7 +57,7 @@ def test_unknown_unit_or_array_is_refused_naming_the_field() -> None:
         units.parse(bad, "concentration", field="perpetrator.cmax")
     with pytest.raises(UnitError, match="single number"):
         units.parse(OTHER.Quantity([1.0, 2.0], "uM"), "concentration", field="perpetrator.cmax")
-    with pytest.raises(UnitError, match="of another dimension|is a"):
+    with pytest.raises(UnitError, match=r"of another dimension|is a"):
         units.parse(OTHER.Quantity(1.0, "micromolar / hour"), "concentration", field="perpetrator.cmax")
     d = base_dict()
     d["perpetrator"]["cmax"] = bad
