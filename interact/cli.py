@@ -25,8 +25,14 @@ __all__ = ["main"]
 FORMATS = ("text", "json", "markdown")
 
 
+def _stdout(path: str | None) -> bool:
+    """True when output goes to standard output: no ``-o``, or ``-o -`` (the usual convention)."""
+    return not path or path == "-"
+
+
 def _out(text: str, path: str | None = None) -> None:
-    if path:
+    if not _stdout(path):
+        assert path is not None
         from .scenario import write_text_atomic
 
         write_text_atomic(Path(path), text)
@@ -189,6 +195,23 @@ def _cmd_fm(args: argparse.Namespace) -> int:
     return 0
 
 
+def _cmd_new(args: argparse.Namespace) -> int:
+    """Write the commented starter scenario (placeholder values) to FILE, never over an existing file."""
+    from .scenario import loads_scenario, starter_path
+
+    text = starter_path().read_text(encoding="utf-8")
+    loads_scenario(text, source="starter scenario")  # the file written always loads
+    if _stdout(args.file):
+        sys.stdout.write(text)
+        return 0
+    target = Path(args.file)
+    if target.exists() and not args.force:
+        raise InputError("FILE", args.file, "already exists; choose another name (or --force to replace it)")
+    _out(text, args.file)
+    sys.stderr.write(f"interact: wrote {args.file}: its values are placeholders to replace; then run: interact assess {args.file}\n")
+    return 0
+
+
 def _cmd_open(args: argparse.Namespace) -> int:
     from .tui import run_app
 
@@ -236,24 +259,45 @@ def _cmd_uncertainty(args: argparse.Namespace) -> int:
     samples = args.samples if args.samples is not None else (spec.samples or 10_000)
     seed = args.seed if args.seed is not None else (spec.seed if spec.seed is not None else 0)
     method = args.method or spec.method or "lhs"
-    spread = run_uncertainty(result, vary, samples=samples, seed=seed, method=method)
+    spread = run_uncertainty(
+        result, vary, samples=samples, seed=seed, method=method, progress=_progress_bar("sampling") if samples >= 200_000 else None
+    )
     sens = sensitivity(result, vary)
     _out(format_uncertainty(spread, sens, args.format, title=result.scenario.title, width=args.width), args.output)
     return 0
 
 
-def _progress_bar(label: str):  # type: ignore[no-untyped-def]
-    """A progress callback drawing a bar on standard error when it is a terminal (else None)."""
-    if not sys.stderr.isatty():
+def _progress_bar(label: str, stream=None):  # type: ignore[no-untyped-def]
+    """A progress callback ``show(done, total)`` drawing a rich.progress bar on standard error, or None off a terminal.
+
+    rich (installed with Textual) draws and clears the bar; the bar stops itself when ``done`` reaches ``total``.
+    """
+    stream = sys.stderr if stream is None else stream
+    if not stream.isatty():
         return None
+    from rich.console import Console
+    from rich.progress import BarColumn, MofNCompleteColumn, Progress, TaskProgressColumn, TextColumn, TimeRemainingColumn
+
+    progress = Progress(
+        TextColumn(label),
+        BarColumn(),
+        TaskProgressColumn(),
+        MofNCompleteColumn(),
+        TimeRemainingColumn(),
+        console=Console(file=stream),
+        transient=True,
+    )
+    task = progress.add_task(label, total=None)
+    started = False
 
     def show(done: int, total: int) -> None:
-        width = 30
-        filled = int(width * done / total) if total else width
-        sys.stderr.write(f"\r{label} [{'#' * filled}{' ' * (width - filled)}] {100 * done / max(total, 1):3.0f}% {done:,}/{total:,}")
+        nonlocal started
+        if not started:
+            progress.start()
+            started = True
+        progress.update(task, completed=done, total=total)
         if done >= total:
-            sys.stderr.write("\n")
-        sys.stderr.flush()
+            progress.stop()
 
     return show
 
@@ -270,8 +314,9 @@ def _write_streamed(path: str | None, write) -> int:  # type: ignore[no-untyped-
     import os
     import tempfile
 
-    if not path:
+    if _stdout(path):
         return int(write(sys.stdout))
+    assert path is not None
     target = Path(path)
     try:
         handle, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=target.resolve().parent)
@@ -314,7 +359,7 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         Path(args.output or "").suffix.lower(), "csv"
     )
     rows = _write_streamed(args.output, lambda h: write_results(result, h, fmt_name, top=args.top))
-    if args.output and not args.quiet:
+    if not _stdout(args.output) and not args.quiet:
         skipped = len(perps.skipped) + len(victims.skipped)
         sys.stderr.write(
             f"interact: {n:,} pairs screened in {time.perf_counter() - t0:.2f} s; {rows:,} rows, worst first, written to {args.output}"
@@ -432,6 +477,11 @@ def _parser() -> argparse.ArgumentParser:
         else:
             p.add_argument("--hill", action="store_true", help="also fit a Hill slope (reported; not carried unless it is 1)")
         p.set_defaults(run=_cmd_fit_mechanism)
+
+    p = sub.add_parser("new", help="write a commented starter scenario (placeholder values to replace) to FILE")
+    p.add_argument("file", metavar="FILE", help="the scenario file to create (- for standard output)")
+    p.add_argument("--force", action="store_true", help="replace FILE if it exists")
+    p.set_defaults(run=_cmd_new)
 
     p = sub.add_parser("demo", help="assess the built-in invented demo scenario (same output as assess)")
     with_report_options(p)
@@ -729,9 +779,14 @@ _EXTRA_COMMANDS.append(_add_fit_command)
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; returns the exit status."""
     args_list = list(sys.argv[1:] if argv is None else argv)
+    parser = _parser()
+    if not args_list and not (sys.stdin.isatty() and sys.stdout.isatty()):
+        # no terminal to draw the app on (a pipe, a script, CI): say how to use the command instead
+        parser.print_usage(sys.stderr)
+        sys.stderr.write("interact: no command given and no terminal for the app; try 'interact --help'\n")
+        return 2
     if not args_list or (len(args_list) == 1 and args_list[0].endswith(".toml") and not args_list[0].startswith("-")):
         args_list = ["open", *args_list]
-    parser = _parser()
     args = parser.parse_args(args_list)
     if not getattr(args, "run", None):
         parser.print_help()

@@ -48,6 +48,7 @@ __all__ = [
     "save_scenario",
     "scenario_from_dict",
     "scenario_to_dict",
+    "starter_path",
 ]
 
 MECHANISMS: Final = ("competitive", "noncompetitive", "uncompetitive", "mixed")
@@ -198,6 +199,11 @@ class Scenario:
 def demo_path() -> Path:
     """The built-in demo scenario (an invented compound pair)."""
     return Path(__file__).with_name("demo.toml")
+
+
+def starter_path() -> Path:
+    """The commented starter scenario that ``interact new`` writes (placeholder values to replace)."""
+    return Path(__file__).with_name("starter.toml")
 
 
 def load_scenario(path: str | Path) -> Scenario:

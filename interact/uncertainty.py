@@ -38,7 +38,7 @@ import dataclasses
 import math
 import re
 import tomllib
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any, Final
 
@@ -717,6 +717,7 @@ def run_uncertainty(
     samples: int = 10_000,
     seed: int = 0,
     method: str = "lhs",
+    progress: Callable[[int, int], None] | None = None,
 ) -> UncertaintyResult:
     """Sample the declared inputs and summarise the AUC ratio.
 
@@ -732,6 +733,14 @@ def run_uncertainty(
         Seed of the numpy Generator; the same seed gives the same numbers.
     method
         ``mc`` (independent draws) or ``lhs`` (Latin hypercube, scipy.stats.qmc).
+    progress
+        Called as ``progress(done, samples)`` after each chunk of samples is evaluated.
+
+    Returns
+    -------
+    UncertaintyResult
+        Percentiles, class and action probabilities, and every sample kept as arrays
+        (:meth:`UncertaintyResult.sample_columns`).
     """
     if method not in METHODS:
         raise InputError("method", method, f"is not one of {', '.join(METHODS)}")
@@ -789,6 +798,8 @@ def run_uncertainty(
         gut[start:stop] = np.broadcast_to(r.gut, (stop - start,))
         liver[start:stop] = np.broadcast_to(r.liver, (stop - start,))
         total[start:stop] = np.broadcast_to(r.total, (stop - start,))
+        if progress is not None:
+            progress(stop, samples)
     result = summarise(assessment, model, pairs, adjusted, fm_scaled, gut, liver, total, method=method, seed=seed)
     return dataclasses.replace(result, inputs=dict(drawn))
 

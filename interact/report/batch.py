@@ -9,6 +9,7 @@ from typing import Any, TextIO
 from ..batch import OUTPUT_COLUMNS, BatchResult, result_rows
 from ..cautions import CAUTION_LINE
 from ..errors import InputError
+from ..results import BATCH_SCHEMA
 from .numbers import fmt
 
 __all__ = ["BATCH_FORMATS", "write_results"]
@@ -34,7 +35,7 @@ def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *,
         count = result.pairs if top is None else min(top, result.pairs)
     elif fmt_name == "json":
         head = {
-            "schema": "interact.batch/1",
+            "schema": BATCH_SCHEMA,
             "rules": result.rules.id,
             "pairs": result.pairs,
             "perpetrators": len(result.perpetrators.rows),

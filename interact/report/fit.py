@@ -11,6 +11,7 @@ from ..kinetics.binding import BindingPrediction, UnboundConstant
 from ..kinetics.engine import Estimate, FitResult
 from ..kinetics.fitting import LABELS, ModelComparison
 from ..kinetics.ic50 import IC50Fit, KiFromIC50
+from ..results import FIT_SCHEMA, IC50_SCHEMA
 from .document import Note, Section, Table, render_markdown, render_text
 from .numbers import fmt
 
@@ -187,6 +188,7 @@ def comparison_to_dict(
     """Plain data for JSON (non-finite numbers become null with an explicit flag)."""
     d = comp.data
     out: dict[str, Any] = {
+        "schema": FIT_SCHEMA,
         "data": {
             "source": d.source,
             "rows": d.n,
@@ -286,6 +288,7 @@ def _unbound_section(unbound: UnboundConstant, binding: BindingPrediction | None
 
 def ic50_to_dict(result: IC50Fit, ki: KiFromIC50 | None = None, unbound: UnboundConstant | None = None) -> dict[str, Any]:
     out: dict[str, Any] = {
+        "schema": IC50_SCHEMA,
         "source": result.source,
         "fit": _fit_dict(result.fit),
         "warnings": list(result.warnings),

@@ -8,6 +8,7 @@ from typing import Any
 
 from ..kinetics.inactivation import CurveFit, Estimate, InactivationFit
 from ..kinetics.induction import InductionFit
+from ..results import MECHANISM_FIT_SCHEMA
 from .document import Note, Section, Table, render_markdown, render_text
 from .numbers import fmt
 
@@ -95,7 +96,7 @@ def mechanism_fit_to_dict(result: InactivationFit | InductionFit, source: str) -
         }
 
     out: dict[str, Any] = {
-        "schema": "interact.mechanism-fit/1",
+        "schema": MECHANISM_FIT_SCHEMA,
         "source": source,
         "model": fit.model,
         "equation": fit.equation,

@@ -16,6 +16,7 @@ from ..assessment import Assessment
 from ..cautions import CAUTION_LINE
 from ..dosing import timing_advice
 from ..dynamic import TimeCourse, time_course_arrays
+from ..results import TIMECOURSE_SCHEMA
 from .document import Note, Section, Table, render_markdown, render_text
 from .numbers import fmt, fmt_ratio
 
@@ -27,8 +28,6 @@ __all__ = [
     "timecourse_svg",
     "timecourse_to_dict",
 ]
-
-TIMECOURSE_SCHEMA = "interact.timecourse/1"
 
 
 def _days(h: float | None) -> str:

@@ -9,13 +9,14 @@ from typing import Any
 import numpy as np
 
 from ..cautions import CAUTION_LINE
+from ..results import UNCERTAINTY_SCHEMA
 from ..uncertainty import Sensitivity, UncertaintyResult
 from .document import Note, Section, Table, render_markdown, render_text
 from .numbers import fmt, fmt_ratio
 
 __all__ = ["JSON_SCHEMA", "format_uncertainty", "sensitivity_sections", "uncertainty_sections", "uncertainty_to_dict"]
 
-JSON_SCHEMA = "interact.uncertainty/1"
+JSON_SCHEMA = UNCERTAINTY_SCHEMA  # the value is declared in interact.results
 
 #: fm values shown in the text table of the AUCR-versus-fm curves
 _FM_SHOWN = (0.25, 0.5, 0.75, 0.9, 1.0)
