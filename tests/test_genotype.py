@@ -163,3 +163,35 @@ def test_phenotype_table_rows_are_sourced() -> None:
         assert values == sorted(values), enzyme  # poor to ultrarapid, in order of activity
     # CPIC 2016 Table 1 (Hicks et al. 2017): CYP2D6 poor metaboliser activity score 0
     assert next(r for r in table["CYP2D6"] if r.name == "poor").activity.value == 0.0
+
+
+def test_batch_phenotype_column_equals_the_single_assessment() -> None:
+    from interact.batch import evaluate_pairs, loads_perpetrators, loads_victims, pair_scenario, ranking, result_rows
+    from interact.dosing import ACTIONS
+
+    perps = loads_perpetrators(
+        "name,dose (mg),molar mass (g/mol),cmax (uM),fu_p,ki CYP2D6 (uM),ki CYP3A (uM)\nP1,100,400,1,0.1,0.05,\nP2,100,400,2,0.2,,3\n"
+    )
+    victims = loads_victims(
+        "name,dose (mg),interval (h),strengths (mg),half_life (h),fm CYP2D6,fm CYP3A,phenotype CYP2D6\n"
+        "Y normal,10,24,2.5;5;10,20,0.7,0.2,\nY poor,10,24,2.5;5;10,20,0.7,0.2,poor\n"
+        "Y IM,10,24,2.5;5;10,20,0.7,0.2,intermediate\nY a=0.4,10,24,2.5;5;10,,0.7,0.2,0.4\n"
+    )
+    res = evaluate_pairs(perps, victims)
+    for i in range(2):
+        for j, v in enumerate(victims.rows):
+            a = assess(pair_scenario(perps, victims, i, j))
+            if not v.phenotypes:
+                assert res.total[i, j] == a.prediction.total and res.exposure[i, j] == a.prediction.total
+                assert ACTIONS[res.action[i, j]] == a.dose.action
+                continue
+            case = next(c for c in a.phenotypes if not c.reference)
+            assert res.total[i, j] == pytest.approx(case.interaction_ratio, rel=1e-12)
+            assert res.exposure[i, j] == pytest.approx(case.combined_ratio, rel=1e-12)
+            assert ACTIONS[res.action[i, j]] == case.dose.action
+    # a poor metaboliser ranks by its combined exposure even where the interaction is absent
+    rows = list(result_rows(res))
+    assert len(rows) == 8 and rows[0][2] in {"Y poor", "Y IM", "Y normal", "Y a=0.4"}
+    assert ranking(res).size == 8
+    with pytest.raises(Exception, match="one phenotype"):
+        loads_victims("name,dose (mg),interval (h),fm CYP2D6,phenotype CYP2D6\nY,10,24,0.7,all\n")
