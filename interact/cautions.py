@@ -12,7 +12,7 @@ CAUTIONS: Final = (
     "These are predictions of static models: screening estimates, not clinical advice.",
     "Dose decisions belong to a licensed prescriber, with the victim drug's product label and local guidance.",
     "Static models can over- or under-predict: nonlinear kinetics, active or inhibitory metabolites not entered, "
-    "transporter-enzyme interplay, genotype (poor metabolisers), disease and time course are not captured.",
+    "transporter-enzyme interplay, genotype (unless phenotypes are stated), disease and time course are not captured.",
     "Values marked 'from memory' in the tables were not verified against the primary text; check them before relying on them.",
 )
 
