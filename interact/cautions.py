@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Final
 
-__all__ = ["CAUTIONS", "CAUTION_LINE", "DOSE_CAUTIONS", "FIT_CAUTION", "INCREASE_CAUTION"]
+__all__ = ["CAUTIONS", "CAUTION_LINE", "DOSE_CAUTIONS", "FIT_CAUTION", "GENOTYPE_CAUTIONS", "INCREASE_CAUTION"]
 
 CAUTION_LINE: Final = "Model estimate, not clinical advice: the prescriber, the product label and local guidance decide."
 
@@ -12,7 +12,7 @@ CAUTIONS: Final = (
     "These are predictions of static models: screening estimates, not clinical advice.",
     "Dose decisions belong to a licensed prescriber, with the victim drug's product label and local guidance.",
     "Static models can over- or under-predict: nonlinear kinetics, active or inhibitory metabolites not entered, "
-    "transporter-enzyme interplay, genotype (poor metabolisers), disease and time course are not captured.",
+    "transporter-enzyme interplay, genotype (unless phenotypes are stated), disease and time course are not captured.",
     "Values marked 'from memory' in the tables were not verified against the primary text; check them before relying on them.",
 )
 
@@ -32,4 +32,13 @@ INCREASE_CAUTION: Final = (
 FIT_CAUTION: Final = (
     "In vitro constants feed model predictions, not clinical advice. Check the fitted curves and residuals, "
     "the design warnings and the binding correction before carrying a Ki into a scenario. " + CAUTION_LINE
+)
+
+GENOTYPE_CAUTIONS: Final = (
+    "Genotype-guided dosing needs expert review: phenotype from genotype is uncertain (rare alleles, copy number, "
+    "phenoconversion by other drugs), and the relative activities here are conventions, mostly from memory.",
+    "Follow the pharmacogenetic guideline for the object drug (for example CPIC or DPWG) and its label where they give "
+    "phenotype-specific doses; they outrank this estimate.",
+    "The model assumes each phenotype scales only its own pathway's intrinsic clearance, linear kinetics, and no genotype "
+    "effect in the gut wall.",
 )

@@ -216,6 +216,22 @@ def assessment_dict(a: Assessment) -> dict[str, Any]:
             "reasons": list(d.reasons),
             "cautions": list(d.cautions),
         },
+        "phenotypes": [
+            {
+                "label": c.label,
+                "reference": c.reference,
+                "activities": [{"enzyme": e, "phenotype": n, "activity": act} for e, n, act in c.activities],
+                "fm": dict(c.fm),
+                "exposure_vs_normal_alone": c.genotype_ratio,
+                "auc_ratio_with_precipitant": c.interaction_ratio,
+                "exposure_vs_normal_with_precipitant": c.combined_ratio,
+                "ceiling": _num(c.ceiling),
+                "action": c.dose.action,
+                "headline": c.dose.headline,
+                "suggested": _regimen_json(c.dose.chosen),
+            }
+            for c in a.phenotypes
+        ],
         "perpetrator_dose_limit": {"dose": lim.dose, "unit": lim.dose_unit, "scale": lim.scale, "reason": lim.reason},
         "warnings": list(a.warnings),
         "from_memory": list(a.memory_values),
