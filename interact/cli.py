@@ -72,8 +72,8 @@ def _assess_time_course(result, args: argparse.Namespace):  # type: ignore[no-un
 def _cmd_timecourse(args: argparse.Namespace) -> int:
     from .assessment import assess
     from .dynamic import simulate
-    from .report.timecourse import format_timecourse, timecourse_svg
-    from .scenario import load_scenario, write_text_atomic
+    from .report.timecourse import format_timecourse
+    from .scenario import load_scenario
 
     result = assess(load_scenario(Path(args.scenario)), rules=args.rules, warn=False)
     course = simulate(
@@ -84,7 +84,9 @@ def _cmd_timecourse(args: argparse.Namespace) -> int:
         effect_fraction=args.fraction,
     )
     if args.plot:
-        write_text_atomic(Path(args.plot), timecourse_svg(course, title=result.scenario.title))
+        from .report.figures import save_figure, timecourse_figure
+
+        save_figure(timecourse_figure(course, title=result.scenario.title), args.plot)
     _out(format_timecourse(course, result, args.format, width=args.width), args.output)
     return 0
 
@@ -450,7 +452,7 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--washout-days", type=_days_arg, default=None, help="days followed after stopping (default: long enough to fade)")
     p.add_argument("--fraction", type=_fraction_arg, default=0.9, help="share of the effect that defines onset and offset (default 0.9)")
     p.add_argument("--constant", action="store_true", help="hold the perpetrator's site concentrations at their static values")
-    p.add_argument("--plot", metavar="FILE.svg", help="also write the curves as an SVG image")
+    p.add_argument("--plot", metavar="FILE", help="also write the curves to FILE.svg/.png/.pdf (matplotlib)")
     p.set_defaults(run=_cmd_timecourse)
 
     for name, text in (

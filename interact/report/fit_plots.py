@@ -1,8 +1,9 @@
 """Renderers for the fit diagnostics: terminal text (plotext) and SVG/PNG files (matplotlib).
 
 The data come from :mod:`interact.kinetics.diagnostics`; nothing is
-recomputed here.  Both libraries are imported only when a plot is drawn, and
-matplotlib always with the non-interactive Agg backend.
+recomputed here.  Both libraries are imported only when a plot is drawn; the
+matplotlib figure is :func:`interact.report.figures.fit_figure` (object-oriented
+API, the caller's backend untouched).
 """
 
 from __future__ import annotations
@@ -13,10 +14,10 @@ from typing import Final
 
 from ..errors import InputError
 from ..kinetics.diagnostics import PlotData
+from .figures import FIGURE_SUFFIXES
 
 __all__ = ["FIGURE_SUFFIXES", "render_terminal", "save_figure"]
 
-FIGURE_SUFFIXES: Final = (".svg", ".png", ".pdf")
 _MARKERS: Final = ("o", "x", "+", "*", "#", "@", "%", "&")
 
 
@@ -54,45 +55,15 @@ def render_terminal(plot: PlotData, width: int = 80, height: int = 22) -> str:
 
 
 def save_figure(plots: Sequence[PlotData], path: str | Path) -> Path:
-    """Draw ``plots`` side by side into ``path`` (.svg, .png or .pdf); returns the path.
+    """Draw ``plots`` side by side (:func:`interact.report.figures.fit_figure`) into ``path`` (.svg, .png or .pdf).
 
     Raises
     ------
     InputError
         Unsupported suffix, or the file cannot be written.
     """
-    target = Path(path)
-    if target.suffix.lower() not in FIGURE_SUFFIXES:
+    from . import figures
+
+    if Path(path).suffix.lower() not in FIGURE_SUFFIXES:  # before drawing: a bad name costs nothing
         raise InputError("plot", str(path), f"has an unsupported suffix; expected one of {', '.join(FIGURE_SUFFIXES)}")
-    import matplotlib
-
-    matplotlib.use("Agg", force=True)
-    from matplotlib.figure import Figure
-
-    fig = Figure(figsize=(5.2 * len(plots), 4.6), layout="constrained")
-    axes = fig.subplots(1, len(plots), squeeze=False)[0]
-    cmap = matplotlib.colormaps["viridis"]
-    for ax, plot in zip(axes, plots, strict=True):
-        levels = sorted({s.level_um for s in plot.series if s.level_um is not None})
-        colour = {lv: cmap(k / max(len(levels) - 1, 1) * 0.9) for k, lv in enumerate(levels)}
-        for s in plot.series:
-            c = colour.get(s.level_um, "0.4") if s.level_um is not None else "0.4"
-            if s.kind == "points":
-                ax.plot(s.x, s.y, "o", color=c, label=s.label, markersize=4)
-            else:
-                ax.plot(s.x, s.y, color=c, linewidth=1.0, linestyle="-" if s.level_um is not None else "--")
-        ax.axhline(0.0, color="0.8", linewidth=0.6)
-        ax.axvline(0.0, color="0.8", linewidth=0.6)
-        ax.set_title(plot.title, fontsize=10)
-        ax.set_xlabel(plot.x_label)
-        ax.set_ylabel(plot.y_label)
-        ax.legend(fontsize=7, frameon=False)
-    fig.suptitle("Diagnostics of the global nonlinear fit; not the fitting method", fontsize=8, color="0.4")
-    import io
-
-    from ..scenario import write_text_atomic
-
-    buffer = io.BytesIO()
-    fig.savefig(buffer, format=target.suffix.lower().lstrip("."))
-    write_text_atomic(target, buffer.getvalue())  # atomic: the old file or the new one, never a part
-    return target
+    return figures.save_figure(figures.fit_figure(plots), path)

@@ -99,7 +99,9 @@ def test_timecourse_command_json_plot_and_errors(tmp_path: Path, capsys: pytest.
     assert n > 100 and all(len(v) == n for k, v in data["curves"].items() if isinstance(v, list))
     assert data["stop_h"] == 480.0
     root = ET.parse(svg).getroot()
-    assert root.tag.endswith("svg") and len(root.findall(".//{http://www.w3.org/2000/svg}polyline")) >= 4
+    # drawn by interact.report.figures.timecourse_figure (matplotlib): one group per curve
+    lines = [g for g in root.iter("{http://www.w3.org/2000/svg}g") if g.get("id", "").startswith("line2d_")]
+    assert root.tag.endswith("svg") and len(lines) >= 4
     with pytest.raises(SystemExit) as exc:  # argparse rejects the value with a one-line usage error
         main(["timecourse", str(EXAMPLE), "--days", "0"])
     assert exc.value.code == 2
