@@ -566,7 +566,7 @@ def _cmd_fit(args: argparse.Namespace) -> int:
         sys.stderr.write(f"interact: diagnostic plots written to {args.plot}\n")
     if args.into:
         if ki is None or comp.verdict.mechanism is None:
-            raise InputError("--into", args.into, "was not updated: the data show no inhibition, so there is no Ki to carry")
+            raise InputError("--into", args.into, f"was not updated: there is no Ki to carry. {comp.verdict.text}")
         if not math.isfinite(ki.value):
             raise InputError("--into", args.into, f"was not updated: {ki.name} is unbounded")
         origin = f"fit of {path.name}, {comp.verdict.mechanism} model ({args.weights} weights), {today}"
@@ -645,7 +645,7 @@ def _cmd_fit_ic50(args: argparse.Namespace, path: Path, today: str, fu_inc: floa
         source=data.source,
     )
     ki = None
-    if args.mechanism:
+    if args.mechanism and not result.no_decline:
         s = units_um(args.substrate_conc, "--substrate-conc") if args.substrate_conc else None
         km = units_um(args.km, "--km") if args.km else None
         ki = ki_from_ic50_fit(result, args.mechanism, substrate_um=s, km_um=km, alpha=args.alpha)
@@ -656,6 +656,8 @@ def _cmd_fit_ic50(args: argparse.Namespace, path: Path, today: str, fu_inc: floa
         unbound = unbound_constant("Ki", ki.ki_um, ki.low_um, ki.high_um, fu_inc, interval="from the IC50 interval", fu_origin=fu_origin)
     _out(format_ic50(result, ki, args.format, width=args.width, unbound=unbound), args.output)
     if args.into:
+        if result.no_decline:
+            raise InputError("--into", args.into, f"was not updated: {result.no_decline}")
         if ki is None:
             raise InputError("--mechanism", None, "is needed with --into for an IC50 curve (the Cheng-Prusoff conversion depends on it)")
         origin = f"Cheng-Prusoff from {result.fit.model} IC50 fit of {path.name}, {ki.mechanism}, {today}"

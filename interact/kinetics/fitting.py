@@ -64,6 +64,7 @@ NESTED: Final = (
     ("none", "competitive"),
     ("none", "noncompetitive"),
     ("none", "uncompetitive"),
+    ("none", "mixed"),
     ("competitive", "mixed"),
     ("noncompetitive", "mixed"),
     ("uncompetitive", "mixed"),
@@ -305,7 +306,15 @@ class FTest:
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Verdict:
-    """The mechanism the data support, how strongly, and what is not identifiable."""
+    """The mechanism the data support, how strongly, and what is not identifiable.
+
+    ``support`` is the chosen model's own Akaike weight.  When the chosen model
+    stands for a group (a mixed fit that collapses onto it, or a mixed fit not
+    significantly better), ``group`` names the models counted together and
+    ``group_support`` is their summed weight; ``strength`` then describes the
+    group and the text says so.  ``inhibition_shown`` is False when the model
+    without inhibition is not rejected: nothing is then carried into a scenario.
+    """
 
     model: str
     mechanism: str | None
@@ -313,6 +322,9 @@ class Verdict:
     support: float
     text: str
     unidentifiable: tuple[str, ...] = ()
+    group: tuple[str, ...] = ()
+    group_support: float | None = None
+    inhibition_shown: bool = False
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -365,18 +377,30 @@ class ModelComparison:
 # --------------------------------------------------------------------------- fitting
 
 
-def _check_design(data: IncubationData, models: Sequence[str]) -> None:
-    s, i, _ = data.arrays()
+def _check_design(data: IncubationData) -> str:
+    """Refuse degenerate data; return a description when there is a single inhibitor level (else "")."""
+    s, i, v = data.arrays()
+    where = data.source or "data"
+    if np.all(v == 0):
+        raise InputError(f"{where}: velocity", "every value is 0", "cannot be fitted; expected measured rates above zero")
+    if np.all(v <= 0):
+        raise InputError(f"{where}: velocity", "no value above 0", "cannot be fitted; expected measured rates above zero")
+    if np.ptp(v) == 0:
+        raise InputError(
+            f"{where}: velocity", f"every value is {v[0]:g}", "shows no change with substrate; expected rates that vary with concentration"
+        )
     if np.unique(s).size < 3:
         raise FitError(
-            f"{data.source or 'data'}: {np.unique(s).size} substrate level(s); a Michaelis-Menten fit needs at least "
-            f"3 distinct substrate concentrations"
+            f"{where}: {np.unique(s).size} substrate level(s); a Michaelis-Menten fit needs at least 3 distinct substrate concentrations"
         )
-    if any(m != "none" for m in models) and np.unique(i).size < 2:
-        raise FitError(
-            f"{data.source or 'data'}: one inhibitor level only ({i[0]:g} uM); inhibition models need at least two (a "
-            f"control without inhibitor and one or more levels)"
+    if np.unique(i).size < 2:
+        if i[0] == 0:
+            return "the data have no inhibitor (a plain substrate-velocity curve)"
+        return (
+            f"one inhibitor level only ({i[0]:g} uM, no control without inhibitor): Km and Vmax are apparent values at that "
+            "level; inhibition models need a control and one or more levels"
         )
+    return ""
 
 
 def fit_inhibition(
@@ -412,7 +436,12 @@ def fit_inhibition(
     InputError
         Unknown model or weighting, weights needing positive velocities.
     FitError
-        A design that cannot be fitted (fewer than 3 substrate levels, one inhibitor level).
+        A design that cannot be fitted (fewer than 3 substrate levels).
+
+    Degenerate velocities (all zero, none above zero, all equal) raise :class:`InputError`.  A single
+    inhibitor level is fitted with the model without inhibition only (plain Michaelis-Menten), and the
+    verdict says so; the model without inhibition is always fitted, because inhibition is reported only
+    when it is rejected.
     """
     chosen_models = tuple(dict.fromkeys(models))
     if not chosen_models:
@@ -422,7 +451,11 @@ def fit_inhibition(
             raise InputError("models", m, f"is not one of {', '.join(MODELS)}")
     if weights not in WEIGHTS:
         raise InputError("weights", weights, f"is not one of {', '.join(WEIGHTS)}")
-    _check_design(data, chosen_models)
+    single_level = _check_design(data)
+    if single_level:
+        chosen_models = ("none",)
+    elif "none" not in chosen_models:
+        chosen_models = ("none", *chosen_models)  # the test of "no inhibition" needs it
     s, i, v = data.arrays()
     x = np.vstack((s, i))
     starts = guess_inhibition(data)
@@ -455,7 +488,7 @@ def fit_inhibition(
     fit_tuple = tuple(fits[m] for m in order)
     ranking = _rank(fit_tuple)
     f_tests = _f_tests(fits)
-    verdict = _verdict(fits, ranking, f_tests)
+    verdict = _verdict(fits, ranking, f_tests, single_level)
     sub_fit, sub_test = fit_substrate_inhibition(data, weights=weights) if np.count_nonzero(i == np.min(i)) >= 5 else (None, None)
     warnings = _design_warnings(data, fits, verdict, weights, sub_fit, sub_test)
     return ModelComparison(
@@ -595,7 +628,13 @@ def _at_bound(fit: FitResult, name: str) -> bool:
     return e.at_bound or e.value == math.inf
 
 
-def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests: tuple[FTest, ...]) -> Verdict:
+def _group_label(chosen: str, group: tuple[str, ...], collapsed: str | None) -> str:
+    if collapsed:
+        return f"{chosen}-type models together ({chosen}, and mixed with {collapsed} unbounded)"
+    return f"{' and '.join(group)} together"
+
+
+def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests: tuple[FTest, ...], single_level: str = "") -> Verdict:
     if not ranking:
         first = next(iter(fits.values()))
         return Verdict(
@@ -606,36 +645,38 @@ def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests
             text="No model could be fitted to these data; see the warnings.",
         )
     weight = {r.model: r.weight for r in ranking}
+    rank_of = {r.model: r for r in ranking}
     best = ranking[0].model
     notes: list[str] = []
     unidentifiable: list[str] = []
     chosen = best
-    support = weight[best]
+    group: tuple[str, ...] = ()
+    collapsed: str | None = None
+    if single_level:
+        text = f"Michaelis-Menten fit only: {single_level}; no inhibition model can be fitted, so no Ki is reported."
+        return Verdict(model="none", mechanism=None, strength=_strength(weight["none"]), support=weight["none"], text=text)
     if best == "mixed":
         mixed = fits["mixed"]
         if _at_bound(mixed, "Kic") and "uncompetitive" in weight:
-            chosen = "uncompetitive"
+            chosen, group, collapsed = "uncompetitive", ("uncompetitive", "mixed"), "Kic"
             unidentifiable.append("Kic")
-            support = weight["mixed"] + weight["uncompetitive"]
             notes.append(
                 "The mixed fit collapses onto the uncompetitive model: its competitive constant Kic runs to infinity "
                 "(unbounded), so it is not identifiable."
             )
         elif _at_bound(mixed, "Kiu") and "competitive" in weight:
-            chosen = "competitive"
+            chosen, group, collapsed = "competitive", ("competitive", "mixed"), "Kiu"
             unidentifiable.append("Kiu")
-            support = weight["mixed"] + weight["competitive"]
             notes.append(
                 "The mixed fit collapses onto the competitive model: its uncompetitive constant Kiu runs to infinity "
                 "(unbounded), so it is not identifiable."
             )
         else:
-            simpler = [t for t in tests if t.full == "mixed" and not t.significant and t.reduced in weight]
+            simpler = [t for t in tests if t.full == "mixed" and t.reduced != "none" and not t.significant and t.reduced in weight]
             if simpler:
                 pick = min(simpler, key=lambda t: fits[t.reduced].aicc)
-                if weight[pick.reduced] > 0 and ranking[[r.model for r in ranking].index(pick.reduced)].delta_aicc < 2.0:
-                    chosen = pick.reduced
-                    support = weight[pick.reduced] + weight["mixed"]
+                if weight[pick.reduced] > 0 and rank_of[pick.reduced].delta_aicc < 2.0:
+                    chosen, group = pick.reduced, (pick.reduced, "mixed")
                     notes.append(
                         f"The mixed model fits slightly better by AICc but not significantly better than {pick.reduced} "
                         f"(F test p = {pick.p_value:.2g}); the simpler mechanism is reported."
@@ -644,23 +685,37 @@ def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests
         mixed = fits["mixed"]
         collapse = {"uncompetitive": "Kic", "competitive": "Kiu"}.get(best)
         if collapse and _at_bound(mixed, collapse):
-            support = weight[best] + weight.get("mixed", 0.0)
+            group, collapsed = (best, "mixed"), collapse
             unidentifiable.append(collapse)
             notes.append(f"The mixed fit collapses onto this model ({collapse} unbounded).")
+    support = weight[chosen]
+    group_support = sum(weight.get(m, 0.0) for m in group) if group else None
     if chosen == "none":
-        alt = ranking[1].model if len(ranking) > 1 else None
-        text = "No inhibition detected: the model without inhibition has the lowest AICc"
-        text += f" (next: {alt}, delta AICc {ranking[1].delta_aicc:.1f})." if alt else "."
+        alt = ranking[1] if len(ranking) > 1 else None
+        text = f"No inhibition shown: the model without inhibition has the lowest AICc (Akaike weight {support:.2f})"
+        text += f"; next: {LABELS[alt.model]} (Akaike weight {alt.weight:.2f}, delta AICc {alt.delta_aicc:.1f})." if alt else "."
         return Verdict(model="none", mechanism=None, strength=_strength(support), support=support, text=text)
+    against_none = next((t for t in tests if t.reduced == "none" and t.full == chosen), None)
+    if against_none is not None and not against_none.significant:
+        text = (
+            f"No inhibition shown: the model without inhibition is not rejected (F test against the {LABELS[chosen]} "
+            f"model, p = {against_none.p_value:.2g}); the {LABELS[chosen]} model's own Akaike weight is {support:.2f}. "
+            "No Ki is reported; higher inhibitor concentrations or more replicates would be needed to show inhibition."
+        )
+        return Verdict(model="none", mechanism=None, strength="none", support=weight.get("none", 0.0), text=text)
     fit = fits[chosen]
-    strength = _strength(support)
-    others = [r for r in ranking if r.model not in (chosen, "mixed" if unidentifiable or chosen != best else "")]
+    strength = _strength(group_support if group_support is not None else support)
+    others = [r for r in ranking if r.model not in (chosen, *group)]
     runner = others[0] if others else None
-    text = f"{LABELS[chosen].capitalize()} inhibition: {strength} support (Akaike weight {support:.2f})"
+    text = f"{LABELS[chosen].capitalize()} inhibition: Akaike weight {support:.2f} for the {LABELS[chosen]} model itself"
+    if group_support is not None:
+        text += f"; {_group_label(chosen, group, collapsed)}: {group_support:.2f}, {strength} support for the group"
+    else:
+        text += f", {strength} support"
     if runner is not None:
         delta = runner.aicc - fits[chosen].aicc
         if math.isfinite(delta):
-            text += f"; next best {LABELS[runner.model]} at delta AICc {delta:.1f}"
+            text += f"; next best {LABELS[runner.model]} (Akaike weight {runner.weight:.2f}) at delta AICc {delta:.1f}"
         else:
             text += f"; {LABELS[runner.model]} fits exactly too (noise-free data cannot separate them)"
     text += "."
@@ -683,7 +738,17 @@ def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests
                 )
     if notes:
         text += " " + " ".join(notes)
-    return Verdict(model=chosen, mechanism=chosen, strength=strength, support=support, text=text, unidentifiable=tuple(unidentifiable))
+    return Verdict(
+        model=chosen,
+        mechanism=chosen,
+        strength=strength,
+        support=support,
+        text=text,
+        unidentifiable=tuple(unidentifiable),
+        group=group,
+        group_support=group_support,
+        inhibition_shown=True,
+    )
 
 
 def _strength(weight: float) -> str:
@@ -732,9 +797,10 @@ def _design_warnings(
                 "about 0.2-5 x Km separates the mechanisms better (common practice)."
             )
     levels = np.unique(i[i > 0])
-    if not np.any(i == 0):
+    single = np.unique(i).size < 2
+    if not np.any(i == 0) and not single:
         out.append("No control rows without inhibitor: the uninhibited curve is not measured directly.")
-    if levels.size < 3:
+    if 0 < levels.size < 3 and not single:
         out.append(f"Only {levels.size} inhibitor level(s) above zero; at least 3 spanning Ki are common practice for a reliable Ki.")
     est = None
     if chosen is not None:

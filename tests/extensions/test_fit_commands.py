@@ -48,7 +48,7 @@ def test_bad_csv_names_row_and_column() -> None:
 def test_carry_keeps_comments_and_validates() -> None:
     text = EXAMPLE.read_text(encoding="utf-8")
     new = carry_constants_text(text, target="CYP3A4", values={"kinact": "0.05 1/min", "ki_inact": "2 uM"}, origin="test fit")
-    assert '# was "0.006 1/min"; time-dependent part' in new
+    assert '# fit: was "0.006 1/min"; time-dependent part' in new  # one writer for every fit: stamp, old value, old comment
     assert "INVENTED" in new and "reversible part, invented microsomal incubation" in new
     s = load_scenario_text(new)
     assert s.perpetrator.inhibits[0].origin == "test fit"
