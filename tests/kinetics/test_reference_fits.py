@@ -159,6 +159,15 @@ def test_vmkmki_selects_uncompetitive_and_reports_kic_unbounded() -> None:
     assert kic.value == math.inf and kic.std_error is None and kic.profile_high == math.inf
     assert mixed.rss == pytest.approx(comp.fit("uncompetitive").rss, rel=1e-9)
     assert "unbounded" in comp.verdict.text
+    # issue 14: each model's own Akaike weight, never a sum printed as one model's weight
+    weights = {r.model: r.weight for r in comp.ranking}
+    assert comp.verdict.support == weights["uncompetitive"] < 0.9
+    assert f"Akaike weight {weights['uncompetitive']:.2f} for the uncompetitive model itself" in comp.verdict.text
+    assert comp.verdict.group == ("uncompetitive", "mixed")
+    assert comp.verdict.group_support == pytest.approx(weights["uncompetitive"] + weights["mixed"], abs=1e-12)
+    assert f"uncompetitive-type models together (uncompetitive, and mixed with Kic unbounded): {comp.verdict.group_support:.2f}" in (
+        comp.verdict.text
+    )
 
 
 @pytest.mark.parametrize(
