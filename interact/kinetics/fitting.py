@@ -474,7 +474,9 @@ def fit_inhibition(
         st = list(starts[name])
         if name == "mixed":
             st.extend(_mixed_starts(fits))
-        prof = tuple(range(2, len(model.parameters))) if profile else ()
+        # Km and Vmax get profile intervals in the model without inhibition (a plain Michaelis-Menten fit
+        # reports them); the inhibition models profile their inhibition constants
+        prof = (tuple(range(2, len(model.parameters))) if name != "none" else (0, 1)) if profile else ()
         fits[name] = fit_curve(
             model,
             x,
