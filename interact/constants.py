@@ -42,6 +42,8 @@ class Constant:
     calibration: float = 1.0
     calibration_origin: str = "default"
     origin: str = ""
+    #: the in vitro Ki's interval (uM) when the scenario gives ``ki_ci`` beside ``ki``
+    ki_ci_um: tuple[float, float] | None = None
 
 
 def _one(item: Inhibition, species: str, index: int, mw: pint.Quantity | None, path: str) -> Constant:
@@ -69,6 +71,12 @@ def _one(item: Inhibition, species: str, index: int, mw: pint.Quantity | None, p
                 + (f", alpha {item.alpha:g}" if item.mechanism == "mixed" else "")
                 + f" ({CHENG_PRUSOFF_SOURCE})"
             )
+    ki_ci = None
+    if item.ki is not None and item.ki_ci is not None:
+        ki_ci = (
+            units.concentration_um(item.ki_ci[0], mw, field=f"{path}.ki_ci"),
+            units.concentration_um(item.ki_ci[1], mw, field=f"{path}.ki_ci"),
+        )
     kinact = units.magnitude(item.kinact, "1/h") if item.kinact is not None else None
     ki_inact = units.concentration_um(item.ki_inact, mw, field=f"{path}.ki_inact") if item.ki_inact is not None else None
     ec50 = units.concentration_um(item.ec50, mw, field=f"{path}.ec50") if item.ec50 is not None else None
@@ -92,6 +100,7 @@ def _one(item: Inhibition, species: str, index: int, mw: pint.Quantity | None, p
         calibration=1.0 if item.calibration is None else item.calibration,
         calibration_origin="default" if item.calibration is None else "given",
         origin=item.origin,
+        ki_ci_um=ki_ci,
     )
 
 

@@ -109,6 +109,13 @@ class Estimate:
     identifiable: bool = True
     note: str = ""
 
+    def interval(self) -> tuple[float, float, str] | None:
+        """(low, high, method) to carry forward: the profile interval when closed, else the asymptotic one; None when open."""
+        for low, high, method in ((self.profile_low, self.profile_high, "profile likelihood"), (self.ci_low, self.ci_high, "asymptotic")):
+            if low is not None and high is not None and 0 < low <= self.value <= high < math.inf:
+                return low, high, method
+        return None
+
     @property
     def relative_se(self) -> float | None:
         if self.std_error is None or not math.isfinite(self.value) or self.value == 0:

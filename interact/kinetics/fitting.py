@@ -18,7 +18,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Final
 
 import numpy as np
@@ -189,7 +189,13 @@ _NPAR: Final = {"none": 2, "competitive": 3, "noncompetitive": 3, "uncompetitive
 
 
 def inhibition_model(
-    name: str, velocity_unit: str = "", *, vmax_max: float = math.inf, km_max: float = math.inf, kappa_max: float = math.inf
+    name: str,
+    velocity_unit: str = "",
+    *,
+    vmax_max: float = math.inf,
+    km_max: float = math.inf,
+    kappa_max: float = math.inf,
+    km_unit: str = "uM",
 ) -> CurveModel:
     """The fitting model for ``name`` (one of :data:`MODELS`), in 1/Ki form.
 
@@ -212,7 +218,7 @@ def inhibition_model(
         upper=(vmax_max, km_max, *(kappa_max,) * len(const)),
         reported=("value", "value", *("inverse",) * len(const)),
         reported_names=("Vmax", "Km", *const),
-        units=(velocity_unit, "uM", *("uM",) * len(const)),
+        units=(velocity_unit, km_unit, *("uM",) * len(const)),
         equation=EQUATIONS[name],
         function_jacobian=_fused(name),
     )
@@ -470,7 +476,7 @@ def fit_inhibition(
     fits: dict[str, FitResult] = {}
     order = [m for m in MODELS if m in chosen_models]
     for name in order:
-        model = inhibition_model(name, data.velocity_unit, vmax_max=caps[0], km_max=caps[1], kappa_max=caps[2])
+        model = inhibition_model(name, data.velocity_unit, vmax_max=caps[0], km_max=caps[1], kappa_max=caps[2], km_unit=data.substrate_unit)
         st = list(starts[name])
         if name == "mixed":
             st.extend(_mixed_starts(fits))
@@ -490,8 +496,10 @@ def fit_inhibition(
     fit_tuple = tuple(fits[m] for m in order)
     ranking = _rank(fit_tuple)
     f_tests = _f_tests(fits)
-    verdict = _verdict(fits, ranking, f_tests, single_level)
     sub_fit, sub_test = fit_substrate_inhibition(data, weights=weights) if np.count_nonzero(i == np.min(i)) >= 5 else (None, None)
+    verdict = _verdict(fits, ranking, f_tests, single_level)
+    if single_level:
+        verdict = _plain_verdict(verdict, fits["none"], sub_fit, sub_test, data.substrate_unit)
     warnings = _design_warnings(data, fits, verdict, weights, sub_fit, sub_test)
     return ModelComparison(
         data=data,
@@ -526,7 +534,7 @@ def _mixed_starts(fits: dict[str, FitResult]) -> list[tuple[float, ...]]:
     return out
 
 
-def _substrate_model(velocity_unit: str) -> CurveModel:
+def _substrate_model(velocity_unit: str, substrate_unit: str = "uM") -> CurveModel:
     def f(u: Array, s: Array) -> Array:
         return u[0] * s / (u[1] + s * (1.0 + s * u[2]))
 
@@ -555,12 +563,14 @@ def _substrate_model(velocity_unit: str) -> CurveModel:
         upper=(math.inf,) * 3,
         reported=("value", "value", "inverse"),
         reported_names=("Vmax", "Km", "Ksi"),
-        units=(velocity_unit, "uM", "uM"),
+        units=(velocity_unit, substrate_unit, substrate_unit),
         equation="v = Vmax S / (Km + S (1 + S/Ksi))",
     )
 
 
-def fit_substrate_inhibition(data: IncubationData, *, weights: str = "none") -> tuple[FitResult | None, FTest | None]:
+def fit_substrate_inhibition(
+    data: IncubationData, *, weights: str = "none", leave_one_out: bool = False
+) -> tuple[FitResult | None, FTest | None]:
     """Substrate inhibition on the uninhibited curve (rows at the lowest inhibitor level).
 
     Fits the Haldane form v = Vmax S/(Km + S(1 + S/Ksi)) and tests it against
@@ -570,16 +580,79 @@ def fit_substrate_inhibition(data: IncubationData, *, weights: str = "none") -> 
     s, i, v = data.arrays()
     base = i == np.min(i)
     sb, vb = s[base], v[base]
-    if np.unique(sb).size < 4 or sb.size < 5:
+    if np.unique(sb).size < (3 if leave_one_out else 4) or sb.size < (4 if leave_one_out else 5):
         return None, None
     vmax, km = guess_michaelis_menten(sb, vb)
-    model = _substrate_model(data.velocity_unit)
+    model = _substrate_model(data.velocity_unit, data.substrate_unit)
     starts = [(vmax, km, 0.1 / float(np.max(sb))), (vmax, km, 1.0 / float(np.max(sb)))]
     sub = fit_curve(model, sb, vb, starts, weights=weights)
-    mm = fit_curve(inhibition_model("none", data.velocity_unit), np.vstack((sb, np.zeros_like(sb))), vb, [(vmax, km)], weights=weights)
+    mm = fit_curve(
+        inhibition_model("none", data.velocity_unit, km_unit=data.substrate_unit),
+        np.vstack((sb, np.zeros_like(sb))),
+        vb,
+        [(vmax, km)],
+        weights=weights,
+    )
     if not (sub.success and mm.success) or sub.df < 1:
         return sub, None
     return sub, _f_test("none", mm, "substrate-inhibition", sub)
+
+
+def _substrate_inhibition_warning(data: IncubationData, sub_fit: FitResult, sub_test: FTest, weights: str) -> str:
+    """The substrate-inhibition warning, naming the row that drives it and saying whether the data fall.
+
+    The data "fall" when the mean velocity at the highest substrate level is below the highest level mean
+    of the control curve; otherwise the better Haldane fit only says the curve saturates more sharply
+    than a hyperbola.  The row named is the one whose removal weakens the evidence most (leave-one-out
+    refits of both models on the control rows; the F statistic without it is reported).
+    """
+    s, i, v = data.arrays()
+    base = np.flatnonzero(i == np.min(i))
+    sb, vb = s[base], v[base]
+    su = data.substrate_unit
+    levels = np.unique(sb)
+    means = np.array([vb[sb == lv].mean() for lv in levels])
+    falls = bool(means[-1] < means.max())
+    worst_k, worst_p = -1, sub_test.p_value
+    for k in range(base.size):
+        keep = np.arange(base.size) != k
+        sub = data_subset(data, base[keep])
+        _, t2 = fit_substrate_inhibition(sub, weights=weights, leave_one_out=True)
+        p2 = t2.p_value if t2 is not None else 1.0
+        if p2 > worst_p:
+            worst_k, worst_p = k, p2
+    ksi = sub_fit.value("Ksi")
+    what = (
+        f"Velocity falls at high substrate without inhibitor: substrate inhibition (Ksi {ksi:.3g} {su}"
+        if falls
+        else f"The control curve shows sharper saturation than hyperbolic (the substrate-inhibition form fits better, Ksi {ksi:.3g} {su}"
+    )
+    text = f"{what}, F test p = {sub_test.p_value:.2g}); the inhibition models assume none."
+    if not falls:
+        text += " The velocities do not fall at high substrate, so this is not evidence of substrate inhibition as such."
+    if worst_k >= 0:
+        k = int(base[worst_k])
+        text += (
+            f" The row that drives it most is line {data.line_of(k)} (S = {s[k]:g} {su}, v = {v[k]:g}): without it the F test "
+            f"gives p = {worst_p:.2g}."
+        )
+    return text
+
+
+def data_subset(data: IncubationData, rows: Sequence[int] | Array) -> IncubationData:
+    """The rows ``rows`` of ``data`` (line numbers kept for messages)."""
+    idx = [int(k) for k in rows]
+    pick = lambda xs: tuple(xs[k] for k in idx)  # noqa: E731
+    return IncubationData(
+        substrate_um=pick(data.substrate_um),
+        inhibitor_um=pick(data.inhibitor_um),
+        velocity=pick(data.velocity),
+        velocity_unit=data.velocity_unit,
+        depletion_pct=None if data.depletion_pct is None else pick(data.depletion_pct),
+        lines=pick(data.lines) if data.lines else tuple(k + 1 for k in idx),
+        source=data.source,
+        substrate_unit=data.substrate_unit,
+    )
 
 
 def _f_test(reduced_name: str, reduced: FitResult, full_name: str, full: FitResult) -> FTest:
@@ -628,6 +701,35 @@ def _rank(fits: tuple[FitResult, ...]) -> tuple[RankedModel, ...]:
 def _at_bound(fit: FitResult, name: str) -> bool:
     e = fit.estimate(name)
     return e.at_bound or e.value == math.inf
+
+
+def _plain_verdict(verdict: Verdict, mm: FitResult, sub: FitResult | None, test: FTest | None, unit: str) -> Verdict:
+    """The verdict of a plain Michaelis-Menten fit, with the substrate-inhibition alternative compared honestly."""
+    if not mm.success:
+        return verdict
+    km = mm.estimate("Km")
+    text = verdict.text + f" Km = {km.value:.3g} {unit}"
+    if km.profile_low is not None and km.profile_high is not None:
+        text += f" ({mm.level:.0%} profile interval {km.profile_low:.3g} to {km.profile_high:.3g} {unit})"
+    text += "."
+    if sub is None or test is None or not math.isfinite(sub.aicc) or not math.isfinite(mm.aicc):
+        text += " The substrate-inhibition alternative was not fitted (it needs at least 4 substrate levels and 5 rows)."
+        return replace(verdict, text=text)
+    best = min(mm.aicc, sub.aicc)
+    rel_mm, rel_si = math.exp(-0.5 * (mm.aicc - best)), math.exp(-0.5 * (sub.aicc - best))
+    w_mm = rel_mm / (rel_mm + rel_si)
+    if test.significant:
+        text += (
+            f" The substrate-inhibition form (Ksi {sub.value('Ksi'):.3g} {unit}) fits significantly better (F test p = "
+            f"{test.p_value:.2g}; Akaike weights {w_mm:.2f} Michaelis-Menten, {1 - w_mm:.2f} substrate inhibition): Km and Vmax "
+            "from the hyperbola are doubtful; see the warnings."
+        )
+    else:
+        text += (
+            f" The substrate-inhibition form does not fit significantly better (F test p = {test.p_value:.2g}; Akaike weights "
+            f"{w_mm:.2f} Michaelis-Menten, {1 - w_mm:.2f} substrate inhibition)."
+        )
+    return replace(verdict, text=text)
 
 
 def _group_label(chosen: str, group: tuple[str, ...], collapsed: str | None) -> str:
@@ -777,6 +879,7 @@ def _design_warnings(
 ) -> tuple[str, ...]:
     out: list[str] = []
     s, i, v = data.arrays()
+    su = data.substrate_unit
     for f in fits.values():
         if not f.success:
             out.append(f"The {f.model} fit did not converge ({f.message}); it is left out of the comparison.")
@@ -785,17 +888,17 @@ def _design_warnings(
     if math.isfinite(km) and km > 0:
         if s.min() > km:
             out.append(
-                f"Lowest substrate concentration {s.min():.3g} uM is above Km ({km:.3g} uM): Km and the mechanism are "
+                f"Lowest substrate concentration {s.min():.3g} {su} is above Km ({km:.3g} {su}): Km and the mechanism are "
                 f"poorly defined; include concentrations below Km."
             )
         elif s.max() < km:
             out.append(
-                f"Highest substrate concentration {s.max():.3g} uM is below Km ({km:.3g} uM): Vmax and the mechanism "
+                f"Highest substrate concentration {s.max():.3g} {su} is below Km ({km:.3g} {su}): Vmax and the mechanism "
                 f"are poorly defined; include concentrations above Km."
             )
         elif s.min() > 0.5 * km or s.max() < 2.0 * km:
             out.append(
-                f"Substrate range {s.min():.3g}-{s.max():.3g} uM spans {s.min() / km:.2g}-{s.max() / km:.2g} x Km; "
+                f"Substrate range {s.min():.3g}-{s.max():.3g} {su} spans {s.min() / km:.2g}-{s.max() / km:.2g} x Km; "
                 "about 0.2-5 x Km separates the mechanisms better (common practice)."
             )
     levels = np.unique(i[i > 0])
@@ -835,10 +938,7 @@ def _design_warnings(
             detail = "; ".join(f"line {data.line_of(k)}: v = {v[k]:g}, t = {t[k]:.1f}" for k in flagged[:6])
             out.append(f"Possible outlier(s) by externally studentised residual |t| > {OUTLIER_T:g} in the {chosen.model} fit: {detail}.")
     if sub_fit is not None and sub_test is not None and sub_test.significant and math.isfinite(sub_fit.value("Ksi")):
-        out.append(
-            f"Velocity falls at high substrate without inhibitor: substrate inhibition (Ksi {sub_fit.value('Ksi'):.3g} uM, "
-            f"F test p = {sub_test.p_value:.2g}); the inhibition models assume none."
-        )
+        out.append(_substrate_inhibition_warning(data, sub_fit, sub_test, weights))
     if weights == "poisson":
         out.append("With Poisson-like weights the weights depend on the fit, so AICc and F tests are approximate.")
     if weights in ("1/y", "1/y2") and np.any(v <= 0):

@@ -40,6 +40,7 @@ def update_inhibition_text(
     origin: str,
     alpha: float | None = None,
     fu_inc: float | None = None,
+    ki_ci_um: tuple[float, float] | None = None,
     source: str = "scenario",
 ) -> str:
     """The scenario text with the target's inhibition constant set to ``ki_um`` (uM).
@@ -60,6 +61,9 @@ def update_inhibition_text(
         Kiu/Kic for mixed inhibition.
     fu_inc
         Written when given; otherwise an existing ``fu_inc`` is kept.
+    ki_ci_um
+        The interval of the carried constant (uM), written as ``ki_ci``; an older ``ki_ci`` that
+        belongs to the replaced Ki is removed (and recorded in a comment) when none is given.
 
     Raises
     ------
@@ -86,7 +90,8 @@ def update_inhibition_text(
         set_keeping_history(entry, key, value, stamp)
 
     removed = []
-    for key in (*_CONFLICTING, *(("alpha",) if mechanism != "mixed" else ())):
+    stale = (*(("alpha",) if mechanism != "mixed" else ()), *(("ki_ci",) if ki_ci_um is None else ()), "ic50_ci", "km_ci")
+    for key in (*_CONFLICTING, *stale):
         if key in entry:
             old = entry[key]
             note = _comment_of(old)
@@ -96,6 +101,11 @@ def update_inhibition_text(
     put("mechanism", mechanism)
     if mechanism == "mixed" and alpha is not None:
         put("alpha", float(f"{alpha:.6g}"))
+    if ki_ci_um is not None:
+        low, high = ki_ci_um
+        if not (math.isfinite(low) and math.isfinite(high) and 0 < low <= ki_um <= high):
+            raise InputError("ki_ci", ki_ci_um, f"is not a finite interval around ki = {ki_um:.6g} uM")
+        put("ki_ci", [f"{low:.6g} uM", f"{high:.6g} uM"])
     if fu_inc is not None:
         put("fu_inc", float(f"{fu_inc:.6g}"))
     put("origin", origin)

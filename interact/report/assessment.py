@@ -108,7 +108,7 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"{fmt(c.ki_um)} uM",
+                    f"{fmt(c.ki_um)} uM" + (f" (interval {fmt(c.ki_ci_um[0])}-{fmt(c.ki_ci_um[1])})" if c.ki_ci_um else ""),
                     c.ki_route,
                     f"{c.fu_inc:g} ({c.fu_inc_origin})",
                     f"{fmt(c.ki_u_um)} uM",

@@ -70,8 +70,10 @@ def fit_sections(
         Section(
             title="Incubation data",
             blocks=(
-                f"{d.source or 'data'}: {d.n} rows; substrate {fmt(min(s_lv))}-{fmt(max(s_lv))} uM at {len(s_lv)} levels; "
-                f"inhibitor {', '.join(fmt(x) for x in i_lv)} uM; velocity in {d.velocity_unit or 'unstated units'}; "
+                f"{d.source or 'data'}: {d.n} rows; substrate {fmt(min(s_lv))}-{fmt(max(s_lv))} {d.substrate_unit} at "
+                f"{len(s_lv)} levels; "
+                + (f"inhibitor {', '.join(fmt(x) for x in i_lv)} uM; " if i_lv != (0.0,) else "no inhibitor; ")
+                + f"velocity in {d.velocity_unit or 'unstated units'}; "
                 f"weights: {comp.weights}.",
             ),
         )
