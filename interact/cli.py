@@ -598,11 +598,18 @@ def _cmd_fit(args: argparse.Namespace) -> int:
             raise InputError("--into", args.into, f"was not updated: {ki.name} is unbounded")
         ci = ki.interval()
         method = f"; ki_ci {comp.level:.0%} {ci[2]}" if ci is not None else ""
-        origin = f"fit of {path.name}, {comp.verdict.mechanism} model ({args.weights} weights){method}, {today}"
+        origin = f"fit of {path.name}, {comp.verdict.mechanism} model ({_weights_label(comp)}){method}, {today}"
         _write_into(args, ki.value, comp.verdict.mechanism, comp.alpha, fu_inc, origin, ci[:2] if ci is not None else None)
         if not ki.identifiable:
             sys.stderr.write(f"interact: caution: {ki.name} is poorly determined by these data ({ki.note}); check it first\n")
     return 0
+
+
+def _weights_label(comp: Any) -> str:
+    e = comp.error_model
+    if e is None:
+        return f"{comp.weights} weights"
+    return f"{e.name} error model" + (f", theta {e.exponent:.2f}" if e.name == "power" else "")
 
 
 def _write_km_into(args: argparse.Namespace, comp: Any, data_name: str, today: str) -> None:
@@ -630,7 +637,7 @@ def _write_km_into(args: argparse.Namespace, comp: Any, data_name: str, today: s
     if km.profile_low is not None and km.profile_high is not None and math.isfinite(km.profile_high):
         values["km_ci"] = [f"{km.profile_low:.6g} uM", f"{km.profile_high:.6g} uM"]
         method = f"; km_ci {comp.level:.0%} profile likelihood"
-    origin = f"Michaelis-Menten fit of {data_name} ({comp.weights} weights){method}, {today}"
+    origin = f"Michaelis-Menten fit of {data_name} ({_weights_label(comp)}){method}, {today}"
     new = carry_constants_text(text, target=args.target, values=values, origin=origin, source=str(target), remove=("km_ci",))
     write_text_atomic(target, new)
     sys.stderr.write(f"interact: {target} updated: {args.target} km = {km.value:.4g} uM; origin recorded\n")
@@ -715,7 +722,7 @@ def _cmd_fit_ic50(args: argparse.Namespace, path: Path, today: str, fu_inc: floa
         data.inhibitor_um,
         data.response,
         bottom=args.bottom,
-        weights=args.weights,
+        weights="none" if args.weights == "auto" else args.weights,
         level=args.level,
         response_unit=data.response_unit,
         source=data.source,
@@ -772,7 +779,14 @@ def _add_fit_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[t
         "without inhibition, is always fitted because inhibition is reported only when it is rejected). A file with one "
         "inhibitor level, or no inhibitor column, gets a plain Michaelis-Menten fit (Km, Vmax)",
     )
-    p.add_argument("--weights", choices=("none", "1/y", "1/y2", "poisson"), default="none", help="weighting (default: none)")
+    p.add_argument(
+        "--weights",
+        choices=("auto", "none", "1/y", "1/y2", "poisson"),
+        default="auto",
+        help="auto (default): choose the error model (constant, proportional or power variance) by likelihood and weight "
+        "by it; or force a scheme: none (constant variance), 1/y, 1/y2 (constant relative error), poisson. An IC50 "
+        "curve is fitted unweighted under auto",
+    )
     p.add_argument("--level", type=float, default=0.95, help="confidence level (default 0.95)")
     p.add_argument("--format", choices=FORMATS, default="text", help="output format (default: text)")
     p.add_argument("--width", type=int, default=100, help="text width (default: 100)")

@@ -208,13 +208,15 @@ def finite_difference_jacobian(function: Callable[[Array, Any], Array], u: Array
 class _Problem:
     """Weighted residuals r = sqrt(w) (f - y) and their Jacobian."""
 
-    def __init__(self, model: CurveModel, x: Any, y: Array, weights: str) -> None:
+    def __init__(self, model: CurveModel, x: Any, y: Array, weights: str, given: Array | None = None) -> None:
         self.model = model
         self.x = x
         self.y = y
         self.poisson = weights == "poisson"
-        if weights == "none":
-            self.sw: Array | None = None
+        if given is not None:
+            self.sw: Array | None = np.sqrt(given)
+        elif weights == "none":
+            self.sw = None
         elif weights == "1/y":
             self.sw = 1.0 / np.sqrt(y)
         elif weights == "1/y2":
@@ -609,6 +611,8 @@ def fit_curve(
     profile: Sequence[int] = (),
     level: float = 0.95,
     step_hints: Sequence[float] | None = None,
+    sample_weights: Sequence[float] | Array | None = None,
+    extra_params: int = 0,
 ) -> FitResult:
     """Fit ``model`` to ``(x, y)`` from one or more starting vectors.
 
@@ -631,6 +635,11 @@ def fit_curve(
     step_hints
         Optional scale per parameter used to step the profile where no
         standard error exists (a parameter on its bound).
+    sample_weights
+        Known weights ``w_i`` (variance proportional to ``1/w_i``), for instance from a fitted
+        variance model; they replace ``weights`` (which then only labels the result).
+    extra_params
+        Parameters estimated outside this fit (a variance exponent), counted in AIC, AICc and BIC.
 
     Raises
     ------
@@ -659,7 +668,12 @@ def fit_curve(
         raise InputError("level", level, "is not between 0 and 1")
     lo = np.asarray(model.lower, dtype=float) if model.lower else np.full(p, -np.inf)
     hi = np.asarray(model.upper, dtype=float) if model.upper else np.full(p, np.inf)
-    prob = _Problem(model, x, yv, weights)
+    given = None
+    if sample_weights is not None:
+        given = np.asarray(sample_weights, dtype=float)
+        if given.shape != yv.shape or not np.all(np.isfinite(given)) or np.any(given <= 0):
+            raise InputError("sample_weights", "array", f"must hold {n} finite weights above zero")
+    prob = _Problem(model, x, yv, weights, given)
     fixed = np.zeros(p, dtype=bool)
 
     best: _Solution | None = None
@@ -726,11 +740,12 @@ def fit_curve(
     fitted = prob.fitted(u)
     with np.errstate(divide="ignore", invalid="ignore"):
         loglik = (
-            -0.5 * n * (math.log(2.0 * math.pi * cost / n) + 1.0) + (0.5 * float(np.sum(np.log(w))) if weights != "none" else 0.0)
+            -0.5 * n * (math.log(2.0 * math.pi * cost / n) + 1.0)
+            + (0.5 * float(np.sum(np.log(w))) if weights != "none" or given is not None else 0.0)
             if not exact
             else math.inf
         )
-    k = p + 1
+    k = p + 1 + extra_params
     aic = -2.0 * loglik + 2.0 * k
     aicc = aic + (2.0 * k * (k + 1) / (n - k - 1) if n - k - 1 > 0 else math.inf)
     bic = -2.0 * loglik + k * math.log(n)

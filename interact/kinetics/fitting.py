@@ -29,11 +29,15 @@ from .data import IncubationData
 from .engine import WEIGHTS, CurveModel, Estimate, FitResult, fit_curve
 
 __all__ = [
+    "ERROR_MODELS",
+    "FIT_WEIGHTS",
     "MODELS",
+    "ErrorModel",
     "FTest",
     "ModelComparison",
     "RankedModel",
     "Verdict",
+    "choose_error_model",
     "fit_inhibition",
     "fit_substrate_inhibition",
     "guess_inhibition",
@@ -69,6 +73,12 @@ NESTED: Final = (
     ("noncompetitive", "mixed"),
     ("uncompetitive", "mixed"),
 )
+#: weighting choices of a global fit: "auto" estimates the error model (:func:`choose_error_model`), the
+#: others force a fixed scheme (:data:`~interact.kinetics.engine.WEIGHTS`)
+FIT_WEIGHTS: Final = ("auto", *WEIGHTS)
+#: variance models: Var(v) = sigma^2 g(f)^2 with g = 1 (constant), f (proportional) or f^theta (power)
+ERROR_MODELS: Final = ("constant", "proportional", "power")
+_FLOOR_FRACTION: Final = 0.02  # fitted values below 2 % of the largest are floored in g (blank rows, f = 0)
 OUTLIER_T: Final = 3.0  # |externally studentised residual| flagged as a possible outlier (common practice)
 DEPLETION_KINETIC_PCT: Final = 10.0  # S1: < 10 % turnover for kinetic constants (seen in source)
 DEPLETION_LIMIT_PCT: Final = 20.0  # FDA: substrate depletion <= 20 % (from memory)
@@ -278,6 +288,161 @@ def guess_inhibition(data: IncubationData) -> dict[str, tuple[tuple[float, ...],
     }
 
 
+# --------------------------------------------------------------------------- error models
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class ErrorModel:
+    """The variance model chosen for a data set, with the candidates it was chosen from.
+
+    ``candidates`` holds (name, exponent theta, log-likelihood, AICc) for constant, proportional and
+    power, each fitted to the fullest mean model requested; ``weights`` are the resulting weights
+    1/g(f)^2 (geometric mean 1) used for every mechanism, so that their RSS, F tests and AICc compare.
+    """
+
+    name: str
+    exponent: float
+    candidates: tuple[tuple[str, float, float, float], ...]
+    weights: Array
+    model: str
+
+    @property
+    def text(self) -> str:
+        parts = "; ".join(
+            f"{n}{f' (theta {th:.2f})' if n == 'power' else ''}: AICc {a:.2f}" for n, th, _, a in self.candidates if math.isfinite(a)
+        )
+        theta = f", exponent theta {self.exponent:.2f}" if self.name == "power" else ""
+        variance = {"constant": "sigma^2", "proportional": "sigma^2 f^2", "power": "sigma^2 f^(2 theta)"}[self.name]
+        how = "unweighted least squares" if self.name == "constant" else "iteratively reweighted least squares"
+        return (
+            f"Error model: {self.name}{theta} (Var(v) = {variance}), chosen by AICc on the {self.model} model from {parts} "
+            f"(rows at zero substrate left out of this comparison); fitted by {how}."
+        )
+
+
+def _variance_weights(fitted: Array, theta: float) -> Array:
+    f = np.abs(np.asarray(fitted, dtype=float))
+    g = np.maximum(f, _FLOOR_FRACTION * float(np.max(f)) if np.max(f) > 0 else 1.0) ** theta
+    w = 1.0 / g**2
+    return np.asarray(w / math.exp(float(np.mean(np.log(w)))))
+
+
+def _power_exponent(resid: Array, fitted: Array, rows: NDArray[np.bool_]) -> float:
+    """Pseudo-likelihood estimate of theta from ``rows`` (Carroll & Ruppert 1988, section 3.3 - from memory)."""
+    from scipy.optimize import minimize_scalar
+
+    f = np.abs(fitted)
+    logf = np.log(np.maximum(f, _FLOOR_FRACTION * float(np.max(f))))[rows]
+    r2 = np.asarray(resid, dtype=float)[rows] ** 2
+    n = r2.size
+
+    def neg(theta: float) -> float:
+        s2 = float(np.mean(r2 * np.exp(-2.0 * theta * logf)))
+        return 0.5 * n * math.log(max(s2, 1e-300)) + theta * float(np.sum(logf))
+
+    return float(minimize_scalar(neg, bounds=(0.0, 3.0), method="bounded", options={"xatol": 1e-6}).x)
+
+
+def _irls(model: CurveModel, x: Array, v: Array, start: FitResult, kind: str, rows: NDArray[np.bool_]) -> tuple[FitResult, float, Array]:
+    """Weighted fit with weights from the variance model, re-estimated from the fitted values until stable."""
+    fit, theta = start, 1.0
+    w = np.ones_like(v)
+    for _ in range(12):
+        f_old = np.asarray(fit.fitted)
+        if kind == "power":
+            theta = _power_exponent(v - f_old, f_old, rows)
+        w = _variance_weights(f_old, theta)
+        new = fit_curve(model, x, v, [fit.theta], weights="none", sample_weights=w, extra_params=int(kind == "power"))
+        if not new.success:
+            break
+        fit = new
+        if np.max(np.abs(np.asarray(fit.fitted) - f_old)) <= 1e-9 * float(np.max(np.abs(f_old))):
+            break
+    return fit, theta, w
+
+
+def choose_error_model(fullest: FitResult, x: Array, v: Array, model: CurveModel) -> ErrorModel:
+    """Fit constant, proportional and power variance models to the fullest mean model; choose by AICc.
+
+    The weights are estimated by iteratively reweighted (generalised) least squares: fit, compute
+    g(f) from the fitted values (theta by pseudo-likelihood for the power model), refit with weights
+    1/g^2, repeat (Carroll & Ruppert, *Transformation and weighting in regression*, 1988, chapter 2 -
+    from memory).  The Gaussian log-likelihood with Var_i = sigma^2 g_i^2 is then compared by AICc,
+    counting theta as a parameter for the power model.  The fullest model is used so that lack of fit
+    of a too-simple mechanism is not mistaken for a change of spread with the mean.
+    """
+    # rows at zero substrate (blanks) have f = 0 whatever the constants: they say nothing about the spread
+    # around the curve, so theta and the likelihoods compared are computed on the other rows
+    rows = np.asarray(x[0] > 0)
+    candidates = [("constant", 0.0, *_likelihood(fullest, v, np.ones_like(v), rows, 0))]
+    weights = {"constant": np.ones_like(v)}
+    theta_of = {"constant": 0.0}
+    if fullest.success and np.all(np.asarray(fullest.fitted) >= 0) and np.count_nonzero(rows) > fullest.n_params + 3:
+        for kind in ("proportional", "power"):
+            fit, theta, w = _irls(model, x, v, fullest, kind, rows)
+            if fit.success and math.isfinite(fit.aicc):
+                th = theta if kind == "power" else 1.0
+                candidates.append((kind, th, *_likelihood(fit, v, w, rows, int(kind == "power"))))
+                weights[kind] = w
+                theta_of[kind] = th
+    best = min(candidates, key=lambda c: c[3] if math.isfinite(c[3]) else math.inf)
+    return ErrorModel(name=best[0], exponent=theta_of[best[0]], candidates=tuple(candidates), weights=weights[best[0]], model=fullest.model)
+
+
+def _likelihood(fit: FitResult, v: Array, w: Array, rows: NDArray[np.bool_], extra: int) -> tuple[float, float]:
+    """Gaussian log-likelihood and AICc on ``rows`` with Var_i = sigma^2 / w_i, sigma^2 at its ML value."""
+    r = (v - np.asarray(fit.fitted))[rows]
+    wr = w[rows]
+    n = r.size
+    s2 = float(np.sum(wr * r**2)) / n
+    if not s2 > 0:
+        return math.inf, -math.inf
+    ll = -0.5 * n * (math.log(2.0 * math.pi * s2) + 1.0) + 0.5 * float(np.sum(np.log(wr)))
+    k = fit.n_params + 1 + extra
+    aicc = -2.0 * ll + 2.0 * k + (2.0 * k * (k + 1) / (n - k - 1) if n - k - 1 > 0 else math.inf)
+    return ll, aicc
+
+
+def _residual_structure_warning(fit: FitResult | None, data: IncubationData, weights: str, error: ErrorModel | None) -> tuple[str, ...]:
+    """Warn when the weighted residuals' spread still changes with the fitted value (Spearman test, p < 0.01).
+
+    |weighted residual| against the fitted value is a Glejser-type check of heteroscedasticity
+    (common practice); a significant trend means the weighting in use does not match the error structure.
+    """
+    from scipy.stats import spearmanr
+
+    if fit is None or not fit.success or fit.n < 8:
+        return ()
+    f = np.asarray(fit.fitted)
+    r = np.asarray(fit.residuals)
+    w = error.weights if error is not None else _fixed_weights(weights, np.asarray(data.velocity), f)
+    e = np.abs(r) * np.sqrt(w)
+    if np.ptp(f) == 0 or np.ptp(e) == 0:
+        return ()
+    res = spearmanr(f, e)
+    rho, p = float(res.statistic), float(res.pvalue)
+    if not (p < 0.01):
+        return ()
+    how = "grows" if rho > 0 else "shrinks"
+    used = f"the {error.name} error model" if error is not None else f"weights {weights}"
+    hint = "let the error model be estimated (--weights auto)" if error is None else "check for outliers or a missing mechanism"
+    return (
+        f"The spread of the weighted residuals still {how} with the fitted velocity (Spearman rho {rho:.2f}, p = {p:.2g}): "
+        f"{used} does not capture the error structure; {hint}.",
+    )
+
+
+def _fixed_weights(weights: str, y: Array, f: Array) -> Array:
+    with np.errstate(divide="ignore", invalid="ignore"):
+        if weights == "1/y":
+            return np.asarray(1.0 / y)
+        if weights == "1/y2":
+            return np.asarray(1.0 / y**2)
+        if weights == "poisson":
+            return np.asarray(1.0 / np.maximum(f, 1e-300))
+    return np.ones_like(y)
+
+
 # --------------------------------------------------------------------------- results
 
 
@@ -347,6 +512,7 @@ class ModelComparison:
     substrate_inhibition: FitResult | None = None
     substrate_inhibition_test: FTest | None = None
     level: float = 0.95
+    error_model: ErrorModel | None = None
 
     def fit(self, model: str) -> FitResult:
         for f in self.fits:
@@ -413,7 +579,7 @@ def fit_inhibition(
     data: IncubationData,
     models: Sequence[str] = MODELS,
     *,
-    weights: str = "none",
+    weights: str = "auto",
     level: float = 0.95,
     profile: bool = True,
 ) -> ModelComparison:
@@ -426,7 +592,10 @@ def fit_inhibition(
     models
         Names from :data:`MODELS` (default: all five).
     weights
-        One of :data:`~interact.kinetics.engine.WEIGHTS`.
+        ``"auto"`` (default): choose the error model (constant, proportional or power variance) by
+        AICc on the fullest mechanism, estimate its weights by iteratively reweighted least squares and
+        fit every mechanism with them (:func:`choose_error_model`); or one of
+        :data:`~interact.kinetics.engine.WEIGHTS` to force a fixed scheme.
     level
         Confidence level of the intervals (default 0.95).
     profile
@@ -455,8 +624,8 @@ def fit_inhibition(
     for m in chosen_models:
         if m not in MODELS:
             raise InputError("models", m, f"is not one of {', '.join(MODELS)}")
-    if weights not in WEIGHTS:
-        raise InputError("weights", weights, f"is not one of {', '.join(WEIGHTS)}")
+    if weights not in FIT_WEIGHTS:
+        raise InputError("weights", weights, f"is not one of {', '.join(FIT_WEIGHTS)}")
     single_level = _check_design(data)
     if single_level:
         chosen_models = ("none",)
@@ -473,37 +642,67 @@ def fit_inhibition(
         1e4 * float(np.max(s)),
         1e4 / float(np.min(positive_i)) if positive_i.size else math.inf,
     )
-    fits: dict[str, FitResult] = {}
     order = [m for m in MODELS if m in chosen_models]
-    for name in order:
-        model = inhibition_model(name, data.velocity_unit, vmax_max=caps[0], km_max=caps[1], kappa_max=caps[2], km_unit=data.substrate_unit)
-        st = list(starts[name])
-        if name == "mixed":
-            st.extend(_mixed_starts(fits))
-        # Km and Vmax get profile intervals in the model without inhibition (a plain Michaelis-Menten fit
-        # reports them); the inhibition models profile their inhibition constants
-        prof = (tuple(range(2, len(model.parameters))) if name != "none" else (0, 1)) if profile else ()
-        fits[name] = fit_curve(
-            model,
+
+    def fit_all(label: str, sample_weights: Array | None, with_profiles: bool, extra: int) -> dict[str, FitResult]:
+        out: dict[str, FitResult] = {}
+        for name in order:
+            model = inhibition_model(
+                name, data.velocity_unit, vmax_max=caps[0], km_max=caps[1], kappa_max=caps[2], km_unit=data.substrate_unit
+            )
+            st = list(starts[name])
+            if name == "mixed":
+                st.extend(_mixed_starts(out))
+            # Km and Vmax get profile intervals in the model without inhibition (a plain Michaelis-Menten fit
+            # reports them); the inhibition models profile their inhibition constants
+            prof = (tuple(range(2, len(model.parameters))) if name != "none" else (0, 1)) if with_profiles else ()
+            out[name] = fit_curve(
+                model,
+                x,
+                v,
+                st,
+                weights=label,
+                profile=prof,
+                level=level,
+                step_hints=(1.0, 1.0, *([hints] * (len(model.parameters) - 2))),
+                sample_weights=sample_weights,
+                extra_params=extra,
+            )
+        return out
+
+    error_model: ErrorModel | None = None
+    sample_weights: Array | None = None
+    if weights == "auto":
+        first = fit_all("none", None, False, 0)
+        error_model = choose_error_model(
+            first[order[-1]],
             x,
             v,
-            st,
-            weights=weights,
-            profile=prof,
-            level=level,
-            step_hints=(1.0, 1.0, *([hints] * (len(model.parameters) - 2))),
+            inhibition_model(
+                order[-1], data.velocity_unit, vmax_max=caps[0], km_max=caps[1], kappa_max=caps[2], km_unit=data.substrate_unit
+            ),
         )
+        sample_weights = error_model.weights
+        fits = fit_all("none", sample_weights, profile, 1 if error_model.name == "power" else 0)
+    else:
+        fits = fit_all(weights, None, profile, 0)
     fit_tuple = tuple(fits[m] for m in order)
     ranking = _rank(fit_tuple)
     f_tests = _f_tests(fits)
-    sub_fit, sub_test = fit_substrate_inhibition(data, weights=weights) if np.count_nonzero(i == np.min(i)) >= 5 else (None, None)
+    sub_fit, sub_test = (
+        fit_substrate_inhibition(data, weights="none" if weights == "auto" else weights, sample_weights=sample_weights)
+        if np.count_nonzero(i == np.min(i)) >= 5
+        else (None, None)
+    )
     verdict = _verdict(fits, ranking, f_tests, single_level)
     if single_level:
         verdict = _plain_verdict(verdict, fits["none"], sub_fit, sub_test, data.substrate_unit)
-    warnings = _design_warnings(data, fits, verdict, weights, sub_fit, sub_test)
+    warnings = _design_warnings(data, fits, verdict, weights, sub_fit, sub_test, sample_weights)
+    warnings += _residual_structure_warning(fits.get(verdict.model), data, weights, error_model)
     return ModelComparison(
         data=data,
-        weights=weights,
+        weights=weights if error_model is None else f"{error_model.name} error model (estimated)",
+        error_model=error_model,
         fits=fit_tuple,
         ranking=ranking,
         f_tests=f_tests,
@@ -569,7 +768,7 @@ def _substrate_model(velocity_unit: str, substrate_unit: str = "uM") -> CurveMod
 
 
 def fit_substrate_inhibition(
-    data: IncubationData, *, weights: str = "none", leave_one_out: bool = False
+    data: IncubationData, *, weights: str = "none", leave_one_out: bool = False, sample_weights: Array | None = None
 ) -> tuple[FitResult | None, FTest | None]:
     """Substrate inhibition on the uninhibited curve (rows at the lowest inhibitor level).
 
@@ -598,7 +797,9 @@ def fit_substrate_inhibition(
     return sub, _f_test("none", mm, "substrate-inhibition", sub)
 
 
-def _substrate_inhibition_warning(data: IncubationData, sub_fit: FitResult, sub_test: FTest, weights: str) -> str:
+def _substrate_inhibition_warning(
+    data: IncubationData, sub_fit: FitResult, sub_test: FTest, weights: str, sample_weights: Array | None = None
+) -> str:
     """The substrate-inhibition warning, naming the row that drives it and saying whether the data fall.
 
     The data "fall" when the mean velocity at the highest substrate level is below the highest level mean
@@ -617,7 +818,8 @@ def _substrate_inhibition_warning(data: IncubationData, sub_fit: FitResult, sub_
     for k in range(base.size):
         keep = np.arange(base.size) != k
         sub = data_subset(data, base[keep])
-        _, t2 = fit_substrate_inhibition(sub, weights=weights, leave_one_out=True)
+        sw = None if sample_weights is None else np.asarray(sample_weights)[base[keep]]
+        _, t2 = fit_substrate_inhibition(sub, weights=weights, leave_one_out=True, sample_weights=sw)
         p2 = t2.p_value if t2 is not None else 1.0
         if p2 > worst_p:
             worst_k, worst_p = k, p2
@@ -876,6 +1078,7 @@ def _design_warnings(
     weights: str,
     sub_fit: FitResult | None,
     sub_test: FTest | None,
+    sample_weights: Array | None = None,
 ) -> tuple[str, ...]:
     out: list[str] = []
     s, i, v = data.arrays()
@@ -938,7 +1141,7 @@ def _design_warnings(
             detail = "; ".join(f"line {data.line_of(k)}: v = {v[k]:g}, t = {t[k]:.1f}" for k in flagged[:6])
             out.append(f"Possible outlier(s) by externally studentised residual |t| > {OUTLIER_T:g} in the {chosen.model} fit: {detail}.")
     if sub_fit is not None and sub_test is not None and sub_test.significant and math.isfinite(sub_fit.value("Ksi")):
-        out.append(_substrate_inhibition_warning(data, sub_fit, sub_test, weights))
+        out.append(_substrate_inhibition_warning(data, sub_fit, sub_test, "none" if weights == "auto" else weights, sample_weights))
     if weights == "poisson":
         out.append("With Poisson-like weights the weights depend on the fit, so AICc and F tests are approximate.")
     if weights in ("1/y", "1/y2") and np.any(v <= 0):
