@@ -111,8 +111,11 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
             c["inhibitor"], c["time"], c["activity"], subtract_vehicle=not args.keep_vehicle, weighted=args.weighted
         )
         ok = result.success and math.isfinite(result.ki.value) and result.ki.value > 0
-        values = {"kinact": f"{result.kinact.value:.6g} 1/min", "ki_inact": f"{result.ki.value * fu:.6g} uM"}
-        intervals = {"kinact": (result.kinact, "1/min", 1.0), "ki_inact": (result.ki, "uM", fu)}
+        # the in vitro KI goes in as measured; its binding goes beside it (fu_inc_ki_inact), so nothing is corrected twice
+        values = {"kinact": f"{result.kinact.value:.6g} 1/min", "ki_inact": f"{result.ki.value:.6g} uM"}
+        if args.fu_inc is not None:
+            values["fu_inc_ki_inact"] = float(f"{fu:.6g}")
+        intervals = {"kinact": (result.kinact, "1/min", 1.0), "ki_inact": (result.ki, "uM", 1.0)}
         what = "kinact/KI hyperbola"
     else:
         from .kinetics.induction import fit_induction
@@ -121,8 +124,10 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
         c = data.columns
         result = fit_induction(c["concentration"], c["fold_change"], hill=args.hill)  # type: ignore[assignment]
         ok = result.success and result.ec50.value > 0
-        values = {"emax": float(f"{result.emax.value:.6g}"), "ec50": f"{result.ec50.value * fu:.6g} uM"}  # type: ignore[union-attr]
-        intervals = {"emax": (result.emax, "", 1.0), "ec50": (result.ec50, "uM", fu)}  # type: ignore[union-attr]
+        values = {"emax": float(f"{result.emax.value:.6g}"), "ec50": f"{result.ec50.value:.6g} uM"}  # type: ignore[union-attr]
+        if args.fu_inc is not None:
+            values["fu_inc_ec50"] = float(f"{fu:.6g}")
+        intervals = {"emax": (result.emax, "", 1.0), "ec50": (result.ec50, "uM", 1.0)}  # type: ignore[union-attr]
         what = "Emax model" + (" with Hill slope" if args.hill else "")
     _out(format_mechanism_fit(result, path.name, args.format, width=args.width), args.output)
     if args.into:
@@ -151,7 +156,7 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
             methods.append(f"{key}_ci 95% {ci[2]}")
         origin = (
             f"{what} fit of {path.name}"
-            + (f", x fu,inc {fu:g}" if args.fu_inc is not None else "")
+            + (f", binding {fu:g} (--fu-inc)" if args.fu_inc is not None else "")
             + (f"; {', '.join(methods)}" if methods else "")
             + f", {today}"
         )
@@ -167,7 +172,10 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
         shown = ", ".join(f"{k} = {v}" for k, v in values.items())
         sys.stderr.write(f"interact: {target} updated: {args.target} {shown}; origin recorded\n")
         if args.fu_inc is None:
-            sys.stderr.write("interact: no --fu-inc given: the fitted constant is written as if unbound\n")
+            own = "fu_inc_ki_inact" if args.command == "fit-tdi" else "fu_inc_ec50"
+            sys.stderr.write(
+                f"interact: no --fu-inc given: the entry's {own}, else its fu_inc, else 1 (unbound) corrects the fitted constant\n"
+            )
     return 0
 
 
@@ -446,7 +454,8 @@ def _parser() -> argparse.ArgumentParser:
             type=float,
             default=None,
             metavar="FU",
-            help="unbound fraction in the incubation: the carried KI or EC50 is multiplied by it",
+            help="unbound fraction in the incubation: written beside the carried KI (fu_inc_ki_inact) or EC50 (fu_inc_ec50), "
+            "which the assessment multiplies by it",
         )
         if name == "fit-tdi":
             p.add_argument("--keep-vehicle", action="store_true", help="do not subtract the vehicle (0 uM) loss of activity")

@@ -69,8 +69,10 @@ class Inhibition:
     constant to its unbound value (Ki,u = Ki x fu,inc).  For transporters the
     IC50 (or Ki) is used as the inhibition constant, as guidance does.
 
-    Time-dependent inhibition (``kinact``, ``ki_inact`` = KI, unbound) and
-    induction (``emax``, ``ec50`` unbound, ``calibration`` = d) are optional.
+    Time-dependent inhibition (``kinact``, ``ki_inact`` = KI) and induction
+    (``emax``, ``ec50``, ``calibration`` = d) are optional.  ``fu_inc`` corrects
+    Ki, KI and EC50 alike unless ``fu_inc_ki_inact`` or ``fu_inc_ec50`` gives a
+    constant its own binding (1 for a constant already unbound).
     """
 
     target: str
@@ -87,6 +89,9 @@ class Inhibition:
     ec50: Q | None = None
     calibration: float | None = None
     origin: str = ""
+    #: separate binding for KI and EC50 (e.g. hepatocyte fu for EC50); without them ``fu_inc`` applies to every constant
+    fu_inc_ki_inact: float | None = None
+    fu_inc_ec50: float | None = None
     #: 95 % intervals carried from a fit (``ki_ci = ["63.3 uM", "82.3 uM"]``); the uncertainty command uses them
     ki_ci: tuple[Q, Q] | None = None
     km_ci: tuple[Q, Q] | None = None
@@ -418,6 +423,14 @@ class _Reader:
         ec50 = self.quantity(data, "ec50", path, "concentration")
         calibration = self.number(data, "calibration", path, low=0.0, high=10.0, low_open=False)
         origin = self.text(data, "origin", path)
+        own_fu: dict[str, float | None] = {}
+        for fu_key, constant in (("fu_inc_ki_inact", "ki_inact"), ("fu_inc_ec50", "ec50")):
+            fu_val = self.fraction(data, fu_key, path)
+            if fu_val is not None:
+                self.attempt(f"{path}.{fu_key}", lambda v=fu_val, k=fu_key: units.check_fraction_size(v, f"{path}.{k}", v))  # type: ignore[misc]
+                if constant not in data:
+                    self.fail(f"{path}.{fu_key}", f"is given without {constant}; expected it beside the constant it corrects")
+            own_fu[fu_key] = fu_val
         points = {"ki": ki, "km": km, "kinact": kinact, "ki_inact": ki_inact, "emax": emax, "ec50": ec50}
         cis = {key: self.interval(data, key, path, kind, points[key]) for key, kind in INTERVAL_KEYS.items()}
         has_reversible = ki is not None or ic50 is not None
@@ -473,7 +486,14 @@ class _Reader:
             ec50=ec50,
             calibration=calibration,
             origin=origin,
-            **{f"{key}_ci": value for key, value in cis.items()},
+            ki_ci=cis["ki"],
+            km_ci=cis["km"],
+            kinact_ci=cis["kinact"],
+            ki_inact_ci=cis["ki_inact"],
+            emax_ci=cis["emax"],
+            ec50_ci=cis["ec50"],
+            fu_inc_ki_inact=own_fu["fu_inc_ki_inact"],
+            fu_inc_ec50=own_fu["fu_inc_ec50"],
         )
 
     def interval(self, data: dict[str, Any], key: str, path: str, kind: str, point: Any) -> Any:

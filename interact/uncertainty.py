@@ -271,6 +271,8 @@ class _Const:
     emax: str | None
     ec50: str | None
     calibration: str
+    ki_inact_fu: str = ""  # path of the binding applied to KI (its own, or the shared fu_inc)
+    ec50_fu: str = ""
 
 
 def _inhibition_items(scenario: Any) -> list[tuple[str, Inhibition, pint.Quantity | None]]:
@@ -371,6 +373,9 @@ class ScenarioModel:
                         )
                         km = units.concentration_um(item.km, mw, field=f"{prefix}.km") if item.km else None
                         route = (item.mechanism, sub, km, item.alpha)
+            fu_path = add(f"{prefix}.fu_inc", f"fu,inc of {who}", "", "fraction", c.fu_inc)
+            own_ki_inact = item.fu_inc_ki_inact is not None and c.ki_inact_um is not None
+            own_ec50 = item.fu_inc_ec50 is not None and c.ec50_um is not None
             self._consts.append(
                 _Const(
                     prefix=prefix,
@@ -379,17 +384,19 @@ class ScenarioModel:
                     target=c.target,
                     ki=ki_path,
                     ic50_route=route,
-                    fu_inc=add(f"{prefix}.fu_inc", f"fu,inc of {who}", "", "fraction", c.fu_inc),
+                    fu_inc=fu_path,
                     kinact=add(f"{prefix}.kinact", f"kinact of {who}", "1/h", "rate", c.kinact_per_h)
                     if c.kinact_per_h is not None
                     else None,
-                    ki_inact=add(f"{prefix}.ki_inact", f"KI of {who}", "uM", "concentration", c.ki_inact_u_um, mw)
-                    if c.ki_inact_u_um is not None
+                    ki_inact=add(f"{prefix}.ki_inact", f"KI of {who}", "uM", "concentration", c.ki_inact_um, mw)
+                    if c.ki_inact_um is not None
                     else None,
+                    ki_inact_fu=add(f"{prefix}.fu_inc_ki_inact", f"binding of KI of {who}", "", "fraction", c.ki_inact_fu)
+                    if own_ki_inact
+                    else fu_path,
                     emax=add(f"{prefix}.emax", f"Emax of {who}", "", "number", c.emax) if c.emax is not None else None,
-                    ec50=add(f"{prefix}.ec50", f"EC50 of {who}", "uM", "concentration", c.ec50_u_um, mw)
-                    if c.ec50_u_um is not None
-                    else None,
+                    ec50=add(f"{prefix}.ec50", f"EC50 of {who}", "uM", "concentration", c.ec50_um, mw) if c.ec50_um is not None else None,
+                    ec50_fu=add(f"{prefix}.fu_inc_ec50", f"binding of EC50 of {who}", "", "fraction", c.ec50_fu) if own_ec50 else fu_path,
                     calibration=add(f"{prefix}.calibration", f"Induction calibration d of {who}", "", "number", c.calibration)
                     if c.emax is not None
                     else f"{prefix}.calibration",
@@ -496,10 +503,10 @@ class ScenarioModel:
                 if k_u is not None:
                     ratio = ratio + conc / k_u
                 if c.kinact is not None and c.ki_inact is not None:
-                    kobs = kobs + get(c.kinact) * conc / (get(c.ki_inact) + conc)
+                    kobs = kobs + get(c.kinact) * conc / (get(c.ki_inact) * get(c.ki_inact_fu) + conc)
                     tdi = True
                 if c.emax is not None and c.ec50 is not None:
-                    effect = effect + get(c.calibration) * get(c.emax) * conc / (get(c.ec50) + conc)
+                    effect = effect + get(c.calibration) * get(c.emax) * conc / (get(c.ec50) * get(c.ec50_fu) + conc)
             act = reversible_term(ratio)
             if tdi and kdeg_path is not None:
                 act = act * np.where(np.equal(kobs, 0.0), 1.0, inactivation_term(kobs, get(kdeg_path)))

@@ -119,9 +119,9 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"kinact {fmt(c.kinact_per_h)} 1/h",
+                    f"kinact {fmt(c.kinact_per_h)} 1/h, KI {fmt(c.ki_inact_um)} uM",
                     "time-dependent",
-                    "-",
+                    f"{c.ki_inact_fu:g} ({c.ki_inact_fu_origin})",
                     f"KI,u {fmt(c.ki_inact_u_um)} uM",
                 )
             )
@@ -130,9 +130,9 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"Emax {fmt(c.emax)}, d {c.calibration:g} ({c.calibration_origin})",
+                    f"Emax {fmt(c.emax)}, d {c.calibration:g} ({c.calibration_origin}), EC50 {fmt(c.ec50_um)} uM",
                     "induction",
-                    "-",
+                    f"{c.ec50_fu:g} ({c.ec50_fu_origin})",
                     f"EC50,u {fmt(c.ec50_u_um)} uM",
                 )
             )
@@ -142,7 +142,10 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
             title="Inputs",
             blocks=(
                 Table(headers=("Perpetrator", "value", "as used"), rows=tuple(perp_rows)),
-                Table(headers=("Target", "species", "constant given", "route to Ki", "fu,inc", "unbound"), rows=tuple(const_rows)),
+                Table(
+                    headers=("Target", "species", "constant given", "route to Ki", "binding: fu (source)", "unbound"),
+                    rows=tuple(const_rows),
+                ),
                 Table(headers=("Victim", "value", ""), rows=tuple(vic_rows)),
                 Table(headers=("Setting", "value used", "origin and source"), rows=settings_rows),
             ),
@@ -361,8 +364,15 @@ def _assessment_dict(a: Assessment) -> dict[str, Any]:
                 "ki_route": c.ki_route,
                 "mechanism": c.mechanism,
                 "kinact_per_h": c.kinact_per_h,
+                "ki_ci_um": list(c.ki_ci_um) if c.ki_ci_um else None,
+                "ki_inact_um": c.ki_inact_um,
+                "ki_inact_fu": c.ki_inact_fu,
+                "ki_inact_fu_origin": c.ki_inact_fu_origin,
                 "ki_inact_u_um": c.ki_inact_u_um,
                 "emax": c.emax,
+                "ec50_um": c.ec50_um,
+                "ec50_fu": c.ec50_fu,
+                "ec50_fu_origin": c.ec50_fu_origin,
                 "ec50_u_um": c.ec50_u_um,
                 "calibration": c.calibration,
             }
