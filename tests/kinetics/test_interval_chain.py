@@ -103,3 +103,16 @@ def test_bad_intervals_are_refused_with_the_field(ci: str, needle: str) -> None:
     with pytest.raises(ScenarioError) as info:
         loads_scenario(text)
     assert "perpetrator.inhibits[0].ki_ci" in str(info.value) and needle in str(info.value)
+
+
+def test_intervals_and_own_binding_survive_a_save_and_reload(tmp_path: Path) -> None:
+    from interact.scenario import dumps_scenario, merge_scenario_text
+
+    scenario = _fitted_scenario(tmp_path)
+    example = Path(__file__).resolve().parents[2] / "interact" / "examples" / "tdi_inducer.toml"
+    for text in (scenario.read_text(encoding="utf-8"), example.read_text(encoding="utf-8")):
+        loaded = loads_scenario(text)
+        assert loaded.perpetrator.inhibits[0].ki_ci is not None or loaded.perpetrator.inhibits[0].fu_inc_ec50 == 1.0
+        assert loads_scenario(dumps_scenario(loaded)) == loaded
+        merged = merge_scenario_text(text, loaded)
+        assert merged is not None and loads_scenario(merged) == loaded
