@@ -41,6 +41,7 @@ __all__ = [
     "FitResult",
     "finite_difference_jacobian",
     "fit_curve",
+    "fit_point",
 ]
 
 Array = NDArray[np.float64]
@@ -599,6 +600,31 @@ def _profile_side(
 
 
 # --------------------------------------------------------------------------- public
+
+
+def fit_point(
+    model: CurveModel, x: Any, y: Array, start: Sequence[float] | Array, *, sample_weights: Array | None = None
+) -> tuple[Array, Array, bool]:
+    """The least-squares estimate alone: (theta, fitted values, converged), without statistics or intervals.
+
+    The same solver and fallback as :func:`fit_curve`; for inner loops (iteratively reweighted fits) that
+    need only the optimum.
+    """
+    yv = np.asarray(y, dtype=float)
+    p = len(model.parameters)
+    lo = np.asarray(model.lower, dtype=float) if model.lower else np.full(p, -np.inf)
+    hi = np.asarray(model.upper, dtype=float) if model.upper else np.full(p, np.inf)
+    given = None if sample_weights is None else np.asarray(sample_weights, dtype=float)
+    prob = _Problem(model, x, yv, "none", given)
+    u0 = np.asarray(start, dtype=float)
+    with np.errstate(all="ignore"):
+        sol = _lm(prob, u0, lo, hi, np.zeros(p, dtype=bool))
+        if not sol.success or _degenerate(prob, sol, lo, hi):
+            retry = _scipy_fallback(prob, u0, lo, hi)
+            if retry.success and (retry.cost < sol.cost or not sol.success):
+                sol = retry
+        fitted = prob.fitted(sol.u)
+    return sol.u, fitted, bool(sol.success and math.isfinite(sol.cost))
 
 
 def fit_curve(

@@ -26,7 +26,7 @@ from numpy.typing import NDArray
 
 from ..errors import FitError, InputError
 from .data import IncubationData
-from .engine import WEIGHTS, CurveModel, Estimate, FitResult, fit_curve
+from .engine import WEIGHTS, CurveModel, Estimate, FitResult, fit_curve, fit_point
 
 __all__ = [
     "ERROR_MODELS",
@@ -43,6 +43,7 @@ __all__ = [
     "guess_inhibition",
     "guess_michaelis_menten",
     "inhibition_model",
+    "spearman",
 ]
 
 Array = NDArray[np.float64]
@@ -343,22 +344,30 @@ def _power_exponent(resid: Array, fitted: Array, rows: NDArray[np.bool_]) -> flo
     return float(minimize_scalar(neg, bounds=(0.0, 3.0), method="bounded", options={"xatol": 1e-6}).x)
 
 
-def _irls(model: CurveModel, x: Array, v: Array, start: FitResult, kind: str, rows: NDArray[np.bool_]) -> tuple[FitResult, float, Array]:
-    """Weighted fit with weights from the variance model, re-estimated from the fitted values until stable."""
-    fit, theta = start, 1.0
+def _irls(model: CurveModel, x: Array, v: Array, start: FitResult, kind: str, rows: NDArray[np.bool_]) -> tuple[Array, float, Array, bool]:
+    """Weighted fit with weights from the variance model, re-estimated from the fitted values until stable.
+
+    Returns the fitted values, theta, the weights and whether every step converged.
+    """
+    theta, u = 1.0, np.asarray(start.theta)
+    f = np.asarray(start.fitted)
     w = np.ones_like(v)
+    ok = True
     for _ in range(12):
-        f_old = np.asarray(fit.fitted)
         if kind == "power":
-            theta = _power_exponent(v - f_old, f_old, rows)
-        w = _variance_weights(f_old, theta)
-        new = fit_curve(model, x, v, [fit.theta], weights="none", sample_weights=w, extra_params=int(kind == "power"))
-        if not new.success:
+            theta = _power_exponent(v - f, f, rows)
+        w = _variance_weights(f, theta)
+        u_new, f_new, ok = fit_point(model, x, v, u, sample_weights=w)
+        if not ok:
             break
-        fit = new
-        if np.max(np.abs(np.asarray(fit.fitted) - f_old)) <= 1e-9 * float(np.max(np.abs(f_old))):
+        done = np.max(np.abs(f_new - f)) <= 1e-9 * float(np.max(np.abs(f)))
+        u, f = u_new, f_new
+        if done:
             break
-    return fit, theta, w
+    if ok and kind == "power":  # the weights belong to the final fitted values
+        theta = _power_exponent(v - f, f, rows)
+    w = _variance_weights(f, theta)
+    return f, theta, w, ok
 
 
 def choose_error_model(fullest: FitResult, x: Array, v: Array, model: CurveModel) -> ErrorModel:
@@ -374,31 +383,32 @@ def choose_error_model(fullest: FitResult, x: Array, v: Array, model: CurveModel
     # rows at zero substrate (blanks) have f = 0 whatever the constants: they say nothing about the spread
     # around the curve, so theta and the likelihoods compared are computed on the other rows
     rows = np.asarray(x[0] > 0)
-    candidates = [("constant", 0.0, *_likelihood(fullest, v, np.ones_like(v), rows, 0))]
+    p = fullest.n_params
+    candidates = [("constant", 0.0, *_likelihood(np.asarray(fullest.fitted), p, v, np.ones_like(v), rows, 0))]
     weights = {"constant": np.ones_like(v)}
     theta_of = {"constant": 0.0}
-    if fullest.success and np.all(np.asarray(fullest.fitted) >= 0) and np.count_nonzero(rows) > fullest.n_params + 3:
+    if fullest.success and np.all(np.asarray(fullest.fitted) >= 0) and np.count_nonzero(rows) > p + 3:
         for kind in ("proportional", "power"):
-            fit, theta, w = _irls(model, x, v, fullest, kind, rows)
-            if fit.success and math.isfinite(fit.aicc):
+            fitted, theta, w, ok = _irls(model, x, v, fullest, kind, rows)
+            if ok:
                 th = theta if kind == "power" else 1.0
-                candidates.append((kind, th, *_likelihood(fit, v, w, rows, int(kind == "power"))))
+                candidates.append((kind, th, *_likelihood(fitted, p, v, w, rows, int(kind == "power"))))
                 weights[kind] = w
                 theta_of[kind] = th
     best = min(candidates, key=lambda c: c[3] if math.isfinite(c[3]) else math.inf)
     return ErrorModel(name=best[0], exponent=theta_of[best[0]], candidates=tuple(candidates), weights=weights[best[0]], model=fullest.model)
 
 
-def _likelihood(fit: FitResult, v: Array, w: Array, rows: NDArray[np.bool_], extra: int) -> tuple[float, float]:
+def _likelihood(fitted: Array, n_params: int, v: Array, w: Array, rows: NDArray[np.bool_], extra: int) -> tuple[float, float]:
     """Gaussian log-likelihood and AICc on ``rows`` with Var_i = sigma^2 / w_i, sigma^2 at its ML value."""
-    r = (v - np.asarray(fit.fitted))[rows]
+    r = (v - fitted)[rows]
     wr = w[rows]
     n = r.size
     s2 = float(np.sum(wr * r**2)) / n
     if not s2 > 0:
         return math.inf, -math.inf
     ll = -0.5 * n * (math.log(2.0 * math.pi * s2) + 1.0) + 0.5 * float(np.sum(np.log(wr)))
-    k = fit.n_params + 1 + extra
+    k = n_params + 1 + extra
     aicc = -2.0 * ll + 2.0 * k + (2.0 * k * (k + 1) / (n - k - 1) if n - k - 1 > 0 else math.inf)
     return ll, aicc
 
@@ -409,8 +419,6 @@ def _residual_structure_warning(fit: FitResult | None, data: IncubationData, wei
     |weighted residual| against the fitted value is a Glejser-type check of heteroscedasticity
     (common practice); a significant trend means the weighting in use does not match the error structure.
     """
-    from scipy.stats import spearmanr
-
     if fit is None or not fit.success or fit.n < 8:
         return ()
     f = np.asarray(fit.fitted)
@@ -419,8 +427,7 @@ def _residual_structure_warning(fit: FitResult | None, data: IncubationData, wei
     e = np.abs(r) * np.sqrt(w)
     if np.ptp(f) == 0 or np.ptp(e) == 0:
         return ()
-    res = spearmanr(f, e)
-    rho, p = float(res.statistic), float(res.pvalue)
+    rho, p = spearman(f, e)
     if not (p < 0.01):
         return ()
     how = "grows" if rho > 0 else "shrinks"
@@ -430,6 +437,34 @@ def _residual_structure_warning(fit: FitResult | None, data: IncubationData, wei
         f"The spread of the weighted residuals still {how} with the fitted velocity (Spearman rho {rho:.2f}, p = {p:.2g}): "
         f"{used} does not capture the error structure; {hint}.",
     )
+
+
+def _ranks(a: Array) -> Array:
+    """Ranks 1..n with ties given their average rank."""
+    order = np.argsort(a, kind="mergesort")
+    ranks = np.empty(a.size)
+    ranks[order] = np.arange(1, a.size + 1)
+    values, inverse = np.unique(a, return_inverse=True)
+    if values.size < a.size:  # average the ranks of tied values
+        ranks = (np.bincount(inverse, weights=ranks) / np.bincount(inverse))[inverse]
+    return ranks
+
+
+def spearman(x: Array, y: Array) -> tuple[float, float]:
+    """Spearman's rank correlation and its two-sided p value (t approximation with n - 2 df).
+
+    The same statistic and p value as ``scipy.stats.spearmanr`` (checked in the tests); written here
+    because importing scipy.stats costs about 0.8 s on the command line's cold start.
+    """
+    from scipy.special import stdtr
+
+    rx, ry = _ranks(np.asarray(x, dtype=float)), _ranks(np.asarray(y, dtype=float))
+    rho = float(np.corrcoef(rx, ry)[0, 1])
+    n = rx.size
+    if abs(rho) >= 1.0:
+        return rho, 0.0
+    t_val = rho * math.sqrt((n - 2) / ((1.0 - rho) * (1.0 + rho)))
+    return rho, float(2.0 * stdtr(n - 2, -abs(t_val)))
 
 
 def _fixed_weights(weights: str, y: Array, f: Array) -> Array:

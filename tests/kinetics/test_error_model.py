@@ -1,17 +1,20 @@
 """The error structure as part of the model: variance model chosen by likelihood, weights by IRLS, warnings.
 
 Data are simulated from the rate laws with invented constants (Vmax 100, Km 10 uM, Ki 5 uM); they are inputs.
-Outside references: scipy.optimize.least_squares (the weighted fit at the IRLS fixed point) and scipy.stats
-(Spearman's test in the residual warning is scipy's).
+Outside references: scipy.optimize.least_squares (the weighted fit at the IRLS fixed point) and
+scipy.stats.spearmanr (the rank test behind the residual warning).
 """
 
 from __future__ import annotations
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 from scipy.optimize import least_squares
 
 from interact.kinetics import fit_inhibition, incubation_data
+from interact.kinetics.fitting import spearman
 from interact.kinetics.ratelaws import competitive
 
 from .recovery import _grid
@@ -74,3 +77,20 @@ def test_forced_weights_are_kept_and_a_missed_structure_is_warned_about() -> Non
     assert any("does not capture the error structure" in w for w in forced.warnings)
     auto = fit_inhibition(data)
     assert not any("does not capture the error structure" in w for w in auto.warnings)
+
+
+@settings(max_examples=60, deadline=None)
+@given(
+    xs=st.lists(st.integers(-5, 5), min_size=5, max_size=40).map(lambda v: np.asarray(v, dtype=float)),
+    seed=st.integers(0, 1000),
+)
+def test_spearman_matches_scipy(xs: np.ndarray, seed: int) -> None:
+    from scipy.stats import spearmanr
+
+    ys = np.random.default_rng(seed).integers(-3, 4, xs.size).astype(float)  # ties on both sides
+    if np.ptp(xs) == 0 or np.ptp(ys) == 0:
+        return
+    rho, p = spearman(xs, ys)
+    ref = spearmanr(xs, ys)
+    assert rho == pytest.approx(float(ref.statistic), abs=1e-12)
+    assert p == pytest.approx(float(ref.pvalue), rel=1e-9, abs=1e-15)
