@@ -135,6 +135,8 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
             raise InputError("--target", None, "is needed with --into: the enzyme, e.g. --target CYP3A")
         if not ok:
             raise InputError("fit", "not usable", "did not converge to finite constants; nothing was written")
+        if getattr(result, "no_effect", ""):
+            raise InputError("--into", args.into, f"was not updated: no induction shown ({result.no_effect})")
         if args.command == "fit-induction" and args.hill and result.hill is not None and abs(result.hill.value - 1) > 0.05:  # type: ignore[union-attr]
             raise InputError(
                 "--hill", "fitted slope", "is not 1; the scenario's induction term assumes h = 1: refit without --hill to carry"

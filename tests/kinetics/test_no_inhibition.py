@@ -118,3 +118,36 @@ def test_inhibition_is_reported_only_when_the_model_without_it_is_rejected(seed:
     else:
         test = next(t for t in comp.f_tests if t.reduced == "none" and t.full == comp.verdict.model)
         assert test.p_value < 0.05 and comp.verdict.inhibition_shown
+
+
+def _example(tmp_path: Path) -> Path:
+    path = tmp_path / "tdi.toml"
+    shutil.copy(Path(__file__).resolve().parents[2] / "interact" / "examples" / "tdi_inducer.toml", path)
+    return path
+
+
+def test_flat_preincubation_and_fold_change_data_write_nothing(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    rng = np.random.default_rng(0)
+    tdi = ["inhibitor (uM),time (min),activity"]  # activity falls with the vehicle only: no inactivation
+    for c in (0.0, 0.5, 1.0, 2.5, 5.0, 10.0, 25.0):
+        tdi += [f"{c},{t},{100 * np.exp(-0.003 * t) * (1 + 0.02 * rng.normal()):.4f}" for t in (0, 3, 6, 10, 15)]
+    fold = ["concentration (uM),fold_change"]  # fold change 1 with noise: no induction
+    for c in (0.1, 0.3, 1.0, 3.0, 10.0, 30.0):
+        fold += [f"{c},{1 + 0.05 * rng.normal():.4f}" for _ in range(3)]
+    for command, rows in (("fit-tdi", tdi), ("fit-induction", fold)):
+        data = tmp_path / f"{command}.csv"
+        data.write_text("\n".join(rows) + "\n", encoding="utf-8")
+        scenario = _example(tmp_path)
+        before = scenario.read_bytes()
+        assert main([command, str(data), "--into", str(scenario), "--target", "CYP3A"]) == 2, command
+        err = capsys.readouterr().err
+        assert "nothing was written" in err or "was not updated" in err, err
+        assert scenario.read_bytes() == before
+
+
+def test_one_substrate_level_is_a_named_error(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    data = tmp_path / "one.csv"
+    data.write_text("substrate (uM),inhibitor (uM),velocity\n" + "".join(f"10,{i},{50 / (1 + i)}\n" for i in (0, 1, 2, 5)))
+    assert main(["fit", str(data)]) == 2
+    err = capsys.readouterr().err
+    assert "1 substrate level" in err and "Traceback" not in err
