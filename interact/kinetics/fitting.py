@@ -306,6 +306,7 @@ class ErrorModel:
     candidates: tuple[tuple[str, float, float, float], ...]
     weights: Array
     model: str
+    left_out: int = 0  # rows at zero substrate, left out of the comparison
 
     @property
     def text(self) -> str:
@@ -316,8 +317,9 @@ class ErrorModel:
         variance = {"constant": "sigma^2", "proportional": "sigma^2 f^2", "power": "sigma^2 f^(2 theta)"}[self.name]
         how = "unweighted least squares" if self.name == "constant" else "iteratively reweighted least squares"
         return (
-            f"Error model: {self.name}{theta} (Var(v) = {variance}), chosen by AICc on the {self.model} model from {parts} "
-            f"(rows at zero substrate left out of this comparison); fitted by {how}."
+            f"Error model: {self.name}{theta} (Var(v) = {variance}), chosen by AICc on the {self.model} model from {parts}"
+            + (f" ({self.left_out} row(s) at zero substrate left out of this comparison)" if self.left_out else "")
+            + f"; fitted by {how}."
         )
 
 
@@ -396,7 +398,14 @@ def choose_error_model(fullest: FitResult, x: Array, v: Array, model: CurveModel
                 weights[kind] = w
                 theta_of[kind] = th
     best = min(candidates, key=lambda c: c[3] if math.isfinite(c[3]) else math.inf)
-    return ErrorModel(name=best[0], exponent=theta_of[best[0]], candidates=tuple(candidates), weights=weights[best[0]], model=fullest.model)
+    return ErrorModel(
+        name=best[0],
+        exponent=theta_of[best[0]],
+        candidates=tuple(candidates),
+        weights=weights[best[0]],
+        model=fullest.model,
+        left_out=int(np.count_nonzero(~rows)),
+    )
 
 
 def _likelihood(fitted: Array, n_params: int, v: Array, w: Array, rows: NDArray[np.bool_], extra: int) -> tuple[float, float]:
