@@ -49,7 +49,7 @@ def _truth(mechanism: str, s: np.ndarray, i: np.ndarray) -> np.ndarray:
     return mixed(s, i, 100.0, 10.0, KI, 4 * KI)
 
 
-def simulate(n: int, seed: int = 20261202) -> list[Cell]:
+def simulate(n: int, seed: int = 20261202, weights: str = "auto") -> list[Cell]:
     s, i = _grid()
     cells = []
     for m_index, mechanism in enumerate(MECHANISMS):
@@ -60,7 +60,7 @@ def simulate(n: int, seed: int = 20261202) -> list[Cell]:
             correct = covered = right = 0
             for _ in range(n):
                 v = mu + rng.normal(0.0, 1.0, mu.size) * sd
-                comp = fit_inhibition(incubation_data(s, i, v))
+                comp = fit_inhibition(incubation_data(s, i, v), weights=weights)
                 correct += comp.verdict.model == mechanism
                 ki = comp.fit(mechanism).estimate("Kic" if mechanism == "mixed" else "Ki")
                 lo = ki.profile_low if ki.profile_low is not None else 0.0
@@ -93,6 +93,6 @@ if __name__ == "__main__":
     import time
 
     t0 = time.perf_counter()
-    result = simulate(int(sys.argv[1]) if len(sys.argv) > 1 else 50)
+    result = simulate(int(sys.argv[1]) if len(sys.argv) > 1 else 50, weights=sys.argv[2] if len(sys.argv) > 2 else "auto")
     print(table(result))
     print(f"{time.perf_counter() - t0:.1f} s")
