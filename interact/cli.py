@@ -362,7 +362,7 @@ def _cmd_report(args: argparse.Namespace) -> int:
     from .assessment import assess
     from .report.html import render_report_html, render_report_markdown, report_parts
     from .scenario import loads_scenario
-    from .uncertainty import run_uncertainty, sensitivity
+    from .uncertainty import ScenarioModel, run_uncertainty, scenario_intervals, sensitivity
 
     path = Path(args.scenario)
     try:
@@ -373,7 +373,7 @@ def _cmd_report(args: argparse.Namespace) -> int:
     result = assess(loads_scenario(text, source=str(path)), rules=args.rules)
     spec, vary = _uncertainty_spec(args)
     spread = None
-    if vary:
+    if vary or scenario_intervals(ScenarioModel(result)):  # intervals the scenario carries (ki_ci ...) count too
         spread = run_uncertainty(
             result,
             vary,

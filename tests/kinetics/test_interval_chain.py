@@ -87,6 +87,9 @@ def test_uncertainty_uses_the_carried_interval_by_default(tmp_path: Path, capsys
     capsys.readouterr()
     assert main(["uncertainty", str(scenario), "--format", "json", "--samples", "500"]) == 0
     assert "from ki_ci in the scenario" in json.dumps(json.loads(capsys.readouterr().out))
+    # the full report runs the same uncertainty without being told to
+    assert main(["report", str(scenario), "-o", str(tmp_path / "r.md"), "--samples", "500"]) == 0
+    assert "from ki_ci in the scenario" in (tmp_path / "r.md").read_text(encoding="utf-8")
 
 
 @pytest.mark.parametrize(

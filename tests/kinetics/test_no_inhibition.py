@@ -118,6 +118,9 @@ def test_inhibition_is_reported_only_when_the_model_without_it_is_rejected(seed:
     else:
         test = next(t for t in comp.f_tests if t.reduced == "none" and t.full == comp.verdict.model)
         assert test.p_value < 0.05 and comp.verdict.inhibition_shown
+        # issue 14: the weight printed for the model is its own, never a sum
+        own = next(r.weight for r in comp.ranking if r.model == comp.verdict.model)
+        assert comp.verdict.support == own and f"Akaike weight {own:.2f} for the" in comp.verdict.text
 
 
 def _example(tmp_path: Path) -> Path:
@@ -151,3 +154,21 @@ def test_one_substrate_level_is_a_named_error(tmp_path: Path, capsys: pytest.Cap
     assert main(["fit", str(data)]) == 2
     err = capsys.readouterr().err
     assert "1 substrate level" in err and "Traceback" not in err
+
+
+@settings(max_examples=15, deadline=None)
+@given(seed=st.integers(0, 2**32 - 1), sd=st.floats(0.5, 6.0), ki=st.sampled_from([2.0, 5.0, 20.0]))
+def test_the_printed_weight_is_the_models_own_and_a_group_is_labelled(seed: int, sd: float, ki: float) -> None:
+    from interact.kinetics.ratelaws import competitive
+
+    s, i = np.array(list(itertools.product(S_LEVELS, I_LEVELS))).T
+    v = competitive(s, i, 100.0, 10.0, ki) + np.random.default_rng(seed).normal(0, sd, s.size)
+    comp = fit_inhibition(incubation_data(s, i, v))
+    weights = {r.model: r.weight for r in comp.ranking}
+    if comp.verdict.mechanism is None:
+        return
+    assert comp.verdict.support == weights[comp.verdict.model]
+    assert f"Akaike weight {comp.verdict.support:.2f} for the {comp.verdict.model} model itself" in comp.verdict.text
+    if comp.verdict.group:
+        assert comp.verdict.group_support == pytest.approx(sum(weights[m] for m in comp.verdict.group), abs=1e-12)
+        assert "together" in comp.verdict.text and "for the group" in comp.verdict.text
