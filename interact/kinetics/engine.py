@@ -39,6 +39,7 @@ __all__ = [
     "CurveModel",
     "Estimate",
     "FitResult",
+    "extra_sum_of_squares",
     "finite_difference_jacobian",
     "fit_curve",
     "fit_point",
@@ -600,6 +601,23 @@ def _profile_side(
 
 
 # --------------------------------------------------------------------------- public
+
+
+def extra_sum_of_squares(rss_reduced: float, df_reduced: int, rss_full: float, df_full: int) -> tuple[float, float]:
+    """(F, p) of the extra-sum-of-squares F test of a reduced model against a fuller one that nests it.
+
+    F = ((RSS_r - RSS_f) / (df_r - df_f)) / (RSS_f / df_f) on (df_r - df_f, df_f) degrees of freedom (Bates & Watts
+    1988, section 3.5; common practice).  An exact fit of the fuller model gives F = inf and p = 0 unless the
+    reduced model is exact too (p = 1).
+    """
+    from scipy.special import fdtrc
+
+    df_num = df_reduced - df_full
+    drop = max(rss_reduced - rss_full, 0.0)
+    if rss_full <= 0:
+        return (math.inf, 0.0) if drop > 0 else (0.0, 1.0)
+    f_val = (drop / df_num) / (rss_full / df_full)
+    return f_val, float(fdtrc(df_num, df_full, f_val))
 
 
 def fit_point(

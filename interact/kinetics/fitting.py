@@ -26,7 +26,7 @@ from numpy.typing import NDArray
 
 from ..errors import FitError, InputError
 from .data import IncubationData
-from .engine import WEIGHTS, CurveModel, Estimate, FitResult, fit_curve, fit_point
+from .engine import WEIGHTS, CurveModel, Estimate, FitResult, extra_sum_of_squares, fit_curve, fit_point
 
 __all__ = [
     "ERROR_MODELS",
@@ -902,13 +902,8 @@ def data_subset(data: IncubationData, rows: Sequence[int] | Array) -> Incubation
 
 
 def _f_test(reduced_name: str, reduced: FitResult, full_name: str, full: FitResult) -> FTest:
-    from scipy.special import fdtrc
-
-    df_num = reduced.df - full.df
-    drop = max(reduced.rss - full.rss, 0.0)
-    f_val = (drop / df_num) / (full.rss / full.df) if full.rss > 0 else math.inf
-    p_val = float(fdtrc(df_num, full.df, f_val)) if math.isfinite(f_val) else 0.0
-    return FTest(reduced=reduced_name, full=full_name, f=f_val, df_num=df_num, df_den=full.df, p_value=p_val)
+    f_val, p_val = extra_sum_of_squares(reduced.rss, reduced.df, full.rss, full.df)
+    return FTest(reduced=reduced_name, full=full_name, f=f_val, df_num=reduced.df - full.df, df_den=full.df, p_value=p_val)
 
 
 def _f_tests(fits: dict[str, FitResult]) -> tuple[FTest, ...]:

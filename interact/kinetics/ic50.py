@@ -29,7 +29,7 @@ from numpy.typing import NDArray
 from ..errors import FitError, InputError
 from ..scenario import MECHANISMS
 from .conversion import CHENG_PRUSOFF_SOURCE, ki_from_ic50
-from .engine import CurveModel, FitResult, fit_curve
+from .engine import CurveModel, FitResult, extra_sum_of_squares, fit_curve
 
 __all__ = ["IC50Fit", "KiFromIC50", "fit_ic50", "guess_ic50", "ic50_model", "ki_from_ic50_fit"]
 
@@ -177,14 +177,7 @@ class IC50Fit:
 
 def _flat_line_p(y: Array, fit: FitResult) -> float:
     """p value of the F test of a flat line (the mean) against the fitted curve."""
-    from scipy.special import fdtrc
-
-    rss0 = float(np.sum((y - y.mean()) ** 2))
-    df_num = (y.size - 1) - fit.df
-    if fit.rss <= 0:
-        return 0.0 if rss0 > 0 else 1.0
-    f_val = max(rss0 - fit.rss, 0.0) / df_num / (fit.rss / fit.df)
-    return float(fdtrc(df_num, fit.df, f_val))
+    return extra_sum_of_squares(float(np.sum((y - y.mean()) ** 2)), y.size - 1, fit.rss, fit.df)[1]
 
 
 def fit_ic50(

@@ -27,6 +27,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from ..errors import FitError
+from .engine import extra_sum_of_squares
 from .inactivation import Array, CurveFit, Estimate, _checked, fit_curve, guess_hyperbola
 
 __all__ = ["EMAX_EQUATION", "HILL_EQUATION", "InductionFit", "fit_induction", "fold_change_model", "guess_induction"]
@@ -198,17 +199,10 @@ def _no_induction(fold: Array, sigma: Array | None, fit: CurveFit) -> str:
 
     Bates & Watts 1988, section 3.5 (common practice); "" when the model is significantly better at 5 %.
     """
-    from scipy.special import fdtrc
-
     if not fit.success:
         return "the fit did not converge"
     w = 1.0 if sigma is None else 1.0 / sigma
-    rss0 = float(np.sum(((fold - 1.0) * w) ** 2))
-    df_num = fit.n_params
-    if fit.rss <= 0:
-        return "" if rss0 > 0 else "every fold change is 1"
-    f_val = max(rss0 - fit.rss, 0.0) / df_num / (fit.rss / fit.df)
-    p = float(fdtrc(df_num, fit.df, f_val))
+    _, p = extra_sum_of_squares(float(np.sum(((fold - 1.0) * w) ** 2)), fold.size, fit.rss, fit.df)
     if p < 0.05:
         return ""
     return f"the Emax model does not fit better than fold change 1 at every concentration (F test p = {p:.2g})"
