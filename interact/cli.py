@@ -142,12 +142,7 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
                 "--hill", "fitted slope", "is not 1; the scenario's induction term assumes h = 1: refit without --hill to carry"
             )
         target = Path(args.into)
-        try:
-            scenario_text = target.read_text(encoding="utf-8")
-        except (OSError, UnicodeDecodeError) as exc:
-            raise InputError(
-                "--into", str(target), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})"
-            ) from None
+        scenario_text = _read_text(args.into, "--into")
         methods = []
         for key, (est, unit, factor) in intervals.items():
             ci = est.interval()
@@ -639,10 +634,7 @@ def _write_km_into(args: argparse.Namespace, comp: Any, data_name: str, today: s
     if not (fit.success and km.identifiable and math.isfinite(km.value) and km.value > 0):
         raise InputError("--into", args.into, f"was not updated: Km is not determined by these data ({km.note or fit.message})")
     target = Path(args.into)
-    try:
-        text = target.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError("--into", str(target), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+    text = _read_text(args.into, "--into")
     values: dict[str, object] = {"km": f"{km.value:.6g} uM"}
     method = ""
     if km.profile_low is not None and km.profile_high is not None and math.isfinite(km.profile_high):
@@ -704,10 +696,7 @@ def _write_into(
     if not args.target:
         raise InputError("--target", None, "is needed with --into: the enzyme the Ki belongs to, e.g. --target CYP3A")
     target = Path(args.into)
-    try:
-        text = target.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError("--into", str(target), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+    text = _read_text(args.into, "--into")
     new = update_inhibition_text(
         text,
         target=args.target,
