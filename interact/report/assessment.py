@@ -109,7 +109,7 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"{fmt(c.ki_um)} uM",
+                    f"{fmt(c.ki_um)} uM" + (f" (interval {fmt(c.ki_ci_um[0])}-{fmt(c.ki_ci_um[1])})" if c.ki_ci_um else ""),
                     c.ki_route,
                     f"{c.fu_inc:g} ({c.fu_inc_origin})",
                     f"{fmt(c.ki_u_um)} uM",
@@ -120,9 +120,9 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"kinact {fmt(c.kinact_per_h)} 1/h",
+                    f"kinact {fmt(c.kinact_per_h)} 1/h, KI {fmt(c.ki_inact_um)} uM",
                     "time-dependent",
-                    "-",
+                    f"{c.ki_inact_fu:g} ({c.ki_inact_fu_origin})",
                     f"KI,u {fmt(c.ki_inact_u_um)} uM",
                 )
             )
@@ -131,9 +131,9 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"Emax {fmt(c.emax)}, d {c.calibration:g} ({c.calibration_origin})",
+                    f"Emax {fmt(c.emax)}, d {c.calibration:g} ({c.calibration_origin}), EC50 {fmt(c.ec50_um)} uM",
                     "induction",
-                    "-",
+                    f"{c.ec50_fu:g} ({c.ec50_fu_origin})",
                     f"EC50,u {fmt(c.ec50_u_um)} uM",
                 )
             )
@@ -143,7 +143,10 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
             title="Inputs",
             blocks=(
                 Table(headers=("Perpetrator", "value", "as used"), rows=tuple(perp_rows)),
-                Table(headers=("Target", "species", "constant given", "route to Ki", "fu,inc", "unbound"), rows=tuple(const_rows)),
+                Table(
+                    headers=("Target", "species", "constant given", "route to Ki", "binding: fu (source)", "unbound"),
+                    rows=tuple(const_rows),
+                ),
                 Table(headers=("Victim", "value", ""), rows=tuple(vic_rows)),
                 Table(headers=("Setting", "value used", "origin and source"), rows=settings_rows),
             ),
