@@ -47,6 +47,7 @@ from .screening import screen
 from .tables import RuleSet, load_classes, load_phenotypes, load_rules, load_targets, resolve_target
 
 __all__ = [
+    "COLUMN_KEYS",
     "FLAGS",
     "OUTPUT_COLUMNS",
     "PERPETRATOR_COLUMNS",
@@ -124,6 +125,27 @@ OUTPUT_COLUMNS: Final = (
     "exposure vs normal",
     "class",
     "study indicated",
+    "action",
+    "flags",
+)
+
+#: the keys of :meth:`BatchResult.columns`, one per entry of :data:`OUTPUT_COLUMNS` (same order), then ``flag_bits``
+COLUMN_KEYS: Final = (
+    "rank",
+    "perpetrator",
+    "victim",
+    "imax_u_um",
+    "iin_max_u_um",
+    "igut_um",
+    "i_ent_um",
+    "basic_models",
+    "auc_ratio_gut",
+    "auc_ratio_liver",
+    "auc_ratio",
+    "phenotype",
+    "exposure_vs_normal",
+    "class",
+    "study_indicated",
     "action",
     "flags",
 )
@@ -496,7 +518,62 @@ def _rows_records(table: Any, source: str) -> tuple[list[str], list[tuple[int, d
     return headers, entries
 
 
-def _read(table: Any, side: str, source: str, fmt_name: str | None) -> tuple[list[_Column], list[tuple[int, dict[str, Any]]]]:
+def _rows_xlsx(data: bytes, sheet: str | None, source: str) -> tuple[list[str], list[tuple[int, dict[str, Any]]]]:
+    """Rows of one sheet of an .xlsx workbook (openpyxl), numbered as the spreadsheet numbers them.
+
+    The first sheet unless ``sheet`` names one.  As in CSV: empty rows and rows whose first cell
+    starts with ``#`` are skipped, the first remaining row is the header, an empty cell is a missing value.
+    """
+    try:
+        import openpyxl
+    except ImportError:
+        raise InputError(source, "xlsx", "needs openpyxl to be read: pip install 'interact[data]' (or pip install openpyxl)") from None
+    import zipfile
+
+    try:
+        book = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=True)
+    except (zipfile.BadZipFile, OSError, ValueError, KeyError) as exc:
+        raise InputError(source, "xlsx", f"could not be read as an .xlsx workbook ({exc.__class__.__name__})") from None
+    try:
+        if sheet is None:
+            ws = book.worksheets[0]
+        elif sheet in book.sheetnames:
+            ws = book[sheet]
+        else:
+            raise InputError(f"{source}: --sheet", sheet, f"is not a sheet of this workbook; expected one of {', '.join(book.sheetnames)}")
+        headers: list[str] = []
+        entries: list[tuple[int, dict[str, Any]]] = []
+        for number, row in enumerate(ws.iter_rows(values_only=True), start=1):
+            cells = ["" if v is None else v for v in row]
+            if all(isinstance(v, str) and not v.strip() for v in cells) or (
+                cells and isinstance(cells[0], str) and cells[0].lstrip().startswith("#")
+            ):
+                continue
+            if not headers:
+                headers = [str(v).strip() for v in cells]
+                while headers and not headers[-1]:
+                    headers.pop()
+                continue
+            extra = [v for v in cells[len(headers) :] if not (isinstance(v, str) and not v.strip())]
+            if extra:
+                entries.append((number, {"__error__": f"has a value beyond the {len(headers)} header columns"}))
+                continue
+            entries.append(
+                (number, {h: v for h, v in zip(headers, cells, strict=False) if h and not (isinstance(v, str) and not v.strip())})
+            )
+        return headers, entries
+    finally:
+        book.close()
+
+
+def _read(
+    table: Any, side: str, source: str, fmt_name: str | None, sheet: str | None = None
+) -> tuple[list[_Column], list[tuple[int, dict[str, Any]]]]:
+    if isinstance(table, bytes):  # a spreadsheet (.xlsx)
+        headers, entries = _rows_xlsx(table, sheet, source)
+        if not headers:
+            raise InputError(source, "", f"has no header row; expected a sheet with columns such as {PERPETRATOR_COLUMNS[0][0]}, ...")
+        return _columns(headers, side, source), entries
     if not isinstance(table, str):
         headers, entries = _rows_records(table, source)
         if not headers:
@@ -522,11 +599,11 @@ def _read(table: Any, side: str, source: str, fmt_name: str | None) -> tuple[lis
 
 
 def _parse_rows(
-    text: Any, side: str, source: str, on_error: str, fmt_name: str | None
+    text: Any, side: str, source: str, on_error: str, fmt_name: str | None, sheet: str | None = None
 ) -> tuple[list[Any], list[int], list[_Column], list[RowProblem]]:
     if on_error not in ("fail", "skip"):
         raise InputError("on_error", on_error, "is not 'fail' or 'skip'")
-    cols, entries = _read(text, side, source, fmt_name)
+    cols, entries = _read(text, side, source, fmt_name, sheet)
     if len(entries) > MAX_ROWS:
         raise InputError(source, len(entries), f"rows is more than the {MAX_ROWS:,} a table may have")
     valid: list[Any] = []
@@ -554,19 +631,20 @@ def _parse_rows(
 
 
 def loads_perpetrators(
-    text: str | Iterable[Mapping[str, Any]] | Any,
+    text: str | bytes | Iterable[Mapping[str, Any]] | Any,
     rules: RuleSet | str | None = None,
     *,
     source: str = "perpetrators.csv",
     on_error: str = "fail",
     fmt_name: str | None = None,
+    sheet: str | None = None,
 ) -> PerpetratorTable:
     """Read and validate a perpetrator table; compute each perpetrator's concentrations and basic-model values.
 
     Parameters
     ----------
     text
-        The table as CSV or TOML text, or as records: a list of mappings (column name to value) or a
+        The table as CSV or TOML text, the bytes of an .xlsx workbook, or records: a list of mappings (column name to value) or a
         pandas DataFrame, with the columns of :data:`PERPETRATOR_COLUMNS` (a unit in the header,
         ``cmax (ng/mL)``, or in each value, ``"812 ng/mL"``; a pint Quantity is accepted as a value).
         Rows of records are numbered from 1 in messages.
@@ -579,6 +657,9 @@ def loads_perpetrators(
         out and listed in ``skipped``).
     fmt_name
         ``csv`` or ``toml`` for text (default: from the ``source`` suffix).
+    sheet
+        For a spreadsheet (``text`` given as the bytes of an .xlsx file): the sheet to read
+        (default: the first).  Rows are numbered as the spreadsheet numbers them.
 
     Returns
     -------
@@ -586,7 +667,7 @@ def loads_perpetrators(
         Concentrations in uM (Imax,u, Iin,max,u, Igut, I,ent) and unbound Ki in uM per target.
     """
     rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules)
-    rows, lines, cols, problems = _parse_rows(text, "perpetrator", source, on_error, fmt_name)
+    rows, lines, cols, problems = _parse_rows(text, "perpetrator", source, on_error, fmt_name, sheet)
     targets = tuple(dict.fromkeys(c.target for c in cols if c.target is not None and c.key in ("ki", "ki_u")))
     n = len(rows)
     ki_u = np.full((n, len(targets)), np.nan)
@@ -630,14 +711,19 @@ def loads_perpetrators(
 
 
 def loads_victims(
-    text: str | Iterable[Mapping[str, Any]] | Any, *, source: str = "victims.csv", on_error: str = "fail", fmt_name: str | None = None
+    text: str | bytes | Iterable[Mapping[str, Any]] | Any,
+    *,
+    source: str = "victims.csv",
+    on_error: str = "fail",
+    fmt_name: str | None = None,
+    sheet: str | None = None,
 ) -> VictimTable:
     """Read and validate a victim table.
 
     ``text`` is CSV or TOML text, or records (a list of mappings or a pandas DataFrame) with the
     columns of :data:`VICTIM_COLUMNS`; the other arguments are those of :func:`loads_perpetrators`.
     """
-    rows, lines, cols, problems = _parse_rows(text, "victim", source, on_error, fmt_name)
+    rows, lines, cols, problems = _parse_rows(text, "victim", source, on_error, fmt_name, sheet)
     enzymes = tuple(dict.fromkeys(c.target for c in cols if c.key == "fm" and c.target is not None))
     n = len(rows)
     fm = np.zeros((n, len(enzymes)))
@@ -728,7 +814,8 @@ class BatchResult:
         dict of str to ndarray
             ``rank``, ``perpetrator``, ``victim`` (names), ``imax_u_um``, ``iin_max_u_um``,
             ``igut_um``, ``i_ent_um`` (perpetrator concentrations in uM), ``basic_models`` (text),
-            ``auc_ratio_gut``, ``auc_ratio_liver``, ``auc_ratio`` (dimensionless), ``class``,
+            ``auc_ratio_gut``, ``auc_ratio_liver``, ``auc_ratio`` (dimensionless), ``phenotype`` (text),
+            ``exposure_vs_normal`` (dimensionless), ``class``,
             ``study_indicated`` (bool), ``action`` and ``flags`` (text; ``flag_bits`` the same as
             bits of :data:`FLAGS`).  The same rows, in the same order, as :func:`result_rows`.
         """
@@ -750,6 +837,8 @@ class BatchResult:
             "auc_ratio_gut": self.gut.ravel()[order],
             "auc_ratio_liver": self.liver.ravel()[order],
             "auc_ratio": self.total.ravel()[order],
+            "phenotype": np.array(self.victims.phenotype, dtype=object)[jj],
+            "exposure_vs_normal": self.exposure.ravel()[order],
             "class": np.array(self.band_names, dtype=object)[self.band.ravel()[order]],
             "study_indicated": self.study.ravel()[order],
             "action": np.array(ACTIONS, dtype=object)[self.action.ravel()[order]],

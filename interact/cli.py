@@ -331,6 +331,22 @@ def _progress_bar(label: str, stream=None):  # type: ignore[no-untyped-def]
     return show
 
 
+def _read_table(path: str, what: str) -> str | bytes:
+    """A batch table: the bytes of an .xlsx workbook, else the text of a CSV or TOML file."""
+    if Path(path).suffix.lower() != ".xlsx":
+        return _read_text(path, what)
+    try:
+        return Path(path).read_bytes()
+    except OSError as exc:
+        raise InputError(what, path, f"could not be read ({exc.strerror})") from None
+
+
+def _out_bytes(data: bytes, path: str) -> None:
+    from .scenario import write_text_atomic
+
+    write_text_atomic(Path(path), data)
+
+
 def _read_text(path: str, what: str) -> str:
     try:
         return Path(path).read_text(encoding="utf-8")
@@ -378,16 +394,32 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
     rules = load_rules(args.rules)
     if args.top is not None and args.top < 1:
         raise InputError("--top", args.top, "is not a whole number of at least 1")
-    perps = loads_perpetrators(_read_text(args.perpetrators, "perpetrators"), rules, source=args.perpetrators, on_error=args.on_error)
-    victims = loads_victims(_read_text(args.victims, "victims"), source=args.victims, on_error=args.on_error)
+    perps = loads_perpetrators(
+        _read_table(args.perpetrators, "perpetrators"), rules, source=args.perpetrators, on_error=args.on_error, sheet=args.sheet
+    )
+    victims = loads_victims(
+        _read_table(args.victims, "victims"), source=args.victims, on_error=args.on_error, sheet=args.victim_sheet or args.sheet
+    )
     for problem in (*perps.skipped, *victims.skipped):
         sys.stderr.write(f"interact: skipped {problem}\n")
     n = len(perps.rows) * len(victims.rows)
     result = evaluate_pairs(perps, victims, rules, progress=_progress_bar("screening") if n >= 200_000 and not args.quiet else None)
-    fmt_name = args.format or {".json": "json", ".md": "markdown", ".markdown": "markdown"}.get(
+    fmt_name = args.format or {".json": "json", ".md": "markdown", ".markdown": "markdown", ".xlsx": "xlsx"}.get(
         Path(args.output or "").suffix.lower(), "csv"
     )
-    rows = _write_streamed(args.output, lambda h: write_results(result, h, fmt_name, top=args.top))
+    if fmt_name == "xlsx":
+        from datetime import UTC, datetime
+
+        from .report.batch import results_workbook
+
+        book = results_workbook(result, top=args.top, generated_at=datetime.now(UTC).isoformat(timespec="seconds"))
+        if _stdout(args.output):
+            sys.stdout.buffer.write(book)
+        else:
+            _out_bytes(book, args.output)
+        rows = result.pairs if args.top is None else min(args.top, result.pairs)
+    else:
+        rows = _write_streamed(args.output, lambda h: write_results(result, h, fmt_name, top=args.top))
     if not _stdout(args.output) and not args.quiet:
         skipped = len(perps.skipped) + len(victims.skipped)
         sys.stderr.write(
@@ -557,10 +589,14 @@ def _parser() -> argparse.ArgumentParser:
     p.set_defaults(run=_cmd_uncertainty)
 
     p = sub.add_parser("screen-batch", help="every perpetrator of one table against every victim of another, worst pairs first")
-    p.add_argument("perpetrators", metavar="PERPETRATORS.csv", help="perpetrator table (CSV or TOML; columns in README)")
-    p.add_argument("victims", metavar="VICTIMS.csv", help="victim table (CSV or TOML; columns in README)")
-    p.add_argument("-o", "--output", metavar="FILE", help="write results to FILE (.csv, .json or .md) instead of standard output")
-    p.add_argument("--format", choices=("csv", "json", "markdown"), help="output format (default: from the file name, else csv)")
+    p.add_argument("perpetrators", metavar="PERPETRATORS.csv", help="perpetrator table (CSV, TOML or .xlsx; columns in README)")
+    p.add_argument("victims", metavar="VICTIMS.csv", help="victim table (CSV, TOML or .xlsx; columns in README)")
+    p.add_argument("--sheet", metavar="NAME", help="sheet of an .xlsx table to read (default: the first sheet)")
+    p.add_argument("--victim-sheet", metavar="NAME", help="sheet of the victims' .xlsx table, when it differs from --sheet")
+    p.add_argument(
+        "-o", "--output", metavar="FILE", help="write results to FILE (.csv, .json, .md or .xlsx) instead of standard output (- for it)"
+    )
+    p.add_argument("--format", choices=("csv", "json", "markdown", "xlsx"), help="output format (default: from the file name, else csv)")
     p.add_argument("--rules", metavar="NAME|PATH", help="rule set (default ich-m12-2024)")
     p.add_argument(
         "--on-error",

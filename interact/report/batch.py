@@ -1,4 +1,4 @@
-"""Writing batch-screen results: CSV, JSON (streamed) and Markdown."""
+"""Writing batch-screen results: CSV, JSON (streamed), Markdown and .xlsx workbooks."""
 
 from __future__ import annotations
 
@@ -6,15 +6,17 @@ import csv
 import json
 from typing import Any, TextIO
 
+import numpy as np
+
 from ..batch import OUTPUT_COLUMNS, BatchResult, result_rows
 from ..cautions import CAUTION_LINE
 from ..errors import InputError
 from ..results import BATCH_SCHEMA
 from .numbers import fmt
 
-__all__ = ["BATCH_FORMATS", "write_results"]
+__all__ = ["BATCH_FORMATS", "results_workbook", "write_results"]
 
-BATCH_FORMATS = ("csv", "json", "markdown")
+BATCH_FORMATS = ("csv", "json", "markdown", "xlsx")
 
 
 def _md(text: str) -> str:
@@ -81,3 +83,103 @@ def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *,
     else:
         raise InputError("format", fmt_name, "is not csv, json or markdown")
     return count
+
+
+def results_workbook(result: BatchResult, *, top: int | None = None, generated_at: str = "") -> bytes:
+    """The ranked results as an .xlsx workbook (openpyxl, streamed in write-only mode); returns its bytes.
+
+    Sheets: ``results`` (one row per pair, worst first, numbers as numbers, units in the headers),
+    ``inputs`` (each perpetrator's and victim's values as used, with its source line, then the
+    provenance: tool, rule set, tables, source files) and ``cautions`` (the cautions and the flags'
+    meanings).
+
+    Raises
+    ------
+    InputError
+        When openpyxl is not installed.
+    """
+    import io
+    import math
+
+    try:
+        from openpyxl import Workbook
+    except ImportError:
+        raise InputError("format", "xlsx", "needs openpyxl: pip install 'interact[data]' (or pip install openpyxl)") from None
+    from .. import __version__
+    from ..batch import COLUMN_KEYS, FLAGS
+    from ..cautions import CAUTIONS, DOSE_CAUTIONS
+    from ..tables import table_versions
+
+    book = Workbook(write_only=True)
+    sheet = book.create_sheet("results")
+    sheet.append(list(OUTPUT_COLUMNS))
+    cols = result.columns(top)
+    data = [cols[k] for k in COLUMN_KEYS]
+    for k in range(cols["rank"].size):
+        row: list[Any] = []
+        for column in data:
+            value = column[k]
+            if isinstance(value, (float, np.floating)):
+                row.append(float(value) if math.isfinite(value) else None)
+            elif isinstance(value, (bool, np.bool_)):
+                row.append("yes" if value else "no")
+            elif isinstance(value, np.integer):
+                row.append(int(value))
+            else:
+                row.append(value)
+        sheet.append(row)
+
+    p, v = result.perpetrators, result.victims
+    inputs = book.create_sheet("inputs")
+    inputs.append(["Perpetrators (precipitants), as used", f"source: {p.source}"])
+    inputs.append(
+        ["name", "source line", "Imax,u (uM)", "Iin,max,u (uM)", "Igut (uM)", "I,ent (uM)", *(f"Ki,u {t} (uM)" for t in p.targets)]
+    )
+    for i, r in enumerate(p.rows):
+        kis = [None if math.isnan(x) else float(x) for x in p.ki_u_um[i].tolist()]
+        inputs.append(
+            [r.name, p.lines[i], float(p.imax_u_um[i]), float(p.inlet_um[i]), float(p.gut_lumen_um[i]), float(p.enterocyte_um[i]), *kis]
+        )
+    inputs.append([])
+    inputs.append(["Victims (object drugs), as used", f"source: {v.source}"])
+    inputs.append(["name", "source line", "route", "Fg", "phenotype", *(f"fm {e}" for e in v.enzymes)])
+    for j, victim in enumerate(v.rows):
+        inputs.append(
+            [
+                victim.name,
+                v.lines[j],
+                "oral" if v.oral[j] else "intravenous",
+                float(v.fg[j]) if v.fg_given[j] else "not given (1)",
+                v.phenotype[j],
+                *(float(x) for x in v.fm[j].tolist()),
+            ]
+        )
+    inputs.append([])
+    inputs.append(["Provenance"])
+    inputs.append(["tool", f"interact {__version__}"])
+    inputs.append(
+        ["rule set", f"{result.rules.title} [{result.rules.id}, version {result.rules.version}, table {result.rules.table_version}]"]
+    )
+    for name, version in table_versions():
+        inputs.append([f"{name} table", version])
+    inputs.append(["schema of the results sheet", f"{BATCH_SCHEMA} (columns as in CSV output)"])
+    if generated_at:
+        inputs.append(["generated", generated_at])
+    skipped = (*p.skipped, *v.skipped)
+    if skipped:
+        inputs.append([])
+        inputs.append(["Rows left out"])
+        for s in skipped:
+            inputs.append([str(s)])
+
+    cautions = book.create_sheet("cautions")
+    cautions.append(["Cautions"])
+    for c in (CAUTION_LINE, *CAUTIONS, *DOSE_CAUTIONS):
+        cautions.append([c])
+    cautions.append([])
+    cautions.append(["Flags in the results sheet"])
+    for f in FLAGS:
+        cautions.append([f])
+    out = io.BytesIO()
+    book.save(out)
+    return out.getvalue()

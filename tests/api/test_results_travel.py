@@ -21,7 +21,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from interact import assess, demo_path, load_scenario
-from interact.batch import OUTPUT_COLUMNS, evaluate_pairs, loads_perpetrators, loads_victims, result_rows
+from interact.batch import COLUMN_KEYS, OUTPUT_COLUMNS, evaluate_pairs, loads_perpetrators, loads_victims, result_rows
 from interact.errors import InputError
 from interact.report.assessment import format_assessment
 from interact.results import ASSESSMENT_SCHEMA
@@ -138,6 +138,16 @@ def test_batch_columns_are_numbers_equal_to_the_text_rows() -> None:
     assert cols["study_indicated"].dtype == np.bool_
     rows = list(result_rows(res))
     assert len(rows) == cols["rank"].size == res.pairs
+    assert list(cols) == [*COLUMN_KEYS, "flag_bits"] and len(COLUMN_KEYS) == len(OUTPUT_COLUMNS)
+    for k, row in enumerate(rows):  # every column, cell by cell, equals the text output
+        for key, text in zip(COLUMN_KEYS, row, strict=True):
+            value = cols[key][k]
+            if isinstance(value, (float, np.floating)):
+                assert (text == "" and not math.isfinite(value)) or float(text) == value, key
+            elif isinstance(value, (bool, np.bool_)):
+                assert text == ("yes" if value else "no"), key
+            else:
+                assert text == str(value), key
     for k, row in enumerate(rows):
         by = dict(zip(OUTPUT_COLUMNS, row, strict=True))
         assert by["perpetrator"] == cols["perpetrator"][k] and by["victim"] == cols["victim"][k]
