@@ -1004,7 +1004,7 @@ def evaluate_pairs(
 def ranking(result: BatchResult, top: int | None = None) -> NDArray[np.int64]:
     """Flat pair indices (perpetrator x victims + victim), worst first, ties in table order.
 
-    Worst = largest |log exposure vs normal|: the AUC ratio itself for a victim without a phenotype; for one with a
+    Worst = largest ``|log(exposure vs normal)|``: the AUC ratio itself for a victim without a phenotype; for one with a
     phenotype, the combined drug-drug-gene effect (a poor metaboliser's exposure counts even where the interaction is small).
     """
     severity = np.abs(np.log(result.exposure.ravel()))

@@ -657,8 +657,8 @@ def fit_inhibition(
     profile
         Compute profile-likelihood intervals for the inhibition constants.
     warn
-        Also emit each design warning as a :class:`~interact.errors.FitWarning` through
-        :func:`warnings.warn` (the shells pass False and print ``warnings`` themselves).
+        Also emit each design warning through Python's ``warnings.warn``, as an
+        ``interact.errors.FitWarning`` (the shells pass False and print ``warnings`` themselves).
 
     Returns
     -------
@@ -672,6 +672,8 @@ def fit_inhibition(
     FitError
         A design that cannot be fitted (fewer than 3 substrate levels).
 
+    Notes
+    -----
     Degenerate velocities (all zero, none above zero, all equal) raise :class:`InputError`.  A single
     inhibitor level is fitted with the model without inhibition only (plain Michaelis-Menten), and the
     verdict says so; the model without inhibition is always fitted, because inhibition is reported only
