@@ -62,7 +62,7 @@ def _assess_time_course(result, args: argparse.Namespace):  # type: ignore[no-un
     from .dynamic import simulate
 
     try:
-        return simulate(result, days=args.days), ""
+        return simulate(result, days=args.days, warn=False), ""
     except InputError as exc:
         if choice == "on":
             raise
@@ -82,6 +82,7 @@ def _cmd_timecourse(args: argparse.Namespace) -> int:
         washout_days=args.washout_days,
         mode="constant" if args.constant else "regimen",
         effect_fraction=args.fraction,
+        warn=False,
     )
     if args.plot:
         from .report.figures import save_figure, timecourse_figure

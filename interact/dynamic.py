@@ -67,7 +67,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from . import units
-from .errors import InputError
+from .errors import FromMemoryWarning, InputError, ModelLimitWarning, emit_warnings
 from .exposure import Setting
 from .tables import load_physiology
 
@@ -405,6 +405,7 @@ def simulate(
     method: str = "odeint",
     rtol: float = 1e-6,
     atol: float = 1e-9,
+    warn: bool = True,
 ) -> TimeCourse:
     """Simulate the perpetrator's course and its effect on the victim.
 
@@ -432,6 +433,9 @@ def simulate(
         non-stiff steps, with every dose time passed as a critical point; the
         fastest here) or a scipy.integrate.solve_ivp method (``"LSODA"``,
         ``"BDF"``, ``"RK45"`` ...); tolerances for either.
+    warn
+        Also emit each warning of the result through Python's ``warnings`` as an
+        ``interact.InteractWarning`` by topic (the shells pass False and print them).
 
     Raises
     ------
@@ -440,12 +444,12 @@ def simulate(
     """
     from scipy.integrate import odeint, solve_ivp
 
-    from .assessment import _kdeg
+    from .assessment import _kdeg, _Warnings
 
     s = assessment.scenario
     p = s.perpetrator
     v = s.victim
-    warnings: list[str] = []
+    warnings = _Warnings()  # texts with their InteractWarning topic
     notes: list[str] = []
     if mode not in MODES:
         raise InputError("mode", mode, f"is not one of {', '.join(MODES)}")
@@ -568,10 +572,13 @@ def simulate(
             warnings.append(
                 f"No {site.site} kdeg for {site.enzyme}: its time-dependent inhibition is left out and its induction "
                 "is taken as instantaneous; give it under [[turnover]]."
-            )
+            )  # AssumptionWarning (the default topic)
     for kd in kdeg_used:
         if kd.from_memory:
-            warnings.append(f"{kd.label} = {kd.value:.4g} 1/h is from memory ({kd.source}): the onset and offset times scale with 1/kdeg.")
+            warnings.append(
+                f"{kd.label} = {kd.value:.4g} 1/h is from memory ({kd.source}): the onset and offset times scale with 1/kdeg.",
+                FromMemoryWarning,
+            )
     turn = [i for i, x in enumerate(sites) if x.turnover]
     liver_sites = [x for x in sites if x.site == "liver"]
     gut_site = next((x for x in sites if x.site == "gut"), None)
@@ -768,7 +775,8 @@ def simulate(
     if not steady:
         warnings.append(
             f"The exposure ratio was still changing at the end of {days:g} days of dosing: the steady state is not reached; "
-            "simulate more days."
+            "simulate more days.",
+            ModelLimitWarning,
         )
     on_sel = tk <= stop + 1e-9
     off_sel = tk >= stop + window - 1e-9  # windows wholly after the last dose interval
@@ -784,7 +792,7 @@ def simulate(
     offset = _settle(tk, log_r, 0.0, band, stop, float(tk[-1])) if meaningful else None
     half_offset = _settle(tk, log_r, 0.0, 0.5 * scale, stop, float(tk[-1])) if meaningful else None
     if meaningful and offset is None:
-        warnings.append("The effect had not faded by the end of the follow-up: simulate a longer washout.")
+        warnings.append("The effect had not faded by the end of the follow-up: simulate a longer washout.", ModelLimitWarning)
     if not meaningful:
         notes.append("the dynamic effect stays below 1 %: onset and offset times are not given")
     if (
@@ -794,7 +802,8 @@ def simulate(
     ):
         warnings.append(
             f"After stopping, exposure moves to {after_ratio:.3g} times baseline about {after_h / 24:.1f} days later "
-            f"(steady state while dosing: {r_ss:.3g}): the mechanisms fade at different speeds."
+            f"(steady state while dosing: {r_ss:.3g}): the mechanisms fade at different speeds.",
+            ModelLimitWarning,
         )
 
     # Cmax ratio over the last victim interval before stopping
@@ -839,6 +848,8 @@ def simulate(
             )
         )
     scale = float(v.dose.magnitude)
+    if warn:
+        emit_warnings(zip(warnings.categories, warnings, strict=True))
     return TimeCourse(
         mode=mode,
         time_h=tuple(float(x) for x in tk),

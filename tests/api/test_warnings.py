@@ -127,3 +127,22 @@ def test_fit_design_warnings_are_fit_warnings_and_the_comparison_has_a_short_rep
     assert len(text) < 300 and comp.verdict.model in text
     page = comp._repr_html_()
     assert "AICc" in page and "Caution" in page and all(r.model in page for r in comp.ranking)
+
+
+def test_time_course_warnings_are_emitted_under_their_topics() -> None:
+    from pathlib import Path
+
+    from interact.dynamic import simulate
+
+    example = Path(interact.__file__).parent / "examples" / "tdi_inducer.toml"
+    a = assess(interact.load_scenario(example), warn=False)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        course = simulate(a, days=10)
+    assert [str(w.message) for w in caught] == list(course.warnings) and course.warnings
+    assert all(issubclass(w.category, InteractWarning) for w in caught)
+    assert any(w.category is FromMemoryWarning for w in caught)  # the kdeg values of the targets table are from memory
+    with warnings.catch_warnings(record=True) as quiet:
+        warnings.simplefilter("always")
+        simulate(a, days=10, warn=False)
+    assert quiet == []

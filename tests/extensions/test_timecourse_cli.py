@@ -27,7 +27,7 @@ EXAMPLE = Path(__file__).resolve().parents[2] / "interact" / "examples" / "tdi_i
 @pytest.fixture(scope="module")
 def course():  # type: ignore[no-untyped-def]
     a = assess(load_scenario(EXAMPLE), warn=False)  # its kdeg values are from memory (checked in tests/api/test_warnings.py)
-    return a, simulate(a)
+    return a, simulate(a, warn=False)
 
 
 def test_example_is_marked_invented_and_round_trips() -> None:

@@ -75,7 +75,7 @@ def test_fit_and_timecourse_figures(tmp_path: Path) -> None:
     from interact.dynamic import simulate
 
     a = assess(load_scenario(EXAMPLE), warn=False)
-    course = simulate(a, days=10)
+    course = simulate(a, days=10, warn=False)  # the drawing is checked here; the warnings in tests/api/test_warnings.py
     tfig = figures.timecourse_figure(course, title="x")
     assert len(tfig.axes) == 2
     np.testing.assert_array_equal(tfig.axes[1].lines[0].get_ydata(), np.asarray(course.exposure_ratio))
