@@ -102,3 +102,16 @@ def test_beside_the_tornado_in_text_and_json(demo) -> None:  # type: ignore[no-u
     frame = s.variance.to_pandas()
     assert list(frame["input"]) == [i.path for i in s.variance.inputs]
     assert sensitivity(demo).variance is None  # default swing: no distributions, no indices
+
+
+def test_reports_carry_the_indices(tmp_path) -> None:  # type: ignore[no-untyped-def]
+    from pathlib import Path
+
+    from interact.cli import main
+
+    spread = Path(__file__).resolve().parents[2] / "interact" / "examples" / "demo_spread.toml"
+    for name in ("r.html", "r.md"):
+        out = tmp_path / name
+        assert main(["report", str(demo_path()), "--spec", str(spread), "--samples", "500", "-o", str(out)]) == 0
+        text = out.read_text(encoding="utf-8")
+        assert "first-order index" in text and "Sobol" in text
