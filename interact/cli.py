@@ -449,12 +449,14 @@ def _cmd_report(args: argparse.Namespace) -> int:
     spec, vary = _uncertainty_spec(args)
     spread = None
     if vary or scenario_intervals(ScenarioModel(result)):  # intervals the scenario carries (ki_ci ...) count too
+        samples = args.samples if args.samples is not None else (spec.samples or 10_000)
         spread = run_uncertainty(
             result,
             vary,
-            samples=args.samples if args.samples is not None else (spec.samples or 10_000),
+            samples=samples,
             seed=args.seed if args.seed is not None else (spec.seed if spec.seed is not None else 0),
             method=args.method or spec.method or "lhs",
+            progress=_progress_bar("sampling") if samples >= 200_000 else None,
         )
     parts = report_parts(
         result,
