@@ -32,6 +32,12 @@ _UNCOMPETITIVE_NOTE: Final = (
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Provenance:
+    """What an assessment rests on.
+
+    The tool version, the rule set (identifier, title, version, table version, file) and the
+    version of every reference table.
+    """
+
     tool_version: str
     rules_id: str
     rules_title: str

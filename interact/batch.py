@@ -156,6 +156,8 @@ MAX_ROWS: Final = 1_000_000
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class RowProblem:
+    """One unusable row of a batch table: the table (``source``), its line (or spreadsheet row, or record number) and what is wrong."""
+
     source: str
     line: int
     message: str
@@ -471,6 +473,12 @@ class PerpetratorTable:
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class VictimTable:
+    """A validated victim (object drug) table.
+
+    The rows and their lines; fm per enzyme (fraction), Fg, route, regimen plans and phenotypes
+    as arrays over victims.
+    """
+
     rows: tuple[Victim, ...]
     lines: tuple[int, ...]
     enzymes: tuple[str, ...]

@@ -122,6 +122,12 @@ class Band:
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Classes:
+    """The size classes of the AUC ratio and the default no-effect boundary.
+
+    Inhibition and induction bands, the object-drug study fm and the no-effect boundary
+    (dimensionless ratios), each with its source.
+    """
+
     inhibition: tuple[Band, ...]
     induction: tuple[Band, ...]
     victim_study_fm: Sourced

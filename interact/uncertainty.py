@@ -249,6 +249,8 @@ def interval_distribution(lower: float, upper: float, text: str = "") -> Distrib
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Ratios:
+    """Gut, liver and total AUC ratios (dimensionless) as arrays of a common shape."""
+
     gut: NDArray[np.float64]
     liver: NDArray[np.float64]
     total: NDArray[np.float64]
@@ -968,6 +970,8 @@ def _regimen_probabilities(
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class TornadoBar:
+    """One input swung alone: its low and high values (the input's canonical unit) and the AUC ratios there (dimensionless)."""
+
     input: Input
     low: float
     high: float
@@ -982,6 +986,8 @@ class TornadoBar:
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class FmCurve:
+    """The liver AUC ratio (dimensionless) against fm (fraction) for one [I]/Ki,u, or for this scenario's main pathway."""
+
     label: str
     fm: tuple[float, ...]
     aucr: tuple[float, ...]
@@ -1000,6 +1006,12 @@ class CrossingPoint:
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Sensitivity:
+    """Sensitivity of the AUC ratio.
+
+    One-at-a-time (tornado) and variance-based (Sobol') indices, the ratio against fm and the
+    boundary crossings.
+    """
+
     point_total: float
     bars: tuple[TornadoBar, ...]
     curves: tuple[FmCurve, ...]
