@@ -29,6 +29,7 @@ import re
 import tomllib
 from collections.abc import Callable, Iterable, Iterator, Mapping
 from dataclasses import dataclass
+from pathlib import Path
 from typing import Any, Final
 
 import numpy as np
@@ -58,11 +59,14 @@ __all__ = [
     "RowProblem",
     "VictimTable",
     "evaluate_pairs",
+    "load_perpetrators",
+    "load_victims",
     "loads_perpetrators",
     "loads_victims",
     "pair_ratios",
     "pair_scenario",
     "ranking",
+    "read_table",
     "result_rows",
 ]
 
@@ -777,6 +781,35 @@ def loads_victims(
         skipped=tuple(problems),
         source=source,
     )
+
+
+def read_table(path: str | Path) -> str | bytes:
+    """A batch table file as :func:`loads_perpetrators` / :func:`loads_victims` take it.
+
+    The bytes of an ``.xlsx`` workbook, else the UTF-8 text of a CSV or TOML file.
+
+    Raises
+    ------
+    InputError
+        The file cannot be read (naming it and why).
+    """
+    target = Path(path)
+    try:
+        if target.suffix.lower() == ".xlsx":
+            return target.read_bytes()
+        return target.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise InputError("table", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+
+
+def load_perpetrators(path: str | Path, rules: RuleSet | str | None = None, **options: Any) -> PerpetratorTable:
+    """:func:`loads_perpetrators` of a CSV, TOML or .xlsx file (``options``: ``on_error``, ``sheet``, ``fmt_name``)."""
+    return loads_perpetrators(read_table(path), rules, source=str(path), **options)
+
+
+def load_victims(path: str | Path, **options: Any) -> VictimTable:
+    """:func:`loads_victims` of a CSV, TOML or .xlsx file (``options``: ``on_error``, ``sheet``, ``fmt_name``)."""
+    return loads_victims(read_table(path), source=str(path), **options)
 
 
 def pair_scenario(perpetrators: PerpetratorTable, victims: VictimTable, i: int, j: int, rules: str | None = None) -> Scenario:

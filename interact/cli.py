@@ -332,16 +332,6 @@ def _progress_bar(label: str, stream=None):  # type: ignore[no-untyped-def]
     return show
 
 
-def _read_table(path: str, what: str) -> str | bytes:
-    """A batch table: the bytes of an .xlsx workbook, else the text of a CSV or TOML file."""
-    if Path(path).suffix.lower() != ".xlsx":
-        return _read_text(path, what)
-    try:
-        return Path(path).read_bytes()
-    except OSError as exc:
-        raise InputError(what, path, f"could not be read ({exc.strerror})") from None
-
-
 def _out_bytes(data: bytes, path: str) -> None:
     from .scenario import write_text_atomic
 
@@ -387,7 +377,7 @@ def _write_streamed(path: str | None, write) -> int:  # type: ignore[no-untyped-
 def _cmd_screen_batch(args: argparse.Namespace) -> int:
     import time
 
-    from .batch import evaluate_pairs, loads_perpetrators, loads_victims
+    from .batch import evaluate_pairs, load_perpetrators, load_victims
     from .report.batch import write_results
     from .tables import load_rules
 
@@ -395,12 +385,8 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
     rules = load_rules(args.rules)
     if args.top is not None and args.top < 1:
         raise InputError("--top", args.top, "is not a whole number of at least 1")
-    perps = loads_perpetrators(
-        _read_table(args.perpetrators, "perpetrators"), rules, source=args.perpetrators, on_error=args.on_error, sheet=args.sheet
-    )
-    victims = loads_victims(
-        _read_table(args.victims, "victims"), source=args.victims, on_error=args.on_error, sheet=args.victim_sheet or args.sheet
-    )
+    perps = load_perpetrators(args.perpetrators, rules, on_error=args.on_error, sheet=args.sheet)
+    victims = load_victims(args.victims, on_error=args.on_error, sheet=args.victim_sheet or args.sheet)
     for problem in (*perps.skipped, *victims.skipped):
         sys.stderr.write(f"interact: skipped {problem}\n")
     n = len(perps.rows) * len(victims.rows)

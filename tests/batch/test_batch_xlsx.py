@@ -137,3 +137,15 @@ def test_xlsx_to_standard_output_is_a_workbook(tmp_path: Path) -> None:
     book = load_workbook(io.BytesIO(done.stdout), read_only=True)
     assert book.sheetnames == ["results", "inputs", "cautions"]
     book.close()
+
+
+def test_path_loaders_read_csv_and_xlsx_alike(tmp_path: Path) -> None:
+    from interact.batch import load_perpetrators, load_victims
+
+    book = _workbook(tmp_path)
+    a = evaluate_pairs(load_perpetrators(PERPS), load_victims(VICTIMS))
+    b = evaluate_pairs(load_perpetrators(book), load_victims(book, sheet="objects"))
+    np.testing.assert_allclose(b.total, a.total, rtol=1e-12)
+    assert load_perpetrators(book).source == str(book)
+    with pytest.raises(InputError, match="could not be read"):
+        load_victims(tmp_path / "missing.csv")
