@@ -803,6 +803,7 @@ def _cmd_fit_ic50(args: argparse.Namespace, path: Path, today: str, fu_inc: floa
         level=args.level,
         response_unit=data.response_unit,
         source=data.source,
+        warn=False,
     )
     ki = None
     if args.mechanism and not result.no_decline:

@@ -26,7 +26,7 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
-from ..errors import FitError, InputError
+from ..errors import FitError, FitWarning, InputError, emit_warnings
 from ..scenario import MECHANISMS
 from .conversion import CHENG_PRUSOFF_SOURCE, ki_from_ic50
 from .engine import CurveModel, FitResult, extra_sum_of_squares, fit_curve
@@ -189,6 +189,7 @@ def fit_ic50(
     level: float = 0.95,
     response_unit: str = "",
     source: str = "",
+    warn: bool = True,
 ) -> IC50Fit:
     """Fit the 4PL (``bottom=None``) or 3PL (``bottom`` fixed, e.g. 0) curve to activity vs inhibitor.
 
@@ -200,6 +201,9 @@ def fit_ic50(
         Activity in any unit (velocity, % of control).
     bottom
         Fixed bottom plateau for the 3-parameter model; ``None`` fits it.
+    warn
+        Also emit each warning of the fit through Python's ``warnings`` as an
+        ``interact.errors.FitWarning`` (the shells pass False and print them).
 
     Raises
     ------
@@ -229,7 +233,7 @@ def fit_ic50(
     alt[0] = 3.0
     ic50_index = len(start) - 1
     fit = fit_curve(model, x, y, [start, tuple(alt)], weights=weights, profile=(ic50_index,), level=level)
-    return IC50Fit(
+    result = IC50Fit(
         fit=fit,
         bottom_fixed=bottom,
         concentration_um=tuple(float(v) for v in x),
@@ -237,6 +241,9 @@ def fit_ic50(
         response_unit=response_unit,
         source=source,
     )
+    if warn:
+        emit_warnings(((FitWarning, w) for w in result.warnings), stacklevel=3)
+    return result
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)

@@ -146,3 +146,22 @@ def test_time_course_warnings_are_emitted_under_their_topics() -> None:
         warnings.simplefilter("always")
         simulate(a, days=10, warn=False)
     assert quiet == []
+
+
+def test_ic50_fit_warnings_are_fit_warnings() -> None:
+    import numpy as np
+
+    from interact.errors import FitWarning
+    from interact.kinetics.ic50 import fit_ic50
+
+    x = np.array([0.1, 0.3, 1.0, 3.0, 10.0])
+    flat = np.array([100.0, 99.0, 98.0, 97.0, 96.0])  # barely declining: a test input the fit refuses to call a curve
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        result = fit_ic50(x, flat)
+    assert result.warnings and [str(w.message) for w in caught if w.category is FitWarning] == list(result.warnings)
+    assert all(w.filename == __file__ for w in caught)
+    with warnings.catch_warnings(record=True) as quiet:
+        warnings.simplefilter("always")
+        fit_ic50(x, flat, warn=False)
+    assert quiet == []
