@@ -23,15 +23,38 @@ if TYPE_CHECKING:
 __all__ = ["main"]
 
 FORMATS = ("text", "json", "markdown")
+FORCE_HELP = "replace a read-only output file (it stays read-only); without it a read-only file is left unchanged"
 
 
-def _out(text: str, path: str | None = None) -> None:
+def _out(text: str, path: str | None = None, args: argparse.Namespace | None = None) -> None:
     if path:
-        from .scenario import write_text_atomic
+        from .files import write_file
 
-        write_text_atomic(Path(path), text)
+        write_file(path, text, field="--output", inputs=_inputs(args), force=bool(getattr(args, "force", False)))
     else:
         sys.stdout.write(text)
+
+
+#: the arguments that name files a command reads; no output of the same run may overwrite one of them
+_INPUT_ARGS = ("scenario", "data", "perpetrators", "victims", "spec", "rules", "into")
+
+
+def _inputs(args: argparse.Namespace | None) -> tuple[str | None, ...]:
+    return tuple(getattr(args, name, None) for name in _INPUT_ARGS) if args is not None else ()
+
+
+def _check_outputs(args: argparse.Namespace) -> None:
+    """Refuse, before any work, an output path the writer would refuse (an input, a folder, a device, read-only)."""
+    from .files import check_target
+
+    force = bool(getattr(args, "force", False))
+    output, plot, into = (getattr(args, name, None) for name in ("output", "plot", "into"))
+    if output:
+        check_target(output, field="--output", inputs=_inputs(args), force=force)
+    if plot:
+        check_target(plot, field="--plot", inputs=(*_inputs(args), output), force=force)
+    if into:
+        check_target(into, field="--into", inputs=(getattr(args, "data", None), output, plot), force=force)
 
 
 def _cmd_assess(args: argparse.Namespace) -> int:
@@ -42,7 +65,7 @@ def _cmd_assess(args: argparse.Namespace) -> int:
     path = demo_path() if args.command == "demo" else Path(args.scenario)
     result = assess(load_scenario(path), rules=args.rules)
     course, note = _assess_time_course(result, args)
-    _out(format_assessment(result, args.format, width=args.width, time_course=course, time_course_note=note), args.output)
+    _out(format_assessment(result, args.format, width=args.width, time_course=course, time_course_note=note), args.output, args)
     return 0
 
 
@@ -66,8 +89,9 @@ def _assess_time_course(result, args: argparse.Namespace):  # type: ignore[no-un
 def _cmd_timecourse(args: argparse.Namespace) -> int:
     from .assessment import assess
     from .dynamic import simulate
+    from .files import write_file
     from .report.timecourse import format_timecourse, timecourse_svg
-    from .scenario import load_scenario, write_text_atomic
+    from .scenario import load_scenario
 
     result = assess(load_scenario(Path(args.scenario)), rules=args.rules)
     course = simulate(
@@ -78,8 +102,14 @@ def _cmd_timecourse(args: argparse.Namespace) -> int:
         effect_fraction=args.fraction,
     )
     if args.plot:
-        write_text_atomic(Path(args.plot), timecourse_svg(course, title=result.scenario.title))
-    _out(format_timecourse(course, result, args.format, width=args.width), args.output)
+        write_file(
+            args.plot,
+            timecourse_svg(course, title=result.scenario.title),
+            field="--plot",
+            inputs=(*_inputs(args), args.output),
+            force=args.force,
+        )
+    _out(format_timecourse(course, result, args.format, width=args.width), args.output, args)
     return 0
 
 
@@ -87,9 +117,9 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
     """Fit time-dependent inhibition (kinact, KI) or induction (Emax, EC50) data; optionally carry them into a scenario."""
     import datetime
 
+    from .files import write_file
     from .kinetics.carry import carry_constants_text, parse_fold_change_csv, parse_preincubation_csv
     from .report.mechanism_fits import format_mechanism_fit
-    from .scenario import write_text_atomic
 
     path = Path(args.data)
     try:
@@ -122,7 +152,7 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
         ok = result.success and result.ec50.value > 0
         values = {"emax": float(f"{result.emax.value:.6g}"), "ec50": f"{result.ec50.value * fu:.6g} uM"}  # type: ignore[union-attr]
         what = "Emax model" + (" with Hill slope" if args.hill else "")
-    _out(format_mechanism_fit(result, path.name, args.format, width=args.width), args.output)
+    _out(format_mechanism_fit(result, path.name, args.format, width=args.width), args.output, args)
     if args.into:
         if not args.target:
             raise InputError("--target", None, "is needed with --into: the enzyme, e.g. --target CYP3A")
@@ -141,7 +171,7 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
             ) from None
         origin = f"{what} fit of {path.name}" + (f", x fu,inc {fu:g}" if args.fu_inc is not None else "") + f", {today}"
         new = carry_constants_text(scenario_text, target=args.target, values=values, origin=origin, source=str(target))
-        write_text_atomic(target, new)
+        write_file(target, new, field="--into", inputs=(args.data, args.output), force=args.force)
         shown = ", ".join(f"{k} = {v}" for k, v in values.items())
         sys.stderr.write(f"interact: {target} updated: {args.target} {shown}; origin recorded\n")
         if args.fu_inc is None:
@@ -230,7 +260,7 @@ def _cmd_uncertainty(args: argparse.Namespace) -> int:
     if args.list_inputs:
         model = ScenarioModel(result)
         lines = [f"{i.path}  {fmt(i.value, 4)} {i.unit}  ({i.label})".replace("  ()", "") for i in model.inputs(relevant_only=True)]
-        _out("\n".join(lines) + "\n", args.output)
+        _out("\n".join(lines) + "\n", args.output, args)
         return 0
     spec, vary = _uncertainty_spec(args)
     samples = args.samples if args.samples is not None else (spec.samples or 10_000)
@@ -238,7 +268,7 @@ def _cmd_uncertainty(args: argparse.Namespace) -> int:
     method = args.method or spec.method or "lhs"
     spread = run_uncertainty(result, vary, samples=samples, seed=seed, method=method)
     sens = sensitivity(result, vary)
-    _out(format_uncertainty(spread, sens, args.format, title=result.scenario.title, width=args.width), args.output)
+    _out(format_uncertainty(spread, sens, args.format, title=result.scenario.title, width=args.width), args.output, args)
     return 0
 
 
@@ -265,32 +295,14 @@ def _read_text(path: str, what: str) -> str:
         raise InputError(what, path, f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
 
 
-def _write_streamed(path: str | None, write) -> int:  # type: ignore[no-untyped-def]
-    """Call ``write(handle)``: to standard output, or to a temporary file renamed over ``path`` when complete."""
-    import os
-    import tempfile
+def _write_streamed(args: argparse.Namespace, write) -> int:  # type: ignore[no-untyped-def]
+    """Call ``write(handle)``: to standard output, or through the one writer to ``args.output``."""
+    from .files import open_output
 
-    if not path:
+    if not args.output:
         return int(write(sys.stdout))
-    target = Path(path)
-    try:
-        handle, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=target.resolve().parent)
-    except OSError as exc:
-        raise InputError("--output", path, f"cannot be written ({exc.strerror})") from None
-    try:
-        with os.fdopen(handle, "w", encoding="utf-8", newline="") as out:
-            count = int(write(out))
-        if target.exists():
-            os.chmod(tmp, target.stat().st_mode & 0o777)
-        else:  # a new file gets the usual permissions (mkstemp makes it private)
-            mask = os.umask(0)
-            os.umask(mask)
-            os.chmod(tmp, 0o666 & ~mask)
-        os.replace(tmp, target)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
-    return count
+    with open_output(args.output, field="--output", inputs=_inputs(args), force=args.force) as out:
+        return int(write(out))
 
 
 def _cmd_screen_batch(args: argparse.Namespace) -> int:
@@ -313,7 +325,7 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
     fmt_name = args.format or {".json": "json", ".md": "markdown", ".markdown": "markdown"}.get(
         Path(args.output or "").suffix.lower(), "csv"
     )
-    rows = _write_streamed(args.output, lambda h: write_results(result, h, fmt_name, top=args.top))
+    rows = _write_streamed(args, lambda h: write_results(result, h, fmt_name, top=args.top))
     if args.output and not args.quiet:
         skipped = len(perps.skipped) + len(victims.skipped)
         sys.stderr.write(
@@ -360,7 +372,7 @@ def _cmd_report(args: argparse.Namespace) -> int:
     suffix = Path(args.output or "").suffix.lower()
     fmt_name = args.format or ("markdown" if suffix in (".md", ".markdown") else "html")
     text_out = render_report_markdown(result, parts) if fmt_name == "markdown" else render_report_html(result, parts)
-    _out(text_out, args.output)
+    _out(text_out, args.output, args)
     return 0
 
 
@@ -385,6 +397,7 @@ def _parser() -> argparse.ArgumentParser:
         p.add_argument("--format", choices=FORMATS, default="text", help="output format (default: text)")
         p.add_argument("--width", type=int, default=100, help="text width (default: 100)")
         p.add_argument("-o", "--output", metavar="FILE", help="write to FILE instead of standard output")
+        p.add_argument("--force", action="store_true", help=FORCE_HELP)
 
     p = sub.add_parser("assess", help="assess a scenario file: basic models, AUC ratio, dose suggestion")
     p.add_argument("scenario", metavar="SCENARIO.toml")
@@ -417,6 +430,7 @@ def _parser() -> argparse.ArgumentParser:
         p.add_argument("--format", choices=FORMATS, default="text")
         p.add_argument("--width", type=int, default=100)
         p.add_argument("-o", "--output", metavar="FILE")
+        p.add_argument("--force", action="store_true", help=FORCE_HELP)
         p.add_argument("--into", metavar="SCENARIO.toml", help="write the fitted constants into this scenario (atomically)")
         p.add_argument("--target", metavar="ENZYME", help="the enzyme they belong to (with --into)")
         p.add_argument(
@@ -488,6 +502,7 @@ def _parser() -> argparse.ArgumentParser:
         help="a bad row stops the run (fail, default) or is left out and listed (skip)",
     )
     p.add_argument("--top", type=int, metavar="N", help="write only the N worst pairs")
+    p.add_argument("--force", action="store_true", help=FORCE_HELP)
     p.add_argument("-q", "--quiet", action="store_true", help="no progress bar or summary line")
     p.set_defaults(run=_cmd_screen_batch)
 
@@ -495,6 +510,7 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("scenario", metavar="SCENARIO.toml")
     p.add_argument("-o", "--output", metavar="FILE", help="write to FILE (.html or .md) instead of standard output")
     p.add_argument("--format", choices=("html", "markdown"), help="default: from the file name, else html")
+    p.add_argument("--force", action="store_true", help=FORCE_HELP)
     p.add_argument("--rules", metavar="NAME|PATH", help="rule set (default: the scenario's 'rules' key, else ich-m12-2024)")
     p.add_argument(
         "--vary", action="append", metavar="PATH=SPEC", help="an input's distribution, as for 'interact uncertainty' (repeatable)"
@@ -560,8 +576,8 @@ def _cmd_fit(args: argparse.Namespace) -> int:
     if args.plot:
         from .report.fit_plots import save_figure
 
-        save_figure(diagnostic_plots(comp), args.plot)
-    _out(format_comparison(comp, args.format, width=args.width, unbound=unbound, binding=binding, plots=plots_text), args.output)
+        save_figure(diagnostic_plots(comp), args.plot, inputs=(*_inputs(args), args.output), force=args.force)
+    _out(format_comparison(comp, args.format, width=args.width, unbound=unbound, binding=binding, plots=plots_text), args.output, args)
     if args.plot:
         sys.stderr.write(f"interact: diagnostic plots written to {args.plot}\n")
     if args.into:
@@ -612,8 +628,8 @@ def _fit_binding(args: argparse.Namespace) -> tuple[float | None, str, BindingPr
 
 
 def _write_into(args: argparse.Namespace, ki_um: float, mechanism: str, alpha: float | None, fu_inc: float | None, origin: str) -> None:
+    from .files import write_file
     from .kinetics.scenario_update import update_inhibition_text
-    from .scenario import write_text_atomic
 
     if not args.target:
         raise InputError("--target", None, "is needed with --into: the enzyme the Ki belongs to, e.g. --target CYP3A")
@@ -625,7 +641,7 @@ def _write_into(args: argparse.Namespace, ki_um: float, mechanism: str, alpha: f
     new = update_inhibition_text(
         text, target=args.target, ki_um=ki_um, mechanism=mechanism, origin=origin, alpha=alpha, fu_inc=fu_inc, source=str(target)
     )
-    write_text_atomic(target, new)
+    write_file(target, new, field="--into", inputs=(args.data, args.output, args.plot), force=args.force)
     sys.stderr.write(f"interact: {target} updated: {args.target} ki = {ki_um:.4g} uM ({mechanism}); origin recorded\n")
 
 
@@ -654,7 +670,7 @@ def _cmd_fit_ic50(args: argparse.Namespace, path: Path, today: str, fu_inc: floa
         from .kinetics.binding import unbound_constant
 
         unbound = unbound_constant("Ki", ki.ki_um, ki.low_um, ki.high_um, fu_inc, interval="from the IC50 interval", fu_origin=fu_origin)
-    _out(format_ic50(result, ki, args.format, width=args.width, unbound=unbound), args.output)
+    _out(format_ic50(result, ki, args.format, width=args.width, unbound=unbound), args.output, args)
     if args.into:
         if ki is None:
             raise InputError("--mechanism", None, "is needed with --into for an IC50 curve (the Cheng-Prusoff conversion depends on it)")
@@ -691,6 +707,7 @@ def _add_fit_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[t
     p.add_argument("--format", choices=FORMATS, default="text", help="output format (default: text)")
     p.add_argument("--width", type=int, default=100, help="text width (default: 100)")
     p.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
+    p.add_argument("--force", action="store_true", help=FORCE_HELP)
     p.add_argument("--plot", metavar="FILE", help="write the diagnostic plots (double reciprocal, Dixon, residuals) to FILE.svg/.png/.pdf")
     p.add_argument("--no-terminal-plot", action="store_true", help="leave the double-reciprocal plot out of the text report")
     p.add_argument(
@@ -737,6 +754,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         parser.print_help()
         return 2
     try:
+        _check_outputs(args)
         return int(args.run(args))
     except InteractError as exc:
         text = str(exc)

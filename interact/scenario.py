@@ -14,9 +14,7 @@ when the scenario came from a file, the line it is on.
 from __future__ import annotations
 
 import math
-import os
 import re
-import tempfile
 import tomllib
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass, field, fields
@@ -804,8 +802,11 @@ def dumps_scenario(scenario: Scenario) -> str:
     return _dump_toml(scenario_to_dict(scenario))
 
 
-def save_scenario(scenario: Scenario, path: str | Path) -> None:
-    """Write the scenario to ``path`` atomically (temporary file in the same folder, then rename).
+def save_scenario(scenario: Scenario, path: str | Path, *, force: bool = False) -> None:
+    """Write the scenario to ``path`` through the one writer (:func:`interact.files.write_file`).
+
+    The writer is atomic, writes through a symbolic link and refuses a folder,
+    a device or (unless ``force``) a read-only file.
 
     When ``path`` already holds a TOML scenario, the new values are merged into
     that text, so the user's comments, key order and the way unchanged values
@@ -818,7 +819,7 @@ def save_scenario(scenario: Scenario, path: str | Path) -> None:
             text = merge_scenario_text(target.read_text(encoding="utf-8"), scenario)
         except (OSError, UnicodeDecodeError):
             text = None
-    write_text_atomic(target, text if text is not None else dumps_scenario(scenario))
+    write_text_atomic(target, text if text is not None else dumps_scenario(scenario), force=force)
 
 
 def merge_scenario_text(text: str, scenario: Scenario) -> str | None:
@@ -883,36 +884,11 @@ def _merge_table(node: Any, new: dict[str, Any]) -> None:
                 node[key].comment(comment.lstrip("# "))
 
 
-def write_text_atomic(path: Path, text: str | bytes) -> None:
-    """Write ``text`` (or bytes) to ``path`` so that a reader sees the old file or the new one, never a part."""
-    folder = path.resolve().parent
-    try:
-        handle, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
-    except OSError as exc:
-        raise InputError("path", str(path), f"cannot be written ({exc.strerror})") from None
-    try:
-        if isinstance(text, bytes):
-            with os.fdopen(handle, "wb") as raw:
-                raw.write(text)
-                raw.flush()
-                os.fsync(raw.fileno())
-        else:
-            with os.fdopen(handle, "w", encoding="utf-8", newline="\n") as out:
-                out.write(text)
-                out.flush()
-                os.fsync(out.fileno())
-        os.chmod(tmp, path.stat().st_mode & 0o777 if path.exists() else 0o666 & ~_umask())
-        os.replace(tmp, path)
-    except OSError as exc:
-        Path(tmp).unlink(missing_ok=True)
-        raise InputError("path", str(path), f"cannot be written ({exc.strerror})") from None
+def write_text_atomic(path: Path, text: str | bytes, *, field: str = "path", force: bool = False) -> None:
+    """Write ``text`` (or bytes) to ``path`` through the one writer, :func:`interact.files.write_file`."""
+    from .files import write_file
 
-
-def _umask() -> int:
-    """The process umask (read by setting and restoring it; there is no getter)."""
-    mask = os.umask(0)
-    os.umask(mask)
-    return mask
+    write_file(path, text, field=field, force=force)
 
 
 def _toml_value(value: Any) -> str:
