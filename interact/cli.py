@@ -263,7 +263,7 @@ def _cmd_uncertainty(args: argparse.Namespace) -> int:
         _out("\n".join(lines) + "\n", args.output, args)
         return 0
     spec, vary = _uncertainty_spec(args)
-    samples = args.samples if args.samples is not None else (spec.samples or 10_000)
+    samples = args.samples if args.samples is not None else (spec.samples if spec.samples is not None else 10_000)
     seed = args.seed if args.seed is not None else (spec.seed if spec.seed is not None else 0)
     method = args.method or spec.method or "lhs"
     spread = run_uncertainty(result, vary, samples=samples, seed=seed, method=method)
@@ -357,7 +357,7 @@ def _cmd_report(args: argparse.Namespace) -> int:
         spread = run_uncertainty(
             result,
             vary,
-            samples=args.samples if args.samples is not None else (spec.samples or 10_000),
+            samples=args.samples if args.samples is not None else (spec.samples if spec.samples is not None else 10_000),
             seed=args.seed if args.seed is not None else (spec.seed if spec.seed is not None else 0),
             method=args.method or spec.method or "lhs",
         )

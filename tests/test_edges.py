@@ -1,0 +1,118 @@
+"""Regression tests for the edges of the input paths (issue 11): each reproduction is a named error or a right number.
+
+Scenario values here are invented inputs, not check values; the expected numbers are the model's own algebra
+(1 + [I]/Ki for fm = 1, ICH M12 2024 section 2.1 / Rowland and Matin 1973), stated beside each check.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from pathlib import Path
+
+import pytest
+from conftest import base_dict
+
+from interact import assess
+from interact.batch import check_pair_budget, evaluate_pairs, loads_perpetrators, loads_victims
+from interact.cli import main
+from interact.errors import InputError
+from interact.scenario import scenario_from_dict
+from interact.tables import load_rules
+
+
+def _potent(ki: str, fm: float = 1.0) -> dict:
+    d = base_dict()
+    d["perpetrator"]["inhibits"][0]["ki"] = ki
+    d["victim"]["pathways"][0]["fm"] = fm
+    return d
+
+
+@pytest.mark.parametrize("ki_um", [2e-16, 1e-15, 1e-12, 1e-6])
+def test_fm_one_with_a_very_potent_inhibitor_is_exact(ki_um: float) -> None:
+    """fm = 1: AUCR_h = 1/(a) = 1 + [I]/Ki exactly (the liver term of the mechanistic static model); no cancellation."""
+    result = assess(scenario_from_dict(_potent(f"{ki_um:g} uM")))
+    effect = result.prediction.effects[0]
+    expected = 1.0 / effect.liver.activity
+    assert result.prediction.liver == pytest.approx(expected, rel=1e-12)
+    # and the scaling in Ki is kept: ten times less Ki, about ten times the ratio
+    other = assess(scenario_from_dict(_potent(f"{ki_um / 10:g} uM")))
+    if ki_um < 1e-9:
+        assert other.prediction.liver / result.prediction.liver == pytest.approx(10.0, rel=1e-6)
+
+
+def test_fm_one_uncertainty_prints_numbers_and_valid_json(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    import tomlkit
+
+    scen = tmp_path / "s.toml"
+    scen.write_text(tomlkit.dumps(_potent("2e-16 uM")), encoding="utf-8")
+    for vary in ("perpetrator.inhibits[0].ki=cv:30%", "victim.pathways[0].fm=uniform:0.9,1"):
+        assert main(["uncertainty", str(scen), "--vary", vary, "--samples", "300"]) == 0
+        text = capsys.readouterr().out
+        assert "not a number" not in text and "nan" not in text.lower().split()
+        assert main(["uncertainty", str(scen), "--vary", vary, "--samples", "300", "--format", "json"]) == 0
+        data = json.loads(capsys.readouterr().out)
+        assert math.isfinite(data["point_auc_ratio"])
+
+
+@pytest.mark.parametrize("spec", ["ci:1e-29 uM,1e29 uM", "ci:1e-6 uM,1e6 uM"])
+def test_wide_ci_bounds_are_a_named_error(tmp_path: Path, spec: str, capsys: pytest.CaptureFixture[str]) -> None:
+    import tomlkit
+
+    scen = tmp_path / "s.toml"
+    scen.write_text(tomlkit.dumps(base_dict()), encoding="utf-8")
+    assert main(["uncertainty", str(scen), "--vary", f"perpetrator.cmax={spec}", "--samples", "100"]) == 2
+    err = capsys.readouterr().err
+    assert "perpetrator.cmax" in err and "spans a factor" in err and "Traceback" not in err
+
+
+def test_samples_zero_in_a_spec_is_an_error(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    import tomlkit
+
+    scen = tmp_path / "s.toml"
+    scen.write_text(tomlkit.dumps(base_dict()), encoding="utf-8")
+    spec = tmp_path / "spec.toml"
+    spec.write_text('[vary]\n"victim.fg" = "uniform:0.3,0.6"\n[sampling]\nsamples = 0\n', encoding="utf-8")
+    assert main(["uncertainty", str(scen), "--spec", str(spec)]) == 2
+    assert "sampling.samples" in capsys.readouterr().err
+
+
+P_HEAD = "name,dose (mg),molar mass (g/mol),cmax (ng/mL),fu_p,route,ki CYP3A (uM)\n"
+V_TABLE = "name,dose (mg),interval (h),fg,fm CYP3A\nV,10,24,0.5,1\nW,10,24,0.5,0.5\n"
+
+
+def test_batch_with_fm_one_and_potent_inhibitors_fills_every_ratio() -> None:
+    rules = load_rules(None)
+    perps = loads_perpetrators(P_HEAD + "A,100,400,400,0.1,oral,2e-16\nC,100,400,400,0.1,oral,1e-29\n", rules)
+    victims = loads_victims(V_TABLE)
+    result = evaluate_pairs(perps, victims, rules)
+    assert all(math.isfinite(x) for x in result.total.ravel())
+    # each pair equals assess() of the same pair (batch's stated contract), here at the fm = 1 edge
+    from interact.batch import pair_scenario
+
+    for i in range(2):
+        point = assess(pair_scenario(perps, victims, i, 0), rules=rules)
+        assert result.total[i, 0] == pytest.approx(point.prediction.total, rel=1e-12)
+
+
+def test_batch_beyond_memory_is_refused_before_starting(monkeypatch: pytest.MonkeyPatch) -> None:
+    with pytest.raises(InputError) as info:
+        check_pair_budget(100_000, 100_000)  # 1e10 pairs: MemoryError before issue 11
+    assert info.value.field == "pairs" and "GiB" in str(info.value)
+    import interact.batch as batch
+
+    monkeypatch.setattr(batch, "_free_memory_bytes", lambda: 100)
+    rules = load_rules(None)
+    perps = loads_perpetrators(P_HEAD + "A,100,400,400,0.1,oral,1\n", rules)
+    with pytest.raises(InputError, match="pairs"):
+        evaluate_pairs(perps, loads_victims(V_TABLE), rules)
+
+
+def test_skip_with_every_row_bad_shows_the_reasons(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    perps = tmp_path / "p.csv"
+    perps.write_text(P_HEAD + "A,100,400,x,0.1,oral,1\nB,100,400,400,7,oral,1\n", encoding="utf-8")
+    victims = tmp_path / "v.csv"
+    victims.write_text(V_TABLE, encoding="utf-8")
+    assert main(["screen-batch", str(perps), str(victims), "--on-error", "skip"]) == 2
+    err = capsys.readouterr().err
+    assert "line 2" in err and "cmax" in err and "line 3" in err and "fu_p" in err
