@@ -189,6 +189,16 @@ def _days_arg(text: str) -> float:
     return value
 
 
+def _width_arg(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number of characters") from None
+    if not 40 <= value <= 1000:
+        raise argparse.ArgumentTypeError(f"{text!r} is outside 40 to 1000 characters")
+    return value
+
+
 def _fraction_arg(text: str) -> float:
     try:
         value = float(text)
@@ -395,7 +405,7 @@ def _parser() -> argparse.ArgumentParser:
             help="rule set by name (see 'interact tables') or a TOML file; default: the scenario's 'rules' key, else ich-m12-2024",
         )
         p.add_argument("--format", choices=FORMATS, default="text", help="output format (default: text)")
-        p.add_argument("--width", type=int, default=100, help="text width (default: 100)")
+        p.add_argument("--width", type=_width_arg, default=100, help="text width, 40 to 1000 (default: 100)")
         p.add_argument("-o", "--output", metavar="FILE", help="write to FILE instead of standard output")
         p.add_argument("--force", action="store_true", help=FORCE_HELP)
 
@@ -428,7 +438,7 @@ def _parser() -> argparse.ArgumentParser:
         p = sub.add_parser(name, help=text)
         p.add_argument("data", metavar="DATA.csv")
         p.add_argument("--format", choices=FORMATS, default="text")
-        p.add_argument("--width", type=int, default=100)
+        p.add_argument("--width", type=_width_arg, default=100, help="text width, 40 to 1000 (default: 100)")
         p.add_argument("-o", "--output", metavar="FILE")
         p.add_argument("--force", action="store_true", help=FORCE_HELP)
         p.add_argument("--into", metavar="SCENARIO.toml", help="write the fitted constants into this scenario (atomically)")
@@ -705,7 +715,7 @@ def _add_fit_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[t
     p.add_argument("--weights", choices=("none", "1/y", "1/y2", "poisson"), default="none", help="weighting (default: none)")
     p.add_argument("--level", type=float, default=0.95, help="confidence level (default 0.95)")
     p.add_argument("--format", choices=FORMATS, default="text", help="output format (default: text)")
-    p.add_argument("--width", type=int, default=100, help="text width (default: 100)")
+    p.add_argument("--width", type=_width_arg, default=100, help="text width, 40 to 1000 (default: 100)")
     p.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
     p.add_argument("--force", action="store_true", help=FORCE_HELP)
     p.add_argument("--plot", metavar="FILE", help="write the diagnostic plots (double reciprocal, Dixon, residuals) to FILE.svg/.png/.pdf")

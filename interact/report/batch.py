@@ -9,6 +9,7 @@ from typing import Any, TextIO
 from ..batch import OUTPUT_COLUMNS, BatchResult, result_rows
 from ..cautions import CAUTION_LINE
 from ..errors import InputError
+from .document import md_escape
 from .numbers import fmt
 
 __all__ = ["BATCH_FORMATS", "write_results"]
@@ -17,7 +18,7 @@ BATCH_FORMATS = ("csv", "json", "markdown")
 
 
 def _md(text: str) -> str:
-    return text.replace("|", "\\|").replace("\n", " ")
+    return md_escape(text)
 
 
 def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *, top: int | None = None) -> int:
@@ -57,7 +58,7 @@ def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *,
             count += 1
         handle.write("\n ]\n}\n")
     elif fmt_name == "markdown":
-        handle.write(f"# interact batch screen ({result.rules.id})\n\n> **Caution:** {CAUTION_LINE}\n\n")
+        handle.write(f"# interact batch screen ({_md(result.rules.id)})\n\n> **Caution:** {CAUTION_LINE}\n\n")
         handle.write(
             f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
             "worst first (largest |log AUCR|).\n\n"
