@@ -27,7 +27,6 @@ import io
 import math
 import os
 import re
-import tomllib
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass
 from typing import Any, Final
@@ -40,6 +39,7 @@ from .arrays import ACTIONS, band_codes, band_labels, dose_action_codes_by_victi
 from .constants import resolve_constants
 from .errors import InputError, InteractError, Problem, ScenarioError
 from .exposure import resolve_exposure, resolve_settings
+from .files import loads_toml
 from .prediction import gut_ratio, reversible_term
 from .scenario import Perpetrator, Scenario, Victim, scenario_from_dict
 from .screening import screen
@@ -267,10 +267,7 @@ def _rows_csv(text: str) -> tuple[list[str], list[tuple[int, list[str]]]]:
 
 
 def _rows_toml(text: str, side: str, source: str) -> tuple[list[str], list[tuple[int, dict[str, Any]]]]:
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
+    data = loads_toml(text, source)
     entries = data.get(side)
     if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
         raise InputError(source, side, f"has no [[{side}]] entries; expected one [[{side}]] table per row")

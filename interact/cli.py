@@ -16,6 +16,7 @@ from typing import TYPE_CHECKING, Any
 
 from . import __version__
 from .errors import InputError, InteractError
+from .files import read_text
 
 if TYPE_CHECKING:
     from .kinetics.binding import BindingPrediction
@@ -122,10 +123,7 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
     from .report.mechanism_fits import format_mechanism_fit
 
     path = Path(args.data)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError("data", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+    text = read_text(path, "data")
     if args.fu_inc is not None and not 0 < args.fu_inc <= 1:
         raise InputError("--fu-inc", args.fu_inc, "is not in (0, 1]")
     fu = 1.0 if args.fu_inc is None else args.fu_inc
@@ -245,13 +243,7 @@ def _uncertainty_spec(args: argparse.Namespace):  # type: ignore[no-untyped-def]
     spec = UncertaintySpec()
     if getattr(args, "spec", None):
         path = Path(args.spec)
-        try:
-            text = path.read_text(encoding="utf-8")
-        except (OSError, UnicodeDecodeError) as exc:
-            raise InputError(
-                "--spec", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})"
-            ) from None
-        spec = loads_spec(text, source=str(path))
+        spec = loads_spec(read_text(path, "--spec"), source=str(path))
     vary = dict(spec.vary)
     for item in getattr(args, "vary", None) or []:
         path_, dist = parse_vary(item)
@@ -299,10 +291,7 @@ def _progress_bar(label: str):  # type: ignore[no-untyped-def]
 
 
 def _read_text(path: str, what: str) -> str:
-    try:
-        return Path(path).read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(what, path, f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+    return read_text(path, what)
 
 
 def _write_streamed(args: argparse.Namespace, write) -> int:  # type: ignore[no-untyped-def]
@@ -357,10 +346,10 @@ def _cmd_report(args: argparse.Namespace) -> int:
     path = Path(args.scenario)
     try:
         raw = path.read_bytes()
-        text = raw.decode("utf-8")
+        text = raw.decode("utf-8-sig")
     except (OSError, UnicodeDecodeError) as exc:
         raise InputError("scenario", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
-    result = assess(loads_scenario(text, source=str(path)), rules=args.rules)
+    result = assess(loads_scenario(text, source=str(path), folder=path.absolute().parent), rules=args.rules)
     spec, vary = _uncertainty_spec(args)
     spread = None
     if vary:

@@ -1,4 +1,8 @@
-"""The one writer: every file interact writes goes through :func:`write_file` or :func:`open_output`.
+"""Files in and out: every file interact writes goes through :func:`write_file` or :func:`open_output`, and
+user files are read with :func:`read_text` and :func:`loads_toml`.
+
+Reading: UTF-8 with or without a byte-order mark (spreadsheet programs add one); TOML that nests too
+deeply or holds an integer too long to convert is a named error, never a traceback.
 
 What it guarantees, for any target path:
 
@@ -33,7 +37,56 @@ from typing import IO, Any
 
 from .errors import InputError
 
-__all__ = ["check_target", "open_output", "write_file"]
+__all__ = ["check_target", "loads_toml", "open_output", "read_text", "write_file"]
+
+#: the deepest nesting of tables and arrays accepted in a TOML file (scenarios need 4)
+MAX_TOML_DEPTH = 32
+
+
+def read_text(path: str | Path, field: str) -> str:
+    """The text of a user's file (UTF-8; a leading byte-order mark is dropped); unreadable: an error naming ``field``."""
+    try:
+        return Path(path).read_text(encoding="utf-8-sig")
+    except UnicodeDecodeError as exc:
+        raise InputError(field, str(path), f"is not UTF-8 text (byte {exc.start}); save it as UTF-8") from None
+    except (OSError, ValueError) as exc:
+        raise InputError(field, str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+
+
+def loads_toml(text: str, source: str) -> dict[str, Any]:
+    """Parse TOML text (a leading byte-order mark is dropped); any failure is an error naming ``source``."""
+    import tomllib
+
+    text = text.removeprefix("\ufeff")
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
+    except RecursionError:
+        raise InputError(source, "TOML", f"nests tables or arrays too deeply; expected at most {MAX_TOML_DEPTH} levels") from None
+    except ValueError as exc:  # an integer beyond Python's conversion limit (4,300 digits)
+        raise InputError(source, "TOML", f"holds a number that cannot be read ({str(exc).split(':')[0]})") from None
+    depth = _depth(data)
+    if depth > MAX_TOML_DEPTH:
+        raise InputError(source, "TOML", f"nests tables or arrays {depth} levels deep; expected at most {MAX_TOML_DEPTH}")
+    return data
+
+
+def _depth(value: object) -> int:
+    """Nesting depth of parsed TOML, without recursion (a deep file must not exhaust the stack here either)."""
+    deepest = 0
+    stack: list[tuple[object, int]] = [(value, 0)]
+    while stack:
+        item, level = stack.pop()
+        deepest = max(deepest, level)
+        if deepest > MAX_TOML_DEPTH:
+            return deepest
+        if isinstance(item, dict):
+            stack.extend((v, level + 1) for v in item.values())
+        elif isinstance(item, list):
+            stack.extend((v, level + 1) for v in item)
+    return deepest
+
 
 _KINDS = (
     (stat.S_ISDIR, "a folder"),

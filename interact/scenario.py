@@ -15,9 +15,8 @@ from __future__ import annotations
 
 import math
 import re
-import tomllib
 from collections.abc import Callable, Iterator
-from dataclasses import dataclass, field, fields
+from dataclasses import dataclass, field, fields, replace
 from pathlib import Path
 from typing import Any, Final, TypeVar
 
@@ -167,6 +166,10 @@ class Turnover:
     kdeg_gut: Q | None = None
 
 
+#: the accepted blood-to-plasma ratio: from well below 1 - haematocrit (about 0.55) to far above any drug's
+BLOOD_PLASMA_RANGE: Final = (0.2, 100.0)
+
+
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Scenario:
     """A perpetrator-victim pair and everything needed to assess it."""
@@ -179,6 +182,8 @@ class Scenario:
     physiology: Physiology = field(default_factory=Physiology)
     turnover: tuple[Turnover, ...] = ()
     notes: str = ""
+    #: the folder of the file it was read from: a relative ``rules`` path is read from there (not saved; not compared)
+    folder: str | None = field(default=None, compare=False, repr=False)
 
 
 # --------------------------------------------------------------------------- loading
@@ -199,22 +204,19 @@ def load_scenario(path: str | Path) -> Scenario:
     ScenarioError
         The TOML is readable but has problems; all are listed with key paths and lines.
     """
+    from .files import read_text
+
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        reason = getattr(exc, "strerror", None) or exc.__class__.__name__
-        raise InputError("scenario", str(path), f"could not be read ({reason})") from None
-    return loads_scenario(text, source=str(path))
+    return loads_scenario(read_text(path, "scenario"), source=str(path), folder=path.absolute().parent)
 
 
-def loads_scenario(text: str, *, source: str = "scenario") -> Scenario:
-    """Parse and validate scenario TOML text."""
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
-    return scenario_from_dict(data, source=source, text=text)
+def loads_scenario(text: str, *, source: str = "scenario", folder: str | Path | None = None) -> Scenario:
+    """Parse and validate scenario TOML text; ``folder`` (where the file lies) anchors a relative ``rules`` path."""
+    from .files import loads_toml
+
+    text = text.removeprefix("\ufeff")
+    scenario = scenario_from_dict(loads_toml(text, source), source=source, text=text)
+    return scenario if folder is None else replace(scenario, folder=str(folder))
 
 
 def scenario_from_dict(data: object, *, source: str = "scenario", text: str | None = None) -> Scenario:
@@ -487,7 +489,8 @@ class _Reader:
             self.fail(f"{path}.route", f'"{route[:40]}" is not one of {", ".join(ROUTES)}')
         interval = self.quantity(data, "interval", path, "time")
         measured = self.flag(data, "fu_plasma_measured", path)
-        rb = self.number(data, "blood_plasma_ratio", path, low=0.0, high=100.0)
+        # at least 0.2: a drug kept out of red cells has Rb = 1 - haematocrit, about 0.55 (common practice)
+        rb = self.number(data, "blood_plasma_ratio", path, low=BLOOD_PLASMA_RANGE[0], high=BLOOD_PLASMA_RANGE[1], low_open=False)
         fa_fg = self.fraction(data, "fa_fg", path)
         fa = self.fraction(data, "fa", path)
         ka = self.quantity(data, "ka", path, "rate")

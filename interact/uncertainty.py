@@ -36,7 +36,6 @@ from __future__ import annotations
 
 import math
 import re
-import tomllib
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any, Final
@@ -583,10 +582,9 @@ def parse_vary(text: str) -> tuple[str, str]:
 
 def loads_spec(text: str, *, source: str = "uncertainty file") -> UncertaintySpec:
     """Read a sidecar TOML: ``[vary]`` with ``"PATH" = "SPEC"`` and optional ``[sampling]``."""
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
+    from .files import loads_toml
+
+    data = loads_toml(text, source)
     unknown = set(data) - {"vary", "sampling", "title", "notes"}
     if unknown:
         raise InputError(f"{source}: {sorted(unknown)[0]}", sorted(unknown)[0], "is not a known table; expected [vary] and [sampling]")

@@ -116,3 +116,132 @@ def test_skip_with_every_row_bad_shows_the_reasons(tmp_path: Path, capsys: pytes
     assert main(["screen-batch", str(perps), str(victims), "--on-error", "skip"]) == 2
     err = capsys.readouterr().err
     assert "line 2" in err and "cmax" in err and "line 3" in err and "fu_p" in err
+
+
+# -- rule-set files (issue 11, item 4) ------------------------------------------------------------------------------
+
+ICH = Path(__file__).resolve().parents[1] / "reference_tables" / "rules" / "ich-m12-2024.toml"
+
+
+def _rules_with(tmp_path: Path, *edits: tuple[str, str], name: str = "rules.toml") -> Path:
+    text = ICH.read_text(encoding="utf-8")
+    for old, new in edits:
+        assert old in text, old
+        text = text.replace(old, new, 1)
+    path = tmp_path / name
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+@pytest.mark.parametrize(
+    ("old", "new", "field"),
+    [
+        ("cutoff = { value = 1.02,", "cutoff = { value = nan,", "criteria[0].cutoff.value"),
+        ("cutoff = { value = 1.02,", "cutoff = { value = -1,", "criteria[0].cutoff.value"),
+        ("cutoff = { value = 1.02,", "cutoff = { value = [1, 2],", "criteria[0].cutoff.value"),
+        ("[fu_plasma_floor]\nvalue = 0.01", "[fu_plasma_floor]\nvalue = 2", "fu_plasma_floor.value"),
+        ("[aucr_inhibition_cutoff]\nvalue = 1.25", "[aucr_inhibition_cutoff]\nvalue = inf", "aucr_inhibition_cutoff.value"),
+        ("[aucr_induction_cutoff]\nvalue = 0.8", '[aucr_induction_cutoff]\nvalue = "0.8"', "aucr_induction_cutoff.value"),
+        (
+            'table_version = "2026.12"',
+            'table_version = "2026.12"\n[physiology.fu_gut]\nvalue = -0.5\nsource = "x"\nstatus = "from memory"',
+            "physiology.fu_gut.value",
+        ),
+        ("oral_only = true", 'oral_only = "yes"', "criteria[1].oral_only"),
+    ],
+)
+def test_rule_set_values_are_validated(tmp_path: Path, old: str, new: str, field: str) -> None:
+    path = _rules_with(tmp_path, (old, new))
+    with pytest.raises(InputError) as info:
+        load_rules(path)
+    assert field in str(info.value) and "line " in str(info.value)
+
+
+def test_rule_set_problems_are_listed_all_at_once(tmp_path: Path) -> None:
+    from interact.errors import ScenarioError
+
+    path = _rules_with(
+        tmp_path,
+        ("cutoff = { value = 1.02,", "cutoff = { value = nan,"),
+        ("[fu_plasma_floor]\nvalue = 0.01", "[fu_plasma_floor]\nvalue = 2"),
+        ("[aucr_induction_cutoff]\nvalue = 0.8", "[aucr_induction_cutoff]\nvalue = -3"),
+    )
+    with pytest.raises(ScenarioError) as info:
+        load_rules(path)
+    fields = {p.field for p in info.value.problems}
+    assert {"criteria[0].cutoff.value", "fu_plasma_floor.value", "aucr_induction_cutoff.value"} <= fields
+    assert all(p.line for p in info.value.problems)
+
+
+def test_a_nan_cutoff_cannot_reach_the_outputs(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    """Before issue 11 a nan cutoff crashed the JSON and read "below cutoff" in text; now the run stops first."""
+    rules = _rules_with(tmp_path, ("cutoff = { value = 1.02,", "cutoff = { value = nan,"))
+    from interact.scenario import demo_path
+
+    assert main(["assess", str(demo_path()), "--rules", str(rules), "--format", "json"]) == 2
+    assert "criteria[0].cutoff.value" in capsys.readouterr().err
+
+
+def test_relative_rules_path_is_read_from_the_scenario_folder(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    import tomlkit
+
+    folder = tmp_path / "project"
+    folder.mkdir()
+    _rules_with(folder, ('id = "ich-m12-2024"', 'id = "local-rules"'), name="local.toml")
+    data = base_dict()
+    data["rules"] = "local.toml"
+    (folder / "s.toml").write_text(tomlkit.dumps(data), encoding="utf-8")
+    elsewhere = tmp_path / "elsewhere"
+    elsewhere.mkdir()
+    monkeypatch.chdir(elsewhere)
+    from interact.scenario import load_scenario
+
+    assert assess(load_scenario(folder / "s.toml")).rules.id == "local-rules"
+
+
+# -- silent and crashing cases (issue 11, item 6) --------------------------------------------------------------------
+
+
+def test_bom_is_accepted_by_scenarios_batch_tables_and_rule_sets(tmp_path: Path) -> None:
+    import tomlkit
+
+    from interact.scenario import load_scenario
+
+    scen = tmp_path / "s.toml"
+    scen.write_bytes(b"\xef\xbb\xbf" + tomlkit.dumps(base_dict()).encode("utf-8"))
+    assert load_scenario(scen).title == "test scenario"
+    rules = tmp_path / "r.toml"
+    rules.write_bytes(b"\xef\xbb\xbf" + ICH.read_bytes())
+    assert load_rules(rules).id == "ich-m12-2024"
+    perps = tmp_path / "p.csv"
+    perps.write_bytes(b"\xef\xbb\xbf" + (P_HEAD + "A,100,400,400,0.1,oral,1\n").encode("utf-8"))
+    victims = tmp_path / "v.csv"
+    victims.write_bytes(b"\xef\xbb\xbf" + V_TABLE.encode("utf-8"))
+    assert main(["screen-batch", str(perps), str(victims), "-o", str(tmp_path / "out.csv"), "-q"]) == 0
+
+
+@pytest.mark.parametrize(
+    "text",
+    [
+        "title = " + "[" * 3000 + "]" * 3000,  # 3000-deep nesting: RecursionError before
+        "title = " + "{a=" * 3000 + "1" + "}" * 3000,
+        "x = " + "9" * 4400,  # beyond Python's integer conversion limit: ValueError before
+        "x = " + "[" * 40 + "]" * 40,  # parses, but deeper than any scenario
+    ],
+)
+def test_hostile_toml_is_a_named_error(tmp_path: Path, text: str, capsys: pytest.CaptureFixture[str]) -> None:
+    scen = tmp_path / "s.toml"
+    scen.write_text(text, encoding="utf-8")
+    assert main(["assess", str(scen)]) == 2
+    err = capsys.readouterr().err
+    assert str(scen) in err and "Traceback" not in err
+
+
+def test_tiny_blood_plasma_ratio_is_refused() -> None:
+    from interact.errors import ScenarioError
+
+    d = base_dict()
+    d["perpetrator"]["blood_plasma_ratio"] = 5e-324
+    with pytest.raises(ScenarioError) as info:
+        scenario_from_dict(d)
+    assert info.value.problems[0].field == "perpetrator.blood_plasma_ratio"
