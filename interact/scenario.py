@@ -354,7 +354,19 @@ class _Reader:
         perp = self.perpetrator(self.required(top, "perpetrator", ""))
         victim = self.victim(self.required(top, "victim", ""))
         physiology = self.physiology(top.get("physiology", {}))
-        turnover = tuple(t for t in (self.turnover(raw, f"turnover[{i}]") for i, raw in self.items(top, "turnover", "")) if t)
+        turnover_list: list[Turnover] = []
+        for i, raw in self.items(top, "turnover", ""):
+            entry = self.turnover(raw, f"turnover[{i}]")
+            if entry is None:
+                continue
+            first = next((k for k, t in enumerate(turnover_list) if t.enzyme == entry.enzyme), None)
+            if first is not None:  # the last would win silently, and the order of entries would change the answer
+                self.fail(
+                    f"turnover[{i}].enzyme", f'"{entry.enzyme}" is listed twice (first in turnover[{first}]); give one entry per enzyme'
+                )
+                continue
+            turnover_list.append(entry)
+        turnover = tuple(turnover_list)
         if perp is None or victim is None or physiology is None:
             return None
         return Scenario(
@@ -569,12 +581,16 @@ class _Reader:
         if not isinstance(raw_strengths, list):
             self.fail(f"{path}.strengths", f'{_brief(raw_strengths)} is not a list; expected e.g. ["2.5 mg", "5 mg"]')
             raw_strengths = []
+        if len(raw_strengths) > _MAX_ITEMS:
+            self.fail(f"{path}.strengths", f"has {len(raw_strengths)} strengths; expected at most {_MAX_ITEMS}")
         for i, s in enumerate(raw_strengths[:_MAX_ITEMS]):
             at = f"{path}.strengths[{i}]"
             q = self.attempt(at, lambda s=s, at=at: units.parse(s, "dose", field=at))  # type: ignore[misc]
             if q is not None:
                 if dose is not None and q.dimensionality != dose.dimensionality:
                     self.fail(f"{path}.strengths[{i}]", f'"{units.format_quantity(q)}" is not in the same kind of unit as the dose')
+                elif _too_small_strength(q):
+                    self.fail(at, f'"{units.format_quantity(q)}" is below {_MIN_STRENGTH_TEXT}; expected a tablet or capsule strength')
                 else:
                     strengths.append(q)
         pathways: list[Pathway] = []
@@ -604,7 +620,7 @@ class _Reader:
         if total > 1.0 + 1e-9:
             self.fail(
                 f"{path}.pathways",
-                f"fm values sum to {total:.4g}; expected a total of at most 1 (the rest is renal and other routes)",
+                f"fm values sum to {total:.12g}; expected a total of at most 1 (the rest is renal and other routes)",
             )
         lower = upper = None
         if "no_effect_boundary" in data:
@@ -660,6 +676,15 @@ class _Reader:
         if enzyme is None:
             return None
         return Turnover(enzyme=enzyme, kdeg_liver=liver, kdeg_gut=gut)
+
+
+#: the smallest strength accepted (1 ng, or 1 pmol for a molar amount): below it a dose suggestion rounds to nothing
+_MIN_STRENGTH_TEXT: Final = "1 ng (1 pmol)"
+
+
+def _too_small_strength(q: Q) -> bool:
+    unit = "mg" if q.dimensionality == units.parse("1 mg", "dose", field="unit").dimensionality else "umol"
+    return bool(units.magnitude(q, unit) < 1e-6)
 
 
 def _brief(value: object) -> str:

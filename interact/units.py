@@ -224,7 +224,17 @@ def unit_text(quantity: pint.Quantity) -> str:
 
 @lru_cache(maxsize=512)
 def _unit_text(container: Any) -> str:
-    return f"{Quantity(1.0, container).units:~}".replace(" / ", "/").replace(" * ", "*")
+    """The compact symbol when it reads back to the same unit, else the full names (``"1.5 cdm"`` would not read back:
+    it is written ``"centidecimeter"``); every spelling written here is one :func:`parse` reads."""
+    units = Quantity(1.0, container).units
+    for spec in ("~", ""):
+        text = f"{units:{spec}}".replace(" / ", "/").replace(" * ", "*").replace(" ** ", "**")
+        try:
+            if _unit(_DASH_POWER.sub(r"\1**-\2", text.replace("^", "**"))) == units:
+                return text
+        except Exception:  # pint raises many kinds for a spelling it cannot read; try the next form
+            continue
+    return f"{units}"  # pragma: no cover - the full names always read back (tested over the registry)
 
 
 def _number(value: float) -> str:

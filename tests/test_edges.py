@@ -245,3 +245,60 @@ def test_tiny_blood_plasma_ratio_is_refused() -> None:
     with pytest.raises(ScenarioError) as info:
         scenario_from_dict(d)
     assert info.value.problems[0].field == "perpetrator.blood_plasma_ratio"
+
+
+def test_duplicate_turnover_entries_are_refused() -> None:
+    """The last entry used to win: the order of two entries moved the AUC ratio (2.83 to 9.29 in the issue)."""
+    from interact.errors import ScenarioError
+
+    d = base_dict()
+    d["turnover"] = [{"enzyme": "CYP3A", "kdeg_liver": "0.02 1/h"}, {"enzyme": "cyp3a4", "kdeg_liver": "0.03 1/h"}]
+    with pytest.raises(ScenarioError) as info:
+        scenario_from_dict(d)
+    assert [p.field for p in info.value.problems] == ["turnover[1].enzyme"]
+
+
+def test_strengths_beyond_the_limit_and_below_a_nanogram_are_named() -> None:
+    from interact.errors import ScenarioError
+
+    d = base_dict()
+    d["victim"]["strengths"] = ["5 mg"] * 201
+    with pytest.raises(ScenarioError, match=r"victim\.strengths: has 201 strengths"):
+        scenario_from_dict(d)
+    d["victim"]["strengths"] = ["1e-9 mg", "5 mg"]
+    with pytest.raises(ScenarioError, match=r"victim\.strengths\[0\]"):
+        scenario_from_dict(d)
+    d["victim"]["strengths"] = ["0.25 ug", "5 mg"]  # a quarter of a microgram is a real strength size: accepted
+    assert len(scenario_from_dict(d).victim.strengths) == 2
+
+
+def test_fm_sum_message_shows_enough_digits() -> None:
+    from interact.errors import ScenarioError
+
+    d = base_dict()
+    d["victim"]["pathways"] = [{"enzyme": "CYP3A", "fm": 0.6}, {"enzyme": "CYP2D6", "fm": 0.4003}]
+    with pytest.raises(ScenarioError, match=r"sum to 1\.0003;"):
+        scenario_from_dict(d)
+
+
+@pytest.mark.parametrize("command", ["fit-tdi", "fit-induction"])
+def test_bom_is_accepted_by_the_mechanism_fits(tmp_path: Path, command: str, capsys: pytest.CaptureFixture[str]) -> None:
+    data = tmp_path / "d.csv"
+    if command == "fit-tdi":  # invented inputs (a hyperbolic kobs pattern), not check values
+        rows = ["inhibitor (uM),time (min),activity"] + [
+            f"{c},{t},{100 * math.exp(-(0.05 * c / (2 + c)) * t):.6g}" for c in (0, 1, 3, 10, 30) for t in (0, 5, 10, 20)
+        ]
+    else:
+        rows = ["concentration (uM),fold_change"] + [f"{c},{1 + 4 * c / (2 + c):.6g}" for c in (0, 0.3, 1, 3, 10, 30)]
+    data.write_bytes(b"\xef\xbb\xbf" + ("\n".join(rows) + "\n").encode("utf-8"))
+    assert main([command, str(data)]) == 0, capsys.readouterr().err
+
+
+def test_fit_data_near_1e300_is_a_named_error(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    """A LinAlgError traceback in the fit before issue 11: now refused where the file is read."""
+    data = tmp_path / "big.csv"
+    rows = [f"{s},{i},{v}e299" for s, i, v in ((1, 0, 5), (2, 0, 8), (5, 0, 9), (1, 1, 3), (2, 1, 5), (5, 1, 7))]
+    data.write_text("substrate (uM),inhibitor (uM),velocity\n" + "\n".join(rows) + "\n", encoding="utf-8")
+    assert main(["fit", str(data)]) == 2
+    err = capsys.readouterr().err
+    assert "line 2, velocity" in err and "Traceback" not in err

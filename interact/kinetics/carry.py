@@ -29,6 +29,7 @@ import tomlkit
 from .. import units
 from ..errors import InputError
 from ..scenario import loads_scenario
+from .data import _check_size
 from .scenario_update import inhibition_entry
 
 __all__ = ["ColumnData", "carry_constants_text", "parse_fold_change_csv", "parse_preincubation_csv"]
@@ -83,6 +84,7 @@ def _parse(text: str, spec: dict[str, tuple[tuple[str, ...], str, str]], source:
                 raise InputError(f"{source}: row {line_no}, column {header[idx].strip()!r}", cell, "is not a number") from None
             if not math.isfinite(value):
                 raise InputError(f"{source}: row {line_no}, column {header[idx].strip()!r}", cell, "is not a finite number")
+            _check_size(value, f"{source}: row {line_no}, column {header[idx].strip()!r}", cell)
             cols[canon].append(value * factor)
     return ColumnData(columns={k: tuple(v) for k, v in cols.items()}, units=unit_used, source=source, n=len(rows) - 1)
 

@@ -270,7 +270,17 @@ def _number(cell: str, column: str, line: int, source: str) -> float:
         raise InputError(f"{source} line {line}, {column}", cell, "is not a number") from None
     if not math.isfinite(value):
         raise InputError(f"{source} line {line}, {column}", cell, "is not a finite number")
+    _check_size(value, f"{source} line {line}, {column}", cell)
     return value
+
+
+def _check_size(value: float, field: str, cell: str) -> None:
+    """Refuse magnitudes the fit's linear algebra cannot square (near 1e300 its normal equations overflow)."""
+    from ..units import MAGNITUDE_RANGE
+
+    low, high = MAGNITUDE_RANGE
+    if value and not low <= abs(value) <= high:
+        raise InputError(field, cell, f"is beyond the accepted magnitudes ({low:g} to {high:g}); rescale the column's unit")
 
 
 def _unit_factor(column: str, header_unit: str, given: str | None, line: int) -> float:
