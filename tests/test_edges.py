@@ -263,7 +263,7 @@ def test_strengths_beyond_the_limit_and_below_a_nanogram_are_named() -> None:
 
     d = base_dict()
     d["victim"]["strengths"] = ["5 mg"] * 201
-    with pytest.raises(ScenarioError, match=r"victim\.strengths: has 201 strengths"):
+    with pytest.raises(ScenarioError, match=r"victim\.strengths: has 201 entries"):
         scenario_from_dict(d)
     d["victim"]["strengths"] = ["1e-9 mg", "5 mg"]
     with pytest.raises(ScenarioError, match=r"victim\.strengths\[0\]"):
