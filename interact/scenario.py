@@ -315,6 +315,9 @@ class _Reader:
             return None
         value = data[key]
         span = f"{'(' if low_open else '['}{low:g}, {high:g}]"
+        if isinstance(value, int) and not isinstance(value, bool) and abs(value) > high:
+            self.fail(full, f"{_brief(value)} is outside {span}")  # before math.isfinite: a huge integer overflows a float
+            return None
         if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
             self.fail(full, f"{_brief(value)} is not a finite number; expected a number in {span}")
             return None

@@ -145,7 +145,10 @@ def parse_fraction(text: object, *, field: str, allow_zero: bool = False, upper:
     if isinstance(text, bool):
         raise UnitError(field, text, f"is not a number; {wanted}")
     if isinstance(text, (int, float)):
-        value = float(text)
+        try:
+            value = float(text)
+        except OverflowError:  # an integer beyond the float range
+            raise UnitError(field, text, f"is not a finite number; {wanted}") from None
     elif isinstance(text, str):
         match = _NUMBER.match(text) if len(text) <= _MAX_TEXT else None
         if not match or match.group(2) not in ("", "%"):

@@ -302,3 +302,25 @@ def test_fit_data_near_1e300_is_a_named_error(tmp_path: Path, capsys: pytest.Cap
     assert main(["fit", str(data)]) == 2
     err = capsys.readouterr().err
     assert "line 2, velocity" in err and "Traceback" not in err
+
+
+@pytest.mark.parametrize("key", ["fu_plasma", "blood_plasma_ratio", "fa_fg"])
+def test_a_400_digit_integer_is_a_named_error(key: str) -> None:
+    """Found by the fuzz suite: an integer beyond the float range raised OverflowError while being checked."""
+    from interact.errors import ScenarioError
+
+    d = base_dict()
+    d["perpetrator"][key] = 10**400
+    with pytest.raises(ScenarioError) as info:
+        scenario_from_dict(d)
+    assert info.value.problems[0].field == f"perpetrator.{key}"
+
+
+def test_induction_fit_with_a_late_rise_has_no_zero_over_zero() -> None:
+    """Found by the fuzz suite: a trial EC50 of 0 with a zero concentration gave 0/0 (a RuntimeWarning, NaN)."""
+    from interact.kinetics.carry import parse_fold_change_csv
+    from interact.kinetics.induction import fit_induction
+
+    c = parse_fold_change_csv("concentration (uM),fold_change\n0.0,1.0\n1.0,1.0\n2.0,1.0\n3.0,2.0\n").columns
+    result = fit_induction(c["concentration"], c["fold_change"])  # pytest turns any warning into an error
+    assert not result.emax.identifiable or math.isfinite(result.emax.value)

@@ -15,6 +15,7 @@ from typing import Any
 
 import numpy as np
 import pytest
+from fuzzcount import CASES
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -26,7 +27,6 @@ from interact.scenario import scenario_from_dict
 
 EXAMPLE = Path(interact.__file__).parent / "examples" / "tdi_inducer.toml"
 BASE = tomllib.loads(EXAMPLE.read_text(encoding="utf-8"))
-COUNT = {"cases": 0}
 #: the budget of one time course, seconds (the slowest accepted case takes about a second on the 2-core CI machine)
 BUDGET_S = 20.0
 
@@ -55,10 +55,10 @@ def _scenario(draw: st.DrawFn) -> dict[str, Any]:
     return data
 
 
-@settings(max_examples=int(os.environ.get("FUZZ_N", "60")), deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=60 * int(os.environ.get("FUZZ_SCALE", "1")), deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(data=_scenario(), days=st.sampled_from([1.0, 30.0, 365.0]))
 def test_time_course_ends_in_a_result_or_a_named_error(data: dict[str, Any], days: float) -> None:
-    COUNT["cases"] += 1
+    CASES["time course"] += 1
     try:
         result = assess(scenario_from_dict(data))
     except InputError as exc:
@@ -108,7 +108,3 @@ def test_the_step_budget_is_what_the_error_says() -> None:
     result = assess(scenario_from_dict(data))
     with pytest.raises(InputError, match=f"{MAX_INTERVALS:,}"):
         simulate(result, days=30)
-
-
-def teardown_module() -> None:
-    print(f"\ntime-course fuzz: {COUNT['cases']} generated cases")
