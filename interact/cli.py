@@ -756,8 +756,9 @@ def main(argv: Sequence[str] | None = None) -> int:
         _check_outputs(args)
         return int(args.run(args))
     except InteractError as exc:
-        text = str(exc)
-        sys.stderr.write(f"interact: {text}\n")
+        from .report.document import terminal_safe
+
+        sys.stderr.write(f"interact: {terminal_safe(str(exc))}\n")  # the message quotes user text: no escapes reach the terminal
         return 2
     except KeyboardInterrupt:
         sys.stderr.write("interact: interrupted\n")

@@ -588,6 +588,8 @@ def simulate(
     # -- enzymes
     gut_enzyme = assessment.prediction.gut_enzyme
     fg0 = assessment.prediction.fg_used
+    if v.route == "oral" and fg0 < 1e-3:  # the gut term 1/Fg of the curves overflows long before this
+        raise InputError("victim.fg", f"{fg0:.3g}", "is below 0.001, the smallest Fg the time course can follow")
     victim_oral = v.route == "oral"
     if not victim_oral or fg0 >= 1.0:
         gut_enzyme = None
@@ -633,6 +635,8 @@ def simulate(
     if v.route == "oral":
         _bounded("victim.ka", ka_v_q, *_RATE_RANGE_PER_H, "1/h", "the range the time course can follow")
     e_h = v.hepatic_extraction if v.hepatic_extraction is not None else DEFAULT_EXTRACTION
+    if e_h < 1e-4 or e_h > 0.9999:
+        raise InputError("victim.hepatic_extraction", e_h, "is outside 0.0001-0.9999, the range the time course can follow")
     settings.append(
         Setting(
             name="victim_hepatic_extraction",

@@ -186,7 +186,16 @@ def read_incubation_csv(
 def _rows(text: str) -> list[tuple[int, list[str]]]:
     out = []
     reader = csv.reader(io.StringIO(text))
-    for row in reader:
+    rows = iter(reader)
+    while True:
+        try:
+            row = next(rows)
+        except StopIteration:
+            break
+        except csv.Error as exc:  # a stray carriage return or NUL inside a field
+            raise InputError(
+                f"data line {reader.line_num}", "CSV", f"could not be read ({exc}); expected plain comma-separated rows"
+            ) from None
         line = reader.line_num
         if not row or all(not c.strip() for c in row) or row[0].lstrip().startswith("#"):
             continue

@@ -108,3 +108,19 @@ def test_width_zero_is_a_named_error(tmp_path: Path, capsys: pytest.CaptureFixtu
         main(["assess", str(demo_path()), "--width", "0"])
     assert info.value.code == 2
     assert "--width" in capsys.readouterr().err
+
+
+def test_error_messages_and_batch_csv_carry_no_escapes(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    scen = tmp_path / "bad.toml"
+    scen.write_text('title = "x"\n[perpetrator]\nname = "P"\ndose = "1 \\u001b[8m kg"\n', encoding="utf-8")
+    assert main(["assess", str(scen)]) == 2
+    assert "\x1b" not in capsys.readouterr().err
+    perps = tmp_path / "p.csv"
+    perps.write_text(
+        "name,dose (mg),molar mass (g/mol),cmax (ng/mL),fu_p,route,ki CYP3A (uM)\nP\x1b[8m,100,400,400,0.1,oral,1\n", encoding="utf-8"
+    )
+    victims = tmp_path / "v.csv"
+    victims.write_text("name,dose (mg),interval (h),fg,fm CYP3A\nV\x9b8m,10,24,0.5,0.9\n", encoding="utf-8")
+    assert main(["screen-batch", str(perps), str(victims)]) == 0
+    out = capsys.readouterr().out
+    assert "\x1b" not in out and "\x9b" not in out and ",P[8m," not in out and ",P," in out
