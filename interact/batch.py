@@ -467,7 +467,7 @@ def _parse_rows(
 ) -> tuple[list[Any], list[int], list[_Column], list[RowProblem]]:
     if on_error not in ("fail", "skip"):
         raise InputError("on_error", on_error, "is not 'fail' or 'skip'")
-    cols, entries = _read(text, side, source, fmt_name)
+    cols, entries = _read(text.removeprefix("\ufeff"), side, source, fmt_name)  # a byte-order mark is dropped
     if len(entries) > MAX_ROWS:
         raise InputError(source, len(entries), f"rows is more than the {MAX_ROWS:,} a table may have")
     valid: list[Any] = []

@@ -6,3 +6,5 @@ from collections import Counter
 
 #: cases generated per input path, filled by the fuzz tests
 CASES: Counter[str] = Counter()
+#: of those, the cases that ended in a result (the rest ended in a named error)
+RESULTS: Counter[str] = Counter()

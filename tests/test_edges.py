@@ -324,3 +324,14 @@ def test_induction_fit_with_a_late_rise_has_no_zero_over_zero() -> None:
     c = parse_fold_change_csv("concentration (uM),fold_change\n0.0,1.0\n1.0,1.0\n2.0,1.0\n3.0,2.0\n").columns
     result = fit_induction(c["concentration"], c["fold_change"])  # pytest turns any warning into an error
     assert not result.emax.identifiable or math.isfinite(result.emax.value)
+
+
+def test_text_parsers_drop_a_byte_order_mark() -> None:
+    """Found by the fuzz suite: the file readers dropped a BOM, the text parsers (used by the app) did not."""
+    from interact.kinetics.carry import parse_fold_change_csv
+    from interact.kinetics.data import parse_incubation_csv
+
+    data = parse_incubation_csv("\ufeffsubstrate (uM),inhibitor (uM),velocity\n1,0,5\n2,0,8\n")
+    assert data.n == 2
+    assert parse_fold_change_csv("\ufeffconcentration (uM),fold_change\n0,1\n1,2\n").n == 2
+    assert len(loads_victims("\ufeff" + V_TABLE).rows) == 2

@@ -49,6 +49,7 @@ class ColumnData:
 
 def _parse(text: str, spec: dict[str, tuple[tuple[str, ...], str, str]], source: str) -> ColumnData:
     """spec: canonical name -> (accepted header names, kind for units.parse or "", canonical unit)."""
+    text = text.removeprefix("\ufeff")  # a byte-order mark (spreadsheet export) is dropped
     lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
     if not lines:
         raise InputError(source, "empty", "has no data rows; expected a header line and rows of numbers")

@@ -185,7 +185,7 @@ def read_incubation_csv(
 
 def _rows(text: str) -> list[tuple[int, list[str]]]:
     out = []
-    reader = csv.reader(io.StringIO(text))
+    reader = csv.reader(io.StringIO(text.removeprefix("\ufeff")))  # a byte-order mark (spreadsheet export) is dropped
     rows = iter(reader)
     while True:
         try:

@@ -27,9 +27,10 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
+import numpy as np
 import pytest
 import tomlkit
-from fuzzcount import CASES
+from fuzzcount import CASES, RESULTS
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -73,7 +74,9 @@ def _within_budget(name: str, run: Callable[[], object], *, memory: bool = False
         tracemalloc.start()
     start = time.perf_counter()
     try:
-        return run()
+        out = run()
+        RESULTS[name] += 1
+        return out
     except InteractError as exc:
         _named(exc)
         return None
@@ -126,6 +129,33 @@ HOSTILE = st.one_of(
     st.just([[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[1]]]]]]]]]]]]]]]]]]]]]]]]]]]]]]]]]]]),
 )
 
+
+def _log_uniform(low: float, high: float) -> st.SearchStrategy[float]:
+    return st.floats(math.log10(low), math.log10(high)).map(lambda e: float(f"{10.0**e:.4g}"))
+
+
+#: plausible replacements (half of the edits): a value of the right kind and size, so that many cases reach a result
+PLAUSIBLE: dict[str, st.SearchStrategy[Any]] = {
+    "dose": _log_uniform(0.1, 2000).map(lambda x: f"{x} mg"),
+    "cmax": _log_uniform(0.001, 50).map(lambda x: f"{x} uM"),
+    "fu_plasma": _log_uniform(0.001, 1),
+    "interval": st.sampled_from(["6 h", "8 h", "12 h", "24 h", "48 h", "1 wk"]),
+    "half_life": _log_uniform(0.5, 500).map(lambda x: f"{x} h"),
+    "ka": _log_uniform(0.05, 20).map(lambda x: f"{x} 1/h"),
+    "blood_plasma_ratio": st.floats(0.5, 3),
+    "ki": _log_uniform(1e-4, 1e3).map(lambda x: f"{x} uM"),
+    "kinact": _log_uniform(1e-4, 1).map(lambda x: f"{x} 1/min"),
+    "ki_inact": _log_uniform(1e-3, 1e3).map(lambda x: f"{x} uM"),
+    "emax": _log_uniform(0.1, 50),
+    "ec50": _log_uniform(1e-3, 1e3).map(lambda x: f"{x} uM"),
+    "fu_inc": _log_uniform(0.01, 1),
+    "fg": st.floats(0.05, 1),
+    "fm": st.floats(0, 1),
+    "hepatic_extraction": st.floats(0.01, 0.95),
+    "strengths": st.lists(_log_uniform(0.01, 1000).map(lambda x: f"{x} mg"), min_size=1, max_size=5),
+    "name": st.text(min_size=1, max_size=30),
+}
+
 SCENARIO_PATHS = [
     ("title",),
     ("rules",),
@@ -167,10 +197,13 @@ def _set(data: dict[str, Any], path: tuple[Any, ...], value: object) -> None:
 def scenario_texts(draw: st.DrawFn) -> str:
     """A scenario file: the invented example with values replaced, then text-level damage (BOM, cut, duplicated line)."""
     data: dict[str, Any] = tomllib.loads(BASE_TEXT)
-    for path in draw(st.lists(st.sampled_from(SCENARIO_PATHS), min_size=1, max_size=4)):
-        value = draw(HOSTILE)
+    for path in draw(st.lists(st.sampled_from(SCENARIO_PATHS), min_size=0, max_size=3)):
+        plausible = PLAUSIBLE.get(str(path[-1]))
+        value = draw(plausible) if plausible is not None and draw(st.sampled_from([True, True, False])) else draw(HOSTILE)
         if path == ("turnover",):
-            value = [{"enzyme": "CYP3A", "kdeg_liver": draw(QUANTITY_TEXT)}, {"enzyme": draw(st.sampled_from(["CYP3A", "CYP2D6"]))}]
+            value = [{"enzyme": "CYP3A", "kdeg_liver": draw(st.one_of(QUANTITY_TEXT, _log_uniform(0.005, 0.1).map(lambda x: f"{x} 1/h")))}]
+            if draw(st.booleans()):
+                value.append({"enzyme": draw(st.sampled_from(["CYP3A", "CYP2D6", "cyp3a4"]))})
         try:
             _set(data, path, value)
         except (KeyError, IndexError, TypeError):
@@ -179,7 +212,7 @@ def scenario_texts(draw: st.DrawFn) -> str:
         text = tomlkit.dumps(data)
     except Exception:  # a value TOML cannot hold (e.g. a None): keep the example text
         text = BASE_TEXT
-    damage = draw(st.sampled_from(["none", "none", "bom", "cut", "dup", "nest", "bigint"]))
+    damage = draw(st.sampled_from(["none"] * 6 + ["bom", "cut", "dup", "nest", "bigint"]))
     if damage == "bom":
         text = "\ufeff" + text
     elif damage == "cut":
@@ -220,7 +253,7 @@ def _scenario_case(text: str) -> None:
             json.loads(out)
 
 
-@budget(120)
+@budget(200)
 @given(text=scenario_texts())
 def test_scenario_files(text: str) -> None:
     _within_budget("scenario files", lambda: _scenario_case(text))
@@ -244,6 +277,7 @@ RULE_EDITS = [
     ('mechanism = "reversible"', "mechanism = {v}"),
 ]
 TOML_VALUES = st.one_of(
+    st.sampled_from(["1.1", "1.02", "0.05", "0.9", "0.5", "1.5", "2.0", "false", '"97 L/h"', '"1.5 L/min"', '"reversible"']),
     st.sampled_from(
         ["nan", "inf", "-inf", "-1", "0", "2", "1e308", "5e-324", "[1, 2]", "true", '"0.5"', "{a = 1}", '"97 L/h"', '"-3 L/h"']
     ),
@@ -259,7 +293,7 @@ def rule_texts(draw: st.DrawFn) -> str:
     return text
 
 
-@budget(80)
+@budget(100)
 @given(text=rule_texts())
 def test_rule_sets(text: str) -> None:
     from interact.tables import load_rules
@@ -298,34 +332,71 @@ def _plausible(draw: st.DrawFn, n: int, low: float, high: float) -> list[str]:
 
 
 @st.composite
-def csv_tables(draw: st.DrawFn, header: str, columns: int, lows: tuple[float, ...], highs: tuple[float, ...]) -> str:
-    """Mostly plausible rows (so the fits run), with some hostile cells and shapes."""
-    n = draw(st.integers(0, 14))
-    rows = [[repr(draw(st.floats(lows[c], highs[c]))) for c in range(columns)] for _ in range(n)]
-    for _ in range(draw(st.integers(0, 3))):
+def csv_tables(draw: st.DrawFn, header: str, model: Callable[[st.DrawFn], list[float]]) -> str:
+    """Rows drawn from a plausible model (so the fits run and reach results), then some hostile cells and shapes."""
+    if model is _preincubation_row:  # a pre-incubation design: every time at every concentration, some rows dropped
+        grid = [(i, t) for i in (0.0, 1.0, 3.0, 10.0, 30.0) for t in (0.0, 5.0, 10.0, 20.0, 30.0)]
+        kept = [g for g in grid if draw(st.integers(0, 9)) > 0]
+        rows = [[repr(x) for x in (i, t, 100.0 * math.exp(-0.1 * i / (3.0 + i) * t) * _noise(draw))] for i, t in kept]
+    else:
+        rows = [[repr(x) for x in model(draw)] for _ in range(draw(st.integers(0, 24)))]
+    columns = header.count(",") + 1
+    for _ in range(draw(st.sampled_from([0, 0, 0, 1, 2, 3]))):
         if rows:
             r, c = draw(st.integers(0, len(rows) - 1)), draw(st.integers(0, columns - 1))
             rows[r][c] = draw(CELLS)
-    if rows and draw(st.booleans()):
+    if rows and draw(st.sampled_from([False, False, False, True])):
         rows[0] = rows[0][: draw(st.integers(0, columns))]  # a short row
     return _csv(header, rows, draw(st.booleans()))
 
 
-@budget(40)
-@given(text=csv_tables("substrate (uM),inhibitor (uM),velocity", 3, (0.0, 0.0, 0.0), (200.0, 50.0, 500.0)))
+def _noise(draw: st.DrawFn) -> float:
+    return 1.0 + draw(st.floats(-0.1, 0.1))
+
+
+def _incubation_row(draw: st.DrawFn) -> list[float]:
+    """Competitive inhibition, v = Vmax S / (Km (1 + I/Ki) + S): invented constants (Vmax 100, Km 10 uM, Ki 2 uM)."""
+    s = draw(st.sampled_from([0.0, 1.0, 2.5, 5.0, 10.0, 25.0, 50.0, 100.0]))
+    i = draw(st.sampled_from([0.0, 0.5, 1.0, 2.0, 5.0, 10.0]))
+    return [s, i, 100.0 * s / (10.0 * (1 + i / 2.0) + s) * _noise(draw)]
+
+
+def _preincubation_row(draw: st.DrawFn) -> list[float]:
+    """Activity left, 100 exp(-kobs t), kobs = 0.1 I / (3 + I) per min: invented constants."""
+    i = draw(st.sampled_from([0.0, 1.0, 3.0, 10.0, 30.0]))
+    t = draw(st.sampled_from([0.0, 5.0, 10.0, 20.0, 30.0]))
+    return [i, t, 100.0 * math.exp(-0.1 * i / (3.0 + i) * t) * _noise(draw)]
+
+
+def _induction_row(draw: st.DrawFn) -> list[float]:
+    """Fold change 1 + 6 C / (2 + C): invented constants."""
+    c = draw(st.sampled_from([0.0, 0.1, 0.3, 1.0, 3.0, 10.0, 30.0]))
+    return [c, (1.0 + 6.0 * c / (2.0 + c)) * _noise(draw)]
+
+
+@budget(60)
+@given(text=csv_tables("substrate (uM),inhibitor (uM),velocity", _incubation_row))
 def test_incubation_csv(text: str) -> None:
     from interact.kinetics.data import parse_incubation_csv
     from interact.kinetics.fitting import fit_inhibition
 
     def case() -> None:
-        comp = fit_inhibition(parse_incubation_csv(text, source="fuzz.csv"), models=("none", "competitive", "mixed"), profile=False)
+        data = parse_incubation_csv(text, source="fuzz.csv")
+        # A trial step of the optimiser may divide 0 by 0 (substrate 0 with Km 0) before it is rejected: numpy's warning
+        # is silenced here and only the outcome is judged (reported to the fitting code's owner; their branch refuses
+        # such tiny data sets first).
+        with np.errstate(invalid="ignore", divide="ignore"):
+            comp = fit_inhibition(data, models=("none", "competitive", "mixed"), profile=False)
         assert comp.fits
+        for fit in comp.fits:
+            if fit.success:  # a converged fit reports finite constants (an unbounded Ki is +inf, by design)
+                assert all(math.isfinite(e.value) or e.value == math.inf for e in fit.estimates), fit.estimates
 
     _within_budget("incubation CSV", case)
 
 
-@budget(40)
-@given(text=csv_tables("inhibitor (uM),time (min),activity", 3, (0.0, 0.0, 0.0), (50.0, 60.0, 120.0)))
+@budget(60)
+@given(text=csv_tables("inhibitor (uM),time (min),activity", _preincubation_row))
 def test_preincubation_csv(text: str) -> None:
     from interact.kinetics.carry import parse_preincubation_csv
     from interact.kinetics.inactivation import fit_inactivation_raw
@@ -337,8 +408,8 @@ def test_preincubation_csv(text: str) -> None:
     _within_budget("pre-incubation CSV", case)
 
 
-@budget(40)
-@given(text=csv_tables("concentration (uM),fold_change", 2, (0.0, 0.0), (100.0, 20.0)))
+@budget(60)
+@given(text=csv_tables("concentration (uM),fold_change", _induction_row))
 def test_induction_csv(text: str) -> None:
     from interact.kinetics.carry import parse_fold_change_csv
     from interact.kinetics.induction import fit_induction
@@ -358,8 +429,9 @@ V_HEADER = "name,dose (mg),interval (h),fg,strengths (mg),fm CYP3A,fm CYP2D6"
 def batch_tables(draw: st.DrawFn) -> tuple[str, str, str]:
     perps = [
         [
-            draw(NASTY_TEXT).replace(",", ";").replace("\n", " ").replace('"', "") or "P",
-            *_plausible(draw, 4, 0.001, 1000.0),
+            draw(st.one_of(st.sampled_from(["P", "Q", "R"]), NASTY_TEXT)).replace(",", ";").replace("\n", " ").replace('"', "") or "P",
+            *_plausible(draw, 3, 0.001, 1000.0),
+            repr(draw(st.floats(0.001, 1.0))),
             "oral",
             *_plausible(draw, 2, 1e-6, 100.0),
         ]
@@ -377,14 +449,14 @@ def batch_tables(draw: st.DrawFn) -> tuple[str, str, str]:
         for _ in range(draw(st.integers(1, 4)))
     ]
     for table in (perps, victims):
-        for _ in range(draw(st.integers(0, 2))):
+        for _ in range(draw(st.sampled_from([0, 0, 0, 1, 2]))):
             r = draw(st.integers(0, len(table) - 1))
             c = draw(st.integers(1, len(table[r]) - 1))
             table[r][c] = draw(CELLS).replace(",", ".").replace("\n", "")
     return _csv(P_HEADER, perps, draw(st.booleans())), _csv(V_HEADER, victims, draw(st.booleans())), draw(st.sampled_from(["fail", "skip"]))
 
 
-@budget(60)
+@budget(100)
 @given(tables=batch_tables())
 def test_batch_tables(tables: tuple[str, str, str]) -> None:
     from interact.batch import evaluate_pairs, loads_perpetrators, loads_victims
@@ -422,7 +494,12 @@ VARY_PATHS = [
     "victim.nothing",
     "",
 ]
+PLAUSIBLE_SPECS = st.sampled_from(["cv:30%", "cv:0.5", "uniform:0.3,0.6", "ci:0.5 uM,2 uM", "ci:0.5,2", "uniform:0.5,0.95", "fixed"])
 SPECS = st.one_of(
+    PLAUSIBLE_SPECS,
+    PLAUSIBLE_SPECS,
+    PLAUSIBLE_SPECS,
+    PLAUSIBLE_SPECS,
     st.builds(lambda v: f"cv:{v}%", NUMBERS),
     st.builds(lambda a, b: f"ci:{a!r},{b!r}", NUMBERS, NUMBERS),
     st.builds(lambda a, b, u: f"ci:{a!r} {u},{b!r} {u}", NUMBERS, NUMBERS, UNITS),
@@ -433,12 +510,14 @@ SPECS = st.one_of(
 
 @st.composite
 def spec_texts(draw: st.DrawFn) -> str:
-    vary = {draw(st.sampled_from(VARY_PATHS)): draw(SPECS) for _ in range(draw(st.integers(0, 3)))}
+    vary = {draw(st.sampled_from(VARY_PATHS)): draw(SPECS) for _ in range(draw(st.integers(1, 3)))}
     doc = tomlkit.document()
     doc["vary"] = vary
     sampling: dict[str, Any] = {}
     if draw(st.booleans()):
-        sampling["samples"] = draw(st.one_of(st.integers(-5, 3000), st.sampled_from([0, 10**12, 1.5, "100"])))
+        sampling["samples"] = draw(
+            st.one_of(st.integers(1, 3000), st.integers(1, 3000), st.integers(-5, 0), st.sampled_from([0, 10**12, 1.5, "100"]))
+        )
     if draw(st.booleans()):
         sampling["seed"] = draw(st.one_of(st.integers(-5, 2**70), st.just("x")))
     if draw(st.booleans()):
@@ -451,7 +530,7 @@ def spec_texts(draw: st.DrawFn) -> str:
 BASE_RESULT = None
 
 
-@budget(80)
+@budget(100)
 @given(text=spec_texts())
 def test_uncertainty_specs(text: str) -> None:
     from interact.uncertainty import loads_spec, run_uncertainty, sensitivity
@@ -510,7 +589,7 @@ def _snapshot(folder: Path) -> dict[str, tuple[str, bytes | str]]:
     return out
 
 
-@budget(50)
+@budget(60)
 @given(
     kind=st.sampled_from(TARGET_KINDS),
     command=st.sampled_from(["assess", "report", "uncertainty", "timecourse-plot"]),
@@ -563,6 +642,7 @@ def test_output_paths(kind: str, command: str, force: bool) -> None:
             argv.append("--force")
         start = time.perf_counter()
         rc = main(argv)
+        RESULTS["output paths"] += rc == 0
         assert time.perf_counter() - start < TIME_BUDGET_S
         after = _snapshot(folder)
         changed = {p for p in set(before) | set(after) if before.get(p) != after.get(p)}
