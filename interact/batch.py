@@ -729,6 +729,14 @@ def check_pair_budget(n_perpetrators: int, n_victims: int) -> None:
         )
 
 
+def count_rows(text: str, source: str, side: str) -> int:
+    """The number of rows a table holds (before validation; cheap): to refuse a batch beyond memory before reading it."""
+    if source.lower().endswith(".toml"):
+        return len(re.findall(rf"(?m)^\s*\[\[\s*{side}\s*\]\]", text))
+    lines = sum(1 for line in text.splitlines() if line.strip() and not line.lstrip().startswith("#"))
+    return max(lines - 1, 0)  # less the header
+
+
 def evaluate_pairs(
     perpetrators: PerpetratorTable,
     victims: VictimTable,

@@ -307,7 +307,7 @@ def _write_streamed(args: argparse.Namespace, write) -> int:  # type: ignore[no-
 def _cmd_screen_batch(args: argparse.Namespace) -> int:
     import time
 
-    from .batch import evaluate_pairs, loads_perpetrators, loads_victims
+    from .batch import check_pair_budget, count_rows, evaluate_pairs, loads_perpetrators, loads_victims
     from .report.batch import write_results
     from .tables import load_rules
 
@@ -315,8 +315,10 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
     rules = load_rules(args.rules)
     if args.top is not None and args.top < 1:
         raise InputError("--top", args.top, "is not a whole number of at least 1")
-    perps = loads_perpetrators(_read_text(args.perpetrators, "perpetrators"), rules, source=args.perpetrators, on_error=args.on_error)
-    victims = loads_victims(_read_text(args.victims, "victims"), source=args.victims, on_error=args.on_error)
+    p_text, v_text = _read_text(args.perpetrators, "perpetrators"), _read_text(args.victims, "victims")
+    check_pair_budget(count_rows(p_text, args.perpetrators, "perpetrator"), count_rows(v_text, args.victims, "victim"))  # before reading
+    perps = loads_perpetrators(p_text, rules, source=args.perpetrators, on_error=args.on_error)
+    victims = loads_victims(v_text, source=args.victims, on_error=args.on_error)
     for problem in (*perps.skipped, *victims.skipped):
         sys.stderr.write(f"interact: skipped {problem}\n")
     n = len(perps.rows) * len(victims.rows)

@@ -148,7 +148,8 @@ def check_target(path: str | Path, *, field: str = "--output", inputs: Iterable[
             raise InputError(
                 field,
                 str(path),
-                "is read-only; it was left unchanged (make it writable, or pass --force to replace it and keep it read-only)",
+                "is read-only; it was left unchanged (make it writable, or on the command line pass --force to replace it "
+                "and keep it read-only)",
             )
     folder = final.parent
     if not folder.is_dir():

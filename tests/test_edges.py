@@ -108,6 +108,28 @@ def test_batch_beyond_memory_is_refused_before_starting(monkeypatch: pytest.Monk
         evaluate_pairs(perps, loads_victims(V_TABLE), rules)
 
 
+def test_a_batch_beyond_memory_is_refused_before_the_tables_are_read(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture[str]
+) -> None:
+    """100,000 x 100,000 rows took minutes to read before the refusal; the rows are counted first."""
+    import interact.batch as batch
+
+    perps = tmp_path / "p.csv"
+    perps.write_text(P_HEAD + "A,100,400,400,0.1,oral,1\n" * 50, encoding="utf-8")
+    victims = tmp_path / "v.csv"
+    victims.write_text(V_TABLE, encoding="utf-8")
+    read: list[str] = []
+
+    def reading(*args: object, **kwargs: object) -> None:
+        read.append("a table was read")
+        raise AssertionError("the tables were read before the refusal")
+
+    monkeypatch.setattr(batch, "_free_memory_bytes", lambda: 1000)  # room for 7 pairs: 50 x 2 is refused
+    monkeypatch.setattr(batch, "_parse_rows", reading)
+    assert main(["screen-batch", str(perps), str(victims)]) == 2
+    assert "pairs" in capsys.readouterr().err and not read
+
+
 def test_skip_with_every_row_bad_shows_the_reasons(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     perps = tmp_path / "p.csv"
     perps.write_text(P_HEAD + "A,100,400,x,0.1,oral,1\nB,100,400,400,7,oral,1\n", encoding="utf-8")
