@@ -15,6 +15,7 @@ from .constants import Constant, resolve_constants
 from .dosing import DoseLimit, DoseSuggestion, RegimenPlan, highest_perpetrator_scale, plan_for_victim, suggest_dose
 from .errors import InputError
 from .exposure import Setting, SpeciesExposure, resolve_exposure, resolve_settings
+from .genotype import PhenotypeCase, phenotype_cases
 from .prediction import Prediction, predict, ratio_function
 from .scenario import Scenario
 from .screening import ScreenResult, screen
@@ -54,6 +55,7 @@ class Assessment:
     study_indicated: bool
     dose: DoseSuggestion
     regimens: RegimenPlan
+    phenotypes: tuple[PhenotypeCase, ...]  # drug-drug-gene cases when the victim states phenotypes (interact.genotype)
     perpetrator_limit: DoseLimit
     kdeg_used: tuple[Setting, ...]
     warnings: tuple[str, ...]
@@ -168,6 +170,19 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
             warnings.append(f"{c.species} on {c.target}: {_UNCOMPETITIVE_NOTE}.")
         if c.fu_inc_origin == "default" and c.kind == "enzyme" and c.ki_u_um is not None:
             warnings.append(f"{c.species} on {c.target}: fu,inc not given; Ki taken as unbound (fu,inc = 1).")
+        shared = [
+            name
+            for name, value, origin in (("KI", c.ki_inact_um, c.ki_inact_fu_origin), ("EC50", c.ec50_um, c.ec50_fu_origin))
+            if value is not None and origin.startswith("fu_inc (given")
+        ]
+        if shared and c.fu_inc != 1.0:
+            corrected = " and ".join(["Ki", *shared] if c.ki_um is not None else shared)
+            warnings.append(
+                f"{c.species} on {c.target}: fu_inc {c.fu_inc:g} corrects {corrected} "
+                f"alike; if {' or '.join(shared)} was measured in another system (hepatocytes) or is already unbound, give "
+                + " / ".join(f"fu_inc_{'ki_inact' if n == 'KI' else 'ec50'}" for n in shared)
+                + " (1 for an unbound value)."
+            )
     for kd in kdeg_used:
         if kd.from_memory:
             warnings.append(
@@ -200,6 +215,7 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         gut_ratio=prediction.gut,
         mechanism_parts=tuple((pt.mechanism, pt.total) for pt in prediction.parts) if "induction" in prediction.mechanisms else (),
     )
+    cases = phenotype_cases(v.phenotypes, prediction, plan)
     if plan.narrow_therapeutic_index and plan.boundary_origin.startswith("default"):
         warnings.append(
             f"The default no-effect boundary {boundary[0]:g}-{boundary[1]:g} was applied to a narrow-therapeutic-index victim; "
@@ -250,6 +266,12 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
             {f"{s.label}: {s.source}" for s in (*all_settings, *kdeg_used) if s.from_memory and s.origin in ("default", "rule set")}
             | {f"{r.label} cutoff for {r.target} ({rule_set.id}): {r.cutoff.source}" for r in screen_results if r.cutoff.from_memory}
             | {
+                f"Phenotype activity {enzyme} {name} = {act:g}: {src.source}"
+                for case in cases
+                for (enzyme, name, act), src in zip(case.activities, case.sources, strict=True)
+                if src is not None and src.from_memory
+            }
+            | {
                 f"Induction calibration factor d = 1 for {c.species} on {c.target}: default (S1 shows d in the R3 equation; "
                 "the default value 1 is from memory)"
                 for c in constants
@@ -289,6 +311,7 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         study_indicated=study,
         dose=dose,
         regimens=plan,
+        phenotypes=cases,
         perpetrator_limit=limit,
         kdeg_used=tuple(kdeg_used),
         warnings=tuple(warnings),

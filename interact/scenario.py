@@ -25,9 +25,10 @@ import pint
 from . import units
 from .dosing import MAX_UNIT_SIZES
 from .errors import InputError, Problem, ScenarioError
-from .tables import load_targets, resolve_target
+from .tables import load_phenotypes, load_targets, resolve_target
 
 __all__ = [
+    "INTERVAL_KEYS",
     "MECHANISMS",
     "Inhibition",
     "Metabolite",
@@ -66,8 +67,10 @@ class Inhibition:
     constant to its unbound value (Ki,u = Ki x fu,inc).  For transporters the
     IC50 (or Ki) is used as the inhibition constant, as guidance does.
 
-    Time-dependent inhibition (``kinact``, ``ki_inact`` = KI, unbound) and
-    induction (``emax``, ``ec50`` unbound, ``calibration`` = d) are optional.
+    Time-dependent inhibition (``kinact``, ``ki_inact`` = KI) and induction
+    (``emax``, ``ec50``, ``calibration`` = d) are optional.  ``fu_inc`` corrects
+    Ki, KI and EC50 alike unless ``fu_inc_ki_inact`` or ``fu_inc_ec50`` gives a
+    constant its own binding (1 for a constant already unbound).
     """
 
     target: str
@@ -84,6 +87,31 @@ class Inhibition:
     ec50: Q | None = None
     calibration: float | None = None
     origin: str = ""
+    #: separate binding for KI and EC50 (e.g. hepatocyte fu for EC50); without them ``fu_inc`` applies to every constant
+    fu_inc_ki_inact: float | None = None
+    fu_inc_ec50: float | None = None
+    #: 95 % intervals carried from a fit (``ki_ci = ["63.3 uM", "82.3 uM"]``); the uncertainty command uses them
+    ki_ci: tuple[Q, Q] | None = None
+    km_ci: tuple[Q, Q] | None = None
+    kinact_ci: tuple[Q, Q] | None = None
+    ki_inact_ci: tuple[Q, Q] | None = None
+    emax_ci: tuple[float, float] | None = None
+    ec50_ci: tuple[Q, Q] | None = None
+
+    def interval(self, key: str) -> tuple[Any, Any] | None:
+        """The interval given for constant ``key`` (``ki``, ``km``, ``kinact``, ``ki_inact``, ``emax``, ``ec50``), or None."""
+        return getattr(self, f"{key}_ci", None) if key in INTERVAL_KEYS else None
+
+
+#: constants that may carry an interval (``<key>_ci``) and the kind of unit each takes
+INTERVAL_KEYS: Final = {
+    "ki": "concentration",
+    "km": "concentration",
+    "kinact": "rate",
+    "ki_inact": "concentration",
+    "emax": "",
+    "ec50": "concentration",
+}
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -129,6 +157,19 @@ class Pathway:
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
+class PhenotypeChoice:
+    """The object drug's metaboliser phenotype for one polymorphic enzyme (``[[victim.phenotypes]]``).
+
+    ``phenotype`` is a name from the phenotype table or ``"all"`` (every phenotype of the table, one row each);
+    ``activity``, when given, replaces the table's relative activity (the phenotype is then named "given").
+    """
+
+    enzyme: str
+    phenotype: str
+    activity: float | None = None
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
 class Victim:
     """The affected drug.  Pathways not listed (1 - sum of fm) are unaffected."""
 
@@ -149,6 +190,7 @@ class Victim:
     intervals: tuple[Q, ...] = ()
     peak_boundary: tuple[float, float] | None = None
     trough_boundary: tuple[float, float] | None = None
+    phenotypes: tuple[PhenotypeChoice, ...] = ()  # drug-drug-gene interaction (interact.genotype)
     # used by the time course (interact.dynamic) and, for interval changes, by the regimen search:
     half_life: Q | None = None  # elimination half-life without the perpetrator
     hepatic_extraction: float | None = None  # hepatic (blood) extraction ratio without the perpetrator
@@ -457,6 +499,16 @@ class _Reader:
         ec50 = self.quantity(data, "ec50", path, "concentration")
         calibration = self.number(data, "calibration", path, low=0.0, high=10.0, low_open=False)
         origin = self.text(data, "origin", path)
+        own_fu: dict[str, float | None] = {}
+        for fu_key, constant in (("fu_inc_ki_inact", "ki_inact"), ("fu_inc_ec50", "ec50")):
+            fu_val = self.fraction(data, fu_key, path)
+            if fu_val is not None:
+                self.attempt(f"{path}.{fu_key}", lambda v=fu_val, k=fu_key: units.check_fraction_size(v, f"{path}.{k}", v))  # type: ignore[misc]
+                if constant not in data:
+                    self.fail(f"{path}.{fu_key}", f"is given without {constant}; expected it beside the constant it corrects")
+            own_fu[fu_key] = fu_val
+        points = {"ki": ki, "km": km, "kinact": kinact, "ki_inact": ki_inact, "emax": emax, "ec50": ec50}
+        cis = {key: self.interval(data, key, path, kind, points[key]) for key, kind in INTERVAL_KEYS.items()}
         has_reversible = ki is not None or ic50 is not None
         if "ki" in data and "ic50" in data:
             self.fail(path, "gives both ki and ic50; expected one of them")
@@ -510,7 +562,56 @@ class _Reader:
             ec50=ec50,
             calibration=calibration,
             origin=origin,
+            ki_ci=cis["ki"],
+            km_ci=cis["km"],
+            kinact_ci=cis["kinact"],
+            ki_inact_ci=cis["ki_inact"],
+            emax_ci=cis["emax"],
+            ec50_ci=cis["ec50"],
+            fu_inc_ki_inact=own_fu["fu_inc_ki_inact"],
+            fu_inc_ec50=own_fu["fu_inc_ec50"],
         )
+
+    def interval(self, data: dict[str, Any], key: str, path: str, kind: str, point: Any) -> Any:
+        """``<key>_ci``: two values, lower <= upper, above zero, around the point value when both are given."""
+        name = f"{key}_ci"
+        full = f"{path}.{name}"
+        if name not in data:
+            return None
+        raw = data[name]
+        if not isinstance(raw, list) or len(raw) != 2:
+            self.fail(full, f'{_brief(raw)} is not a list of two values; expected e.g. ["63.3 uM", "82.3 uM"]')
+            return None
+        if point is None and key not in data:
+            self.fail(full, f"is given without {key}; expected the interval beside the constant it belongs to")
+            return None
+        ends: list[Any]
+        if kind:
+            ends = [self.attempt(full, lambda v=v: units.parse(v, kind, field=full)) for v in raw]  # type: ignore[misc]
+        else:
+            ends = []
+            for v in raw:
+                if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v) or v < 0:
+                    self.fail(full, f"{_brief(v)} is not a finite number of at least 0")
+                    return None
+                ends.append(float(v))
+        if any(e is None for e in ends):
+            return None
+        lo: Any = ends[0]
+        hi: Any = ends[1]
+        try:
+            ref = point.units if kind and point is not None else (lo.units if kind else None)
+            lo_v, hi_v = (lo.to(ref).magnitude, hi.to(ref).magnitude) if kind else (lo, hi)
+            pt = point.to(ref).magnitude if kind and point is not None else point
+        except pint.errors.DimensionalityError:  # mass vs molar: needs the molar mass, checked where it is converted
+            return (lo, hi)
+        if not (0 < lo_v <= hi_v):
+            self.fail(full, f"{_brief(raw)} is not an interval with 0 < lower <= upper")
+            return None
+        if pt is not None and not (lo_v * (1 - 1e-9) <= pt <= hi_v * (1 + 1e-9)):
+            self.fail(full, f"{_brief(raw)} does not contain {key} = {_brief(data.get(key))}; expected an interval around the value")
+            return None
+        return (lo, hi)
 
     def inhibitions(self, data: dict[str, Any], path: str, molar_mass: Q | None) -> tuple[Inhibition, ...]:
         out = []
@@ -683,6 +784,7 @@ class _Reader:
                 f"{path}.pathways",
                 f"fm values sum to {total:.12g}; expected a total of at most 1 (the rest is renal and other routes)",
             )
+        phenotypes = self.phenotypes(data, path, {p.enzyme for p in pathways})
         lower, upper = self.boundary(data, "no_effect_boundary", path) or (None, None)
         peak_boundary = self.boundary(data, "peak_boundary", path)
         trough_boundary = self.boundary(data, "trough_boundary", path)
@@ -704,10 +806,49 @@ class _Reader:
             intervals=intervals,
             peak_boundary=peak_boundary,
             trough_boundary=trough_boundary,
+            phenotypes=phenotypes,
             half_life=v_half_life,
             hepatic_extraction=v_extraction,
             ka=v_ka,
         )
+
+    def phenotypes(self, data: dict[str, Any], path: str, pathway_enzymes: set[str]) -> tuple[PhenotypeChoice, ...]:
+        table = load_phenotypes()
+        out: list[PhenotypeChoice] = []
+        seen: set[str] = set()
+        for i, raw in self.items(data, "phenotypes", path):
+            at = f"{path}.phenotypes[{i}]"
+            pdata = self.table(raw, at, ("enzyme", "phenotype", "activity"))
+            if pdata is None:
+                continue
+            enzyme = self.target_name(pdata, "enzyme", at)
+            if enzyme is None:
+                continue
+            if enzyme not in table:
+                self.fail(f"{at}.enzyme", f'"{enzyme}" has no phenotype table; expected one of {", ".join(table)}')
+                continue
+            if enzyme not in pathway_enzymes:
+                self.fail(f"{at}.enzyme", f'"{enzyme}" is not one of the victim\'s pathways; its phenotype would change nothing')
+                continue
+            if enzyme in seen:
+                self.fail(f"{at}.enzyme", f'"{enzyme}" is listed twice; give one phenotype (or "all") per enzyme')
+                continue
+            seen.add(enzyme)
+            if "activity" in pdata and "phenotype" in pdata:
+                self.fail(f"{at}.activity", "is given with a phenotype; give either a phenotype from the table or your own activity")
+                continue
+            if "activity" in pdata:
+                activity = self.number(pdata, "activity", at, low=0.0, high=10.0, low_open=False)
+                if activity is not None:
+                    out.append(PhenotypeChoice(enzyme=enzyme, phenotype="given", activity=activity))
+                continue
+            names = [p.name for p in table[enzyme]]
+            phenotype = self.text(pdata, "phenotype", at, required=True)
+            if phenotype not in (*names, "all"):
+                self.fail(f"{at}.phenotype", f'"{phenotype[:40]}" is not one of {", ".join(names)} or "all" (or give activity)')
+                continue
+            out.append(PhenotypeChoice(enzyme=enzyme, phenotype=phenotype))
+        return tuple(out)
 
     def physiology(self, raw: object) -> Physiology | None:
         path = "physiology"
@@ -809,6 +950,8 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
             return
         if isinstance(value, pint.Quantity):
             out[key] = units.format_quantity(value)
+        elif isinstance(value, tuple):
+            out[key] = [units.format_quantity(v) if isinstance(v, pint.Quantity) else v for v in value]
         else:
             out[key] = value
 
@@ -863,6 +1006,11 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
     for key in ("peak_boundary", "trough_boundary"):
         if getattr(v, key) is not None:
             vic[key] = list(getattr(v, key))
+    if v.phenotypes:
+        vic["phenotypes"] = [
+            {"enzyme": c.enzyme, "activity": c.activity} if c.activity is not None else {"enzyme": c.enzyme, "phenotype": c.phenotype}
+            for c in v.phenotypes
+        ]
     for key in ("half_life", "hepatic_extraction", "ka"):
         put(vic, key, getattr(v, key))
     vic["pathways"] = [{"enzyme": pw.enzyme, "fm": pw.fm} for pw in v.pathways]

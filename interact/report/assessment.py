@@ -14,7 +14,7 @@ import pint
 
 from .. import units
 from ..assessment import Assessment
-from ..cautions import CAUTION_LINE
+from ..cautions import CAUTION_LINE, DOSE_CAUTIONS, GENOTYPE_CAUTIONS
 from ..dosing import ACTIONS, DoseSuggestion, RegimenOutcome
 from ..exposure import Setting
 from .document import Note, Section, Table, render_markdown, render_text
@@ -109,7 +109,7 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"{fmt(c.ki_um)} uM",
+                    f"{fmt(c.ki_um)} uM" + (f" (interval {fmt(c.ki_ci_um[0])}-{fmt(c.ki_ci_um[1])})" if c.ki_ci_um else ""),
                     c.ki_route,
                     f"{c.fu_inc:g} ({c.fu_inc_origin})",
                     f"{fmt(c.ki_u_um)} uM",
@@ -120,9 +120,9 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"kinact {fmt(c.kinact_per_h)} 1/h",
+                    f"kinact {fmt(c.kinact_per_h)} 1/h, KI {fmt(c.ki_inact_um)} uM",
                     "time-dependent",
-                    "-",
+                    f"{c.ki_inact_fu:g} ({c.ki_inact_fu_origin})",
                     f"KI,u {fmt(c.ki_inact_u_um)} uM",
                 )
             )
@@ -131,9 +131,9 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"Emax {fmt(c.emax)}, d {c.calibration:g} ({c.calibration_origin})",
+                    f"Emax {fmt(c.emax)}, d {c.calibration:g} ({c.calibration_origin}), EC50 {fmt(c.ec50_um)} uM",
                     "induction",
-                    "-",
+                    f"{c.ec50_fu:g} ({c.ec50_fu_origin})",
                     f"EC50,u {fmt(c.ec50_u_um)} uM",
                 )
             )
@@ -143,7 +143,10 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
             title="Inputs",
             blocks=(
                 Table(headers=("Perpetrator", "value", "as used"), rows=tuple(perp_rows)),
-                Table(headers=("Target", "species", "constant given", "route to Ki", "fu,inc", "unbound"), rows=tuple(const_rows)),
+                Table(
+                    headers=("Target", "species", "constant given", "route to Ki", "binding: fu (source)", "unbound"),
+                    rows=tuple(const_rows),
+                ),
                 Table(headers=("Victim", "value", ""), rows=tuple(vic_rows)),
                 Table(headers=("Setting", "value used", "origin and source"), rows=settings_rows),
             ),
@@ -250,6 +253,9 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
     )
     sections.append(Section(title="Mechanistic static model", blocks=tuple(blocks)))
 
+    if a.phenotypes:
+        sections.append(phenotype_section(a))
+
     # -- time course (interact.dynamic), when computed
     timing: tuple[str, ...] = ()
     if time_course is not None:
@@ -297,6 +303,44 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
         )
     )
     return sections
+
+
+def phenotype_section(a: Assessment) -> Section:
+    """Drug-drug-gene cases: one row per phenotype combination, with its dose advice."""
+    rows = []
+    for c in a.phenotypes:
+        d = c.dose
+        advice = d.headline + (f": {d.chosen.describe(d.dose_unit)}" if d.chosen is not None else "")
+        rows.append(
+            (
+                ", ".join(f"{e} {name} (a = {act:g})" for e, name, act in c.activities) + (", population fm" if c.reference else ""),
+                ", ".join(f"{e} {f:.2g}" for e, f in c.fm),
+                fmt_ratio(c.genotype_ratio),
+                fmt_ratio(c.interaction_ratio),
+                fmt_ratio(c.combined_ratio),
+                advice,
+            )
+        )
+    blocks: list[str | Table | Note] = [
+        Table(
+            headers=("phenotype", "fm in it", "vs normal, alone", "AUCR", "vs normal, with precipitant", "dose advice"),
+            rows=tuple(rows),
+        ),
+        "vs normal = AUC relative to a normal metaboliser on the usual dose without the precipitant (alone: the "
+        "genotype effect; with precipitant: the combined effect the dose advice answers). AUCR = with / without the "
+        "precipitant within the phenotype; a = relative activity of the pathway. fm' = fm x a / "
+        "(sum fm x a + 1 - sum fm): a poor metaboliser of one pathway shifts clearance to the others.",
+        "Assumptions: the given fm values are the normal metaboliser's; a phenotype scales only its own pathway's "
+        "intrinsic clearance by its relative activity a; linear kinetics; no genotype effect in the gut wall.",
+    ]
+    seen = set()
+    for c in a.phenotypes:
+        for (e, name, act), src in zip(c.activities, c.sources, strict=True):
+            if src is not None and (e, name) not in seen:
+                seen.add((e, name))
+                blocks.append(f"- {e} {name}: relative activity {act:g} ({src.status}); {src.source}.")
+    blocks.extend(Note(text=t) for t in (*GENOTYPE_CAUTIONS, DOSE_CAUTIONS[0]))
+    return Section(title="Object drug genotype (drug-drug-gene interaction)", blocks=tuple(blocks))
 
 
 def regimen_table(d: DoseSuggestion, outcomes: tuple[RegimenOutcome, ...]) -> Table:
@@ -397,8 +441,15 @@ def _assessment_dict(a: Assessment) -> dict[str, Any]:
                 "ki_route": c.ki_route,
                 "mechanism": c.mechanism,
                 "kinact_per_h": c.kinact_per_h,
+                "ki_ci_um": list(c.ki_ci_um) if c.ki_ci_um else None,
+                "ki_inact_um": c.ki_inact_um,
+                "ki_inact_fu": c.ki_inact_fu,
+                "ki_inact_fu_origin": c.ki_inact_fu_origin,
                 "ki_inact_u_um": c.ki_inact_u_um,
                 "emax": c.emax,
+                "ec50_um": c.ec50_um,
+                "ec50_fu": c.ec50_fu,
+                "ec50_fu_origin": c.ec50_fu_origin,
                 "ec50_u_um": c.ec50_u_um,
                 "calibration": c.calibration,
             }
@@ -477,6 +528,22 @@ def _assessment_dict(a: Assessment) -> dict[str, Any]:
             "reasons": list(d.reasons),
             "cautions": list(d.cautions),
         },
+        "phenotypes": [
+            {
+                "label": c.label,
+                "reference": c.reference,
+                "activities": [{"enzyme": e, "phenotype": n, "activity": act} for e, n, act in c.activities],
+                "fm": dict(c.fm),
+                "exposure_vs_normal_alone": c.genotype_ratio,
+                "auc_ratio_with_precipitant": c.interaction_ratio,
+                "exposure_vs_normal_with_precipitant": c.combined_ratio,
+                "ceiling": _num(c.ceiling),
+                "action": c.dose.action,
+                "headline": c.dose.headline,
+                "suggested": _regimen_json(c.dose.chosen),
+            }
+            for c in a.phenotypes
+        ],
         "perpetrator_dose_limit": {"dose": lim.dose, "unit": lim.dose_unit, "scale": lim.scale, "reason": lim.reason},
         "warnings": list(a.warnings),
         "from_memory": list(a.memory_values),

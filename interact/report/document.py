@@ -35,9 +35,12 @@ def terminal_safe(text: str) -> str:
     return _CONTROL.sub("", _ESCAPE_SEQUENCE.sub("", text))
 
 
-_MD_SPECIAL = re.compile(r"([\\`*_\[\]#!|~])")  # inline markup, links and images; & < > become entities
+# inline markup, links and images (& < > become entities); an underscore inside a word opens no emphasis (CommonMark's
+# flanking rules), so ki_ci stays readable
+_MD_SPECIAL = re.compile(r"([\\`*\[\]#!|~]|(?<![A-Za-z0-9])_|_(?![A-Za-z0-9]))")
 _MD_ENTITY = re.compile(r"&(?=#\d+;|#[xX][0-9a-fA-F]+;|[A-Za-z][A-Za-z0-9]*;)")
-_MD_LINE_START = re.compile(r"^(\s*)([-+=]|\d+[.)])")  # a list item, a setext underline or a numbered item
+_MD_LINE_START = re.compile(r"^(\s*)([-+]|\d{1,9}[.)])(?=\s|$)")  # a list item: the marker, then a space or the end
+_MD_RULE = re.compile(r"^(\s*)([-=])(?=[\s=-]*$)")  # a line of - or = alone: a thematic break or a setext underline
 
 
 def md_escape(text: str) -> str:
@@ -47,7 +50,7 @@ def md_escape(text: str) -> str:
     flat = terminal_safe(text).replace("\r", " ").replace("\n", " ").replace("\t", " ")
     flat = _MD_ENTITY.sub("&amp;", flat).replace("<", "&lt;").replace(">", "&gt;")
     flat = _MD_SPECIAL.sub(r"\\\1", flat)
-    return _MD_LINE_START.sub(_escape_marker, flat)
+    return _MD_RULE.sub(r"\1\\\2", _MD_LINE_START.sub(_escape_marker, flat))
 
 
 def _escape_marker(m: re.Match[str]) -> str:

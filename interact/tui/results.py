@@ -204,6 +204,19 @@ def render_answer(a: Assessment, comparison: Comparison | None = None, *, narrow
         doc.para("No criterion of this rule set applies to the targets given.")
     doc.blank()
 
+    # -- drug-drug-gene cases, when the victim states phenotypes
+    genotype = next((sec for sec in sections if sec.title.startswith("Object drug genotype")), None)
+    if genotype is not None:
+        doc.para((genotype.title, st("heading")))
+        for b in genotype.blocks:
+            if isinstance(b, Table):
+                doc.table(b.headers, [tuple(r) for r in b.rows])
+            elif isinstance(b, Note):
+                doc.para(("Caution: ", st("caution_head")), (b.text, st("caution")))
+            else:
+                doc.para(b, hanging=2)
+        doc.blank()
+
     # -- dose
     dose = _section(sections, "Dose suggestion")
     doc.para((f"Dose of {a.scenario.victim.name}", st("heading")))

@@ -90,8 +90,10 @@ def test_md_escape_leaves_no_markup(text: str) -> None:
     out = md_escape(text)
     assert "<" not in out and ">" not in out and "\n" not in out
     for ch in "`*_[]|~!#":
-        # each such character is preceded by an odd number of backslashes: it is literal
-        for m in re.finditer(re.escape(ch), out):
+        # each such character is preceded by an odd number of backslashes: it is literal (an underscore inside a
+        # word opens no emphasis in CommonMark and is left as it is)
+        pattern = r"(?<![A-Za-z0-9])_|_(?![A-Za-z0-9])" if ch == "_" else re.escape(ch)
+        for m in re.finditer(pattern, out):
             run = len(out[: m.start()]) - len(out[: m.start()].rstrip("\\"))
             assert run % 2 == 1, (text, out)
 
