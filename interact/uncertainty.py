@@ -805,6 +805,13 @@ def run_uncertainty(
         gut[start:stop] = np.broadcast_to(r.gut, (stop - start,))
         liver[start:stop] = np.broadcast_to(r.liver, (stop - start,))
         total[start:stop] = np.broadcast_to(r.total, (stop - start,))
+    nonfinite = ~np.isfinite(total)
+    if nonfinite.any():  # never "not a number" in a summary: the input ranges keep ratios finite, so this names the inputs if not
+        raise InputError(
+            "vary",
+            ", ".join(inp.path for inp, _ in pairs),
+            f"gave a ratio that is not a finite number in {int(nonfinite.sum()):,} of {samples:,} samples; narrow these distributions",
+        )
     return summarise(assessment, model, pairs, adjusted, fm_scaled, gut, liver, total, method=method, seed=seed)
 
 

@@ -357,3 +357,23 @@ def test_text_parsers_drop_a_byte_order_mark() -> None:
     assert data.n == 2
     assert parse_fold_change_csv("\ufeffconcentration (uM),fold_change\n0,1\n1,2\n").n == 2
     assert len(loads_victims("\ufeff" + V_TABLE).rows) == 2
+
+
+def test_uncertainty_refuses_to_summarise_a_non_finite_ratio(monkeypatch: pytest.MonkeyPatch) -> None:
+    """The guard behind "never 'not a number'": should a model ever give NaN, the run stops with the inputs named."""
+    import numpy as np
+
+    import interact.uncertainty as unc
+
+    result = assess(scenario_from_dict(base_dict()))
+    original = unc.ScenarioModel.evaluate
+
+    def with_a_hole(self, values=None):  # type: ignore[no-untyped-def]
+        r = original(self, values)
+        total = np.array(r.total, dtype=float, copy=True)
+        total.flat[0] = np.nan
+        return unc.Ratios(gut=r.gut, liver=r.liver, total=total)
+
+    monkeypatch.setattr(unc.ScenarioModel, "evaluate", with_a_hole)
+    with pytest.raises(InputError, match=r"perpetrator\.cmax.*not a finite number in 1 of 200"):
+        unc.run_uncertainty(result, (("perpetrator.cmax", "cv:30%"),), samples=200)
