@@ -179,3 +179,16 @@ def test_saving_a_scenario_keeps_a_read_only_file(tmp_path: Path) -> None:
     with pytest.raises(InputError, match="read-only"):
         save_scenario(load_scenario(scen), scen)
     assert scen.read_text(encoding="utf-8") == DEMO
+
+
+def test_saving_a_scenario_through_a_link_keeps_the_link(tmp_path: Path) -> None:
+    """Issue 11: saving through a symbolic link replaced the link with a plain file."""
+    from interact.scenario import load_scenario, save_scenario
+
+    real = _scenario(tmp_path, "real.toml")
+    link = tmp_path / "link.toml"
+    link.symlink_to(real)
+    scenario = load_scenario(link)
+    save_scenario(scenario, link)
+    assert link.is_symlink() and link.resolve() == real.resolve()
+    assert load_scenario(real) == scenario
