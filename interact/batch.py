@@ -25,8 +25,8 @@ from __future__ import annotations
 import csv
 import io
 import math
+import os
 import re
-import tomllib
 from collections.abc import Callable, Iterable, Iterator, Mapping
 from dataclasses import dataclass
 from pathlib import Path
@@ -42,6 +42,7 @@ from .constants import resolve_constants
 from .dosing import ACTIONS, RegimenPlan, choose_regimens, plan_for_victim
 from .errors import InputError, InteractError, Problem, ScenarioError
 from .exposure import resolve_exposure, resolve_settings
+from .files import loads_toml, read_text
 from .prediction import gut_ratio, liver_ratio, reversible_term
 from .scenario import Perpetrator, Scenario, Victim, scenario_from_dict
 from .screening import screen
@@ -302,10 +303,7 @@ def _rows_csv(text: str) -> tuple[list[str], list[tuple[int, list[str]]]]:
 
 
 def _rows_toml(text: str, side: str, source: str) -> tuple[list[str], list[tuple[int, dict[str, Any]]]]:
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
+    data = loads_toml(text, source)
     entries = data.get(side)
     if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
         raise InputError(source, side, f"has no [[{side}]] entries; expected one [[{side}]] table per row")
@@ -530,12 +528,16 @@ def _rows_records(table: Any, source: str) -> tuple[list[str], list[tuple[int, d
     return headers, entries
 
 
-def _rows_xlsx(data: bytes, sheet: str | None, source: str) -> tuple[list[str], list[tuple[int, dict[str, Any]]]]:
-    """Rows of one sheet of an .xlsx workbook (openpyxl), numbered as the spreadsheet numbers them.
+def _xlsx_extent(data: bytes, sheet: str | None, source: str) -> int:
+    book = _open_workbook(data, source)
+    try:
+        ws = _sheet(book, sheet, source)
+        return max(int(ws.max_row or 0) - 1, 0)
+    finally:
+        book.close()
 
-    The first sheet unless ``sheet`` names one.  As in CSV: empty rows and rows whose first cell
-    starts with ``#`` are skipped, the first remaining row is the header, an empty cell is a missing value.
-    """
+
+def _open_workbook(data: bytes, source: str) -> Any:
     try:
         import openpyxl
     except ImportError:
@@ -543,16 +545,28 @@ def _rows_xlsx(data: bytes, sheet: str | None, source: str) -> tuple[list[str], 
     import zipfile
 
     try:
-        book = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=True)
+        return openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=True)
     except (zipfile.BadZipFile, OSError, ValueError, KeyError) as exc:
         raise InputError(source, "xlsx", f"could not be read as an .xlsx workbook ({exc.__class__.__name__})") from None
+
+
+def _sheet(book: Any, sheet: str | None, source: str) -> Any:
+    if sheet is None:
+        return book.worksheets[0]
+    if sheet in book.sheetnames:
+        return book[sheet]
+    raise InputError(f"{source}: --sheet", sheet, f"is not a sheet of this workbook; expected one of {', '.join(book.sheetnames)}")
+
+
+def _rows_xlsx(data: bytes, sheet: str | None, source: str) -> tuple[list[str], list[tuple[int, dict[str, Any]]]]:
+    """Rows of one sheet of an .xlsx workbook (openpyxl), numbered as the spreadsheet numbers them.
+
+    The first sheet unless ``sheet`` names one.  As in CSV: empty rows and rows whose first cell
+    starts with ``#`` are skipped, the first remaining row is the header, an empty cell is a missing value.
+    """
+    book = _open_workbook(data, source)
     try:
-        if sheet is None:
-            ws = book.worksheets[0]
-        elif sheet in book.sheetnames:
-            ws = book[sheet]
-        else:
-            raise InputError(f"{source}: --sheet", sheet, f"is not a sheet of this workbook; expected one of {', '.join(book.sheetnames)}")
+        ws = _sheet(book, sheet, source)
         headers: list[str] = []
         entries: list[tuple[int, dict[str, Any]]] = []
         for number, row in enumerate(ws.iter_rows(values_only=True), start=1):
@@ -615,6 +629,8 @@ def _parse_rows(
 ) -> tuple[list[Any], list[int], list[_Column], list[RowProblem]]:
     if on_error not in ("fail", "skip"):
         raise InputError("on_error", on_error, "is not 'fail' or 'skip'")
+    if isinstance(text, str):
+        text = text.removeprefix("\ufeff")  # a byte-order mark is dropped
     cols, entries = _read(text, side, source, fmt_name, sheet)
     if len(entries) > MAX_ROWS:
         raise InputError(source, len(entries), f"rows is more than the {MAX_ROWS:,} a table may have")
@@ -638,6 +654,10 @@ def _parse_rows(
     if problems and on_error == "fail":
         raise BadRowsError(tuple(problems), source)
     if not valid:
+        if problems:  # every row bad: say why, as a failing run would
+            n = len(problems)
+            shown = "; ".join(f"line {p.line}: {p.message}" for p in problems[:3]) + (f" (and {n - 3} more)" if n > 3 else "")
+            raise InputError(source, f"{n} rows", f"has no valid {side} row; every row is bad: {shown}")
         raise InputError(source, "no rows", f"has no valid {side} row")
     return valid, lines, cols, problems
 
@@ -783,23 +803,24 @@ def loads_victims(
     )
 
 
-def read_table(path: str | Path) -> str | bytes:
+def read_table(path: str | Path, field: str = "table") -> str | bytes:
     """A batch table file as :func:`loads_perpetrators` / :func:`loads_victims` take it.
 
-    The bytes of an ``.xlsx`` workbook, else the UTF-8 text of a CSV or TOML file.
+    The bytes of an ``.xlsx`` workbook, else the text of a CSV or TOML file
+    (through :func:`interact.files.read_text`, the one reader).
 
     Raises
     ------
     InputError
-        The file cannot be read (naming it and why).
+        The file cannot be read (named by ``field``, with the path and why).
     """
     target = Path(path)
+    if target.suffix.lower() != ".xlsx":
+        return read_text(target, field)
     try:
-        if target.suffix.lower() == ".xlsx":
-            return target.read_bytes()
-        return target.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError("table", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+        return target.read_bytes()
+    except OSError as exc:
+        raise InputError(field, str(path), f"could not be read ({exc.strerror or exc.__class__.__name__})") from None
 
 
 def load_perpetrators(path: str | Path, rules: RuleSet | str | None = None, **options: Any) -> PerpetratorTable:
@@ -951,6 +972,7 @@ def pair_ratios(
     fm_sum = np.zeros(n_v)
     for k in range(fm.shape[1]):
         fm_sum += fm[:, k]
+    rest = 1.0 - fm_sum
     fm = fm * victims.activity  # a phenotype scales its pathway (x 1.0 is exact: no change without phenotypes)
     fg = np.where(victims.oral, victims.fg, 1.0)[None, :]  # Fg = 1 gives a gut ratio of exactly 1 (intravenous victim)
     done = 0
@@ -962,8 +984,7 @@ def pair_ratios(
         for k in range(fm.shape[1]):
             weighted += fm[None, :, k] * a[:, k, None]
         out = liver[a0:a1]
-        np.add(weighted, 1.0, out=out)
-        out -= fm_sum[None, :]
+        np.add(weighted, rest[None, :], out=out)  # (1 - sum fm) first, as interact.prediction: exact when fm = 1
         np.divide(1.0, out, out=out)
         g = gut[a0:a1]
         g[...] = gut_ratio(fg, acts_gut[a0:a1, None])
@@ -983,6 +1004,48 @@ def _gut_column(perpetrators: PerpetratorTable) -> int:
     return -1
 
 
+#: peak memory per pair of evaluate_pairs plus ranking, bytes: about 43 measured with tests/bench/bench_batch.py
+#: (41 MiB traced for 1,000,000 pairs), with room for the ranking's sort keys and the writer's blocks
+BYTES_PER_PAIR: Final = 64
+#: the share of the machine's free memory a batch may plan to use
+_MEMORY_SHARE: Final = 0.5
+
+
+def _free_memory_bytes() -> int:
+    """Free physical memory (the system's available pages), or 4 GiB when the system does not say."""
+    try:
+        return int(os.sysconf("SC_AVPHYS_PAGES")) * int(os.sysconf("SC_PAGE_SIZE"))
+    except (AttributeError, ValueError, OSError):
+        return 4 * 2**30
+
+
+def check_pair_budget(n_perpetrators: int, n_victims: int) -> None:
+    """Refuse, before any work, a batch whose pairs would not fit in half the free memory."""
+    n = n_perpetrators * n_victims
+    need = n * BYTES_PER_PAIR
+    free = _free_memory_bytes()
+    if need > _MEMORY_SHARE * free:
+        raise InputError(
+            "pairs",
+            f"{n_perpetrators:,} perpetrators x {n_victims:,} victims = {n:,}",
+            f"would need about {need / 2**30:,.1f} GiB, more than half the {free / 2**30:,.1f} GiB of free memory; "
+            "split the tables and screen the parts one after another",
+        )
+
+
+def count_rows(text: str | bytes, source: str, side: str, *, sheet: str | None = None) -> int:
+    """The number of rows a table holds (before validation; cheap): to refuse a batch beyond memory before reading it.
+
+    For an .xlsx workbook (bytes), the sheet's extent as the workbook records it, less the header row.
+    """
+    if isinstance(text, bytes):
+        return _xlsx_extent(text, sheet, source)
+    if source.lower().endswith(".toml"):
+        return len(re.findall(rf"(?m)^\s*\[\[\s*{side}\s*\]\]", text))
+    lines = sum(1 for line in text.splitlines() if line.strip() and not line.lstrip().startswith("#"))
+    return max(lines - 1, 0)  # less the header
+
+
 def evaluate_pairs(
     perpetrators: PerpetratorTable,
     victims: VictimTable,
@@ -994,6 +1057,7 @@ def evaluate_pairs(
     rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules)
     classes = load_classes()
     n_p, n_v = len(perpetrators.rows), len(victims.rows)
+    check_pair_budget(n_p, n_v)
     gut, liver, exposure = pair_ratios(perpetrators, victims, progress=progress)
     total = exposure
     phen = np.array([bool(v.phenotypes) for v in victims.rows], dtype=bool)
@@ -1003,6 +1067,14 @@ def evaluate_pairs(
         liver = liver.copy()
         liver[:, phen] /= victims.genotype[None, phen]
         total = gut * liver
+    bad = ~np.isfinite(total)
+    if bad.any():  # never a blank ratio: the input ranges keep every ratio finite, so this names a pair if not
+        i, j = (int(k) for k in np.argwhere(bad)[0])
+        raise InputError(
+            f"pair {perpetrators.rows[i].name} x {victims.rows[j].name}",
+            float(total[i, j]),
+            "is not a finite AUC ratio; check this perpetrator's Ki and concentrations and the victim's fm values",
+        )
     band = band_codes(total, classes)
     action = np.empty(total.shape, dtype=np.int8)
     for j, plan in enumerate(victims.plans):  # one victim's regimens at a time, over all its pairs

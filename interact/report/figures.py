@@ -66,21 +66,35 @@ def figure_bytes(fig: Figure, fmt: str) -> bytes:
     return buffer.getvalue()
 
 
-def save_figure(fig: Figure, path: str | Path) -> Path:
-    """Write ``fig`` to ``path`` (.svg, .png or .pdf) atomically: the old file or the new one, never a part.
+def save_figure(
+    fig: Figure,
+    path: str | Path,
+    *,
+    field: str = "plot",
+    inputs: Sequence[str | Path | None] = (),
+    force: bool = False,
+    fmt: str | None = None,
+) -> Path:
+    """Write ``fig`` to ``path`` (.svg, .png or .pdf) through the one writer (:func:`interact.files.write_file`).
+
+    Atomic: the old file or the new one, never a part; ``inputs`` (files the run reads) are never
+    overwritten and ``force`` replaces a read-only file, as for every output.  The format
+    follows the suffix (.svg, .png, .pdf) unless ``fmt`` names one (``"svg"`` ...).
 
     Raises
     ------
     InputError
-        Unsupported suffix, or the file cannot be written.
+        Unsupported suffix, or the file cannot be written (named by ``field``).
     """
     target = Path(path)
     suffix = target.suffix.lower()
-    if suffix not in FIGURE_SUFFIXES:
-        raise InputError("plot", str(path), f"has an unsupported suffix; expected one of {', '.join(FIGURE_SUFFIXES)}")
-    from ..scenario import write_text_atomic
+    if fmt is None and suffix not in FIGURE_SUFFIXES:
+        raise InputError(field, str(path), f"has an unsupported suffix; expected one of {', '.join(FIGURE_SUFFIXES)}")
+    if fmt is not None and f".{fmt}" not in FIGURE_SUFFIXES:
+        raise InputError("fmt", fmt, f"is not a figure format; expected one of {', '.join(s.lstrip('.') for s in FIGURE_SUFFIXES)}")
+    from ..files import write_file
 
-    write_text_atomic(target, figure_bytes(fig, suffix.lstrip(".")))
+    write_file(target, figure_bytes(fig, fmt or suffix.lstrip(".")), field=field, inputs=inputs, force=force)
     return target
 
 

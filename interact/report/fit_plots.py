@@ -54,7 +54,7 @@ def render_terminal(plot: PlotData, width: int = 80, height: int = 22) -> str:
     return text.rstrip() + key + note + "\n"
 
 
-def save_figure(plots: Sequence[PlotData], path: str | Path) -> Path:
+def save_figure(plots: Sequence[PlotData], path: str | Path, *, inputs: Sequence[str | Path | None] = (), force: bool = False) -> Path:
     """Draw ``plots`` side by side (:func:`interact.report.figures.fit_figure`) into ``path`` (.svg, .png or .pdf).
 
     Raises
@@ -66,4 +66,4 @@ def save_figure(plots: Sequence[PlotData], path: str | Path) -> Path:
 
     if Path(path).suffix.lower() not in FIGURE_SUFFIXES:  # before drawing: a bad name costs nothing
         raise InputError("plot", str(path), f"has an unsupported suffix; expected one of {', '.join(FIGURE_SUFFIXES)}")
-    return figures.save_figure(figures.fit_figure(plots), path)
+    return figures.save_figure(figures.fit_figure(plots), path, field="--plot", inputs=inputs, force=force)
