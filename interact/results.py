@@ -38,6 +38,7 @@ __all__ = [
     "comparison_html",
     "comparison_repr",
     "data_frame",
+    "setting_dict",
     "summary_html",
     "uncertainty_html",
     "uncertainty_repr",
@@ -82,7 +83,8 @@ def _num(x: float | None) -> float | None:
     return x
 
 
-def _setting_dict(s: Setting) -> dict[str, Any]:
+def setting_dict(s: Setting) -> dict[str, Any]:
+    """A setting (value used, unit, origin, source, status) as JSON-ready data."""
     return {
         "name": s.name,
         "label": s.label,
@@ -111,7 +113,7 @@ def assessment_dict(a: Assessment) -> dict[str, Any]:
         "title": a.scenario.title,
         "invented": a.scenario.invented,
         "rules": {"id": a.rules.id, "title": a.rules.title, "version": a.rules.version, "table_version": a.rules.table_version},
-        "settings": [_setting_dict(s) for s in (*a.settings, *a.kdeg_used)],
+        "settings": [setting_dict(s) for s in (*a.settings, *a.kdeg_used)],
         "concentrations_um": [
             {
                 "species": sp.species,

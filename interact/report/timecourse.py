@@ -16,7 +16,7 @@ from ..assessment import Assessment
 from ..cautions import CAUTION_LINE
 from ..dosing import timing_advice
 from ..dynamic import TimeCourse, time_course_arrays
-from ..results import TIMECOURSE_SCHEMA
+from ..results import TIMECOURSE_SCHEMA, setting_dict
 from .document import Note, Section, Table, render_markdown, render_text
 from .numbers import fmt, fmt_ratio
 
@@ -185,19 +185,7 @@ def timecourse_to_dict(tc: TimeCourse, a: Assessment | None = None, *, curves: b
             }
             for e in tc.enzymes
         ],
-        "settings": [
-            {
-                "name": s.name,
-                "label": s.label,
-                "value": s.value,
-                "unit": s.unit,
-                "origin": s.origin,
-                "source": s.source,
-                "status": s.status,
-                "note": s.note,
-            }
-            for s in (*tc.settings, *tc.kdeg_used)
-        ],
+        "settings": [setting_dict(s) for s in (*tc.settings, *tc.kdeg_used)],
         "warnings": list(tc.warnings),
         "notes": list(tc.notes),
     }
