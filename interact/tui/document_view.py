@@ -27,20 +27,32 @@ class DocumentView(ScrollView, can_focus=True):
         self._lines: list[Strip] = []
         self._width = 0
         self._base = Style()
+        self._laid_out = False
 
     def show(self, document: Doc) -> None:
         self._document = document
+        self._laid_out = False
         self._render_document()
+
+    @property
+    def document(self) -> Doc:
+        """The document last given to :meth:`show` (what the view shows, or will show once visible)."""
+        return self._document
 
     @property
     def plain_text(self) -> str:
         """The document as plain text at the current width (for tests and copying)."""
+        if not self._laid_out:  # hidden (another tab): lay out at the last width so the text is the current one
+            return "\n".join("".join(s.text for s in line).rstrip() for line in self._document.lines(self._width or 80))
         return "\n".join(strip.text.rstrip() for strip in self._lines)
 
     def _render_document(self) -> None:
         width = self.scrollable_content_region.width or self.size.width
         if width <= 0:
+            # hidden (the answer tab while the plots or the fitting view show): laid out when shown again.
+            # Returning without marking it kept the old answer on screen after "use the fitted Ki"
             return
+        self._laid_out = True
         self._width = width
         style = self._base = self.rich_style
         self._lines = [Strip(line).apply_style(style) for line in self._document.lines(width)] or [Strip.blank(width)]
@@ -55,13 +67,19 @@ class DocumentView(ScrollView, can_focus=True):
         self.refresh()
 
     def on_resize(self) -> None:
-        if (self.scrollable_content_region.width or self.size.width) != self._width:
+        if not self._laid_out or (self.scrollable_content_region.width or self.size.width) != self._width:
+            self._render_document()
+
+    def on_show(self) -> None:
+        if not self._laid_out:
             self._render_document()
 
     def on_mount(self) -> None:
         self.watch(self.app, "theme", lambda _: self._render_document(), init=False)
 
     def render_line(self, y: int) -> Strip:
+        if not self._laid_out:
+            self._render_document()
         scroll_x, scroll_y = self.scroll_offset
         index = scroll_y + y
         width = self.scrollable_content_region.width
