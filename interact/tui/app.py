@@ -226,7 +226,8 @@ class InteractApp(App[int]):
         self.undo_stack: list[Snapshot] = []
         self.redo_stack: list[Snapshot] = []
         self._texts: dict[str, str] = {}  # every field's text as of the last update (what an undo restores)
-        self._typing: str | None = None  # the field a run of keystrokes is typed into (one undo step per run)
+        #: the field a run of keystrokes is typed into, with the form's selection count (one undo step per run)
+        self._typing: tuple[str, int] | None = None
 
     # ------------------------------------------------------------------ layout
     def compose(self) -> ComposeResult:
@@ -435,7 +436,7 @@ class InteractApp(App[int]):
             self.undo_stack.append(Snapshot(copy.deepcopy(self.data), dict(self._texts), self._selected_key()))
             del self.undo_stack[:-UNDO_DEPTH]
             self.redo_stack.clear()
-        if undo is None or not undo.startswith("type "):
+        if undo is not None:
             self._typing = None
         self.data = data
         form = self.form
@@ -462,14 +463,13 @@ class InteractApp(App[int]):
             return
         data = copy.deepcopy(self.data)
         set_path(data, st.path, value_of(st.spec.kind, st.text))
-        label = f"type {st.key}"
-        self.update(data, undo=None if self._typing == st.key else label)
-        self._typing = st.key
+        run = (st.key, self.form.moves)
+        self.update(data, undo=None if self._typing == run else f"type {st.key}")
+        self._typing = run
         if st.path[-1] in ("target", "enzyme", "name") and len(st.path) > 2:
             self.form.set_item_title(st.path[:-1], self.data)
 
     def on_form_view_selected(self) -> None:
-        self._typing = None  # typing after moving starts a new undo step
         self.show_detail()
 
     def on_form_view_action_chosen(self, event: FormView.ActionChosen) -> None:

@@ -232,7 +232,9 @@ class FormView(ScrollView, can_focus=True):
         super().__init__(id=id)
         self.rows: list[Row] = []
         self.fields: dict[str, FieldState] = {}
-        self.selected = 0
+        #: how many times the selection was set (the app starts a new undo step when typing follows a move)
+        self.moves = 0
+        self._selected = 0
         self._styles: dict[str, Style] = {}
         #: called with the field on every change of its text, before the next key is handled (the app's update).
         #: A posted message would arrive after keys already queued (Ctrl+R, Ctrl+Z), so a change could be
@@ -285,6 +287,16 @@ class FormView(ScrollView, can_focus=True):
     def texts(self) -> dict[str, str]:
         """Every field's text, by key path."""
         return {key: st.text for key, st in self.fields.items()}
+
+    @property
+    def selected(self) -> int:
+        """The index of the selected row."""
+        return self._selected
+
+    @selected.setter
+    def selected(self, index: int) -> None:
+        self._selected = index
+        self.moves += 1
 
     @property
     def current(self) -> Row | None:

@@ -111,7 +111,7 @@ def dose_curve(a: Assessment, points: int = 121) -> Chart | None:
     dose = float(s.perpetrator.dose.magnitude)
     unit = lim.dose_unit
     low, high = 0.01, 10.0
-    if lim.scale is not None:
+    if lim.scale is not None and math.isfinite(lim.scale) and lim.scale > 0:  # a scale of 0 crashed the app (stateful test)
         low = min(low, lim.scale / 3.0)
         high = max(high, lim.scale * 3.0)
     scales = np.geomspace(low, high, points)
