@@ -190,7 +190,10 @@ async def test_saving_after_removing_a_target_removes_only_that_table(tmp_path: 
         await pilot.press("ctrl+s")
         await pilot.pause()
     saved = path.read_text(encoding="utf-8")
-    block = '[[perpetrator.inhibits]]\ntarget = "CYP2D6"\nki = "15 µM"                  # micro sign, as the lab sheet wrote it\nfu_inc = 0.8\n\n'
+    block = (
+        '[[perpetrator.inhibits]]\ntarget = "CYP2D6"\n'
+        'ki = "15 µM"                  # micro sign, as the lab sheet wrote it\nfu_inc = 0.8\n\n'
+    )
     assert block in original
     assert saved == original.replace(block, "")  # that table and nothing else
     assert 'mechanism = "competitive"     # confirmed by fit run 7' in saved  # stays with CYP3A4
