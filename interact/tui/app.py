@@ -166,7 +166,7 @@ class InteractApp(App[int]):
         Binding("f2", "cautions", "Cautions"),
         Binding("f3", "pin", "Pin"),
         Binding("f4", "next_view", "Views"),
-        Binding("f5", "group(1)", "Next group"),
+        Binding("f5", "group(1)", "Group"),
         Binding("shift+f5", "group(-1)", "Previous group", show=False),
         Binding("ctrl+s", "save", "Save"),
         Binding("f6", "save_as", "Save as"),
@@ -183,7 +183,7 @@ class InteractApp(App[int]):
         ("F2", "the full cautions"),
         ("F3", "pin the current result; later edits show as differences from it (F3 again unpins)"),
         ("F4", "switch the right side between the answer, the plots and the fitting view"),
-        ("F5", "next group of inputs (targets, metabolites, victim, ...)"),
+        ("F5", "next group of inputs (each target, metabolite and pathway, the victim, ...)"),
         ("Shift+F5", "previous group of inputs"),
         ("Up / Down", "in the form: previous / next field; PageUp / PageDown by a screen"),
         ("Enter", "in the form: next field, or do the selected 'add ...' / 'remove ...'"),
@@ -290,10 +290,10 @@ class InteractApp(App[int]):
 
     @property
     def file_label(self) -> str:
-        return "built-in demo (invented), not saved to a file" if self.path is None else str(self.path)
+        return "built-in demo (invented, no file)" if self.path is None else str(self.path)
 
     def update_title(self) -> None:
-        sub = self.file_label + ("  * unsaved edits" if self.dirty else "")
+        sub = self.file_label + (" * unsaved" if self.dirty else "")
         if self.sub_title != sub:
             self.sub_title = sub
 

@@ -380,7 +380,9 @@ class FormView(ScrollView, can_focus=True):
             st = row.state
             if offset == 0:
                 label = f" {indent}{st.spec.label}"
-                label = label[: self.LABEL_WIDTH - 1].ljust(self.LABEL_WIDTH)
+                if len(label) > self.LABEL_WIDTH - 1:  # marked as cut; the strip under the form gives it in full
+                    label = label[: self.LABEL_WIDTH - 2] + "…"
+                label = label.ljust(self.LABEL_WIDTH)
                 err = self._style("error") if st.error else Style()
                 segments.append(Segment(label, base + err + sel))
                 value_style = base + self._style("value") + sel
@@ -495,7 +497,7 @@ class FormView(ScrollView, can_focus=True):
         self._moved()
 
     def action_group(self, step: int) -> None:
-        starts = [i for i, r in enumerate(self.rows) if r.kind in ("group", "list")]
+        starts = [i for i, r in enumerate(self.rows) if r.kind in ("group", "list", "item")]  # every entry too
         ahead = [i for i in starts if (i > self.selected if step > 0 else i < self.selected - 1)]
         if not ahead:
             return

@@ -278,3 +278,41 @@ async def test_undo_and_redo_cover_removal_typing_and_the_fitted_ki() -> None:
         await pilot.pause()
         assert app.data == fitted
         assert app.assessment == assess(scenario_from_dict(fitted))
+
+
+@asynctest
+async def test_f5_visits_every_group_and_every_entry() -> None:
+    app = InteractApp()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        visited = []
+        for _ in range(30):
+            await pilot.press("f5")
+            row = app.form.current
+            assert row is not None
+            if visited and row.key == visited[-1]:
+                break
+            visited.append(row.key)
+        entries = {k.rsplit(".", 1)[0] for k in visited if "[" in k}
+        expected = set(app.form.entry_keys())  # every target, metabolite and pathway
+        assert expected <= entries | {k for k in visited}, expected - entries
+        for group in ("victim.", "title", "physiology."):
+            assert any(k.startswith(group) for k in visited), group
+
+
+@asynctest
+async def test_80_by_24_shows_the_title_the_whole_footer_and_marks_cut_labels() -> None:
+    app = InteractApp()
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.pause()
+        await replace_text(pilot, app, "victim.fg", "0.5")
+        await pilot.pause()
+        screen = painted(app)
+        assert "* unsaved" in screen[0]
+        assert "Save as" in screen[-1]
+        await app.reveal("victim.narrow_therapeutic_index")
+        await pilot.pause()
+        line = painted_field(app, "victim.narrow_therapeutic_index")
+        label = line[: app.form.LABEL_WIDTH].strip()
+        assert label.endswith("…") and "Narrow ther. index".startswith(label[:-1])
+        assert "Narrow ther. index" in str(app.query_one("#detail").content)  # type: ignore[attr-defined]
