@@ -555,7 +555,7 @@ class InteractApp(App[int]):
         tabs.active = order[(order.index(tabs.active) + 1) % len(order)] if tabs.active in order else order[0]
         if tabs.active == "fitting":
             self.query_one("#fit-path", Input).focus()
-        elif isinstance(self.focused, Input):
+        else:  # a control of a hidden view must not keep the focus (nothing would show it): back to the form
             self.form.focus()
 
     def action_pin(self) -> None:

@@ -316,3 +316,19 @@ async def test_80_by_24_shows_the_title_the_whole_footer_and_marks_cut_labels() 
         label = line[: app.form.LABEL_WIDTH].strip()
         assert label.endswith("…") and "Narrow ther. index".startswith(label[:-1])
         assert "Narrow ther. index" in str(app.query_one("#detail").content)  # type: ignore[attr-defined]
+
+
+@asynctest
+async def test_f4_from_a_fitting_button_moves_on_and_focus_returns_to_the_form() -> None:
+    app = InteractApp()
+    app.animation_level = "none"
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.pause()
+        await pilot.press("f4", "f4")
+        await pilot.pause()
+        app.query_one("#fit-run").focus()
+        await pilot.pause()
+        await pilot.press("f4")
+        await pilot.pause()
+        assert app.query_one("#views").active == "answer"  # type: ignore[attr-defined]
+        assert app.focused is app.form
