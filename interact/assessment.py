@@ -12,9 +12,10 @@ from typing import Final
 from . import __version__, units
 from .cautions import CAUTIONS
 from .constants import Constant, resolve_constants
-from .dosing import DoseLimit, DoseSuggestion, highest_perpetrator_scale, suggest_dose
+from .dosing import DoseLimit, DoseSuggestion, RegimenPlan, highest_perpetrator_scale, plan_for_victim, suggest_dose
 from .errors import InputError
 from .exposure import Setting, SpeciesExposure, resolve_exposure, resolve_settings
+from .genotype import PhenotypeCase, phenotype_cases
 from .prediction import Prediction, predict, ratio_function
 from .scenario import Scenario
 from .screening import ScreenResult, screen
@@ -53,6 +54,8 @@ class Assessment:
     aucr_cutoff: Sourced
     study_indicated: bool
     dose: DoseSuggestion
+    regimens: RegimenPlan
+    phenotypes: tuple[PhenotypeCase, ...]  # drug-drug-gene cases when the victim states phenotypes (interact.genotype)
     perpetrator_limit: DoseLimit
     kdeg_used: tuple[Setting, ...]
     warnings: tuple[str, ...]
@@ -162,6 +165,19 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
             warnings.append(f"{c.species} on {c.target}: {_UNCOMPETITIVE_NOTE}.")
         if c.fu_inc_origin == "default" and c.kind == "enzyme" and c.ki_u_um is not None:
             warnings.append(f"{c.species} on {c.target}: fu,inc not given; Ki taken as unbound (fu,inc = 1).")
+        shared = [
+            name
+            for name, value, origin in (("KI", c.ki_inact_um, c.ki_inact_fu_origin), ("EC50", c.ec50_um, c.ec50_fu_origin))
+            if value is not None and origin.startswith("fu_inc (given")
+        ]
+        if shared and c.fu_inc != 1.0:
+            corrected = " and ".join(["Ki", *shared] if c.ki_um is not None else shared)
+            warnings.append(
+                f"{c.species} on {c.target}: fu_inc {c.fu_inc:g} corrects {corrected} "
+                f"alike; if {' or '.join(shared)} was measured in another system (hepatocytes) or is already unbound, give "
+                + " / ".join(f"fu_inc_{'ki_inact' if n == 'KI' else 'ec50'}" for n in shared)
+                + " (1 for an unbound value)."
+            )
     for kd in kdeg_used:
         if kd.from_memory:
             warnings.append(
@@ -186,26 +202,29 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
                 f"screen does not flag {', '.join(missed)}: the hepatic inlet concentration exceeds Cmax,u."
             )
     # -- dose
-    usual_unit = units.unit_text(v.dose)
-    usual = float(v.dose.magnitude)
-    strengths = tuple(units.magnitude(s, usual_unit) for s in v.strengths)
-    if v.no_effect_lower is not None and v.no_effect_upper is not None:
-        boundary = (v.no_effect_lower, v.no_effect_upper)
-        origin = "given for this victim"
-    else:
-        boundary = (classes.no_effect_lower, classes.no_effect_upper)
-        origin = "default 0.8-1.25, ICH M12 5.3.1"
+    plan = plan_for_victim(v, (classes.no_effect_lower, classes.no_effect_upper), "default 0.8-1.25, ICH M12 5.3.1")
+    boundary = plan.boundary
     dose = suggest_dose(
+        plan,
         auc_ratio=prediction.total,
-        usual_dose=usual,
-        dose_unit=usual_unit,
-        interval_h=units.magnitude(v.interval, "h"),
-        strengths=strengths,
-        boundary=boundary,
-        boundary_origin=origin,
-        narrow_therapeutic_index=v.narrow_therapeutic_index,
+        gut_ratio=prediction.gut,
         mechanism_parts=tuple((pt.mechanism, pt.total) for pt in prediction.parts) if "induction" in prediction.mechanisms else (),
     )
+    cases = phenotype_cases(v.phenotypes, prediction, plan)
+    if plan.narrow_therapeutic_index and plan.boundary_origin.startswith("default"):
+        warnings.append(
+            f"The default no-effect boundary {boundary[0]:g}-{boundary[1]:g} was applied to a narrow-therapeutic-index victim; "
+            "give its own victim.no_effect_boundary (usually narrower) from its label or exposure-response data."
+        )
+    if p.cmax_dose is not None:
+        dose_now = units.magnitude(p.dose, units.unit_text(p.cmax_dose))
+        measured_at = float(p.cmax_dose.magnitude)
+        if not math.isclose(dose_now, measured_at, rel_tol=1e-9):
+            warnings.append(
+                f"The perpetrator's dose ({units.format_quantity(p.dose)}) differs from the dose at which its Cmax was measured "
+                f"({units.format_quantity(p.cmax_dose)}): Cmax is used as given, not scaled; give the Cmax at "
+                f"{units.format_quantity(p.dose)} (the perpetrator-dose ceiling below assumes Cmax scales with dose)."
+            )
 
     ratio_at = ratio_function(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
 
@@ -241,6 +260,12 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         sorted(
             {f"{s.label}: {s.source}" for s in (*all_settings, *kdeg_used) if s.from_memory and s.origin in ("default", "rule set")}
             | {f"{r.label} cutoff for {r.target} ({rule_set.id}): {r.cutoff.source}" for r in screen_results if r.cutoff.from_memory}
+            | {
+                f"Phenotype activity {enzyme} {name} = {act:g}: {src.source}"
+                for case in cases
+                for (enzyme, name, act), src in zip(case.activities, case.sources, strict=True)
+                if src is not None and src.from_memory
+            }
             | {
                 f"Induction calibration factor d = 1 for {c.species} on {c.target}: default (S1 shows d in the R3 equation; "
                 "the default value 1 is from memory)"
@@ -280,6 +305,8 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         aucr_cutoff=aucr_cut,
         study_indicated=study,
         dose=dose,
+        regimens=plan,
+        phenotypes=cases,
         perpetrator_limit=limit,
         kdeg_used=tuple(kdeg_used),
         warnings=tuple(warnings),

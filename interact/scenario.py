@@ -26,10 +26,12 @@ from typing import Any, Final, TypeVar
 import pint
 
 from . import units
+from .dosing import MAX_UNIT_SIZES
 from .errors import InputError, Problem, ScenarioError
-from .tables import load_targets, resolve_target
+from .tables import load_phenotypes, load_targets, resolve_target
 
 __all__ = [
+    "INTERVAL_KEYS",
     "MECHANISMS",
     "Inhibition",
     "Metabolite",
@@ -68,8 +70,10 @@ class Inhibition:
     constant to its unbound value (Ki,u = Ki x fu,inc).  For transporters the
     IC50 (or Ki) is used as the inhibition constant, as guidance does.
 
-    Time-dependent inhibition (``kinact``, ``ki_inact`` = KI, unbound) and
-    induction (``emax``, ``ec50`` unbound, ``calibration`` = d) are optional.
+    Time-dependent inhibition (``kinact``, ``ki_inact`` = KI) and induction
+    (``emax``, ``ec50``, ``calibration`` = d) are optional.  ``fu_inc`` corrects
+    Ki, KI and EC50 alike unless ``fu_inc_ki_inact`` or ``fu_inc_ec50`` gives a
+    constant its own binding (1 for a constant already unbound).
     """
 
     target: str
@@ -86,6 +90,31 @@ class Inhibition:
     ec50: Q | None = None
     calibration: float | None = None
     origin: str = ""
+    #: separate binding for KI and EC50 (e.g. hepatocyte fu for EC50); without them ``fu_inc`` applies to every constant
+    fu_inc_ki_inact: float | None = None
+    fu_inc_ec50: float | None = None
+    #: 95 % intervals carried from a fit (``ki_ci = ["63.3 uM", "82.3 uM"]``); the uncertainty command uses them
+    ki_ci: tuple[Q, Q] | None = None
+    km_ci: tuple[Q, Q] | None = None
+    kinact_ci: tuple[Q, Q] | None = None
+    ki_inact_ci: tuple[Q, Q] | None = None
+    emax_ci: tuple[float, float] | None = None
+    ec50_ci: tuple[Q, Q] | None = None
+
+    def interval(self, key: str) -> tuple[Any, Any] | None:
+        """The interval given for constant ``key`` (``ki``, ``km``, ``kinact``, ``ki_inact``, ``emax``, ``ec50``), or None."""
+        return getattr(self, f"{key}_ci", None) if key in INTERVAL_KEYS else None
+
+
+#: constants that may carry an interval (``<key>_ci``) and the kind of unit each takes
+INTERVAL_KEYS: Final = {
+    "ki": "concentration",
+    "km": "concentration",
+    "kinact": "rate",
+    "ki_inact": "concentration",
+    "emax": "",
+    "ec50": "concentration",
+}
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -119,6 +148,7 @@ class Perpetrator:
     inhibits: tuple[Inhibition, ...] = ()
     metabolites: tuple[Metabolite, ...] = ()
     half_life: Q | None = None  # elimination half-life; used only by the time course (interact.dynamic)
+    cmax_dose: Q | None = None  # the dose at which cmax was measured (checked against dose)
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -127,6 +157,19 @@ class Pathway:
 
     enzyme: str
     fm: float
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class PhenotypeChoice:
+    """The object drug's metaboliser phenotype for one polymorphic enzyme (``[[victim.phenotypes]]``).
+
+    ``phenotype`` is a name from the phenotype table or ``"all"`` (every phenotype of the table, one row each);
+    ``activity``, when given, replaces the table's relative activity (the phenotype is then named "given").
+    """
+
+    enzyme: str
+    phenotype: str
+    activity: float | None = None
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -143,7 +186,15 @@ class Victim:
     no_effect_lower: float | None = None
     no_effect_upper: float | None = None
     narrow_therapeutic_index: bool = False
-    # used only by the time course (interact.dynamic):
+    # regimen search (interact.dosing): halves of scored strengths, units per administration, intervals tried,
+    # and the boundaries for steady-state peak and trough ratios of a changed interval (default: no_effect_boundary)
+    scored_strengths: tuple[Q, ...] = ()
+    max_units: int | None = None
+    intervals: tuple[Q, ...] = ()
+    peak_boundary: tuple[float, float] | None = None
+    trough_boundary: tuple[float, float] | None = None
+    phenotypes: tuple[PhenotypeChoice, ...] = ()  # drug-drug-gene interaction (interact.genotype)
+    # used by the time course (interact.dynamic) and, for interval changes, by the regimen search:
     half_life: Q | None = None  # elimination half-life without the perpetrator
     hepatic_extraction: float | None = None  # hepatic (blood) extraction ratio without the perpetrator
     ka: Q | None = None  # first-order absorption rate constant (oral)
@@ -321,6 +372,41 @@ class _Reader:
             return False
         return value
 
+    def quantities(self, data: dict[str, Any], key: str, path: str, kind: str, *, example: str, like: Q | None = None) -> tuple[Q, ...]:
+        """A list of quantities of one kind (and, with ``like``, of the same dimension as ``like``)."""
+        raw = data.get(key, [])
+        if not isinstance(raw, list):
+            self.fail(f"{path}.{key}", f"{_brief(raw)} is not a list; expected e.g. {example}")
+            return ()
+        if len(raw) > _MAX_ITEMS:
+            self.fail(f"{path}.{key}", f"has {len(raw)} entries; expected at most {_MAX_ITEMS}")
+        out: list[Q] = []
+        for i, item in enumerate(raw[:_MAX_ITEMS]):
+            at = f"{path}.{key}[{i}]"
+            q = self.attempt(at, lambda item=item, at=at: units.parse(item, kind, field=at))  # type: ignore[misc]
+            if q is None:
+                continue
+            if like is not None and q.dimensionality != like.dimensionality:
+                self.fail(at, f'"{units.format_quantity(q)}" is not in the same kind of unit as the dose')
+                continue
+            out.append(q)
+        return tuple(out)
+
+    def boundary(self, data: dict[str, Any], key: str, path: str) -> tuple[float, float] | None:
+        """A [lower, upper] pair of ratios with 0 < lower <= 1 <= upper, or None when absent or wrong."""
+        if key not in data:
+            return None
+        b = data[key]
+        if (
+            isinstance(b, list)
+            and len(b) == 2
+            and all(isinstance(x, (int, float)) and not isinstance(x, bool) and math.isfinite(x) for x in b)
+            and 0 < b[0] <= 1 <= b[1]
+        ):
+            return float(b[0]), float(b[1])
+        self.fail(f"{path}.{key}", f"{_brief(b)} is not a [lower, upper] pair of ratios with 0 < lower <= 1 <= upper, e.g. [0.8, 1.25]")
+        return None
+
     def items(self, data: dict[str, Any], key: str, path: str) -> Iterator[tuple[int, Any]]:
         value = data.get(key, [])
         if not isinstance(value, list):
@@ -395,6 +481,16 @@ class _Reader:
         ec50 = self.quantity(data, "ec50", path, "concentration")
         calibration = self.number(data, "calibration", path, low=0.0, high=10.0, low_open=False)
         origin = self.text(data, "origin", path)
+        own_fu: dict[str, float | None] = {}
+        for fu_key, constant in (("fu_inc_ki_inact", "ki_inact"), ("fu_inc_ec50", "ec50")):
+            fu_val = self.fraction(data, fu_key, path)
+            if fu_val is not None:
+                self.attempt(f"{path}.{fu_key}", lambda v=fu_val, k=fu_key: units.check_fraction_size(v, f"{path}.{k}", v))  # type: ignore[misc]
+                if constant not in data:
+                    self.fail(f"{path}.{fu_key}", f"is given without {constant}; expected it beside the constant it corrects")
+            own_fu[fu_key] = fu_val
+        points = {"ki": ki, "km": km, "kinact": kinact, "ki_inact": ki_inact, "emax": emax, "ec50": ec50}
+        cis = {key: self.interval(data, key, path, kind, points[key]) for key, kind in INTERVAL_KEYS.items()}
         has_reversible = ki is not None or ic50 is not None
         if "ki" in data and "ic50" in data:
             self.fail(path, "gives both ki and ic50; expected one of them")
@@ -448,7 +544,56 @@ class _Reader:
             ec50=ec50,
             calibration=calibration,
             origin=origin,
+            ki_ci=cis["ki"],
+            km_ci=cis["km"],
+            kinact_ci=cis["kinact"],
+            ki_inact_ci=cis["ki_inact"],
+            emax_ci=cis["emax"],
+            ec50_ci=cis["ec50"],
+            fu_inc_ki_inact=own_fu["fu_inc_ki_inact"],
+            fu_inc_ec50=own_fu["fu_inc_ec50"],
         )
+
+    def interval(self, data: dict[str, Any], key: str, path: str, kind: str, point: Any) -> Any:
+        """``<key>_ci``: two values, lower <= upper, above zero, around the point value when both are given."""
+        name = f"{key}_ci"
+        full = f"{path}.{name}"
+        if name not in data:
+            return None
+        raw = data[name]
+        if not isinstance(raw, list) or len(raw) != 2:
+            self.fail(full, f'{_brief(raw)} is not a list of two values; expected e.g. ["63.3 uM", "82.3 uM"]')
+            return None
+        if point is None and key not in data:
+            self.fail(full, f"is given without {key}; expected the interval beside the constant it belongs to")
+            return None
+        ends: list[Any]
+        if kind:
+            ends = [self.attempt(full, lambda v=v: units.parse(v, kind, field=full)) for v in raw]  # type: ignore[misc]
+        else:
+            ends = []
+            for v in raw:
+                if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v) or v < 0:
+                    self.fail(full, f"{_brief(v)} is not a finite number of at least 0")
+                    return None
+                ends.append(float(v))
+        if any(e is None for e in ends):
+            return None
+        lo: Any = ends[0]
+        hi: Any = ends[1]
+        try:
+            ref = point.units if kind and point is not None else (lo.units if kind else None)
+            lo_v, hi_v = (lo.to(ref).magnitude, hi.to(ref).magnitude) if kind else (lo, hi)
+            pt = point.to(ref).magnitude if kind and point is not None else point
+        except pint.errors.DimensionalityError:  # mass vs molar: needs the molar mass, checked where it is converted
+            return (lo, hi)
+        if not (0 < lo_v <= hi_v):
+            self.fail(full, f"{_brief(raw)} is not an interval with 0 < lower <= upper")
+            return None
+        if pt is not None and not (lo_v * (1 - 1e-9) <= pt <= hi_v * (1 + 1e-9)):
+            self.fail(full, f"{_brief(raw)} does not contain {key} = {_brief(data.get(key))}; expected an interval around the value")
+            return None
+        return (lo, hi)
 
     def inhibitions(self, data: dict[str, Any], path: str, molar_mass: Q | None) -> tuple[Inhibition, ...]:
         out = []
@@ -494,6 +639,10 @@ class _Reader:
         fa = self.fraction(data, "fa", path)
         ka = self.quantity(data, "ka", path, "rate")
         half_life = self.quantity(data, "half_life", path, "time")
+        cmax_dose = self.quantity(data, "cmax_dose", path, "dose")
+        if cmax_dose is not None and dose is not None and cmax_dose.dimensionality != dose.dimensionality:
+            self.fail(f"{path}.cmax_dose", f'"{units.format_quantity(cmax_dose)}" is not in the same kind of unit as the dose')
+            cmax_dose = None
         self._mass_conc_needs_mw(cmax, mw, f"{path}.cmax")
         if dose is not None and mw is None and dose.dimensionality == units.KINDS["mass"][0][0]:
             self.fail(
@@ -527,6 +676,7 @@ class _Reader:
             inhibits=inhibits,
             metabolites=tuple(metabolites),
             half_life=half_life,
+            cmax_dose=cmax_dose,
         )
 
     def metabolite(self, raw: object, path: str) -> Metabolite | None:
@@ -546,7 +696,11 @@ class _Reader:
 
     def victim(self, raw: object) -> Victim | None:
         path = "victim"
-        data = self.table(raw, path, (*(f.name for f in fields(Victim)), "no_effect_boundary"))
+        data = self.table(
+            raw,
+            path,
+            (*tuple(f.name for f in fields(Victim) if f.name not in ("no_effect_lower", "no_effect_upper")), "no_effect_boundary"),
+        )
         if data is None:
             return None
         name = self.name(data, "name", path)
@@ -563,19 +717,25 @@ class _Reader:
             self.fail(f"{path}.hepatic_extraction", f"{v_extraction:g} is not below 1; expected an extraction ratio in (0, 1)")
             v_extraction = None
         v_ka = self.quantity(data, "ka", path, "rate")
-        strengths: list[Q] = []
-        raw_strengths = data.get("strengths", [])
-        if not isinstance(raw_strengths, list):
-            self.fail(f"{path}.strengths", f'{_brief(raw_strengths)} is not a list; expected e.g. ["2.5 mg", "5 mg"]')
-            raw_strengths = []
-        for i, s in enumerate(raw_strengths[:_MAX_ITEMS]):
-            at = f"{path}.strengths[{i}]"
-            q = self.attempt(at, lambda s=s, at=at: units.parse(s, "dose", field=at))  # type: ignore[misc]
-            if q is not None:
-                if dose is not None and q.dimensionality != dose.dimensionality:
-                    self.fail(f"{path}.strengths[{i}]", f'"{units.format_quantity(q)}" is not in the same kind of unit as the dose')
-                else:
-                    strengths.append(q)
+        strengths = self.quantities(data, "strengths", path, "dose", example='["2.5 mg", "5 mg"]', like=dose)
+        scored = self.quantities(data, "scored_strengths", path, "dose", example='["10 mg"]', like=dose)
+        for i, q in enumerate(scored):
+            if not any(units.magnitude(q, units.unit_text(s)) == float(s.magnitude) for s in strengths):
+                self.fail(f"{path}.scored_strengths[{i}]", f'"{units.format_quantity(q)}" is not one of the strengths')
+        if len(strengths) + len(scored) > MAX_UNIT_SIZES:
+            self.fail(
+                f"{path}.strengths",
+                f"has {len(strengths)} strengths and {len(scored)} scored ones; the regimen search takes at most {MAX_UNIT_SIZES} "
+                "unit sizes in all (list the forms in use)",
+            )
+        intervals = self.quantities(data, "intervals", path, "time", example='["8 h", "12 h", "24 h"]')
+        max_units = None
+        if "max_units" in data:
+            mu = data["max_units"]
+            if isinstance(mu, (int, float)) and not isinstance(mu, bool) and math.isfinite(mu) and mu == int(mu) and 1 <= mu <= 8:
+                max_units = int(mu)
+            else:
+                self.fail(f"{path}.max_units", f"{_brief(mu)} is not a whole number from 1 to 8 (units per administration)")
         pathways: list[Pathway] = []
         seen: set[str] = set()
         for i, praw in self.items(data, "pathways", path):
@@ -605,19 +765,10 @@ class _Reader:
                 f"{path}.pathways",
                 f"fm values sum to {total:.4g}; expected a total of at most 1 (the rest is renal and other routes)",
             )
-        lower = upper = None
-        if "no_effect_boundary" in data:
-            b = data["no_effect_boundary"]
-            at = f"{path}.no_effect_boundary"
-            if (
-                isinstance(b, list)
-                and len(b) == 2
-                and all(isinstance(x, (int, float)) and not isinstance(x, bool) and math.isfinite(x) for x in b)
-                and 0 < b[0] <= 1 <= b[1]
-            ):
-                lower, upper = float(b[0]), float(b[1])
-            else:
-                self.fail(at, f"{_brief(b)} is not a [lower, upper] pair of AUC ratios with 0 < lower <= 1 <= upper, e.g. [0.8, 1.25]")
+        phenotypes = self.phenotypes(data, path, {p.enzyme for p in pathways})
+        lower, upper = self.boundary(data, "no_effect_boundary", path) or (None, None)
+        peak_boundary = self.boundary(data, "peak_boundary", path)
+        trough_boundary = self.boundary(data, "trough_boundary", path)
         if dose is None or interval is None:
             return None
         return Victim(
@@ -626,15 +777,59 @@ class _Reader:
             interval=interval,
             fg=fg,
             route=route if route in ROUTES else "oral",
-            strengths=tuple(strengths),
+            strengths=strengths,
             pathways=tuple(pathways),
             no_effect_lower=lower,
             no_effect_upper=upper,
             narrow_therapeutic_index=nti,
+            scored_strengths=scored,
+            max_units=max_units,
+            intervals=intervals,
+            peak_boundary=peak_boundary,
+            trough_boundary=trough_boundary,
+            phenotypes=phenotypes,
             half_life=v_half_life,
             hepatic_extraction=v_extraction,
             ka=v_ka,
         )
+
+    def phenotypes(self, data: dict[str, Any], path: str, pathway_enzymes: set[str]) -> tuple[PhenotypeChoice, ...]:
+        table = load_phenotypes()
+        out: list[PhenotypeChoice] = []
+        seen: set[str] = set()
+        for i, raw in self.items(data, "phenotypes", path):
+            at = f"{path}.phenotypes[{i}]"
+            pdata = self.table(raw, at, ("enzyme", "phenotype", "activity"))
+            if pdata is None:
+                continue
+            enzyme = self.target_name(pdata, "enzyme", at)
+            if enzyme is None:
+                continue
+            if enzyme not in table:
+                self.fail(f"{at}.enzyme", f'"{enzyme}" has no phenotype table; expected one of {", ".join(table)}')
+                continue
+            if enzyme not in pathway_enzymes:
+                self.fail(f"{at}.enzyme", f'"{enzyme}" is not one of the victim\'s pathways; its phenotype would change nothing')
+                continue
+            if enzyme in seen:
+                self.fail(f"{at}.enzyme", f'"{enzyme}" is listed twice; give one phenotype (or "all") per enzyme')
+                continue
+            seen.add(enzyme)
+            if "activity" in pdata and "phenotype" in pdata:
+                self.fail(f"{at}.activity", "is given with a phenotype; give either a phenotype from the table or your own activity")
+                continue
+            if "activity" in pdata:
+                activity = self.number(pdata, "activity", at, low=0.0, high=10.0, low_open=False)
+                if activity is not None:
+                    out.append(PhenotypeChoice(enzyme=enzyme, phenotype="given", activity=activity))
+                continue
+            names = [p.name for p in table[enzyme]]
+            phenotype = self.text(pdata, "phenotype", at, required=True)
+            if phenotype not in (*names, "all"):
+                self.fail(f"{at}.phenotype", f'"{phenotype[:40]}" is not one of {", ".join(names)} or "all" (or give activity)')
+                continue
+            out.append(PhenotypeChoice(enzyme=enzyme, phenotype=phenotype))
+        return tuple(out)
 
     def physiology(self, raw: object) -> Physiology | None:
         path = "physiology"
@@ -727,6 +922,8 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
             return
         if isinstance(value, pint.Quantity):
             out[key] = units.format_quantity(value)
+        elif isinstance(value, tuple):
+            out[key] = [units.format_quantity(v) if isinstance(v, pint.Quantity) else v for v in value]
         else:
             out[key] = value
 
@@ -747,7 +944,7 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
         put(perp, key, getattr(p, key))
     if p.fu_plasma_measured:
         perp["fu_plasma_measured"] = True
-    for key in ("blood_plasma_ratio", "fa_fg", "fa", "ka", "half_life"):
+    for key in ("blood_plasma_ratio", "fa_fg", "fa", "ka", "half_life", "cmax_dose"):
         put(perp, key, getattr(p, key))
     perp["inhibits"] = [inhibition(i) for i in p.inhibits]
     if p.metabolites:
@@ -772,6 +969,20 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
         vic["no_effect_boundary"] = [v.no_effect_lower, v.no_effect_upper]
     if v.narrow_therapeutic_index:
         vic["narrow_therapeutic_index"] = True
+    if v.scored_strengths:
+        vic["scored_strengths"] = [units.format_quantity(s) for s in v.scored_strengths]
+    if v.max_units is not None:
+        vic["max_units"] = v.max_units
+    if v.intervals:
+        vic["intervals"] = [units.format_quantity(t) for t in v.intervals]
+    for key in ("peak_boundary", "trough_boundary"):
+        if getattr(v, key) is not None:
+            vic[key] = list(getattr(v, key))
+    if v.phenotypes:
+        vic["phenotypes"] = [
+            {"enzyme": c.enzyme, "activity": c.activity} if c.activity is not None else {"enzyme": c.enzyme, "phenotype": c.phenotype}
+            for c in v.phenotypes
+        ]
     for key in ("half_life", "hepatic_extraction", "ka"):
         put(vic, key, getattr(v, key))
     vic["pathways"] = [{"enzyme": pw.enzyme, "fm": pw.fm} for pw in v.pathways]

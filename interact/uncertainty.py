@@ -46,13 +46,14 @@ import pint
 from numpy.typing import NDArray
 
 from . import units
-from .arrays import ACTIONS, band_codes, band_labels, dose_action_codes_by_victim, dose_candidates
+from .arrays import band_codes, band_labels
 from .assessment import Assessment, _kdeg
+from .dosing import ACTIONS, Regimen, choose_regimens, feasible_fraction, regimen_label
 from .errors import InputError
 from .exposure import enterocyte_um, unbound_cmax_um, unbound_inlet_um
 from .kinetics.conversion import ki_from_ic50
 from .prediction import gut_ratio, inactivation_term, induction_term, liver_ratio, reversible_term
-from .scenario import Inhibition
+from .scenario import INTERVAL_KEYS, Inhibition
 from .tables import load_classes, resolve_target
 
 __all__ = [
@@ -73,6 +74,7 @@ __all__ = [
     "parse_distribution",
     "parse_vary",
     "run_uncertainty",
+    "scenario_intervals",
     "sensitivity",
     "tornado",
 ]
@@ -270,6 +272,8 @@ class _Const:
     emax: str | None
     ec50: str | None
     calibration: str
+    ki_inact_fu: str = ""  # path of the binding applied to KI (its own, or the shared fu_inc)
+    ec50_fu: str = ""
 
 
 def _inhibition_items(scenario: Any) -> list[tuple[str, Inhibition, pint.Quantity | None]]:
@@ -370,6 +374,9 @@ class ScenarioModel:
                         )
                         km = units.concentration_um(item.km, mw, field=f"{prefix}.km") if item.km else None
                         route = (item.mechanism, sub, km, item.alpha)
+            fu_path = add(f"{prefix}.fu_inc", f"fu,inc of {who}", "", "fraction", c.fu_inc)
+            own_ki_inact = item.fu_inc_ki_inact is not None and c.ki_inact_um is not None
+            own_ec50 = item.fu_inc_ec50 is not None and c.ec50_um is not None
             self._consts.append(
                 _Const(
                     prefix=prefix,
@@ -378,17 +385,19 @@ class ScenarioModel:
                     target=c.target,
                     ki=ki_path,
                     ic50_route=route,
-                    fu_inc=add(f"{prefix}.fu_inc", f"fu,inc of {who}", "", "fraction", c.fu_inc),
+                    fu_inc=fu_path,
                     kinact=add(f"{prefix}.kinact", f"kinact of {who}", "1/h", "rate", c.kinact_per_h)
                     if c.kinact_per_h is not None
                     else None,
-                    ki_inact=add(f"{prefix}.ki_inact", f"KI of {who}", "uM", "concentration", c.ki_inact_u_um, mw)
-                    if c.ki_inact_u_um is not None
+                    ki_inact=add(f"{prefix}.ki_inact", f"KI of {who}", "uM", "concentration", c.ki_inact_um, mw)
+                    if c.ki_inact_um is not None
                     else None,
+                    ki_inact_fu=add(f"{prefix}.fu_inc_ki_inact", f"binding of KI of {who}", "", "fraction", c.ki_inact_fu)
+                    if own_ki_inact
+                    else fu_path,
                     emax=add(f"{prefix}.emax", f"Emax of {who}", "", "number", c.emax) if c.emax is not None else None,
-                    ec50=add(f"{prefix}.ec50", f"EC50 of {who}", "uM", "concentration", c.ec50_u_um, mw)
-                    if c.ec50_u_um is not None
-                    else None,
+                    ec50=add(f"{prefix}.ec50", f"EC50 of {who}", "uM", "concentration", c.ec50_um, mw) if c.ec50_um is not None else None,
+                    ec50_fu=add(f"{prefix}.fu_inc_ec50", f"binding of EC50 of {who}", "", "fraction", c.ec50_fu) if own_ec50 else fu_path,
                     calibration=add(f"{prefix}.calibration", f"Induction calibration d of {who}", "", "number", c.calibration)
                     if c.emax is not None
                     else f"{prefix}.calibration",
@@ -495,10 +504,10 @@ class ScenarioModel:
                 if k_u is not None:
                     ratio = ratio + conc / k_u
                 if c.kinact is not None and c.ki_inact is not None:
-                    kobs = kobs + get(c.kinact) * conc / (get(c.ki_inact) + conc)
+                    kobs = kobs + get(c.kinact) * conc / (get(c.ki_inact) * get(c.ki_inact_fu) + conc)
                     tdi = True
                 if c.emax is not None and c.ec50 is not None:
-                    effect = effect + get(c.calibration) * get(c.emax) * conc / (get(c.ec50) + conc)
+                    effect = effect + get(c.calibration) * get(c.emax) * conc / (get(c.ec50) * get(c.ec50_fu) + conc)
             act = reversible_term(ratio)
             if tdi and kdeg_path is not None:
                 act = act * np.where(np.equal(kobs, 0.0), 1.0, inactivation_term(kobs, get(kdeg_path)))
@@ -523,22 +532,9 @@ class ScenarioModel:
         gut, liver = np.broadcast_arrays(np.asarray(gut, dtype=float), np.asarray(liver, dtype=float))
         return Ratios(gut=gut, liver=liver, total=gut * liver)
 
-    def actions(self, total: NDArray[np.float64]) -> NDArray[np.int8]:
-        """Suggested-action codes (into :data:`interact.arrays.ACTIONS`) for AUC ratios ``total``."""
-        d = self.assessment.dose
-        strengths = tuple(units.magnitude(q, d.dose_unit) for q in self.assessment.scenario.victim.strengths)
-        cand = dose_candidates([strengths])[0]
-        r = np.asarray(total, dtype=float)
-        codes = dose_action_codes_by_victim(
-            r.reshape(-1, 1),
-            usual_dose=np.array([d.usual_dose]),
-            interval_h=np.array([d.usual_interval_h]),
-            candidates=cand[None, :],
-            lower=np.array([d.boundary[0]]),
-            upper=np.array([d.boundary[1]]),
-            narrow_therapeutic_index=np.array([self.assessment.scenario.victim.narrow_therapeutic_index]),
-        )
-        return codes.reshape(r.shape)
+    def actions(self, total: NDArray[np.float64], gut: NDArray[np.float64] | None = None) -> NDArray[np.int8]:
+        """Suggested-action codes (into :data:`interact.dosing.ACTIONS`) for AUC ratios ``total`` with gut parts ``gut``."""
+        return choose_regimens(self.assessment.regimens, total, gut).action
 
 
 # --------------------------------------------------------------------------- declarations
@@ -607,6 +603,16 @@ class Varied:
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
+class RegimenProbability:
+    """How likely a regimen keeps the object drug's exposure inside its boundaries, under the sampled inputs."""
+
+    regimen: Regimen | None  # None: the usual regimen, unchanged
+    label: str
+    probability: float
+    feasible_at_point: bool  # inside the boundaries at the point estimate (an option the point suggestion offers)
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
 class UncertaintyResult:
     """AUC-ratio spread of one scenario under its declared input distributions."""
 
@@ -625,6 +631,9 @@ class UncertaintyResult:
     action_change_probability: float
     fm_scaled: int
     boundary: tuple[float, float]
+    regimen_probabilities: tuple[RegimenProbability, ...]  # the usual regimen, every point-feasible option, and the best
+    best_regimen: RegimenProbability  # the highest probability of staying inside (ties: the usual regimen, then dose changes)
+    point_regimen: RegimenProbability | None  # the point suggestion's regimen (None when the point suggestion is no regimen)
     total: NDArray[np.float64] = field(repr=False, compare=False)
 
     def percentile(self, q: float) -> float:
@@ -637,7 +646,36 @@ class UncertaintyResult:
 PERCENTS: Final = (5.0, 50.0, 95.0)
 
 
-def _resolve(model: ScenarioModel, vary: Sequence[tuple[str, str]]) -> list[tuple[Input, Distribution]]:
+def scenario_intervals(model: ScenarioModel) -> list[tuple[Input, Distribution]]:
+    """Distributions from the intervals the scenario carries (``ki_ci`` and the like, written by ``fit --into``).
+
+    Each becomes a log-normal with the interval as its 95 % range (:func:`interval_distribution`), in the
+    input's canonical unit; only inputs that can move the AUC ratio are included.
+    """
+    relevant = {i.path for i in model.inputs(relevant_only=True)}
+    out = []
+    for prefix, item, mw in _inhibition_items(model.assessment.scenario):
+        for key, kind in INTERVAL_KEYS.items():
+            ci = item.interval(key)
+            path = f"{prefix}.{key}"
+            if ci is None or path not in relevant:
+                continue
+            inp = model.input(path)
+            field = f"{prefix}.{key}_ci"
+            if kind == "concentration":
+                lo, hi = (units.concentration_um(q, mw, field=field) for q in ci)
+            elif kind:
+                lo, hi = (units.magnitude(q, inp.unit) for q in ci)
+            else:
+                lo, hi = float(ci[0]), float(ci[1])
+            out.append(
+                (inp, interval_distribution(lo, hi, text=f"ci:{lo:.4g},{hi:.4g} {inp.unit} (from {key}_ci in the scenario)".strip()))
+            )
+    return out
+
+
+def _resolve(model: ScenarioModel, vary: Sequence[tuple[str, str]], use_intervals: bool = True) -> list[tuple[Input, Distribution]]:
+    """Declared distributions, then (``use_intervals``) the scenario's own intervals for inputs not declared."""
     out = []
     seen: set[str] = set()
     for path, spec in vary:
@@ -646,6 +684,8 @@ def _resolve(model: ScenarioModel, vary: Sequence[tuple[str, str]]) -> list[tupl
             raise InputError("vary", path, "is declared twice; give one distribution per input")
         seen.add(path)
         out.append((inp, parse_distribution(spec, inp)))
+    if use_intervals:
+        out.extend((inp, dist) for inp, dist in scenario_intervals(model) if inp.path not in seen)
     return out
 
 
@@ -672,6 +712,7 @@ def run_uncertainty(
     samples: int = 10_000,
     seed: int = 0,
     method: str = "lhs",
+    use_intervals: bool = True,
 ) -> UncertaintyResult:
     """Sample the declared inputs and summarise the AUC ratio.
 
@@ -687,6 +728,9 @@ def run_uncertainty(
         Seed of the numpy Generator; the same seed gives the same numbers.
     method
         ``mc`` (independent draws) or ``lhs`` (Latin hypercube, scipy.stats.qmc).
+    use_intervals
+        Also vary every constant whose interval the scenario gives (``ki_ci`` ...), as a log-normal
+        with that 95 % range, unless ``vary`` declares a distribution for it (declared ones win).
     """
     if method not in METHODS:
         raise InputError("method", method, f"is not one of {', '.join(METHODS)}")
@@ -695,9 +739,11 @@ def run_uncertainty(
     if isinstance(seed, bool) or not isinstance(seed, int) or seed < 0:
         raise InputError("seed", seed, "is not a whole number of at least 0")
     model = ScenarioModel(assessment)
-    pairs = _resolve(model, vary)
+    pairs = _resolve(model, vary, use_intervals)
     if not pairs:
-        raise InputError("vary", "nothing", "declares no uncertain input; give --vary PATH=SPEC or a --spec file")
+        raise InputError(
+            "vary", "nothing", "declares no uncertain input and the scenario carries no interval; give --vary PATH=SPEC or a --spec file"
+        )
     drawn = _draw(pairs, samples, method, seed)
     adjusted: dict[str, int] = {}
     for inp, dist in pairs:
@@ -779,9 +825,10 @@ def summarise(
     codes = band_codes(ts, classes)
     counts = np.bincount(codes, minlength=len(labels))
     point_code = int(band_codes(assessment.prediction.total, classes))
-    actions = model.actions(ts)
-    action_counts = np.bincount(actions, minlength=len(ACTIONS))
+    actions = model.actions(total, gut)
+    action_counts = np.bincount(actions.ravel(), minlength=len(ACTIONS))
     point_action = assessment.dose.action
+    regimen_probs, best, point_regimen = _regimen_probabilities(assessment, total, gut)
     change = 1.0 - float(action_counts[ACTIONS.index(point_action)]) / n
     return UncertaintyResult(
         method=method,
@@ -799,8 +846,44 @@ def summarise(
         action_change_probability=change,
         fm_scaled=fm_scaled,
         boundary=assessment.dose.boundary,
+        regimen_probabilities=regimen_probs,
+        best_regimen=best,
+        point_regimen=point_regimen,
         total=total,
     )
+
+
+def _regimen_probabilities(
+    assessment: Assessment, total: NDArray[np.float64], gut: NDArray[np.float64]
+) -> tuple[tuple[RegimenProbability, ...], RegimenProbability, RegimenProbability | None]:
+    """P(inside the boundaries) for the usual regimen and each candidate; the options to show and the best."""
+    plan, d = assessment.regimens, assessment.dose
+    p_usual, p_cand = feasible_fraction(plan, total, gut)
+    point_feasible = {o.index for o in d.options}
+    usual_ok = d.boundary[0] <= d.auc_ratio <= d.boundary[1]
+    usual = RegimenProbability(regimen=None, label="usual regimen, unchanged", probability=p_usual, feasible_at_point=usual_ok)
+    entries = [
+        RegimenProbability(
+            regimen=reg,
+            label=regimen_label(reg, plan.dose_unit),
+            probability=float(p_cand[k]),
+            feasible_at_point=k in point_feasible,
+        )
+        for k, reg in enumerate(plan.candidates)
+    ]
+    best = usual
+    for e in entries:  # candidate order breaks ties (dose changes before intervals, fewer units first)
+        if e.probability > best.probability:
+            best = e
+    shown = sorted([usual, *(e for e in entries if e.feasible_at_point)], key=lambda e: -e.probability)
+    if best not in shown:
+        shown.append(best)
+    point: RegimenProbability | None = None
+    if d.chosen is not None:
+        point = entries[d.chosen.index]
+    elif d.action == "no change":
+        point = usual
+    return tuple(shown), best, point
 
 
 # --------------------------------------------------------------------------- sensitivity

@@ -14,7 +14,8 @@ import pint
 
 from .. import units
 from ..assessment import Assessment
-from ..cautions import CAUTION_LINE
+from ..cautions import CAUTION_LINE, DOSE_CAUTIONS, GENOTYPE_CAUTIONS
+from ..dosing import ACTIONS, DoseSuggestion, RegimenOutcome
 from ..exposure import Setting
 from .document import Note, Section, Table, render_markdown, render_text
 from .numbers import fmt, fmt_ratio
@@ -76,7 +77,7 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
     verdict = (
         f"Predicted victim AUC ratio {fmt_ratio(pr.total)} (gut {fmt_ratio(pr.gut)} x liver {fmt_ratio(pr.liver)}): "
         f"{band}. Mechanistic model {'indicates' if a.study_indicated else 'does not indicate'} a clinical study "
-        f"(cutoff {a.aucr_cutoff.value:g}, {a.aucr_cutoff.status}). Suggested action: {a.dose.action}."
+        f"(cutoff {a.aucr_cutoff.value:g}, {a.aucr_cutoff.status}). Suggested action: {a.dose.headline}."
     )
     sections.append(Section(title="Summary", blocks=(Note(text=verdict, kind="result"),)))
 
@@ -108,7 +109,7 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"{fmt(c.ki_um)} uM",
+                    f"{fmt(c.ki_um)} uM" + (f" (interval {fmt(c.ki_ci_um[0])}-{fmt(c.ki_ci_um[1])})" if c.ki_ci_um else ""),
                     c.ki_route,
                     f"{c.fu_inc:g} ({c.fu_inc_origin})",
                     f"{fmt(c.ki_u_um)} uM",
@@ -119,9 +120,9 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"kinact {fmt(c.kinact_per_h)} 1/h",
+                    f"kinact {fmt(c.kinact_per_h)} 1/h, KI {fmt(c.ki_inact_um)} uM",
                     "time-dependent",
-                    "-",
+                    f"{c.ki_inact_fu:g} ({c.ki_inact_fu_origin})",
                     f"KI,u {fmt(c.ki_inact_u_um)} uM",
                 )
             )
@@ -130,9 +131,9 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"Emax {fmt(c.emax)}, d {c.calibration:g} ({c.calibration_origin})",
+                    f"Emax {fmt(c.emax)}, d {c.calibration:g} ({c.calibration_origin}), EC50 {fmt(c.ec50_um)} uM",
                     "induction",
-                    "-",
+                    f"{c.ec50_fu:g} ({c.ec50_fu_origin})",
                     f"EC50,u {fmt(c.ec50_u_um)} uM",
                 )
             )
@@ -142,7 +143,10 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
             title="Inputs",
             blocks=(
                 Table(headers=("Perpetrator", "value", "as used"), rows=tuple(perp_rows)),
-                Table(headers=("Target", "species", "constant given", "route to Ki", "fu,inc", "unbound"), rows=tuple(const_rows)),
+                Table(
+                    headers=("Target", "species", "constant given", "route to Ki", "binding: fu (source)", "unbound"),
+                    rows=tuple(const_rows),
+                ),
                 Table(headers=("Victim", "value", ""), rows=tuple(vic_rows)),
                 Table(headers=("Setting", "value used", "origin and source"), rows=settings_rows),
             ),
@@ -249,6 +253,9 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
     )
     sections.append(Section(title="Mechanistic static model", blocks=tuple(blocks)))
 
+    if a.phenotypes:
+        sections.append(phenotype_section(a))
+
     # -- time course (interact.dynamic), when computed
     timing: tuple[str, ...] = ()
     if time_course is not None:
@@ -261,7 +268,11 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
 
     # -- dose
     d = a.dose
-    dose_blocks: list[str | Table | Note] = [Note(text=f"Suggested action: {d.action}.", kind="result"), *d.reasons, *timing]
+    dose_blocks: list[str | Table | Note] = [Note(text=f"Suggested action: {d.headline}.", kind="result"), *d.reasons]
+    shown = d.options or d.nearest
+    if shown:
+        dose_blocks.append(regimen_table(d, shown))
+    dose_blocks.extend(timing)
     lim = a.perpetrator_limit
     dose_blocks.append(
         f"Perpetrator dose ceiling: {fmt(lim.dose)} {lim.dose_unit} ({lim.reason})."
@@ -292,6 +303,75 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
         )
     )
     return sections
+
+
+def phenotype_section(a: Assessment) -> Section:
+    """Drug-drug-gene cases: one row per phenotype combination, with its dose advice."""
+    rows = []
+    for c in a.phenotypes:
+        d = c.dose
+        advice = d.headline + (f": {d.chosen.describe(d.dose_unit)}" if d.chosen is not None else "")
+        rows.append(
+            (
+                ", ".join(f"{e} {name} (a = {act:g})" for e, name, act in c.activities) + (", population fm" if c.reference else ""),
+                ", ".join(f"{e} {f:.2g}" for e, f in c.fm),
+                fmt_ratio(c.genotype_ratio),
+                fmt_ratio(c.interaction_ratio),
+                fmt_ratio(c.combined_ratio),
+                advice,
+            )
+        )
+    blocks: list[str | Table | Note] = [
+        Table(
+            headers=("phenotype", "fm in it", "vs normal, alone", "AUCR", "vs normal, with precipitant", "dose advice"),
+            rows=tuple(rows),
+        ),
+        "vs normal = AUC relative to a normal metaboliser on the usual dose without the precipitant (alone: the "
+        "genotype effect; with precipitant: the combined effect the dose advice answers). AUCR = with / without the "
+        "precipitant within the phenotype; a = relative activity of the pathway. fm' = fm x a / "
+        "(sum fm x a + 1 - sum fm): a poor metaboliser of one pathway shifts clearance to the others.",
+        "Assumptions: the given fm values are the normal metaboliser's; a phenotype scales only its own pathway's "
+        "intrinsic clearance by its relative activity a; linear kinetics; no genotype effect in the gut wall.",
+    ]
+    seen = set()
+    for c in a.phenotypes:
+        for (e, name, act), src in zip(c.activities, c.sources, strict=True):
+            if src is not None and (e, name) not in seen:
+                seen.add((e, name))
+                blocks.append(f"- {e} {name}: relative activity {act:g} ({src.status}); {src.source}.")
+    blocks.extend(Note(text=t) for t in (*GENOTYPE_CAUTIONS, DOSE_CAUTIONS[0]))
+    return Section(title="Object drug genotype (drug-drug-gene interaction)", blocks=tuple(blocks))
+
+
+def regimen_table(d: DoseSuggestion, outcomes: tuple[RegimenOutcome, ...]) -> Table:
+    """The regimens inside the boundary (or, when none is, the nearest ones), with their predicted ratios."""
+    rows = []
+    for o in outcomes:
+        peak = fmt_ratio(o.peak_ratio) if o.peak_ratio is not None else ("unchecked" if o.regimen.kind == "interval" else "-")
+        trough = fmt_ratio(o.trough_ratio) if o.trough_ratio is not None else ("unchecked" if o.regimen.kind == "interval" else "-")
+        mark = "suggested" if d.chosen is not None and o.index == d.chosen.index else ("inside" if o.feasible else "outside")
+        rows.append((o.describe(d.dose_unit), fmt_ratio(o.exposure_ratio), peak, trough, mark))
+    return Table(
+        headers=("regimen", "exposure ratio", "peak ratio", "trough ratio", "against the boundary"),
+        rows=tuple(rows),
+    )
+
+
+def _regimen_json(o: RegimenOutcome | None) -> dict[str, object] | None:
+    if o is None:
+        return None
+    r = o.regimen
+    return {
+        "kind": r.kind,
+        "dose": _num(r.dose),
+        "interval_h": r.interval_h,
+        "units": r.makeup or None,
+        "exposure_ratio": _num(o.exposure_ratio),
+        "peak_ratio": _num(o.peak_ratio),
+        "trough_ratio": _num(o.trough_ratio),
+        "inside_boundary": o.feasible,
+        "peak_and_trough_checked": o.checked,
+    }
 
 
 def _num(x: float | None) -> float | None:
@@ -361,8 +441,15 @@ def _assessment_dict(a: Assessment) -> dict[str, Any]:
                 "ki_route": c.ki_route,
                 "mechanism": c.mechanism,
                 "kinact_per_h": c.kinact_per_h,
+                "ki_ci_um": list(c.ki_ci_um) if c.ki_ci_um else None,
+                "ki_inact_um": c.ki_inact_um,
+                "ki_inact_fu": c.ki_inact_fu,
+                "ki_inact_fu_origin": c.ki_inact_fu_origin,
                 "ki_inact_u_um": c.ki_inact_u_um,
                 "emax": c.emax,
+                "ec50_um": c.ec50_um,
+                "ec50_fu": c.ec50_fu,
+                "ec50_fu_origin": c.ec50_fu_origin,
                 "ec50_u_um": c.ec50_u_um,
                 "calibration": c.calibration,
             }
@@ -422,21 +509,41 @@ def _assessment_dict(a: Assessment) -> dict[str, Any]:
         },
         "dose": {
             "action": d.action,
+            "actions": list(ACTIONS),
+            "monitoring_required": d.monitoring,
+            "headline": d.headline,
             "unit": d.dose_unit,
             "usual_dose": d.usual_dose,
-            "exact_dose": d.exact_dose,
-            "suggested_dose": d.chosen_dose,
-            "suggested_units": d.chosen_units,
-            "ratio_with_suggested_dose": d.ratio_with_chosen,
             "usual_interval_h": d.usual_interval_h,
+            "half_life_h": d.half_life_h,
+            "exact_dose": d.exact_dose,
             "exact_interval_h": d.exact_interval_h,
-            "suggested_interval_h": d.chosen_interval_h,
-            "ratio_with_suggested_interval": d.ratio_with_interval,
+            "suggested": _regimen_json(d.chosen),
+            "options_inside_boundary": [_regimen_json(o) for o in d.options],
+            "nearest_outside": [_regimen_json(o) for o in d.nearest],
             "no_effect_boundary": list(d.boundary),
+            "peak_boundary": list(d.peak_boundary),
+            "trough_boundary": list(d.trough_boundary),
             "boundary_origin": d.boundary_origin,
             "reasons": list(d.reasons),
             "cautions": list(d.cautions),
         },
+        "phenotypes": [
+            {
+                "label": c.label,
+                "reference": c.reference,
+                "activities": [{"enzyme": e, "phenotype": n, "activity": act} for e, n, act in c.activities],
+                "fm": dict(c.fm),
+                "exposure_vs_normal_alone": c.genotype_ratio,
+                "auc_ratio_with_precipitant": c.interaction_ratio,
+                "exposure_vs_normal_with_precipitant": c.combined_ratio,
+                "ceiling": _num(c.ceiling),
+                "action": c.dose.action,
+                "headline": c.dose.headline,
+                "suggested": _regimen_json(c.dose.chosen),
+            }
+            for c in a.phenotypes
+        ],
         "perpetrator_dose_limit": {"dose": lim.dose, "unit": lim.dose_unit, "scale": lim.scale, "reason": lim.reason},
         "warnings": list(a.warnings),
         "from_memory": list(a.memory_values),

@@ -18,7 +18,7 @@ from functools import lru_cache
 from typing import Any, Final
 
 from ..errors import InputError
-from ..tables import load_targets, rule_set_names
+from ..tables import load_phenotypes, load_targets, rule_set_names
 
 __all__ = [
     "MISSING",
@@ -112,6 +112,17 @@ PATHWAYS: Final = ListSpec(
     ),
 )
 
+PHENOTYPES: Final = ListSpec(
+    "phenotypes",
+    "Genotype (phenotype per pathway)",
+    "phenotype",
+    (
+        FieldSpec("enzyme", "Enzyme", "choice:polymorphic", "a polymorphic pathway, e.g. CYP2D6"),
+        FieldSpec("phenotype", "Phenotype", "choice:phenotype", "poor, intermediate, normal, ... or all"),
+        FieldSpec("activity", "Own activity", "number", "instead of a phenotype: relative activity, e.g. 0.3"),
+    ),
+)
+
 _PERPETRATOR: Final = (
     FieldSpec("name", "Name", "text", "e.g. Compound A"),
     Heading("Exposure"),
@@ -119,6 +130,7 @@ _PERPETRATOR: Final = (
     FieldSpec("route", "Route", "choice:route", "oral or intravenous"),
     FieldSpec("interval", "Interval", "time", "e.g. 24 h"),
     FieldSpec("cmax", "Cmax (total)", "concentration", "steady state, e.g. 812 ng/mL"),
+    FieldSpec("cmax_dose", "Cmax measured at", "dose", "the dose that gave this Cmax, e.g. 200 mg"),
     FieldSpec("molar_mass", "Molar mass", "molar_mass", "e.g. 452.5 g/mol"),
     Heading("Binding"),
     FieldSpec("fu_plasma", "fu,p", "fraction", "unbound in plasma, e.g. 0.02"),
@@ -137,9 +149,15 @@ _VICTIM: Final = (
     FieldSpec("route", "Route", "choice:route", "oral or intravenous"),
     FieldSpec("fg", "Fg", "fraction", "intestinal availability, e.g. 0.5"),
     FieldSpec("strengths", "Strengths", "doses", "e.g. 2.5 mg, 5 mg, 10 mg"),
+    FieldSpec("scored_strengths", "Scored (halvable)", "doses", "strengths that may be halved, e.g. 10 mg"),
+    FieldSpec("max_units", "Units per dose, max", "number", "tablets per administration (default 4)"),
+    FieldSpec("half_life", "Half-life", "time", "judges interval changes, e.g. 12 h"),
     FieldSpec("no_effect_boundary", "No-effect range", "pair", "AUC ratios, e.g. 0.8, 1.25"),
+    FieldSpec("peak_boundary", "Peak range", "pair", "peak ratios (default: no-effect range)"),
+    FieldSpec("trough_boundary", "Trough range", "pair", "trough ratios (default: no-effect range)"),
     FieldSpec("narrow_therapeutic_index", "Narrow ther. index", "flag", "yes or no"),
     PATHWAYS,
+    PHENOTYPES,
 )
 
 _SCENARIO: Final = (
@@ -183,6 +201,11 @@ def _choices(name: str) -> tuple[str, ...]:
         return ROUTES
     if name == "rules":
         return rule_set_names()
+    if name in ("polymorphic", "phenotype"):
+        table = load_phenotypes()
+        if name == "polymorphic":
+            return tuple(table)
+        return (*dict.fromkeys(p.name for rows in table.values() for p in rows), "all")
     kinds = ("enzyme",) if name == "enzyme" else ("enzyme", "transporter")
     return tuple(t.name for t in load_targets() if t.kind in kinds)
 

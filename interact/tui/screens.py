@@ -50,7 +50,7 @@ structure seen in S14, equations from memory with the algebra checked)
   study indicated if AUCR >= 1.25 (from memory)
 
 Dose (interact/dosing.py; linear pharmacokinetics, common practice)
-  dose restoring the usual exposure = usual dose / AUCR; interval alternative = tau x AUCR
+  exposure of a regimen = AUCR x dose / usual dose x usual tau / tau; only regimens inside the boundary are offered
   act only outside the victim's no-effect boundary (ICH M12 5.3.1, default 0.8-1.25, S6)
   perpetrator dose ceiling: highest dose keeping AUCR <= upper boundary, concentrations
   taken as dose-proportional
