@@ -86,9 +86,9 @@ def test_only_edited_lines_change(which: str, edits: list[Any], removals: list[A
     assert sorted(d[1:] for d in diff if d[0] == "-") == sorted(own.values())
     added = [d[1:] for d in diff if d[0] == "+"]
     assert len(added) == len(changed)
-    for key in changed:
-        leaf = key.rsplit(".", 1)[-1]
-        line = next(a for a in added if a.startswith(f"{leaf} = "))
+    in_file_order = sorted(changed, key=lambda k: where.find(k) or 0)
+    for key, line in zip(in_file_order, added, strict=True):  # the diff lists the new lines in file order
+        assert line.startswith(f"{key.rsplit('.', 1)[-1]} = ")
         assert _comment(line) == _comment(own[key])  # a changed value keeps its line's comment
 
 

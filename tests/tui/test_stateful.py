@@ -72,6 +72,8 @@ TEXTS: dict[str, list[str]] = {
     "choice:mechanism": ["competitive", "mixed", "noncompetitive", "sticky", ""],
     "choice:route": ["oral", "intravenous", "nasal", ""],
     "choice:rules": ["ich-m12-2024", "no-such-rules", ""],
+    "choice:polymorphic": ["CYP2D6", "CYP2C19", "CYP3A", ""],
+    "choice:phenotype": ["poor", "normal", "all", "fast-ish", ""],
 }
 
 _FIT: list[Any] = []
