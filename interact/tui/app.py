@@ -42,7 +42,7 @@ if TYPE_CHECKING:  # the engine loads after the first screen is painted (see Int
     from ..scenario import Scenario
     from . import plots
 
-__all__ = ["InteractApp", "read_scenario_data", "read_scenario_file"]
+__all__ = ["InteractApp", "read_scenario_data"]
 
 #: the built-in invented demo (the same file as interact.scenario.demo_path(), found without loading pint)
 DEMO_PATH = Path(__file__).resolve().parents[1] / "demo.toml"
@@ -99,23 +99,6 @@ def _parse(text: str, path: str | Path) -> dict[str, Any]:
 def read_scenario_data(path: str | Path) -> dict[str, Any]:
     """The file's TOML data, not yet validated (the built-in demo at start-up; a file opened to fix it)."""
     return _parse(_read_text(path), path)
-
-
-def read_scenario_file(path: str | Path) -> tuple[dict[str, Any], Scenario]:
-    """The file's data (as written, for the form) and its validated scenario.
-
-    Raises
-    ------
-    InputError
-        The file cannot be read or parsed, or the scenario has problems
-        (:class:`~interact.errors.ScenarioError`, all of them listed).
-    """
-    text = _read_text(path)
-    data = _parse(text, path)
-    from ..scenario import scenario_from_dict
-
-    scenario = scenario_from_dict(data, source=str(path), text=text)
-    return data, scenario
 
 
 class PlotView(Widget):
@@ -204,7 +187,7 @@ class InteractApp(App[int]):
     def __init__(self, path: str | Path | None = None, *, data: dict[str, Any] | None = None) -> None:
         super().__init__()
         if data is None:
-            data = read_scenario_file(path)[0] if path is not None else read_scenario_data(DEMO_PATH)
+            data = read_scenario_data(path if path is not None else DEMO_PATH)  # problems show in the form
         self.path: Path | None = None if path is None else Path(path)
         self.data: dict[str, Any] = data
         self.saved_data: dict[str, Any] = copy.deepcopy(data)

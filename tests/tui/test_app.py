@@ -395,16 +395,30 @@ def test_first_screen_does_not_wait_for_the_engine() -> None:
     assert out == "", f"imported before the first screen: {out}"
 
 
-def test_run_app_refuses_a_broken_file_with_every_problem(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+def test_run_app_refuses_a_file_that_is_not_toml(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     from interact.tui import run_app
 
     bad = tmp_path / "broken.toml"
-    text = demo_path().read_text(encoding="utf-8").replace("fu_plasma = 0.04", "fu_plasma = 4").replace("fm = 0.82", 'fm = "high"')
-    bad.write_text(text, encoding="utf-8")
+    bad.write_text('[perpetrator]\nname = "unterminated\n', encoding="utf-8")
     assert run_app(bad) == 2
     err = capsys.readouterr().err
-    assert "perpetrator.fu_plasma" in err and "victim.pathways[0].fm" in err
+    assert str(bad) in err and "could not be parsed" in err
     assert "Traceback" not in err
+
+
+@asynctest
+async def test_a_scenario_with_problems_starts_in_the_form_with_every_problem(tmp_path: Path) -> None:
+    bad = tmp_path / "broken.toml"
+    text = demo_path().read_text(encoding="utf-8").replace("fu_plasma = 0.04", "fu_plasma = 4").replace("fm = 0.82", 'fm = "high"')
+    bad.write_text(text, encoding="utf-8")
+    app = InteractApp(bad)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        assert not app.valid and app.path == bad
+        assert app.field("perpetrator.fu_plasma").error and app.field("victim.pathways[0].fm").error
+        assert app.field("victim.pathways[0].fm").text == "high"  # as written, to be fixed here
+        shown = text_of(app, "#answer-body")
+        assert "perpetrator.fu_plasma" in shown and "victim.pathways[0].fm" in shown
 
 
 @asynctest
