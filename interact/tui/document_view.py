@@ -83,13 +83,17 @@ class DocumentView(ScrollView, can_focus=True):
             self.virtual_size = size
             self.refresh()
             return
-        # repaint only the lines that changed (same Strip object = same line), or all when the count changed
-        if len(before) != len(self._lines):
-            self.refresh()
-            return
-        for y, (old_strip, new_strip) in enumerate(zip(before, self._lines, strict=True)):
-            if old_strip is not new_strip:
-                self.refresh_lines(y)
+        # repaint only the runs of lines that changed (the same Strip object is the same line)
+        after = self._lines
+        start = None
+        for y in range(max(len(before), len(after)) + 1):
+            same = y < len(before) and y < len(after) and before[y] is after[y]
+            end = y >= len(before) and y >= len(after)
+            if start is None and not same and not end:
+                start = y
+            elif start is not None and (same or end):
+                self.refresh_lines(start, y - start)
+                start = None
 
     def on_resize(self) -> None:
         if not self._laid_out or (self.scrollable_content_region.width or self.size.width) != self._width:
