@@ -25,7 +25,7 @@ from ..cautions import CAUTION_LINE
 from ..kinetics.conversion import CHENG_PRUSOFF_SOURCE
 from ..uncertainty import Sensitivity, UncertaintyResult
 from .assessment import assessment_sections
-from .document import Note, Section, Table, render_markdown
+from .document import Note, Section, Table, md_escape, render_markdown
 from .svg import fm_curves_svg, histogram_svg, tornado_svg
 from .uncertainty import sensitivity_sections, uncertainty_sections
 
@@ -291,6 +291,6 @@ def render_report_markdown(a: Assessment, parts: Sequence[ReportPart]) -> str:
         out.append("")
         for fig in part.figures:
             data = base64.b64encode(fig.svg.encode("utf-8")).decode("ascii")
-            out.append(f"![{fig.caption}](data:image/svg+xml;base64,{data})")
+            out.append(f"![{md_escape(fig.caption)}](data:image/svg+xml;base64,{data})")
             out.append("")
     return "\n".join(out).rstrip("\n") + "\n"

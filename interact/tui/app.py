@@ -13,7 +13,6 @@ from __future__ import annotations
 import copy
 import sys
 import time
-import tomllib
 from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, ClassVar
@@ -28,7 +27,7 @@ from textual.widgets import Button, Footer, Header, Input, ProgressBar, Static, 
 from textual.worker import get_current_worker
 
 from ..cautions import CAUTION_LINE
-from ..errors import InputError, InteractError, Problem, ScenarioError
+from ..errors import InteractError, Problem, ScenarioError
 from ..report.numbers import fmt
 from .doc import Doc
 from .document_view import DocumentView
@@ -81,19 +80,16 @@ def load_core() -> None:
 
 
 def _read_text(path: str | Path) -> str:
-    p = Path(path)
-    try:
-        return p.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        why = getattr(exc, "strerror", None) or exc.__class__.__name__
-        raise InputError("scenario", str(p), f"could not be read ({why})") from None
+    """The file's text through the shared reader (a byte-order mark is dropped there)."""
+    from ..files import read_text
+
+    return read_text(Path(path), "scenario")
 
 
 def _parse(text: str, path: str | Path) -> dict[str, Any]:
-    try:
-        return tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(str(path), "TOML", f"could not be parsed: {exc}") from None
+    from ..files import loads_toml
+
+    return loads_toml(text, str(path))
 
 
 def read_scenario_data(path: str | Path) -> dict[str, Any]:
