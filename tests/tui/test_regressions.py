@@ -26,6 +26,10 @@ from interact.tui.document_view import DocumentView
 from interact.tui.results import compare, render_answer
 from interact.tui.screens import AskPath
 
+# The reference answers come from the API (assess, fit_inhibition), which also emits the model's warnings; the app
+# passes warn=False. The warnings' emission is checked in tests/api/test_warnings.py.
+pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")
+
 DATA = Path(__file__).resolve().parents[1] / "data"
 HANDWRITTEN = DATA / "handwritten_scenario.toml"
 FIT_DATA = DATA / "nlstools_vmkmki.csv"

@@ -30,6 +30,7 @@ import tomllib
 from pathlib import Path
 from typing import Any
 
+import pytest
 from hypothesis import HealthCheck, settings
 from hypothesis import strategies as st
 from hypothesis.stateful import RuleBasedStateMachine, initialize, invariant, precondition, rule
@@ -46,6 +47,10 @@ from interact.tui.fitting_view import ki_entry
 from interact.tui.form import get_path, set_path, shows, text_of, value_of
 from interact.tui.form_view import build_rows, entry_keys
 from interact.tui.results import compare, render_answer
+
+# The reference answers come from the API (assess, fit_inhibition), which also emits the model's warnings; the app
+# passes warn=False. The warnings' emission is checked in tests/api/test_warnings.py.
+pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")
 
 DATA = Path(__file__).resolve().parents[1] / "data"
 HANDWRITTEN = DATA / "handwritten_scenario.toml"
