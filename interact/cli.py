@@ -708,7 +708,8 @@ def _add_fit_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[t
         dest="method_binding",
         choices=("austin-2002", "hallifax-2006", "kilford-2008"),
         default="hallifax-2006",
-        help="fu,inc relation (default hallifax-2006; coefficients from memory)",
+        help="fu,inc relation (default hallifax-2006; austin-2002 was derived in rat liver microsomes; "
+        "sources and status: interact tables)",
     )
     p.add_argument("--ic50", action="store_true", help="treat the file as an IC50 curve (inhibitor, response)")
     p.add_argument("--bottom", type=float, metavar="Y", help="IC50 mode: fix the bottom plateau (3-parameter fit), e.g. 0")

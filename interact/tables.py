@@ -19,6 +19,8 @@ from .errors import InputError
 
 __all__ = [
     "STATUSES",
+    "STATUS_MEANINGS",
+    "UNVERIFIED",
     "Band",
     "BindingEquation",
     "Classes",
@@ -37,7 +39,16 @@ __all__ = [
 ]
 
 DEFAULT_RULES: Final = "ich-m12-2024"
-STATUSES: Final = ("seen in source", "from memory", "common practice")
+STATUS_MEANINGS: Final = {
+    "seen in source": "printed in a cited primary text (a guidance, a paper, a journal table or an abstract)",
+    "seen in a secondary source": "printed only in a summary or quotation of the primary text (a review quoting a guidance, "
+    "a blog, a forum post, package documentation)",
+    "inferred": "carried over from an older guidance or an earlier text, not seen for the one named",
+    "from memory": "recalled, not verified against any readable text: verify before relying on it",
+    "common practice": "a convention of the trade rather than a published number",
+}
+STATUSES: Final = tuple(STATUS_MEANINGS)
+UNVERIFIED: Final = ("from memory", "inferred")
 FORMS: Final = ("one-plus-sum", "sum", "tdi", "induction", "fold-change")
 CONCENTRATIONS: Final = ("unbound-cmax", "total-cmax", "gut-lumen", "unbound-inlet")
 MECHANISMS: Final = ("reversible", "time-dependent", "induction")
@@ -59,6 +70,11 @@ class Sourced:
     @property
     def from_memory(self) -> bool:
         return self.status == "from memory"
+
+    @property
+    def unverified(self) -> bool:
+        """From memory, or inferred from an older guidance: outputs list these for checking."""
+        return self.status in UNVERIFIED
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -99,6 +115,8 @@ class RuleSet:
     aucr_induction_cutoff: Sourced
     criteria: tuple[Criterion, ...]
     physiology: tuple[Sourced, ...] = ()
+    source: str = ""
+    """The guidance the rule set encodes, as a citation marker (``[@ichm12]``)."""
 
     def physiology_value(self, name: str) -> Sourced | None:
         for item in self.physiology:
@@ -216,6 +234,7 @@ def _load_rules_file(path: str) -> RuleSet:
         aucr_induction_cutoff=_sourced(data, "aucr_induction_cutoff", where, number=True),
         criteria=tuple(criteria),
         physiology=tuple(_sourced(phys, k, f"{where}.physiology") for k in phys),
+        source=_cites(str(data.get("source", "")), f"{where}.source"),
     )
 
 
@@ -229,11 +248,19 @@ def load_physiology() -> tuple[Sourced, ...]:
 def load_classes() -> Classes:
     data = _read(tables_dir() / "classes.toml", "classes")
     inhibition = tuple(
-        Band(name=b["name"], bound=float(b["lower"]), source=b["source"], status=_status(b, "classes.inhibition"))
+        Band(
+            name=b["name"],
+            bound=float(b["lower"]),
+            source=_cites(b["source"], "classes.inhibition"),
+            status=_status(b, "classes.inhibition"),
+        )
         for b in data["inhibition"]
     )
     induction = tuple(
-        Band(name=b["name"], bound=float(b["upper"]), source=b["source"], status=_status(b, "classes.induction")) for b in data["induction"]
+        Band(
+            name=b["name"], bound=float(b["upper"]), source=_cites(b["source"], "classes.induction"), status=_status(b, "classes.induction")
+        )
+        for b in data["induction"]
     )
     boundary = data["no_effect_boundary"]
     return Classes(
@@ -245,7 +272,7 @@ def load_classes() -> Classes:
         no_effect_source=Sourced(
             name="no_effect_boundary",
             value=(float(boundary["lower"]), float(boundary["upper"])),
-            source=boundary["source"],
+            source=_cites(boundary["source"], "classes.no_effect_boundary"),
             status=_status(boundary, "classes.no_effect_boundary"),
         ),
         version=str(data.get("version", "")),
@@ -300,6 +327,20 @@ def _norm(name: str) -> str:
     return name.upper().replace("-", "").replace(" ", "").replace("_", "")
 
 
+def read_table(path: Path, field: str) -> dict[str, Any]:
+    """A TOML table file; unreadable or invalid files raise :class:`InputError` naming ``field``."""
+    return _read(path, field)
+
+
+def _cites(text: str, field: str) -> str:
+    """``text``, after checking that its citation markers name registered sources."""
+    if "[@" in text:
+        from .sources import check_markers  # the registry reads its file through this module
+
+        check_markers(text, field)
+    return text
+
+
 def _read(path: Path, field: str) -> dict[str, Any]:
     try:
         text = path.read_text(encoding="utf-8")
@@ -331,9 +372,9 @@ def _sourced(data: dict[str, Any], key: str, where: str, *, number: bool = False
     return Sourced(
         name=key,
         value=float(value) if number else value,
-        source=raw["source"],
+        source=_cites(raw["source"], f"{at}.source"),
         status=_status(raw, at),
-        note=str(raw.get("note", "")),
+        note=_cites(str(raw.get("note", "")), f"{at}.note"),
     )
 
 
@@ -420,7 +461,7 @@ def load_binding() -> tuple[BindingEquation, ...]:
                 title=_str(raw, "title", at),
                 system=_choice(raw, "system", ("microsomes", "hepatocytes"), at),
                 equation=_str(raw, "equation", at),
-                source=_str(raw, "source", at),
+                source=_cites(_str(raw, "source", at), f"{at}.source"),
                 status=_status(raw, at),
                 note=str(raw.get("note", "")),
                 values=tuple(values),

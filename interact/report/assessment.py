@@ -16,7 +16,7 @@ from .. import units
 from ..assessment import Assessment
 from ..cautions import CAUTION_LINE
 from ..exposure import Setting
-from .document import Note, Section, Table, render_markdown, render_text
+from .document import Note, Section, Table, cite, cite_data, render_markdown, render_text
 from .numbers import fmt, fmt_ratio
 
 if TYPE_CHECKING:
@@ -50,11 +50,16 @@ def _q(q: pint.Quantity | None) -> str:
     return "-" if q is None else units.format_quantity(q)
 
 
-def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, time_course_note: str = "") -> list[Section]:
+def assessment_sections(
+    a: Assessment, time_course: TimeCourse | None = None, time_course_note: str = "", *, references: bool = True
+) -> list[Section]:
     """The assessment as document sections (shared by every format).
 
     With ``time_course`` (from :func:`interact.dynamic.simulate`) the dynamic
     check and the dose timing are added; ``time_course_note`` says why it is absent.
+    Citations are resolved to author-year forms and a references section ends the
+    list; with ``references=False`` the citation markers are left for the caller
+    (the HTML report adds sections of its own before resolving them all).
     """
     s = a.scenario
     p = s.perpetrator
@@ -65,7 +70,7 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
 
     head = [
         f"Scenario: {s.title}",
-        f"Rule set: {a.rules.title} [{a.rules.id}, table {a.rules.table_version}]",
+        f"Rule set: {a.rules.title} [{a.rules.id}, table {a.rules.table_version}]" + (f" ({a.rules.source})" if a.rules.source else ""),
     ]
     if s.invented:
         head.append("This scenario is INVENTED: its compounds and values describe no real drug.")
@@ -167,8 +172,10 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
             title="Perpetrator concentrations (uM)",
             blocks=(
                 Table(headers=("species", "Cmax", "fu,p used", "Imax,u", "Igut", "Iin,max,u", "I,ent"), rows=conc_rows),
-                "Imax,u = fu,p x Cmax; Igut = dose / 250 mL; Iin,max,u = fu,p x (Cmax + Fa*Fg x ka x Dose / (Qh x Rb)); "
-                "I,ent = fu,gut x Fa x ka x Dose / Qent. Metabolites use their systemic Imax,u at every site.",
+                "Imax,u = fu,p x Cmax; Igut = dose / 250 mL ([@dmd2019inlet]); "
+                "Iin,max,u = fu,p x (Cmax + Fa*Fg x ka x Dose / (Qh x Rb)) ([@dmd2019inlet], Tables 7 and 8; [@jpetverinurad]); "
+                "I,ent = fu,gut x Fa x ka x Dose / Qent (from memory). Metabolites use their systemic Imax,u at every site "
+                "([@jpetverinurad], Table 7 footnote).",
             ),
         )
     )
@@ -245,7 +252,8 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
         blocks.append(f"Size band: {pr.band.name} ({pr.band.source}; {pr.band.status}).")
     blocks.append(
         "AUCR = [1 / (activity_gut x (1 - Fg) + Fg)] x [1 / (sum fm x activity_liver + (1 - sum fm))]; "
-        "activity = reversible x inactivation x induction (Fahmi et al. 2008 net-effect model)."
+        "activity = reversible x inactivation x induction (net-effect model of [@fahmi2008]; structure seen in [@guengerich2022], "
+        "equations from memory with the algebra checked)."
     )
     sections.append(Section(title="Mechanistic static model", blocks=tuple(blocks)))
 
@@ -276,7 +284,7 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
     if a.memory_values:
         sections.append(
             Section(
-                title="Values from memory (verify before relying on them)",
+                title="Values from memory or inferred from an older guidance (verify before relying on them)",
                 blocks=tuple(f"- {m}" for m in a.memory_values),
             )
         )
@@ -291,7 +299,7 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
             ),
         )
     )
-    return sections
+    return cite(sections) if references else sections
 
 
 def _num(x: float | None) -> float | None:
@@ -316,6 +324,8 @@ def _setting_dict(s: Setting) -> dict[str, Any]:
 def assessment_to_dict(a: Assessment, time_course: TimeCourse | None = None) -> dict[str, Any]:
     """JSON-ready data; concentrations in uM, rates in 1/h, ratios dimensionless.
 
+    Citations are resolved to author-year forms; ``references`` lists the sources cited, in full.
+
     With ``time_course``, a ``time_course`` entry holds its summary and the dose timing (no curves;
     ``interact timecourse --format json`` gives them).
     """
@@ -324,7 +334,7 @@ def assessment_to_dict(a: Assessment, time_course: TimeCourse | None = None) -> 
         from .timecourse import timecourse_to_dict
 
         out["time_course"] = timecourse_to_dict(time_course, a, curves=False)
-    return out
+    return cite_data(out)
 
 
 def _assessment_dict(a: Assessment) -> dict[str, Any]:
@@ -458,7 +468,7 @@ def format_assessment(
         data = assessment_to_dict(a, time_course)
         if time_course is None and time_course_note:
             data["time_course"] = {"computed": False, "reason": time_course_note}
-        return json.dumps(data, indent=2, allow_nan=False) + "\n"
+        return json.dumps(cite_data(data), indent=2, allow_nan=False) + "\n"
     sections = assessment_sections(a, time_course, time_course_note)
     if fmt_name == "markdown":
         return render_markdown(sections, title=f"interact assessment: {a.scenario.title}")

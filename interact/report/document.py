@@ -8,9 +8,14 @@ from __future__ import annotations
 
 import html
 import textwrap
+from collections.abc import Iterator
 from dataclasses import dataclass, field
 
-__all__ = ["Note", "Section", "Table", "render_html_body", "render_markdown", "render_text"]
+from ..sources import cited_keys, full_citation, load_sources, resolve
+
+__all__ = ["REFERENCES_TITLE", "Note", "Section", "Table", "cite", "cite_data", "render_html_body", "render_markdown", "render_text"]
+
+REFERENCES_TITLE = "References"
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -31,6 +36,102 @@ class Note:
 class Section:
     title: str
     blocks: tuple[str | Table | Note, ...] = field(default_factory=tuple)
+
+
+def _texts(sections: list[Section]) -> Iterator[str]:
+    for section in sections:
+        yield section.title
+        for block in section.blocks:
+            if isinstance(block, Table):
+                yield from block.headers
+                for row in block.rows:
+                    yield from row
+            elif isinstance(block, Note):
+                yield block.text
+            else:
+                yield block
+
+
+def _resolve_block(block: str | Table | Note) -> str | Table | Note:
+    if isinstance(block, Table):
+        return Table(headers=tuple(resolve(h) for h in block.headers), rows=tuple(tuple(resolve(c) for c in r) for r in block.rows))
+    if isinstance(block, Note):
+        return Note(text=resolve(block.text), kind=block.kind)
+    return resolve(block)
+
+
+def references_section(keys: tuple[str, ...]) -> Section:
+    """Full citations of ``keys``, in the order given, each under its short author-year form."""
+    sources = load_sources()
+    return Section(title=REFERENCES_TITLE, blocks=tuple(f"- {sources[k].short}: {full_citation(k)}" for k in keys))
+
+
+def cite(sections: list[Section], *, every_source: bool = False) -> list[Section]:
+    """Resolve citation markers (``[@lee2024]``) to short author-year forms and end with the references they cite.
+
+    The references section lists exactly the sources cited in ``sections`` (all of the
+    registry with ``every_source``).  Idempotent: resolved sections cite nothing further.
+    """
+    keys = tuple(load_sources()) if every_source else cited_keys(_texts(sections))
+    if not keys:
+        return sections
+    known = load_sources()
+    keys = tuple(k for k in keys if k in known)
+    out = [Section(title=resolve(sec.title), blocks=tuple(_resolve_block(b) for b in sec.blocks)) for sec in sections]
+    return [*out, references_section(keys)] if keys else out
+
+
+def _strings(data: object) -> Iterator[str]:
+    if isinstance(data, str):
+        yield data
+    elif isinstance(data, dict):
+        for v in data.values():
+            yield from _strings(v)
+    elif isinstance(data, (list, tuple)):
+        for v in data:
+            yield from _strings(v)
+
+
+def _resolve_data(data: object) -> object:
+    if isinstance(data, str):
+        return resolve(data)
+    if isinstance(data, dict):
+        return {k: _resolve_data(v) for k, v in data.items()}
+    if isinstance(data, (list, tuple)):
+        return [_resolve_data(v) for v in data]
+    return data
+
+
+def cite_data(data: dict[str, object]) -> dict[str, object]:
+    """JSON-ready ``data`` with citation markers resolved and a ``references`` list of exactly the sources cited.
+
+    Idempotent: references already listed in ``data`` are kept and new ones appended.
+    """
+    known = load_sources()
+    keys = [k for k in cited_keys(_strings(data)) if k in known]
+    earlier = data.get("references")
+    out = _resolve_data({k: v for k, v in data.items() if k != "references"})
+    assert isinstance(out, dict)
+    listed = list(earlier) if isinstance(earlier, list) else []
+    have = {r.get("cited_as") for r in listed if isinstance(r, dict)}
+    out["references"] = listed + [
+        {
+            "cited_as": known[k].short,
+            "citation": full_citation(k),
+            "authors": known[k].authors,
+            "title": known[k].title,
+            "published": known[k].published,
+            "year": known[k].year,
+            "locator": known[k].locator,
+            "doi": known[k].doi or None,
+            "url": known[k].url or None,
+            "kind": known[k].kind,
+            "read": known[k].read,
+        }
+        for k in keys
+        if known[k].short not in have
+    ]
+    return out
 
 
 def _text_table(table: Table, width: int) -> list[str]:
@@ -60,6 +161,7 @@ def _text_table(table: Table, width: int) -> list[str]:
 
 
 def render_text(sections: list[Section], width: int = 100) -> str:
+    sections = cite(sections)
     out: list[str] = []
     for section in sections:
         out.append("")
@@ -82,6 +184,7 @@ def _md_cell(text: str) -> str:
 
 
 def render_markdown(sections: list[Section], title: str = "") -> str:
+    sections = cite(sections)
     out: list[str] = []
     if title:
         out += [f"# {title}", ""]
@@ -104,6 +207,7 @@ def render_markdown(sections: list[Section], title: str = "") -> str:
 
 def render_html_body(sections: list[Section]) -> str:
     """HTML for the sections; every string is escaped."""
+    sections = cite(sections)
     e = html.escape
     out: list[str] = []
     for section in sections:

@@ -18,6 +18,7 @@ import platform
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import datetime
+from pathlib import Path
 
 from .. import __version__
 from ..assessment import Assessment
@@ -25,7 +26,7 @@ from ..cautions import CAUTION_LINE
 from ..kinetics.conversion import CHENG_PRUSOFF_SOURCE
 from ..uncertainty import Sensitivity, UncertaintyResult
 from .assessment import assessment_sections
-from .document import Note, Section, Table, render_markdown
+from .document import Note, Section, Table, cite, render_markdown
 from .svg import fm_curves_svg, histogram_svg, tornado_svg
 from .uncertainty import sensitivity_sections, uncertainty_sections
 
@@ -46,9 +47,9 @@ class ReportPart:
 
 def _equations(a: Assessment) -> Section:
     rows = [
-        ("Imax,u", "fu,p x Cmax (fu,p raised to the rule set's floor unless measured and allowed)", "S7, S1"),
-        ("Igut", "Dose / 250 mL (oral perpetrator)", "S7, S8"),
-        ("Iin,max,u", "fu,p x (Cmax + Fa x Fg x ka x Dose / (Qh x Rb))", "S7, S8, S10"),
+        ("Imax,u", "fu,p x Cmax (fu,p raised to the rule set's floor unless measured and allowed)", "[@dmd2019inlet]"),
+        ("Igut", "Dose / 250 mL (oral perpetrator)", "[@dmd2019inlet]"),
+        ("Iin,max,u", "fu,p x (Cmax + Fa x Fg x ka x Dose / (Qh x Rb))", "[@dmd2019inlet] (Tables 7, 8); [@jpetverinurad] (Table 7)"),
         ("I,ent", "fu,gut x Fa x ka x Dose / Qent", "from memory"),
         (
             "Ki,u",
@@ -61,14 +62,14 @@ def _equations(a: Assessment) -> Section:
     for r in a.screen:
         if r.criterion not in seen:
             seen.add(r.criterion)
-            rows.append((r.label, r.equation, f"rule set {a.rules.id}"))
+            rows.append((r.label, r.equation, f"rule set {a.rules.id}: {r.cutoff.source}"))
     rows += [
-        ("reversible term", "1 / (1 + sum [I] / Ki,u)", "Fahmi et al. 2008 (net-effect model)"),
-        ("inactivation term", "kdeg / (kdeg + sum kinact [I] / (KI,u + [I]))", "Fahmi et al. 2008"),
-        ("induction term", "1 + d x sum Emax [I] / (EC50,u + [I])", "Fahmi et al. 2008"),
-        ("AUCR liver", "1 / (sum fm x activity + (1 - sum fm)), [I] = Iin,max,u", "Fahmi et al. 2008"),
-        ("AUCR gut", "1 / (activity x (1 - Fg) + Fg), [I] = I,ent, gut-wall enzyme only", "Fahmi et al. 2008"),
-        ("AUCR", "AUCR gut x AUCR liver", "Fahmi et al. 2008"),
+        ("reversible term", "1 / (1 + sum [I] / Ki,u)", "[@fahmi2008] (net-effect model; structure seen in [@guengerich2022])"),
+        ("inactivation term", "kdeg / (kdeg + sum kinact [I] / (KI,u + [I]))", "[@fahmi2008]"),
+        ("induction term", "1 + d x sum Emax [I] / (EC50,u + [I])", "[@fahmi2008]; d as in [@lee2024]"),
+        ("AUCR liver", "1 / (sum fm x activity + (1 - sum fm)), [I] = Iin,max,u", "[@fahmi2008]"),
+        ("AUCR gut", "1 / (activity x (1 - Fg) + Fg), [I] = I,ent, gut-wall enzyme only", "[@fahmi2008]"),
+        ("AUCR", "AUCR gut x AUCR liver", "[@fahmi2008]"),
         ("dose restoring exposure", "usual dose / AUCR; or interval x AUCR", "linear pharmacokinetics (common practice)"),
         ("log-normal from CV", "sigma = sqrt(ln(1 + CV^2)), median = the scenario's value", "standard log-normal moments"),
         (
@@ -81,7 +82,7 @@ def _equations(a: Assessment) -> Section:
         title="Equations used",
         blocks=(
             Table(headers=("quantity", "equation", "source"), rows=tuple(rows)),
-            "Source keys (S1, S7 ...) are listed in README.md and reference_tables/README.md.",
+            "Sources are cited by author and year; the references at the end of this report give them in full.",
         ),
     )
 
@@ -93,7 +94,7 @@ def _rule_set(a: Assessment) -> Section:
         ("title", r.title, ""),
         ("version", r.version, ""),
         ("table version", r.table_version, ""),
-        ("file", r.path, ""),
+        ("guidance", r.source or "-", ""),
         ("fu,p floor", f"{r.fu_plasma_floor.value:g}", f"{r.fu_plasma_floor.source} ({r.fu_plasma_floor.status})"),
         (
             "mechanistic-model inhibition cutoff (AUCR >=)",
@@ -119,7 +120,7 @@ def report_parts(
     generated_at: datetime,
 ) -> list[ReportPart]:
     """The report as sections with their figures, in reading order."""
-    base = assessment_sections(a)
+    base = assessment_sections(a, references=False)
     titles = [s.title for s in base]
     cut = titles.index("Dose suggestion") if "Dose suggestion" in titles else len(base)
     parts = [ReportPart(section=s) for s in base[:cut]]
@@ -142,7 +143,7 @@ def report_parts(
                     title="Uncertainty of the AUC ratio",
                     blocks=(
                         "No input distributions were declared, so no spread is shown: the AUC ratio above is a point estimate. "
-                        "Declare them with --vary PATH=SPEC or --spec FILE.toml (see README, 'Uncertainty').",
+                        "Declare them with --vary PATH=SPEC or --spec FILE.toml (interact report --help lists both).",
                     ),
                 )
             )
@@ -173,7 +174,7 @@ def report_parts(
         ("scenario file", source_name),
         ("scenario file SHA-256", digest),
         ("generated", generated_at.isoformat(timespec="seconds")),
-        ("rule set", f"{pv.rules_id} version {pv.rules_version}, table {pv.rules_table_version} ({pv.rules_path})"),
+        ("rule set", f"{pv.rules_id} version {pv.rules_version}, table {pv.rules_table_version} (file {Path(pv.rules_path).name})"),
         *((f"{k} table", ver) for k, ver in pv.table_versions),
     ]
     if spread is not None:
@@ -184,7 +185,10 @@ def report_parts(
             )
         )
     parts.append(ReportPart(section=Section(title="Provenance", blocks=(Table(headers=("item", "value"), rows=tuple(rows)),))))
-    return parts
+    # citations resolved once over the whole report, which then ends with exactly the sources it cites
+    resolved = cite([p.section for p in parts])
+    out = [ReportPart(section=sec, figures=p.figures) for sec, p in zip(resolved, parts, strict=False)]
+    return out + [ReportPart(section=sec) for sec in resolved[len(parts) :]]
 
 
 _CSS = """

@@ -16,7 +16,7 @@ from ..assessment import Assessment
 from ..cautions import CAUTION_LINE
 from ..dosing import timing_advice
 from ..dynamic import TimeCourse, time_course_arrays
-from .document import Note, Section, Table, render_markdown, render_text
+from .document import Note, Section, Table, cite_data, render_markdown, render_text
 from .numbers import fmt, fmt_ratio
 
 __all__ = [
@@ -221,7 +221,7 @@ def timecourse_to_dict(tc: TimeCourse, a: Assessment | None = None, *, curves: b
 def format_timecourse(tc: TimeCourse, a: Assessment | None = None, fmt_name: str = "text", width: int = 100) -> str:
     """The course as ``text``, ``markdown`` or ``json``."""
     if fmt_name == "json":
-        return json.dumps(timecourse_to_dict(tc, a), indent=2, allow_nan=False) + "\n"
+        return json.dumps(cite_data(timecourse_to_dict(tc, a)), indent=2, allow_nan=False) + "\n"
     head: list[str | Table | Note] = []
     if a is not None:
         head.append(f"Scenario: {a.scenario.title}")

@@ -10,7 +10,7 @@ import numpy as np
 
 from ..cautions import CAUTION_LINE
 from ..uncertainty import Sensitivity, UncertaintyResult
-from .document import Note, Section, Table, render_markdown, render_text
+from .document import Note, Section, Table, cite_data, render_markdown, render_text
 from .numbers import fmt, fmt_ratio
 
 __all__ = ["JSON_SCHEMA", "format_uncertainty", "sensitivity_sections", "uncertainty_sections", "uncertainty_to_dict"]
@@ -180,7 +180,7 @@ def format_uncertainty(
 ) -> str:
     """The result as ``text``, ``markdown`` or ``json``."""
     if fmt_name == "json":
-        return json.dumps(uncertainty_to_dict(r, s), indent=2, allow_nan=False) + "\n"
+        return json.dumps(cite_data(uncertainty_to_dict(r, s)), indent=2, allow_nan=False) + "\n"
     sections = [Section(title="", blocks=((f"Scenario: {title}",) if title else ()) + (Note(text=CAUTION_LINE),))]
     sections += uncertainty_sections(r)
     if s is not None:

@@ -119,7 +119,8 @@ def test_markdown_weights_models_and_predicted_binding(capsys: pytest.CaptureFix
     assert main([*args, "--logp", "2.0", "--protein", "0.5 mg/mL"]) == 0
     out = capsys.readouterr().out
     assert out.startswith("# Incubation fit") and "| uncompetitive |" in out
-    assert "Hallifax & Houston 2006" in out and "from memory" in out
+    assert "Hallifax & Houston 2006" in out and "seen in a secondary source" in out
+    assert "## References" in out and "httk documentation, calc_hep_fu" in out and "[@" not in out
     assert "Poisson-like weights" in out
 
 
