@@ -28,6 +28,7 @@ __all__ = [
     "RuleSet",
     "Sourced",
     "Target",
+    "Terms",
     "load_binding",
     "load_classes",
     "load_physiology",
@@ -101,6 +102,17 @@ class Criterion:
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
+class Terms:
+    """The words a guidance uses for the two drugs: ICH M12 says precipitant and object drug, older texts
+    perpetrator and victim.  Outputs under a rule set speak its words."""
+
+    precipitant: str = "perpetrator"
+    object: str = "victim"
+    source: str = ""
+    status: str = ""
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
 class RuleSet:
     """A guidance's cutoffs and multipliers."""
 
@@ -117,6 +129,7 @@ class RuleSet:
     physiology: tuple[Sourced, ...] = ()
     source: str = ""
     """The guidance the rule set encodes, as a citation marker (``[@ichm12]``)."""
+    terms: Terms = Terms()
 
     def physiology_value(self, name: str) -> Sourced | None:
         for item in self.physiology:
@@ -235,6 +248,27 @@ def _load_rules_file(path: str) -> RuleSet:
         criteria=tuple(criteria),
         physiology=tuple(_sourced(phys, k, f"{where}.physiology") for k in phys),
         source=_cites(str(data.get("source", "")), f"{where}.source"),
+        terms=_terms(data.get("terms"), f"{where}.terms"),
+    )
+
+
+def _terms(raw: object, where: str) -> Terms:
+    """The rule set's ``[terms]`` table: ``precipitant`` and ``object`` (nouns), with source and status."""
+    if raw is None:
+        return Terms()
+    if not isinstance(raw, dict):
+        raise InputError(where, raw, "is not a table with precipitant, object, source and status")
+    words = {}
+    for key in ("precipitant", "object"):
+        value = raw.get(key)
+        if not isinstance(value, str) or not value.strip() or not value.replace(" ", "").replace("-", "").isalpha():
+            raise InputError(f"{where}.{key}", value, "is not a word or two (letters, spaces, hyphens)")
+        words[key] = value.strip()
+    return Terms(
+        precipitant=words["precipitant"],
+        object=words["object"],
+        source=_cites(str(raw.get("source", "")), f"{where}.source"),
+        status=_status(raw, where) if "status" in raw else "",
     )
 
 

@@ -17,7 +17,7 @@ def test_demo_text(capsys: pytest.CaptureFixture[str]) -> None:
     for heading in (
         "SUMMARY",
         "INPUTS",
-        "PERPETRATOR CONCENTRATIONS",
+        "PRECIPITANT CONCENTRATIONS",
         "BASIC STATIC MODELS",
         "MECHANISTIC STATIC MODEL",
         "DOSE SUGGESTION",

@@ -16,13 +16,13 @@ from .. import units
 from ..assessment import Assessment
 from ..cautions import CAUTION_LINE
 from ..exposure import Setting
-from .document import Note, Section, Table, cite, cite_data, render_markdown, render_text
+from .document import Note, Section, Table, cite, cite_data, render_markdown, render_text, speak_data, speak_sections
 from .numbers import fmt, fmt_ratio
 
 if TYPE_CHECKING:
     from ..dynamic import TimeCourse
 
-__all__ = ["JSON_SCHEMA", "assessment_sections", "assessment_to_dict", "format_assessment"]
+__all__ = ["JSON_SCHEMA", "assessment_sections", "assessment_to_dict", "format_assessment", "user_text"]
 
 JSON_SCHEMA = "interact.assessment/1"
 
@@ -299,7 +299,18 @@ def assessment_sections(
             ),
         )
     )
+    sections = speak_sections(sections, a.rules.terms, user_text(a))
     return cite(sections) if references else sections
+
+
+def user_text(a: Assessment) -> tuple[str, ...]:
+    """What the user typed that outputs show (title, notes, names, origins): never reworded by :func:`speak`."""
+    s = a.scenario
+    p = s.perpetrator
+    items = [s.title, s.notes, p.name, s.victim.name, *(m.name for m in p.metabolites)]
+    for inh in (*p.inhibits, *(i for m in p.metabolites for i in m.inhibits)):
+        items.append(inh.origin)
+    return tuple(x for x in items if x)
 
 
 def _num(x: float | None) -> float | None:
@@ -334,7 +345,9 @@ def assessment_to_dict(a: Assessment, time_course: TimeCourse | None = None) -> 
         from .timecourse import timecourse_to_dict
 
         out["time_course"] = timecourse_to_dict(time_course, a, curves=False)
-    return cite_data(out)
+    worded = speak_data(out, a.rules.terms, user_text(a))
+    assert isinstance(worded, dict)
+    return cite_data(worded)
 
 
 def _assessment_dict(a: Assessment) -> dict[str, Any]:

@@ -7,13 +7,28 @@ so that what a shell shows and what a file holds never drift apart.
 from __future__ import annotations
 
 import html
+import re
 import textwrap
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 
 from ..sources import cited_keys, full_citation, load_sources, resolve
+from ..tables import Terms
 
-__all__ = ["REFERENCES_TITLE", "Note", "Section", "Table", "cite", "cite_data", "render_html_body", "render_markdown", "render_text"]
+__all__ = [
+    "REFERENCES_TITLE",
+    "Note",
+    "Section",
+    "Table",
+    "cite",
+    "cite_data",
+    "render_html_body",
+    "render_markdown",
+    "render_text",
+    "speak",
+    "speak_data",
+    "speak_sections",
+]
 
 REFERENCES_TITLE = "References"
 
@@ -132,6 +147,73 @@ def cite_data(data: dict[str, object]) -> dict[str, object]:
         if known[k].short not in have
     ]
     return out
+
+
+def _plural(noun: str) -> str:
+    head, _, last = noun.rpartition(" ")
+    return f"{head} {last}s".strip() if head else f"{noun}s"
+
+
+def _cap(word: str) -> str:
+    return word[:1].upper() + word[1:]
+
+
+def _term_patterns(terms: Terms) -> list[tuple[re.Pattern[str], str]]:
+    pairs = (
+        ("victim drugs", _plural(terms.object)),
+        ("victim drug", terms.object),
+        ("victims", _plural(terms.object)),
+        ("victim", terms.object),
+        ("perpetrators", _plural(terms.precipitant)),
+        ("perpetrator", terms.precipitant),
+    )
+    out = []
+    for old, new in pairs:
+        # not inside a file key (perpetrator.half_life, [victim]): those name what the user typed
+        out.append((re.compile(rf"(?<![\[.\w]){old}(?![.\w])"), new))
+        out.append((re.compile(rf"(?<![\[.\w]){_cap(old)}(?![.\w])"), _cap(new)))
+    return out
+
+
+def speak(text: str, terms: Terms, protect: tuple[str, ...] = ()) -> str:
+    """``text`` in the rule set's words (ICH M12: precipitant, object drug), leaving the ``protect``ed strings
+    (what the user typed: title, drug names, notes) exactly as written."""
+    if terms.precipitant == "perpetrator" and terms.object == "victim":
+        return text
+    keep = sorted({p for p in protect if p}, key=len, reverse=True)
+    pieces = re.split("(" + "|".join(re.escape(p) for p in keep) + ")", text) if keep else [text]
+    patterns = _term_patterns(terms)
+    for i in range(0, len(pieces), 2):  # even pieces lie outside the protected strings
+        for pattern, word in patterns:
+            pieces[i] = pattern.sub(word, pieces[i])
+    return "".join(pieces)
+
+
+def speak_sections(sections: list[Section], terms: Terms, protect: tuple[str, ...] = ()) -> list[Section]:
+    """The sections in the rule set's words (see :func:`speak`)."""
+
+    def say(t: str) -> str:
+        return speak(t, terms, protect)
+
+    def block(b: str | Table | Note) -> str | Table | Note:
+        if isinstance(b, Table):
+            return Table(headers=tuple(say(h) for h in b.headers), rows=tuple(tuple(say(c) for c in r) for r in b.rows))
+        if isinstance(b, Note):
+            return Note(text=say(b.text), kind=b.kind)
+        return say(b)
+
+    return [Section(title=say(s.title), blocks=tuple(block(b) for b in s.blocks)) for s in sections]
+
+
+def speak_data(data: object, terms: Terms, protect: tuple[str, ...] = ()) -> object:
+    """JSON-ready data with its text values (not its keys) in the rule set's words."""
+    if isinstance(data, str):
+        return speak(data, terms, protect)
+    if isinstance(data, dict):
+        return {k: speak_data(v, terms, protect) for k, v in data.items()}
+    if isinstance(data, list):
+        return [speak_data(v, terms, protect) for v in data]
+    return data
 
 
 def _text_table(table: Table, width: int) -> list[str]:

@@ -25,8 +25,8 @@ from ..assessment import Assessment
 from ..cautions import CAUTION_LINE
 from ..kinetics.conversion import CHENG_PRUSOFF_SOURCE
 from ..uncertainty import Sensitivity, UncertaintyResult
-from .assessment import assessment_sections
-from .document import Note, Section, Table, cite, render_markdown
+from .assessment import assessment_sections, user_text
+from .document import Note, Section, Table, cite, render_markdown, speak_sections
 from .svg import fm_curves_svg, histogram_svg, tornado_svg
 from .uncertainty import sensitivity_sections, uncertainty_sections
 
@@ -185,8 +185,9 @@ def report_parts(
             )
         )
     parts.append(ReportPart(section=Section(title="Provenance", blocks=(Table(headers=("item", "value"), rows=tuple(rows)),))))
-    # citations resolved once over the whole report, which then ends with exactly the sources it cites
-    resolved = cite([p.section for p in parts])
+    # in the rule set's words; citations resolved once over the whole report, which then ends with exactly the
+    # sources it cites
+    resolved = cite(speak_sections([p.section for p in parts], a.rules.terms, user_text(a)))
     out = [ReportPart(section=sec, figures=p.figures) for sec, p in zip(resolved, parts, strict=False)]
     return out + [ReportPart(section=sec) for sec in resolved[len(parts) :]]
 

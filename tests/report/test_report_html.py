@@ -20,8 +20,10 @@ import pytest
 from interact import assess
 from interact.cautions import CAUTIONS, DOSE_CAUTIONS
 from interact.cli import main
+from interact.report.document import speak
 from interact.report.html import render_report_html, render_report_markdown, report_parts
 from interact.scenario import demo_path, dumps_scenario, load_scenario, loads_scenario
+from interact.tables import load_rules
 from interact.uncertainty import run_uncertainty, sensitivity
 
 EVIL = '<script>alert("x")</script> & "quotes" <img src=x onerror=alert(1)>'
@@ -31,7 +33,7 @@ SECTIONS = (
     "Inputs",
     "Rule set",
     "Equations used",
-    "Perpetrator concentrations (uM)",
+    "Precipitant concentrations (uM)",
     "Basic static models (ich-m12-2024)",
     "Mechanistic static model",
     "Uncertainty of the AUC ratio",
@@ -113,8 +115,9 @@ def test_every_section_and_provenance() -> None:
     assert "2026-01-02T03:04:05+00:00" in page
     assert "INVENTED scenario" in page
     assert "interact 0." in page and "classes table" in page
+    terms = load_rules().terms  # the default rule set, ICH M12: its words (precipitant, object drug)
     for caution in (*CAUTIONS, *DOSE_CAUTIONS):
-        assert html.escape(caution) in page  # in full
+        assert html.escape(speak(caution, terms)) in page  # in full
     assert "Iin,max,u" in page and "Cheng" in page  # equations
     assert "@media print" in page
 
