@@ -12,7 +12,7 @@ from typing import Final
 from . import __version__, units
 from .cautions import CAUTIONS
 from .constants import Constant, resolve_constants
-from .dosing import DoseLimit, DoseSuggestion, highest_perpetrator_scale, suggest_dose
+from .dosing import DoseLimit, DoseSuggestion, RegimenPlan, highest_perpetrator_scale, plan_for_victim, suggest_dose
 from .errors import InputError
 from .exposure import Setting, SpeciesExposure, resolve_exposure, resolve_settings
 from .prediction import Prediction, predict, ratio_function
@@ -53,6 +53,7 @@ class Assessment:
     aucr_cutoff: Sourced
     study_indicated: bool
     dose: DoseSuggestion
+    regimens: RegimenPlan
     perpetrator_limit: DoseLimit
     kdeg_used: tuple[Setting, ...]
     warnings: tuple[str, ...]
@@ -186,26 +187,23 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
                 f"screen does not flag {', '.join(missed)}: the hepatic inlet concentration exceeds Cmax,u."
             )
     # -- dose
-    usual_unit = units.unit_text(v.dose)
-    usual = float(v.dose.magnitude)
-    strengths = tuple(units.magnitude(s, usual_unit) for s in v.strengths)
-    if v.no_effect_lower is not None and v.no_effect_upper is not None:
-        boundary = (v.no_effect_lower, v.no_effect_upper)
-        origin = "given for this victim"
-    else:
-        boundary = (classes.no_effect_lower, classes.no_effect_upper)
-        origin = "default 0.8-1.25, ICH M12 5.3.1"
+    plan = plan_for_victim(v, (classes.no_effect_lower, classes.no_effect_upper), "default 0.8-1.25, ICH M12 5.3.1")
+    boundary = plan.boundary
     dose = suggest_dose(
+        plan,
         auc_ratio=prediction.total,
-        usual_dose=usual,
-        dose_unit=usual_unit,
-        interval_h=units.magnitude(v.interval, "h"),
-        strengths=strengths,
-        boundary=boundary,
-        boundary_origin=origin,
-        narrow_therapeutic_index=v.narrow_therapeutic_index,
+        gut_ratio=prediction.gut,
         mechanism_parts=tuple((pt.mechanism, pt.total) for pt in prediction.parts) if "induction" in prediction.mechanisms else (),
     )
+    if p.cmax_dose is not None:
+        dose_now = units.magnitude(p.dose, units.unit_text(p.cmax_dose))
+        measured_at = float(p.cmax_dose.magnitude)
+        if not math.isclose(dose_now, measured_at, rel_tol=1e-9):
+            warnings.append(
+                f"The perpetrator's dose ({units.format_quantity(p.dose)}) differs from the dose at which its Cmax was measured "
+                f"({units.format_quantity(p.cmax_dose)}): Cmax is used as given, not scaled; give the Cmax at "
+                f"{units.format_quantity(p.dose)} (the perpetrator-dose ceiling below assumes Cmax scales with dose)."
+            )
 
     ratio_at = ratio_function(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
 
@@ -292,6 +290,7 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         aucr_cutoff=aucr_cut,
         study_indicated=study,
         dose=dose,
+        regimens=plan,
         perpetrator_limit=limit,
         kdeg_used=tuple(kdeg_used),
         warnings=tuple(warnings),

@@ -35,8 +35,9 @@ import numpy as np
 from numpy.typing import NDArray
 
 from . import units
-from .arrays import ACTIONS, band_codes, band_labels, dose_action_codes_by_victim, dose_candidates
+from .arrays import band_codes, band_labels
 from .constants import resolve_constants
+from .dosing import ACTIONS, RegimenPlan, choose_regimens, plan_for_victim
 from .errors import InputError, InteractError, Problem, ScenarioError
 from .exposure import resolve_exposure, resolve_settings
 from .prediction import gut_ratio, reversible_term
@@ -89,6 +90,7 @@ VICTIM_COLUMNS: Final = (
     ("fg", "fraction", False, "intestinal availability (1 when not given: no gut-wall interaction)"),
     ("route", "oral/intravenous", False, "default oral"),
     ("strengths", "dose, e.g. (mg), separated by ';'", False, "available unit strengths"),
+    ("half_life", "time, e.g. (h)", False, "elimination half-life: interval changes are judged on peak and trough"),
     ("nti", "true/false", False, "narrow therapeutic index"),
     ("no_effect_lower", "AUC ratio", False, "lower no-effect boundary (default 0.8)"),
     ("no_effect_upper", "AUC ratio", False, "upper no-effect boundary (default 1.25)"),
@@ -194,6 +196,7 @@ _VICTIM_KEYS: Final = {
     "fg": "fg",
     "route": "route",
     "strengths": "strengths",
+    "half_life": "half_life",
     "nti": "narrow_therapeutic_index",
     "narrow_therapeutic_index": "narrow_therapeutic_index",
     "no_effect_lower": "no_effect_lower",
@@ -207,6 +210,7 @@ _UNIT_KINDS: Final = {
     "ki": "concentration",
     "ki_u": "concentration",
     "interval": "time",
+    "half_life": "time",
     "strengths": "dose",
 }
 _PER_TARGET: Final = {"perpetrator": ("ki", "ki_u", "fu_inc"), "victim": ("fm",)}
@@ -435,11 +439,7 @@ class VictimTable:
     fg: NDArray[np.float64]
     fg_given: NDArray[np.bool_]
     oral: NDArray[np.bool_]
-    usual_dose: NDArray[np.float64]
-    interval_h: NDArray[np.float64]
-    candidates: NDArray[np.float64]  # (n, k), NaN-padded
-    lower: NDArray[np.float64]
-    upper: NDArray[np.float64]
+    plans: tuple[RegimenPlan, ...]  # each victim's regimen candidates and boundaries (interact.dosing)
     nti: NDArray[np.bool_]
     skipped: tuple[RowProblem, ...]
     source: str
@@ -561,24 +561,17 @@ def loads_victims(text: str, *, source: str = "victims.csv", on_error: str = "fa
     fm = np.zeros((n, len(enzymes)))
     has = np.zeros((n, len(enzymes)), dtype=bool)
     classes = load_classes()
-    strengths = []
-    usual = np.empty(n)
-    interval = np.empty(n)
-    lower = np.empty(n)
-    upper = np.empty(n)
+    default = (classes.no_effect_lower, classes.no_effect_upper)
+    plans = []
     for i, v in enumerate(rows):
         for pw in v.pathways:
             k = enzymes.index(pw.enzyme)
             fm[i, k] = pw.fm
             has[i, k] = True
-        unit = units.unit_text(v.dose)
-        usual[i] = float(v.dose.magnitude)
-        interval[i] = units.magnitude(v.interval, "h")
-        strengths.append(tuple(units.magnitude(q, unit) for q in v.strengths))
-        if v.no_effect_lower is not None and v.no_effect_upper is not None:
-            lower[i], upper[i] = v.no_effect_lower, v.no_effect_upper
-        else:
-            lower[i], upper[i] = classes.no_effect_lower, classes.no_effect_upper
+        try:
+            plans.append(plan_for_victim(v, default, "default 0.8-1.25, ICH M12 5.3.1"))
+        except InputError as exc:
+            raise InputError(f"{source} line {lines[i]}: {exc.field}", exc.value, exc.expected) from None
     return VictimTable(
         rows=tuple(rows),
         lines=tuple(lines),
@@ -588,11 +581,7 @@ def loads_victims(text: str, *, source: str = "victims.csv", on_error: str = "fa
         fg=np.array([1.0 if v.fg is None else v.fg for v in rows]),
         fg_given=np.array([v.fg is not None for v in rows], dtype=bool),
         oral=np.array([v.route == "oral" for v in rows], dtype=bool),
-        usual_dose=usual,
-        interval_h=interval,
-        candidates=dose_candidates(strengths),
-        lower=lower,
-        upper=upper,
+        plans=tuple(plans),
         nti=np.array([v.narrow_therapeutic_index for v in rows], dtype=bool),
         skipped=tuple(problems),
         source=source,
@@ -722,15 +711,9 @@ def evaluate_pairs(
     n_p, n_v = len(perpetrators.rows), len(victims.rows)
     gut, liver, total = pair_ratios(perpetrators, victims, progress=progress)
     band = band_codes(total, classes)
-    action = dose_action_codes_by_victim(
-        total,
-        usual_dose=victims.usual_dose,
-        interval_h=victims.interval_h,
-        candidates=victims.candidates,
-        lower=victims.lower,
-        upper=victims.upper,
-        narrow_therapeutic_index=victims.nti,
-    )
+    action = np.empty(total.shape, dtype=np.int8)
+    for j, plan in enumerate(victims.plans):  # one victim's regimens at a time, over all its pairs
+        action[:, j] = choose_regimens(plan, total[:, j], gut[:, j]).action
     study = (total >= float(rule_set.aucr_inhibition_cutoff.value)) | (total <= float(rule_set.aucr_induction_cutoff.value))
     # per-perpetrator and per-victim bits first, then broadcast once
     e_cols = victims.enzymes

@@ -1,191 +1,690 @@
-"""Dose suggestion for the victim, fm back-calculation, perpetrator-dose ceiling.
+"""Dose advice for the object drug (victim), fm back-calculation, perpetrator-dose ceiling.
 
-PK principles (from memory; standard linear pharmacokinetics):
+PK principles (common practice; standard linear pharmacokinetics):
 
-- with linear kinetics, the dose that restores the reference exposure is
-  dose / AUCR; the interval that does the same is tau x AUCR (same average
-  concentration, wider peak-trough swings);
-- act only when the AUC ratio lies outside the victim's no-effect boundary
-  (S6: ICH M12 5.3.1; default 0.8-1.25).
+- with linear kinetics the average exposure of a regimen scales with dose /
+  interval, so a dose d every tau gives the exposure ratio AUCR x (d / usual
+  dose) x (usual tau / tau) against the usual regimen without the precipitant;
+- act only when the AUC ratio lies outside the object drug's no-effect
+  boundary (ICH M12 5.3.1; default 0.8-1.25);
+- a regimen is offered only when its exposure ratio, and for a changed
+  interval its steady-state peak and trough when the half-life is known, lie
+  inside the boundaries; among those, the one closest to the usual exposure.
 
-Every suggestion carries :data:`interact.cautions.DOSE_CAUTIONS`.
+One implementation serves every caller: :func:`choose_regimens` works on
+arrays of AUC ratios (one scenario, a batch of pairs, a set of samples);
+:func:`suggest_dose` adds the reasons for one scenario.  Every suggestion
+carries :data:`interact.cautions.DOSE_CAUTIONS`.
 """
 
 from __future__ import annotations
 
+import dataclasses
+import itertools
 import math
 from collections.abc import Callable
-from dataclasses import dataclass
-from typing import Final
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Final
 
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+from . import units
 from .cautions import DOSE_CAUTIONS, INCREASE_CAUTION
 from .errors import InputError
 
+if TYPE_CHECKING:
+    from .scenario import Victim
+
 __all__ = [
-    "PRACTICAL_INTERVALS_H",
+    "ACTIONS",
+    "DEFAULT_INTERVALS_H",
+    "MAX_UNITS",
     "DoseLimit",
     "DoseSuggestion",
+    "Regimen",
+    "RegimenChoice",
+    "RegimenOutcome",
+    "RegimenPlan",
+    "choose_regimens",
+    "feasible_fraction",
     "fm_from_observed_ratio",
     "highest_perpetrator_scale",
+    "plan_for_victim",
+    "plan_regimens",
+    "regimen_feasibility",
+    "regimen_label",
     "suggest_dose",
     "timing_advice",
 ]
 
-#: dosing intervals (h) offered when stretching the interval: common practice
-PRACTICAL_INTERVALS_H: Final = (4.0, 6.0, 8.0, 12.0, 24.0, 48.0, 72.0, 168.0)
-#: a dose is made of up to this many units of one strength: common practice
+#: the suggested actions, the same words in every output; codes index this tuple
+ACTIONS: Final = ("no change", "reduce dose", "increase dose", "change interval", "avoid or monitor")
+NO_CHANGE: Final = 0
+REDUCE: Final = 1
+INCREASE: Final = 2
+INTERVAL: Final = 3
+AVOID: Final = 4
+
+#: dosing intervals (h) tried when the interval is changed: common practice (overridable per victim)
+DEFAULT_INTERVALS_H: Final = (6.0, 8.0, 12.0, 24.0, 48.0, 72.0)
+#: at most this many units (tablets, capsules) in one administration: common practice (overridable per victim)
 MAX_UNITS: Final = 4
+#: distinct unit sizes (strengths, and halves of scored ones) the search enumerates at most
+MAX_UNIT_SIZES: Final = 24
+#: the search looks at up to this many units per administration whatever the victim says
+MAX_UNITS_LIMIT: Final = 8
+
+_LN2: Final = math.log(2.0)
+_CELLS: Final = 1 << 21  # rows x candidates evaluated at once (bounds memory to some tens of MB)
+
+
+# --------------------------------------------------------------------------- candidates
+
+
+def regimen_label(regimen: Regimen, unit: str) -> str:
+    """'12.5 mg every 24 h (10 + 2.5 mg)'; the exact dose of a plan without strengths is named as such until it is sized."""
+    if math.isnan(regimen.dose):
+        return f"the exact dose restoring the usual exposure, every {regimen.interval_h:g} h"
+    made = f" ({regimen.makeup} {unit})" if regimen.units > 1 else ""
+    return f"{regimen.dose:.4g} {unit} every {regimen.interval_h:g} h{made}"
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Regimen:
+    """One regimen the object drug could be given: a dose every interval.
+
+    ``kind`` is ``"dose"`` (the usual interval, another dose), ``"exact dose"``
+    (no strengths given: the unrounded dose that restores the usual exposure,
+    its size set by each AUC ratio) or ``"interval"`` (the usual dose, another
+    interval).  ``makeup`` names the units of a dose (``"10 + 2.5"``; ``"2 x 5"``).
+    """
+
+    kind: str
+    dose: float
+    interval_h: float
+    makeup: str
+    units: int
+
+
+def _unit_sizes(strengths: tuple[float, ...], scored: tuple[float, ...]) -> list[float]:
+    sizes = set(strengths) | {s / 2.0 for s in scored}
+    return sorted(sizes)
+
+
+def _makeup(parts: tuple[float, ...]) -> str:
+    """'10 + 2.5', '2 x 5', '5' (largest first; repeated units counted)."""
+    counts: dict[float, int] = {}
+    for p in sorted(parts, reverse=True):
+        counts[p] = counts.get(p, 0) + 1
+    return " + ".join(f"{n} x {p:g}" if n > 1 else f"{p:g}" for p, n in counts.items())
+
+
+def _dose_candidates(sizes: list[float], max_units: int) -> list[tuple[float, tuple[float, ...]]]:
+    """Every dose made of 1..max_units units (mixed sizes), each with its fewest-unit make-up.
+
+    Sums are rounded to 10 significant digits so that 2.5 + 2.5 and 5 meet.
+    """
+    best: dict[float, tuple[float, ...]] = {}
+    for k in range(1, max_units + 1):
+        for combo in itertools.combinations_with_replacement(sizes, k):
+            total = float(f"{math.fsum(combo):.10g}")
+            kept = best.get(total)
+            if kept is None or (len(combo), len(set(combo))) < (len(kept), len(set(kept))):
+                best[total] = combo
+    return sorted(best.items())
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class RegimenPlan:
+    """The object drug's usual regimen, the regimens it could be given instead, and the limits they must keep.
+
+    Candidates are ordered for tie-breaking: dose changes before interval
+    changes (the interval a patient knows is kept), fewer units first, then
+    intervals nearest the usual one.  Build with :func:`plan_regimens` or
+    :func:`plan_for_victim`.
+    """
+
+    usual_dose: float
+    dose_unit: str
+    usual_interval_h: float
+    candidates: tuple[Regimen, ...]
+    strengths_given: bool
+    half_life_h: float | None
+    boundary: tuple[float, float]
+    peak_boundary: tuple[float, float]
+    trough_boundary: tuple[float, float]
+    boundary_origin: str
+    narrow_therapeutic_index: bool
+    max_units: int
+    intervals_h: tuple[float, ...]
+
+    # derived arrays, one entry per candidate (built by plan_regimens)
+    factors: NDArray[np.float64] = field(repr=False, compare=False)  # exposure ratio per unit AUCR; NaN for the exact dose
+    log_factors: NDArray[np.float64] = field(repr=False, compare=False)
+    exact: NDArray[np.bool_] = field(repr=False, compare=False)
+    interval: NDArray[np.bool_] = field(repr=False, compare=False)
+    taus_h: NDArray[np.float64] = field(repr=False, compare=False)  # the interval candidates' intervals
+    codes: NDArray[np.int8] = field(repr=False, compare=False)  # action of each candidate, then AVOID (index -1)
+
+
+def _check_boundary(name: str, b: tuple[float, float]) -> tuple[float, float]:
+    lo, hi = float(b[0]), float(b[1])
+    if not (math.isfinite(lo) and math.isfinite(hi) and 0.0 < lo <= 1.0 <= hi):
+        raise InputError(name, list(b), "is not a [lower, upper] pair with 0 < lower <= 1 <= upper")
+    return lo, hi
+
+
+def plan_regimens(
+    *,
+    usual_dose: float,
+    dose_unit: str,
+    interval_h: float,
+    strengths: tuple[float, ...] = (),
+    scored: tuple[float, ...] = (),
+    max_units: int = MAX_UNITS,
+    intervals_h: tuple[float, ...] = DEFAULT_INTERVALS_H,
+    half_life_h: float | None = None,
+    boundary: tuple[float, float] = (0.8, 1.25),
+    peak_boundary: tuple[float, float] | None = None,
+    trough_boundary: tuple[float, float] | None = None,
+    boundary_origin: str = "",
+    narrow_therapeutic_index: bool = False,
+) -> RegimenPlan:
+    """Enumerate the regimens the object drug could be given.
+
+    Parameters
+    ----------
+    usual_dose, dose_unit
+        The usual dose per administration and its unit; ``strengths`` and
+        ``scored`` are in the same unit.
+    interval_h
+        The usual dosing interval (h).
+    strengths
+        Available unit strengths.  A dose is a sum of 1 to ``max_units`` units,
+        strengths mixed (10 + 2.5); a strength listed in ``scored`` may also be
+        halved.  Without strengths the dose candidate is the exact dose.
+    intervals_h
+        Intervals (h) tried with the usual dose (common practice: 6 to 72 h).
+    half_life_h
+        The object drug's elimination half-life (h) without the precipitant;
+        when given, interval candidates are judged on their steady-state peak
+        and trough too (see :func:`regimen_feasibility`).
+    boundary, peak_boundary, trough_boundary
+        No-effect boundaries for the exposure (AUC) ratio, the peak ratio and
+        the trough ratio; peak and trough default to ``boundary``.
+
+    Raises
+    ------
+    InputError
+        Naming the field, for a non-positive dose or interval, a bad boundary,
+        or more unit sizes than the search takes.
+    """
+    for name, value in (("victim.dose", usual_dose), ("victim.interval", interval_h)):
+        if not (math.isfinite(value) and value > 0.0):
+            raise InputError(name, value, "is not a positive finite number")
+    bad = [s for s in (*strengths, *scored) if not (math.isfinite(s) and s > 0.0)]
+    if bad:
+        raise InputError("victim.strengths", bad[0], "is not a positive strength")
+    missing = [s for s in scored if s not in strengths]
+    if missing:
+        raise InputError("victim.scored_strengths", f"{missing[0]:g} {dose_unit}", "is not one of the strengths")
+    if not 1 <= max_units <= MAX_UNITS_LIMIT:
+        raise InputError("victim.max_units", max_units, f"is not a whole number from 1 to {MAX_UNITS_LIMIT}")
+    bad_tau = [t for t in intervals_h if not (math.isfinite(t) and t > 0.0)]
+    if bad_tau:
+        raise InputError("victim.intervals", bad_tau[0], "is not a positive interval")
+    if half_life_h is not None and not (math.isfinite(half_life_h) and half_life_h > 0.0):
+        raise InputError("victim.half_life", half_life_h, "is not a positive finite time")
+    b = _check_boundary("victim.no_effect_boundary", boundary)
+    pb = _check_boundary("victim.peak_boundary", peak_boundary) if peak_boundary is not None else b
+    tb = _check_boundary("victim.trough_boundary", trough_boundary) if trough_boundary is not None else b
+    sizes = _unit_sizes(tuple(strengths), tuple(scored))
+    if len(sizes) > MAX_UNIT_SIZES:
+        raise InputError(
+            "victim.strengths",
+            f"{len(sizes)} unit sizes",
+            f"are more than the {MAX_UNIT_SIZES} the regimen search takes; list the forms in use",
+        )
+    doses: list[Regimen] = []
+    if sizes:
+        for dose, parts in _dose_candidates(sizes, max_units):
+            if math.isclose(dose, usual_dose, rel_tol=1e-9):
+                continue  # the usual regimen itself
+            doses.append(Regimen(kind="dose", dose=dose, interval_h=interval_h, makeup=_makeup(parts), units=len(parts)))
+        doses.sort(key=lambda r: (r.units, r.dose))
+    else:
+        doses.append(Regimen(kind="exact dose", dose=math.nan, interval_h=interval_h, makeup="", units=0))
+    taus = sorted(
+        {float(t) for t in intervals_h if not math.isclose(t, interval_h, rel_tol=1e-9)}, key=lambda t: (abs(math.log(t / interval_h)), t)
+    )
+    regimens = (*doses, *(Regimen(kind="interval", dose=usual_dose, interval_h=t, makeup="", units=0) for t in taus))
+    factors = np.array(
+        [
+            math.nan if c.kind == "exact dose" else (c.dose / usual_dose if c.kind == "dose" else interval_h / c.interval_h)
+            for c in regimens
+        ],
+        dtype=float,
+    )
+    codes = [INTERVAL if c.kind == "interval" else (INCREASE if c.kind == "dose" and c.dose > usual_dose else REDUCE) for c in regimens]
+    return RegimenPlan(
+        usual_dose=usual_dose,
+        dose_unit=dose_unit,
+        usual_interval_h=interval_h,
+        candidates=regimens,
+        strengths_given=bool(sizes),
+        half_life_h=half_life_h,
+        boundary=b,
+        peak_boundary=pb,
+        trough_boundary=tb,
+        boundary_origin=boundary_origin,
+        narrow_therapeutic_index=narrow_therapeutic_index,
+        max_units=max_units,
+        intervals_h=tuple(sorted(float(t) for t in intervals_h)),
+        factors=factors,
+        log_factors=np.log(factors),
+        exact=np.array([c.kind == "exact dose" for c in regimens], dtype=bool),
+        interval=np.array([c.kind == "interval" for c in regimens], dtype=bool),
+        taus_h=np.array(taus, dtype=float),
+        codes=np.array([*codes, AVOID], dtype=np.int8),
+    )
+
+
+def plan_for_victim(victim: Victim, default_boundary: tuple[float, float], default_origin: str) -> RegimenPlan:
+    """:func:`plan_regimens` for a scenario's object drug (its strengths, intervals, half-life and boundaries)."""
+    unit = units.unit_text(victim.dose)
+    if victim.no_effect_lower is not None and victim.no_effect_upper is not None:
+        boundary, origin = (victim.no_effect_lower, victim.no_effect_upper), "given for this victim"
+    else:
+        boundary, origin = default_boundary, default_origin
+    return plan_regimens(
+        usual_dose=float(victim.dose.magnitude),
+        dose_unit=unit,
+        interval_h=units.magnitude(victim.interval, "h"),
+        strengths=tuple(units.magnitude(s, unit) for s in victim.strengths),
+        scored=tuple(units.magnitude(s, unit) for s in victim.scored_strengths),
+        max_units=victim.max_units if victim.max_units is not None else MAX_UNITS,
+        intervals_h=tuple(units.magnitude(t, "h") for t in victim.intervals) or DEFAULT_INTERVALS_H,
+        half_life_h=units.magnitude(victim.half_life, "h") if victim.half_life is not None else None,
+        boundary=boundary,
+        peak_boundary=victim.peak_boundary,
+        trough_boundary=victim.trough_boundary,
+        boundary_origin=origin,
+        narrow_therapeutic_index=victim.narrow_therapeutic_index,
+    )
+
+
+# --------------------------------------------------------------------------- feasibility (arrays)
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class CandidateRatios:
+    """Each candidate's predicted ratios against the usual regimen alone, for rows of AUC ratios (rows x candidates)."""
+
+    exposure: NDArray[np.float64]
+    peak: NDArray[np.float64]  # NaN where not judged (dose candidates, or no half-life)
+    trough: NDArray[np.float64]
+    feasible: NDArray[np.bool_]
+
+
+def _inside(x: NDArray[np.float64], b: tuple[float, float]) -> NDArray[np.bool_]:
+    return (x >= b[0]) & (x <= b[1])
+
+
+def regimen_feasibility(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | None = None) -> CandidateRatios:
+    """Exposure, peak and trough ratios of every candidate, and whether it is feasible.
+
+    Exposure ratio (average concentration with the precipitant and the
+    candidate, over the usual regimen alone; linear kinetics, common
+    practice): AUCR x dose / usual dose for a dose, AUCR x usual interval /
+    interval for an interval, exactly 1 for the exact dose.
+
+    Peak and trough ratios of interval candidates, when the half-life is
+    known: steady state of a one-compartment model with first-order
+    elimination and input fast against the interval (standard accumulation,
+    common practice): C_max = F D / V / (1 - exp(-k tau)), C_min = C_max
+    exp(-k tau).  The precipitant multiplies F by the gut ratio and divides
+    clearance (so k) by AUCR / gut ratio; V is unchanged.
+
+    A candidate is feasible when its exposure ratio, and for a judged interval
+    its peak and trough ratios, lie inside their boundaries (inclusive, no
+    tolerance).
+    """
+    r = np.atleast_1d(np.asarray(total, dtype=float))
+    g = None if gut is None else np.broadcast_to(np.atleast_1d(np.asarray(gut, dtype=float)), r.shape)
+    exposure, feasible, judged = _exposure_and_feasibility(plan, r, g)
+    peak = np.full(exposure.shape, np.nan)
+    trough = np.full(exposure.shape, np.nan)
+    if judged is not None:
+        peak[:, plan.interval], trough[:, plan.interval] = judged
+    return CandidateRatios(exposure=exposure, peak=peak, trough=trough, feasible=feasible)
+
+
+def _exposure_and_feasibility(
+    plan: RegimenPlan, total: NDArray[np.float64], gut: NDArray[np.float64] | None
+) -> tuple[NDArray[np.float64], NDArray[np.bool_], tuple[NDArray[np.float64], NDArray[np.float64]] | None]:
+    """(exposure ratios, feasibility, (peak, trough) of the interval columns or None): rows x candidates."""
+    r = total[:, None]
+    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
+        exposure = r * plan.factors[None, :]
+        if plan.exact.any():
+            exposure[:, plan.exact] = np.where(np.isfinite(r) & (r > 0.0), 1.0, np.nan)
+        feasible = _inside(exposure, plan.boundary)
+        if plan.half_life_h is None or not plan.interval.any():
+            return exposure, feasible, None
+        g = np.ones_like(r) if gut is None else gut[:, None]
+        k = _LN2 / plan.half_life_h
+        tau0 = plan.usual_interval_h
+        taus = plan.taus_h[None, :]
+        k_new = k * g / r  # clearance divided by the hepatic (non-gut) part AUCR / Rg
+        base = -math.expm1(-k * tau0)
+        den = -np.expm1(-k_new * taus)
+        pk = g * base / den
+        tr = np.exp(np.log(g) + k * tau0 - k_new * taus + math.log(base) - np.log(den))
+        feasible[:, plan.interval] &= _inside(pk, plan.peak_boundary) & _inside(tr, plan.trough_boundary)
+    return exposure, feasible, (pk, tr)
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class RegimenChoice:
+    """Per row: the action code (into :data:`ACTIONS`) and the chosen candidate (-1 = none)."""
+
+    action: NDArray[np.int8]
+    chosen: NDArray[np.intp]
+
+
+def _choose_chunk(
+    plan: RegimenPlan, total: NDArray[np.float64], gut: NDArray[np.float64] | None
+) -> tuple[NDArray[np.int8], NDArray[np.intp]]:
+    n = total.shape[0]
+    inside = _inside(total, plan.boundary)
+    if not plan.candidates:
+        chosen = np.full(n, -1, dtype=np.intp)
+    else:
+        _, feasible, _ = _exposure_and_feasibility(plan, total, gut)
+        # distance from the usual exposure on the log scale, |log(AUCR x factor)|; 0 for the exact dose; ties go to the
+        # earlier candidate (argmin takes the first)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            score = np.abs(np.log(total)[:, None] + plan.log_factors[None, :])
+        if plan.exact.any():
+            score[:, plan.exact] = 0.0
+        score[~feasible] = np.inf
+        chosen = np.argmin(score, axis=1).astype(np.intp)
+        chosen[~np.isfinite(score[np.arange(n), chosen])] = -1
+    action = plan.codes[chosen]  # chosen = -1 picks AVOID
+    if plan.exact.any():
+        action = np.where(plan.exact[np.maximum(chosen, 0)] & (chosen >= 0) & (total < 1.0), np.int8(INCREASE), action)
+    action = np.where(inside, np.int8(NO_CHANGE), action).astype(np.int8)
+    chosen[inside] = -1
+    return action, chosen
+
+
+def choose_regimens(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | None = None) -> RegimenChoice:
+    """The suggested action and regimen for each AUC ratio in ``total`` (with its gut ratio ``gut``).
+
+    The rule, the same for one scenario, a batch of pairs and a set of samples:
+
+    - the AUC ratio inside the no-effect boundary: no change;
+    - otherwise the feasible candidate (see :func:`regimen_feasibility`)
+      closest to the usual exposure on the log scale, ties to the earlier
+      candidate (dose changes first, fewer units first); its kind gives the
+      action (reduce dose, increase dose, change interval);
+    - no feasible candidate: avoid or monitor.
+
+    Evaluated in chunks of rows, so memory stays bounded for any length.
+    """
+    r = np.atleast_1d(np.asarray(total, dtype=float)).ravel()
+    g = None if gut is None else np.broadcast_to(np.asarray(gut, dtype=float), np.shape(total)).ravel()
+    action = np.empty(r.size, dtype=np.int8)
+    chosen = np.empty(r.size, dtype=np.intp)
+    step = _rows_per_chunk(plan)
+    for a in range(0, r.size, step):
+        b = min(r.size, a + step)
+        action[a:b], chosen[a:b] = _choose_chunk(plan, r[a:b], None if g is None else g[a:b])
+    shape = np.shape(total)
+    return RegimenChoice(action=action.reshape(shape), chosen=chosen.reshape(shape))
+
+
+def _rows_per_chunk(plan: RegimenPlan) -> int:
+    return max(1, _CELLS // max(1, len(plan.candidates)))
+
+
+def feasible_fraction(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | None = None) -> tuple[float, NDArray[np.float64]]:
+    """Over rows of (AUC ratio, gut ratio), e.g. samples: the fraction inside the boundary with the usual regimen, and per candidate.
+
+    The probability, under the sampled inputs, that the object drug's
+    exposure stays inside its boundaries with each regimen (the same
+    feasibility test as :func:`choose_regimens`).
+    """
+    r = np.atleast_1d(np.asarray(total, dtype=float)).ravel()
+    g = None if gut is None else np.broadcast_to(np.asarray(gut, dtype=float), np.shape(total)).ravel()
+    counts = np.zeros(len(plan.candidates))
+    usual = int(np.count_nonzero(_inside(r, plan.boundary)))
+    step = _rows_per_chunk(plan)
+    for a in range(0, r.size, step):
+        b = min(r.size, a + step)
+        counts += regimen_feasibility(plan, r[a:b], None if g is None else g[a:b]).feasible.sum(axis=0)
+    n = max(1, r.size)
+    return usual / n, counts / n
+
+
+# --------------------------------------------------------------------------- one scenario, with reasons
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class RegimenOutcome:
+    """A candidate regimen with its predicted ratios for one scenario."""
+
+    index: int  # position in RegimenPlan.candidates
+    regimen: Regimen
+    exposure_ratio: float
+    peak_ratio: float | None
+    trough_ratio: float | None
+    feasible: bool
+    checked: bool  # interval judged on peak and trough (half-life known); always True for doses
+
+    def describe(self, unit: str) -> str:
+        """'12.5 mg every 24 h (10 + 2.5 mg)' (no ratios)."""
+        return regimen_label(self.regimen, unit)
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class DoseSuggestion:
-    """What the model suggests for the victim's regimen, and why."""
+    """What the model suggests for the object drug's regimen, and why."""
 
-    action: str  # "no change" | "reduce dose" | "increase dose" | "avoid or monitor"
+    action: str  # one of ACTIONS
+    monitoring: bool  # narrow therapeutic index and a ratio other than 1: only under monitoring
     auc_ratio: float
+    gut_ratio: float
     boundary: tuple[float, float]
     boundary_origin: str
+    peak_boundary: tuple[float, float]
+    trough_boundary: tuple[float, float]
     usual_dose: float
     dose_unit: str
     usual_interval_h: float
+    half_life_h: float | None
     exact_dose: float
-    chosen_dose: float | None
-    chosen_units: str
-    ratio_with_chosen: float | None
     exact_interval_h: float
-    chosen_interval_h: float | None
-    ratio_with_interval: float | None
+    chosen: RegimenOutcome | None
+    options: tuple[RegimenOutcome, ...]  # every feasible candidate, best first
+    nearest: tuple[RegimenOutcome, ...]  # when none is feasible: the nearest dose and the nearest interval
     reasons: tuple[str, ...]
     cautions: tuple[str, ...]
 
+    @property
+    def headline(self) -> str:
+        """The action, with the monitoring qualifier of a narrow-therapeutic-index object drug."""
+        return f"{self.action}, only with therapeutic drug monitoring (narrow therapeutic index)" if self.monitoring else self.action
 
-def _candidates(strengths: tuple[float, ...]) -> list[tuple[float, str]]:
-    out: dict[float, str] = {}
-    for k in range(1, MAX_UNITS + 1):
-        for s in sorted(strengths):
-            dose = round(k * s, 10)
-            out.setdefault(dose, f"{k} x {s:g}" if k > 1 else f"{s:g}")
-    return sorted(out.items())
+    @property
+    def chosen_dose(self) -> float | None:
+        """The suggested dose when the suggestion is a dose change (None otherwise)."""
+        c = self.chosen
+        return c.regimen.dose if c is not None and c.regimen.kind != "interval" else None
+
+    @property
+    def chosen_interval_h(self) -> float | None:
+        """The suggested interval when the suggestion is an interval change (None otherwise)."""
+        c = self.chosen
+        return c.regimen.interval_h if c is not None and c.regimen.kind == "interval" else None
 
 
-def _made_of(units_text: str, dose_unit: str) -> str:
-    """' (2 x 2.5 mg)' for a dose of several units; '' for a single unit."""
-    return f" ({units_text} {dose_unit})" if " x " in units_text else ""
+def _outcomes(plan: RegimenPlan, auc_ratio: float, gut_ratio: float) -> list[RegimenOutcome]:
+    c = regimen_feasibility(plan, [auc_ratio], [gut_ratio])
+    out = []
+    for k, reg in enumerate(plan.candidates):
+        if reg.kind == "exact dose":
+            reg = dataclasses.replace(reg, dose=plan.usual_dose / auc_ratio)
+        judged = reg.kind == "interval" and plan.half_life_h is not None
+        out.append(
+            RegimenOutcome(
+                index=k,
+                regimen=reg,
+                exposure_ratio=float(c.exposure[0, k]),
+                peak_ratio=float(c.peak[0, k]) if judged else None,
+                trough_ratio=float(c.trough[0, k]) if judged else None,
+                feasible=bool(c.feasible[0, k]),
+                checked=reg.kind != "interval" or judged,
+            )
+        )
+    return out
+
+
+def _outside_by(x: float, b: tuple[float, float]) -> float:
+    """How far (log scale) x lies outside [lower, upper]; 0 inside."""
+    if not (math.isfinite(x) and x > 0.0):
+        return math.inf
+    return max(0.0, math.log(b[0] / x), math.log(x / b[1]))
+
+
+def _miss(o: RegimenOutcome, plan: RegimenPlan) -> float:
+    return max(
+        _outside_by(o.exposure_ratio, plan.boundary),
+        0.0 if o.peak_ratio is None else _outside_by(o.peak_ratio, plan.peak_boundary),
+        0.0 if o.trough_ratio is None else _outside_by(o.trough_ratio, plan.trough_boundary),
+    )
+
+
+def _ratios_text(o: RegimenOutcome, plan: RegimenPlan) -> str:
+    text = f"exposure ratio {o.exposure_ratio:.3g}"
+    if o.regimen.kind == "interval":
+        if o.peak_ratio is not None and o.trough_ratio is not None:
+            text += f", steady-state peak ratio {o.peak_ratio:.3g}, trough ratio {o.trough_ratio:.3g}"
+        else:
+            text += ", peak and trough unchecked (no half-life given)"
+    return text
+
+
+def _why_outside(o: RegimenOutcome, plan: RegimenPlan) -> str:
+    parts = []
+    for label, x, b in (
+        ("exposure", o.exposure_ratio, plan.boundary),
+        ("peak", o.peak_ratio, plan.peak_boundary),
+        ("trough", o.trough_ratio, plan.trough_boundary),
+    ):
+        if x is None or b[0] <= x <= b[1]:
+            continue
+        if x > b[1]:
+            parts.append(f"{label} {x:.3g}, {100 * (x / b[1] - 1):.0f} % above {b[1]:g}")
+        else:
+            parts.append(f"{label} {x:.3g}, {100 * (1 - x / b[0]):.0f} % below {b[0]:g}")
+    return "; ".join(parts)
 
 
 def suggest_dose(
+    plan: RegimenPlan,
     *,
     auc_ratio: float,
-    usual_dose: float,
-    dose_unit: str,
-    interval_h: float,
-    strengths: tuple[float, ...],
-    boundary: tuple[float, float],
-    boundary_origin: str,
-    narrow_therapeutic_index: bool = False,
+    gut_ratio: float = 1.0,
     mechanism_parts: tuple[tuple[str, float], ...] = (),
 ) -> DoseSuggestion:
-    """Suggest a victim dose or interval that restores the reference exposure.
+    """The regimen suggestion for one scenario, with its reasons and cautions.
+
+    The decision is :func:`choose_regimens` for one row (the rule every batch
+    and sample follows); this adds the text and lists every feasible option.
 
     Parameters
     ----------
-    auc_ratio
-        Predicted AUC ratio (with / without perpetrator).
-    usual_dose, dose_unit
-        The victim's usual dose and its unit (strengths are in the same unit).
-    interval_h
-        The usual dosing interval in hours.
-    strengths
-        Available unit strengths; a dose may be 1 to 4 units of one strength.
-        The suggestion is the available dose whose exposure ratio lies inside
-        the boundary and closest to 1; failing that, the largest available
-        dose not above the exact dose.
-    boundary
-        The no-effect boundary (lower, upper) of AUC ratios.
+    plan
+        The object drug's regimens and boundaries (:func:`plan_for_victim`).
+    auc_ratio, gut_ratio
+        Predicted AUC ratio (with / without the precipitant) and its gut part.
     mechanism_parts
         For mixed effects (inhibition and induction), (mechanism, AUC ratio
         with that mechanism alone) pairs: the suggestion then states the net and
         each part, and warns when a part alone lies outside the boundary.
     """
-    lower, upper = boundary
-    exact = usual_dose / auc_ratio
-    exact_tau = interval_h * auc_ratio
+    if not (math.isfinite(auc_ratio) and auc_ratio > 0.0):
+        raise InputError("auc_ratio", auc_ratio, "is not a positive finite AUC ratio")
+    lower, upper = plan.boundary
+    unit = plan.dose_unit
+    choice = choose_regimens(plan, [auc_ratio], [gut_ratio])
+    code, k = int(choice.action[0]), int(choice.chosen[0])
+    outcomes = _outcomes(plan, auc_ratio, gut_ratio)
+    exact = plan.usual_dose / auc_ratio
+    exact_tau = plan.usual_interval_h * auc_ratio
     reasons: list[str] = []
     cautions = list(DOSE_CAUTIONS)
-    chosen = chosen_tau = ratio_dose = ratio_tau = None
-    chosen_units = ""
-    if lower <= auc_ratio <= upper:
+    chosen: RegimenOutcome | None = outcomes[k] if k >= 0 else None
+    options: tuple[RegimenOutcome, ...] = ()
+    nearest: tuple[RegimenOutcome, ...] = ()
+    if code == NO_CHANGE:
         reasons.append(
             f"Predicted AUC ratio {auc_ratio:.3g} lies within the no-effect boundary {lower:g}-{upper:g} "
-            f"({boundary_origin}): no dose change is suggested."
+            f"({plan.boundary_origin}): no dose change is suggested."
         )
-        action = "no change"
     else:
         increase = auc_ratio < lower
-        action = "increase dose" if increase else "reduce dose"
         reasons.append(
             f"Predicted AUC ratio {auc_ratio:.3g} lies {'below' if increase else 'above'} the no-effect boundary "
-            f"{lower:g}-{upper:g} ({boundary_origin})."
+            f"{lower:g}-{upper:g} ({plan.boundary_origin})."
         )
         reasons.append(
-            f"With linear kinetics the dose restoring the usual exposure is {usual_dose:g} {dose_unit} / {auc_ratio:.3g} "
-            f"= {exact:.3g} {dose_unit}."
+            f"With linear kinetics the usual exposure returns with {plan.usual_dose:g} {unit} / {auc_ratio:.3g} = {exact:.3g} {unit} "
+            f"every {plan.usual_interval_h:g} h, or {plan.usual_dose:g} {unit} every {plan.usual_interval_h:g} h x {auc_ratio:.3g} "
+            f"= {exact_tau:.3g} h."
         )
-        if strengths:
-            options = _candidates(strengths)
-            inside = [(abs(math.log(auc_ratio * d / usual_dose)), d, u) for d, u in options if lower <= auc_ratio * d / usual_dose <= upper]
-            fitting = [(d, u) for d, u in options if d <= exact * (1 + 1e-9)]
-            if inside:
-                _, chosen, chosen_units = min(inside)
-                ratio_dose = auc_ratio * chosen / usual_dose
-                reasons.append(
-                    f"Available dose bringing exposure back inside the boundary, closest to the usual exposure: "
-                    f"{chosen:g} {dose_unit}{_made_of(chosen_units, dose_unit)}, predicted exposure ratio {ratio_dose:.3g} "
-                    "against the usual regimen alone."
-                )
-            elif fitting:
-                chosen, chosen_units = fitting[-1]
-                ratio_dose = auc_ratio * chosen / usual_dose
-                reasons.append(
-                    f"No available dose lands inside the boundary; nearest not above the exact dose: {chosen:g} {dose_unit}"
-                    f"{_made_of(chosen_units, dose_unit)}, predicted exposure ratio {ratio_dose:.3g} against the usual regimen alone."
-                )
-                if ratio_dose < lower:
-                    reasons.append(
-                        f"That rounded dose falls below the lower boundary {lower:g}: exposure, and efficacy, may be too low; "
-                        "consider the interval alternative or monitoring."
-                    )
-                if increase and chosen <= usual_dose:
-                    chosen = None
-                    ratio_dose = None
-                    reasons.append("No available dose lies between the usual dose and the exact dose.")
-            else:
-                reasons.append(f"The smallest available dose ({min(strengths):g} {dose_unit}) exceeds {exact:.3g} {dose_unit}.")
-        else:
-            reasons.append("No strengths were given: the exact figure is shown unrounded.")
-        tau_options = (
-            [t for t in PRACTICAL_INTERVALS_H if t >= exact_tau * (1 - 1e-9)]
-            if not increase
-            else [t for t in PRACTICAL_INTERVALS_H if t <= exact_tau * (1 + 1e-9)]
+        ranked = sorted(
+            (o for o in outcomes if o.feasible),
+            key=lambda o: (round(abs(math.log(o.exposure_ratio)), 12), o.index),
         )
-        if tau_options and not math.isclose(interval_h, exact_tau):
-            chosen_tau = tau_options[0] if not increase else tau_options[-1]
-            ratio_tau = auc_ratio * interval_h / chosen_tau
-            if math.isclose(chosen_tau, interval_h):
-                chosen_tau = ratio_tau = None
-        reasons.append(
-            f"Interval alternative: keep the dose and dose every {interval_h:g} h x {auc_ratio:.3g} = {exact_tau:.3g} h"
-            + (
-                f"; nearest practical interval {chosen_tau:g} h gives an exposure ratio of {ratio_tau:.3g} "
-                "(same average concentration, larger peak-to-trough swing)."
-                if chosen_tau is not None and ratio_tau is not None
-                else "; no practical interval (4 h to 1 week) fits."
+        options = tuple(ranked)
+        if chosen is not None:
+            what = "the exact dose (no strengths given: round to an available form)" if chosen.regimen.kind == "exact dose" else ""
+            reasons.append(
+                f"Suggested regimen: {chosen.describe(unit)}{' - ' + what if what else ''}; {_ratios_text(chosen, plan)}, "
+                "against the usual regimen alone; the closest to the usual exposure of the regimens inside the boundary."
             )
-            + " Only suitable if the victim's half-life supports the longer interval."
-        )
-        if chosen is None and chosen_tau is None and strengths:
-            action = "avoid or monitor"
-            reasons.append("Neither a dose nor an interval change is feasible: avoid the combination or monitor closely.")
+            if chosen.regimen.kind == "interval":
+                longer = chosen.regimen.interval_h > plan.usual_interval_h
+                reasons.append(
+                    f"{'A longer' if longer else 'A shorter'} interval keeps the average concentration but "
+                    f"{'widens' if longer else 'narrows'} the swing between peak and trough"
+                    + (
+                        f"; with the half-life {plan.half_life_h:.3g} h the peak and trough stay inside "
+                        f"{plan.peak_boundary[0]:g}-{plan.peak_boundary[1]:g} and {plan.trough_boundary[0]:g}-{plan.trough_boundary[1]:g} "
+                        "(one-compartment accumulation, stated as such)."
+                        if plan.half_life_h is not None
+                        else ": unchecked, because no half-life was given; give victim.half_life to judge peak and trough."
+                    )
+                )
+            if len(ranked) > 1:
+                reasons.append(f"{len(ranked) - 1} other regimen(s) also keep exposure inside the boundary (table below).")
+        else:
+            dose_side = [o for o in outcomes if o.regimen.kind != "interval"]
+            tau_side = [o for o in outcomes if o.regimen.kind == "interval"]
+            near = [min(side, key=lambda o: (_miss(o, plan), o.index)) for side in (dose_side, tau_side) if side]
+            nearest = tuple(near)
+            reasons.append(
+                f"No regimen within reach keeps exposure inside the boundary (doses of up to {plan.max_units} units of "
+                f"the strengths given; intervals {', '.join(f'{t:g}' for t in plan.intervals_h)} h): avoid the combination, "
+                "or monitor closely if it cannot be avoided."
+            )
+            if near:
+                reasons.append(
+                    "Nearest options, all outside: " + "; ".join(f"{o.describe(unit)} ({_why_outside(o, plan)})" for o in near) + "."
+                )
         if increase:
             cautions.insert(0, INCREASE_CAUTION)
     if mechanism_parts:
@@ -198,28 +697,35 @@ def suggest_dose(
                 "at different speeds, exposure can move towards a part for a time (reversible inhibition ends at once when the "
                 "perpetrator stops, enzyme changes last days); the time course shows whether it does."
             )
-    if narrow_therapeutic_index:
-        if action != "no change":
-            action = "avoid or monitor"
+    monitoring = plan.narrow_therapeutic_index and auc_ratio != 1.0
+    if plan.narrow_therapeutic_index:
         reasons.append(
-            "The victim is marked narrow therapeutic index: use therapeutic drug monitoring or avoid the combination; "
-            "a computed dose is not a substitute for expert review."
+            "The victim is marked narrow therapeutic index: any regimen here is a starting point for therapeutic drug "
+            "monitoring, not a substitute for it or for expert review; avoiding the combination may be safer."
         )
+        if plan.boundary_origin.startswith("default"):
+            reasons.append(
+                f"The default boundary {lower:g}-{upper:g} was applied to a narrow-therapeutic-index drug; give the victim's own "
+                "no_effect_boundary (usually narrower) from its label or clinical data."
+            )
     return DoseSuggestion(
-        action=action,
+        action=ACTIONS[code],
+        monitoring=monitoring,
         auc_ratio=auc_ratio,
-        boundary=(lower, upper),
-        boundary_origin=boundary_origin,
-        usual_dose=usual_dose,
-        dose_unit=dose_unit,
-        usual_interval_h=interval_h,
+        gut_ratio=gut_ratio,
+        boundary=plan.boundary,
+        boundary_origin=plan.boundary_origin,
+        peak_boundary=plan.peak_boundary,
+        trough_boundary=plan.trough_boundary,
+        usual_dose=plan.usual_dose,
+        dose_unit=unit,
+        usual_interval_h=plan.usual_interval_h,
+        half_life_h=plan.half_life_h,
         exact_dose=exact,
-        chosen_dose=chosen,
-        chosen_units=chosen_units,
-        ratio_with_chosen=ratio_dose,
         exact_interval_h=exact_tau,
-        chosen_interval_h=chosen_tau,
-        ratio_with_interval=ratio_tau,
+        chosen=chosen,
+        options=options,
+        nearest=nearest,
         reasons=tuple(reasons),
         cautions=tuple(cautions),
     )

@@ -26,6 +26,7 @@ from typing import Any, Final, TypeVar
 import pint
 
 from . import units
+from .dosing import MAX_UNIT_SIZES
 from .errors import InputError, Problem, ScenarioError
 from .tables import load_targets, resolve_target
 
@@ -119,6 +120,7 @@ class Perpetrator:
     inhibits: tuple[Inhibition, ...] = ()
     metabolites: tuple[Metabolite, ...] = ()
     half_life: Q | None = None  # elimination half-life; used only by the time course (interact.dynamic)
+    cmax_dose: Q | None = None  # the dose at which cmax was measured (checked against dose)
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -143,7 +145,14 @@ class Victim:
     no_effect_lower: float | None = None
     no_effect_upper: float | None = None
     narrow_therapeutic_index: bool = False
-    # used only by the time course (interact.dynamic):
+    # regimen search (interact.dosing): halves of scored strengths, units per administration, intervals tried,
+    # and the boundaries for steady-state peak and trough ratios of a changed interval (default: no_effect_boundary)
+    scored_strengths: tuple[Q, ...] = ()
+    max_units: int | None = None
+    intervals: tuple[Q, ...] = ()
+    peak_boundary: tuple[float, float] | None = None
+    trough_boundary: tuple[float, float] | None = None
+    # used by the time course (interact.dynamic) and, for interval changes, by the regimen search:
     half_life: Q | None = None  # elimination half-life without the perpetrator
     hepatic_extraction: float | None = None  # hepatic (blood) extraction ratio without the perpetrator
     ka: Q | None = None  # first-order absorption rate constant (oral)
@@ -328,6 +337,41 @@ class _Reader:
             return False
         return value
 
+    def quantities(self, data: dict[str, Any], key: str, path: str, kind: str, *, example: str, like: Q | None = None) -> tuple[Q, ...]:
+        """A list of quantities of one kind (and, with ``like``, of the same dimension as ``like``)."""
+        raw = data.get(key, [])
+        if not isinstance(raw, list):
+            self.fail(f"{path}.{key}", f"{_brief(raw)} is not a list; expected e.g. {example}")
+            return ()
+        if len(raw) > _MAX_ITEMS:
+            self.fail(f"{path}.{key}", f"has {len(raw)} entries; expected at most {_MAX_ITEMS}")
+        out: list[Q] = []
+        for i, item in enumerate(raw[:_MAX_ITEMS]):
+            at = f"{path}.{key}[{i}]"
+            q = self.attempt(at, lambda item=item, at=at: units.parse(item, kind, field=at))  # type: ignore[misc]
+            if q is None:
+                continue
+            if like is not None and q.dimensionality != like.dimensionality:
+                self.fail(at, f'"{units.format_quantity(q)}" is not in the same kind of unit as the dose')
+                continue
+            out.append(q)
+        return tuple(out)
+
+    def boundary(self, data: dict[str, Any], key: str, path: str) -> tuple[float, float] | None:
+        """A [lower, upper] pair of ratios with 0 < lower <= 1 <= upper, or None when absent or wrong."""
+        if key not in data:
+            return None
+        b = data[key]
+        if (
+            isinstance(b, list)
+            and len(b) == 2
+            and all(isinstance(x, (int, float)) and not isinstance(x, bool) and math.isfinite(x) for x in b)
+            and 0 < b[0] <= 1 <= b[1]
+        ):
+            return float(b[0]), float(b[1])
+        self.fail(f"{path}.{key}", f"{_brief(b)} is not a [lower, upper] pair of ratios with 0 < lower <= 1 <= upper, e.g. [0.8, 1.25]")
+        return None
+
     def items(self, data: dict[str, Any], key: str, path: str) -> Iterator[tuple[int, Any]]:
         value = data.get(key, [])
         if not isinstance(value, list):
@@ -510,6 +554,10 @@ class _Reader:
         fa = self.fraction(data, "fa", path)
         ka = self.quantity(data, "ka", path, "rate")
         half_life = self.quantity(data, "half_life", path, "time")
+        cmax_dose = self.quantity(data, "cmax_dose", path, "dose")
+        if cmax_dose is not None and dose is not None and cmax_dose.dimensionality != dose.dimensionality:
+            self.fail(f"{path}.cmax_dose", f'"{units.format_quantity(cmax_dose)}" is not in the same kind of unit as the dose')
+            cmax_dose = None
         self._mass_conc_needs_mw(cmax, mw, f"{path}.cmax")
         if dose is not None and mw is None and dose.dimensionality == units.KINDS["mass"][0][0]:
             self.fail(
@@ -543,6 +591,7 @@ class _Reader:
             inhibits=inhibits,
             metabolites=tuple(metabolites),
             half_life=half_life,
+            cmax_dose=cmax_dose,
         )
 
     def metabolite(self, raw: object, path: str) -> Metabolite | None:
@@ -561,7 +610,11 @@ class _Reader:
         return Metabolite(name=name, molar_mass=mw, cmax=cmax, fu_plasma=fu_p, fu_plasma_measured=measured, inhibits=inhibits)
 
     def victim(self, raw: object, path: str = "victim") -> Victim | None:
-        data = self.table(raw, path, (*(f.name for f in fields(Victim)), "no_effect_boundary"))
+        data = self.table(
+            raw,
+            path,
+            (*tuple(f.name for f in fields(Victim) if f.name not in ("no_effect_lower", "no_effect_upper")), "no_effect_boundary"),
+        )
         if data is None:
             return None
         name = self.name(data, "name", path)
@@ -578,19 +631,25 @@ class _Reader:
             self.fail(f"{path}.hepatic_extraction", f"{v_extraction:g} is not below 1; expected an extraction ratio in (0, 1)")
             v_extraction = None
         v_ka = self.quantity(data, "ka", path, "rate")
-        strengths: list[Q] = []
-        raw_strengths = data.get("strengths", [])
-        if not isinstance(raw_strengths, list):
-            self.fail(f"{path}.strengths", f'{_brief(raw_strengths)} is not a list; expected e.g. ["2.5 mg", "5 mg"]')
-            raw_strengths = []
-        for i, s in enumerate(raw_strengths[:_MAX_ITEMS]):
-            at = f"{path}.strengths[{i}]"
-            q = self.attempt(at, lambda s=s, at=at: units.parse(s, "dose", field=at))  # type: ignore[misc]
-            if q is not None:
-                if dose is not None and q.dimensionality != dose.dimensionality:
-                    self.fail(f"{path}.strengths[{i}]", f'"{units.format_quantity(q)}" is not in the same kind of unit as the dose')
-                else:
-                    strengths.append(q)
+        strengths = self.quantities(data, "strengths", path, "dose", example='["2.5 mg", "5 mg"]', like=dose)
+        scored = self.quantities(data, "scored_strengths", path, "dose", example='["10 mg"]', like=dose)
+        for i, q in enumerate(scored):
+            if not any(units.magnitude(q, units.unit_text(s)) == float(s.magnitude) for s in strengths):
+                self.fail(f"{path}.scored_strengths[{i}]", f'"{units.format_quantity(q)}" is not one of the strengths')
+        if len(strengths) + len(scored) > MAX_UNIT_SIZES:
+            self.fail(
+                f"{path}.strengths",
+                f"has {len(strengths)} strengths and {len(scored)} scored ones; the regimen search takes at most {MAX_UNIT_SIZES} "
+                "unit sizes in all (list the forms in use)",
+            )
+        intervals = self.quantities(data, "intervals", path, "time", example='["8 h", "12 h", "24 h"]')
+        max_units = None
+        if "max_units" in data:
+            mu = data["max_units"]
+            if isinstance(mu, (int, float)) and not isinstance(mu, bool) and math.isfinite(mu) and mu == int(mu) and 1 <= mu <= 8:
+                max_units = int(mu)
+            else:
+                self.fail(f"{path}.max_units", f"{_brief(mu)} is not a whole number from 1 to 8 (units per administration)")
         pathways: list[Pathway] = []
         seen: set[str] = set()
         for i, praw in self.items(data, "pathways", path):
@@ -620,19 +679,9 @@ class _Reader:
                 f"{path}.pathways",
                 f"fm values sum to {total:.4g}; expected a total of at most 1 (the rest is renal and other routes)",
             )
-        lower = upper = None
-        if "no_effect_boundary" in data:
-            b = data["no_effect_boundary"]
-            at = f"{path}.no_effect_boundary"
-            if (
-                isinstance(b, list)
-                and len(b) == 2
-                and all(isinstance(x, (int, float)) and not isinstance(x, bool) and math.isfinite(x) for x in b)
-                and 0 < b[0] <= 1 <= b[1]
-            ):
-                lower, upper = float(b[0]), float(b[1])
-            else:
-                self.fail(at, f"{_brief(b)} is not a [lower, upper] pair of AUC ratios with 0 < lower <= 1 <= upper, e.g. [0.8, 1.25]")
+        lower, upper = self.boundary(data, "no_effect_boundary", path) or (None, None)
+        peak_boundary = self.boundary(data, "peak_boundary", path)
+        trough_boundary = self.boundary(data, "trough_boundary", path)
         if dose is None or interval is None:
             return None
         return Victim(
@@ -641,11 +690,16 @@ class _Reader:
             interval=interval,
             fg=fg,
             route=route if route in ROUTES else "oral",
-            strengths=tuple(strengths),
+            strengths=strengths,
             pathways=tuple(pathways),
             no_effect_lower=lower,
             no_effect_upper=upper,
             narrow_therapeutic_index=nti,
+            scored_strengths=scored,
+            max_units=max_units,
+            intervals=intervals,
+            peak_boundary=peak_boundary,
+            trough_boundary=trough_boundary,
             half_life=v_half_life,
             hepatic_extraction=v_extraction,
             ka=v_ka,
@@ -762,7 +816,7 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
         put(perp, key, getattr(p, key))
     if p.fu_plasma_measured:
         perp["fu_plasma_measured"] = True
-    for key in ("blood_plasma_ratio", "fa_fg", "fa", "ka", "half_life"):
+    for key in ("blood_plasma_ratio", "fa_fg", "fa", "ka", "half_life", "cmax_dose"):
         put(perp, key, getattr(p, key))
     perp["inhibits"] = [inhibition(i) for i in p.inhibits]
     if p.metabolites:
@@ -787,6 +841,15 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
         vic["no_effect_boundary"] = [v.no_effect_lower, v.no_effect_upper]
     if v.narrow_therapeutic_index:
         vic["narrow_therapeutic_index"] = True
+    if v.scored_strengths:
+        vic["scored_strengths"] = [units.format_quantity(s) for s in v.scored_strengths]
+    if v.max_units is not None:
+        vic["max_units"] = v.max_units
+    if v.intervals:
+        vic["intervals"] = [units.format_quantity(t) for t in v.intervals]
+    for key in ("peak_boundary", "trough_boundary"):
+        if getattr(v, key) is not None:
+            vic[key] = list(getattr(v, key))
     for key in ("half_life", "hepatic_extraction", "ka"):
         put(vic, key, getattr(v, key))
     vic["pathways"] = [{"enzyme": pw.enzyme, "fm": pw.fm} for pw in v.pathways]

@@ -46,8 +46,9 @@ import pint
 from numpy.typing import NDArray
 
 from . import units
-from .arrays import ACTIONS, band_codes, band_labels, dose_action_codes_by_victim, dose_candidates
+from .arrays import band_codes, band_labels
 from .assessment import Assessment, _kdeg
+from .dosing import ACTIONS, Regimen, choose_regimens, feasible_fraction, regimen_label
 from .errors import InputError
 from .exposure import enterocyte_um, unbound_cmax_um, unbound_inlet_um
 from .kinetics.conversion import ki_from_ic50
@@ -523,22 +524,9 @@ class ScenarioModel:
         gut, liver = np.broadcast_arrays(np.asarray(gut, dtype=float), np.asarray(liver, dtype=float))
         return Ratios(gut=gut, liver=liver, total=gut * liver)
 
-    def actions(self, total: NDArray[np.float64]) -> NDArray[np.int8]:
-        """Suggested-action codes (into :data:`interact.arrays.ACTIONS`) for AUC ratios ``total``."""
-        d = self.assessment.dose
-        strengths = tuple(units.magnitude(q, d.dose_unit) for q in self.assessment.scenario.victim.strengths)
-        cand = dose_candidates([strengths])[0]
-        r = np.asarray(total, dtype=float)
-        codes = dose_action_codes_by_victim(
-            r.reshape(-1, 1),
-            usual_dose=np.array([d.usual_dose]),
-            interval_h=np.array([d.usual_interval_h]),
-            candidates=cand[None, :],
-            lower=np.array([d.boundary[0]]),
-            upper=np.array([d.boundary[1]]),
-            narrow_therapeutic_index=np.array([self.assessment.scenario.victim.narrow_therapeutic_index]),
-        )
-        return codes.reshape(r.shape)
+    def actions(self, total: NDArray[np.float64], gut: NDArray[np.float64] | None = None) -> NDArray[np.int8]:
+        """Suggested-action codes (into :data:`interact.dosing.ACTIONS`) for AUC ratios ``total`` with gut parts ``gut``."""
+        return choose_regimens(self.assessment.regimens, total, gut).action
 
 
 # --------------------------------------------------------------------------- declarations
@@ -607,6 +595,16 @@ class Varied:
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
+class RegimenProbability:
+    """How likely a regimen keeps the object drug's exposure inside its boundaries, under the sampled inputs."""
+
+    regimen: Regimen | None  # None: the usual regimen, unchanged
+    label: str
+    probability: float
+    feasible_at_point: bool  # inside the boundaries at the point estimate (an option the point suggestion offers)
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
 class UncertaintyResult:
     """AUC-ratio spread of one scenario under its declared input distributions."""
 
@@ -625,6 +623,9 @@ class UncertaintyResult:
     action_change_probability: float
     fm_scaled: int
     boundary: tuple[float, float]
+    regimen_probabilities: tuple[RegimenProbability, ...]  # the usual regimen, every point-feasible option, and the best
+    best_regimen: RegimenProbability  # the highest probability of staying inside (ties: the usual regimen, then dose changes)
+    point_regimen: RegimenProbability | None  # the point suggestion's regimen (None when the point suggestion is no regimen)
     total: NDArray[np.float64] = field(repr=False, compare=False)
 
     def percentile(self, q: float) -> float:
@@ -779,9 +780,10 @@ def summarise(
     codes = band_codes(ts, classes)
     counts = np.bincount(codes, minlength=len(labels))
     point_code = int(band_codes(assessment.prediction.total, classes))
-    actions = model.actions(ts)
-    action_counts = np.bincount(actions, minlength=len(ACTIONS))
+    actions = model.actions(total, gut)
+    action_counts = np.bincount(actions.ravel(), minlength=len(ACTIONS))
     point_action = assessment.dose.action
+    regimen_probs, best, point_regimen = _regimen_probabilities(assessment, total, gut)
     change = 1.0 - float(action_counts[ACTIONS.index(point_action)]) / n
     return UncertaintyResult(
         method=method,
@@ -799,8 +801,44 @@ def summarise(
         action_change_probability=change,
         fm_scaled=fm_scaled,
         boundary=assessment.dose.boundary,
+        regimen_probabilities=regimen_probs,
+        best_regimen=best,
+        point_regimen=point_regimen,
         total=total,
     )
+
+
+def _regimen_probabilities(
+    assessment: Assessment, total: NDArray[np.float64], gut: NDArray[np.float64]
+) -> tuple[tuple[RegimenProbability, ...], RegimenProbability, RegimenProbability | None]:
+    """P(inside the boundaries) for the usual regimen and each candidate; the options to show and the best."""
+    plan, d = assessment.regimens, assessment.dose
+    p_usual, p_cand = feasible_fraction(plan, total, gut)
+    point_feasible = {o.index for o in d.options}
+    usual_ok = d.boundary[0] <= d.auc_ratio <= d.boundary[1]
+    usual = RegimenProbability(regimen=None, label="usual regimen, unchanged", probability=p_usual, feasible_at_point=usual_ok)
+    entries = [
+        RegimenProbability(
+            regimen=reg,
+            label=regimen_label(reg, plan.dose_unit),
+            probability=float(p_cand[k]),
+            feasible_at_point=k in point_feasible,
+        )
+        for k, reg in enumerate(plan.candidates)
+    ]
+    best = usual
+    for e in entries:  # candidate order breaks ties (dose changes before intervals, fewer units first)
+        if e.probability > best.probability:
+            best = e
+    shown = sorted([usual, *(e for e in entries if e.feasible_at_point)], key=lambda e: -e.probability)
+    if best not in shown:
+        shown.append(best)
+    point: RegimenProbability | None = None
+    if d.chosen is not None:
+        point = entries[d.chosen.index]
+    elif d.action == "no change":
+        point = usual
+    return tuple(shown), best, point
 
 
 # --------------------------------------------------------------------------- sensitivity

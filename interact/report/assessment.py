@@ -15,6 +15,7 @@ import pint
 from .. import units
 from ..assessment import Assessment
 from ..cautions import CAUTION_LINE
+from ..dosing import ACTIONS, DoseSuggestion, RegimenOutcome
 from ..exposure import Setting
 from .document import Note, Section, Table, cite, cite_data, render_markdown, render_text, speak_data, speak_sections
 from .numbers import fmt, fmt_ratio
@@ -81,7 +82,7 @@ def assessment_sections(
     verdict = (
         f"Predicted victim AUC ratio {fmt_ratio(pr.total)} (gut {fmt_ratio(pr.gut)} x liver {fmt_ratio(pr.liver)}): "
         f"{band}. Mechanistic model {'indicates' if a.study_indicated else 'does not indicate'} a clinical study "
-        f"(cutoff {a.aucr_cutoff.value:g}, {a.aucr_cutoff.status}). Suggested action: {a.dose.action}."
+        f"(cutoff {a.aucr_cutoff.value:g}, {a.aucr_cutoff.status}). Suggested action: {a.dose.headline}."
     )
     sections.append(Section(title="Summary", blocks=(Note(text=verdict, kind="result"),)))
 
@@ -269,7 +270,11 @@ def assessment_sections(
 
     # -- dose
     d = a.dose
-    dose_blocks: list[str | Table | Note] = [Note(text=f"Suggested action: {d.action}.", kind="result"), *d.reasons, *timing]
+    dose_blocks: list[str | Table | Note] = [Note(text=f"Suggested action: {d.headline}.", kind="result"), *d.reasons]
+    shown = d.options or d.nearest
+    if shown:
+        dose_blocks.append(regimen_table(d, shown))
+    dose_blocks.extend(timing)
     lim = a.perpetrator_limit
     dose_blocks.append(
         f"Perpetrator dose ceiling: {fmt(lim.dose)} {lim.dose_unit} ({lim.reason})."
@@ -311,6 +316,37 @@ def user_text(a: Assessment) -> tuple[str, ...]:
     for inh in (*p.inhibits, *(i for m in p.metabolites for i in m.inhibits)):
         items.append(inh.origin)
     return tuple(x for x in items if x)
+
+
+def regimen_table(d: DoseSuggestion, outcomes: tuple[RegimenOutcome, ...]) -> Table:
+    """The regimens inside the boundary (or, when none is, the nearest ones), with their predicted ratios."""
+    rows = []
+    for o in outcomes:
+        peak = fmt_ratio(o.peak_ratio) if o.peak_ratio is not None else ("unchecked" if o.regimen.kind == "interval" else "-")
+        trough = fmt_ratio(o.trough_ratio) if o.trough_ratio is not None else ("unchecked" if o.regimen.kind == "interval" else "-")
+        mark = "suggested" if d.chosen is not None and o.index == d.chosen.index else ("inside" if o.feasible else "outside")
+        rows.append((o.describe(d.dose_unit), fmt_ratio(o.exposure_ratio), peak, trough, mark))
+    return Table(
+        headers=("regimen", "exposure ratio", "peak ratio", "trough ratio", "against the boundary"),
+        rows=tuple(rows),
+    )
+
+
+def _regimen_json(o: RegimenOutcome | None) -> dict[str, object] | None:
+    if o is None:
+        return None
+    r = o.regimen
+    return {
+        "kind": r.kind,
+        "dose": _num(r.dose),
+        "interval_h": r.interval_h,
+        "units": r.makeup or None,
+        "exposure_ratio": _num(o.exposure_ratio),
+        "peak_ratio": _num(o.peak_ratio),
+        "trough_ratio": _num(o.trough_ratio),
+        "inside_boundary": o.feasible,
+        "peak_and_trough_checked": o.checked,
+    }
 
 
 def _num(x: float | None) -> float | None:
@@ -445,17 +481,21 @@ def _assessment_dict(a: Assessment) -> dict[str, Any]:
         },
         "dose": {
             "action": d.action,
+            "actions": list(ACTIONS),
+            "monitoring_required": d.monitoring,
+            "headline": d.headline,
             "unit": d.dose_unit,
             "usual_dose": d.usual_dose,
-            "exact_dose": d.exact_dose,
-            "suggested_dose": d.chosen_dose,
-            "suggested_units": d.chosen_units,
-            "ratio_with_suggested_dose": d.ratio_with_chosen,
             "usual_interval_h": d.usual_interval_h,
+            "half_life_h": d.half_life_h,
+            "exact_dose": d.exact_dose,
             "exact_interval_h": d.exact_interval_h,
-            "suggested_interval_h": d.chosen_interval_h,
-            "ratio_with_suggested_interval": d.ratio_with_interval,
+            "suggested": _regimen_json(d.chosen),
+            "options_inside_boundary": [_regimen_json(o) for o in d.options],
+            "nearest_outside": [_regimen_json(o) for o in d.nearest],
             "no_effect_boundary": list(d.boundary),
+            "peak_boundary": list(d.peak_boundary),
+            "trough_boundary": list(d.trough_boundary),
             "boundary_origin": d.boundary_origin,
             "reasons": list(d.reasons),
             "cautions": list(d.cautions),

@@ -66,6 +66,7 @@ def uncertainty_sections(r: UncertaintyResult) -> list[Section]:
         Table(headers=("class", "probability"), rows=class_rows),
         Table(headers=("suggested action", "probability"), rows=action_rows),
     ]
+    blocks.extend(regimen_probability_blocks(r))
     if r.fm_scaled:
         blocks.append(f"In {r.fm_scaled:,} samples the fm values added up to more than 1 and were scaled down together.")
     blocks.append(
@@ -74,6 +75,41 @@ def uncertainty_sections(r: UncertaintyResult) -> list[Section]:
         "Only the declared inputs vary; the spread says nothing about errors in the model itself."
     )
     return [Section(title="Uncertainty of the AUC ratio", blocks=tuple(blocks))]
+
+
+def regimen_probability_blocks(r: UncertaintyResult) -> list[str | Table | Note]:
+    """Dose under uncertainty: the probability that each regimen keeps exposure inside the boundaries."""
+    lo, hi = r.boundary
+    rows = tuple(
+        (
+            e.label,
+            _pct(e.probability),
+            "yes" if e.feasible_at_point else "no",
+            ("point suggestion" if e is r.point_regimen else "")
+            + ("; " if e is r.point_regimen and e is r.best_regimen else "")
+            + ("highest probability" if e is r.best_regimen else ""),
+        )
+        for e in r.regimen_probabilities
+    )
+    best, point = r.best_regimen, r.point_regimen
+    if point is None:
+        verdict = (
+            f"The point estimate finds no regimen inside the boundary; across the samples, {best.label} stays inside most often "
+            f"({_pct(best.probability)})."
+        )
+    elif point is best:
+        verdict = f"The point suggestion ({point.label}) is also the regimen most likely to stay inside ({_pct(point.probability)})."
+    else:
+        verdict = (
+            f"Point suggestion: {point.label}, inside the boundary in {_pct(point.probability)} of samples. Under the sampled "
+            f"inputs, {best.label} stays inside more often ({_pct(best.probability)}): the two differ, so weigh them side by side."
+        )
+    return [
+        Note(text=f"Dose under uncertainty (boundary {lo:g}-{hi:g}): {verdict}", kind="result"),
+        Table(headers=("regimen", "probability inside the boundaries", "inside at the point estimate", "note"), rows=rows),
+        "Probability inside = share of samples in which the regimen's exposure ratio (and, for a changed interval with a known "
+        "half-life, its steady-state peak and trough) lies inside the boundaries; the same test as the point suggestion.",
+    ]
 
 
 def sensitivity_sections(s: Sensitivity) -> list[Section]:
@@ -149,6 +185,19 @@ def uncertainty_to_dict(r: UncertaintyResult, s: Sensitivity | None = None) -> d
         "point_action": r.point_action,
         "actions": {a: p for a, p in r.action_probabilities},
         "action_change_probability": r.action_change_probability,
+        "regimens": [
+            {
+                "regimen": e.label,
+                "kind": "usual" if e.regimen is None else e.regimen.kind,
+                "dose": None if e.regimen is None or math.isnan(e.regimen.dose) else e.regimen.dose,
+                "interval_h": None if e.regimen is None else e.regimen.interval_h,
+                "probability_inside_boundary": e.probability,
+                "inside_at_point_estimate": e.feasible_at_point,
+                "point_suggestion": e is r.point_regimen,
+                "highest_probability": e is r.best_regimen,
+            }
+            for e in r.regimen_probabilities
+        ],
         "fm_scaled_samples": r.fm_scaled,
         "cautions": [CAUTION_LINE],
     }

@@ -12,8 +12,8 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from interact import assess
-from interact.arrays import ACTIONS
 from interact.batch import evaluate_pairs, loads_perpetrators, loads_victims, pair_scenario, ranking
+from interact.dosing import ACTIONS
 from interact.tables import load_classes
 
 ENZYMES = ("CYP3A", "CYP2C9", "CYP2D6")
@@ -56,6 +56,7 @@ def victim_row(draw: st.DrawFn, k: int) -> list[str]:
         draw(st.sampled_from(["", "oral", "intravenous"])),
         ";".join(strengths),
         draw(st.sampled_from(["", "yes"])),
+        draw(st.sampled_from(["", "3", "30", "200"])),
         *("" if f is None else repr(f) for f in fms),
     ]
 
@@ -74,7 +75,7 @@ P_HEAD = [
     *(f"ki {e} (uM)" for e in ENZYMES),
     *(f"fu_inc {e}" for e in ENZYMES),
 ]
-V_HEAD = ["name", "dose (mg)", "interval (h)", "fg", "route", "strengths (mg)", "nti", *(f"fm {e}" for e in ENZYMES)]
+V_HEAD = ["name", "dose (mg)", "interval (h)", "fg", "route", "strengths (mg)", "nti", "half_life (h)", *(f"fm {e}" for e in ENZYMES)]
 
 
 @st.composite
@@ -100,7 +101,7 @@ def test_each_pair_equals_assess_alone(texts: tuple[str, str]) -> None:
             pr = a.prediction
             assert result.total[i, j] == pr.total, (i, j)
             assert result.gut[i, j] == pr.gut and result.liver[i, j] == pr.liver
-            assert ACTIONS[result.action[i, j]] == a.dose.action
+            assert ACTIONS[result.action[i, j]] == a.dose.action  # the same regimen rule, half-life included
             band = classes.classify(pr.total)
             assert labels[result.band[i, j]] == (
                 "no class" if band is None else f"{band.name} {'inhibition' if band in classes.inhibition else 'induction'}"

@@ -12,6 +12,7 @@ from typing import Any
 
 import numpy as np
 import pytest
+from conftest import base_dict
 from scipy import stats
 
 from interact import assess, load_scenario
@@ -290,3 +291,27 @@ def test_induction_thresholds_reported_when_the_ratio_can_fall() -> None:
     lows = [(b, p) for op, b, p in res.exceedance if op == "<="]
     assert [b for b, _ in lows] == [0.8, 0.5, 0.2]
     assert all(p == pytest.approx(float(np.mean(res.total <= b)), abs=1e-12) for b, p in lows)
+
+
+def test_probability_inside_the_boundary_per_regimen_counts_the_samples() -> None:
+    # linear kinetics (common practice): a dose d at the usual interval gives exposure AUCR x d / usual dose, so the
+    # probability that a regimen stays inside 0.8-1.25 is the share of sampled AUC ratios with 0.8 <= AUCR x factor <= 1.25
+    data = base_dict()
+    a = assess(scenario_from_dict(data))
+    res = run_uncertainty(a, [("perpetrator.inhibits[0].ki", "cv:60%")], samples=20_000, seed=5)
+    lo, hi = a.dose.boundary
+    usual = a.regimens.usual_dose
+    assert res.regimen_probabilities, "no regimen probabilities"
+    for e in res.regimen_probabilities:
+        factor = 1.0 if e.regimen is None else (e.regimen.dose / usual if e.regimen.kind == "dose" else 24.0 / e.regimen.interval_h)
+        x = res.total * factor
+        assert e.probability == pytest.approx(float(np.mean((x >= lo) & (x <= hi))), abs=1e-12), e.label
+    # every option the point suggestion offers is listed, and the best is the most probable of all candidates
+    assert {e.regimen for e in res.regimen_probabilities if e.feasible_at_point and e.regimen is not None} == {
+        o.regimen for o in a.dose.options
+    }
+    for reg in a.regimens.candidates:
+        factor = reg.dose / usual if reg.kind == "dose" else 24.0 / reg.interval_h
+        x = res.total * factor
+        assert float(np.mean((x >= lo) & (x <= hi))) <= res.best_regimen.probability + 1e-12
+    assert res.point_regimen is not None and a.dose.chosen is not None and res.point_regimen.regimen == a.dose.chosen.regimen
