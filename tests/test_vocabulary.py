@@ -34,7 +34,7 @@ def _aliased(text: str) -> str:
 
 def _body(text: str, a) -> str:  # type: ignore[no-untyped-def]
     """The output without what the user typed and without the references (which quote source titles)."""
-    for cut in ("\nREFERENCES\n", "\n## References\n", '"references"'):
+    for cut in ("\nReferences\n==========", "\n## References\n", '"references"'):
         if cut in text:
             text = text[: text.index(cut)]
     for s in user_text(a):

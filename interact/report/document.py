@@ -22,12 +22,15 @@ __all__ = [
     "Table",
     "cite",
     "cite_data",
+    "keep_together",
+    "list_groups",
     "render_html_body",
     "render_markdown",
     "render_text",
     "speak",
     "speak_data",
     "speak_sections",
+    "without_empty_columns",
 ]
 
 REFERENCES_TITLE = "References"
@@ -94,6 +97,49 @@ def cite(sections: list[Section], *, every_source: bool = False) -> list[Section
     keys = tuple(k for k in keys if k in known)
     out = [Section(title=resolve(sec.title), blocks=tuple(_resolve_block(b) for b in sec.blocks)) for sec in sections]
     return [*out, references_section(keys)] if keys else out
+
+
+def without_empty_columns(table: Table) -> Table:
+    """The table without columns that hold nothing: an empty header over empty (or "-") cells, or no cell text at all."""
+    cols = len(table.headers)
+
+    def cell(row: tuple[str, ...], i: int) -> str:
+        return row[i].strip() if i < len(row) else ""
+
+    keep = [
+        i
+        for i in range(cols)
+        if any(cell(r, i) for r in table.rows) and (table.headers[i].strip() or any(cell(r, i) not in ("", "-") for r in table.rows))
+    ]
+    if len(keep) == cols or not keep:
+        return table
+    return Table(headers=tuple(table.headers[i] for i in keep), rows=tuple(tuple(cell(r, i) for i in keep) for r in table.rows))
+
+
+_UNIT_AFTER_NUMBER = re.compile(
+    r"(?<=\d) (?=(?:x |/)?(?:[uµnmp]?M|[uµnm]?mol|[uµnm]?g|[um]?L|1/min|1/h|h|min|d|days?|weeks?|%|L/min|L/h|mL/min|"
+    r"g/mol|[uµnm]g/mL|mg/mL|cells|fold)\b)"
+)
+
+
+def keep_together(text: str) -> str:
+    """``text`` with a no-break space between a number and its unit, so that a line never breaks between them."""
+    return _UNIT_AFTER_NUMBER.sub("\u00a0", text)
+
+
+def list_groups(blocks: tuple[str | Table | Note, ...]) -> Iterator[str | Table | Note | list[str]]:
+    """The blocks with runs of "- " paragraphs gathered into lists (for renderers that have real lists)."""
+    run: list[str] = []
+    for b in blocks:
+        if isinstance(b, str) and b.startswith("- "):
+            run.append(b[2:])
+            continue
+        if run:
+            yield run
+            run = []
+        yield b
+    if run:
+        yield run
 
 
 def _strings(data: object) -> Iterator[str]:
@@ -247,15 +293,17 @@ def render_text(sections: list[Section], width: int = 100) -> str:
     out: list[str] = []
     for section in sections:
         out.append("")
-        out.append(section.title.upper() if section.title else "")
+        out.append(section.title)  # as written: upper-casing would turn a unit such as (uM) into (UM)
         out.append("=" * min(len(section.title), width) if section.title else "")
         for block in section.blocks:
             if isinstance(block, Table):
-                out.extend(_text_table(block, width))
+                out.extend(_text_table(without_empty_columns(block), width))
                 out.append("")
             elif isinstance(block, Note):
                 prefix = "!! " if block.kind == "caution" else ">> "
                 out.extend(textwrap.wrap(block.text, width, initial_indent=prefix, subsequent_indent="   "))
+            elif block.startswith("- "):
+                out.extend(textwrap.wrap(block, width, subsequent_indent="  ") or [""])
             else:
                 out.extend(textwrap.wrap(block, width) or [""])
     return "\n".join(out).strip("\n") + "\n"
@@ -275,6 +323,7 @@ def render_markdown(sections: list[Section], title: str = "") -> str:
             out += [f"## {section.title}", ""]
         for block in section.blocks:
             if isinstance(block, Table):
+                block = without_empty_columns(block)
                 out.append("| " + " | ".join(_md_cell(h) for h in block.headers) + " |")
                 out.append("|" + "|".join("---" for _ in block.headers) + "|")
                 for row in block.rows:

@@ -249,7 +249,7 @@ def format_comparison(
         return text + (f"\n```\n{plots}```\n" if plots else "")
     text = render_text(sections, width=width)
     if plots:
-        marker = "DIAGNOSTIC PLOT\n===============\n"
+        marker = "Diagnostic plot\n===============\n"
         text = text.replace(marker, marker + plots + "\n", 1)
     return text
 

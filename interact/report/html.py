@@ -15,6 +15,7 @@ import base64
 import hashlib
 import html
 import platform
+import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import datetime
@@ -26,7 +27,7 @@ from ..cautions import CAUTION_LINE
 from ..kinetics.conversion import CHENG_PRUSOFF_SOURCE
 from ..uncertainty import Sensitivity, UncertaintyResult
 from .assessment import assessment_sections, user_text
-from .document import Note, Section, Table, cite, render_markdown, speak_sections
+from .document import Note, Section, Table, cite, keep_together, list_groups, render_markdown, speak_sections, without_empty_columns
 from .svg import fm_curves_svg, histogram_svg, tornado_svg
 from .uncertainty import sensitivity_sections, uncertainty_sections
 
@@ -121,6 +122,9 @@ def report_parts(
 ) -> list[ReportPart]:
     """The report as sections with their figures, in reading order."""
     base = assessment_sections(a, references=False)
+    if base and not base[0].title:  # the page header shows the title and the invented notice once
+        head = tuple(b for b in base[0].blocks if not (isinstance(b, str) and (b.startswith("Scenario: ") or "INVENTED" in b)))
+        base[0] = Section(title="", blocks=head)
     titles = [s.title for s in base]
     cut = titles.index("Dose suggestion") if "Dose suggestion" in titles else len(base)
     parts = [ReportPart(section=s) for s in base[:cut]]
@@ -200,7 +204,12 @@ h1 { font-size: 1.5rem; margin-bottom: 0.3rem; }
 h2 { font-size: 1.15rem; border-bottom: 1px solid var(--rule); padding-bottom: 0.2rem; margin-top: 2rem; }
 .flag { display: inline-block; padding: 0.2rem 0.6rem; border: 1px solid var(--ink); font-weight: bold; }
 table { border-collapse: collapse; margin: 0.6rem 0 1rem; width: 100%; font-size: 12.5px; }
-th, td { border: 1px solid var(--rule); padding: 0.25rem 0.4rem; text-align: left; vertical-align: top; overflow-wrap: anywhere; }
+.wide { overflow-x: auto; }
+th, td { border: 1px solid var(--rule); padding: 0.25rem 0.4rem; text-align: left; vertical-align: top;
+         overflow-wrap: break-word; hyphens: none; }
+td.num { white-space: nowrap; }
+ul { margin: 0.4rem 0 1rem; padding-left: 1.4rem; }
+li { margin: 0.15rem 0; }
 th { background: #f2f2f2; }
 .note { padding: 0.5rem 0.7rem; border-left: 4px solid #b36b00; background: var(--caution); }
 .note.result { border-left-color: #0b5394; background: var(--result); }
@@ -220,15 +229,29 @@ footer { margin-top: 2.5rem; color: var(--muted); font-size: 12px; border-top: 1
 """
 
 
-def _block_html(block: str | Table | Note) -> str:
+_SHORT_VALUE = re.compile(r"^[-+<>=~ ]*[\d.,]+(?:e[-+]?\d+)?(?:\u00a0\S+)?$")
+
+
+def _cell(text: str) -> str:
+    """A table cell: numbers kept with their units; a cell that is one short value never wraps."""
+    shown = keep_together(text)
+    cls = ' class="num"' if _SHORT_VALUE.match(shown) else ""
+    return f"<td{cls}>{html.escape(shown)}</td>"
+
+
+def _block_html(block: str | Table | Note | list[str]) -> str:
     e = html.escape
+    if isinstance(block, list):
+        return "<ul>" + "".join(f"<li>{e(keep_together(item))}</li>" for item in block) + "</ul>"
     if isinstance(block, Table):
+        block = without_empty_columns(block)
         head = "".join(f"<th>{e(h)}</th>" for h in block.headers)
-        body = "".join("<tr>" + "".join(f"<td>{e(c)}</td>" for c in row) + "</tr>" for row in block.rows)
-        return f"<table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"
+        body = "".join("<tr>" + "".join(_cell(c) for c in row) + "</tr>" for row in block.rows)
+        # a table wider than the page scrolls inside its own box instead of squeezing words apart
+        return f'<div class="wide"><table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table></div>'
     if isinstance(block, Note):
-        return f'<p class="note {e(block.kind)}">{e(block.text)}</p>'
-    return f"<p>{e(block)}</p>"
+        return f'<p class="note {e(block.kind)}">{e(keep_together(block.text))}</p>'
+    return f"<p>{e(keep_together(block))}</p>"
 
 
 def render_report_html(a: Assessment, parts: Sequence[ReportPart]) -> str:
@@ -260,7 +283,7 @@ def render_report_html(a: Assessment, parts: Sequence[ReportPart]) -> str:
         out.append("<section>")
         if sec.title:
             out.append(f"<h2>{e(sec.title)}</h2>")
-        out.extend(_block_html(b) for b in sec.blocks)
+        out.extend(_block_html(b) for b in list_groups(sec.blocks))
         for fig in part.figures:
             out.append(f"<figure>{fig.svg}<figcaption>{e(fig.caption)}</figcaption></figure>")
         out.append("</section>")

@@ -116,7 +116,7 @@ def sensitivity_sections(s: Sensitivity) -> list[Section]:
     """Tornado, crossings and the AUCR-versus-fm table as document sections."""
     rows = tuple(
         (
-            b.input.path,
+            b.input.label,
             f"{fmt(b.low)} to {fmt(b.high)} {b.input.unit}".strip(),
             fmt_ratio(b.aucr_low),
             fmt_ratio(b.aucr_high),
