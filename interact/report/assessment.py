@@ -17,6 +17,7 @@ from ..assessment import Assessment
 from ..cautions import CAUTION_LINE
 from ..dosing import ACTIONS, DoseSuggestion, RegimenOutcome
 from ..exposure import Setting
+from ..tables import load_physiology, resolve_target
 from .document import Note, Section, Table, cite, cite_data, render_markdown, render_text, speak_data, speak_sections
 from .numbers import fmt, fmt_ratio
 
@@ -49,6 +50,56 @@ def _origin(s: Setting) -> str:
 
 def _q(q: pint.Quantity | None) -> str:
     return "-" if q is None else units.format_quantity(q)
+
+
+# where a setting the user can give lives in the scenario (section, attribute)
+_GIVEN_AT = {
+    "hepatic_blood_flow": ("physiology", "hepatic_blood_flow"),
+    "enterocytic_blood_flow": ("physiology", "enterocytic_blood_flow"),
+    "gut_volume": ("physiology", "gut_volume"),
+    "fu_gut": ("physiology", "fu_gut"),
+    "absorption_rate": ("perpetrator", "ka"),
+    "fa_fg": ("perpetrator", "fa_fg"),
+    "fraction_absorbed": ("perpetrator", "fa"),
+    "blood_plasma_ratio": ("perpetrator", "blood_plasma_ratio"),
+}
+
+
+def _as_written(value: object) -> str | None:
+    if isinstance(value, pint.Quantity):
+        return units.format_quantity(value)
+    if isinstance(value, (int, float)) and not isinstance(value, bool):
+        return f"{value:g}"
+    if isinstance(value, str) and value.strip():
+        return value.strip()
+    return None
+
+
+def _setting_value(a: Assessment, st: Setting) -> str:
+    """A setting as the user wrote it (given) or as its table states it (default); computed values to the usual figures."""
+    shown: str | None = None
+    if st.origin in ("given", "override") and st.name in _GIVEN_AT:
+        section, attr = _GIVEN_AT[st.name]
+        shown = _as_written(getattr(getattr(a.scenario, section), attr, None))
+    elif st.origin in ("default", "rule set"):
+        table = a.rules.physiology_value(st.name) if st.origin == "rule set" else None
+        table = table or next((p for p in load_physiology() if p.name == st.name), None)
+        if table is not None and st.name in _GIVEN_AT:
+            shown = _as_written(table.value)
+    if shown is None and not st.unit and st.origin == "given":
+        shown = f"{st.value:g}"
+    return shown or f"{fmt(st.value)} {st.unit}".strip()
+
+
+def _given(a: Assessment, species_index: int, target: str, attr: str) -> str | None:
+    """The constant ``attr`` of the inhibition entry behind a computed constant, as the user wrote it."""
+    p = a.scenario.perpetrator
+    entries = p.inhibits if species_index == 0 else p.metabolites[species_index - 1].inhibits
+    for inh in entries:
+        found = resolve_target(inh.target)
+        if found is not None and found.name == target:
+            return _as_written(getattr(inh, attr, None))
+    return None
 
 
 def assessment_sections(
@@ -125,7 +176,7 @@ def assessment_sections(
                 (
                     c.target,
                     c.species,
-                    f"kinact {fmt(c.kinact_per_h)} 1/h",
+                    f"kinact {_given(a, c.species_index, c.target, 'kinact') or f'{fmt(c.kinact_per_h)} 1/h'}",
                     "time-dependent",
                     "-",
                     f"KI,u {fmt(c.ki_inact_u_um)} uM",
@@ -142,7 +193,7 @@ def assessment_sections(
                     f"EC50,u {fmt(c.ec50_u_um)} uM",
                 )
             )
-    settings_rows = tuple((st.label, f"{fmt(st.value, 4)} {st.unit}".strip(), _origin(st)) for st in (*a.settings, *a.kdeg_used))
+    settings_rows = tuple((st.label, _setting_value(a, st), _origin(st)) for st in (*a.settings, *a.kdeg_used))
     sections.append(
         Section(
             title="Inputs",
