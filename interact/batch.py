@@ -119,7 +119,7 @@ OUTPUT_COLUMNS: Final = (
     "AUCR liver",
     "AUCR",
     "class",
-    "study indicated",
+    "study indicated (mechanistic model)",
     "action",
     "flags",
 )

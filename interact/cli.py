@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import math
+import shutil
 import sys
 from collections.abc import Callable, Sequence
 from pathlib import Path
@@ -310,10 +311,14 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         sys.stderr.write(f"interact: skipped {problem}\n")
     n = len(perps.rows) * len(victims.rows)
     result = evaluate_pairs(perps, victims, rules, progress=_progress_bar("screening") if n >= 200_000 and not args.quiet else None)
-    fmt_name = args.format or {".json": "json", ".md": "markdown", ".markdown": "markdown"}.get(
-        Path(args.output or "").suffix.lower(), "csv"
-    )
-    rows = _write_streamed(args.output, lambda h: write_results(result, h, fmt_name, top=args.top))
+    if args.format:
+        fmt_name = args.format
+    elif args.output:
+        fmt_name = {".json": "json", ".md": "markdown", ".markdown": "markdown"}.get(Path(args.output).suffix.lower(), "csv")
+    else:  # a person at a terminal reads a rounded table; a pipe gets CSV
+        fmt_name = "table" if sys.stdout.isatty() else "csv"
+    width = shutil.get_terminal_size((100, 24)).columns
+    rows = _write_streamed(args.output, lambda h: write_results(result, h, fmt_name, top=args.top, width=width))
     if args.output and not args.quiet:
         skipped = len(perps.skipped) + len(victims.skipped)
         sys.stderr.write(
@@ -479,7 +484,11 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("perpetrators", metavar="PERPETRATORS.csv", help="perpetrator table (CSV or TOML; columns in README)")
     p.add_argument("victims", metavar="VICTIMS.csv", help="victim table (CSV or TOML; columns in README)")
     p.add_argument("-o", "--output", metavar="FILE", help="write results to FILE (.csv, .json or .md) instead of standard output")
-    p.add_argument("--format", choices=("csv", "json", "markdown"), help="output format (default: from the file name, else csv)")
+    p.add_argument(
+        "--format",
+        choices=("csv", "json", "markdown", "table"),
+        help="output format (default: from the file name; to a terminal a rounded table, to a pipe csv)",
+    )
     p.add_argument("--rules", metavar="NAME|PATH", help="rule set (default ich-m12-2024)")
     p.add_argument(
         "--on-error",

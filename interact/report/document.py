@@ -215,6 +215,11 @@ def _term_patterns(terms: Terms) -> list[tuple[re.Pattern[str], str]]:
     )
     out = []
     for old, new in pairs:
+        # the article follows the new word: "a victim" -> "an object drug"
+        article = "an" if new[:1].lower() in "aeiou" else "a"
+        out.append((re.compile(rf"\ba {old}(?![.\w])"), f"{article} {new}"))
+        out.append((re.compile(rf"\bA {old}(?![.\w])"), f"{_cap(article)} {new}"))
+    for old, new in pairs:
         # not inside a file key (perpetrator.half_life, [victim]): those name what the user typed
         out.append((re.compile(rf"(?<![\[.\w]){old}(?![.\w])"), new))
         out.append((re.compile(rf"(?<![\[.\w]){_cap(old)}(?![.\w])"), _cap(new)))
