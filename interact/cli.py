@@ -31,8 +31,14 @@ def _out(text: str, path: str | None = None) -> None:
         from .scenario import write_text_atomic
 
         write_text_atomic(Path(path), text)
+        _said_written(path)
     else:
         sys.stdout.write(text)
+
+
+def _said_written(path: str | Path, what: str = "output") -> None:
+    """Every command that writes a file says where (on standard error, so standard output stays the result)."""
+    sys.stderr.write(f"interact: {what} written to {Path(path).resolve()}\n")
 
 
 def _cmd_assess(args: argparse.Namespace) -> int:
@@ -79,7 +85,8 @@ def _cmd_timecourse(args: argparse.Namespace) -> int:
         effect_fraction=args.fraction,
     )
     if args.plot:
-        write_text_atomic(Path(args.plot), timecourse_svg(course, title=result.scenario.title))
+        write_text_atomic(Path(args.plot), timecourse_svg(course, title=result.scenario.title, terms=result.rules.terms))
+        _said_written(args.plot, "plot")
     _out(format_timecourse(course, result, args.format, width=args.width), args.output)
     return 0
 

@@ -177,6 +177,8 @@ def test_cli_report_html_and_md(tmp_path: Path, capsys: pytest.CaptureFixture[st
     md = tmp_path / "out.md"
     assert main(["report", str(scen), "-o", str(md)]) == 0
     assert md.read_text(encoding="utf-8").startswith("# interact report:")
+    # each written file is named on standard error
+    assert capsys.readouterr().err.splitlines() == [f"interact: output written to {p.resolve()}" for p in (out, md)]
     assert main(["report", str(tmp_path / "missing.toml"), "-o", str(out)]) == 2
     err = capsys.readouterr().err
     assert err.startswith("interact: ") and err.count("\n") == 1
