@@ -246,7 +246,9 @@ def _cmd_uncertainty(args: argparse.Namespace) -> int:
     method = args.method or spec.method or "lhs"
     spread = run_uncertainty(result, vary, samples=samples, seed=seed, method=method)
     sens = sensitivity(result, vary)
-    _out(format_uncertainty(spread, sens, args.format, title=result.scenario.title, width=args.width), args.output)
+    _out(
+        format_uncertainty(spread, sens, args.format, title=result.scenario.title, width=args.width, scenario=result.scenario), args.output
+    )
     return 0
 
 

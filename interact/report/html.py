@@ -133,7 +133,7 @@ def report_parts(
     parts[at:at] = [ReportPart(section=_rule_set(a)), ReportPart(section=_equations(a))]
     boundary = a.dose.boundary
     if spread is not None:
-        u = uncertainty_sections(spread)[0]
+        u = uncertainty_sections(spread, a.scenario)[0]
         thresholds = sorted({b for _, b, _ in spread.exceedance})
         fig = Figure(
             svg=histogram_svg(spread.total, tuple(spread.percentile(q) for q in (5.0, 50.0, 95.0)), thresholds),  # type: ignore[arg-type]
@@ -152,7 +152,7 @@ def report_parts(
                 )
             )
         )
-    s = sensitivity_sections(sens)[0]
+    s = sensitivity_sections(sens, a.scenario)[0]
     figs = [
         Figure(
             svg=tornado_svg(sens.bars, sens.point_total, boundary),

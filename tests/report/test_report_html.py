@@ -183,3 +183,18 @@ def test_cli_report_html_and_md(tmp_path: Path, capsys: pytest.CaptureFixture[st
     err = capsys.readouterr().err
     assert err.startswith("interact: ") and err.count("\n") == 1
     assert out.read_text(encoding="utf-8") == page  # a failed run leaves the earlier file alone
+
+
+def test_sensitivity_rows_read_as_the_user_wrote_the_inputs(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # the demo (invented) gives its dose in mg and Cmax in µg/mL: the swing is shown in those units, with readable labels
+    out = tmp_path / "r.md"
+    assert main(["report", str(demo_path()), "-o", str(out)]) == 0
+    text = out.read_text(encoding="utf-8")
+    sens = text[text.index("## Sensitivity") : text.index("## Sensitivity") + 4000]
+    dose = next(line for line in sens.splitlines() if line.startswith("| Dose of "))
+    cmax = next(line for line in sens.splitlines() if line.startswith("| Cmax of Corvexazole"))
+    assert dose.split("|")[2].strip().endswith(" mg") and "umol" not in sens
+    assert cmax.split("|")[2].strip().endswith(" µg/mL")
+    # 150 mg swung x/÷ 2 by default: 75 to 300 mg
+    assert dose.split("|")[2].strip() == "75.0 to 300 mg"
+    assert "perpetrator.inhibits[" not in sens  # labels, not file paths
