@@ -15,6 +15,7 @@ from .constants import Constant, resolve_constants
 from .dosing import DoseLimit, DoseSuggestion, RegimenPlan, highest_perpetrator_scale, plan_for_victim, suggest_dose
 from .errors import InputError
 from .exposure import Setting, SpeciesExposure, resolve_exposure, resolve_settings
+from .genotype import PhenotypeCase, phenotype_cases
 from .prediction import Prediction, predict, ratio_function
 from .scenario import Scenario
 from .screening import ScreenResult, screen
@@ -54,6 +55,7 @@ class Assessment:
     study_indicated: bool
     dose: DoseSuggestion
     regimens: RegimenPlan
+    phenotypes: tuple[PhenotypeCase, ...]  # drug-drug-gene cases when the victim states phenotypes (interact.genotype)
     perpetrator_limit: DoseLimit
     kdeg_used: tuple[Setting, ...]
     warnings: tuple[str, ...]
@@ -195,6 +197,12 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         gut_ratio=prediction.gut,
         mechanism_parts=tuple((pt.mechanism, pt.total) for pt in prediction.parts) if "induction" in prediction.mechanisms else (),
     )
+    cases = phenotype_cases(v.phenotypes, prediction, plan)
+    if plan.narrow_therapeutic_index and plan.boundary_origin.startswith("default"):
+        warnings.append(
+            f"The default no-effect boundary {boundary[0]:g}-{boundary[1]:g} was applied to a narrow-therapeutic-index victim; "
+            "give its own victim.no_effect_boundary (usually narrower) from its label or exposure-response data."
+        )
     if p.cmax_dose is not None:
         dose_now = units.magnitude(p.dose, units.unit_text(p.cmax_dose))
         measured_at = float(p.cmax_dose.magnitude)
@@ -252,6 +260,12 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
                 if r.cutoff.unverified
             }
             | {
+                f"Phenotype activity {enzyme} {name} = {act:g}: {src.source}{tag(src.status)}"
+                for case in cases
+                for (enzyme, name, act), src in zip(case.activities, case.sources, strict=True)
+                if src is not None and src.status in UNVERIFIED
+            }
+            | {
                 f"Induction calibration factor d = 1 for {c.species} on {c.target}: default ([@lee2024] shows d in the R3 equation; "
                 "the default value 1 is from memory)"
                 for c in constants
@@ -291,6 +305,7 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         study_indicated=study,
         dose=dose,
         regimens=plan,
+        phenotypes=cases,
         perpetrator_limit=limit,
         kdeg_used=tuple(kdeg_used),
         warnings=tuple(warnings),

@@ -40,10 +40,10 @@ from .constants import resolve_constants
 from .dosing import ACTIONS, RegimenPlan, choose_regimens, plan_for_victim
 from .errors import InputError, InteractError, Problem, ScenarioError
 from .exposure import resolve_exposure, resolve_settings
-from .prediction import gut_ratio, reversible_term
+from .prediction import gut_ratio, liver_ratio, reversible_term
 from .scenario import Perpetrator, Scenario, Victim, scenario_from_dict
 from .screening import screen
-from .tables import RuleSet, load_classes, load_rules, load_targets, resolve_target
+from .tables import RuleSet, load_classes, load_phenotypes, load_rules, load_targets, resolve_target
 
 __all__ = [
     "FLAGS",
@@ -95,13 +95,14 @@ VICTIM_COLUMNS: Final = (
     ("no_effect_lower", "AUC ratio", False, "lower no-effect boundary (default 0.8)"),
     ("no_effect_upper", "AUC ratio", False, "upper no-effect boundary (default 1.25)"),
     ("fm ENZYME", "fraction", False, "fraction of clearance through ENZYME"),
+    ("phenotype ENZYME", "text or number", False, "metaboliser phenotype on that pathway (poor, intermediate, ...) or a relative activity"),
 )
 
 #: flags, as bits of :attr:`BatchResult.flags`
 FLAGS: Final = (
     "fg not given: no gut-wall interaction predicted",
     "fu,p raised to the floor",
-    "narrow therapeutic index",
+    "narrow therapeutic index: any change only with therapeutic drug monitoring",
     "a victim pathway is not inhibited by this perpetrator",
     "basic model flags a study",
 )
@@ -118,6 +119,8 @@ OUTPUT_COLUMNS: Final = (
     "AUCR gut",
     "AUCR liver",
     "AUCR",
+    "phenotype",
+    "exposure vs normal",
     "class",
     "study indicated (mechanistic model)",
     "action",
@@ -213,7 +216,7 @@ _UNIT_KINDS: Final = {
     "half_life": "time",
     "strengths": "dose",
 }
-_PER_TARGET: Final = {"perpetrator": ("ki", "ki_u", "fu_inc"), "victim": ("fm",)}
+_PER_TARGET: Final = {"perpetrator": ("ki", "ki_u", "fu_inc"), "victim": ("fm", "phenotype")}
 
 
 def _columns(headers: list[str], side: str, source: str) -> list[_Column]:
@@ -352,11 +355,23 @@ def _row_dict(cols: list[_Column], cells: dict[str, Any], side: str) -> tuple[di
             out["inhibits"] = items
         where["perpetrator.inhibits"] = "ki / ki_u columns"
     else:
-        out["pathways"] = [{"enzyme": t, "fm": d["fm"]} for t, d in per_target.items()]
-        for k, t in enumerate(per_target):
+        with_fm = [t for t, d in per_target.items() if "fm" in d]
+        out["pathways"] = [{"enzyme": t, "fm": per_target[t]["fm"]} for t in with_fm]
+        for k, t in enumerate(with_fm):
             where[f"victim.pathways[{k}].fm"] = where[f"victim.pathways[{k}].enzyme"] = headers_of[("fm", t)]
             where[f"victim.pathways[{k}]"] = headers_of[("fm", t)]
         where["victim.pathways"] = "fm columns"
+        phen = [t for t, d in per_target.items() if "phenotype" in d]
+        if phen:
+            out["phenotypes"] = []
+            for k, t in enumerate(phen):
+                text = str(per_target[t]["phenotype"])
+                try:
+                    out["phenotypes"].append({"enzyme": t, "activity": float(text)})
+                except ValueError:
+                    out["phenotypes"].append({"enzyme": t, "phenotype": text})
+                for key in ("", ".enzyme", ".phenotype", ".activity"):
+                    where[f"victim.phenotypes[{k}]{key}"] = headers_of[("phenotype", t)]
     return out, where
 
 
@@ -440,6 +455,9 @@ class VictimTable:
     fg_given: NDArray[np.bool_]
     oral: NDArray[np.bool_]
     plans: tuple[RegimenPlan, ...]  # each victim's regimen candidates and boundaries (interact.dosing)
+    activity: NDArray[np.float64]  # (n, enzymes): the victim's phenotype activity on each pathway (1 = normal)
+    genotype: NDArray[np.float64]  # exposure without a precipitant relative to a normal metaboliser (1 without phenotypes)
+    phenotype: tuple[str, ...]  # the phenotype label of each victim ("" for none)
     nti: NDArray[np.bool_]
     skipped: tuple[RowProblem, ...]
     source: str
@@ -563,11 +581,23 @@ def loads_victims(text: str, *, source: str = "victims.csv", on_error: str = "fa
     classes = load_classes()
     default = (classes.no_effect_lower, classes.no_effect_upper)
     plans = []
+    activity = np.ones((n, len(enzymes)))
+    labels = []
+    table = load_phenotypes()
     for i, v in enumerate(rows):
         for pw in v.pathways:
             k = enzymes.index(pw.enzyme)
             fm[i, k] = pw.fm
             has[i, k] = True
+        for c in v.phenotypes:
+            if c.phenotype == "all":
+                raise InputError(
+                    f"{source} line {lines[i]}: phenotype {c.enzyme}", "all", "is not one phenotype; give each phenotype its own row"
+                )
+            activity[i, enzymes.index(c.enzyme)] = (
+                c.activity if c.activity is not None else next(p.activity.value for p in table[c.enzyme] if p.name == c.phenotype)
+            )
+        labels.append(", ".join(f"{c.enzyme} {c.phenotype if c.activity is None else f'a = {c.activity:g}'}" for c in v.phenotypes))
         try:
             plans.append(plan_for_victim(v, default, "default 0.8-1.25, ICH M12 5.3.1"))
         except InputError as exc:
@@ -582,6 +612,9 @@ def loads_victims(text: str, *, source: str = "victims.csv", on_error: str = "fa
         fg_given=np.array([v.fg is not None for v in rows], dtype=bool),
         oral=np.array([v.route == "oral" for v in rows], dtype=bool),
         plans=tuple(plans),
+        activity=activity,
+        genotype=liver_ratio(fm, activity) if n else np.ones(0),
+        phenotype=tuple(labels),
         nti=np.array([v.narrow_therapeutic_index for v in rows], dtype=bool),
         skipped=tuple(problems),
         source=source,
@@ -606,7 +639,8 @@ class BatchResult:
     rules: RuleSet
     gut: NDArray[np.float64]
     liver: NDArray[np.float64]
-    total: NDArray[np.float64]
+    total: NDArray[np.float64]  # AUC ratio with / without the precipitant (within the victim's phenotype)
+    exposure: NDArray[np.float64]  # with the precipitant relative to a normal metaboliser without it: the dose answers this
     band: NDArray[np.int8]
     action: NDArray[np.int8]
     study: NDArray[np.bool_]
@@ -667,6 +701,7 @@ def pair_ratios(
     fm_sum = np.zeros(n_v)
     for k in range(fm.shape[1]):
         fm_sum += fm[:, k]
+    fm = fm * victims.activity  # a phenotype scales its pathway (x 1.0 is exact: no change without phenotypes)
     fg = np.where(victims.oral, victims.fg, 1.0)[None, :]  # Fg = 1 gives a gut ratio of exactly 1 (intravenous victim)
     done = 0
     for a0, a1 in _chunks(n_p, n_v):
@@ -709,11 +744,19 @@ def evaluate_pairs(
     rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules)
     classes = load_classes()
     n_p, n_v = len(perpetrators.rows), len(victims.rows)
-    gut, liver, total = pair_ratios(perpetrators, victims, progress=progress)
+    gut, liver, exposure = pair_ratios(perpetrators, victims, progress=progress)
+    total = exposure
+    phen = np.array([bool(v.phenotypes) for v in victims.rows], dtype=bool)
+    if phen.any():
+        # a victim with a phenotype: the liver ratio above is relative to a normal metaboliser without the precipitant;
+        # within the phenotype it is that over the genotype effect alone (interact.genotype)
+        liver = liver.copy()
+        liver[:, phen] /= victims.genotype[None, phen]
+        total = gut * liver
     band = band_codes(total, classes)
     action = np.empty(total.shape, dtype=np.int8)
     for j, plan in enumerate(victims.plans):  # one victim's regimens at a time, over all its pairs
-        action[:, j] = choose_regimens(plan, total[:, j], gut[:, j]).action
+        action[:, j] = choose_regimens(plan, exposure[:, j], gut[:, j]).action
     study = (total >= float(rule_set.aucr_inhibition_cutoff.value)) | (total <= float(rule_set.aucr_induction_cutoff.value))
     # per-perpetrator and per-victim bits first, then broadcast once
     e_cols = victims.enzymes
@@ -740,6 +783,7 @@ def evaluate_pairs(
         gut=gut,
         liver=liver,
         total=total,
+        exposure=exposure,
         band=band,
         action=action,
         study=study,
@@ -749,8 +793,12 @@ def evaluate_pairs(
 
 
 def ranking(result: BatchResult, top: int | None = None) -> NDArray[np.int64]:
-    """Flat pair indices (perpetrator x victims + victim), worst first: largest |log AUCR|, ties in table order."""
-    severity = np.abs(np.log(result.total.ravel()))
+    """Flat pair indices (perpetrator x victims + victim), worst first, ties in table order.
+
+    Worst = largest |log exposure vs normal|: the AUC ratio itself for a victim without a phenotype; for one with a
+    phenotype, the combined drug-drug-gene effect (a poor metaboliser's exposure counts even where the interaction is small).
+    """
+    severity = np.abs(np.log(result.exposure.ravel()))
     if top is not None and top < severity.size:
         part = np.argpartition(-severity, top - 1)[:top]
         return part[np.lexsort((part, -severity[part]))]
@@ -781,6 +829,7 @@ def result_rows(result: BatchResult, top: int | None = None) -> Iterator[tuple[s
     per_p = [[_num(x) for x in arr.tolist()] for arr in (p.imax_u_um, p.inlet_um, p.gut_lumen_um, p.enterocyte_um)]
     flag_texts = [_flag_text(k) for k in range(1 << len(FLAGS))]
     flat_gut, flat_liver, flat_total = result.gut.ravel(), result.liver.ravel(), result.total.ravel()
+    flat_exposure = result.exposure.ravel()
     flat_band, flat_study, flat_action, flat_flags = (
         result.band.ravel(),
         result.study.ravel(),
@@ -799,6 +848,8 @@ def result_rows(result: BatchResult, top: int | None = None) -> Iterator[tuple[s
             *([col[i] for i in il] for col in per_p),
             [p.basic[i] for i in il],
             *([_num(x) for x in arr[idx].tolist()] for arr in (flat_gut, flat_liver, flat_total)),
+            [v.phenotype[j] for j in jl],
+            [_num(x) for x in flat_exposure[idx].tolist()],
             [result.band_names[k] for k in flat_band[idx].tolist()],
             ["yes" if x else "no" for x in flat_study[idx].tolist()],
             [ACTIONS[k] for k in flat_action[idx].tolist()],

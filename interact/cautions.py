@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Final
 
-__all__ = ["CAUTIONS", "CAUTION_LINE", "DOSE_CAUTIONS", "INCREASE_CAUTION"]
+__all__ = ["CAUTIONS", "CAUTION_LINE", "DOSE_CAUTIONS", "GENOTYPE_CAUTIONS", "INCREASE_CAUTION"]
 
 CAUTION_LINE: Final = "Model estimate, not clinical advice: the prescriber, the product label and local guidance decide."
 
@@ -12,7 +12,7 @@ CAUTIONS: Final = (
     "These are predictions of static models: screening estimates, not clinical advice.",
     "Dose decisions belong to a licensed prescriber, with the victim drug's product label and local guidance.",
     "Static models can over- or under-predict: nonlinear kinetics, active or inhibitory metabolites not entered, "
-    "transporter-enzyme interplay, genotype (poor metabolisers), disease and time course are not captured.",
+    "transporter-enzyme interplay, genotype (unless phenotypes are stated), disease and time course are not captured.",
     "Values marked 'from memory' in the tables were not verified against the primary text; check them before relying on them.",
 )
 
@@ -27,4 +27,13 @@ DOSE_CAUTIONS: Final = (
 INCREASE_CAUTION: Final = (
     "A predicted fall in exposure suggests a higher dose: risk of exposure-driven toxicity if the perpetrator is stopped "
     "or its effect wanes, and of lost efficacy if the dose is not raised; the label's maximum dose applies."
+)
+
+GENOTYPE_CAUTIONS: Final = (
+    "Genotype-guided dosing needs expert review: phenotype from genotype is uncertain (rare alleles, copy number, "
+    "phenoconversion by other drugs), and the relative activities here are conventions, mostly from memory.",
+    "Follow the pharmacogenetic guideline for the object drug (for example CPIC or DPWG) and its label where they give "
+    "phenotype-specific doses; they outrank this estimate.",
+    "The model assumes each phenotype scales only its own pathway's intrinsic clearance, linear kinetics, and no genotype "
+    "effect in the gut wall.",
 )

@@ -703,11 +703,6 @@ def suggest_dose(
             "The victim is marked narrow therapeutic index: any regimen here is a starting point for therapeutic drug "
             "monitoring, not a substitute for it or for expert review; avoiding the combination may be safer."
         )
-        if plan.boundary_origin.startswith("default"):
-            reasons.append(
-                f"The default boundary {lower:g}-{upper:g} was applied to a narrow-therapeutic-index drug; give the victim's own "
-                "no_effect_boundary (usually narrower) from its label or clinical data."
-            )
     return DoseSuggestion(
         action=ACTIONS[code],
         monitoring=monitoring,

@@ -28,7 +28,7 @@ import pint
 from . import units
 from .dosing import MAX_UNIT_SIZES
 from .errors import InputError, Problem, ScenarioError
-from .tables import load_targets, resolve_target
+from .tables import load_phenotypes, load_targets, resolve_target
 
 __all__ = [
     "MECHANISMS",
@@ -132,6 +132,19 @@ class Pathway:
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
+class PhenotypeChoice:
+    """The object drug's metaboliser phenotype for one polymorphic enzyme (``[[victim.phenotypes]]``).
+
+    ``phenotype`` is a name from the phenotype table or ``"all"`` (every phenotype of the table, one row each);
+    ``activity``, when given, replaces the table's relative activity (the phenotype is then named "given").
+    """
+
+    enzyme: str
+    phenotype: str
+    activity: float | None = None
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
 class Victim:
     """The affected drug.  Pathways not listed (1 - sum of fm) are unaffected."""
 
@@ -152,6 +165,7 @@ class Victim:
     intervals: tuple[Q, ...] = ()
     peak_boundary: tuple[float, float] | None = None
     trough_boundary: tuple[float, float] | None = None
+    phenotypes: tuple[PhenotypeChoice, ...] = ()  # drug-drug-gene interaction (interact.genotype)
     # used by the time course (interact.dynamic) and, for interval changes, by the regimen search:
     half_life: Q | None = None  # elimination half-life without the perpetrator
     hepatic_extraction: float | None = None  # hepatic (blood) extraction ratio without the perpetrator
@@ -679,6 +693,7 @@ class _Reader:
                 f"{path}.pathways",
                 f"fm values sum to {total:.4g}; expected a total of at most 1 (the rest is renal and other routes)",
             )
+        phenotypes = self.phenotypes(data, path, {p.enzyme for p in pathways})
         lower, upper = self.boundary(data, "no_effect_boundary", path) or (None, None)
         peak_boundary = self.boundary(data, "peak_boundary", path)
         trough_boundary = self.boundary(data, "trough_boundary", path)
@@ -700,10 +715,49 @@ class _Reader:
             intervals=intervals,
             peak_boundary=peak_boundary,
             trough_boundary=trough_boundary,
+            phenotypes=phenotypes,
             half_life=v_half_life,
             hepatic_extraction=v_extraction,
             ka=v_ka,
         )
+
+    def phenotypes(self, data: dict[str, Any], path: str, pathway_enzymes: set[str]) -> tuple[PhenotypeChoice, ...]:
+        table = load_phenotypes()
+        out: list[PhenotypeChoice] = []
+        seen: set[str] = set()
+        for i, raw in self.items(data, "phenotypes", path):
+            at = f"{path}.phenotypes[{i}]"
+            pdata = self.table(raw, at, ("enzyme", "phenotype", "activity"))
+            if pdata is None:
+                continue
+            enzyme = self.target_name(pdata, "enzyme", at)
+            if enzyme is None:
+                continue
+            if enzyme not in table:
+                self.fail(f"{at}.enzyme", f'"{enzyme}" has no phenotype table; expected one of {", ".join(table)}')
+                continue
+            if enzyme not in pathway_enzymes:
+                self.fail(f"{at}.enzyme", f'"{enzyme}" is not one of the victim\'s pathways; its phenotype would change nothing')
+                continue
+            if enzyme in seen:
+                self.fail(f"{at}.enzyme", f'"{enzyme}" is listed twice; give one phenotype (or "all") per enzyme')
+                continue
+            seen.add(enzyme)
+            if "activity" in pdata and "phenotype" in pdata:
+                self.fail(f"{at}.activity", "is given with a phenotype; give either a phenotype from the table or your own activity")
+                continue
+            if "activity" in pdata:
+                activity = self.number(pdata, "activity", at, low=0.0, high=10.0, low_open=False)
+                if activity is not None:
+                    out.append(PhenotypeChoice(enzyme=enzyme, phenotype="given", activity=activity))
+                continue
+            names = [p.name for p in table[enzyme]]
+            phenotype = self.text(pdata, "phenotype", at, required=True)
+            if phenotype not in (*names, "all"):
+                self.fail(f"{at}.phenotype", f'"{phenotype[:40]}" is not one of {", ".join(names)} or "all" (or give activity)')
+                continue
+            out.append(PhenotypeChoice(enzyme=enzyme, phenotype=phenotype))
+        return tuple(out)
 
     def physiology(self, raw: object) -> Physiology | None:
         path = "physiology"
@@ -850,6 +904,11 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
     for key in ("peak_boundary", "trough_boundary"):
         if getattr(v, key) is not None:
             vic[key] = list(getattr(v, key))
+    if v.phenotypes:
+        vic["phenotypes"] = [
+            {"enzyme": c.enzyme, "activity": c.activity} if c.activity is not None else {"enzyme": c.enzyme, "phenotype": c.phenotype}
+            for c in v.phenotypes
+        ]
     for key in ("half_life", "hepatic_extraction", "ka"):
         put(vic, key, getattr(v, key))
     vic["pathways"] = [{"enzyme": pw.enzyme, "fm": pw.fm} for pw in v.pathways]

@@ -9,6 +9,7 @@ in a source or recalled from memory.
 
 from __future__ import annotations
 
+import math
 import tomllib
 from dataclasses import dataclass
 from functools import lru_cache
@@ -25,12 +26,14 @@ __all__ = [
     "BindingEquation",
     "Classes",
     "Criterion",
+    "Phenotype",
     "RuleSet",
     "Sourced",
     "Target",
     "Terms",
     "load_binding",
     "load_classes",
+    "load_phenotypes",
     "load_physiology",
     "load_rules",
     "load_targets",
@@ -333,6 +336,37 @@ def load_targets() -> tuple[Target, ...]:
     return tuple(out)
 
 
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Phenotype:
+    """A metaboliser phenotype of a polymorphic enzyme and the relative pathway activity it stands for."""
+
+    enzyme: str
+    name: str
+    score: str  # the activity score or diplotype it stands for, as text
+    activity: Sourced  # intrinsic clearance of the pathway relative to a normal metaboliser
+
+
+@lru_cache(maxsize=1)
+def load_phenotypes() -> dict[str, tuple[Phenotype, ...]]:
+    """Phenotypes per polymorphic enzyme (``reference_tables/phenotypes.toml``), in the table's order."""
+    data = _read(tables_dir() / "phenotypes.toml", "phenotypes")
+    out: dict[str, tuple[Phenotype, ...]] = {}
+    for i, raw in enumerate(data.get("enzyme", [])):
+        at = f"phenotypes.enzyme[{i}]"
+        enzyme = _str(raw, "name", at)
+        rows = []
+        for j, ph in enumerate(raw.get("phenotype", [])):
+            where = f"{at}.phenotype[{j}]"
+            activity = _sourced(ph, "activity", where, number=True)
+            if not (math.isfinite(activity.value) and 0.0 <= activity.value <= 10.0):
+                raise InputError(f"{where}.activity.value", activity.value, "is not a relative activity in [0, 10]")
+            rows.append(Phenotype(enzyme=enzyme, name=_str(ph, "name", where), score=str(ph.get("score", "")), activity=activity))
+        if not any(r.name == "normal" and r.activity.value == 1.0 for r in rows):
+            raise InputError(at, enzyme, "has no normal phenotype with activity 1 (the reference)")
+        out[enzyme] = tuple(rows)
+    return out
+
+
 @lru_cache(maxsize=1)
 def _target_index() -> dict[str, Target]:
     index: dict[str, Target] = {}
@@ -351,7 +385,7 @@ def resolve_target(name: str) -> Target | None:
 def table_versions() -> tuple[tuple[str, str], ...]:
     """Versions of the shipped tables, for provenance."""
     out = {}
-    for name in ("physiology", "classes", "targets"):
+    for name in ("physiology", "classes", "targets", "phenotypes"):
         data = _read(tables_dir() / f"{name}.toml", name)
         out[name] = str(data.get("version", ""))
     return tuple(sorted(out.items()))

@@ -282,11 +282,17 @@ def test_no_strengths_offers_the_exact_dose() -> None:
 
 
 def test_narrow_therapeutic_index_headline_and_default_boundary_warning() -> None:
-    d = suggest_dose(_plan(narrow_therapeutic_index=True, boundary_origin="default 0.8-1.25, ICH M12 5.3.1"), auc_ratio=1.1)
+    d = suggest_dose(_plan(narrow_therapeutic_index=True), auc_ratio=1.1)
     assert d.action == "no change" and d.monitoring and d.headline != "no change"
-    assert any("default boundary" in r for r in d.reasons)
     d = suggest_dose(_plan(narrow_therapeutic_index=True), auc_ratio=2.0)
     assert d.action == "reduce dose" and "therapeutic drug monitoring" in d.headline
+    data = base_dict()
+    data["victim"]["narrow_therapeutic_index"] = True
+    a = assess(scenario_from_dict(data))
+    assert any("default no-effect boundary" in w for w in a.warnings)
+    assert a.dose.headline.startswith(a.dose.action) and "monitoring" in a.dose.headline
+    data["victim"]["no_effect_boundary"] = [0.9, 1.11]
+    assert not any("default no-effect boundary" in w for w in assess(scenario_from_dict(data)).warnings)
 
 
 def test_bad_plans_name_the_field() -> None:

@@ -14,7 +14,7 @@ import pint
 
 from .. import units
 from ..assessment import Assessment
-from ..cautions import CAUTION_LINE
+from ..cautions import CAUTION_LINE, DOSE_CAUTIONS, GENOTYPE_CAUTIONS
 from ..dosing import ACTIONS, DoseSuggestion, RegimenOutcome
 from ..exposure import Setting
 from ..tables import load_physiology, resolve_target
@@ -309,6 +309,9 @@ def assessment_sections(
     )
     sections.append(Section(title="Mechanistic static model", blocks=tuple(blocks)))
 
+    if a.phenotypes:
+        sections.append(phenotype_section(a))
+
     # -- time course (interact.dynamic), when computed
     timing: tuple[str, ...] = ()
     if time_course is not None:
@@ -367,6 +370,44 @@ def user_text(a: Assessment) -> tuple[str, ...]:
     for inh in (*p.inhibits, *(i for m in p.metabolites for i in m.inhibits)):
         items.append(inh.origin)
     return tuple(x for x in items if x)
+
+
+def phenotype_section(a: Assessment) -> Section:
+    """Drug-drug-gene cases: one row per phenotype combination, with its dose advice."""
+    rows = []
+    for c in a.phenotypes:
+        d = c.dose
+        advice = d.headline + (f": {d.chosen.describe(d.dose_unit)}" if d.chosen is not None else "")
+        rows.append(
+            (
+                ", ".join(f"{e} {name} (a = {act:g})" for e, name, act in c.activities) + (", population fm" if c.reference else ""),
+                ", ".join(f"{e} {f:.2g}" for e, f in c.fm),
+                fmt_ratio(c.genotype_ratio),
+                fmt_ratio(c.interaction_ratio),
+                fmt_ratio(c.combined_ratio),
+                advice,
+            )
+        )
+    blocks: list[str | Table | Note] = [
+        Table(
+            headers=("phenotype", "fm in it", "vs normal, alone", "AUCR", "vs normal, with precipitant", "dose advice"),
+            rows=tuple(rows),
+        ),
+        "vs normal = AUC relative to a normal metaboliser on the usual dose without the precipitant (alone: the "
+        "genotype effect; with precipitant: the combined effect the dose advice answers). AUCR = with / without the "
+        "precipitant within the phenotype; a = relative activity of the pathway. fm' = fm x a / "
+        "(sum fm x a + 1 - sum fm): a poor metaboliser of one pathway shifts clearance to the others.",
+        "Assumptions: the given fm values are the normal metaboliser's; a phenotype scales only its own pathway's "
+        "intrinsic clearance by its relative activity a; linear kinetics; no genotype effect in the gut wall.",
+    ]
+    seen = set()
+    for c in a.phenotypes:
+        for (e, name, act), src in zip(c.activities, c.sources, strict=True):
+            if src is not None and (e, name) not in seen:
+                seen.add((e, name))
+                blocks.append(f"- {e} {name}: relative activity {act:g} ({src.status}); {src.source}.")
+    blocks.extend(Note(text=t) for t in (*GENOTYPE_CAUTIONS, DOSE_CAUTIONS[0]))
+    return Section(title="Object drug genotype (drug-drug-gene interaction)", blocks=tuple(blocks))
 
 
 def regimen_table(d: DoseSuggestion, outcomes: tuple[RegimenOutcome, ...]) -> Table:
@@ -551,6 +592,22 @@ def _assessment_dict(a: Assessment) -> dict[str, Any]:
             "reasons": list(d.reasons),
             "cautions": list(d.cautions),
         },
+        "phenotypes": [
+            {
+                "label": c.label,
+                "reference": c.reference,
+                "activities": [{"enzyme": e, "phenotype": n, "activity": act} for e, n, act in c.activities],
+                "fm": dict(c.fm),
+                "exposure_vs_normal_alone": c.genotype_ratio,
+                "auc_ratio_with_precipitant": c.interaction_ratio,
+                "exposure_vs_normal_with_precipitant": c.combined_ratio,
+                "ceiling": _num(c.ceiling),
+                "action": c.dose.action,
+                "headline": c.dose.headline,
+                "suggested": _regimen_json(c.dose.chosen),
+            }
+            for c in a.phenotypes
+        ],
         "perpetrator_dose_limit": {"dose": lim.dose, "unit": lim.dose_unit, "scale": lim.scale, "reason": lim.reason},
         "warnings": list(a.warnings),
         "from_memory": list(a.memory_values),

@@ -122,9 +122,13 @@ _UNIT_AFTER_NUMBER = re.compile(
 )
 
 
+_OPERATOR_BEFORE_NUMBER = re.compile(r"(?<=[<>=]) (?=[-+]?\d)")
+
+
 def keep_together(text: str) -> str:
-    """``text`` with a no-break space between a number and its unit, so that a line never breaks between them."""
-    return _UNIT_AFTER_NUMBER.sub("\u00a0", text)
+    """``text`` with a no-break space between a number and its unit and after a comparison (>= 11), so that a line
+    never breaks between them."""
+    return _OPERATOR_BEFORE_NUMBER.sub("\u00a0", _UNIT_AFTER_NUMBER.sub("\u00a0", text))
 
 
 def list_groups(blocks: tuple[str | Table | Note, ...]) -> Iterator[str | Table | Note | list[str]]:

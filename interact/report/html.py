@@ -71,7 +71,21 @@ def _equations(a: Assessment) -> Section:
         ("AUCR liver", "1 / (sum fm x activity + (1 - sum fm)), [I] = Iin,max,u", "[@fahmi2008]"),
         ("AUCR gut", "1 / (activity x (1 - Fg) + Fg), [I] = I,ent, gut-wall enzyme only", "[@fahmi2008]"),
         ("AUCR", "AUCR gut x AUCR liver", "[@fahmi2008]"),
-        ("dose restoring exposure", "usual dose / AUCR; or interval x AUCR", "linear pharmacokinetics (common practice)"),
+        (
+            "exposure ratio of a regimen",
+            "AUCR x dose / usual dose x usual interval / interval; offered only inside the no-effect boundary",
+            "linear pharmacokinetics (common practice)",
+        ),
+        (
+            "peak and trough of a changed interval",
+            "Cmax = F D / V / (1 - exp(-k tau)), Cmin = Cmax exp(-k tau); F x gut AUCR, k / (AUCR / gut AUCR)",
+            "one-compartment accumulation (common practice)",
+        ),
+        (
+            "exposure vs normal metaboliser",
+            "1 / (sum fm x a x activity + 1 - sum fm), a = phenotype activity",
+            "phenotype-activity static model (common practice)",
+        ),
         ("log-normal from CV", "sigma = sqrt(ln(1 + CV^2)), median = the scenario's value", "standard log-normal moments"),
         (
             "log-normal from a 95% interval",

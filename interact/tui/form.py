@@ -18,7 +18,7 @@ from functools import lru_cache
 from typing import Any, Final
 
 from ..errors import InputError
-from ..tables import load_targets, rule_set_names
+from ..tables import load_phenotypes, load_targets, rule_set_names
 
 __all__ = [
     "MISSING",
@@ -111,6 +111,17 @@ PATHWAYS: Final = ListSpec(
     ),
 )
 
+PHENOTYPES: Final = ListSpec(
+    "phenotypes",
+    "Genotype (phenotype per pathway)",
+    "phenotype",
+    (
+        FieldSpec("enzyme", "Enzyme", "choice:polymorphic", "a polymorphic pathway, e.g. CYP2D6"),
+        FieldSpec("phenotype", "Phenotype", "choice:phenotype", "poor, intermediate, normal, ... or all"),
+        FieldSpec("activity", "Own activity", "number", "instead of a phenotype: relative activity, e.g. 0.3"),
+    ),
+)
+
 _PERPETRATOR: Final = (
     FieldSpec("name", "Name", "text", "e.g. Compound A"),
     Heading("Exposure"),
@@ -145,6 +156,7 @@ _VICTIM: Final = (
     FieldSpec("trough_boundary", "Trough range", "pair", "trough ratios (default: no-effect range)"),
     FieldSpec("narrow_therapeutic_index", "Narrow ther. index", "flag", "yes or no"),
     PATHWAYS,
+    PHENOTYPES,
 )
 
 _SCENARIO: Final = (
@@ -188,6 +200,11 @@ def _choices(name: str) -> tuple[str, ...]:
         return ROUTES
     if name == "rules":
         return rule_set_names()
+    if name in ("polymorphic", "phenotype"):
+        table = load_phenotypes()
+        if name == "polymorphic":
+            return tuple(table)
+        return (*dict.fromkeys(p.name for rows in table.values() for p in rows), "all")
     kinds = ("enzyme",) if name == "enzyme" else ("enzyme", "transporter")
     return tuple(t.name for t in load_targets() if t.kind in kinds)
 

@@ -18,7 +18,7 @@ from ..assessment import Assessment
 from ..cautions import DOSE_CAUTIONS, INCREASE_CAUTION
 from ..report.assessment import assessment_sections
 from ..report.document import Note, Section, Table, cite
-from ..report.numbers import fmt, fmt_ratio
+from ..report.numbers import fmt_ratio
 from ..sources import resolve
 from .doc import Doc
 
@@ -95,12 +95,12 @@ def compare(pinned: Assessment, pinned_data: dict[str, Any], now: Assessment, no
         ("AUC ratio, liver", fmt_ratio(p.liver), fmt_ratio(n.liver), _change(p.liver, n.liver)),
         ("class", p.band.name if p.band else "-", n.band.name if n.band else "-", ""),
         ("complete-inhibition ceiling", fmt_ratio(p.ceiling_total), fmt_ratio(n.ceiling_total), ""),
-        ("suggested action", pinned.dose.action, now.dose.action, ""),
+        ("suggested action", pinned.dose.headline, now.dose.headline, ""),
         (
-            f"suggested dose ({now.dose.dose_unit})",
-            fmt(pinned.dose.chosen_dose),
-            fmt(now.dose.chosen_dose),
-            _change(pinned.dose.chosen_dose, now.dose.chosen_dose),
+            "suggested regimen",
+            pinned.dose.chosen.describe(pinned.dose.dose_unit) if pinned.dose.chosen else "-",
+            now.dose.chosen.describe(now.dose.dose_unit) if now.dose.chosen else "-",
+            "",
         ),
     ]
     old_screen = {(r.target, r.label): r for r in pinned.screen}
@@ -205,6 +205,19 @@ def render_answer(a: Assessment, comparison: Comparison | None = None, *, narrow
         doc.para("No criterion of this rule set applies to the targets given.")
     doc.blank()
 
+    # -- drug-drug-gene cases, when the victim states phenotypes
+    genotype = next((sec for sec in sections if sec.title.startswith("Object drug genotype")), None)
+    if genotype is not None:
+        doc.para((genotype.title, st("heading")))
+        for b in genotype.blocks:
+            if isinstance(b, Table):
+                doc.table(b.headers, [tuple(r) for r in b.rows])
+            elif isinstance(b, Note):
+                doc.para(("Caution: ", st("caution_head")), (b.text, st("caution")))
+            else:
+                doc.para(b, hanging=2)
+        doc.blank()
+
     # -- dose
     dose = _section(sections, "Dose suggestion")
     doc.para((f"Dose of {a.scenario.victim.name}", st("heading")))
@@ -214,6 +227,8 @@ def render_answer(a: Assessment, comparison: Comparison | None = None, *, narrow
                 doc.para((b.text, st("result")))
             elif isinstance(b, str):
                 doc.para(f"- {b}", hanging=2)
+            elif isinstance(b, Table):
+                doc.table(b.headers, [tuple(r) for r in b.rows])
     extra = f" {INCREASE_CAUTION}" if a.dose.action == "increase dose" else ""
     doc.para(("Caution: ", st("caution_head")), (DOSE_CAUTIONS[0] + extra + " (F2: all cautions)", st("caution")))
     doc.blank()

@@ -50,7 +50,7 @@ structure seen in [@guengerich2022], equations from memory with the algebra chec
   study indicated if AUCR >= 1.25 ([@vieira2014]; inferred for the guidance)
 
 Dose (interact/dosing.py; linear pharmacokinetics, common practice)
-  dose restoring the usual exposure = usual dose / AUCR; interval alternative = tau x AUCR
+  exposure of a regimen = AUCR x dose / usual dose x usual tau / tau; only regimens inside the boundary are offered
   act only outside the object drug's no-effect boundary (ICH M12 5.3.1 as quoted in [@bebac-m12], default 0.8-1.25)
   perpetrator dose ceiling: highest dose keeping AUCR <= upper boundary, concentrations
   taken as dose-proportional
