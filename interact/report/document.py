@@ -11,6 +11,7 @@ import re
 import textwrap
 from collections.abc import Iterator
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 from ..sources import cited_keys, full_citation, load_sources, resolve
 from ..tables import Terms
@@ -208,7 +209,9 @@ def _cap(word: str) -> str:
     return word[:1].upper() + word[1:]
 
 
-def _term_patterns(terms: Terms) -> list[tuple[re.Pattern[str], str]]:
+@lru_cache(maxsize=8)
+def _term_pattern(terms: Terms) -> tuple[re.Pattern[str], dict[str, str]]:
+    """One pattern for every older word (longest first) and the replacement of each match, for ``terms``."""
     pairs = (
         ("victim drugs", _plural(terms.object)),
         ("victim drug", terms.object),
@@ -217,17 +220,16 @@ def _term_patterns(terms: Terms) -> list[tuple[re.Pattern[str], str]]:
         ("perpetrators", _plural(terms.precipitant)),
         ("perpetrator", terms.precipitant),
     )
-    out = []
+    table: dict[str, str] = {}
     for old, new in pairs:
-        # the article follows the new word: "a victim" -> "an object drug"
-        article = "an" if new[:1].lower() in "aeiou" else "a"
-        out.append((re.compile(rf"\ba {old}(?![.\w])"), f"{article} {new}"))
-        out.append((re.compile(rf"\bA {old}(?![.\w])"), f"{_cap(article)} {new}"))
-    for old, new in pairs:
-        # not inside a file key (perpetrator.half_life, [victim]): those name what the user typed
-        out.append((re.compile(rf"(?<![\[.\w]){old}(?![.\w])"), new))
-        out.append((re.compile(rf"(?<![\[.\w]){_cap(old)}(?![.\w])"), _cap(new)))
-    return out
+        article = "an" if new[:1].lower() in "aeiou" else "a"  # "a victim" -> "an object drug"
+        table[f"a {old}"] = f"{article} {new}"
+        table[f"A {old}"] = f"{_cap(article)} {new}"
+        table[old] = new
+        table[_cap(old)] = _cap(new)
+    words = "|".join(re.escape(w) for w in sorted(table, key=len, reverse=True))
+    # not inside a file key (perpetrator.half_life, [victim]): those name what the user typed
+    return re.compile(rf"(?<![\[.\w])(?:{words})(?![.\w])"), table
 
 
 def speak(text: str, terms: Terms, protect: tuple[str, ...] = ()) -> str:
@@ -235,12 +237,13 @@ def speak(text: str, terms: Terms, protect: tuple[str, ...] = ()) -> str:
     (what the user typed: title, drug names, notes) exactly as written."""
     if terms.precipitant == "perpetrator" and terms.object == "victim":
         return text
+    if "erpetrator" not in text and "ictim" not in text:
+        return text
+    pattern, table = _term_pattern(terms)
     keep = sorted({p for p in protect if p}, key=len, reverse=True)
     pieces = re.split("(" + "|".join(re.escape(p) for p in keep) + ")", text) if keep else [text]
-    patterns = _term_patterns(terms)
     for i in range(0, len(pieces), 2):  # even pieces lie outside the protected strings
-        for pattern, word in patterns:
-            pieces[i] = pattern.sub(word, pieces[i])
+        pieces[i] = pattern.sub(lambda m: table[m.group(0)], pieces[i])
     return "".join(pieces)
 
 
