@@ -53,6 +53,10 @@ def format_tables(rules: str | None = None, fmt_name: str = "text") -> str:
                         c.multiplier.source,
                     )
                 )
+        if rs.terms.source:
+            rows.append(
+                ("words for the two drugs", f"{rs.terms.precipitant}, {rs.terms.object}", _status(rs.terms.status), rs.terms.source)
+            )
         for item in rs.physiology:
             rows.append((item.name, str(item.value), _status(item.status), item.source))
         sections.append(
