@@ -165,6 +165,19 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
             warnings.append(f"{c.species} on {c.target}: {_UNCOMPETITIVE_NOTE}.")
         if c.fu_inc_origin == "default" and c.kind == "enzyme" and c.ki_u_um is not None:
             warnings.append(f"{c.species} on {c.target}: fu,inc not given; Ki taken as unbound (fu,inc = 1).")
+        shared = [
+            name
+            for name, value, origin in (("KI", c.ki_inact_um, c.ki_inact_fu_origin), ("EC50", c.ec50_um, c.ec50_fu_origin))
+            if value is not None and origin.startswith("fu_inc (given")
+        ]
+        if shared and c.fu_inc != 1.0:
+            corrected = " and ".join(["Ki", *shared] if c.ki_um is not None else shared)
+            warnings.append(
+                f"{c.species} on {c.target}: fu_inc {c.fu_inc:g} corrects {corrected} "
+                f"alike; if {' or '.join(shared)} was measured in another system (hepatocytes) or is already unbound, give "
+                + " / ".join(f"fu_inc_{'ki_inact' if n == 'KI' else 'ec50'}" for n in shared)
+                + " (1 for an unbound value)."
+            )
     for kd in kdeg_used:
         if kd.from_memory:
             warnings.append(

@@ -119,7 +119,11 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
             c["inhibitor"], c["time"], c["activity"], subtract_vehicle=not args.keep_vehicle, weighted=args.weighted
         )
         ok = result.success and math.isfinite(result.ki.value) and result.ki.value > 0
-        values = {"kinact": f"{result.kinact.value:.6g} 1/min", "ki_inact": f"{result.ki.value * fu:.6g} uM"}
+        # the in vitro KI goes in as measured; its binding goes beside it (fu_inc_ki_inact), so nothing is corrected twice
+        values = {"kinact": f"{result.kinact.value:.6g} 1/min", "ki_inact": f"{result.ki.value:.6g} uM"}
+        if args.fu_inc is not None:
+            values["fu_inc_ki_inact"] = float(f"{fu:.6g}")
+        intervals = {"kinact": (result.kinact, "1/min", 1.0), "ki_inact": (result.ki, "uM", 1.0)}
         what = "kinact/KI hyperbola"
     else:
         from .kinetics.induction import fit_induction
@@ -128,7 +132,10 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
         c = data.columns
         result = fit_induction(c["concentration"], c["fold_change"], hill=args.hill)  # type: ignore[assignment]
         ok = result.success and result.ec50.value > 0
-        values = {"emax": float(f"{result.emax.value:.6g}"), "ec50": f"{result.ec50.value * fu:.6g} uM"}  # type: ignore[union-attr]
+        values = {"emax": float(f"{result.emax.value:.6g}"), "ec50": f"{result.ec50.value:.6g} uM"}  # type: ignore[union-attr]
+        if args.fu_inc is not None:
+            values["fu_inc_ec50"] = float(f"{fu:.6g}")
+        intervals = {"emax": (result.emax, "", 1.0), "ec50": (result.ec50, "uM", 1.0)}  # type: ignore[union-attr]
         what = "Emax model" + (" with Hill slope" if args.hill else "")
     _out(format_mechanism_fit(result, path.name, args.format, width=args.width), args.output)
     if args.into:
@@ -136,24 +143,44 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
             raise InputError("--target", None, "is needed with --into: the enzyme, e.g. --target CYP3A")
         if not ok:
             raise InputError("fit", "not usable", "did not converge to finite constants; nothing was written")
+        if getattr(result, "no_effect", ""):
+            raise InputError("--into", args.into, f"was not updated: no induction shown ({result.no_effect})")
         if args.command == "fit-induction" and args.hill and result.hill is not None and abs(result.hill.value - 1) > 0.05:  # type: ignore[union-attr]
             raise InputError(
                 "--hill", "fitted slope", "is not 1; the scenario's induction term assumes h = 1: refit without --hill to carry"
             )
         target = Path(args.into)
-        try:
-            scenario_text = target.read_text(encoding="utf-8")
-        except (OSError, UnicodeDecodeError) as exc:
-            raise InputError(
-                "--into", str(target), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})"
-            ) from None
-        origin = f"{what} fit of {path.name}" + (f", x fu,inc {fu:g}" if args.fu_inc is not None else "") + f", {today}"
-        new = carry_constants_text(scenario_text, target=args.target, values=values, origin=origin, source=str(target))
+        scenario_text = _read_text(args.into, "--into")
+        methods = []
+        for key, (est, unit, factor) in intervals.items():
+            ci = est.interval()
+            if ci is None:
+                continue
+            low, high = ci[0] * factor, ci[1] * factor
+            values[f"{key}_ci"] = [f"{low:.6g} {unit}", f"{high:.6g} {unit}"] if unit else [float(f"{low:.6g}"), float(f"{high:.6g}")]
+            methods.append(f"{key}_ci 95% {ci[2]}")
+        origin = (
+            f"{what} fit of {path.name}"
+            + (f", binding {fu:g} (--fu-inc)" if args.fu_inc is not None else "")
+            + (f"; {', '.join(methods)}" if methods else "")
+            + f", {today}"
+        )
+        new = carry_constants_text(
+            scenario_text,
+            target=args.target,
+            values=values,
+            origin=origin,
+            source=str(target),
+            remove=tuple(f"{key}_ci" for key in intervals),
+        )
         write_text_atomic(target, new)
         shown = ", ".join(f"{k} = {v}" for k, v in values.items())
         sys.stderr.write(f"interact: {target} updated: {args.target} {shown}; origin recorded\n")
         if args.fu_inc is None:
-            sys.stderr.write("interact: no --fu-inc given: the fitted constant is written as if unbound\n")
+            own = "fu_inc_ki_inact" if args.command == "fit-tdi" else "fu_inc_ec50"
+            sys.stderr.write(
+                f"interact: no --fu-inc given: the entry's {own}, else its fu_inc, else 1 (unbound) corrects the fitted constant\n"
+            )
     return 0
 
 
@@ -344,7 +371,7 @@ def _cmd_report(args: argparse.Namespace) -> int:
     from .assessment import assess
     from .report.html import render_report_html, render_report_markdown, report_parts
     from .scenario import loads_scenario
-    from .uncertainty import run_uncertainty, sensitivity
+    from .uncertainty import ScenarioModel, run_uncertainty, scenario_intervals, sensitivity
 
     path = Path(args.scenario)
     try:
@@ -355,7 +382,7 @@ def _cmd_report(args: argparse.Namespace) -> int:
     result = assess(loads_scenario(text, source=str(path)), rules=args.rules)
     spec, vary = _uncertainty_spec(args)
     spread = None
-    if vary:
+    if vary or scenario_intervals(ScenarioModel(result)):  # intervals the scenario carries (ki_ci ...) count too
         spread = run_uncertainty(
             result,
             vary,
@@ -438,7 +465,8 @@ def _parser() -> argparse.ArgumentParser:
             type=float,
             default=None,
             metavar="FU",
-            help="unbound fraction in the incubation: the carried KI or EC50 is multiplied by it",
+            help="unbound fraction in the incubation: written beside the carried KI (fu_inc_ki_inact) or EC50 (fu_inc_ec50), "
+            "which the assessment multiplies by it",
         )
         if name == "fit-tdi":
             p.add_argument("--keep-vehicle", action="store_true", help="do not subtract the vehicle (0 uM) loss of activity")
@@ -479,7 +507,8 @@ def _parser() -> argparse.ArgumentParser:
         action="append",
         metavar="PATH=SPEC",
         help="an input's distribution, e.g. perpetrator.inhibits[0].ki=cv:30%% or "
-        "perpetrator.cmax=ci:1.2 uM,2.5 uM or victim.pathways[0].fm=uniform:0.6,0.9 (repeatable)",
+        "perpetrator.cmax=ci:1.2 uM,2.5 uM or victim.pathways[0].fm=uniform:0.6,0.9 (repeatable). Intervals the scenario "
+        "carries (ki_ci and the like, written by fit --into) are used as 95%% ranges unless declared here",
     )
     p.add_argument("--spec", metavar="FILE.toml", help='a file with a [vary] table of "PATH" = "SPEC" and an optional [sampling] table')
     p.add_argument("--samples", type=int, metavar="N", help="number of samples (default 10000)")
@@ -557,11 +586,13 @@ def _cmd_fit(args: argparse.Namespace) -> int:
     from .report.fit import format_comparison
 
     data = read_incubation_csv(
-        path, substrate_unit=args.substrate_unit, inhibitor_unit=args.inhibitor_unit, velocity_unit=args.velocity_unit
+        path,
+        substrate_unit=args.substrate_unit,
+        inhibitor_unit=args.inhibitor_unit,
+        velocity_unit=args.velocity_unit,
+        require_inhibitor="inhibitor" in header,  # substrate and velocity only: a plain Michaelis-Menten fit
     )
     models = tuple(m.strip() for m in args.models.split(",") if m.strip()) if args.models else MODELS
-    if "none" not in models:
-        models = ("none", *models)
     comp = fit_inhibition(data, models=models, weights=args.weights, level=args.level)
     unbound = None
     ki = comp.ki
@@ -582,16 +613,55 @@ def _cmd_fit(args: argparse.Namespace) -> int:
     _out(format_comparison(comp, args.format, width=args.width, unbound=unbound, binding=binding, plots=plots_text), args.output)
     if args.plot:
         sys.stderr.write(f"interact: diagnostic plots written to {args.plot}\n")
-    if args.into:
+    if args.into and comp.models == ("none",) and not any(x > 0 for x in data.inhibitor_um):
+        _write_km_into(args, comp, path.name, today)
+    elif args.into:
         if ki is None or comp.verdict.mechanism is None:
-            raise InputError("--into", args.into, "was not updated: the data show no inhibition, so there is no Ki to carry")
+            raise InputError("--into", args.into, f"was not updated: there is no Ki to carry. {comp.verdict.text}")
         if not math.isfinite(ki.value):
             raise InputError("--into", args.into, f"was not updated: {ki.name} is unbounded")
-        origin = f"fit of {path.name}, {comp.verdict.mechanism} model ({args.weights} weights), {today}"
-        _write_into(args, ki.value, comp.verdict.mechanism, comp.alpha, fu_inc, origin)
+        ci = ki.interval()
+        method = f"; ki_ci {comp.level:.0%} {ci[2]}" if ci is not None else ""
+        origin = f"fit of {path.name}, {comp.verdict.mechanism} model ({_weights_label(comp)}){method}, {today}"
+        _write_into(args, ki.value, comp.verdict.mechanism, comp.alpha, fu_inc, origin, ci[:2] if ci is not None else None)
         if not ki.identifiable:
             sys.stderr.write(f"interact: caution: {ki.name} is poorly determined by these data ({ki.note}); check it first\n")
     return 0
+
+
+def _weights_label(comp: Any) -> str:
+    e = comp.error_model
+    if e is None:
+        return f"{comp.weights} weights"
+    return f"{e.name} error model" + (f", theta {e.exponent:.2f}" if e.name == "power" else "")
+
+
+def _write_km_into(args: argparse.Namespace, comp: Any, data_name: str, today: str) -> None:
+    """Carry the Km of a plain Michaelis-Menten fit into the target's entry (for its Cheng-Prusoff conversion)."""
+    from .kinetics.carry import carry_constants_text
+    from .scenario import write_text_atomic
+
+    if not args.target:
+        raise InputError("--target", None, "is needed with --into: the enzyme whose Cheng-Prusoff conversion uses this Km, e.g. CYP3A")
+    fit = comp.fit("none")
+    km = fit.estimate("Km")
+    if not comp.data.substrate_is_molar:
+        raise InputError(
+            "--into", args.into, f"was not updated: Km is in {comp.data.substrate_unit}, and a scenario needs a molar Km (e.g. uM)"
+        )
+    if not (fit.success and km.identifiable and math.isfinite(km.value) and km.value > 0):
+        raise InputError("--into", args.into, f"was not updated: Km is not determined by these data ({km.note or fit.message})")
+    target = Path(args.into)
+    text = _read_text(args.into, "--into")
+    values: dict[str, object] = {"km": f"{km.value:.6g} uM"}
+    method = ""
+    if km.profile_low is not None and km.profile_high is not None and math.isfinite(km.profile_high):
+        values["km_ci"] = [f"{km.profile_low:.6g} uM", f"{km.profile_high:.6g} uM"]
+        method = f"; km_ci {comp.level:.0%} profile likelihood"
+    origin = f"Michaelis-Menten fit of {data_name} ({_weights_label(comp)}){method}, {today}"
+    new = carry_constants_text(text, target=args.target, values=values, origin=origin, source=str(target), remove=("km_ci",))
+    write_text_atomic(target, new)
+    sys.stderr.write(f"interact: {target} updated: {args.target} km = {km.value:.4g} uM; origin recorded\n")
 
 
 def _fit_binding(args: argparse.Namespace) -> tuple[float | None, str, BindingPrediction | None]:
@@ -629,19 +699,32 @@ def _fit_binding(args: argparse.Namespace) -> tuple[float | None, str, BindingPr
     return pred.fu_inc, f"predicted, {pred.title} ({pred.status})", pred
 
 
-def _write_into(args: argparse.Namespace, ki_um: float, mechanism: str, alpha: float | None, fu_inc: float | None, origin: str) -> None:
+def _write_into(
+    args: argparse.Namespace,
+    ki_um: float,
+    mechanism: str,
+    alpha: float | None,
+    fu_inc: float | None,
+    origin: str,
+    ki_ci_um: tuple[float, float] | None = None,
+) -> None:
     from .kinetics.scenario_update import update_inhibition_text
     from .scenario import write_text_atomic
 
     if not args.target:
         raise InputError("--target", None, "is needed with --into: the enzyme the Ki belongs to, e.g. --target CYP3A")
     target = Path(args.into)
-    try:
-        text = target.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError("--into", str(target), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+    text = _read_text(args.into, "--into")
     new = update_inhibition_text(
-        text, target=args.target, ki_um=ki_um, mechanism=mechanism, origin=origin, alpha=alpha, fu_inc=fu_inc, source=str(target)
+        text,
+        target=args.target,
+        ki_um=ki_um,
+        mechanism=mechanism,
+        origin=origin,
+        alpha=alpha,
+        fu_inc=fu_inc,
+        ki_ci_um=ki_ci_um,
+        source=str(target),
     )
     write_text_atomic(target, new)
     sys.stderr.write(f"interact: {target} updated: {args.target} ki = {ki_um:.4g} uM ({mechanism}); origin recorded\n")
@@ -657,13 +740,13 @@ def _cmd_fit_ic50(args: argparse.Namespace, path: Path, today: str, fu_inc: floa
         data.inhibitor_um,
         data.response,
         bottom=args.bottom,
-        weights=args.weights,
+        weights="none" if args.weights == "auto" else args.weights,
         level=args.level,
         response_unit=data.response_unit,
         source=data.source,
     )
     ki = None
-    if args.mechanism:
+    if args.mechanism and not result.no_decline:
         s = units_um(args.substrate_conc, "--substrate-conc") if args.substrate_conc else None
         km = units_um(args.km, "--km") if args.km else None
         ki = ki_from_ic50_fit(result, args.mechanism, substrate_um=s, km_um=km, alpha=args.alpha)
@@ -674,10 +757,16 @@ def _cmd_fit_ic50(args: argparse.Namespace, path: Path, today: str, fu_inc: floa
         unbound = unbound_constant("Ki", ki.ki_um, ki.low_um, ki.high_um, fu_inc, interval="from the IC50 interval", fu_origin=fu_origin)
     _out(format_ic50(result, ki, args.format, width=args.width, unbound=unbound), args.output)
     if args.into:
+        if result.no_decline:
+            raise InputError("--into", args.into, f"was not updated: {result.no_decline}")
         if ki is None:
             raise InputError("--mechanism", None, "is needed with --into for an IC50 curve (the Cheng-Prusoff conversion depends on it)")
-        origin = f"Cheng-Prusoff from {result.fit.model} IC50 fit of {path.name}, {ki.mechanism}, {today}"
-        _write_into(args, ki.ki_um, ki.mechanism, ki.alpha, fu_inc, origin)
+        ci = (ki.low_um, ki.high_um) if ki.low_um is not None and ki.high_um is not None else None
+        ok = ci is not None and 0 < ci[0] <= ki.ki_um <= ci[1] < math.inf
+        kind = "profile" if result.fit.estimate("IC50").profile_low is not None else "asymptotic"
+        method = f"; ki_ci {args.level:.0%} from the IC50 {kind} interval"
+        origin = f"Cheng-Prusoff from {result.fit.model} IC50 fit of {path.name}, {ki.mechanism}{method if ok else ''}, {today}"
+        _write_into(args, ki.ki_um, ki.mechanism, ki.alpha, fu_inc, origin, ci if ok else None)
     return 0
 
 
@@ -702,9 +791,20 @@ def _add_fit_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[t
     p.add_argument("--inhibitor-unit", metavar="UNIT", help="unit of the inhibitor column when the header does not say (e.g. uM)")
     p.add_argument("--velocity-unit", metavar="UNIT", help="unit of the velocity column (a label, e.g. pmol/min/mg)")
     p.add_argument(
-        "--models", metavar="LIST", help="comma-separated subset of competitive,noncompetitive,uncompetitive,mixed (default: all)"
+        "--models",
+        metavar="LIST",
+        help="comma-separated subset of none,competitive,noncompetitive,uncompetitive,mixed (default: all; none, the model "
+        "without inhibition, is always fitted because inhibition is reported only when it is rejected). A file with one "
+        "inhibitor level, or no inhibitor column, gets a plain Michaelis-Menten fit (Km, Vmax)",
     )
-    p.add_argument("--weights", choices=("none", "1/y", "1/y2", "poisson"), default="none", help="weighting (default: none)")
+    p.add_argument(
+        "--weights",
+        choices=("auto", "none", "1/y", "1/y2", "poisson"),
+        default="auto",
+        help="auto (default): choose the error model (constant, proportional or power variance) by likelihood and weight "
+        "by it; or force a scheme: none (constant variance), 1/y, 1/y2 (constant relative error), poisson. An IC50 "
+        "curve is fitted unweighted under auto",
+    )
     p.add_argument("--level", type=float, default=0.95, help="confidence level (default 0.95)")
     p.add_argument("--format", choices=FORMATS, default="text", help="output format (default: text)")
     p.add_argument("--width", type=int, default=100, help="text width (default: 100)")

@@ -42,6 +42,15 @@ class Constant:
     calibration: float = 1.0
     calibration_origin: str = "default"
     origin: str = ""
+    #: in vitro KI and EC50 (uM), the binding applied to each (fraction unbound) and where it comes from
+    ki_inact_um: float | None = None
+    ki_inact_fu: float = 1.0
+    ki_inact_fu_origin: str = ""
+    ec50_um: float | None = None
+    ec50_fu: float = 1.0
+    ec50_fu_origin: str = ""
+    #: the in vitro Ki's interval (uM) when the scenario gives ``ki_ci`` beside ``ki``
+    ki_ci_um: tuple[float, float] | None = None
 
 
 def _one(item: Inhibition, species: str, index: int, mw: pint.Quantity | None, path: str) -> Constant:
@@ -69,9 +78,18 @@ def _one(item: Inhibition, species: str, index: int, mw: pint.Quantity | None, p
                 + (f", alpha {item.alpha:g}" if item.mechanism == "mixed" else "")
                 + f" ({CHENG_PRUSOFF_SOURCE})"
             )
+    ki_ci = None
+    if item.ki is not None and item.ki_ci is not None:
+        ki_ci = (
+            units.concentration_um(item.ki_ci[0], mw, field=f"{path}.ki_ci"),
+            units.concentration_um(item.ki_ci[1], mw, field=f"{path}.ki_ci"),
+        )
     kinact = units.magnitude(item.kinact, "1/h") if item.kinact is not None else None
     ki_inact = units.concentration_um(item.ki_inact, mw, field=f"{path}.ki_inact") if item.ki_inact is not None else None
     ec50 = units.concentration_um(item.ec50, mw, field=f"{path}.ec50") if item.ec50 is not None else None
+    shared = "fu_inc (given, shared with Ki)" if item.fu_inc is not None else "fu_inc (default)"
+    fu_kinact = item.fu_inc_ki_inact if item.fu_inc_ki_inact is not None else fu
+    fu_ec50 = item.fu_inc_ec50 if item.fu_inc_ec50 is not None else fu
     return Constant(
         species=species,
         species_index=index,
@@ -86,12 +104,19 @@ def _one(item: Inhibition, species: str, index: int, mw: pint.Quantity | None, p
         fu_inc_origin="given" if item.fu_inc is not None else "default",
         mechanism=item.mechanism,
         kinact_per_h=kinact,
-        ki_inact_u_um=ki_inact,
+        ki_inact_u_um=None if ki_inact is None else ki_inact * fu_kinact,
         emax=item.emax,
-        ec50_u_um=ec50,
+        ec50_u_um=None if ec50 is None else ec50 * fu_ec50,
         calibration=1.0 if item.calibration is None else item.calibration,
         calibration_origin="default" if item.calibration is None else "given",
         origin=item.origin,
+        ki_ci_um=ki_ci,
+        ki_inact_um=ki_inact,
+        ki_inact_fu=fu_kinact,
+        ki_inact_fu_origin="fu_inc_ki_inact (given)" if item.fu_inc_ki_inact is not None else shared,
+        ec50_um=ec50,
+        ec50_fu=fu_ec50,
+        ec50_fu_origin="fu_inc_ec50 (given)" if item.fu_inc_ec50 is not None else shared,
     )
 
 

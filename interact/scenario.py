@@ -31,6 +31,7 @@ from .errors import InputError, Problem, ScenarioError
 from .tables import load_phenotypes, load_targets, resolve_target
 
 __all__ = [
+    "INTERVAL_KEYS",
     "MECHANISMS",
     "Inhibition",
     "Metabolite",
@@ -69,8 +70,10 @@ class Inhibition:
     constant to its unbound value (Ki,u = Ki x fu,inc).  For transporters the
     IC50 (or Ki) is used as the inhibition constant, as guidance does.
 
-    Time-dependent inhibition (``kinact``, ``ki_inact`` = KI, unbound) and
-    induction (``emax``, ``ec50`` unbound, ``calibration`` = d) are optional.
+    Time-dependent inhibition (``kinact``, ``ki_inact`` = KI) and induction
+    (``emax``, ``ec50``, ``calibration`` = d) are optional.  ``fu_inc`` corrects
+    Ki, KI and EC50 alike unless ``fu_inc_ki_inact`` or ``fu_inc_ec50`` gives a
+    constant its own binding (1 for a constant already unbound).
     """
 
     target: str
@@ -87,6 +90,31 @@ class Inhibition:
     ec50: Q | None = None
     calibration: float | None = None
     origin: str = ""
+    #: separate binding for KI and EC50 (e.g. hepatocyte fu for EC50); without them ``fu_inc`` applies to every constant
+    fu_inc_ki_inact: float | None = None
+    fu_inc_ec50: float | None = None
+    #: 95 % intervals carried from a fit (``ki_ci = ["63.3 uM", "82.3 uM"]``); the uncertainty command uses them
+    ki_ci: tuple[Q, Q] | None = None
+    km_ci: tuple[Q, Q] | None = None
+    kinact_ci: tuple[Q, Q] | None = None
+    ki_inact_ci: tuple[Q, Q] | None = None
+    emax_ci: tuple[float, float] | None = None
+    ec50_ci: tuple[Q, Q] | None = None
+
+    def interval(self, key: str) -> tuple[Any, Any] | None:
+        """The interval given for constant ``key`` (``ki``, ``km``, ``kinact``, ``ki_inact``, ``emax``, ``ec50``), or None."""
+        return getattr(self, f"{key}_ci", None) if key in INTERVAL_KEYS else None
+
+
+#: constants that may carry an interval (``<key>_ci``) and the kind of unit each takes
+INTERVAL_KEYS: Final = {
+    "ki": "concentration",
+    "km": "concentration",
+    "kinact": "rate",
+    "ki_inact": "concentration",
+    "emax": "",
+    "ec50": "concentration",
+}
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -470,6 +498,16 @@ class _Reader:
         ec50 = self.quantity(data, "ec50", path, "concentration")
         calibration = self.number(data, "calibration", path, low=0.0, high=10.0, low_open=False)
         origin = self.text(data, "origin", path)
+        own_fu: dict[str, float | None] = {}
+        for fu_key, constant in (("fu_inc_ki_inact", "ki_inact"), ("fu_inc_ec50", "ec50")):
+            fu_val = self.fraction(data, fu_key, path)
+            if fu_val is not None:
+                self.attempt(f"{path}.{fu_key}", lambda v=fu_val, k=fu_key: units.check_fraction_size(v, f"{path}.{k}", v))  # type: ignore[misc]
+                if constant not in data:
+                    self.fail(f"{path}.{fu_key}", f"is given without {constant}; expected it beside the constant it corrects")
+            own_fu[fu_key] = fu_val
+        points = {"ki": ki, "km": km, "kinact": kinact, "ki_inact": ki_inact, "emax": emax, "ec50": ec50}
+        cis = {key: self.interval(data, key, path, kind, points[key]) for key, kind in INTERVAL_KEYS.items()}
         has_reversible = ki is not None or ic50 is not None
         if "ki" in data and "ic50" in data:
             self.fail(path, "gives both ki and ic50; expected one of them")
@@ -523,7 +561,56 @@ class _Reader:
             ec50=ec50,
             calibration=calibration,
             origin=origin,
+            ki_ci=cis["ki"],
+            km_ci=cis["km"],
+            kinact_ci=cis["kinact"],
+            ki_inact_ci=cis["ki_inact"],
+            emax_ci=cis["emax"],
+            ec50_ci=cis["ec50"],
+            fu_inc_ki_inact=own_fu["fu_inc_ki_inact"],
+            fu_inc_ec50=own_fu["fu_inc_ec50"],
         )
+
+    def interval(self, data: dict[str, Any], key: str, path: str, kind: str, point: Any) -> Any:
+        """``<key>_ci``: two values, lower <= upper, above zero, around the point value when both are given."""
+        name = f"{key}_ci"
+        full = f"{path}.{name}"
+        if name not in data:
+            return None
+        raw = data[name]
+        if not isinstance(raw, list) or len(raw) != 2:
+            self.fail(full, f'{_brief(raw)} is not a list of two values; expected e.g. ["63.3 uM", "82.3 uM"]')
+            return None
+        if point is None and key not in data:
+            self.fail(full, f"is given without {key}; expected the interval beside the constant it belongs to")
+            return None
+        ends: list[Any]
+        if kind:
+            ends = [self.attempt(full, lambda v=v: units.parse(v, kind, field=full)) for v in raw]  # type: ignore[misc]
+        else:
+            ends = []
+            for v in raw:
+                if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v) or v < 0:
+                    self.fail(full, f"{_brief(v)} is not a finite number of at least 0")
+                    return None
+                ends.append(float(v))
+        if any(e is None for e in ends):
+            return None
+        lo: Any = ends[0]
+        hi: Any = ends[1]
+        try:
+            ref = point.units if kind and point is not None else (lo.units if kind else None)
+            lo_v, hi_v = (lo.to(ref).magnitude, hi.to(ref).magnitude) if kind else (lo, hi)
+            pt = point.to(ref).magnitude if kind and point is not None else point
+        except pint.errors.DimensionalityError:  # mass vs molar: needs the molar mass, checked where it is converted
+            return (lo, hi)
+        if not (0 < lo_v <= hi_v):
+            self.fail(full, f"{_brief(raw)} is not an interval with 0 < lower <= upper")
+            return None
+        if pt is not None and not (lo_v * (1 - 1e-9) <= pt <= hi_v * (1 + 1e-9)):
+            self.fail(full, f"{_brief(raw)} does not contain {key} = {_brief(data.get(key))}; expected an interval around the value")
+            return None
+        return (lo, hi)
 
     def inhibitions(self, data: dict[str, Any], path: str, molar_mass: Q | None) -> tuple[Inhibition, ...]:
         out = []
@@ -850,6 +937,8 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
             return
         if isinstance(value, pint.Quantity):
             out[key] = units.format_quantity(value)
+        elif isinstance(value, tuple):
+            out[key] = [units.format_quantity(v) if isinstance(v, pint.Quantity) else v for v in value]
         else:
             out[key] = value
 

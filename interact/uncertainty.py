@@ -53,7 +53,7 @@ from .errors import InputError
 from .exposure import enterocyte_um, unbound_cmax_um, unbound_inlet_um
 from .kinetics.conversion import ki_from_ic50
 from .prediction import gut_ratio, inactivation_term, induction_term, liver_ratio, reversible_term
-from .scenario import Inhibition
+from .scenario import INTERVAL_KEYS, Inhibition
 from .tables import load_classes, resolve_target
 
 __all__ = [
@@ -74,6 +74,7 @@ __all__ = [
     "parse_distribution",
     "parse_vary",
     "run_uncertainty",
+    "scenario_intervals",
     "sensitivity",
     "tornado",
 ]
@@ -271,6 +272,8 @@ class _Const:
     emax: str | None
     ec50: str | None
     calibration: str
+    ki_inact_fu: str = ""  # path of the binding applied to KI (its own, or the shared fu_inc)
+    ec50_fu: str = ""
 
 
 def _inhibition_items(scenario: Any) -> list[tuple[str, Inhibition, pint.Quantity | None]]:
@@ -371,6 +374,9 @@ class ScenarioModel:
                         )
                         km = units.concentration_um(item.km, mw, field=f"{prefix}.km") if item.km else None
                         route = (item.mechanism, sub, km, item.alpha)
+            fu_path = add(f"{prefix}.fu_inc", f"fu,inc of {who}", "", "fraction", c.fu_inc)
+            own_ki_inact = item.fu_inc_ki_inact is not None and c.ki_inact_um is not None
+            own_ec50 = item.fu_inc_ec50 is not None and c.ec50_um is not None
             self._consts.append(
                 _Const(
                     prefix=prefix,
@@ -379,17 +385,19 @@ class ScenarioModel:
                     target=c.target,
                     ki=ki_path,
                     ic50_route=route,
-                    fu_inc=add(f"{prefix}.fu_inc", f"fu,inc of {who}", "", "fraction", c.fu_inc),
+                    fu_inc=fu_path,
                     kinact=add(f"{prefix}.kinact", f"kinact of {who}", "1/h", "rate", c.kinact_per_h)
                     if c.kinact_per_h is not None
                     else None,
-                    ki_inact=add(f"{prefix}.ki_inact", f"KI of {who}", "uM", "concentration", c.ki_inact_u_um, mw)
-                    if c.ki_inact_u_um is not None
+                    ki_inact=add(f"{prefix}.ki_inact", f"KI of {who}", "uM", "concentration", c.ki_inact_um, mw)
+                    if c.ki_inact_um is not None
                     else None,
+                    ki_inact_fu=add(f"{prefix}.fu_inc_ki_inact", f"binding of KI of {who}", "", "fraction", c.ki_inact_fu)
+                    if own_ki_inact
+                    else fu_path,
                     emax=add(f"{prefix}.emax", f"Emax of {who}", "", "number", c.emax) if c.emax is not None else None,
-                    ec50=add(f"{prefix}.ec50", f"EC50 of {who}", "uM", "concentration", c.ec50_u_um, mw)
-                    if c.ec50_u_um is not None
-                    else None,
+                    ec50=add(f"{prefix}.ec50", f"EC50 of {who}", "uM", "concentration", c.ec50_um, mw) if c.ec50_um is not None else None,
+                    ec50_fu=add(f"{prefix}.fu_inc_ec50", f"binding of EC50 of {who}", "", "fraction", c.ec50_fu) if own_ec50 else fu_path,
                     calibration=add(f"{prefix}.calibration", f"Induction calibration d of {who}", "", "number", c.calibration)
                     if c.emax is not None
                     else f"{prefix}.calibration",
@@ -496,10 +504,10 @@ class ScenarioModel:
                 if k_u is not None:
                     ratio = ratio + conc / k_u
                 if c.kinact is not None and c.ki_inact is not None:
-                    kobs = kobs + get(c.kinact) * conc / (get(c.ki_inact) + conc)
+                    kobs = kobs + get(c.kinact) * conc / (get(c.ki_inact) * get(c.ki_inact_fu) + conc)
                     tdi = True
                 if c.emax is not None and c.ec50 is not None:
-                    effect = effect + get(c.calibration) * get(c.emax) * conc / (get(c.ec50) + conc)
+                    effect = effect + get(c.calibration) * get(c.emax) * conc / (get(c.ec50) * get(c.ec50_fu) + conc)
             act = reversible_term(ratio)
             if tdi and kdeg_path is not None:
                 act = act * np.where(np.equal(kobs, 0.0), 1.0, inactivation_term(kobs, get(kdeg_path)))
@@ -638,7 +646,36 @@ class UncertaintyResult:
 PERCENTS: Final = (5.0, 50.0, 95.0)
 
 
-def _resolve(model: ScenarioModel, vary: Sequence[tuple[str, str]]) -> list[tuple[Input, Distribution]]:
+def scenario_intervals(model: ScenarioModel) -> list[tuple[Input, Distribution]]:
+    """Distributions from the intervals the scenario carries (``ki_ci`` and the like, written by ``fit --into``).
+
+    Each becomes a log-normal with the interval as its 95 % range (:func:`interval_distribution`), in the
+    input's canonical unit; only inputs that can move the AUC ratio are included.
+    """
+    relevant = {i.path for i in model.inputs(relevant_only=True)}
+    out = []
+    for prefix, item, mw in _inhibition_items(model.assessment.scenario):
+        for key, kind in INTERVAL_KEYS.items():
+            ci = item.interval(key)
+            path = f"{prefix}.{key}"
+            if ci is None or path not in relevant:
+                continue
+            inp = model.input(path)
+            field = f"{prefix}.{key}_ci"
+            if kind == "concentration":
+                lo, hi = (units.concentration_um(q, mw, field=field) for q in ci)
+            elif kind:
+                lo, hi = (units.magnitude(q, inp.unit) for q in ci)
+            else:
+                lo, hi = float(ci[0]), float(ci[1])
+            out.append(
+                (inp, interval_distribution(lo, hi, text=f"ci:{lo:.4g},{hi:.4g} {inp.unit} (from {key}_ci in the scenario)".strip()))
+            )
+    return out
+
+
+def _resolve(model: ScenarioModel, vary: Sequence[tuple[str, str]], use_intervals: bool = True) -> list[tuple[Input, Distribution]]:
+    """Declared distributions, then (``use_intervals``) the scenario's own intervals for inputs not declared."""
     out = []
     seen: set[str] = set()
     for path, spec in vary:
@@ -647,6 +684,8 @@ def _resolve(model: ScenarioModel, vary: Sequence[tuple[str, str]]) -> list[tupl
             raise InputError("vary", path, "is declared twice; give one distribution per input")
         seen.add(path)
         out.append((inp, parse_distribution(spec, inp)))
+    if use_intervals:
+        out.extend((inp, dist) for inp, dist in scenario_intervals(model) if inp.path not in seen)
     return out
 
 
@@ -673,6 +712,7 @@ def run_uncertainty(
     samples: int = 10_000,
     seed: int = 0,
     method: str = "lhs",
+    use_intervals: bool = True,
 ) -> UncertaintyResult:
     """Sample the declared inputs and summarise the AUC ratio.
 
@@ -688,6 +728,9 @@ def run_uncertainty(
         Seed of the numpy Generator; the same seed gives the same numbers.
     method
         ``mc`` (independent draws) or ``lhs`` (Latin hypercube, scipy.stats.qmc).
+    use_intervals
+        Also vary every constant whose interval the scenario gives (``ki_ci`` ...), as a log-normal
+        with that 95 % range, unless ``vary`` declares a distribution for it (declared ones win).
     """
     if method not in METHODS:
         raise InputError("method", method, f"is not one of {', '.join(METHODS)}")
@@ -696,9 +739,11 @@ def run_uncertainty(
     if isinstance(seed, bool) or not isinstance(seed, int) or seed < 0:
         raise InputError("seed", seed, "is not a whole number of at least 0")
     model = ScenarioModel(assessment)
-    pairs = _resolve(model, vary)
+    pairs = _resolve(model, vary, use_intervals)
     if not pairs:
-        raise InputError("vary", "nothing", "declares no uncertain input; give --vary PATH=SPEC or a --spec file")
+        raise InputError(
+            "vary", "nothing", "declares no uncertain input and the scenario carries no interval; give --vary PATH=SPEC or a --spec file"
+        )
     drawn = _draw(pairs, samples, method, seed)
     adjusted: dict[str, int] = {}
     for inp, dist in pairs:

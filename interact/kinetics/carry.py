@@ -29,7 +29,7 @@ import tomlkit
 from .. import units
 from ..errors import InputError
 from ..scenario import loads_scenario
-from .scenario_update import inhibition_entry
+from .scenario_update import inhibition_entry, set_keeping_history
 
 __all__ = ["ColumnData", "carry_constants_text", "parse_fold_change_csv", "parse_preincubation_csv"]
 
@@ -112,29 +112,29 @@ def parse_fold_change_csv(text: str, *, source: str = "data") -> ColumnData:
     )
 
 
-def _shown(value: Any) -> str:
-    return f'"{value}"' if isinstance(value, str) else tomlkit.item(value).as_string()
-
-
-def carry_constants_text(text: str, *, target: str, values: dict[str, Any], origin: str, source: str = "scenario") -> str:
+def carry_constants_text(
+    text: str, *, target: str, values: dict[str, Any], origin: str, source: str = "scenario", remove: tuple[str, ...] = ()
+) -> str:
     """The scenario text with ``values`` (e.g. kinact, ki_inact) set on the target's inhibition entry.
 
     The entry is created when absent.  Every replaced value is kept in a
     comment beside the new one; ``origin`` records where the numbers came
-    from.  Raises :class:`InputError` for unreadable TOML, an unknown target or
+    from.  Keys in ``remove`` that ``values`` does not set (an older fit's interval) are deleted and
+    recorded in a comment.  Raises :class:`InputError` for unreadable TOML, an unknown target or
     an update that would make the scenario invalid.
     """
     doc, entry, _ = inhibition_entry(text, target=target, source=source)
+    stamp = origin.split(",")[-1].strip() if "," in origin else "fit"
+    removed = []
+    for key in remove:
+        if key in entry and key not in values:
+            old = entry[key]
+            removed.append(f"{key} = {old.as_string().strip() if hasattr(old, 'as_string') else old}")
+            del entry[key]
     for key, value in (*values.items(), ("origin", origin)):
-        old = entry.get(key)
-        old_comment = old.trivia.comment.lstrip("#").strip() if old is not None and hasattr(old, "trivia") else ""
-        entry[key] = value
-        if old is not None:
-            shown = _shown(old.unwrap() if hasattr(old, "unwrap") else old)
-            if shown != _shown(value):
-                # nothing the user wrote is lost: the old value and its comment stay beside the new one
-                entry[key].trivia.comment = f"# was {shown}" + (f"; {old_comment}" if old_comment else "")
-                entry[key].trivia.comment_ws = "  "
+        set_keeping_history(entry, key, value, stamp)
+    if removed:
+        entry.add(tomlkit.comment(f"removed with the new fit ({stamp}): " + "; ".join(removed)))
     new_text = tomlkit.dumps(doc)
     loads_scenario(new_text, source=source)  # raises ScenarioError (an InputError) listing problems
     return new_text

@@ -60,7 +60,10 @@ class IncubationData:
     """Initial velocities over a substrate x inhibitor grid.
 
     ``substrate_um`` and ``inhibitor_um`` are micromolar; ``velocity`` is in
-    ``velocity_unit`` (free text, empty when not stated).  ``depletion_pct``
+    ``velocity_unit`` (free text, empty when not stated).  A substrate given in
+    a unit that is not molar (ppm, mg/L) keeps its numbers: ``substrate_unit``
+    then names that unit (Km is reported in it) and ``substrate_um`` holds the
+    values in it despite its name; a molar substrate is converted to uM.  ``depletion_pct``
     holds the percentage of substrate consumed per row when measured.
     ``lines`` are the source line numbers of the rows (for messages).
     """
@@ -72,6 +75,11 @@ class IncubationData:
     depletion_pct: tuple[float, ...] | None = None
     lines: tuple[int, ...] = ()
     source: str = ""
+    substrate_unit: str = "uM"
+
+    @property
+    def substrate_is_molar(self) -> bool:
+        return self.substrate_unit == "uM"
 
     @property
     def n(self) -> int:
@@ -106,6 +114,7 @@ def incubation_data(
     depletion_pct: Sequence[float] | None = None,
     source: str = "",
     lines: Sequence[int] = (),
+    substrate_unit: str = "uM",
 ) -> IncubationData:
     """Build validated :class:`IncubationData` from arrays (concentrations in uM).
 
@@ -139,6 +148,7 @@ def incubation_data(
         depletion_pct=None if dep is None else tuple(dep),
         lines=line_nos,
         source=source,
+        substrate_unit=substrate_unit,
     )
 
 
@@ -234,7 +244,7 @@ def parse_incubation_csv(
             f"lacks the column{'s' if len(missing) > 1 else ''} {', '.join(missing)}; expected named columns "
             "substrate, inhibitor, velocity (units in the header like 'substrate (uM)'), optionally depletion (%)",
         )
-    s_factor = _unit_factor("substrate", cols["substrate"][1], substrate_unit, header_line)
+    s_factor, s_unit = _substrate_unit(cols["substrate"][1], substrate_unit, header_line)
     i_factor = _unit_factor("inhibitor", cols["inhibitor"][1], inhibitor_unit, header_line) if "inhibitor" in cols else 1.0
     v_unit = _velocity_unit(cols["velocity"][1], velocity_unit, header_line)
     if "depletion" in cols and cols["depletion"][1] not in ("", "%", "percent"):
@@ -260,6 +270,7 @@ def parse_incubation_csv(
         depletion_pct=d_vals if "depletion" in cols else None,
         source=source,
         lines=lines,
+        substrate_unit=s_unit,
     )
 
 
@@ -285,6 +296,19 @@ def _unit_factor(column: str, header_unit: str, given: str | None, line: int) ->
     except UnitError:
         raise UnitError(f"{column} unit", unit, "is not a molar concentration unit; expected e.g. uM, nM or mM") from None
     return units.magnitude(q, "uM")
+
+
+def _substrate_unit(header_unit: str, given: str | None, line: int) -> tuple[float, str]:
+    """(factor, unit): molar units convert to uM; any other unit (ppm, mg/L) is kept as given, factor 1."""
+    try:
+        return _unit_factor("substrate", header_unit, given, line), "uM"
+    except UnitError as exc:
+        if exc.field != "substrate unit":
+            raise
+        unit = (header_unit or given or "").strip()
+        if not unit or any(c in unit for c in "\n\r\t\x1b"):
+            raise
+        return 1.0, unit  # Km is then reported in the substrate's own unit
 
 
 def _velocity_unit(header_unit: str, given: str | None, line: int) -> str:

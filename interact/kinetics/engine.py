@@ -39,7 +39,10 @@ __all__ = [
     "CurveModel",
     "Estimate",
     "FitResult",
+    "extra_sum_of_squares",
+    "finite_difference_jacobian",
     "fit_curve",
+    "fit_point",
 ]
 
 Array = NDArray[np.float64]
@@ -66,7 +69,8 @@ class CurveModel:
     name: str
     parameters: tuple[str, ...]
     function: Callable[[Array, Any], Array]
-    jacobian: Callable[[Array, Any], Array]
+    #: ``(theta, x) -> J``; ``None`` uses central finite differences (:func:`finite_difference_jacobian`)
+    jacobian: Callable[[Array, Any], Array] | None = None
     lower: tuple[float, ...] = ()
     upper: tuple[float, ...] = ()
     reported: tuple[str, ...] = ()
@@ -106,6 +110,13 @@ class Estimate:
     at_bound: bool = False
     identifiable: bool = True
     note: str = ""
+
+    def interval(self) -> tuple[float, float, str] | None:
+        """(low, high, method) to carry forward: the profile interval when closed, else the asymptotic one; None when open."""
+        for low, high, method in ((self.profile_low, self.profile_high, "profile likelihood"), (self.ci_low, self.ci_high, "asymptotic")):
+            if low is not None and high is not None and 0 < low <= self.value <= high < math.inf:
+                return low, high, method
+        return None
 
     @property
     def relative_se(self) -> float | None:
@@ -168,16 +179,46 @@ class FitResult:
 # --------------------------------------------------------------------------- residuals
 
 
+def finite_difference_jacobian(function: Callable[[Array, Any], Array], u: Array, x: Any, f0: Array | None = None) -> Array:
+    """Central-difference Jacobian ``df/dtheta`` (n x p), step ``eps^(1/3) max(|u_j|, 1e-8)``.
+
+    Used when a model gives no analytic Jacobian; the step is the usual choice balancing truncation
+    and rounding error for central differences (Nocedal & Wright, *Numerical Optimization*, 2nd ed.,
+    section 8.1 - from memory).  A side where the model is not finite falls back to a one-sided difference.
+    """
+    u = np.asarray(u, dtype=float)
+    if f0 is None:
+        f0 = np.asarray(function(u, x), dtype=float)
+    out = np.empty((f0.size, u.size))
+    for j in range(u.size):
+        h = 6.0554544523933395e-06 * max(abs(u[j]), 1e-8)  # eps ** (1/3)
+        up, dn = u.copy(), u.copy()
+        up[j] += h
+        dn[j] -= h
+        with np.errstate(all="ignore"):
+            fp = np.asarray(function(up, x), dtype=float)
+            fm = np.asarray(function(dn, x), dtype=float)
+        if np.all(np.isfinite(fp)) and np.all(np.isfinite(fm)):
+            out[:, j] = (fp - fm) / (up[j] - dn[j])
+        elif np.all(np.isfinite(fp)):
+            out[:, j] = (fp - f0) / (up[j] - u[j])
+        else:
+            out[:, j] = (f0 - fm) / (u[j] - dn[j])
+    return out
+
+
 class _Problem:
     """Weighted residuals r = sqrt(w) (f - y) and their Jacobian."""
 
-    def __init__(self, model: CurveModel, x: Any, y: Array, weights: str) -> None:
+    def __init__(self, model: CurveModel, x: Any, y: Array, weights: str, given: Array | None = None) -> None:
         self.model = model
         self.x = x
         self.y = y
         self.poisson = weights == "poisson"
-        if weights == "none":
-            self.sw: Array | None = None
+        if given is not None:
+            self.sw: Array | None = np.sqrt(given)
+        elif weights == "none":
+            self.sw = None
         elif weights == "1/y":
             self.sw = 1.0 / np.sqrt(y)
         elif weights == "1/y2":
@@ -206,7 +247,10 @@ class _Problem:
             f, jac = fused(u, self.x)
         else:
             f = self.fitted(u)
-            jac = np.asarray(self.model.jacobian(u, self.x), dtype=float)
+            if self.model.jacobian is None:
+                jac = finite_difference_jacobian(self.model.function, u, self.x, f)
+            else:
+                jac = np.asarray(self.model.jacobian(u, self.x), dtype=float)
         if self.poisson:
             with np.errstate(divide="ignore", invalid="ignore"):
                 root = np.sqrt(f)
@@ -417,6 +461,20 @@ def _solve_damped(a: list[list[float]], g: list[float], damping: list[float]) ->
     return x
 
 
+def _degenerate(prob: _Problem, sol: _Solution, lo: Array, hi: Array) -> bool:
+    """True when the free parameters' Jacobian at a 'converged' point is numerically rank-deficient."""
+    if not sol.success or not math.isfinite(sol.cost) or sol.cost == 0.0:
+        return False
+    free = ~(((sol.u <= lo) | (sol.u >= hi)) & (np.isfinite(lo) | np.isfinite(hi)))
+    if not free.any():
+        return False
+    jac = prob.resid_jac(sol.u)[1][:, free]
+    if not np.all(np.isfinite(jac)):
+        return True
+    sv = np.linalg.svd(jac * (1.0 / np.maximum(np.linalg.norm(jac, axis=0), _TINY)), compute_uv=False)
+    return bool(sv[-1] < 1e-10 * sv[0] or np.any(np.linalg.norm(jac, axis=0) == 0.0))
+
+
 def _scipy_fallback(prob: _Problem, u0: Array, lo: Array, hi: Array) -> _Solution:
     from scipy.optimize import least_squares
 
@@ -439,7 +497,8 @@ def _scipy_fallback(prob: _Problem, u0: Array, lo: Array, hi: Array) -> _Solutio
             start,
             jac=jac,
             bounds=(lo, hi) if bounded else (-np.inf, np.inf),
-            method="trf" if bounded else "lm",
+            method="trf",
+            x_scale="jac",
             xtol=1e-14,
             ftol=1e-14,
             gtol=1e-14,
@@ -502,7 +561,7 @@ def _profile_side(
     # Safeguarded Newton on tau(value) = tq.  By the envelope theorem the derivative of the
     # profiled cost is 2 (J^T r)_j at the conditional optimum, so d tau / d value = (J^T r)_j / (s2 tau).
     val = centre + direction * step0
-    tol = 1e-3 * tq  # endpoint within about 0.1 % of a standard error
+    tol = 1e-7 * tq  # endpoint to about 7 digits of the threshold (held to lmfit conf_interval in the tests)
     inside_val, inside_tau, inside_u = centre, 0.0, u_hat
     outside: tuple[float, float] | None = None
     for _ in range(60):
@@ -544,6 +603,48 @@ def _profile_side(
 # --------------------------------------------------------------------------- public
 
 
+def extra_sum_of_squares(rss_reduced: float, df_reduced: int, rss_full: float, df_full: int) -> tuple[float, float]:
+    """(F, p) of the extra-sum-of-squares F test of a reduced model against a fuller one that nests it.
+
+    F = ((RSS_r - RSS_f) / (df_r - df_f)) / (RSS_f / df_f) on (df_r - df_f, df_f) degrees of freedom (Bates & Watts
+    1988, section 3.5; common practice).  An exact fit of the fuller model gives F = inf and p = 0 unless the
+    reduced model is exact too (p = 1).
+    """
+    from scipy.special import fdtrc
+
+    df_num = df_reduced - df_full
+    drop = max(rss_reduced - rss_full, 0.0)
+    if rss_full <= 0:
+        return (math.inf, 0.0) if drop > 0 else (0.0, 1.0)
+    f_val = (drop / df_num) / (rss_full / df_full)
+    return f_val, float(fdtrc(df_num, df_full, f_val))
+
+
+def fit_point(
+    model: CurveModel, x: Any, y: Array, start: Sequence[float] | Array, *, sample_weights: Array | None = None
+) -> tuple[Array, Array, bool]:
+    """The least-squares estimate alone: (theta, fitted values, converged), without statistics or intervals.
+
+    The same solver and fallback as :func:`fit_curve`; for inner loops (iteratively reweighted fits) that
+    need only the optimum.
+    """
+    yv = np.asarray(y, dtype=float)
+    p = len(model.parameters)
+    lo = np.asarray(model.lower, dtype=float) if model.lower else np.full(p, -np.inf)
+    hi = np.asarray(model.upper, dtype=float) if model.upper else np.full(p, np.inf)
+    given = None if sample_weights is None else np.asarray(sample_weights, dtype=float)
+    prob = _Problem(model, x, yv, "none", given)
+    u0 = np.asarray(start, dtype=float)
+    with np.errstate(all="ignore"):
+        sol = _lm(prob, u0, lo, hi, np.zeros(p, dtype=bool))
+        if not sol.success or _degenerate(prob, sol, lo, hi):
+            retry = _scipy_fallback(prob, u0, lo, hi)
+            if retry.success and (retry.cost < sol.cost or not sol.success):
+                sol = retry
+        fitted = prob.fitted(sol.u)
+    return sol.u, fitted, bool(sol.success and math.isfinite(sol.cost))
+
+
 def fit_curve(
     model: CurveModel,
     x: Any,
@@ -554,6 +655,8 @@ def fit_curve(
     profile: Sequence[int] = (),
     level: float = 0.95,
     step_hints: Sequence[float] | None = None,
+    sample_weights: Sequence[float] | Array | None = None,
+    extra_params: int = 0,
 ) -> FitResult:
     """Fit ``model`` to ``(x, y)`` from one or more starting vectors.
 
@@ -576,6 +679,11 @@ def fit_curve(
     step_hints
         Optional scale per parameter used to step the profile where no
         standard error exists (a parameter on its bound).
+    sample_weights
+        Known weights ``w_i`` (variance proportional to ``1/w_i``), for instance from a fitted
+        variance model; they replace ``weights`` (which then only labels the result).
+    extra_params
+        Parameters estimated outside this fit (a variance exponent), counted in AIC, AICc and BIC.
 
     Raises
     ------
@@ -604,7 +712,12 @@ def fit_curve(
         raise InputError("level", level, "is not between 0 and 1")
     lo = np.asarray(model.lower, dtype=float) if model.lower else np.full(p, -np.inf)
     hi = np.asarray(model.upper, dtype=float) if model.upper else np.full(p, np.inf)
-    prob = _Problem(model, x, yv, weights)
+    given = None
+    if sample_weights is not None:
+        given = np.asarray(sample_weights, dtype=float)
+        if given.shape != yv.shape or not np.all(np.isfinite(given)) or np.any(given <= 0):
+            raise InputError("sample_weights", "array", f"must hold {n} finite weights above zero")
+    prob = _Problem(model, x, yv, weights, given)
     fixed = np.zeros(p, dtype=bool)
 
     best: _Solution | None = None
@@ -618,12 +731,16 @@ def fit_curve(
     for start in ordered:
         if best is not None and best.success:
             break  # the best-looking start converged; others only as fallbacks
-        sol = _lm(prob, start, lo, hi, fixed)
-        if not sol.success:
-            retry = _scipy_fallback(prob, sol.u if math.isfinite(sol.cost) else start, lo, hi)
-            if retry.cost <= sol.cost or not math.isfinite(sol.cost):
-                retry.message = f"{sol.message}; retried with scipy: {retry.message}"
-                sol = retry
+        with np.errstate(all="ignore"):
+            sol = _lm(prob, start, lo, hi, fixed)
+            if not sol.success or _degenerate(prob, sol, lo, hi):
+                # scipy's trust-region reflective from the ORIGINAL start (a diverged iterate is a bad place to
+                # restart from: NIST MGH10 start 1); also when the solution is a flat, rank-deficient point
+                # (NIST BoxBOD start 1), where the lower cost wins
+                retry = _scipy_fallback(prob, np.asarray(start, dtype=float), lo, hi)
+                if retry.success and (retry.cost < sol.cost or not sol.success):
+                    retry.message = f"{sol.message}; retried with scipy from the start: {retry.message}"
+                    sol = retry
         if best is None or (sol.success, -sol.cost) > (best.success, -best.cost):
             best = sol
     assert best is not None
@@ -667,11 +784,12 @@ def fit_curve(
     fitted = prob.fitted(u)
     with np.errstate(divide="ignore", invalid="ignore"):
         loglik = (
-            -0.5 * n * (math.log(2.0 * math.pi * cost / n) + 1.0) + (0.5 * float(np.sum(np.log(w))) if weights != "none" else 0.0)
+            -0.5 * n * (math.log(2.0 * math.pi * cost / n) + 1.0)
+            + (0.5 * float(np.sum(np.log(w))) if weights != "none" or given is not None else 0.0)
             if not exact
             else math.inf
         )
-    k = p + 1
+    k = p + 1 + extra_params
     aic = -2.0 * loglik + 2.0 * k
     aicc = aic + (2.0 * k * (k + 1) / (n - k - 1) if n - k - 1 > 0 else math.inf)
     bic = -2.0 * loglik + k * math.log(n)

@@ -18,7 +18,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Final
 
 import numpy as np
@@ -26,19 +26,24 @@ from numpy.typing import NDArray
 
 from ..errors import FitError, InputError
 from .data import IncubationData
-from .engine import WEIGHTS, CurveModel, Estimate, FitResult, fit_curve
+from .engine import WEIGHTS, CurveModel, Estimate, FitResult, extra_sum_of_squares, fit_curve, fit_point
 
 __all__ = [
+    "ERROR_MODELS",
+    "FIT_WEIGHTS",
     "MODELS",
+    "ErrorModel",
     "FTest",
     "ModelComparison",
     "RankedModel",
     "Verdict",
+    "choose_error_model",
     "fit_inhibition",
     "fit_substrate_inhibition",
     "guess_inhibition",
     "guess_michaelis_menten",
     "inhibition_model",
+    "spearman",
 ]
 
 Array = NDArray[np.float64]
@@ -64,10 +69,17 @@ NESTED: Final = (
     ("none", "competitive"),
     ("none", "noncompetitive"),
     ("none", "uncompetitive"),
+    ("none", "mixed"),
     ("competitive", "mixed"),
     ("noncompetitive", "mixed"),
     ("uncompetitive", "mixed"),
 )
+#: weighting choices of a global fit: "auto" estimates the error model (:func:`choose_error_model`), the
+#: others force a fixed scheme (:data:`~interact.kinetics.engine.WEIGHTS`)
+FIT_WEIGHTS: Final = ("auto", *WEIGHTS)
+#: variance models: Var(v) = sigma^2 g(f)^2 with g = 1 (constant), f (proportional) or f^theta (power)
+ERROR_MODELS: Final = ("constant", "proportional", "power")
+_FLOOR_FRACTION: Final = 0.02  # fitted values below 2 % of the largest are floored in g (blank rows, f = 0)
 OUTLIER_T: Final = 3.0  # |externally studentised residual| flagged as a possible outlier (common practice)
 DEPLETION_KINETIC_PCT: Final = 10.0  # Lee et al. 2024: < 10 % turnover for kinetic constants (seen)
 DEPLETION_LIMIT_PCT: Final = 20.0  # FDA: substrate depletion <= 20 % (from memory)
@@ -188,7 +200,13 @@ _NPAR: Final = {"none": 2, "competitive": 3, "noncompetitive": 3, "uncompetitive
 
 
 def inhibition_model(
-    name: str, velocity_unit: str = "", *, vmax_max: float = math.inf, km_max: float = math.inf, kappa_max: float = math.inf
+    name: str,
+    velocity_unit: str = "",
+    *,
+    vmax_max: float = math.inf,
+    km_max: float = math.inf,
+    kappa_max: float = math.inf,
+    km_unit: str = "uM",
 ) -> CurveModel:
     """The fitting model for ``name`` (one of :data:`MODELS`), in 1/Ki form.
 
@@ -211,7 +229,7 @@ def inhibition_model(
         upper=(vmax_max, km_max, *(kappa_max,) * len(const)),
         reported=("value", "value", *("inverse",) * len(const)),
         reported_names=("Vmax", "Km", *const),
-        units=(velocity_unit, "uM", *("uM",) * len(const)),
+        units=(velocity_unit, km_unit, *("uM",) * len(const)),
         equation=EQUATIONS[name],
         function_jacobian=_fused(name),
     )
@@ -271,6 +289,204 @@ def guess_inhibition(data: IncubationData) -> dict[str, tuple[tuple[float, ...],
     }
 
 
+# --------------------------------------------------------------------------- error models
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class ErrorModel:
+    """The variance model chosen for a data set, with the candidates it was chosen from.
+
+    ``candidates`` holds (name, exponent theta, log-likelihood, AICc) for constant, proportional and
+    power, each fitted to the fullest mean model requested; ``weights`` are the resulting weights
+    1/g(f)^2 (geometric mean 1) used for every mechanism, so that their RSS, F tests and AICc compare.
+    """
+
+    name: str
+    exponent: float
+    candidates: tuple[tuple[str, float, float, float], ...]
+    weights: Array
+    model: str
+    left_out: int = 0  # rows at zero substrate, left out of the comparison
+
+    @property
+    def text(self) -> str:
+        parts = "; ".join(
+            f"{n}{f' (theta {th:.2f})' if n == 'power' else ''}: AICc {a:.2f}" for n, th, _, a in self.candidates if math.isfinite(a)
+        )
+        theta = f", exponent theta {self.exponent:.2f}" if self.name == "power" else ""
+        variance = {"constant": "sigma^2", "proportional": "sigma^2 f^2", "power": "sigma^2 f^(2 theta)"}[self.name]
+        how = "unweighted least squares" if self.name == "constant" else "iteratively reweighted least squares"
+        return (
+            f"Error model: {self.name}{theta} (Var(v) = {variance}), chosen by AICc on the {self.model} model from {parts}"
+            + (f" ({self.left_out} row(s) at zero substrate left out of this comparison)" if self.left_out else "")
+            + f"; fitted by {how}."
+        )
+
+
+def _variance_weights(fitted: Array, theta: float) -> Array:
+    f = np.abs(np.asarray(fitted, dtype=float))
+    g = np.maximum(f, _FLOOR_FRACTION * float(np.max(f)) if np.max(f) > 0 else 1.0) ** theta
+    w = 1.0 / g**2
+    return np.asarray(w / math.exp(float(np.mean(np.log(w)))))
+
+
+def _power_exponent(resid: Array, fitted: Array, rows: NDArray[np.bool_]) -> float:
+    """Pseudo-likelihood estimate of theta from ``rows`` (Carroll & Ruppert 1988, section 3.3 - from memory)."""
+    from scipy.optimize import minimize_scalar
+
+    f = np.abs(fitted)
+    logf = np.log(np.maximum(f, _FLOOR_FRACTION * float(np.max(f))))[rows]
+    r2 = np.asarray(resid, dtype=float)[rows] ** 2
+    n = r2.size
+
+    def neg(theta: float) -> float:
+        s2 = float(np.mean(r2 * np.exp(-2.0 * theta * logf)))
+        return 0.5 * n * math.log(max(s2, 1e-300)) + theta * float(np.sum(logf))
+
+    return float(minimize_scalar(neg, bounds=(0.0, 3.0), method="bounded", options={"xatol": 1e-6}).x)
+
+
+def _irls(model: CurveModel, x: Array, v: Array, start: FitResult, kind: str, rows: NDArray[np.bool_]) -> tuple[Array, float, Array, bool]:
+    """Weighted fit with weights from the variance model, re-estimated from the fitted values until stable.
+
+    Returns the fitted values, theta, the weights and whether every step converged.
+    """
+    theta, u = 1.0, np.asarray(start.theta)
+    f = np.asarray(start.fitted)
+    w = np.ones_like(v)
+    ok = True
+    for _ in range(12):
+        if kind == "power":
+            theta = _power_exponent(v - f, f, rows)
+        w = _variance_weights(f, theta)
+        u_new, f_new, ok = fit_point(model, x, v, u, sample_weights=w)
+        if not ok:
+            break
+        done = np.max(np.abs(f_new - f)) <= 1e-9 * float(np.max(np.abs(f)))
+        u, f = u_new, f_new
+        if done:
+            break
+    if ok and kind == "power":  # the weights belong to the final fitted values
+        theta = _power_exponent(v - f, f, rows)
+    w = _variance_weights(f, theta)
+    return f, theta, w, ok
+
+
+def choose_error_model(fullest: FitResult, x: Array, v: Array, model: CurveModel) -> ErrorModel:
+    """Fit constant, proportional and power variance models to the fullest mean model; choose by AICc.
+
+    The weights are estimated by iteratively reweighted (generalised) least squares: fit, compute
+    g(f) from the fitted values (theta by pseudo-likelihood for the power model), refit with weights
+    1/g^2, repeat (Carroll & Ruppert, *Transformation and weighting in regression*, 1988, chapter 2 -
+    from memory).  The Gaussian log-likelihood with Var_i = sigma^2 g_i^2 is then compared by AICc,
+    counting theta as a parameter for the power model.  The fullest model is used so that lack of fit
+    of a too-simple mechanism is not mistaken for a change of spread with the mean.
+    """
+    # rows at zero substrate (blanks) have f = 0 whatever the constants: they say nothing about the spread
+    # around the curve, so theta and the likelihoods compared are computed on the other rows
+    rows = np.asarray(x[0] > 0)
+    p = fullest.n_params
+    candidates = [("constant", 0.0, *_likelihood(np.asarray(fullest.fitted), p, v, np.ones_like(v), rows, 0))]
+    weights = {"constant": np.ones_like(v)}
+    theta_of = {"constant": 0.0}
+    if fullest.success and np.all(np.asarray(fullest.fitted) >= 0) and np.count_nonzero(rows) > p + 3:
+        for kind in ("proportional", "power"):
+            fitted, theta, w, ok = _irls(model, x, v, fullest, kind, rows)
+            if ok:
+                th = theta if kind == "power" else 1.0
+                candidates.append((kind, th, *_likelihood(fitted, p, v, w, rows, int(kind == "power"))))
+                weights[kind] = w
+                theta_of[kind] = th
+    best = min(candidates, key=lambda c: c[3] if math.isfinite(c[3]) else math.inf)
+    return ErrorModel(
+        name=best[0],
+        exponent=theta_of[best[0]],
+        candidates=tuple(candidates),
+        weights=weights[best[0]],
+        model=fullest.model,
+        left_out=int(np.count_nonzero(~rows)),
+    )
+
+
+def _likelihood(fitted: Array, n_params: int, v: Array, w: Array, rows: NDArray[np.bool_], extra: int) -> tuple[float, float]:
+    """Gaussian log-likelihood and AICc on ``rows`` with Var_i = sigma^2 / w_i, sigma^2 at its ML value."""
+    r = (v - fitted)[rows]
+    wr = w[rows]
+    n = r.size
+    s2 = float(np.sum(wr * r**2)) / n
+    if not s2 > 0:
+        return math.inf, -math.inf
+    ll = -0.5 * n * (math.log(2.0 * math.pi * s2) + 1.0) + 0.5 * float(np.sum(np.log(wr)))
+    k = n_params + 1 + extra
+    aicc = -2.0 * ll + 2.0 * k + (2.0 * k * (k + 1) / (n - k - 1) if n - k - 1 > 0 else math.inf)
+    return ll, aicc
+
+
+def _residual_structure_warning(fit: FitResult | None, data: IncubationData, weights: str, error: ErrorModel | None) -> tuple[str, ...]:
+    """Warn when the weighted residuals' spread still changes with the fitted value (Spearman test, p < 0.01).
+
+    |weighted residual| against the fitted value is a Glejser-type check of heteroscedasticity
+    (common practice); a significant trend means the weighting in use does not match the error structure.
+    """
+    if fit is None or not fit.success or fit.n < 8:
+        return ()
+    f = np.asarray(fit.fitted)
+    r = np.asarray(fit.residuals)
+    w = error.weights if error is not None else _fixed_weights(weights, np.asarray(data.velocity), f)
+    e = np.abs(r) * np.sqrt(w)
+    if np.ptp(f) == 0 or np.ptp(e) == 0:
+        return ()
+    rho, p = spearman(f, e)
+    if not (p < 0.01):
+        return ()
+    how = "grows" if rho > 0 else "shrinks"
+    used = f"the {error.name} error model" if error is not None else f"weights {weights}"
+    hint = "let the error model be estimated (--weights auto)" if error is None else "check for outliers or a missing mechanism"
+    return (
+        f"The spread of the weighted residuals still {how} with the fitted velocity (Spearman rho {rho:.2f}, p = {p:.2g}): "
+        f"{used} does not capture the error structure; {hint}.",
+    )
+
+
+def _ranks(a: Array) -> Array:
+    """Ranks 1..n with ties given their average rank."""
+    order = np.argsort(a, kind="mergesort")
+    ranks = np.empty(a.size)
+    ranks[order] = np.arange(1, a.size + 1)
+    values, inverse = np.unique(a, return_inverse=True)
+    if values.size < a.size:  # average the ranks of tied values
+        ranks = (np.bincount(inverse, weights=ranks) / np.bincount(inverse))[inverse]
+    return ranks
+
+
+def spearman(x: Array, y: Array) -> tuple[float, float]:
+    """Spearman's rank correlation and its two-sided p value (t approximation with n - 2 df).
+
+    The same statistic and p value as ``scipy.stats.spearmanr`` (checked in the tests); written here
+    because importing scipy.stats costs about 0.8 s on the command line's cold start.
+    """
+    from scipy.special import stdtr
+
+    rx, ry = _ranks(np.asarray(x, dtype=float)), _ranks(np.asarray(y, dtype=float))
+    rho = float(np.corrcoef(rx, ry)[0, 1])
+    n = rx.size
+    if abs(rho) >= 1.0:
+        return rho, 0.0
+    t_val = rho * math.sqrt((n - 2) / ((1.0 - rho) * (1.0 + rho)))
+    return rho, float(2.0 * stdtr(n - 2, -abs(t_val)))
+
+
+def _fixed_weights(weights: str, y: Array, f: Array) -> Array:
+    with np.errstate(divide="ignore", invalid="ignore"):
+        if weights == "1/y":
+            return np.asarray(1.0 / y)
+        if weights == "1/y2":
+            return np.asarray(1.0 / y**2)
+        if weights == "poisson":
+            return np.asarray(1.0 / np.maximum(f, 1e-300))
+    return np.ones_like(y)
+
+
 # --------------------------------------------------------------------------- results
 
 
@@ -305,7 +521,15 @@ class FTest:
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Verdict:
-    """The mechanism the data support, how strongly, and what is not identifiable."""
+    """The mechanism the data support, how strongly, and what is not identifiable.
+
+    ``support`` is the chosen model's own Akaike weight.  When the chosen model
+    stands for a group (a mixed fit that collapses onto it, or a mixed fit not
+    significantly better), ``group`` names the models counted together and
+    ``group_support`` is their summed weight; ``strength`` then describes the
+    group and the text says so.  ``inhibition_shown`` is False when the model
+    without inhibition is not rejected: nothing is then carried into a scenario.
+    """
 
     model: str
     mechanism: str | None
@@ -313,6 +537,9 @@ class Verdict:
     support: float
     text: str
     unidentifiable: tuple[str, ...] = ()
+    group: tuple[str, ...] = ()
+    group_support: float | None = None
+    inhibition_shown: bool = False
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -329,6 +556,7 @@ class ModelComparison:
     substrate_inhibition: FitResult | None = None
     substrate_inhibition_test: FTest | None = None
     level: float = 0.95
+    error_model: ErrorModel | None = None
 
     def fit(self, model: str) -> FitResult:
         for f in self.fits:
@@ -365,25 +593,37 @@ class ModelComparison:
 # --------------------------------------------------------------------------- fitting
 
 
-def _check_design(data: IncubationData, models: Sequence[str]) -> None:
-    s, i, _ = data.arrays()
+def _check_design(data: IncubationData) -> str:
+    """Refuse degenerate data; return a description when there is a single inhibitor level (else "")."""
+    s, i, v = data.arrays()
+    where = data.source or "data"
+    if np.all(v == 0):
+        raise InputError(f"{where}: velocity", "every value is 0", "cannot be fitted; expected measured rates above zero")
+    if np.all(v <= 0):
+        raise InputError(f"{where}: velocity", "no value above 0", "cannot be fitted; expected measured rates above zero")
+    if np.ptp(v) == 0:
+        raise InputError(
+            f"{where}: velocity", f"every value is {v[0]:g}", "shows no change with substrate; expected rates that vary with concentration"
+        )
     if np.unique(s).size < 3:
         raise FitError(
-            f"{data.source or 'data'}: {np.unique(s).size} substrate level(s); a Michaelis-Menten fit needs at least "
-            f"3 distinct substrate concentrations"
+            f"{where}: {np.unique(s).size} substrate level(s); a Michaelis-Menten fit needs at least 3 distinct substrate concentrations"
         )
-    if any(m != "none" for m in models) and np.unique(i).size < 2:
-        raise FitError(
-            f"{data.source or 'data'}: one inhibitor level only ({i[0]:g} uM); inhibition models need at least two (a "
-            f"control without inhibitor and one or more levels)"
+    if np.unique(i).size < 2:
+        if i[0] == 0:
+            return "the data have no inhibitor (a plain substrate-velocity curve)"
+        return (
+            f"one inhibitor level only ({i[0]:g} uM, no control without inhibitor): Km and Vmax are apparent values at that "
+            "level; inhibition models need a control and one or more levels"
         )
+    return ""
 
 
 def fit_inhibition(
     data: IncubationData,
     models: Sequence[str] = MODELS,
     *,
-    weights: str = "none",
+    weights: str = "auto",
     level: float = 0.95,
     profile: bool = True,
 ) -> ModelComparison:
@@ -396,7 +636,10 @@ def fit_inhibition(
     models
         Names from :data:`MODELS` (default: all five).
     weights
-        One of :data:`~interact.kinetics.engine.WEIGHTS`.
+        ``"auto"`` (default): choose the error model (constant, proportional or power variance) by
+        AICc on the fullest mechanism, estimate its weights by iteratively reweighted least squares and
+        fit every mechanism with them (:func:`choose_error_model`); or one of
+        :data:`~interact.kinetics.engine.WEIGHTS` to force a fixed scheme.
     level
         Confidence level of the intervals (default 0.95).
     profile
@@ -412,7 +655,12 @@ def fit_inhibition(
     InputError
         Unknown model or weighting, weights needing positive velocities.
     FitError
-        A design that cannot be fitted (fewer than 3 substrate levels, one inhibitor level).
+        A design that cannot be fitted (fewer than 3 substrate levels).
+
+    Degenerate velocities (all zero, none above zero, all equal) raise :class:`InputError`.  A single
+    inhibitor level is fitted with the model without inhibition only (plain Michaelis-Menten), and the
+    verdict says so; the model without inhibition is always fitted, because inhibition is reported only
+    when it is rejected.
     """
     chosen_models = tuple(dict.fromkeys(models))
     if not chosen_models:
@@ -420,9 +668,13 @@ def fit_inhibition(
     for m in chosen_models:
         if m not in MODELS:
             raise InputError("models", m, f"is not one of {', '.join(MODELS)}")
-    if weights not in WEIGHTS:
-        raise InputError("weights", weights, f"is not one of {', '.join(WEIGHTS)}")
-    _check_design(data, chosen_models)
+    if weights not in FIT_WEIGHTS:
+        raise InputError("weights", weights, f"is not one of {', '.join(FIT_WEIGHTS)}")
+    single_level = _check_design(data)
+    if single_level:
+        chosen_models = ("none",)
+    elif "none" not in chosen_models:
+        chosen_models = ("none", *chosen_models)  # the test of "no inhibition" needs it
     s, i, v = data.arrays()
     x = np.vstack((s, i))
     starts = guess_inhibition(data)
@@ -434,33 +686,67 @@ def fit_inhibition(
         1e4 * float(np.max(s)),
         1e4 / float(np.min(positive_i)) if positive_i.size else math.inf,
     )
-    fits: dict[str, FitResult] = {}
     order = [m for m in MODELS if m in chosen_models]
-    for name in order:
-        model = inhibition_model(name, data.velocity_unit, vmax_max=caps[0], km_max=caps[1], kappa_max=caps[2])
-        st = list(starts[name])
-        if name == "mixed":
-            st.extend(_mixed_starts(fits))
-        prof = tuple(range(2, len(model.parameters))) if profile else ()
-        fits[name] = fit_curve(
-            model,
+
+    def fit_all(label: str, sample_weights: Array | None, with_profiles: bool, extra: int) -> dict[str, FitResult]:
+        out: dict[str, FitResult] = {}
+        for name in order:
+            model = inhibition_model(
+                name, data.velocity_unit, vmax_max=caps[0], km_max=caps[1], kappa_max=caps[2], km_unit=data.substrate_unit
+            )
+            st = list(starts[name])
+            if name == "mixed":
+                st.extend(_mixed_starts(out))
+            # Km and Vmax get profile intervals in the model without inhibition (a plain Michaelis-Menten fit
+            # reports them); the inhibition models profile their inhibition constants
+            prof = (tuple(range(2, len(model.parameters))) if name != "none" else (0, 1)) if with_profiles else ()
+            out[name] = fit_curve(
+                model,
+                x,
+                v,
+                st,
+                weights=label,
+                profile=prof,
+                level=level,
+                step_hints=(1.0, 1.0, *([hints] * (len(model.parameters) - 2))),
+                sample_weights=sample_weights,
+                extra_params=extra,
+            )
+        return out
+
+    error_model: ErrorModel | None = None
+    sample_weights: Array | None = None
+    if weights == "auto":
+        first = fit_all("none", None, False, 0)
+        error_model = choose_error_model(
+            first[order[-1]],
             x,
             v,
-            st,
-            weights=weights,
-            profile=prof,
-            level=level,
-            step_hints=(1.0, 1.0, *([hints] * (len(model.parameters) - 2))),
+            inhibition_model(
+                order[-1], data.velocity_unit, vmax_max=caps[0], km_max=caps[1], kappa_max=caps[2], km_unit=data.substrate_unit
+            ),
         )
+        sample_weights = error_model.weights
+        fits = fit_all("none", sample_weights, profile, 1 if error_model.name == "power" else 0)
+    else:
+        fits = fit_all(weights, None, profile, 0)
     fit_tuple = tuple(fits[m] for m in order)
     ranking = _rank(fit_tuple)
     f_tests = _f_tests(fits)
-    verdict = _verdict(fits, ranking, f_tests)
-    sub_fit, sub_test = fit_substrate_inhibition(data, weights=weights) if np.count_nonzero(i == np.min(i)) >= 5 else (None, None)
-    warnings = _design_warnings(data, fits, verdict, weights, sub_fit, sub_test)
+    sub_fit, sub_test = (
+        fit_substrate_inhibition(data, weights="none" if weights == "auto" else weights, sample_weights=sample_weights)
+        if np.count_nonzero(i == np.min(i)) >= 5
+        else (None, None)
+    )
+    verdict = _verdict(fits, ranking, f_tests, single_level)
+    if single_level:
+        verdict = _plain_verdict(verdict, fits["none"], sub_fit, sub_test, data.substrate_unit)
+    warnings = _design_warnings(data, fits, verdict, weights, sub_fit, sub_test, sample_weights)
+    warnings += _residual_structure_warning(fits.get(verdict.model), data, weights, error_model)
     return ModelComparison(
         data=data,
-        weights=weights,
+        weights=weights if error_model is None else f"{error_model.name} error model (estimated)",
+        error_model=error_model,
         fits=fit_tuple,
         ranking=ranking,
         f_tests=f_tests,
@@ -491,7 +777,7 @@ def _mixed_starts(fits: dict[str, FitResult]) -> list[tuple[float, ...]]:
     return out
 
 
-def _substrate_model(velocity_unit: str) -> CurveModel:
+def _substrate_model(velocity_unit: str, substrate_unit: str = "uM") -> CurveModel:
     def f(u: Array, s: Array) -> Array:
         return u[0] * s / (u[1] + s * (1.0 + s * u[2]))
 
@@ -520,12 +806,14 @@ def _substrate_model(velocity_unit: str) -> CurveModel:
         upper=(math.inf,) * 3,
         reported=("value", "value", "inverse"),
         reported_names=("Vmax", "Km", "Ksi"),
-        units=(velocity_unit, "uM", "uM"),
+        units=(velocity_unit, substrate_unit, substrate_unit),
         equation="v = Vmax S / (Km + S (1 + S/Ksi))",
     )
 
 
-def fit_substrate_inhibition(data: IncubationData, *, weights: str = "none") -> tuple[FitResult | None, FTest | None]:
+def fit_substrate_inhibition(
+    data: IncubationData, *, weights: str = "none", leave_one_out: bool = False, sample_weights: Array | None = None
+) -> tuple[FitResult | None, FTest | None]:
     """Substrate inhibition on the uninhibited curve (rows at the lowest inhibitor level).
 
     Fits the Haldane form v = Vmax S/(Km + S(1 + S/Ksi)) and tests it against
@@ -535,26 +823,87 @@ def fit_substrate_inhibition(data: IncubationData, *, weights: str = "none") -> 
     s, i, v = data.arrays()
     base = i == np.min(i)
     sb, vb = s[base], v[base]
-    if np.unique(sb).size < 4 or sb.size < 5:
+    if np.unique(sb).size < (3 if leave_one_out else 4) or sb.size < (4 if leave_one_out else 5):
         return None, None
     vmax, km = guess_michaelis_menten(sb, vb)
-    model = _substrate_model(data.velocity_unit)
+    model = _substrate_model(data.velocity_unit, data.substrate_unit)
     starts = [(vmax, km, 0.1 / float(np.max(sb))), (vmax, km, 1.0 / float(np.max(sb)))]
     sub = fit_curve(model, sb, vb, starts, weights=weights)
-    mm = fit_curve(inhibition_model("none", data.velocity_unit), np.vstack((sb, np.zeros_like(sb))), vb, [(vmax, km)], weights=weights)
+    mm = fit_curve(
+        inhibition_model("none", data.velocity_unit, km_unit=data.substrate_unit),
+        np.vstack((sb, np.zeros_like(sb))),
+        vb,
+        [(vmax, km)],
+        weights=weights,
+    )
     if not (sub.success and mm.success) or sub.df < 1:
         return sub, None
     return sub, _f_test("none", mm, "substrate-inhibition", sub)
 
 
-def _f_test(reduced_name: str, reduced: FitResult, full_name: str, full: FitResult) -> FTest:
-    from scipy.special import fdtrc
+def _substrate_inhibition_warning(
+    data: IncubationData, sub_fit: FitResult, sub_test: FTest, weights: str, sample_weights: Array | None = None
+) -> str:
+    """The substrate-inhibition warning, naming the row that drives it and saying whether the data fall.
 
-    df_num = reduced.df - full.df
-    drop = max(reduced.rss - full.rss, 0.0)
-    f_val = (drop / df_num) / (full.rss / full.df) if full.rss > 0 else math.inf
-    p_val = float(fdtrc(df_num, full.df, f_val)) if math.isfinite(f_val) else 0.0
-    return FTest(reduced=reduced_name, full=full_name, f=f_val, df_num=df_num, df_den=full.df, p_value=p_val)
+    The data "fall" when the mean velocity at the highest substrate level is below the highest level mean
+    of the control curve; otherwise the better Haldane fit only says the curve saturates more sharply
+    than a hyperbola.  The row named is the one whose removal weakens the evidence most (leave-one-out
+    refits of both models on the control rows; the F statistic without it is reported).
+    """
+    s, i, v = data.arrays()
+    base = np.flatnonzero(i == np.min(i))
+    sb, vb = s[base], v[base]
+    su = data.substrate_unit
+    levels = np.unique(sb)
+    means = np.array([vb[sb == lv].mean() for lv in levels])
+    falls = bool(means[-1] < means.max())
+    worst_k, worst_p = -1, sub_test.p_value
+    for k in range(base.size):
+        keep = np.arange(base.size) != k
+        sub = data_subset(data, base[keep])
+        sw = None if sample_weights is None else np.asarray(sample_weights)[base[keep]]
+        _, t2 = fit_substrate_inhibition(sub, weights=weights, leave_one_out=True, sample_weights=sw)
+        p2 = t2.p_value if t2 is not None else 1.0
+        if p2 > worst_p:
+            worst_k, worst_p = k, p2
+    ksi = sub_fit.value("Ksi")
+    what = (
+        f"Velocity falls at high substrate without inhibitor: substrate inhibition (Ksi {ksi:.3g} {su}"
+        if falls
+        else f"The control curve shows sharper saturation than hyperbolic (the substrate-inhibition form fits better, Ksi {ksi:.3g} {su}"
+    )
+    text = f"{what}, F test p = {sub_test.p_value:.2g}); the inhibition models assume none."
+    if not falls:
+        text += " The velocities do not fall at high substrate, so this is not evidence of substrate inhibition as such."
+    if worst_k >= 0:
+        k = int(base[worst_k])
+        text += (
+            f" The row that drives it most is line {data.line_of(k)} (S = {s[k]:g} {su}, v = {v[k]:g}): without it the F test "
+            f"gives p = {worst_p:.2g}."
+        )
+    return text
+
+
+def data_subset(data: IncubationData, rows: Sequence[int] | Array) -> IncubationData:
+    """The rows ``rows`` of ``data`` (line numbers kept for messages)."""
+    idx = [int(k) for k in rows]
+    pick = lambda xs: tuple(xs[k] for k in idx)  # noqa: E731
+    return IncubationData(
+        substrate_um=pick(data.substrate_um),
+        inhibitor_um=pick(data.inhibitor_um),
+        velocity=pick(data.velocity),
+        velocity_unit=data.velocity_unit,
+        depletion_pct=None if data.depletion_pct is None else pick(data.depletion_pct),
+        lines=pick(data.lines) if data.lines else tuple(k + 1 for k in idx),
+        source=data.source,
+        substrate_unit=data.substrate_unit,
+    )
+
+
+def _f_test(reduced_name: str, reduced: FitResult, full_name: str, full: FitResult) -> FTest:
+    f_val, p_val = extra_sum_of_squares(reduced.rss, reduced.df, full.rss, full.df)
+    return FTest(reduced=reduced_name, full=full_name, f=f_val, df_num=reduced.df - full.df, df_den=full.df, p_value=p_val)
 
 
 def _f_tests(fits: dict[str, FitResult]) -> tuple[FTest, ...]:
@@ -595,7 +944,42 @@ def _at_bound(fit: FitResult, name: str) -> bool:
     return e.at_bound or e.value == math.inf
 
 
-def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests: tuple[FTest, ...]) -> Verdict:
+def _plain_verdict(verdict: Verdict, mm: FitResult, sub: FitResult | None, test: FTest | None, unit: str) -> Verdict:
+    """The verdict of a plain Michaelis-Menten fit, with the substrate-inhibition alternative compared honestly."""
+    if not mm.success:
+        return verdict
+    km = mm.estimate("Km")
+    text = verdict.text + f" Km = {km.value:.3g} {unit}"
+    if km.profile_low is not None and km.profile_high is not None:
+        text += f" ({mm.level:.0%} profile interval {km.profile_low:.3g} to {km.profile_high:.3g} {unit})"
+    text += "."
+    if sub is None or test is None or not math.isfinite(sub.aicc) or not math.isfinite(mm.aicc):
+        text += " The substrate-inhibition alternative was not fitted (it needs at least 4 substrate levels and 5 rows)."
+        return replace(verdict, text=text)
+    best = min(mm.aicc, sub.aicc)
+    rel_mm, rel_si = math.exp(-0.5 * (mm.aicc - best)), math.exp(-0.5 * (sub.aicc - best))
+    w_mm = rel_mm / (rel_mm + rel_si)
+    if test.significant:
+        text += (
+            f" The substrate-inhibition form (Ksi {sub.value('Ksi'):.3g} {unit}) fits significantly better (F test p = "
+            f"{test.p_value:.2g}; Akaike weights {w_mm:.2f} Michaelis-Menten, {1 - w_mm:.2f} substrate inhibition): Km and Vmax "
+            "from the hyperbola are doubtful; see the warnings."
+        )
+    else:
+        text += (
+            f" The substrate-inhibition form does not fit significantly better (F test p = {test.p_value:.2g}; Akaike weights "
+            f"{w_mm:.2f} Michaelis-Menten, {1 - w_mm:.2f} substrate inhibition)."
+        )
+    return replace(verdict, text=text)
+
+
+def _group_label(chosen: str, group: tuple[str, ...], collapsed: str | None) -> str:
+    if collapsed:
+        return f"{chosen}-type models together ({chosen}, and mixed with {collapsed} unbounded)"
+    return f"{' and '.join(group)} together"
+
+
+def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests: tuple[FTest, ...], single_level: str = "") -> Verdict:
     if not ranking:
         first = next(iter(fits.values()))
         return Verdict(
@@ -606,36 +990,38 @@ def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests
             text="No model could be fitted to these data; see the warnings.",
         )
     weight = {r.model: r.weight for r in ranking}
+    rank_of = {r.model: r for r in ranking}
     best = ranking[0].model
     notes: list[str] = []
     unidentifiable: list[str] = []
     chosen = best
-    support = weight[best]
+    group: tuple[str, ...] = ()
+    collapsed: str | None = None
+    if single_level:
+        text = f"Michaelis-Menten fit only: {single_level}; no inhibition model can be fitted, so no Ki is reported."
+        return Verdict(model="none", mechanism=None, strength=_strength(weight["none"]), support=weight["none"], text=text)
     if best == "mixed":
         mixed = fits["mixed"]
         if _at_bound(mixed, "Kic") and "uncompetitive" in weight:
-            chosen = "uncompetitive"
+            chosen, group, collapsed = "uncompetitive", ("uncompetitive", "mixed"), "Kic"
             unidentifiable.append("Kic")
-            support = weight["mixed"] + weight["uncompetitive"]
             notes.append(
                 "The mixed fit collapses onto the uncompetitive model: its competitive constant Kic runs to infinity "
                 "(unbounded), so it is not identifiable."
             )
         elif _at_bound(mixed, "Kiu") and "competitive" in weight:
-            chosen = "competitive"
+            chosen, group, collapsed = "competitive", ("competitive", "mixed"), "Kiu"
             unidentifiable.append("Kiu")
-            support = weight["mixed"] + weight["competitive"]
             notes.append(
                 "The mixed fit collapses onto the competitive model: its uncompetitive constant Kiu runs to infinity "
                 "(unbounded), so it is not identifiable."
             )
         else:
-            simpler = [t for t in tests if t.full == "mixed" and not t.significant and t.reduced in weight]
+            simpler = [t for t in tests if t.full == "mixed" and t.reduced != "none" and not t.significant and t.reduced in weight]
             if simpler:
                 pick = min(simpler, key=lambda t: fits[t.reduced].aicc)
-                if weight[pick.reduced] > 0 and ranking[[r.model for r in ranking].index(pick.reduced)].delta_aicc < 2.0:
-                    chosen = pick.reduced
-                    support = weight[pick.reduced] + weight["mixed"]
+                if weight[pick.reduced] > 0 and rank_of[pick.reduced].delta_aicc < 2.0:
+                    chosen, group = pick.reduced, (pick.reduced, "mixed")
                     notes.append(
                         f"The mixed model fits slightly better by AICc but not significantly better than {pick.reduced} "
                         f"(F test p = {pick.p_value:.2g}); the simpler mechanism is reported."
@@ -644,23 +1030,37 @@ def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests
         mixed = fits["mixed"]
         collapse = {"uncompetitive": "Kic", "competitive": "Kiu"}.get(best)
         if collapse and _at_bound(mixed, collapse):
-            support = weight[best] + weight.get("mixed", 0.0)
+            group, collapsed = (best, "mixed"), collapse
             unidentifiable.append(collapse)
             notes.append(f"The mixed fit collapses onto this model ({collapse} unbounded).")
+    support = weight[chosen]
+    group_support = sum(weight.get(m, 0.0) for m in group) if group else None
     if chosen == "none":
-        alt = ranking[1].model if len(ranking) > 1 else None
-        text = "No inhibition detected: the model without inhibition has the lowest AICc"
-        text += f" (next: {alt}, delta AICc {ranking[1].delta_aicc:.1f})." if alt else "."
+        alt = ranking[1] if len(ranking) > 1 else None
+        text = f"No inhibition shown: the model without inhibition has the lowest AICc (Akaike weight {support:.2f})"
+        text += f"; next: {LABELS[alt.model]} (Akaike weight {alt.weight:.2f}, delta AICc {alt.delta_aicc:.1f})." if alt else "."
         return Verdict(model="none", mechanism=None, strength=_strength(support), support=support, text=text)
+    against_none = next((t for t in tests if t.reduced == "none" and t.full == chosen), None)
+    if against_none is not None and not against_none.significant:
+        text = (
+            f"No inhibition shown: the model without inhibition is not rejected (F test against the {LABELS[chosen]} "
+            f"model, p = {against_none.p_value:.2g}); the {LABELS[chosen]} model's own Akaike weight is {support:.2f}. "
+            "No Ki is reported; higher inhibitor concentrations or more replicates would be needed to show inhibition."
+        )
+        return Verdict(model="none", mechanism=None, strength="none", support=weight.get("none", 0.0), text=text)
     fit = fits[chosen]
-    strength = _strength(support)
-    others = [r for r in ranking if r.model not in (chosen, "mixed" if unidentifiable or chosen != best else "")]
+    strength = _strength(group_support if group_support is not None else support)
+    others = [r for r in ranking if r.model not in (chosen, *group)]
     runner = others[0] if others else None
-    text = f"{LABELS[chosen].capitalize()} inhibition: {strength} support (Akaike weight {support:.2f})"
+    text = f"{LABELS[chosen].capitalize()} inhibition: Akaike weight {support:.2f} for the {LABELS[chosen]} model itself"
+    if group_support is not None:
+        text += f"; {_group_label(chosen, group, collapsed)}: {group_support:.2f}, {strength} support for the group"
+    else:
+        text += f", {strength} support"
     if runner is not None:
         delta = runner.aicc - fits[chosen].aicc
         if math.isfinite(delta):
-            text += f"; next best {LABELS[runner.model]} at delta AICc {delta:.1f}"
+            text += f"; next best {LABELS[runner.model]} (Akaike weight {runner.weight:.2f}) at delta AICc {delta:.1f}"
         else:
             text += f"; {LABELS[runner.model]} fits exactly too (noise-free data cannot separate them)"
     text += "."
@@ -683,7 +1083,17 @@ def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests
                 )
     if notes:
         text += " " + " ".join(notes)
-    return Verdict(model=chosen, mechanism=chosen, strength=strength, support=support, text=text, unidentifiable=tuple(unidentifiable))
+    return Verdict(
+        model=chosen,
+        mechanism=chosen,
+        strength=strength,
+        support=support,
+        text=text,
+        unidentifiable=tuple(unidentifiable),
+        group=group,
+        group_support=group_support,
+        inhibition_shown=True,
+    )
 
 
 def _strength(weight: float) -> str:
@@ -707,9 +1117,11 @@ def _design_warnings(
     weights: str,
     sub_fit: FitResult | None,
     sub_test: FTest | None,
+    sample_weights: Array | None = None,
 ) -> tuple[str, ...]:
     out: list[str] = []
     s, i, v = data.arrays()
+    su = data.substrate_unit
     for f in fits.values():
         if not f.success:
             out.append(f"The {f.model} fit did not converge ({f.message}); it is left out of the comparison.")
@@ -718,23 +1130,24 @@ def _design_warnings(
     if math.isfinite(km) and km > 0:
         if s.min() > km:
             out.append(
-                f"Lowest substrate concentration {s.min():.3g} uM is above Km ({km:.3g} uM): Km and the mechanism are "
+                f"Lowest substrate concentration {s.min():.3g} {su} is above Km ({km:.3g} {su}): Km and the mechanism are "
                 f"poorly defined; include concentrations below Km."
             )
         elif s.max() < km:
             out.append(
-                f"Highest substrate concentration {s.max():.3g} uM is below Km ({km:.3g} uM): Vmax and the mechanism "
+                f"Highest substrate concentration {s.max():.3g} {su} is below Km ({km:.3g} {su}): Vmax and the mechanism "
                 f"are poorly defined; include concentrations above Km."
             )
         elif s.min() > 0.5 * km or s.max() < 2.0 * km:
             out.append(
-                f"Substrate range {s.min():.3g}-{s.max():.3g} uM spans {s.min() / km:.2g}-{s.max() / km:.2g} x Km; "
+                f"Substrate range {s.min():.3g}-{s.max():.3g} {su} spans {s.min() / km:.2g}-{s.max() / km:.2g} x Km; "
                 "about 0.2-5 x Km separates the mechanisms better (common practice)."
             )
     levels = np.unique(i[i > 0])
-    if not np.any(i == 0):
+    single = np.unique(i).size < 2
+    if not np.any(i == 0) and not single:
         out.append("No control rows without inhibitor: the uninhibited curve is not measured directly.")
-    if levels.size < 3:
+    if 0 < levels.size < 3 and not single:
         out.append(f"Only {levels.size} inhibitor level(s) above zero; at least 3 spanning Ki are common practice for a reliable Ki.")
     est = None
     if chosen is not None:
@@ -767,10 +1180,7 @@ def _design_warnings(
             detail = "; ".join(f"line {data.line_of(k)}: v = {v[k]:g}, t = {t[k]:.1f}" for k in flagged[:6])
             out.append(f"Possible outlier(s) by externally studentised residual |t| > {OUTLIER_T:g} in the {chosen.model} fit: {detail}.")
     if sub_fit is not None and sub_test is not None and sub_test.significant and math.isfinite(sub_fit.value("Ksi")):
-        out.append(
-            f"Velocity falls at high substrate without inhibitor: substrate inhibition (Ksi {sub_fit.value('Ksi'):.3g} uM, "
-            f"F test p = {sub_test.p_value:.2g}); the inhibition models assume none."
-        )
+        out.append(_substrate_inhibition_warning(data, sub_fit, sub_test, "none" if weights == "auto" else weights, sample_weights))
     if weights == "poisson":
         out.append("With Poisson-like weights the weights depend on the fit, so AICc and F tests are approximate.")
     if weights in ("1/y", "1/y2") and np.any(v <= 0):

@@ -26,10 +26,10 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
-from ..errors import InputError
+from ..errors import FitError, InputError
 from ..scenario import MECHANISMS
 from .conversion import CHENG_PRUSOFF_SOURCE, ki_from_ic50
-from .engine import CurveModel, FitResult, fit_curve
+from .engine import CurveModel, FitResult, extra_sum_of_squares, fit_curve
 
 __all__ = ["IC50Fit", "KiFromIC50", "fit_ic50", "guess_ic50", "ic50_model", "ki_from_ic50_fit"]
 
@@ -135,8 +135,34 @@ class IC50Fit:
         return e.ci_low, e.ci_high
 
     @property
+    def no_decline(self) -> str:
+        """Why the curve shows no inhibition ("" when it declines): flat, or rising with inhibitor.
+
+        The curve declines when the fitted response at the highest inhibitor level is below the
+        fitted response at the lowest, and the log-logistic curve fits significantly better than a
+        flat line (extra-sum-of-squares F test at 5 %, Bates & Watts 1988 section 3.5, common practice).
+        """
+        x = np.asarray(self.concentration_um)
+        y = np.asarray(self.response)
+        if not self.fit.success:
+            return "the curve could not be fitted"
+        fitted = np.asarray(self.fit.fitted)
+        low, high = float(fitted[np.argmin(x)]), float(fitted[np.argmax(x)])
+        if high >= low:
+            return (
+                f"the response does not fall with inhibitor (fitted {low:.3g} at {x.min():.3g} uM, {high:.3g} at {x.max():.3g} uM): "
+                "no inhibition is shown, so there is no IC50"
+            )
+        p = _flat_line_p(y, self.fit)
+        if p >= 0.05:
+            return f"the curve is not distinguishable from a flat line (F test p = {p:.2g}): no inhibition is shown, so there is no IC50"
+        return ""
+
+    @property
     def warnings(self) -> tuple[str, ...]:
         out = list(self.fit.warnings)
+        if self.no_decline:
+            return (*out, f"No inhibition: {self.no_decline}.")
         x = np.asarray(self.concentration_um)
         ic50 = self.ic50_um
         levels = np.unique(x[x > 0])
@@ -147,6 +173,11 @@ class IC50Fit:
         if levels.size < 5:
             out.append(f"Only {levels.size} inhibitor level(s) above zero; 5 or more spanning the IC50 are common practice for a curve.")
         return tuple(out)
+
+
+def _flat_line_p(y: Array, fit: FitResult) -> float:
+    """p value of the F test of a flat line (the mean) against the fitted curve."""
+    return extra_sum_of_squares(float(np.sum((y - y.mean()) ** 2)), y.size - 1, fit.rss, fit.df)[1]
 
 
 def fit_ic50(
@@ -186,6 +217,10 @@ def fit_ic50(
             raise InputError(f"response (row {k + 1})", float(y[k]), "is not a finite number")
     if np.unique(x[x > 0]).size < 3:
         raise InputError("inhibitor", f"{np.unique(x[x > 0]).size} level(s)", "are too few; an IC50 curve needs at least 3 positive levels")
+    if np.all(y == 0):
+        raise InputError("response", "every value is 0", "cannot be fitted; expected measured activities above zero")
+    if np.ptp(y) == 0:
+        raise InputError("response", f"every value is {y[0]:g}", "shows no change with inhibitor; an IC50 curve needs a decline")
     if bottom is not None and not math.isfinite(bottom):
         raise InputError("bottom", bottom, "is not a finite number")
     model = ic50_model(bottom, response_unit)
@@ -233,7 +268,11 @@ def ki_from_ic50_fit(
     ------
     InputError
         Unknown mechanism, or substrate concentration / Km (or alpha for mixed) missing or not positive.
+    FitError
+        The curve shows no inhibition (see :attr:`IC50Fit.no_decline`): there is no IC50 to convert.
     """
+    if result.no_decline:
+        raise FitError(f"no Ki: {result.no_decline}")
     if mechanism not in MECHANISMS:
         raise InputError("mechanism", mechanism, f"is not one of {', '.join(MECHANISMS)}")
     if mechanism != "noncompetitive":

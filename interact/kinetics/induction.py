@@ -27,6 +27,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from ..errors import FitError
+from .engine import extra_sum_of_squares
 from .inactivation import Array, CurveFit, Estimate, _checked, fit_curve, guess_hyperbola
 
 __all__ = ["EMAX_EQUATION", "HILL_EQUATION", "InductionFit", "fit_induction", "fold_change_model", "guess_induction"]
@@ -89,6 +90,8 @@ class InductionFit:
     concentration_um: tuple[float, ...]
     fold_change: tuple[float, ...]
     notes: tuple[str, ...] = ()
+    #: why the data show no induction ("" when they do): the Emax model is not better than fold change 1
+    no_effect: str = ""
 
     @property
     def success(self) -> bool:
@@ -176,6 +179,9 @@ def fit_induction(
         h_est = None
     if float(c.max()) < fit.estimates[1].value:
         notes.append("the highest concentration tested lies below the fitted EC50: Emax is an extrapolation")
+    no_effect = _no_induction(f, s, fit)
+    if no_effect:
+        notes.append(f"no induction shown: {no_effect}")
     return InductionFit(
         emax=fit.estimates[0],
         ec50=fit.estimates[1],
@@ -184,4 +190,19 @@ def fit_induction(
         concentration_um=tuple(float(v) for v in c),
         fold_change=tuple(float(v) for v in f),
         notes=tuple(notes),
+        no_effect=no_effect,
     )
+
+
+def _no_induction(fold: Array, sigma: Array | None, fit: CurveFit) -> str:
+    """Extra-sum-of-squares F test of "fold change 1 everywhere" (no parameters) against the fitted model.
+
+    Bates & Watts 1988, section 3.5 (common practice); "" when the model is significantly better at 5 %.
+    """
+    if not fit.success:
+        return "the fit did not converge"
+    w = 1.0 if sigma is None else 1.0 / sigma
+    _, p = extra_sum_of_squares(float(np.sum(((fold - 1.0) * w) ** 2)), fold.size, fit.rss, fit.df)
+    if p < 0.05:
+        return ""
+    return f"the Emax model does not fit better than fold change 1 at every concentration (F test p = {p:.2g})"

@@ -22,7 +22,7 @@ from ..errors import InputError
 from ..scenario import MECHANISMS, loads_scenario
 from ..tables import load_targets, resolve_target
 
-__all__ = ["inhibition_entry", "update_inhibition_text"]
+__all__ = ["inhibition_entry", "set_keeping_history", "update_inhibition_text"]
 
 _CONFLICTING = ("ic50", "substrate_conc", "km")
 
@@ -40,6 +40,7 @@ def update_inhibition_text(
     origin: str,
     alpha: float | None = None,
     fu_inc: float | None = None,
+    ki_ci_um: tuple[float, float] | None = None,
     source: str = "scenario",
 ) -> str:
     """The scenario text with the target's inhibition constant set to ``ki_um`` (uM).
@@ -60,6 +61,9 @@ def update_inhibition_text(
         Kiu/Kic for mixed inhibition.
     fu_inc
         Written when given; otherwise an existing ``fu_inc`` is kept.
+    ki_ci_um
+        The interval of the carried constant (uM), written as ``ki_ci``; an older ``ki_ci`` that
+        belongs to the replaced Ki is removed (and recorded in a comment) when none is given.
 
     Raises
     ------
@@ -83,26 +87,25 @@ def update_inhibition_text(
     stamp = origin.split(",")[-1].strip() if "," in origin else "fit"
 
     def put(key: str, value: Any) -> None:
-        old = entry.get(key) if entry is not None else None
-        entry[key] = value  # type: ignore[index]
-        if old is not None and str(old) != str(value) and key != "origin":
-            entry[key].trivia.comment = f"# {stamp}: was {_shown(old.unwrap() if hasattr(old, 'unwrap') else old)}"  # type: ignore[index, union-attr]
-            entry[key].trivia.comment_ws = "  "  # type: ignore[index]
+        set_keeping_history(entry, key, value, stamp)
 
     removed = []
-    for key in _CONFLICTING:
+    stale = (*(("alpha",) if mechanism != "mixed" else ()), *(("ki_ci",) if ki_ci_um is None else ()), "ic50_ci", "km_ci")
+    for key in (*_CONFLICTING, *stale):
         if key in entry:
             old = entry[key]
-            removed.append(f"{key} = {_shown(old.unwrap() if hasattr(old, 'unwrap') else old)}")
+            note = _comment_of(old)
+            removed.append(f"{key} = {_shown(old.unwrap() if hasattr(old, 'unwrap') else old)}" + (f" ({note})" if note else ""))
             del entry[key]
-    if mechanism != "mixed" and "alpha" in entry:
-        old = entry["alpha"]
-        removed.append(f"alpha = {_shown(old.unwrap() if hasattr(old, 'unwrap') else old)}")
-        del entry["alpha"]
     put("ki", f"{ki_um:.6g} uM")
     put("mechanism", mechanism)
     if mechanism == "mixed" and alpha is not None:
         put("alpha", float(f"{alpha:.6g}"))
+    if ki_ci_um is not None:
+        low, high = ki_ci_um
+        if not (math.isfinite(low) and math.isfinite(high) and 0 < low <= ki_um <= high):
+            raise InputError("ki_ci", ki_ci_um, f"is not a finite interval around ki = {ki_um:.6g} uM")
+        put("ki_ci", [f"{low:.6g} uM", f"{high:.6g} uM"])
     if fu_inc is not None:
         put("fu_inc", float(f"{fu_inc:.6g}"))
     put("origin", origin)
@@ -114,6 +117,33 @@ def update_inhibition_text(
     new_text = tomlkit.dumps(doc)
     loads_scenario(new_text, source=source)  # raises ScenarioError (an InputError) listing problems
     return new_text
+
+
+def _comment_of(item: Any) -> str:
+    trivia = getattr(item, "trivia", None)
+    return trivia.comment.lstrip("#").strip() if trivia is not None and trivia.comment else ""
+
+
+def set_keeping_history(entry: Table, key: str, value: Any, stamp: str) -> None:
+    """Set ``entry[key] = value`` without losing what the user wrote on that line.
+
+    A changed value leaves ``# <stamp>: was <old>`` beside the new one, followed by the comment the old
+    line carried; an unchanged value keeps its comment as it was.  ``origin`` is treated the same way,
+    so the provenance of every earlier fit stays in the file.
+    """
+    old = entry.get(key)
+    note = _comment_of(old) if old is not None else ""
+    entry[key] = value
+    if old is None:
+        return
+    old_shown = _shown(old.unwrap() if hasattr(old, "unwrap") else old)
+    if old_shown != _shown(value):
+        entry[key].trivia.comment = f"# {stamp}: was {old_shown}" + (f"; {note}" if note else "")
+    elif note:
+        entry[key].trivia.comment = f"# {note}"
+    else:
+        return
+    entry[key].trivia.comment_ws = "  "
 
 
 def inhibition_entry(text: str, *, target: str, source: str = "scenario", purpose: str = "") -> tuple[Any, Table, bool]:

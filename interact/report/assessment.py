@@ -165,7 +165,7 @@ def assessment_sections(
                 (
                     c.target,
                     c.species,
-                    f"{fmt(c.ki_um)} uM",
+                    f"{fmt(c.ki_um)} uM" + (f" (interval {fmt(c.ki_ci_um[0])}-{fmt(c.ki_ci_um[1])})" if c.ki_ci_um else ""),
                     c.ki_route,
                     f"{c.fu_inc:g} ({c.fu_inc_origin})",
                     f"{fmt(c.ki_u_um)} uM",
@@ -176,9 +176,10 @@ def assessment_sections(
                 (
                     c.target,
                     c.species,
-                    f"kinact {_given(a, c.species_index, c.target, 'kinact') or f'{fmt(c.kinact_per_h)} 1/h'}",
+                    f"kinact {_given(a, c.species_index, c.target, 'kinact') or f'{fmt(c.kinact_per_h)} 1/h'}, "
+                    f"KI {_given(a, c.species_index, c.target, 'ki_inact') or f'{fmt(c.ki_inact_um)} uM'}",
                     "time-dependent",
-                    "-",
+                    f"{c.ki_inact_fu:g} ({c.ki_inact_fu_origin})",
                     f"KI,u {fmt(c.ki_inact_u_um)} uM",
                 )
             )
@@ -187,9 +188,9 @@ def assessment_sections(
                 (
                     c.target,
                     c.species,
-                    f"Emax {fmt(c.emax)}, d {c.calibration:g} ({c.calibration_origin})",
+                    f"Emax {fmt(c.emax)}, d {c.calibration:g} ({c.calibration_origin}), EC50 {fmt(c.ec50_um)} uM",
                     "induction",
-                    "-",
+                    f"{c.ec50_fu:g} ({c.ec50_fu_origin})",
                     f"EC50,u {fmt(c.ec50_u_um)} uM",
                 )
             )
@@ -199,7 +200,10 @@ def assessment_sections(
             title="Inputs",
             blocks=(
                 Table(headers=("Perpetrator", "value", "as used"), rows=tuple(perp_rows)),
-                Table(headers=("Target", "species", "constant given", "route to Ki", "fu,inc", "unbound"), rows=tuple(const_rows)),
+                Table(
+                    headers=("Target", "species", "constant given", "route to Ki", "binding: fu (source)", "unbound"),
+                    rows=tuple(const_rows),
+                ),
                 Table(headers=("Victim", "value", ""), rows=tuple(vic_rows)),
                 Table(headers=("Setting", "value used", "origin and source"), rows=settings_rows),
             ),
@@ -512,8 +516,15 @@ def _assessment_dict(a: Assessment) -> dict[str, Any]:
                 "ki_route": c.ki_route,
                 "mechanism": c.mechanism,
                 "kinact_per_h": c.kinact_per_h,
+                "ki_ci_um": list(c.ki_ci_um) if c.ki_ci_um else None,
+                "ki_inact_um": c.ki_inact_um,
+                "ki_inact_fu": c.ki_inact_fu,
+                "ki_inact_fu_origin": c.ki_inact_fu_origin,
                 "ki_inact_u_um": c.ki_inact_u_um,
                 "emax": c.emax,
+                "ec50_um": c.ec50_um,
+                "ec50_fu": c.ec50_fu,
+                "ec50_fu_origin": c.ec50_fu_origin,
                 "ec50_u_um": c.ec50_u_um,
                 "calibration": c.calibration,
             }

@@ -70,8 +70,10 @@ def fit_sections(
         Section(
             title="Incubation data",
             blocks=(
-                f"{d.source or 'data'}: {d.n} rows; substrate {fmt(min(s_lv))}-{fmt(max(s_lv))} uM at {len(s_lv)} levels; "
-                f"inhibitor {', '.join(fmt(x) for x in i_lv)} uM; velocity in {d.velocity_unit or 'unstated units'}; "
+                f"{d.source or 'data'}: {d.n} rows; substrate {fmt(min(s_lv))}-{fmt(max(s_lv))} {d.substrate_unit} at "
+                f"{len(s_lv)} levels; "
+                + (f"inhibitor {', '.join(fmt(x) for x in i_lv)} uM; " if i_lv != (0.0,) else "no inhibitor; ")
+                + f"velocity in {d.velocity_unit or 'unstated units'}; "
                 f"weights: {comp.weights}.",
             ),
         )
@@ -112,6 +114,20 @@ def fit_sections(
             ),
         )
     )
+    if comp.error_model is not None:
+        e = comp.error_model
+        out.append(
+            Section(
+                title="Error model",
+                blocks=(
+                    e.text,
+                    Table(
+                        headers=("variance model", "exponent theta", "log-likelihood", "AICc"),
+                        rows=tuple((n, f"{th:.3g}", fmt(ll), fmt(a)) for n, th, ll, a in e.candidates),
+                    ),
+                ),
+            )
+        )
     out.append(Section(title="Verdict", blocks=(Note(text=comp.verdict.text, kind="verdict"),)))
     chosen = comp.chosen
     out.append(
@@ -200,6 +216,17 @@ def comparison_to_dict(
             "velocity_unit": d.velocity_unit,
         },
         "weights": comp.weights,
+        "error_model": None
+        if comp.error_model is None
+        else {
+            "name": comp.error_model.name,
+            "exponent": comp.error_model.exponent,
+            "chosen_on": comp.error_model.model,
+            "candidates": [
+                {"name": n, "exponent": th, "log_likelihood": _num(ll), "aicc": _num(a)} for n, th, ll, a in comp.error_model.candidates
+            ],
+            "text": comp.error_model.text,
+        },
         "level": comp.level,
         "fits": [_fit_dict(f) for f in comp.fits],
         "ranking": [{"model": r.model, "aicc": _num(r.aicc), "delta_aicc": _num(r.delta_aicc), "weight": r.weight} for r in comp.ranking],
@@ -211,6 +238,9 @@ def comparison_to_dict(
             "mechanism": comp.verdict.mechanism,
             "strength": comp.verdict.strength,
             "support": comp.verdict.support,
+            "group": list(comp.verdict.group),
+            "group_support": comp.verdict.group_support,
+            "inhibition_shown": comp.verdict.inhibition_shown,
             "text": comp.verdict.text,
             "unidentifiable": list(comp.verdict.unidentifiable),
         },

@@ -94,9 +94,12 @@ def ki_entry(comp: ModelComparison, data: dict[str, Any], target_text: str, sour
                 index = i
                 break
     entry: dict[str, Any] = dict(entries[index]) if index is not None else {"target": t.name}
-    replaced = [f"{k} = {entry.pop(k)}" for k in ("ic50", "substrate_conc", "km", "ki", "alpha") if k in entry]
+    replaced = [f"{k} = {entry.pop(k)}" for k in ("ic50", "substrate_conc", "km", "ki", "alpha", "ki_ci", "km_ci") if k in entry]
     unit = ki.unit or "uM"
     entry["ki"] = f"{ki.value:.6g} {unit}"
+    ci = ki.interval()
+    if ci is not None:  # carried like `fit --into` does: the uncertainty command uses it
+        entry["ki_ci"] = [f"{ci[0]:.6g} {unit}", f"{ci[1]:.6g} {unit}"]
     entry["mechanism"] = mechanism
     if comp.alpha is not None:
         entry["alpha"] = float(f"{comp.alpha:.6g}")

@@ -16,7 +16,7 @@ import numpy as np
 import pytest
 from conftest import read_checks
 
-from interact import load_scenario
+from interact import assess, load_scenario
 from interact.cli import main
 from interact.errors import InputError
 from interact.kinetics.carry import carry_constants_text, parse_fold_change_csv, parse_preincubation_csv
@@ -48,7 +48,7 @@ def test_bad_csv_names_row_and_column() -> None:
 def test_carry_keeps_comments_and_validates() -> None:
     text = EXAMPLE.read_text(encoding="utf-8")
     new = carry_constants_text(text, target="CYP3A4", values={"kinact": "0.05 1/min", "ki_inact": "2 uM"}, origin="test fit")
-    assert '# was "0.006 1/min"; time-dependent part' in new
+    assert '# fit: was "0.006 1/min"; time-dependent part' in new  # one writer for every fit: stamp, old value, old comment
     assert "INVENTED" in new and "reversible part, invented microsomal incubation" in new
     s = load_scenario_text(new)
     assert s.perpetrator.inhibits[0].origin == "test fit"
@@ -82,7 +82,12 @@ def test_fit_tdi_command_recovers_and_carries(tmp_path: Path, capsys: pytest.Cap
     s = load_scenario(scen)
     inh = s.perpetrator.inhibits[0]
     assert inh.kinact.to("1/min").magnitude == pytest.approx(0.08, rel=1e-5)
-    assert inh.ki_inact.to("uM").magnitude == pytest.approx(1.25, rel=1e-5)  # x fu,inc 0.5
+    # issue 14: the in vitro KI goes in as fitted, with its own binding beside it; the unbound KI is their product
+    assert inh.ki_inact.to("uM").magnitude == pytest.approx(2.5, rel=1e-5)
+    assert inh.fu_inc_ki_inact == 0.5 and inh.fu_inc == 0.8  # the entry's fu_inc (for Ki) is left alone
+    const = next(c for c in assess(s).constants if c.target == "CYP3A" and c.species_index == 0)
+    assert const.ki_inact_u_um == pytest.approx(1.25, rel=1e-5) and const.ki_inact_fu_origin == "fu_inc_ki_inact (given)"
+    assert inh.ki_inact_ci is not None and inh.kinact_ci is not None
     assert "fit of tdi.csv" in inh.origin
 
 

@@ -35,7 +35,7 @@ def test_reads_the_vmkmki_file_with_units_given() -> None:
         ("substrate (uM),inhibitor (uM),velocity\n1,-1,2\n", "line 2"),
         ("substrate (uM),inhibitor (uM)\n1,0\n", "lacks the column velocity"),
         ("substrate,inhibitor (uM),velocity\n1,0,2\n", "substrate unit"),
-        ("substrate (ng/mL),inhibitor (uM),velocity\n1,0,2\n", "molar concentration"),
+        ("substrate (uM),inhibitor (ng/mL),velocity\n1,0,2\n", "molar concentration"),  # Ki must be molar; a substrate need not
         ("substrate (uM),inhibitor (uM),velocity\n1,0\n", "line 2"),
         ("substrate (uM),inhibitor (uM),velocity\n1,0,nan\n", "finite"),
         ("", "empty"),

@@ -71,7 +71,7 @@ def test_into_updates_the_scenario_keeps_comments_and_assess_uses_it(tmp_path: P
     assert cyp3a.ki.to("uM").magnitude == pytest.approx(fitted, rel=1e-5)
     assert cyp3a.mechanism == "uncompetitive" and cyp3a.fu_inc == 0.5
     today = datetime.now(UTC).date().isoformat()
-    assert cyp3a.origin == f"fit of nlstools_vmkmki.csv, uncompetitive model (none weights), {today}"
+    assert cyp3a.origin == f"fit of nlstools_vmkmki.csv, uncompetitive model (constant error model); ki_ci 95% profile likelihood, {today}"
     result = assess(loaded)
     const = next(c for c in result.constants if c.target == "CYP3A" and c.species_index == 0)
     assert const.ki_u_um == pytest.approx(0.5 * fitted, rel=1e-5)

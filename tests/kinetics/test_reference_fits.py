@@ -159,6 +159,15 @@ def test_vmkmki_selects_uncompetitive_and_reports_kic_unbounded() -> None:
     assert kic.value == math.inf and kic.std_error is None and kic.profile_high == math.inf
     assert mixed.rss == pytest.approx(comp.fit("uncompetitive").rss, rel=1e-9)
     assert "unbounded" in comp.verdict.text
+    # issue 14: each model's own Akaike weight, never a sum printed as one model's weight
+    weights = {r.model: r.weight for r in comp.ranking}
+    assert comp.verdict.support == weights["uncompetitive"] < 0.9
+    assert f"Akaike weight {weights['uncompetitive']:.2f} for the uncompetitive model itself" in comp.verdict.text
+    assert comp.verdict.group == ("uncompetitive", "mixed")
+    assert comp.verdict.group_support == pytest.approx(weights["uncompetitive"] + weights["mixed"], abs=1e-12)
+    assert f"uncompetitive-type models together (uncompetitive, and mixed with Kic unbounded): {comp.verdict.group_support:.2f}" in (
+        comp.verdict.text
+    )
 
 
 @pytest.mark.parametrize(
@@ -172,7 +181,7 @@ def test_vmkmki_estimates_agree_with_the_scipy_refits(model: str, names: tuple[s
     )
     estimates = [float(v) for v in row["estimate"].split("|")]
     errors = [float(v) for v in row["std_error"].split("|")]
-    fit = fit_inhibition(_vmkmki(), models=("none", model)).fit(model)
+    fit = fit_inhibition(_vmkmki(), models=("none", model), weights="none").fit(model)  # the refits are unweighted
     for name, est, se in zip(names, estimates, errors, strict=True):
         assert fit.value(name) == pytest.approx(est, rel=2e-6)
         assert fit.estimate(name).std_error == pytest.approx(se, rel=2e-4)

@@ -74,3 +74,37 @@ def test_unreadable_toml_and_missing_perpetrator_are_refused() -> None:
         update_inhibition_text("title = ", target="CYP3A", ki_um=1.0, mechanism="competitive", origin="fit")
     with pytest.raises(InputError, match="perpetrator"):
         update_inhibition_text('title = "x"\n', target="CYP3A", ki_um=1.0, mechanism="competitive", origin="fit")
+
+
+def test_replaced_lines_keep_their_comments_and_every_earlier_origin() -> None:
+    """Issue 11: `fit --into` dropped the comment on each replaced line and the previous origin."""
+    text = DEMO.replace('mechanism = "competitive"\n', 'mechanism = "competitive"  # assumed, not tested\norigin = "typed by hand"\n', 1)
+    text = text.replace("fu_inc = 0.55\n", "fu_inc = 0.55  # measured by dialysis\n", 1)
+    first = update_inhibition_text(
+        text, target="CYP3A", ki_um=2.0, mechanism="uncompetitive", fu_inc=0.55, origin="fit of a.csv, 2026-12-01"
+    )
+    second = update_inhibition_text(first, target="CYP3A", ki_um=3.0, mechanism="uncompetitive", origin="fit of b.csv, 2026-12-02")
+    for needle in (
+        "from an invented microsomal incubation",  # the comment on the replaced ki line
+        "assumed, not tested",  # the comment on the replaced mechanism line
+        "measured by dialysis",  # an unchanged value keeps its comment
+        '"typed by hand"',  # the first origin
+        '"fit of a.csv, 2026-12-01"',  # the second
+    ):
+        assert needle in second, needle
+    inh = next(i for i in loads_scenario(second).perpetrator.inhibits if i.target == "CYP3A")
+    assert inh.origin == "fit of b.csv, 2026-12-02" and inh.ki.to("uM").magnitude == 3.0
+
+
+def test_carried_tdi_constants_keep_comments_and_origin() -> None:
+    from interact.kinetics.carry import carry_constants_text
+
+    text = DEMO.replace(
+        'ki = "4.2 uM"                 # from an invented microsomal incubation\n',
+        'ki = "4.2 uM"\nkinact = "0.05 1/min"  # from a pilot run\nki_inact = "3 uM"\norigin = "typed"\n',
+        1,
+    )
+    new = carry_constants_text(
+        text, target="CYP3A", values={"kinact": "0.07 1/min", "ki_inact": "3 uM"}, origin="TDI fit of t.csv, 2026-12-02"
+    )
+    assert "from a pilot run" in new and 'was "0.05 1/min"' in new and '"typed"' in new

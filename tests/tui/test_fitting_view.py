@@ -54,6 +54,8 @@ async def test_fit_in_worker_then_accept_ki_into_the_scenario() -> None:
         c = next(c for c in assess(app.scenario).constants if c.target == "CYP3A" and c.species_index == 0)
         assert c.ki_um == pytest.approx(reference.ki.value, rel=1e-5)
         assert app.field("perpetrator.inhibits[0].ki").text == entry["ki"]
+        # the interval travels with the Ki, as with `fit --into` (issue 14)
+        assert c.ki_ci_um == pytest.approx((reference.ki.profile_low, reference.ki.profile_high), rel=1e-5)
 
 
 @asynctest
