@@ -479,7 +479,7 @@ def _parser() -> argparse.ArgumentParser:
     with_report_options(p)
     p.set_defaults(run=_cmd_assess)
 
-    p = sub.add_parser("tables", help="print the reference tables with their sources and status")
+    p = sub.add_parser("tables", help="print the reference tables with their sources and status, and the source registry in full")
     p.add_argument("--rules", metavar="NAME|PATH", help="show only this rule set")
     p.add_argument("--format", choices=("text", "markdown"), default="text")
     p.set_defaults(run=_cmd_tables)
