@@ -39,3 +39,12 @@ def test_timecourse_plot_is_named(tmp_path: Path, capsys: pytest.CaptureFixture[
     assert f"interact: plot written to {plot.resolve()}" in captured.err.splitlines()
     assert plot.read_text(encoding="utf-8").startswith("<svg")
     assert captured.out  # the text result still goes to standard output
+
+
+def test_constants_given_are_shown_as_written(capsys: pytest.CaptureFixture[str]) -> None:
+    # tdi_inducer.toml (invented) gives kinact = "0.006 1/min" and KI = "1.8 uM": shown so under "constant given",
+    # not converted to 1/h (the unbound value beside it is the engine's, in uM)
+    assert main(["assess", str(EXAMPLE), "--width", "400"]) == 0
+    out = capsys.readouterr().out
+    row = next(line for line in out.splitlines() if "kinact" in line and "time-dependent" in line)
+    assert "kinact 0.006 1/min" in row and "0.360 1/h" not in row

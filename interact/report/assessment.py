@@ -165,7 +165,9 @@ def assessment_sections(
                 (
                     c.target,
                     c.species,
-                    f"{fmt(c.ki_um)} uM" + (f" (interval {fmt(c.ki_ci_um[0])}-{fmt(c.ki_ci_um[1])})" if c.ki_ci_um else ""),
+                    # a Ki the user gave is shown as written (unit and digits); a converted one to the usual figures
+                    ((c.ki_route == "Ki given" and _given(a, c.species_index, c.target, "ki")) or f"{fmt(c.ki_um)} uM")
+                    + (f" (interval {fmt(c.ki_ci_um[0])}-{fmt(c.ki_ci_um[1])} uM)" if c.ki_ci_um else ""),
                     c.ki_route,
                     f"{c.fu_inc:g} ({c.fu_inc_origin})",
                     f"{fmt(c.ki_u_um)} uM",
