@@ -34,9 +34,25 @@ SHOWN: Final = (
 _RATIOS: Final = ("AUCR gut", "AUCR liver", "AUCR")
 
 
+def _basic_rounded(cell: str) -> str:
+    """'R1 CYP3A 3.459 STUDY; ...' with each value rounded like every other ratio."""
+    out = []
+    for entry in cell.split("; "):
+        words = entry.split(" ")
+        at = len(words) - (2 if words[-1] == "STUDY" else 1)
+        try:
+            words[at] = fmt_ratio(float(words[at]))
+        except (ValueError, IndexError):
+            pass  # not a number where one is expected: shown as written
+        out.append(" ".join(words))
+    return "; ".join(out)
+
+
 def _rounded(col: str, cell: str) -> str:
     if not cell:
         return cell
+    if col == "basic models":
+        return _basic_rounded(cell)
     if col in _RATIOS:
         return fmt_ratio(float(cell))
     if col.endswith("(uM)"):
@@ -87,14 +103,20 @@ def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *,
         handle.write("\n ]\n}\n")
     elif fmt_name == "markdown":
         handle.write(f"# interact batch screen ({result.rules.id})\n\n> **Caution:** {CAUTION_LINE}\n\n")
+        terms = result.rules.terms  # a document for reading: the rule set's words (the CSV and JSON keys stay)
         handle.write(
-            f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
-            "worst first (largest |log AUCR|).\n\n"
+            speak(
+                f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
+                "worst first (largest |log AUCR|).\n\n",
+                terms,
+            )
         )
         idx = [OUTPUT_COLUMNS.index(c) for c in SHOWN]
-        handle.write("| " + " | ".join(SHOWN) + " |\n|" + "|".join("---" for _ in SHOWN) + "|\n")
+        names = (OUTPUT_COLUMNS.index("perpetrator"), OUTPUT_COLUMNS.index("victim"))
+        handle.write("| " + " | ".join(speak(h, terms) for h in SHOWN) + " |\n|" + "|".join("---" for _ in SHOWN) + "|\n")
         for row in result_rows(result, top):
-            handle.write("| " + " | ".join(_md(_rounded(OUTPUT_COLUMNS[i], row[i])) for i in idx) + " |\n")
+            cells = (row[i] if i in names else speak(_rounded(OUTPUT_COLUMNS[i], row[i]), terms) for i in idx)
+            handle.write("| " + " | ".join(_md(c) for c in cells) + " |\n")
             count += 1
         skipped = (*result.perpetrators.skipped, *result.victims.skipped)
         if skipped:
