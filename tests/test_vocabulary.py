@@ -117,3 +117,18 @@ def test_fit_into_keeps_the_files_spelling() -> None:
     assert "[[precipitant.inhibits]]" in text and "perpetrator" not in text.replace("Perpetrator", "")
     inh = next(i for i in loads_scenario(text).perpetrator.inhibits if i.target == "CYP2D6")
     assert inh.ki is not None
+
+
+def test_a_rule_set_with_bad_terms_is_refused_with_the_field_named(tmp_path) -> None:  # type: ignore[no-untyped-def]
+    from interact.errors import InputError
+    from interact.tables import tables_dir
+
+    text = (tables_dir() / "rules" / "ich-m12-2024.toml").read_text(encoding="utf-8")
+    bad = tmp_path / "mine.toml"
+    bad.write_text(text.replace('object = "object drug"', 'object = "object drug; rm"'), encoding="utf-8")
+    with pytest.raises(InputError) as info:
+        load_rules(bad)
+    assert "rules.terms.object" in str(info.value)
+    plain = tmp_path / "plain.toml"  # no [terms]: the older words
+    plain.write_text(re.sub(r"(?s)\[terms\].*?\n\n", "", text), encoding="utf-8")
+    assert load_rules(plain).terms == Terms()
