@@ -128,7 +128,12 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
         If a value the engine needs cannot be used (for example a mass
         concentration without molar mass in a hand-built scenario).
     """
-    rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules if rules is not None else scenario.rules)
+    if isinstance(rules, RuleSet):
+        rule_set = rules
+    elif rules is not None:
+        rule_set = load_rules(rules)
+    else:  # the scenario's own key: a relative path is read from the scenario's folder
+        rule_set = load_rules(scenario.rules, base=scenario.folder)
     classes = load_classes()
     settings = resolve_settings(scenario, rule_set)
     species, fu_settings = resolve_exposure(scenario, rule_set, settings)

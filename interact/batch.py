@@ -25,8 +25,8 @@ from __future__ import annotations
 import csv
 import io
 import math
+import os
 import re
-import tomllib
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass
 from typing import Any, Final
@@ -40,6 +40,7 @@ from .constants import resolve_constants
 from .dosing import ACTIONS, RegimenPlan, choose_regimens, plan_for_victim
 from .errors import InputError, InteractError, Problem, ScenarioError
 from .exposure import resolve_exposure, resolve_settings
+from .files import loads_toml
 from .prediction import gut_ratio, liver_ratio, reversible_term
 from .scenario import Perpetrator, Scenario, Victim, scenario_from_dict
 from .screening import screen
@@ -273,10 +274,7 @@ def _rows_csv(text: str) -> tuple[list[str], list[tuple[int, list[str]]]]:
 
 
 def _rows_toml(text: str, side: str, source: str) -> tuple[list[str], list[tuple[int, dict[str, Any]]]]:
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
+    data = loads_toml(text, source)
     entries = data.get(side)
     if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
         raise InputError(source, side, f"has no [[{side}]] entries; expected one [[{side}]] table per row")
@@ -487,7 +485,7 @@ def _parse_rows(
 ) -> tuple[list[Any], list[int], list[_Column], list[RowProblem]]:
     if on_error not in ("fail", "skip"):
         raise InputError("on_error", on_error, "is not 'fail' or 'skip'")
-    cols, entries = _read(text, side, source, fmt_name)
+    cols, entries = _read(text.removeprefix("\ufeff"), side, source, fmt_name)  # a byte-order mark is dropped
     if len(entries) > MAX_ROWS:
         raise InputError(source, len(entries), f"rows is more than the {MAX_ROWS:,} a table may have")
     valid: list[Any] = []
@@ -510,6 +508,10 @@ def _parse_rows(
     if problems and on_error == "fail":
         raise BadRowsError(tuple(problems), source)
     if not valid:
+        if problems:  # every row bad: say why, as a failing run would
+            n = len(problems)
+            shown = "; ".join(f"line {p.line}: {p.message}" for p in problems[:3]) + (f" (and {n - 3} more)" if n > 3 else "")
+            raise InputError(source, f"{n} rows", f"has no valid {side} row; every row is bad: {shown}")
         raise InputError(source, "no rows", f"has no valid {side} row")
     return valid, lines, cols, problems
 
@@ -701,6 +703,7 @@ def pair_ratios(
     fm_sum = np.zeros(n_v)
     for k in range(fm.shape[1]):
         fm_sum += fm[:, k]
+    rest = 1.0 - fm_sum
     fm = fm * victims.activity  # a phenotype scales its pathway (x 1.0 is exact: no change without phenotypes)
     fg = np.where(victims.oral, victims.fg, 1.0)[None, :]  # Fg = 1 gives a gut ratio of exactly 1 (intravenous victim)
     done = 0
@@ -712,8 +715,7 @@ def pair_ratios(
         for k in range(fm.shape[1]):
             weighted += fm[None, :, k] * a[:, k, None]
         out = liver[a0:a1]
-        np.add(weighted, 1.0, out=out)
-        out -= fm_sum[None, :]
+        np.add(weighted, rest[None, :], out=out)  # (1 - sum fm) first, as interact.prediction: exact when fm = 1
         np.divide(1.0, out, out=out)
         g = gut[a0:a1]
         g[...] = gut_ratio(fg, acts_gut[a0:a1, None])
@@ -733,6 +735,43 @@ def _gut_column(perpetrators: PerpetratorTable) -> int:
     return -1
 
 
+#: peak memory per pair of evaluate_pairs plus ranking, bytes: about 43 measured with tests/bench/bench_batch.py
+#: (41 MiB traced for 1,000,000 pairs), with room for the ranking's sort keys and the writer's blocks
+BYTES_PER_PAIR: Final = 64
+#: the share of the machine's free memory a batch may plan to use
+_MEMORY_SHARE: Final = 0.5
+
+
+def _free_memory_bytes() -> int:
+    """Free physical memory (the system's available pages), or 4 GiB when the system does not say."""
+    try:
+        return int(os.sysconf("SC_AVPHYS_PAGES")) * int(os.sysconf("SC_PAGE_SIZE"))
+    except (AttributeError, ValueError, OSError):
+        return 4 * 2**30
+
+
+def check_pair_budget(n_perpetrators: int, n_victims: int) -> None:
+    """Refuse, before any work, a batch whose pairs would not fit in half the free memory."""
+    n = n_perpetrators * n_victims
+    need = n * BYTES_PER_PAIR
+    free = _free_memory_bytes()
+    if need > _MEMORY_SHARE * free:
+        raise InputError(
+            "pairs",
+            f"{n_perpetrators:,} perpetrators x {n_victims:,} victims = {n:,}",
+            f"would need about {need / 2**30:,.1f} GiB, more than half the {free / 2**30:,.1f} GiB of free memory; "
+            "split the tables and screen the parts one after another",
+        )
+
+
+def count_rows(text: str, source: str, side: str) -> int:
+    """The number of rows a table holds (before validation; cheap): to refuse a batch beyond memory before reading it."""
+    if source.lower().endswith(".toml"):
+        return len(re.findall(rf"(?m)^\s*\[\[\s*{side}\s*\]\]", text))
+    lines = sum(1 for line in text.splitlines() if line.strip() and not line.lstrip().startswith("#"))
+    return max(lines - 1, 0)  # less the header
+
+
 def evaluate_pairs(
     perpetrators: PerpetratorTable,
     victims: VictimTable,
@@ -744,6 +783,7 @@ def evaluate_pairs(
     rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules)
     classes = load_classes()
     n_p, n_v = len(perpetrators.rows), len(victims.rows)
+    check_pair_budget(n_p, n_v)
     gut, liver, exposure = pair_ratios(perpetrators, victims, progress=progress)
     total = exposure
     phen = np.array([bool(v.phenotypes) for v in victims.rows], dtype=bool)
@@ -753,6 +793,14 @@ def evaluate_pairs(
         liver = liver.copy()
         liver[:, phen] /= victims.genotype[None, phen]
         total = gut * liver
+    bad = ~np.isfinite(total)
+    if bad.any():  # never a blank ratio: the input ranges keep every ratio finite, so this names a pair if not
+        i, j = (int(k) for k in np.argwhere(bad)[0])
+        raise InputError(
+            f"pair {perpetrators.rows[i].name} x {victims.rows[j].name}",
+            float(total[i, j]),
+            "is not a finite AUC ratio; check this perpetrator's Ki and concentrations and the victim's fm values",
+        )
     band = band_codes(total, classes)
     action = np.empty(total.shape, dtype=np.int8)
     for j, plan in enumerate(victims.plans):  # one victim's regimens at a time, over all its pairs

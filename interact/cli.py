@@ -17,6 +17,7 @@ from typing import TYPE_CHECKING, Any
 
 from . import __version__
 from .errors import InputError, InteractError
+from .files import read_text
 
 if TYPE_CHECKING:
     from .kinetics.binding import BindingPrediction
@@ -24,13 +25,14 @@ if TYPE_CHECKING:
 __all__ = ["main"]
 
 FORMATS = ("text", "json", "markdown")
+FORCE_HELP = "replace a read-only output file (it stays read-only); without it a read-only file is left unchanged"
 
 
-def _out(text: str, path: str | None = None) -> None:
+def _out(text: str, path: str | None = None, args: argparse.Namespace | None = None) -> None:
     if path:
-        from .scenario import write_text_atomic
+        from .files import write_file
 
-        write_text_atomic(Path(path), text)
+        write_file(path, text, field="--output", inputs=_inputs(args), force=bool(getattr(args, "force", False)))
         _said_written(path)
     else:
         sys.stdout.write(text)
@@ -41,6 +43,28 @@ def _said_written(path: str | Path, what: str = "output") -> None:
     sys.stderr.write(f"interact: {what} written to {Path(path).resolve()}\n")
 
 
+#: the arguments that name files a command reads; no output of the same run may overwrite one of them
+_INPUT_ARGS = ("scenario", "data", "perpetrators", "victims", "spec", "rules", "into")
+
+
+def _inputs(args: argparse.Namespace | None) -> tuple[str | None, ...]:
+    return tuple(getattr(args, name, None) for name in _INPUT_ARGS) if args is not None else ()
+
+
+def _check_outputs(args: argparse.Namespace) -> None:
+    """Refuse, before any work, an output path the writer would refuse (an input, a folder, a device, read-only)."""
+    from .files import check_target
+
+    force = bool(getattr(args, "force", False))
+    output, plot, into = (getattr(args, name, None) for name in ("output", "plot", "into"))
+    if output:
+        check_target(output, field="--output", inputs=_inputs(args), force=force)
+    if plot:
+        check_target(plot, field="--plot", inputs=(*_inputs(args), output), force=force)
+    if into:
+        check_target(into, field="--into", inputs=(getattr(args, "data", None), output, plot), force=force)
+
+
 def _cmd_assess(args: argparse.Namespace) -> int:
     from .assessment import assess
     from .report.assessment import format_assessment
@@ -49,7 +73,7 @@ def _cmd_assess(args: argparse.Namespace) -> int:
     path = demo_path() if args.command == "demo" else Path(args.scenario)
     result = assess(load_scenario(path), rules=args.rules)
     course, note = _assess_time_course(result, args)
-    _out(format_assessment(result, args.format, width=args.width, time_course=course, time_course_note=note), args.output)
+    _out(format_assessment(result, args.format, width=args.width, time_course=course, time_course_note=note), args.output, args)
     return 0
 
 
@@ -73,8 +97,9 @@ def _assess_time_course(result, args: argparse.Namespace):  # type: ignore[no-un
 def _cmd_timecourse(args: argparse.Namespace) -> int:
     from .assessment import assess
     from .dynamic import simulate
+    from .files import write_file
     from .report.timecourse import format_timecourse, timecourse_svg
-    from .scenario import load_scenario, write_text_atomic
+    from .scenario import load_scenario
 
     result = assess(load_scenario(Path(args.scenario)), rules=args.rules)
     course = simulate(
@@ -85,9 +110,15 @@ def _cmd_timecourse(args: argparse.Namespace) -> int:
         effect_fraction=args.fraction,
     )
     if args.plot:
-        write_text_atomic(Path(args.plot), timecourse_svg(course, title=result.scenario.title, terms=result.rules.terms))
+        write_file(
+            args.plot,
+            timecourse_svg(course, title=result.scenario.title, terms=result.rules.terms),
+            field="--plot",
+            inputs=(*_inputs(args), args.output),
+            force=args.force,
+        )
         _said_written(args.plot, "plot")
-    _out(format_timecourse(course, result, args.format, width=args.width), args.output)
+    _out(format_timecourse(course, result, args.format, width=args.width), args.output, args)
     return 0
 
 
@@ -95,15 +126,12 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
     """Fit time-dependent inhibition (kinact, KI) or induction (Emax, EC50) data; optionally carry them into a scenario."""
     import datetime
 
+    from .files import write_file
     from .kinetics.carry import carry_constants_text, parse_fold_change_csv, parse_preincubation_csv
     from .report.mechanism_fits import format_mechanism_fit
-    from .scenario import write_text_atomic
 
     path = Path(args.data)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError("data", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+    text = read_text(path, "data")
     if args.fu_inc is not None and not 0 < args.fu_inc <= 1:
         raise InputError("--fu-inc", args.fu_inc, "is not in (0, 1]")
     fu = 1.0 if args.fu_inc is None else args.fu_inc
@@ -137,7 +165,7 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
             values["fu_inc_ec50"] = float(f"{fu:.6g}")
         intervals = {"emax": (result.emax, "", 1.0), "ec50": (result.ec50, "uM", 1.0)}  # type: ignore[union-attr]
         what = "Emax model" + (" with Hill slope" if args.hill else "")
-    _out(format_mechanism_fit(result, path.name, args.format, width=args.width), args.output)
+    _out(format_mechanism_fit(result, path.name, args.format, width=args.width), args.output, args)
     if args.into:
         if not args.target:
             raise InputError("--target", None, "is needed with --into: the enzyme, e.g. --target CYP3A")
@@ -173,7 +201,7 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
             source=str(target),
             remove=tuple(f"{key}_ci" for key in intervals),
         )
-        write_text_atomic(target, new)
+        write_file(target, new, field="--into", inputs=(args.data, args.output), force=args.force)
         shown = ", ".join(f"{k} = {v}" for k, v in values.items())
         sys.stderr.write(f"interact: {target} updated: {args.target} {shown}; origin recorded\n")
         if args.fu_inc is None:
@@ -191,6 +219,16 @@ def _days_arg(text: str) -> float:
         raise argparse.ArgumentTypeError(f"{text!r} is not a number of days") from None
     if not (0 < value <= 365):
         raise argparse.ArgumentTypeError(f"{text!r} is outside (0, 365] days")
+    return value
+
+
+def _width_arg(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number of characters") from None
+    if not 40 <= value <= 1000:
+        raise argparse.ArgumentTypeError(f"{text!r} is outside 40 to 1000 characters")
     return value
 
 
@@ -240,13 +278,7 @@ def _uncertainty_spec(args: argparse.Namespace):  # type: ignore[no-untyped-def]
     spec = UncertaintySpec()
     if getattr(args, "spec", None):
         path = Path(args.spec)
-        try:
-            text = path.read_text(encoding="utf-8")
-        except (OSError, UnicodeDecodeError) as exc:
-            raise InputError(
-                "--spec", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})"
-            ) from None
-        spec = loads_spec(text, source=str(path))
+        spec = loads_spec(read_text(path, "--spec"), source=str(path))
     vary = dict(spec.vary)
     for item in getattr(args, "vary", None) or []:
         path_, dist = parse_vary(item)
@@ -265,16 +297,18 @@ def _cmd_uncertainty(args: argparse.Namespace) -> int:
     if args.list_inputs:
         model = ScenarioModel(result)
         lines = [f"{i.path}  {fmt(i.value, 4)} {i.unit}  ({i.label})".replace("  ()", "") for i in model.inputs(relevant_only=True)]
-        _out("\n".join(lines) + "\n", args.output)
+        _out("\n".join(lines) + "\n", args.output, args)
         return 0
     spec, vary = _uncertainty_spec(args)
-    samples = args.samples if args.samples is not None else (spec.samples or 10_000)
+    samples = args.samples if args.samples is not None else (spec.samples if spec.samples is not None else 10_000)
     seed = args.seed if args.seed is not None else (spec.seed if spec.seed is not None else 0)
     method = args.method or spec.method or "lhs"
     spread = run_uncertainty(result, vary, samples=samples, seed=seed, method=method)
     sens = sensitivity(result, vary)
     _out(
-        format_uncertainty(spread, sens, args.format, title=result.scenario.title, width=args.width, scenario=result.scenario), args.output
+        format_uncertainty(spread, sens, args.format, title=result.scenario.title, width=args.width, scenario=result.scenario),
+        args.output,
+        args,
     )
     return 0
 
@@ -296,44 +330,23 @@ def _progress_bar(label: str):  # type: ignore[no-untyped-def]
 
 
 def _read_text(path: str, what: str) -> str:
-    try:
-        return Path(path).read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(what, path, f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
+    return read_text(path, what)
 
 
-def _write_streamed(path: str | None, write) -> int:  # type: ignore[no-untyped-def]
-    """Call ``write(handle)``: to standard output, or to a temporary file renamed over ``path`` when complete."""
-    import os
-    import tempfile
+def _write_streamed(args: argparse.Namespace, write) -> int:  # type: ignore[no-untyped-def]
+    """Call ``write(handle)``: to standard output, or through the one writer to ``args.output``."""
+    from .files import open_output
 
-    if not path:
+    if not args.output:
         return int(write(sys.stdout))
-    target = Path(path)
-    try:
-        handle, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=target.resolve().parent)
-    except OSError as exc:
-        raise InputError("--output", path, f"cannot be written ({exc.strerror})") from None
-    try:
-        with os.fdopen(handle, "w", encoding="utf-8", newline="") as out:
-            count = int(write(out))
-        if target.exists():
-            os.chmod(tmp, target.stat().st_mode & 0o777)
-        else:  # a new file gets the usual permissions (mkstemp makes it private)
-            mask = os.umask(0)
-            os.umask(mask)
-            os.chmod(tmp, 0o666 & ~mask)
-        os.replace(tmp, target)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
-    return count
+    with open_output(args.output, field="--output", inputs=_inputs(args), force=args.force) as out:
+        return int(write(out))
 
 
 def _cmd_screen_batch(args: argparse.Namespace) -> int:
     import time
 
-    from .batch import evaluate_pairs, loads_perpetrators, loads_victims
+    from .batch import check_pair_budget, count_rows, evaluate_pairs, loads_perpetrators, loads_victims
     from .report.batch import write_results
     from .tables import load_rules
 
@@ -341,8 +354,10 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
     rules = load_rules(args.rules)
     if args.top is not None and args.top < 1:
         raise InputError("--top", args.top, "is not a whole number of at least 1")
-    perps = loads_perpetrators(_read_text(args.perpetrators, "perpetrators"), rules, source=args.perpetrators, on_error=args.on_error)
-    victims = loads_victims(_read_text(args.victims, "victims"), source=args.victims, on_error=args.on_error)
+    p_text, v_text = _read_text(args.perpetrators, "perpetrators"), _read_text(args.victims, "victims")
+    check_pair_budget(count_rows(p_text, args.perpetrators, "perpetrator"), count_rows(v_text, args.victims, "victim"))  # before reading
+    perps = loads_perpetrators(p_text, rules, source=args.perpetrators, on_error=args.on_error)
+    victims = loads_victims(v_text, source=args.victims, on_error=args.on_error)
     for problem in (*perps.skipped, *victims.skipped):
         sys.stderr.write(f"interact: skipped {problem}\n")
     n = len(perps.rows) * len(victims.rows)
@@ -354,7 +369,7 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
     else:  # a person at a terminal reads a rounded table; a pipe gets CSV
         fmt_name = "table" if sys.stdout.isatty() else "csv"
     width = shutil.get_terminal_size((100, 24)).columns
-    rows = _write_streamed(args.output, lambda h: write_results(result, h, fmt_name, top=args.top, width=width))
+    rows = _write_streamed(args, lambda h: write_results(result, h, fmt_name, top=args.top, width=width))
     if args.output and not args.quiet:
         skipped = len(perps.skipped) + len(victims.skipped)
         sys.stderr.write(
@@ -376,17 +391,17 @@ def _cmd_report(args: argparse.Namespace) -> int:
     path = Path(args.scenario)
     try:
         raw = path.read_bytes()
-        text = raw.decode("utf-8")
+        text = raw.decode("utf-8-sig")
     except (OSError, UnicodeDecodeError) as exc:
         raise InputError("scenario", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
-    result = assess(loads_scenario(text, source=str(path)), rules=args.rules)
+    result = assess(loads_scenario(text, source=str(path), folder=path.absolute().parent), rules=args.rules)
     spec, vary = _uncertainty_spec(args)
     spread = None
     if vary or scenario_intervals(ScenarioModel(result)):  # intervals the scenario carries (ki_ci ...) count too
         spread = run_uncertainty(
             result,
             vary,
-            samples=args.samples if args.samples is not None else (spec.samples or 10_000),
+            samples=args.samples if args.samples is not None else (spec.samples if spec.samples is not None else 10_000),
             seed=args.seed if args.seed is not None else (spec.seed if spec.seed is not None else 0),
             method=args.method or spec.method or "lhs",
         )
@@ -401,7 +416,7 @@ def _cmd_report(args: argparse.Namespace) -> int:
     suffix = Path(args.output or "").suffix.lower()
     fmt_name = args.format or ("markdown" if suffix in (".md", ".markdown") else "html")
     text_out = render_report_markdown(result, parts) if fmt_name == "markdown" else render_report_html(result, parts)
-    _out(text_out, args.output)
+    _out(text_out, args.output, args)
     return 0
 
 
@@ -424,8 +439,9 @@ def _parser() -> argparse.ArgumentParser:
             help="rule set by name (see 'interact tables') or a TOML file; default: the scenario's 'rules' key, else ich-m12-2024",
         )
         p.add_argument("--format", choices=FORMATS, default="text", help="output format (default: text)")
-        p.add_argument("--width", type=int, default=100, help="text width (default: 100)")
+        p.add_argument("--width", type=_width_arg, default=100, help="text width, 40 to 1000 (default: 100)")
         p.add_argument("-o", "--output", metavar="FILE", help="write to FILE instead of standard output")
+        p.add_argument("--force", action="store_true", help=FORCE_HELP)
 
     p = sub.add_parser("assess", help="assess a scenario file: basic models, AUC ratio, dose suggestion")
     p.add_argument("scenario", metavar="SCENARIO.toml")
@@ -456,8 +472,9 @@ def _parser() -> argparse.ArgumentParser:
         p = sub.add_parser(name, help=text)
         p.add_argument("data", metavar="DATA.csv")
         p.add_argument("--format", choices=FORMATS, default="text")
-        p.add_argument("--width", type=int, default=100)
+        p.add_argument("--width", type=_width_arg, default=100, help="text width, 40 to 1000 (default: 100)")
         p.add_argument("-o", "--output", metavar="FILE")
+        p.add_argument("--force", action="store_true", help=FORCE_HELP)
         p.add_argument("--into", metavar="SCENARIO.toml", help="write the fitted constants into this scenario (atomically)")
         p.add_argument("--target", metavar="ENZYME", help="the enzyme they belong to (with --into)")
         p.add_argument(
@@ -535,6 +552,7 @@ def _parser() -> argparse.ArgumentParser:
         help="a bad row stops the run (fail, default) or is left out and listed (skip)",
     )
     p.add_argument("--top", type=int, metavar="N", help="write only the N worst pairs")
+    p.add_argument("--force", action="store_true", help=FORCE_HELP)
     p.add_argument("-q", "--quiet", action="store_true", help="no progress bar or summary line")
     p.set_defaults(run=_cmd_screen_batch)
 
@@ -542,6 +560,7 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("scenario", metavar="SCENARIO.toml")
     p.add_argument("-o", "--output", metavar="FILE", help="write to FILE (.html or .md) instead of standard output")
     p.add_argument("--format", choices=("html", "markdown"), help="default: from the file name, else html")
+    p.add_argument("--force", action="store_true", help=FORCE_HELP)
     p.add_argument("--rules", metavar="NAME|PATH", help="rule set (default: the scenario's 'rules' key, else ich-m12-2024)")
     p.add_argument(
         "--vary", action="append", metavar="PATH=SPEC", help="an input's distribution, as for 'interact uncertainty' (repeatable)"
@@ -609,8 +628,8 @@ def _cmd_fit(args: argparse.Namespace) -> int:
     if args.plot:
         from .report.fit_plots import save_figure
 
-        save_figure(diagnostic_plots(comp), args.plot)
-    _out(format_comparison(comp, args.format, width=args.width, unbound=unbound, binding=binding, plots=plots_text), args.output)
+        save_figure(diagnostic_plots(comp), args.plot, inputs=(*_inputs(args), args.output), force=args.force)
+    _out(format_comparison(comp, args.format, width=args.width, unbound=unbound, binding=binding, plots=plots_text), args.output, args)
     if args.plot:
         sys.stderr.write(f"interact: diagnostic plots written to {args.plot}\n")
     if args.into and comp.models == ("none",) and not any(x > 0 for x in data.inhibitor_um):
@@ -638,8 +657,8 @@ def _weights_label(comp: Any) -> str:
 
 def _write_km_into(args: argparse.Namespace, comp: Any, data_name: str, today: str) -> None:
     """Carry the Km of a plain Michaelis-Menten fit into the target's entry (for its Cheng-Prusoff conversion)."""
+    from .files import write_file
     from .kinetics.carry import carry_constants_text
-    from .scenario import write_text_atomic
 
     if not args.target:
         raise InputError("--target", None, "is needed with --into: the enzyme whose Cheng-Prusoff conversion uses this Km, e.g. CYP3A")
@@ -660,7 +679,7 @@ def _write_km_into(args: argparse.Namespace, comp: Any, data_name: str, today: s
         method = f"; km_ci {comp.level:.0%} profile likelihood"
     origin = f"Michaelis-Menten fit of {data_name} ({_weights_label(comp)}){method}, {today}"
     new = carry_constants_text(text, target=args.target, values=values, origin=origin, source=str(target), remove=("km_ci",))
-    write_text_atomic(target, new)
+    write_file(target, new, field="--into", inputs=(args.data, args.output, args.plot), force=args.force)
     sys.stderr.write(f"interact: {target} updated: {args.target} km = {km.value:.4g} uM; origin recorded\n")
 
 
@@ -708,8 +727,8 @@ def _write_into(
     origin: str,
     ki_ci_um: tuple[float, float] | None = None,
 ) -> None:
+    from .files import write_file
     from .kinetics.scenario_update import update_inhibition_text
-    from .scenario import write_text_atomic
 
     if not args.target:
         raise InputError("--target", None, "is needed with --into: the enzyme the Ki belongs to, e.g. --target CYP3A")
@@ -726,7 +745,7 @@ def _write_into(
         ki_ci_um=ki_ci_um,
         source=str(target),
     )
-    write_text_atomic(target, new)
+    write_file(target, new, field="--into", inputs=(args.data, args.output, args.plot), force=args.force)
     sys.stderr.write(f"interact: {target} updated: {args.target} ki = {ki_um:.4g} uM ({mechanism}); origin recorded\n")
 
 
@@ -755,7 +774,7 @@ def _cmd_fit_ic50(args: argparse.Namespace, path: Path, today: str, fu_inc: floa
         from .kinetics.binding import unbound_constant
 
         unbound = unbound_constant("Ki", ki.ki_um, ki.low_um, ki.high_um, fu_inc, interval="from the IC50 interval", fu_origin=fu_origin)
-    _out(format_ic50(result, ki, args.format, width=args.width, unbound=unbound), args.output)
+    _out(format_ic50(result, ki, args.format, width=args.width, unbound=unbound), args.output, args)
     if args.into:
         if result.no_decline:
             raise InputError("--into", args.into, f"was not updated: {result.no_decline}")
@@ -807,8 +826,9 @@ def _add_fit_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[t
     )
     p.add_argument("--level", type=float, default=0.95, help="confidence level (default 0.95)")
     p.add_argument("--format", choices=FORMATS, default="text", help="output format (default: text)")
-    p.add_argument("--width", type=int, default=100, help="text width (default: 100)")
+    p.add_argument("--width", type=_width_arg, default=100, help="text width, 40 to 1000 (default: 100)")
     p.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
+    p.add_argument("--force", action="store_true", help=FORCE_HELP)
     p.add_argument("--plot", metavar="FILE", help="write the diagnostic plots (double reciprocal, Dixon, residuals) to FILE.svg/.png/.pdf")
     p.add_argument("--no-terminal-plot", action="store_true", help="leave the double-reciprocal plot out of the text report")
     p.add_argument(
@@ -856,10 +876,12 @@ def main(argv: Sequence[str] | None = None) -> int:
         parser.print_help()
         return 2
     try:
+        _check_outputs(args)
         return int(args.run(args))
     except InteractError as exc:
-        text = str(exc)
-        sys.stderr.write(f"interact: {text}\n")
+        from .report.document import terminal_safe
+
+        sys.stderr.write(f"interact: {terminal_safe(str(exc))}\n")  # the message quotes user text: no escapes reach the terminal
         return 2
     except KeyboardInterrupt:
         sys.stderr.write("interact: interrupted\n")

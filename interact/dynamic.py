@@ -62,6 +62,7 @@ import math
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Final
+from warnings import catch_warnings, simplefilter
 
 import numpy as np
 from numpy.typing import NDArray
@@ -364,6 +365,19 @@ def _sites(a: Assessment, kdeg: dict[str, tuple[float | None, float | None]], gu
 # --------------------------------------------------------------------------- helpers
 
 
+#: the time course's budget: beyond these it refuses before starting (memory and time grow with each interval)
+MAX_INTERVALS: Final = 10_000
+#: the range of time and rate inputs the solver handles accurately and fast (hours, 1/h)
+_TIME_RANGE_H: Final = (1.0 / 60.0, 24.0 * 366.0)
+_RATE_RANGE_PER_H: Final = (1e-3, 1e3)
+
+
+def _bounded(field: str, value: float, low: float, high: float, unit: str, why: str) -> None:
+    """Refuse, with the field named, a time or rate outside the range the time course handles."""
+    if not (math.isfinite(value) and low <= value <= high):
+        raise InputError(field, f"{value:.4g} {unit}", f"is outside {low:.4g}-{high:.4g} {unit}, {why}")
+
+
 def _hours(q: pint.Quantity | None) -> float | None:
     return None if q is None else units.magnitude(q, "h")
 
@@ -466,6 +480,22 @@ def simulate(
         raise InputError("victim.half_life", None, 'is missing; the time course needs the victim\'s half-life, e.g. "6 h"')
     tau_v = units.magnitude(v.interval, "h")
     stop = 24.0 * days
+    for name, hours in (
+        ("perpetrator.interval", tau_p),
+        ("victim.interval", tau_v),
+        ("perpetrator.half_life", half_p),
+        ("victim.half_life", half_v),
+    ):
+        if hours is not None:
+            _bounded(name, hours, *_TIME_RANGE_H, "h", "the range the time course can follow (1 min to a year)")
+    for name, count in (("perpetrator.interval", stop / tau_p), ("victim.interval", (stop + 24.0 * (washout_days or 0.0)) / tau_v)):
+        if count > MAX_INTERVALS:
+            raise InputError(
+                name,
+                f"{tau_p if name.startswith('perp') else tau_v:.4g} h",
+                f"is too short for a time course of {days:g} days: {count:,.0f} dosing intervals, more than the "
+                f"{MAX_INTERVALS:,} it follows; expected a longer interval or fewer --days",
+            )
     settings: list[Setting] = []
 
     # -- physiology and the perpetrator
@@ -473,6 +503,8 @@ def simulate(
     qh = st["hepatic_blood_flow"].value * 60.0  # L/h
     qent = st["enterocytic_blood_flow"].value * 60.0
     ka_p = st["absorption_rate"].value * 60.0
+    if p.route == "oral":
+        _bounded("perpetrator.ka", ka_p, *_RATE_RANGE_PER_H, "1/h", "the range the time course can follow")
     sp = assessment.species
     parent = sp[0]
     oral = p.route == "oral"
@@ -556,12 +588,18 @@ def simulate(
     # -- enzymes
     gut_enzyme = assessment.prediction.gut_enzyme
     fg0 = assessment.prediction.fg_used
+    if v.route == "oral" and fg0 < 1e-3:  # the gut term 1/Fg of the curves overflows long before this
+        raise InputError("victim.fg", f"{fg0:.3g}", "is below 0.001, the smallest Fg the time course can follow")
     victim_oral = v.route == "oral"
     if not victim_oral or fg0 >= 1.0:
         gut_enzyme = None
     affected = {pw.enzyme for pw in v.pathways} | ({gut_enzyme} if gut_enzyme else set())
     needed = {c.target for c in assessment.constants if c.kinact_per_h is not None or c.emax is not None} & affected
     kdeg, kdeg_used = _kdeg(s, assessment.constants, needed)
+    for enzyme, pair in kdeg.items():
+        for where, rate in zip(("liver", "gut"), pair, strict=True):
+            if rate is not None:
+                _bounded(f"turnover.{enzyme}.kdeg_{where}", rate, 1e-4, _RATE_RANGE_PER_H[1], "1/h", "the range the time course can follow")
     sites = _sites(assessment, kdeg, gut_enzyme)
     for site in sites:
         if (site.inact or site.induce) and site.kdeg is None:
@@ -596,7 +634,11 @@ def simulate(
             status="" if v.ka is not None else "assumption",
         )
     )
+    if v.route == "oral":
+        _bounded("victim.ka", ka_v_q, *_RATE_RANGE_PER_H, "1/h", "the range the time course can follow")
     e_h = v.hepatic_extraction if v.hepatic_extraction is not None else DEFAULT_EXTRACTION
+    if e_h < 1e-4 or e_h > 0.9999:
+        raise InputError("victim.hepatic_extraction", e_h, "is outside 0.0001-0.9999, the range the time course can follow")
     settings.append(
         Setting(
             name="victim_hepatic_extraction",
@@ -640,6 +682,13 @@ def simulate(
     )
     end = stop + wash
     end = tau_v * math.ceil(end / tau_v - 1e-9)
+    if (end - t_start) / tau_v > MAX_INTERVALS:
+        raise InputError(
+            "victim.interval",
+            f"{tau_v:.4g} h",
+            f"is too short for this time course ({(end + window) / 24:.4g} days with follow-up): "
+            f"{(end - t_start) / tau_v:,.0f} dosing intervals, more than the {MAX_INTERVALS:,} it follows",
+        )
     if mode == "profile":
         assert profile_t is not None
         if profile_t[-1] < end - 1e-9:
@@ -726,9 +775,11 @@ def simulate(
         last_seg = b_ >= edges[-1] - 1e-9
         if method == "odeint":
             crit = np.array(sorted(k for k in kinks if a_ < k < b_))
-            out, info = odeint(
-                rhs, y, grid, tfirst=True, rtol=rtol, atol=atol, tcrit=crit if crit.size else None, full_output=True, mxstep=50000
-            )
+            with catch_warnings():  # a failure is read from info below and raised as a named error
+                simplefilter("ignore")
+                out, info = odeint(
+                    rhs, y, grid, tfirst=True, rtol=rtol, atol=atol, tcrit=crit if crit.size else None, full_output=True, mxstep=50000
+                )
             if info["message"] != "Integration successful.":
                 raise InputError("time course", f"solver failure at t = {a_:g} h", f"could not be integrated ({info['message']})")
             nfev += int(info["nfe"][-1])

@@ -70,7 +70,7 @@ def liver_ratio(fm: ArrayLike, activity: ArrayLike) -> NDArray[np.float64]:
     """AUCR_h = 1/(sum fm x activity + 1 - sum fm), pathways along the last axis."""
     f = np.asarray(fm, dtype=float)
     a = np.asarray(activity, dtype=float)
-    return 1.0 / (np.sum(f * a, axis=-1) + 1.0 - np.sum(f, axis=-1))
+    return 1.0 / (np.sum(f * a, axis=-1) + (1.0 - np.sum(f, axis=-1)))  # (1 - sum fm) first: exact when fm = 1
 
 
 def gut_ratio(fg: ArrayLike, activity: ArrayLike) -> NDArray[np.float64]:
@@ -183,7 +183,7 @@ def _ratios(
         effects.append(EnzymeEffect(enzyme=enzyme, fm=fm, liver=liver, gut=gut))
         weighted += fm * liver.activity
         fm_sum += fm
-    liver_r = 1.0 / (weighted + 1.0 - fm_sum)
+    liver_r = 1.0 / (weighted + (1.0 - fm_sum))  # (1 - sum fm) first: exact when fm = 1, however small the activity
     gut_r = 1.0
     if gut_enzyme is not None:
         k_gut = kdeg.get(gut_enzyme, (None, None))[1]
@@ -331,6 +331,6 @@ def ratio_function(
             fm_sum += fm
             if is_gut:
                 gut = 1.0 / (activity(items, 1, scale) * (1.0 - fg) + fg)  # type: ignore[arg-type]
-        return gut / (weighted + 1.0 - fm_sum)
+        return gut / (weighted + (1.0 - fm_sum))
 
     return total

@@ -14,12 +14,9 @@ when the scenario came from a file, the line it is on.
 from __future__ import annotations
 
 import math
-import os
 import re
-import tempfile
-import tomllib
 from collections.abc import Callable, Iterator
-from dataclasses import dataclass, field, fields
+from dataclasses import dataclass, field, fields, replace
 from pathlib import Path
 from typing import Any, Final, TypeVar
 
@@ -220,6 +217,10 @@ class Turnover:
     kdeg_gut: Q | None = None
 
 
+#: the accepted blood-to-plasma ratio: from well below 1 - haematocrit (about 0.55) to far above any drug's
+BLOOD_PLASMA_RANGE: Final = (0.2, 100.0)
+
+
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Scenario:
     """A perpetrator-victim pair and everything needed to assess it."""
@@ -232,6 +233,8 @@ class Scenario:
     physiology: Physiology = field(default_factory=Physiology)
     turnover: tuple[Turnover, ...] = ()
     notes: str = ""
+    #: the folder of the file it was read from: a relative ``rules`` path is read from there (not saved; not compared)
+    folder: str | None = field(default=None, compare=False, repr=False)
     spelling: tuple[str, str] = ("perpetrator", "victim")
     """The table names the file used: ``[perpetrator]``/``[victim]`` or the ICH M12 terms ``[precipitant]``/``[object]``;
     :func:`scenario_to_dict` writes them back the same way."""
@@ -259,22 +262,19 @@ def load_scenario(path: str | Path) -> Scenario:
     ScenarioError
         The TOML is readable but has problems; all are listed with key paths and lines.
     """
+    from .files import read_text
+
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        reason = getattr(exc, "strerror", None) or exc.__class__.__name__
-        raise InputError("scenario", str(path), f"could not be read ({reason})") from None
-    return loads_scenario(text, source=str(path))
+    return loads_scenario(read_text(path, "scenario"), source=str(path), folder=path.absolute().parent)
 
 
-def loads_scenario(text: str, *, source: str = "scenario") -> Scenario:
-    """Parse and validate scenario TOML text."""
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
-    return scenario_from_dict(data, source=source, text=text)
+def loads_scenario(text: str, *, source: str = "scenario", folder: str | Path | None = None) -> Scenario:
+    """Parse and validate scenario TOML text; ``folder`` (where the file lies) anchors a relative ``rules`` path."""
+    from .files import loads_toml
+
+    text = text.removeprefix("\ufeff")
+    scenario = scenario_from_dict(loads_toml(text, source), source=source, text=text)
+    return scenario if folder is None else replace(scenario, folder=str(folder))
 
 
 def scenario_from_dict(data: object, *, source: str = "scenario", text: str | None = None) -> Scenario:
@@ -364,6 +364,9 @@ class _Reader:
             return None
         value = data[key]
         span = f"{'(' if low_open else '['}{low:g}, {high:g}]"
+        if isinstance(value, int) and not isinstance(value, bool) and abs(value) > high:
+            self.fail(full, f"{_brief(value)} is outside {span}")  # before math.isfinite: a huge integer overflows a float
+            return None
         if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
             self.fail(full, f"{_brief(value)} is not a finite number; expected a number in {span}")
             return None
@@ -395,6 +398,9 @@ class _Reader:
                 continue
             if like is not None and q.dimensionality != like.dimensionality:
                 self.fail(at, f'"{units.format_quantity(q)}" is not in the same kind of unit as the dose')
+                continue
+            if kind == "dose" and _too_small_strength(q):
+                self.fail(at, f'"{units.format_quantity(q)}" is below {_MIN_STRENGTH_TEXT}; expected a tablet or capsule strength')
                 continue
             out.append(q)
         return tuple(out)
@@ -456,7 +462,19 @@ class _Reader:
         perp = self.perpetrator(top[perp_name], perp_name) if perp_name in top else None
         victim = self.victim(top[victim_name], victim_name) if victim_name in top else None
         physiology = self.physiology(top.get("physiology", {}))
-        turnover = tuple(t for t in (self.turnover(raw, f"turnover[{i}]") for i, raw in self.items(top, "turnover", "")) if t)
+        turnover_list: list[Turnover] = []
+        for i, raw in self.items(top, "turnover", ""):
+            entry = self.turnover(raw, f"turnover[{i}]")
+            if entry is None:
+                continue
+            first = next((k for k, t in enumerate(turnover_list) if t.enzyme == entry.enzyme), None)
+            if first is not None:  # the last would win silently, and the order of entries would change the answer
+                self.fail(
+                    f"turnover[{i}].enzyme", f'"{entry.enzyme}" is listed twice (first in turnover[{first}]); give one entry per enzyme'
+                )
+                continue
+            turnover_list.append(entry)
+        turnover = tuple(turnover_list)
         if perp is None or victim is None or physiology is None:
             return None
         return Scenario(
@@ -650,7 +668,8 @@ class _Reader:
             self.fail(f"{path}.route", f'"{route[:40]}" is not one of {", ".join(ROUTES)}')
         interval = self.quantity(data, "interval", path, "time")
         measured = self.flag(data, "fu_plasma_measured", path)
-        rb = self.number(data, "blood_plasma_ratio", path, low=0.0, high=100.0)
+        # at least 0.2: a drug kept out of red cells has Rb = 1 - haematocrit, about 0.55 (common practice)
+        rb = self.number(data, "blood_plasma_ratio", path, low=BLOOD_PLASMA_RANGE[0], high=BLOOD_PLASMA_RANGE[1], low_open=False)
         fa_fg = self.fraction(data, "fa_fg", path)
         fa = self.fraction(data, "fa", path)
         ka = self.quantity(data, "ka", path, "rate")
@@ -778,7 +797,7 @@ class _Reader:
         if total > 1.0 + 1e-9:
             self.fail(
                 f"{path}.pathways",
-                f"fm values sum to {total:.4g}; expected a total of at most 1 (the rest is renal and other routes)",
+                f"fm values sum to {total:.12g}; expected a total of at most 1 (the rest is renal and other routes)",
             )
         phenotypes = self.phenotypes(data, path, {p.enzyme for p in pathways})
         lower, upper = self.boundary(data, "no_effect_boundary", path) or (None, None)
@@ -869,6 +888,15 @@ class _Reader:
         if enzyme is None:
             return None
         return Turnover(enzyme=enzyme, kdeg_liver=liver, kdeg_gut=gut)
+
+
+#: the smallest strength accepted (1 ng, or 1 pmol for a molar amount): below it a dose suggestion rounds to nothing
+_MIN_STRENGTH_TEXT: Final = "1 ng (1 pmol)"
+
+
+def _too_small_strength(q: Q) -> bool:
+    unit = "mg" if q.dimensionality == units.parse("1 mg", "dose", field="unit").dimensionality else "umol"
+    return bool(units.magnitude(q, unit) < 1e-6)
 
 
 def _brief(value: object) -> str:
@@ -1030,8 +1058,11 @@ def dumps_scenario(scenario: Scenario) -> str:
     return _dump_toml(scenario_to_dict(scenario))
 
 
-def save_scenario(scenario: Scenario, path: str | Path) -> None:
-    """Write the scenario to ``path`` atomically (temporary file in the same folder, then rename).
+def save_scenario(scenario: Scenario, path: str | Path, *, force: bool = False) -> None:
+    """Write the scenario to ``path`` through the one writer (:func:`interact.files.write_file`).
+
+    The writer is atomic, writes through a symbolic link and refuses a folder,
+    a device or (unless ``force``) a read-only file.
 
     When ``path`` already holds a TOML scenario, the new values are merged into
     that text, so the user's comments, key order and the way unchanged values
@@ -1044,7 +1075,7 @@ def save_scenario(scenario: Scenario, path: str | Path) -> None:
             text = merge_scenario_text(target.read_text(encoding="utf-8"), scenario)
         except (OSError, UnicodeDecodeError):
             text = None
-    write_text_atomic(target, text if text is not None else dumps_scenario(scenario))
+    write_text_atomic(target, text if text is not None else dumps_scenario(scenario), force=force)
 
 
 def merge_scenario_text(text: str, scenario: Scenario) -> str | None:
@@ -1109,36 +1140,11 @@ def _merge_table(node: Any, new: dict[str, Any]) -> None:
                 node[key].comment(comment.lstrip("# "))
 
 
-def write_text_atomic(path: Path, text: str | bytes) -> None:
-    """Write ``text`` (or bytes) to ``path`` so that a reader sees the old file or the new one, never a part."""
-    folder = path.resolve().parent
-    try:
-        handle, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
-    except OSError as exc:
-        raise InputError("path", str(path), f"cannot be written ({exc.strerror})") from None
-    try:
-        if isinstance(text, bytes):
-            with os.fdopen(handle, "wb") as raw:
-                raw.write(text)
-                raw.flush()
-                os.fsync(raw.fileno())
-        else:
-            with os.fdopen(handle, "w", encoding="utf-8", newline="\n") as out:
-                out.write(text)
-                out.flush()
-                os.fsync(out.fileno())
-        os.chmod(tmp, path.stat().st_mode & 0o777 if path.exists() else 0o666 & ~_umask())
-        os.replace(tmp, path)
-    except OSError as exc:
-        Path(tmp).unlink(missing_ok=True)
-        raise InputError("path", str(path), f"cannot be written ({exc.strerror})") from None
+def write_text_atomic(path: Path, text: str | bytes, *, field: str = "path", force: bool = False) -> None:
+    """Write ``text`` (or bytes) to ``path`` through the one writer, :func:`interact.files.write_file`."""
+    from .files import write_file
 
-
-def _umask() -> int:
-    """The process umask (read by setting and restoring it; there is no getter)."""
-    mask = os.umask(0)
-    os.umask(mask)
-    return mask
+    write_file(path, text, field=field, force=force)
 
 
 def _toml_value(value: Any) -> str:

@@ -200,79 +200,232 @@ def rule_set_names() -> tuple[str, ...]:
     return tuple(sorted(p.stem for p in (tables_dir() / "rules").glob("*.toml")))
 
 
-def load_rules(name_or_path: str | Path | None = None) -> RuleSet:
-    """A rule set by name (``"ich-m12-2024"``, ``"fda-2020"``) or from a TOML file path."""
+def load_rules(name_or_path: str | Path | None = None, *, base: str | Path | None = None) -> RuleSet:
+    """A rule set by name (``"ich-m12-2024"``, ``"fda-2020"``) or from a TOML file path.
+
+    A relative path is read from ``base`` when given (the folder of the scenario naming it), else from the
+    working folder.
+    """
     key = DEFAULT_RULES if name_or_path is None else str(name_or_path)
     if key in rule_set_names():
         return _load_rules_file(str(tables_dir() / "rules" / f"{key}.toml"))
-    path = Path(key)
+    path = Path(key).expanduser()
+    if base is not None and not path.is_absolute():
+        path = Path(base) / path
     if path.suffix == ".toml" and path.is_file():
         return _load_rules_file(str(path.resolve()))
     names = ", ".join(rule_set_names())
     raise InputError("rules", key, f"is neither a known rule set ({names}) nor a readable .toml file")
 
 
+#: the keys of a rule-set file, and of each criterion
+_RULE_KEYS: Final = (
+    "id",
+    "title",
+    "version",
+    "table_version",
+    "physiology",
+    "fu_plasma_floor",
+    "fu_plasma_floor_measured_exempt",
+    "aucr_inhibition_cutoff",
+    "aucr_induction_cutoff",
+    "criteria",
+    "source",
+    "terms",
+)
+_TERMS_KEYS: Final = ("precipitant", "object", "source", "status")
+_CRITERION_KEYS: Final = (
+    "id",
+    "label",
+    "groups",
+    "mechanism",
+    "form",
+    "concentration",
+    "equation",
+    "cutoff",
+    "multiplier",
+    "comparison",
+    "oral_only",
+    "gut_wall_only",
+)
+_SOURCED_KEYS: Final = ("value", "source", "status", "note")
+#: the range of each cutoff by form: ratios of the 1 + I/Ki kind are at least 1, induction ratios at most 1
+_CUTOFF_RANGE: Final = {
+    "one-plus-sum": (1.0, 1e6, False),
+    "tdi": (1.0, 1e6, False),
+    "sum": (0.0, 1e6, True),
+    "induction": (0.0, 1.0, True),
+    "fold-change": (0.0, 1e6, True),
+}
+#: a rule set's [physiology] values: (kind for units.parse, or "fraction", or a number range)
+_PHYSIOLOGY_KINDS: Final = {
+    "hepatic_blood_flow": "flow",
+    "enterocytic_blood_flow": "flow",
+    "absorption_rate": "rate",
+    "gut_volume": "volume",
+    "fa_fg": "fraction",
+    "fraction_absorbed": "fraction",
+    "fu_gut": "fraction",
+    "fu_inc": "fraction",
+    "blood_plasma_ratio": "ratio",
+}
+
+
 @lru_cache(maxsize=16)
 def _load_rules_file(path: str) -> RuleSet:
-    data = _read(Path(path), "rules")
-    where = "rules"
+    """Read and validate a rule set: every value's type, range and finiteness; all problems at once, with lines."""
+    from .errors import ScenarioError
+    from .files import loads_toml, read_text
+    from .scenario import _Reader  # the scenario file's checks (key paths, lines); imported here: scenario imports tables
+
+    text = read_text(path, "rules")
+    data = loads_toml(text, path)
+    r = _Reader(text)
+    r.table(data, "", _RULE_KEYS)
+
+    def sourced(table: dict[str, Any], key: str, at: str, check: Any = None, *, required: bool = True) -> Sourced | None:
+        full = f"{at}.{key}" if at else key
+        raw = table.get(key)
+        if raw is None:
+            if required:
+                r.fail(full, "is missing; expected a table with value, source and status")
+            return None
+        if r.table(raw, full, _SOURCED_KEYS) is None:
+            return None
+        if "value" not in raw:
+            r.fail(f"{full}.value", "is missing")
+            return None
+        value = check(raw, full) if check else raw["value"]
+        source = raw.get("source")
+        if not isinstance(source, str) or not source.strip():
+            r.fail(f"{full}.source", "is missing; every reference value names its source")
+        status = raw.get("status")
+        if status not in STATUSES:
+            r.fail(f"{full}.status", f"{status!r} is not one of {', '.join(STATUSES)}")
+        note = raw.get("note", "")
+        if not isinstance(note, str):
+            r.fail(f"{full}.note", "is not text")
+        for part, text in (("source", source), ("note", note)):
+            cited(text, f"{full}.{part}")
+        if value is None:
+            return None
+        return Sourced(name=key, value=value, source=str(source or ""), status=str(status or ""), note=str(note))
+
+    def cited(text: object, full: str) -> None:
+        """Every citation marker (``[@lee2024]``) in ``text`` names a source of reference_tables/sources.toml."""
+        if isinstance(text, str) and "[@" in text:
+            try:
+                _cites(text, full)
+            except InputError as exc:
+                r.fail(full, f"{exc.value} {exc.expected}")
+
+    def terms(raw: object) -> Terms:
+        """The ``[terms]`` table: the words the guidance uses for the two drugs."""
+        if raw is None or r.table(raw, "terms", _TERMS_KEYS) is None:
+            return Terms()
+        assert isinstance(raw, dict)
+        words = {}
+        for key in ("precipitant", "object"):
+            value = raw.get(key)
+            if not isinstance(value, str) or not value.strip() or not value.replace(" ", "").replace("-", "").isalpha():
+                r.fail(f"terms.{key}", f"{value!r} is not a word or two (letters, spaces, hyphens)")
+                value = Terms().precipitant if key == "precipitant" else Terms().object
+            words[key] = value.strip()
+        status = raw.get("status", "")
+        if status and status not in STATUSES:
+            r.fail("terms.status", f"{status!r} is not one of {', '.join(STATUSES)}")
+        cited(raw.get("source", ""), "terms.source")
+        return Terms(precipitant=words["precipitant"], object=words["object"], source=str(raw.get("source", "")), status=str(status))
+
+    def number(low: float, high: float, low_open: bool = True) -> Any:
+        return lambda raw, full: r.number(raw, "value", full, low=low, high=high, low_open=low_open)
+
+    def flag(raw: dict[str, Any], full: str) -> bool | None:
+        value = raw["value"]
+        if not isinstance(value, bool):
+            r.fail(f"{full}.value", f"{value!r} is not true or false")
+            return None
+        return value
+
+    def physiology_value(kind: str) -> Any:
+        def check(raw: dict[str, Any], full: str) -> Any:
+            if kind == "fraction":
+                return r.fraction(raw, "value", full)
+            if kind == "ratio":
+                from .scenario import BLOOD_PLASMA_RANGE
+
+                return r.number(raw, "value", full, low=BLOOD_PLASMA_RANGE[0], high=BLOOD_PLASMA_RANGE[1], low_open=False)
+            value = raw["value"]
+            if not isinstance(value, str):
+                r.fail(f"{full}.value", f'{value!r} is not a quantity with its unit, e.g. "97 L/h"')
+                return None
+            return value if r.quantity(raw, "value", full, kind) is not None else None
+
+        return check
+
+    def choice(table: dict[str, Any], key: str, options: tuple[str, ...], at: str, default: str | None = None) -> str:
+        value = table.get(key, default)
+        if value not in options:
+            r.fail(f"{at}.{key}", f"{value!r} is not one of {', '.join(options)}")
+            return options[0]
+        return str(value)
+
     criteria = []
-    for i, raw in enumerate(_list(data, "criteria", where)):
-        at = f"{where}.criteria[{i}]"
-        form = _choice(raw, "form", FORMS, at)
+    for i, raw in r.items(data, "criteria", ""):
+        at = f"criteria[{i}]"
+        if r.table(raw, at, _CRITERION_KEYS) is None:
+            continue
+        form = choice(raw, "form", FORMS, at)
+        comparison = choice(raw, "comparison", (">=", "<="), at, default=">=")
+        groups = raw.get("groups")
+        if not isinstance(groups, list) or not groups or not all(isinstance(g, str) and g for g in groups):
+            r.fail(f"{at}.groups", f'{groups!r} is not a list of group names, e.g. ["cyp"]')
+            groups = []
+        equation = raw.get("equation", "")
+        if not isinstance(equation, str):
+            r.fail(f"{at}.equation", "is not text")
+        low, high, low_open = _CUTOFF_RANGE[form]
+        cutoff = sourced(raw, "cutoff", at, number(low, high, low_open))
+        multiplier = sourced(raw, "multiplier", at, number(0.0, 1000.0), required=False)
         crit = Criterion(
-            id=_str(raw, "id", at),
-            label=_str(raw, "label", at),
-            groups=tuple(_str_list(raw, "groups", at)),
-            mechanism=_choice(raw, "mechanism", MECHANISMS, at),
+            id=r.text(raw, "id", at, required=True),
+            label=r.text(raw, "label", at, required=True),
+            groups=tuple(groups),
+            mechanism=choice(raw, "mechanism", MECHANISMS, at),
             form=form,
-            concentration=_choice(raw, "concentration", CONCENTRATIONS, at),
-            equation=str(raw.get("equation", "")),
-            cutoff=_sourced(raw, "cutoff", at, number=True),
-            multiplier=_sourced(raw, "multiplier", at, number=True) if "multiplier" in raw else None,
-            comparison=_choice(raw, "comparison", (">=", "<="), at, default=">="),
-            oral_only=bool(raw.get("oral_only", False)),
-            gut_wall_only=bool(raw.get("gut_wall_only", False)),
+            concentration=choice(raw, "concentration", CONCENTRATIONS, at),
+            equation=str(equation),
+            cutoff=cutoff or Sourced(name="cutoff", value=math.nan, source="", status=""),
+            multiplier=multiplier,
+            comparison=comparison,
+            oral_only=r.flag(raw, "oral_only", at),
+            gut_wall_only=r.flag(raw, "gut_wall_only", at),
         )
         criteria.append(crit)
     phys = data.get("physiology", {})
-    if not isinstance(phys, dict):
-        raise InputError(f"{where}.physiology", phys, "is not a table of named values")
-    return RuleSet(
-        id=_str(data, "id", where),
-        title=_str(data, "title", where),
-        version=str(data.get("version", "")),
-        table_version=str(data.get("table_version", "")),
-        path=path,
-        fu_plasma_floor=_sourced(data, "fu_plasma_floor", where, number=True),
-        fu_plasma_floor_measured_exempt=_sourced(data, "fu_plasma_floor_measured_exempt", where),
-        aucr_inhibition_cutoff=_sourced(data, "aucr_inhibition_cutoff", where, number=True),
-        aucr_induction_cutoff=_sourced(data, "aucr_induction_cutoff", where, number=True),
-        criteria=tuple(criteria),
-        physiology=tuple(_sourced(phys, k, f"{where}.physiology") for k in phys),
-        source=_cites(str(data.get("source", "")), f"{where}.source"),
-        terms=_terms(data.get("terms"), f"{where}.terms"),
+    physiology: list[Sourced] = []
+    if r.table(phys, "physiology", tuple(_PHYSIOLOGY_KINDS)) is not None:
+        for key in phys:
+            if key in _PHYSIOLOGY_KINDS:
+                item = sourced(phys, key, "physiology", physiology_value(_PHYSIOLOGY_KINDS[key]))
+                if item is not None:
+                    physiology.append(item)
+    rules = dict(
+        id=r.text(data, "id", "", required=True),
+        title=r.text(data, "title", "", required=True),
+        version=r.text(data, "version", ""),
+        table_version=r.text(data, "table_version", ""),
+        fu_plasma_floor=sourced(data, "fu_plasma_floor", "", number(0.0, 1.0)),
+        fu_plasma_floor_measured_exempt=sourced(data, "fu_plasma_floor_measured_exempt", "", flag),
+        aucr_inhibition_cutoff=sourced(data, "aucr_inhibition_cutoff", "", number(1.0, 1e6, False)),
+        aucr_induction_cutoff=sourced(data, "aucr_induction_cutoff", "", number(0.0, 1.0)),
+        source=r.text(data, "source", ""),
+        terms=terms(data.get("terms")),
     )
-
-
-def _terms(raw: object, where: str) -> Terms:
-    """The rule set's ``[terms]`` table: ``precipitant`` and ``object`` (nouns), with source and status."""
-    if raw is None:
-        return Terms()
-    if not isinstance(raw, dict):
-        raise InputError(where, raw, "is not a table with precipitant, object, source and status")
-    words = {}
-    for key in ("precipitant", "object"):
-        value = raw.get(key)
-        if not isinstance(value, str) or not value.strip() or not value.replace(" ", "").replace("-", "").isalpha():
-            raise InputError(f"{where}.{key}", value, "is not a word or two (letters, spaces, hyphens)")
-        words[key] = value.strip()
-    return Terms(
-        precipitant=words["precipitant"],
-        object=words["object"],
-        source=_cites(str(raw.get("source", "")), f"{where}.source"),
-        status=_status(raw, where) if "status" in raw else "",
-    )
+    cited(rules["source"], "source")
+    if r.problems:
+        raise ScenarioError(tuple(r.problems), source=f"rules {path}")
+    return RuleSet(path=path, criteria=tuple(criteria), physiology=tuple(physiology), **rules)  # type: ignore[arg-type]
 
 
 @lru_cache(maxsize=1)

@@ -36,7 +36,6 @@ from __future__ import annotations
 
 import math
 import re
-import tomllib
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any, Final
@@ -181,6 +180,21 @@ def _bound(text: str, inp: Input, field: str) -> float:
     return units.magnitude(q, inp.unit)
 
 
+#: the widest log-normal accepted: the sigma of a CV of 1000% (the cv: limit); a 95% interval spanning a factor of about 4,500
+_MAX_SIGMA: Final = math.sqrt(math.log1p(10.0**2))
+
+
+def _check_width(field: str, spec: object, lower: float, upper: float) -> float:
+    """The log-normal sigma of a 95% interval, refused (naming ``field``) when wider than a CV of 1000%."""
+    sigma = math.log(upper / lower) / (2 * Z975) if lower != upper else 0.0
+    if not math.isfinite(sigma) or sigma > _MAX_SIGMA:
+        widest = math.exp(2 * Z975 * _MAX_SIGMA)
+        raise InputError(
+            field, spec, f"spans a factor of {upper / lower:.3g}; expected at most {widest:,.0f} (a CV of at most 1000%, as for cv:)"
+        )
+    return sigma
+
+
 def parse_distribution(spec: str, inp: Input) -> Distribution:
     """Read a SPEC such as ``cv:30%``, ``ci:0.8 uM,2.1 uM``, ``uniform:0.5,0.9`` or ``fixed`` for ``inp``.
 
@@ -225,8 +239,9 @@ def parse_distribution(spec: str, inp: Input) -> Distribution:
     if kind in ("ci", "ci95"):
         if lo <= 0:
             raise InputError(field, spec, "needs a positive lower bound for a log-normal 95% interval")
-        median = lo if lo == hi else math.sqrt(lo * hi)
-        return Distribution(kind="lognormal", median=median, sigma=math.log(hi / lo) / (2 * Z975), text=spec)
+        sigma = _check_width(field, spec, lo, hi)
+        median = lo if lo == hi else math.sqrt(lo) * math.sqrt(hi)  # two roots: the product of wide bounds can overflow
+        return Distribution(kind="lognormal", median=median, sigma=sigma, text=spec)
     if lo < 0:
         raise InputError(field, spec, "has a negative lower bound; expected values of at least 0")
     return Distribution(kind="uniform", low=lo, high=hi, text=spec)
@@ -236,8 +251,9 @@ def interval_distribution(lower: float, upper: float, text: str = "") -> Distrib
     """A log-normal from a 95% interval in canonical units, e.g. a fitted Ki's confidence interval."""
     if not (0 < lower <= upper) or not math.isfinite(upper):
         raise InputError("interval", (lower, upper), "is not a positive interval with lower <= upper")
-    median = lower if lower == upper else math.sqrt(lower * upper)
-    return Distribution(kind="lognormal", median=median, sigma=math.log(upper / lower) / (2 * Z975), text=text or f"ci:{lower:g},{upper:g}")
+    sigma = _check_width("interval", text or (lower, upper), lower, upper)
+    median = lower if lower == upper else math.sqrt(lower) * math.sqrt(upper)
+    return Distribution(kind="lognormal", median=median, sigma=sigma, text=text or f"ci:{lower:g},{upper:g}")
 
 
 # --------------------------------------------------------------------------- the model on arrays
@@ -524,7 +540,7 @@ class ScenarioModel:
         for f, act in zip(fms, acts, strict=True):
             weighted = weighted + f * act
             total_fm = total_fm + f
-        liver = 1.0 / (weighted + 1.0 - total_fm)
+        liver = 1.0 / (weighted + (1.0 - total_fm))  # (1 - sum fm) first: exact when fm = 1
         if self._gut_enzyme is not None:
             gut = gut_ratio(get("victim.fg"), activity(self._gut_enzyme, gut_conc, self._kdeg.get(self._gut_enzyme, (None, None))[1]))
         else:
@@ -562,10 +578,9 @@ def parse_vary(text: str) -> tuple[str, str]:
 
 def loads_spec(text: str, *, source: str = "uncertainty file") -> UncertaintySpec:
     """Read a sidecar TOML: ``[vary]`` with ``"PATH" = "SPEC"`` and optional ``[sampling]``."""
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
+    from .files import loads_toml
+
+    data = loads_toml(text, source)
     unknown = set(data) - {"vary", "sampling", "title", "notes"}
     if unknown:
         raise InputError(f"{source}: {sorted(unknown)[0]}", sorted(unknown)[0], "is not a known table; expected [vary] and [sampling]")
@@ -584,9 +599,9 @@ def loads_spec(text: str, *, source: str = "uncertainty file") -> UncertaintySpe
     if bad:
         raise InputError(f"{source}: sampling.{sorted(bad)[0]}", sorted(bad)[0], "is not a known key; expected samples, seed, method")
     samples, seed, method = sampling.get("samples"), sampling.get("seed"), sampling.get("method")
-    for key, value in (("samples", samples), ("seed", seed)):
-        if value is not None and (isinstance(value, bool) or not isinstance(value, int) or value < 0):
-            raise InputError(f"{source}: sampling.{key}", value, "is not a whole number of at least 0")
+    for key, value, least in (("samples", samples, 1), ("seed", seed, 0)):
+        if value is not None and (isinstance(value, bool) or not isinstance(value, int) or value < least):
+            raise InputError(f"{source}: sampling.{key}", value, f"is not a whole number of at least {least}")
     if method is not None and method not in METHODS:
         raise InputError(f"{source}: sampling.method", method, f"is not one of {', '.join(METHODS)}")
     return UncertaintySpec(vary=tuple(pairs), samples=samples, seed=seed, method=method)
@@ -790,6 +805,13 @@ def run_uncertainty(
         gut[start:stop] = np.broadcast_to(r.gut, (stop - start,))
         liver[start:stop] = np.broadcast_to(r.liver, (stop - start,))
         total[start:stop] = np.broadcast_to(r.total, (stop - start,))
+    nonfinite = ~np.isfinite(total)
+    if nonfinite.any():  # never "not a number" in a summary: the input ranges keep ratios finite, so this names the inputs if not
+        raise InputError(
+            "vary",
+            ", ".join(inp.path for inp, _ in pairs),
+            f"gave a ratio that is not a finite number in {int(nonfinite.sum()):,} of {samples:,} samples; narrow these distributions",
+        )
     return summarise(assessment, model, pairs, adjusted, fm_scaled, gut, liver, total, method=method, seed=seed)
 
 

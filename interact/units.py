@@ -145,7 +145,10 @@ def parse_fraction(text: object, *, field: str, allow_zero: bool = False, upper:
     if isinstance(text, bool):
         raise UnitError(field, text, f"is not a number; {wanted}")
     if isinstance(text, (int, float)):
-        value = float(text)
+        try:
+            value = float(text)
+        except OverflowError:  # an integer beyond the float range
+            raise UnitError(field, text, f"is not a finite number; {wanted}") from None
     elif isinstance(text, str):
         match = _NUMBER.match(text) if len(text) <= _MAX_TEXT else None
         if not match or match.group(2) not in ("", "%"):
@@ -224,7 +227,17 @@ def unit_text(quantity: pint.Quantity) -> str:
 
 @lru_cache(maxsize=512)
 def _unit_text(container: Any) -> str:
-    return f"{Quantity(1.0, container).units:~}".replace(" / ", "/").replace(" * ", "*")
+    """The compact symbol when it reads back to the same unit, else the full names (``"1.5 cdm"`` would not read back:
+    it is written ``"centidecimeter"``); every spelling written here is one :func:`parse` reads."""
+    units = Quantity(1.0, container).units
+    for spec in ("~", ""):
+        text = f"{units:{spec}}".replace(" / ", "/").replace(" * ", "*").replace(" ** ", "**")
+        try:
+            if _unit(_DASH_POWER.sub(r"\1**-\2", text.replace("^", "**"))) == units:
+                return text
+        except Exception:  # pint raises many kinds for a spelling it cannot read; try the next form
+            continue
+    return f"{units}"  # pragma: no cover - the full names always read back (tested over the registry)
 
 
 def _number(value: float) -> str:

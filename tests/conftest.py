@@ -55,3 +55,12 @@ def base_dict() -> dict[str, Any]:
 @pytest.fixture
 def scenario_dict() -> dict[str, Any]:
     return base_dict()
+
+
+def pytest_terminal_summary(terminalreporter: Any) -> None:
+    """Report how many cases the fuzz suite (tests/fuzz) generated in this run."""
+    from fuzzcount import CASES, RESULTS
+
+    if CASES:
+        parts = ", ".join(f"{name} {n:,} ({RESULTS[name]:,} results)" for name, n in sorted(CASES.items()))
+        terminalreporter.write_line(f"fuzz cases generated: {sum(CASES.values()):,}; the rest of each ended in a named error: {parts}")

@@ -100,7 +100,7 @@ def test_custom_rule_file(tmp_path: Path) -> None:
     assert rules.id == "cpt-2015-table-method"
     bad = tmp_path / "bad.toml"
     bad.write_text('id = "x"\ntitle = "x"\n[fu_plasma_floor]\nvalue = 0.01\n', encoding="utf-8")
-    with pytest.raises(InputError, match=r"rules\.fu_plasma_floor\.source"):
+    with pytest.raises(InputError, match=r"fu_plasma_floor\.source \(line 3\)"):
         load_rules(bad)
     with pytest.raises(InputError, match="neither a known rule set"):
         load_rules("no-such-rules")

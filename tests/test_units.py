@@ -112,3 +112,43 @@ def test_implausible_sizes_are_refused() -> None:
     with pytest.raises(UnitError, match="plausible range"):
         units.parse("1e300 mg", "dose", field="dose")
     assert units.parse_fraction(1e-6, field="fu") == 1e-6
+
+
+def _registry_spellings() -> list[str]:
+    """Every unit the registry defines, under every prefix (names, symbols, aliases), alone and in the compound
+    forms the tool reads and writes: amount or mass per volume, volume per time, 1 per time, mass per amount."""
+    from interact.units import ureg
+
+    singles = []
+    for name in sorted(set(ureg._units)):
+        for prefix in sorted(set(ureg._prefixes) | {""}):
+            text = prefix + name
+            try:
+                units._parse_text(f"1 {text}", "f", "")
+            except UnitError:
+                continue
+            singles.append(text)
+    dims = {s: units._parse_text(f"1 {s}", "f", "").dimensionality for s in singles}
+    of = {k: [s for s in singles if dims[s] == units._DIM(k)] for k in ("[mass]", "[substance]", "[length]**3", "[time]")}
+    compounds = [f"{a}/{v}" for a in of["[mass]"] + of["[substance]"] for v in of["[length]**3"][::9]]
+    compounds += [f"{v}/{t}" for v in of["[length]**3"][::9] for t in of["[time]"][::2]]
+    compounds += [f"1/{t}" for t in of["[time]"]] + [f"{m}/{n}" for m in of["[mass]"][::4] for n in of["[substance]"][::4]]
+    return singles + compounds
+
+
+def test_every_spelling_the_tool_writes_reads_back() -> None:
+    """Issue 11: 108 of 1,986 spellings written by format_quantity could not be read back (e.g. "1.5 cdm")."""
+    spellings = _registry_spellings()
+    assert len(spellings) > 1500  # the whole registry, not a sample
+    failures = []
+    for text in spellings:
+        q = units._parse_text(f"1.5 {text}", "f", "")
+        written = units.format_quantity(q)
+        try:
+            back = units._parse_text(written, "f", "")
+            same = back.dimensionality == q.dimensionality and float(back.to(q.units).magnitude) == pytest.approx(1.5, rel=1e-12)
+        except UnitError:
+            same = False
+        if not same:
+            failures.append((text, written))
+    assert not failures, failures[:20]

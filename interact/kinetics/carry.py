@@ -29,6 +29,7 @@ import tomlkit
 from .. import units
 from ..errors import InputError
 from ..scenario import loads_scenario
+from .data import _check_size
 from .scenario_update import inhibition_entry, set_keeping_history
 
 __all__ = ["ColumnData", "carry_constants_text", "parse_fold_change_csv", "parse_preincubation_csv"]
@@ -48,6 +49,7 @@ class ColumnData:
 
 def _parse(text: str, spec: dict[str, tuple[tuple[str, ...], str, str]], source: str) -> ColumnData:
     """spec: canonical name -> (accepted header names, kind for units.parse or "", canonical unit)."""
+    text = text.removeprefix("\ufeff")  # a byte-order mark (spreadsheet export) is dropped
     lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
     if not lines:
         raise InputError(source, "empty", "has no data rows; expected a header line and rows of numbers")
@@ -83,6 +85,7 @@ def _parse(text: str, spec: dict[str, tuple[tuple[str, ...], str, str]], source:
                 raise InputError(f"{source}: row {line_no}, column {header[idx].strip()!r}", cell, "is not a number") from None
             if not math.isfinite(value):
                 raise InputError(f"{source}: row {line_no}, column {header[idx].strip()!r}", cell, "is not a finite number")
+            _check_size(value, f"{source}: row {line_no}, column {header[idx].strip()!r}", cell)
             cols[canon].append(value * factor)
     return ColumnData(columns={k: tuple(v) for k, v in cols.items()}, units=unit_used, source=source, n=len(rows) - 1)
 

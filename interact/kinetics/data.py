@@ -195,8 +195,17 @@ def read_incubation_csv(
 
 def _rows(text: str) -> list[tuple[int, list[str]]]:
     out = []
-    reader = csv.reader(io.StringIO(text))
-    for row in reader:
+    reader = csv.reader(io.StringIO(text.removeprefix("\ufeff")))  # a byte-order mark (spreadsheet export) is dropped
+    rows = iter(reader)
+    while True:
+        try:
+            row = next(rows)
+        except StopIteration:
+            break
+        except csv.Error as exc:  # a stray carriage return or NUL inside a field
+            raise InputError(
+                f"data line {reader.line_num}", "CSV", f"could not be read ({exc}); expected plain comma-separated rows"
+            ) from None
         line = reader.line_num
         if not row or all(not c.strip() for c in row) or row[0].lstrip().startswith("#"):
             continue
@@ -281,7 +290,17 @@ def _number(cell: str, column: str, line: int, source: str) -> float:
         raise InputError(f"{source} line {line}, {column}", cell, "is not a number") from None
     if not math.isfinite(value):
         raise InputError(f"{source} line {line}, {column}", cell, "is not a finite number")
+    _check_size(value, f"{source} line {line}, {column}", cell)
     return value
+
+
+def _check_size(value: float, field: str, cell: str) -> None:
+    """Refuse magnitudes the fit's linear algebra cannot square (near 1e300 its normal equations overflow)."""
+    from ..units import MAGNITUDE_RANGE
+
+    low, high = MAGNITUDE_RANGE
+    if value and not low <= abs(value) <= high:
+        raise InputError(field, cell, f"is beyond the accepted magnitudes ({low:g} to {high:g}); rescale the column's unit")
 
 
 def _unit_factor(column: str, header_unit: str, given: str | None, line: int) -> float:

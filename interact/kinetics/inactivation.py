@@ -214,13 +214,18 @@ def kobs_hyperbola(concentration_um: ArrayLike, kinact: ArrayLike, ki_um: ArrayL
     return np.asarray(kinact, dtype=float) * c / (np.asarray(ki_um, dtype=float) + c)
 
 
+def _share(x: Array, d: Array) -> Array:
+    """x / d, taken as 0 where x = 0 (its limit at a zero concentration when a fit tries a constant of 0: no 0/0)."""
+    return np.divide(x, d, out=np.zeros(np.broadcast(x, d).shape), where=x != 0)
+
+
 def _hyp(x: Array, th: Array) -> Array:
-    return th[0] * x / (th[1] + x)
+    return th[0] * _share(x, th[1] + x)
 
 
 def _hyp_jac(x: Array, th: Array) -> Array:
-    d = th[1] + x
-    return np.column_stack((x / d, -th[0] * x / d**2))
+    share = _share(x, th[1] + x)
+    return np.column_stack((share, -th[0] * _share(share, th[1] + x)))
 
 
 def guess_hyperbola(x: ArrayLike, rise: ArrayLike) -> tuple[float, float]:

@@ -28,7 +28,7 @@ from numpy.typing import ArrayLike
 
 from ..errors import FitError
 from .engine import extra_sum_of_squares
-from .inactivation import Array, CurveFit, Estimate, _checked, fit_curve, guess_hyperbola
+from .inactivation import Array, CurveFit, Estimate, _checked, _share, fit_curve, guess_hyperbola
 
 __all__ = ["EMAX_EQUATION", "HILL_EQUATION", "InductionFit", "fit_induction", "fold_change_model", "guess_induction"]
 
@@ -44,12 +44,12 @@ def fold_change_model(concentration_um: ArrayLike, emax: ArrayLike, ec50_um: Arr
 
 
 def _emax(x: Array, th: Array) -> Array:
-    return 1.0 + th[0] * x / (th[1] + x)
+    return 1.0 + th[0] * _share(x, th[1] + x)
 
 
 def _emax_jac(x: Array, th: Array) -> Array:
-    d = th[1] + x
-    return np.column_stack((x / d, -th[0] * x / d**2))
+    share = _share(x, th[1] + x)
+    return np.column_stack((share, -th[0] * _share(share, th[1] + x)))
 
 
 def _hill(x: Array, th: Array) -> Array:

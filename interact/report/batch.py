@@ -9,7 +9,7 @@ from typing import Any, Final, TextIO
 from ..batch import OUTPUT_COLUMNS, BatchResult, result_rows
 from ..cautions import CAUTION_LINE
 from ..errors import InputError
-from .document import Note, Section, Table, render_text, speak
+from .document import Note, Section, Table, md_escape, render_text, speak, terminal_safe
 from .numbers import fmt, fmt_ratio
 
 __all__ = ["BATCH_FORMATS", "write_results"]
@@ -61,7 +61,7 @@ def _rounded(col: str, cell: str) -> str:
 
 
 def _md(text: str) -> str:
-    return text.replace("|", "\\|").replace("\n", " ")
+    return md_escape(text)
 
 
 def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *, top: int | None = None, width: int = 100) -> int:
@@ -75,7 +75,8 @@ def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *,
     if fmt_name == "csv":
         w = csv.writer(handle, lineterminator="\n")
         w.writerow(OUTPUT_COLUMNS)
-        w.writerows(result_rows(result, top))
+        safe = terminal_safe  # names reach a terminal when the CSV goes to standard output
+        w.writerows((r[0], safe(r[1]), safe(r[2]), *r[3:]) for r in result_rows(result, top))
         count = result.pairs if top is None else min(top, result.pairs)
     elif fmt_name == "json":
         head = {
@@ -102,7 +103,7 @@ def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *,
             count += 1
         handle.write("\n ]\n}\n")
     elif fmt_name == "markdown":
-        handle.write(f"# interact batch screen ({result.rules.id})\n\n> **Caution:** {CAUTION_LINE}\n\n")
+        handle.write(f"# interact batch screen ({_md(result.rules.id)})\n\n> **Caution:** {CAUTION_LINE}\n\n")
         terms = result.rules.terms  # a document for reading: the rule set's words (the CSV and JSON keys stay)
         handle.write(
             speak(

@@ -25,16 +25,62 @@ __all__ = [
     "cite_data",
     "keep_together",
     "list_groups",
+    "md_escape",
     "render_html_body",
     "render_markdown",
     "render_text",
     "speak",
     "speak_data",
     "speak_sections",
+    "terminal_safe",
     "without_empty_columns",
 ]
 
 REFERENCES_TITLE = "References"
+
+# Escape sequences (ECMA-48: CSI ... final byte, OSC/DCS/SOS/PM/APC ... terminator, two-byte ESC x) and then any
+# lone control character: C0 except tab and newline, DEL, C1, and the Unicode bidirectional overrides and isolates,
+# which reorder what follows them on screen.
+_ESCAPE_SEQUENCE = re.compile(
+    r"(?:\x1b\[|\x9b)[0-?]*[ -/]*[@-~]"  # CSI
+    r"|(?:\x1b[\]PX^_]|[\x90\x98\x9d\x9e\x9f])[^\x07\x1b\x9c]*(?:\x07|\x1b\\|\x9c)?"  # OSC, DCS, SOS, PM, APC
+    r"|\x1b[ -/]*[0-~]?"  # other ESC sequences (and a lone ESC)
+)
+_CONTROL = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u200e\u200f\u202a-\u202e\u2066-\u2069]")
+
+
+def terminal_safe(text: str) -> str:
+    """``text`` without terminal escape sequences or control characters (newlines and tabs kept).
+
+    A name ending in an escape sequence (say, the one that conceals what follows) must not hide
+    the cautions printed after it.
+    """
+    if text.isprintable():
+        return text
+    return _CONTROL.sub("", _ESCAPE_SEQUENCE.sub("", text))
+
+
+# inline markup, links and images (& < > become entities); an underscore inside a word opens no emphasis (CommonMark's
+# flanking rules), so ki_ci stays readable
+_MD_SPECIAL = re.compile(r"([\\`*\[\]#!|~]|(?<![A-Za-z0-9])_|_(?![A-Za-z0-9]))")
+_MD_ENTITY = re.compile(r"&(?=#\d+;|#[xX][0-9a-fA-F]+;|[A-Za-z][A-Za-z0-9]*;)")
+_MD_LINE_START = re.compile(r"^(\s*)([-+]|\d{1,9}[.)])(?=\s|$)")  # a list item: the marker, then a space or the end
+_MD_RULE = re.compile(r"^(\s*)([-=])(?=[\s=-]*$)")  # a line of - or = alone: a thematic break or a setext underline
+
+
+def md_escape(text: str) -> str:
+    """``text`` as literal Markdown: HTML neutralised (``< >`` and an ``&`` that would start an entity become
+    entities), Markdown punctuation backslash-escaped, line breaks and control characters removed, so that user
+    text cannot open a block, a link, an image or raw HTML."""
+    flat = terminal_safe(text).replace("\r", " ").replace("\n", " ").replace("\t", " ")
+    flat = _MD_ENTITY.sub("&amp;", flat).replace("<", "&lt;").replace(">", "&gt;")
+    flat = _MD_SPECIAL.sub(r"\\\1", flat)
+    return _MD_RULE.sub(r"\1\\\2", _MD_LINE_START.sub(_escape_marker, flat))
+
+
+def _escape_marker(m: re.Match[str]) -> str:
+    indent, marker = m.group(1), m.group(2)
+    return indent + marker[:-1] + "\\" + marker[-1]
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -301,38 +347,44 @@ def _text_table(table: Table, width: int) -> list[str]:
 
 
 def render_text(sections: list[Section], width: int = 100) -> str:
+    """Plain text for a terminal: every string is passed through :func:`terminal_safe` before it is laid out."""
     sections = cite(sections)
+    t = terminal_safe
     out: list[str] = []
     for section in sections:
+        title = t(section.title)
         out.append("")
-        out.append(section.title)  # as written: upper-casing would turn a unit such as (uM) into (UM)
-        out.append("=" * min(len(section.title), width) if section.title else "")
+        out.append(title)  # as written: upper-casing would turn a unit such as (uM) into (UM)
+        out.append("=" * min(len(title), width) if title else "")
         for block in section.blocks:
             if isinstance(block, Table):
-                out.extend(_text_table(without_empty_columns(block), width))
+                block = without_empty_columns(block)
+                safe = Table(headers=tuple(t(h) for h in block.headers), rows=tuple(tuple(t(c) for c in row) for row in block.rows))
+                out.extend(_text_table(safe, width))
                 out.append("")
             elif isinstance(block, Note):
                 prefix = "!! " if block.kind == "caution" else ">> "
-                out.extend(textwrap.wrap(block.text, width, initial_indent=prefix, subsequent_indent="   "))
+                out.extend(textwrap.wrap(t(block.text), width, initial_indent=prefix, subsequent_indent="   "))
             elif block.startswith("- "):
-                out.extend(textwrap.wrap(block, width, subsequent_indent="  ") or [""])
+                # list items (warnings, references): an address or a long name is never cut, at a hyphen or anywhere
+                out.extend(textwrap.wrap(t(block), width, subsequent_indent="  ", break_long_words=False, break_on_hyphens=False) or [""])
             else:
-                out.extend(textwrap.wrap(block, width) or [""])
+                out.extend(textwrap.wrap(t(block), width) or [""])
     return "\n".join(out).strip("\n") + "\n"
 
 
 def _md_cell(text: str) -> str:
-    return text.replace("|", "\\|").replace("\n", " ")
+    return md_escape(text)
 
 
 def render_markdown(sections: list[Section], title: str = "") -> str:
     sections = cite(sections)
     out: list[str] = []
     if title:
-        out += [f"# {title}", ""]
+        out += [f"# {md_escape(title)}", ""]
     for section in sections:
         if section.title:
-            out += [f"## {section.title}", ""]
+            out += [f"## {md_escape(section.title)}", ""]
         for block in section.blocks:
             if isinstance(block, Table):
                 block = without_empty_columns(block)
@@ -342,9 +394,11 @@ def render_markdown(sections: list[Section], title: str = "") -> str:
                     out.append("| " + " | ".join(_md_cell(c) for c in row) + " |")
                 out.append("")
             elif isinstance(block, Note):
-                out += [f"> **{'Caution' if block.kind == 'caution' else 'Result'}:** {block.text}", ""]
+                out += [f"> **{'Caution' if block.kind == 'caution' else 'Result'}:** {md_escape(block.text)}", ""]
+            elif block.startswith("- "):  # a list item of ours: the marker stays a marker, the text is escaped
+                out += ["- " + md_escape(block[2:]), ""]
             else:
-                out += [block, ""]
+                out += [md_escape(block), ""]
     return "\n".join(out).rstrip("\n") + "\n"
 
 

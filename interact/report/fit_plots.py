@@ -53,7 +53,7 @@ def render_terminal(plot: PlotData, width: int = 80, height: int = 22) -> str:
     return text.rstrip() + key + note + "\n"
 
 
-def save_figure(plots: Sequence[PlotData], path: str | Path) -> Path:
+def save_figure(plots: Sequence[PlotData], path: str | Path, *, inputs: Sequence[str | Path | None] = (), force: bool = False) -> Path:
     """Draw ``plots`` side by side into ``path`` (.svg, .png or .pdf); returns the path.
 
     Raises
@@ -90,9 +90,9 @@ def save_figure(plots: Sequence[PlotData], path: str | Path) -> Path:
     fig.suptitle("Diagnostics of the global nonlinear fit; not the fitting method", fontsize=8, color="0.4")
     import io
 
-    from ..scenario import write_text_atomic
+    from ..files import write_file
 
     buffer = io.BytesIO()
     fig.savefig(buffer, format=target.suffix.lower().lstrip("."))
-    write_text_atomic(target, buffer.getvalue())  # atomic: the old file or the new one, never a part
+    write_file(target, buffer.getvalue(), field="--plot", inputs=inputs, force=force)  # atomic: the old file or the new one, never a part
     return target

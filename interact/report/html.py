@@ -27,7 +27,18 @@ from ..cautions import CAUTION_LINE
 from ..kinetics.conversion import CHENG_PRUSOFF_SOURCE
 from ..uncertainty import Sensitivity, UncertaintyResult
 from .assessment import assessment_sections, user_text
-from .document import Note, Section, Table, cite, keep_together, list_groups, render_markdown, speak_sections, without_empty_columns
+from .document import (
+    Note,
+    Section,
+    Table,
+    cite,
+    keep_together,
+    list_groups,
+    md_escape,
+    render_markdown,
+    speak_sections,
+    without_empty_columns,
+)
 from .svg import fm_curves_svg, histogram_svg, tornado_svg
 from .uncertainty import sensitivity_sections, uncertainty_sections
 
@@ -319,6 +330,6 @@ def render_report_markdown(a: Assessment, parts: Sequence[ReportPart]) -> str:
         out.append("")
         for fig in part.figures:
             data = base64.b64encode(fig.svg.encode("utf-8")).decode("ascii")
-            out.append(f"![{fig.caption}](data:image/svg+xml;base64,{data})")
+            out.append(f"![{md_escape(fig.caption)}](data:image/svg+xml;base64,{data})")
             out.append("")
     return "\n".join(out).rstrip("\n") + "\n"

@@ -13,7 +13,6 @@ from __future__ import annotations
 import copy
 import sys
 import time
-import tomllib
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, ClassVar
 
@@ -27,7 +26,7 @@ from textual.widgets import Button, Footer, Header, Input, ProgressBar, Static, 
 from textual.worker import get_current_worker
 
 from ..cautions import CAUTION_LINE
-from ..errors import InputError, InteractError, Problem, ScenarioError
+from ..errors import InteractError, Problem, ScenarioError
 from ..report.numbers import fmt
 from .doc import Doc
 from .document_view import DocumentView
@@ -68,16 +67,10 @@ def load_core() -> None:
 
 def read_scenario_data(path: str | Path) -> dict[str, Any]:
     """The file's TOML data, not yet validated (the built-in demo at start-up)."""
+    from ..files import loads_toml, read_text
+
     p = Path(path)
-    try:
-        text = p.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        why = getattr(exc, "strerror", None) or exc.__class__.__name__
-        raise InputError("scenario", str(p), f"could not be read ({why})") from None
-    try:
-        return tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(str(p), "TOML", f"could not be parsed: {exc}") from None
+    return loads_toml(read_text(p, "scenario"), str(p))
 
 
 def read_scenario_file(path: str | Path) -> tuple[dict[str, Any], Scenario]:
@@ -89,16 +82,12 @@ def read_scenario_file(path: str | Path) -> tuple[dict[str, Any], Scenario]:
         The file cannot be read or parsed, or the scenario has problems
         (:class:`~interact.errors.ScenarioError`, all of them listed).
     """
-    p = Path(path)
-    try:
-        text = p.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError("scenario", str(p), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(str(p), "TOML", f"could not be parsed: {exc}") from None
+    from ..files import loads_toml, read_text
     from ..scenario import scenario_from_dict
+
+    p = Path(path)
+    text = read_text(p, "scenario")  # a byte-order mark is dropped here
+    data = loads_toml(text, str(p))
 
     scenario = scenario_from_dict(data, source=str(p), text=text)
     return data, scenario
