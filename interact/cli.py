@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import math
+import shutil
 import sys
 from collections.abc import Callable, Sequence
 from pathlib import Path
@@ -38,8 +39,14 @@ def _out(text: str, path: str | None = None, args: argparse.Namespace | None = N
         from .files import write_file
 
         write_file(path, text, field="--output", inputs=_inputs(args), force=bool(getattr(args, "force", False)))
+        _said_written(path)
     else:
         sys.stdout.write(text)
+
+
+def _said_written(path: str | Path, what: str = "output") -> None:
+    """Every command that writes a file says where (on standard error, so standard output stays the result)."""
+    sys.stderr.write(f"interact: {what} written to {Path(path).resolve()}\n")
 
 
 #: the arguments that name files a command reads; no output of the same run may overwrite one of them
@@ -109,17 +116,19 @@ def _cmd_timecourse(args: argparse.Namespace) -> int:
         warn=False,
     )
     if args.plot:
-        from .report.figures import FIGURE_SUFFIXES, save_figure, timecourse_figure
+        plot_inputs = (*_inputs(args), args.output)
+        if Path(args.plot).suffix.lower() in (".png", ".pdf"):  # drawn by matplotlib: the notebook's timecourse_figure
+            from .report.figures import save_figure, timecourse_figure
 
-        suffix = Path(args.plot).suffix.lower()
-        save_figure(
-            timecourse_figure(course, title=result.scenario.title),
-            args.plot,
-            field="--plot",
-            inputs=(*_inputs(args), args.output),
-            force=args.force,
-            fmt=suffix.lstrip(".") if suffix in FIGURE_SUFFIXES else "svg",  # another name gets SVG, as it always did
-        )
+            figure = timecourse_figure(course, title=result.scenario.title, terms=result.rules.terms)
+            save_figure(figure, args.plot, field="--plot", inputs=plot_inputs, force=args.force)
+        else:  # SVG (under any other name, as it always was): the report's own chart, readable without matplotlib
+            from .files import write_file
+            from .report.timecourse import timecourse_svg
+
+            svg = timecourse_svg(course, title=result.scenario.title, terms=result.rules.terms)
+            write_file(args.plot, svg, field="--plot", inputs=plot_inputs, force=args.force)
+        _said_written(args.plot, "plot")
     _out(format_timecourse(course, result, args.format, width=args.width), args.output, args)
     return 0
 
@@ -326,7 +335,11 @@ def _cmd_uncertainty(args: argparse.Namespace) -> int:
         result, vary, samples=samples, seed=seed, method=method, progress=_progress_bar("sampling") if samples >= 200_000 else None
     )
     sens = sensitivity(result, vary)
-    _out(format_uncertainty(spread, sens, args.format, title=result.scenario.title, width=args.width), args.output, args)
+    _out(
+        format_uncertainty(spread, sens, args.format, title=result.scenario.title, width=args.width, scenario=result.scenario),
+        args.output,
+        args,
+    )
     return 0
 
 
@@ -407,9 +420,14 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         sys.stderr.write(f"interact: skipped {problem}\n")
     n = len(perps.rows) * len(victims.rows)
     result = evaluate_pairs(perps, victims, rules, progress=_progress_bar("screening") if n >= 200_000 and not args.quiet else None)
-    fmt_name = args.format or {".json": "json", ".md": "markdown", ".markdown": "markdown", ".xlsx": "xlsx"}.get(
-        Path(args.output or "").suffix.lower(), "csv"
-    )
+    if args.format:
+        fmt_name = args.format
+    elif not _stdout(args.output):
+        fmt_name = {".json": "json", ".md": "markdown", ".markdown": "markdown", ".xlsx": "xlsx"}.get(
+            Path(args.output or "").suffix.lower(), "csv"
+        )
+    else:  # a person at a terminal reads a rounded table; a pipe gets CSV
+        fmt_name = "table" if sys.stdout.isatty() else "csv"
     if fmt_name == "xlsx":
         from datetime import UTC, datetime
 
@@ -422,7 +440,8 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
             _out_bytes(book, args)
         rows = result.pairs if args.top is None else min(args.top, result.pairs)
     else:
-        rows = _write_streamed(args, lambda h: write_results(result, h, fmt_name, top=args.top))
+        width = shutil.get_terminal_size((100, 24)).columns
+        rows = _write_streamed(args, lambda h: write_results(result, h, fmt_name, top=args.top, width=width))
     if not _stdout(args.output) and not args.quiet:
         skipped = len(perps.skipped) + len(victims.skipped)
         sys.stderr.write(
@@ -517,7 +536,7 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--washout-days", type=_days_arg, default=None, help="days followed after stopping (default: long enough to fade)")
     p.add_argument("--fraction", type=_fraction_arg, default=0.9, help="share of the effect that defines onset and offset (default 0.9)")
     p.add_argument("--constant", action="store_true", help="hold the perpetrator's site concentrations at their static values")
-    p.add_argument("--plot", metavar="FILE", help="also write the curves to FILE: PNG or PDF by its suffix, else SVG (matplotlib)")
+    p.add_argument("--plot", metavar="FILE", help="also write the curves to FILE: .png or .pdf (matplotlib), else SVG")
     p.set_defaults(run=_cmd_timecourse)
 
     for name, text in (
@@ -556,7 +575,7 @@ def _parser() -> argparse.ArgumentParser:
     with_report_options(p)
     p.set_defaults(run=_cmd_assess)
 
-    p = sub.add_parser("tables", help="print the reference tables with their sources and status")
+    p = sub.add_parser("tables", help="print the reference tables with their sources and status, and the source registry in full")
     p.add_argument("--rules", metavar="NAME|PATH", help="show only this rule set")
     p.add_argument("--format", choices=("text", "markdown"), default="text")
     p.set_defaults(run=_cmd_tables)
@@ -603,7 +622,11 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument(
         "-o", "--output", metavar="FILE", help="write results to FILE (.csv, .json, .md or .xlsx) instead of standard output (- for it)"
     )
-    p.add_argument("--format", choices=("csv", "json", "markdown", "xlsx"), help="output format (default: from the file name, else csv)")
+    p.add_argument(
+        "--format",
+        choices=("csv", "json", "markdown", "table", "xlsx"),
+        help="output format (default: from the file name; to a terminal a rounded table, to a pipe csv)",
+    )
     p.add_argument("--rules", metavar="NAME|PATH", help="rule set (default ich-m12-2024)")
     p.add_argument(
         "--on-error",
@@ -907,7 +930,8 @@ def _add_fit_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[t
         dest="method_binding",
         choices=("austin-2002", "hallifax-2006", "kilford-2008"),
         default="hallifax-2006",
-        help="fu,inc relation (default hallifax-2006; coefficients from memory)",
+        help="fu,inc relation (default hallifax-2006; austin-2002 was derived in rat liver microsomes; "
+        "sources and status: interact tables)",
     )
     p.add_argument("--ic50", action="store_true", help="treat the file as an IC50 curve (inhibitor, response)")
     p.add_argument("--bottom", type=float, metavar="Y", help="IC50 mode: fix the bottom plateau (3-parameter fit), e.g. 0")

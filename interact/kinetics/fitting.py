@@ -81,7 +81,7 @@ FIT_WEIGHTS: Final = ("auto", *WEIGHTS)
 ERROR_MODELS: Final = ("constant", "proportional", "power")
 _FLOOR_FRACTION: Final = 0.02  # fitted values below 2 % of the largest are floored in g (blank rows, f = 0)
 OUTLIER_T: Final = 3.0  # |externally studentised residual| flagged as a possible outlier (common practice)
-DEPLETION_KINETIC_PCT: Final = 10.0  # S1: < 10 % turnover for kinetic constants (seen in source)
+DEPLETION_KINETIC_PCT: Final = 10.0  # Lee et al. 2024: < 10 % turnover for kinetic constants (seen)
 DEPLETION_LIMIT_PCT: Final = 20.0  # FDA: substrate depletion <= 20 % (from memory)
 
 
@@ -1188,10 +1188,10 @@ def _design_warnings(
             out.append(
                 f"Substrate depletion above 10 % on {hi.size} row(s) (lines {_lines(data, hi.tolist())}; up to "
                 f"{worst:.3g} %){limit}: "
-                "initial-rate conditions are doubtful there (S1: keep turnover below 10 % for kinetic constants)."
+                "initial-rate conditions are doubtful there ([@lee2024]: keep turnover below 10 % for kinetic constants)."
             )
     else:
-        out.append("No depletion column: substrate turnover was not checked (keep it below 10 % for kinetic constants, S1).")
+        out.append("No depletion column: substrate turnover was not checked (keep it below 10 % for kinetic constants, [@lee2024]).")
     if chosen is not None and chosen.success:
         t = np.asarray(chosen.studentized)
         flagged = np.flatnonzero(np.abs(t) > OUTLIER_T)

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import csv
 import json
-from typing import Any, TextIO
+from typing import Any, Final, TextIO
 
 import numpy as np
 
@@ -12,23 +12,67 @@ from ..batch import OUTPUT_COLUMNS, BatchResult, result_rows
 from ..cautions import CAUTION_LINE
 from ..errors import InputError
 from ..results import BATCH_SCHEMA
-from .document import md_escape, terminal_safe
-from .numbers import fmt
+from .document import Note, Section, Table, md_escape, render_text, speak, terminal_safe
+from .numbers import fmt, fmt_ratio
 
 __all__ = ["BATCH_FORMATS", "results_workbook", "write_results"]
 
-BATCH_FORMATS = ("csv", "json", "markdown", "xlsx")
+BATCH_FORMATS = ("csv", "json", "markdown", "table", "xlsx")
+
+#: the columns of the terminal table and the Markdown file, rounded; CSV and JSON carry every column in full
+SHOWN: Final = (
+    "rank",
+    "perpetrator",
+    "victim",
+    "Iin,max,u (uM)",
+    "AUCR gut",
+    "AUCR liver",
+    "AUCR",
+    "class",
+    "study indicated (mechanistic model)",
+    "basic models",
+    "action",
+    "flags",
+)
+_RATIOS: Final = ("AUCR gut", "AUCR liver", "AUCR")
+
+
+def _basic_rounded(cell: str) -> str:
+    """'R1 CYP3A 3.459 STUDY; ...' with each value rounded like every other ratio."""
+    out = []
+    for entry in cell.split("; "):
+        words = entry.split(" ")
+        at = len(words) - (2 if words[-1] == "STUDY" else 1)
+        try:
+            words[at] = fmt_ratio(float(words[at]))
+        except (ValueError, IndexError):
+            pass  # not a number where one is expected: shown as written
+        out.append(" ".join(words))
+    return "; ".join(out)
+
+
+def _rounded(col: str, cell: str) -> str:
+    if not cell:
+        return cell
+    if col == "basic models":
+        return _basic_rounded(cell)
+    if col in _RATIOS:
+        return fmt_ratio(float(cell))
+    if col.endswith("(uM)"):
+        return fmt(float(cell))
+    return cell
 
 
 def _md(text: str) -> str:
     return md_escape(text)
 
 
-def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *, top: int | None = None) -> int:
-    """Write the ranked results to an open text ``handle`` as ``csv``, ``json`` or ``markdown``; returns rows written.
+def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *, top: int | None = None, width: int = 100) -> int:
+    """Write the ranked results to an open text ``handle`` as ``csv``, ``json``, ``markdown`` or ``table``; returns rows written.
 
     Numbers are written in full precision for CSV and JSON (concentrations in
-    uM, ratios dimensionless) and to 3 significant figures in Markdown.
+    uM, ratios dimensionless) and rounded like every report (``numbers.fmt``,
+    ``fmt_ratio``) in Markdown and in the terminal ``table``.
     """
     count = 0
     if fmt_name == "csv":
@@ -63,27 +107,71 @@ def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *,
         handle.write("\n ]\n}\n")
     elif fmt_name == "markdown":
         handle.write(f"# interact batch screen ({_md(result.rules.id)})\n\n> **Caution:** {CAUTION_LINE}\n\n")
+        terms = result.rules.terms  # a document for reading: the rule set's words (the CSV and JSON keys stay)
         handle.write(
-            f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
-            "worst first (largest |log AUCR|).\n\n"
+            speak(
+                f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
+                "worst first (largest |log AUCR|).\n\n",
+                terms,
+            )
         )
-        shown = ("rank", "perpetrator", "victim", "Iin,max,u (uM)", "AUCR gut", "AUCR liver", "AUCR", "class", "action", "flags")
-        idx = [OUTPUT_COLUMNS.index(c) for c in shown]
-        handle.write("| " + " | ".join(shown) + " |\n|" + "|".join("---" for _ in shown) + "|\n")
+        idx = [OUTPUT_COLUMNS.index(c) for c in SHOWN]
+        names = (OUTPUT_COLUMNS.index("perpetrator"), OUTPUT_COLUMNS.index("victim"))
+        handle.write("| " + " | ".join(speak(h, terms) for h in SHOWN) + " |\n|" + "|".join("---" for _ in SHOWN) + "|\n")
         for row in result_rows(result, top):
-            cells = []
-            for col in idx:
-                cell = row[col]
-                if OUTPUT_COLUMNS[col] in ("Iin,max,u (uM)", "AUCR gut", "AUCR liver", "AUCR") and cell:
-                    cell = fmt(float(cell))
-                cells.append(_md(cell))
-            handle.write("| " + " | ".join(cells) + " |\n")
+            cells = (row[i] if i in names else speak(_rounded(OUTPUT_COLUMNS[i], row[i]), terms) for i in idx)
+            handle.write("| " + " | ".join(_md(c) for c in cells) + " |\n")
             count += 1
         skipped = (*result.perpetrators.skipped, *result.victims.skipped)
         if skipped:
             handle.write("\n## Rows left out\n\n" + "".join(f"- {_md(str(s))}\n" for s in skipped))
+    elif fmt_name == "table":
+        # for a person at a terminal: the main columns, rounded like every other output, in the rule set's words
+        terms = result.rules.terms
+        col = {c: OUTPUT_COLUMNS.index(c) for c in OUTPUT_COLUMNS}
+        basic_flag = "basic model flags a study"
+        rows = []
+        for row in result_rows(result, top):
+            flags = [f for f in row[col["flags"]].split("; ") if f]
+            rows.append(
+                (
+                    row[col["rank"]],
+                    row[col["perpetrator"]],
+                    row[col["victim"]],
+                    _rounded("AUCR", row[col["AUCR"]]),
+                    row[col["class"]],
+                    row[col["study indicated (mechanistic model)"]],
+                    "yes" if basic_flag in flags else "no",
+                    row[col["action"]],
+                    speak("; ".join(f for f in flags if f != basic_flag), terms) or "-",
+                )
+            )
+        headers = tuple(
+            speak(h, terms)
+            for h in (
+                "rank",
+                "perpetrator",
+                "victim",
+                "AUCR",
+                "class",
+                "study: mechanistic model",
+                "study: basic models",
+                "action",
+                "flags",
+            )
+        )
+        intro = speak(
+            f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
+            f"rule set {result.rules.id}, worst first (largest |log AUCR|). 'study' says whether a clinical study is indicated "
+            "by the mechanistic static model (AUCR against its cutoff) and by any basic static model. "
+            "Every column in full precision: --format csv, or -o FILE.csv.",
+            terms,
+        )
+        sections = [Section(title="", blocks=(intro, Note(text=CAUTION_LINE), Table(headers=headers, rows=tuple(rows))))]
+        handle.write(render_text(sections, width=width))
+        count = len(rows)
     else:
-        raise InputError("format", fmt_name, "is not csv, json or markdown")
+        raise InputError("format", fmt_name, "is not csv, json, markdown or table")
     return count
 
 

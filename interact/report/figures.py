@@ -28,6 +28,7 @@ if TYPE_CHECKING:
     from ..dynamic import TimeCourse
     from ..kinetics.diagnostics import PlotData
     from ..kinetics.fitting import ModelComparison
+    from ..tables import Terms
     from ..uncertainty import Sensitivity, UncertaintyResult
 
 __all__ = [
@@ -264,7 +265,7 @@ def sobol_figure(sens: Sensitivity, ax: Axes | None = None) -> Figure:
 # --------------------------------------------------------------------------- time course
 
 
-def timecourse_figure(tc: TimeCourse, title: str = "", axes: Sequence[Axes] | None = None) -> Figure:
+def timecourse_figure(tc: TimeCourse, title: str = "", axes: Sequence[Axes] | None = None, terms: Terms | None = None) -> Figure:
     """Two panels: the object drug's concentration with and without the precipitant; exposure ratio and enzyme amounts.
 
     Parameters
@@ -276,8 +277,14 @@ def timecourse_figure(tc: TimeCourse, title: str = "", axes: Sequence[Axes] | No
         Figure title (the scenario's).
     axes
         Two axes to draw into (default: a new Figure).
+    terms
+        The rule set's words for the two drugs (``Assessment.rules.terms``); default perpetrator and victim.
     """
     from ..dynamic import time_course_arrays
+    from .document import speak
+
+    def say(text: str) -> str:
+        return speak(text, terms) if terms is not None else text
 
     arr = time_course_arrays(tc)
     if axes is None:
@@ -290,9 +297,9 @@ def timecourse_figure(tc: TimeCourse, title: str = "", axes: Sequence[Axes] | No
         raise InputError("axes", len(axes), "axes were given; give two (concentrations, ratios)")
     top, bottom = axes
     x = arr["time_day"]
-    top.plot(x, arr["victim_without"], color="0.55", linewidth=1.0, label="without precipitant")
-    top.plot(x, arr["victim_with"], color="#c0392b", linewidth=1.0, label="with precipitant")
-    top.set_ylabel(f"object drug ({tc.victim_unit})")
+    top.plot(x, arr["victim_without"], color="0.55", linewidth=1.0, label=say("without the perpetrator"))
+    top.plot(x, arr["victim_with"], color="#c0392b", linewidth=1.0, label=say("with the perpetrator"))
+    top.set_ylabel(say(f"victim ({tc.victim_unit})"))
     bottom.plot(x, arr["exposure_ratio"], color="#c0392b", linewidth=1.5, label="exposure ratio")
     for key, values in arr.items():
         if key.startswith("enzyme:"):
@@ -300,7 +307,7 @@ def timecourse_figure(tc: TimeCourse, title: str = "", axes: Sequence[Axes] | No
             bottom.plot(x, values, linewidth=1.2, label=f"{enzyme} {site} enzyme")
     bottom.axhline(1.0, color="0.8", linewidth=0.6)
     bottom.set_ylabel("relative to baseline")
-    bottom.set_xlabel("days after the first precipitant dose")
+    bottom.set_xlabel(say("days after the first perpetrator dose"))
     for ax in (top, bottom):
         ax.axvline(tc.stop_h / 24.0, color="0.6", linestyle="--", linewidth=0.8)
         ax.legend(fontsize=7, frameon=False)

@@ -23,7 +23,7 @@ from hypothesis import strategies as st
 from interact import assess, demo_path, load_scenario
 from interact.batch import COLUMN_KEYS, OUTPUT_COLUMNS, evaluate_pairs, loads_perpetrators, loads_victims, result_rows
 from interact.errors import InputError
-from interact.report.assessment import format_assessment
+from interact.report.assessment import format_assessment, user_text
 from interact.results import ASSESSMENT_SCHEMA
 from interact.scenario import scenario_from_dict
 from interact.uncertainty import run_uncertainty
@@ -46,9 +46,15 @@ def demo():  # type: ignore[no-untyped-def]
 
 
 def test_to_dict_is_the_json_output(demo) -> None:  # type: ignore[no-untyped-def]
+    """--format json is to_dict() with the rule set's words and its citations resolved into ``references``."""
+    from interact.report.document import cite_data, speak_data
+
     data = demo.to_dict()
     assert data["schema"] == ASSESSMENT_SCHEMA
-    assert json.loads(format_assessment(demo, "json")) == json.loads(demo.to_json())
+    shown = json.loads(format_assessment(demo, "json"))
+    assert set(shown) == {*data, "references"}
+    assert shown == json.loads(json.dumps(cite_data(speak_data(json.loads(demo.to_json()), demo.rules.terms, user_text(demo)))))
+    assert shown["auc_ratio"] == data["auc_ratio"] and shown["concentrations_um"] == data["concentrations_um"]
     assert data["auc_ratio"]["total"] == demo.prediction.total
     assert data["dose"]["action"] == demo.dose.action
     assert data["cautions"] == list(demo.cautions)
@@ -154,7 +160,7 @@ def test_batch_columns_are_numbers_equal_to_the_text_rows() -> None:
         assert float(by["AUCR"]) == cols["auc_ratio"][k]
         assert float(by["Iin,max,u (uM)"]) == cols["iin_max_u_um"][k]
         assert by["action"] == cols["action"][k] and by["flags"] == cols["flags"][k]
-        assert (by["study indicated"] == "yes") == bool(cols["study_indicated"][k])
+        assert (by["study indicated (mechanistic model)"] == "yes") == bool(cols["study_indicated"][k])
     frame = res.to_pandas(top=3)
     assert len(frame) == 3 and frame["auc_ratio"].dtype == np.float64
     assert frame["auc_ratio"].map(lambda x: abs(math.log(x))).is_monotonic_decreasing  # worst first

@@ -53,7 +53,7 @@ def test_assess_text_has_course_and_timing(capsys: pytest.CaptureFixture[str], c
     assert main(["assess", str(EXAMPLE), "--width", "140"]) == 0
     out = capsys.readouterr().out
     for needle in (
-        "TIME COURSE (DYNAMIC CHECK)",
+        "Time course (dynamic check)",
         "AUC ratio, dynamic steady state",
         "Start:",
         "Stop:",
@@ -87,7 +87,7 @@ def test_assess_without_half_life_says_why(tmp_path: Path, capsys: pytest.Captur
     err = capsys.readouterr().err
     assert "perpetrator.half_life" in err and "Traceback" not in err
     assert main(["assess", str(path), "--time-course", "off"]) == 0
-    assert "TIME COURSE" not in capsys.readouterr().out
+    assert "Time course" not in capsys.readouterr().out
 
 
 def test_timecourse_command_json_plot_and_errors(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
@@ -99,9 +99,11 @@ def test_timecourse_command_json_plot_and_errors(tmp_path: Path, capsys: pytest.
     assert n > 100 and all(len(v) == n for k, v in data["curves"].items() if isinstance(v, list))
     assert data["stop_h"] == 480.0
     root = ET.parse(svg).getroot()
-    # drawn by interact.report.figures.timecourse_figure (matplotlib): one group per curve
-    lines = [g for g in root.iter("{http://www.w3.org/2000/svg}g") if g.get("id", "").startswith("line2d_")]
-    assert root.tag.endswith("svg") and len(lines) >= 4
+    assert root.tag.endswith("svg") and len(root.findall(".//{http://www.w3.org/2000/svg}polyline")) >= 4
+    png = tmp_path / "course.png"  # PNG and PDF are drawn by interact.report.figures.timecourse_figure (matplotlib)
+    assert main(["timecourse", str(EXAMPLE), "--days", "20", "--plot", str(png)]) == 0
+    capsys.readouterr()
+    assert png.read_bytes().startswith(b"\x89PNG")
     with pytest.raises(SystemExit) as exc:  # argparse rejects the value with a one-line usage error
         main(["timecourse", str(EXAMPLE), "--days", "0"])
     assert exc.value.code == 2
