@@ -79,8 +79,8 @@ class Assessment:
             Concentrations in uM, rates in 1/h, ratios dimensionless; the data of
             ``interact assess --format json`` (without a time course), whose writer,
             :func:`interact.report.assessment.assessment_to_dict`, builds on this dict:
-            it puts the text in the rule set's words and resolves citation markers
-            (``[@key]``) into a ``references`` list.
+            it puts the text in the rule set's words and resolves the citation markers
+            of the sources into a ``references`` list.
         """
         from .results import assessment_dict
 
