@@ -321,13 +321,13 @@ def _read_text(path: str, what: str) -> str:
     return read_text(path, what)
 
 
-def _write_streamed(args: argparse.Namespace, write) -> int:  # type: ignore[no-untyped-def]
-    """Call ``write(handle)``: to standard output, or through the one writer to ``args.output``."""
+def _write_streamed(args: argparse.Namespace, write, binary: bool = False) -> int:  # type: ignore[no-untyped-def]
+    """Call ``write(handle)``: to standard output, or through the one writer to ``args.output`` (bytes with ``binary``)."""
     from .files import open_output
 
     if not args.output:
         return int(write(sys.stdout))
-    with open_output(args.output, field="--output", inputs=_inputs(args), force=args.force) as out:
+    with open_output(args.output, field="--output", inputs=_inputs(args), force=args.force, binary=binary) as out:
         return int(write(out))
 
 
@@ -350,10 +350,12 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         sys.stderr.write(f"interact: skipped {problem}\n")
     n = len(perps.rows) * len(victims.rows)
     result = evaluate_pairs(perps, victims, rules, progress=_progress_bar("screening") if n >= 200_000 and not args.quiet else None)
-    fmt_name = args.format or {".json": "json", ".md": "markdown", ".markdown": "markdown"}.get(
+    fmt_name = args.format or {".json": "json", ".md": "markdown", ".markdown": "markdown", ".parquet": "parquet"}.get(
         Path(args.output or "").suffix.lower(), "csv"
     )
-    rows = _write_streamed(args, lambda h: write_results(result, h, fmt_name, top=args.top))
+    if fmt_name == "parquet" and not args.output and sys.stdout.isatty():
+        raise InputError("--format", "parquet", "is binary and would garble the terminal; write it to a file (-o results.parquet)")
+    rows = _write_streamed(args, lambda h: write_results(result, h, fmt_name, top=args.top), binary=fmt_name != "markdown")
     if args.output and not args.quiet:
         skipped = len(perps.skipped) + len(victims.skipped)
         sys.stderr.write(
@@ -522,8 +524,8 @@ def _parser() -> argparse.ArgumentParser:
     p = sub.add_parser("screen-batch", help="every perpetrator of one table against every victim of another, worst pairs first")
     p.add_argument("perpetrators", metavar="PERPETRATORS.csv", help="perpetrator table (CSV or TOML; columns in README)")
     p.add_argument("victims", metavar="VICTIMS.csv", help="victim table (CSV or TOML; columns in README)")
-    p.add_argument("-o", "--output", metavar="FILE", help="write results to FILE (.csv, .json or .md) instead of standard output")
-    p.add_argument("--format", choices=("csv", "json", "markdown"), help="output format (default: from the file name, else csv)")
+    p.add_argument("-o", "--output", metavar="FILE", help="write results to FILE (.csv, .json, .parquet or .md) instead of standard output")
+    p.add_argument("--format", choices=("csv", "json", "parquet", "markdown"), help="output format (default: from the file name, else csv)")
     p.add_argument("--rules", metavar="NAME|PATH", help="rule set (default ich-m12-2024)")
     p.add_argument(
         "--on-error",
