@@ -494,16 +494,9 @@ class DoseSuggestion:
 
     action: str  # one of ACTIONS
     monitoring: bool  # narrow therapeutic index and a ratio other than 1: only under monitoring
+    plan: RegimenPlan  # the regimens searched, the usual regimen and the boundaries
     auc_ratio: float
     gut_ratio: float
-    boundary: tuple[float, float]
-    boundary_origin: str
-    peak_boundary: tuple[float, float]
-    trough_boundary: tuple[float, float]
-    usual_dose: float
-    dose_unit: str
-    usual_interval_h: float
-    half_life_h: float | None
     exact_dose: float
     exact_interval_h: float
     chosen: RegimenOutcome | None
@@ -511,6 +504,38 @@ class DoseSuggestion:
     nearest: tuple[RegimenOutcome, ...]  # when none is feasible: the nearest dose and the nearest interval
     reasons: tuple[str, ...]
     cautions: tuple[str, ...]
+
+    @property
+    def boundary(self) -> tuple[float, float]:
+        return self.plan.boundary
+
+    @property
+    def boundary_origin(self) -> str:
+        return self.plan.boundary_origin
+
+    @property
+    def peak_boundary(self) -> tuple[float, float]:
+        return self.plan.peak_boundary
+
+    @property
+    def trough_boundary(self) -> tuple[float, float]:
+        return self.plan.trough_boundary
+
+    @property
+    def usual_dose(self) -> float:
+        return self.plan.usual_dose
+
+    @property
+    def dose_unit(self) -> str:
+        return self.plan.dose_unit
+
+    @property
+    def usual_interval_h(self) -> float:
+        return self.plan.usual_interval_h
+
+    @property
+    def half_life_h(self) -> float | None:
+        return self.plan.half_life_h
 
     @property
     def headline(self) -> str:
@@ -706,16 +731,9 @@ def suggest_dose(
     return DoseSuggestion(
         action=ACTIONS[code],
         monitoring=monitoring,
+        plan=plan,
         auc_ratio=auc_ratio,
         gut_ratio=gut_ratio,
-        boundary=plan.boundary,
-        boundary_origin=plan.boundary_origin,
-        peak_boundary=plan.peak_boundary,
-        trough_boundary=plan.trough_boundary,
-        usual_dose=plan.usual_dose,
-        dose_unit=unit,
-        usual_interval_h=plan.usual_interval_h,
-        half_life_h=plan.half_life_h,
         exact_dose=exact,
         exact_interval_h=exact_tau,
         chosen=chosen,

@@ -1079,7 +1079,7 @@ def merge_scenario_text(text: str, scenario: Scenario) -> str | None:
         doc = tomlkit.parse(text)
     except TOMLKitError:
         return None
-    _merge_table(doc, scenario_to_dict(scenario))
+    _edit_table(doc, scenario_to_dict(scenario), _same)
     merged = tomlkit.dumps(doc)
     try:
         if loads_scenario(merged) == scenario:
@@ -1087,6 +1087,73 @@ def merge_scenario_text(text: str, scenario: Scenario) -> str | None:
     except InputError:
         pass
     return None
+
+
+def edit_scenario_text(text: str | None, data: dict[str, Any], *, source: str = "scenario") -> str:
+    """``text`` (a scenario file) edited so that it holds exactly ``data`` (the file's plain data, edited).
+
+    A faithful edit: comments, key order and the spelling of every value that
+    did not change are kept, keys holding defaults stay; only changed values
+    are rewritten (keeping their line's comment), and entries that came or went
+    are added or removed (matched by content, so removing the second of three
+    targets removes that table with its comments).  With no text, or text that
+    is not TOML, a fresh file is written.
+
+    The result is read back before it is returned: it must parse to ``data``
+    and load as a scenario.
+
+    Raises
+    ------
+    ScenarioError
+        ``data`` is not a valid scenario (a file that would not load is never produced).
+    InputError
+        The edited text does not read back as ``data`` (a value TOML cannot hold).
+    """
+    import tomllib
+
+    import tomlkit
+    from tomlkit.exceptions import TOMLKitError
+
+    doc: Any = None
+    if text is not None:
+        try:
+            doc = tomlkit.parse(text)
+        except TOMLKitError:
+            doc = None
+    if doc is None:
+        doc = tomlkit.document()
+    _edit_table(doc, data, _equal)
+    out = tomlkit.dumps(doc)
+    try:
+        back = tomllib.loads(out)
+    except tomllib.TOMLDecodeError as exc:  # internal: tomlkit wrote text tomllib rejects
+        raise InputError("scenario", source, f"could not be written as TOML ({exc})") from None
+    if _pruned(back) != _pruned(data):
+        raise InputError("scenario", source, "could not be written so that it reads back the same; nothing was written")
+    scenario_from_dict(back, source=source, text=out)  # raises ScenarioError: never write a file that will not load
+    return out
+
+
+def _equal(old: Any, new: Any) -> bool:
+    """The same value as read from TOML (1 and 1.0 alike; true is not 1)."""
+    if isinstance(old, bool) or isinstance(new, bool):
+        return old is new
+    if isinstance(old, list) and isinstance(new, list):
+        return len(old) == len(new) and all(_equal(a, b) for a, b in zip(old, new, strict=True))
+    if isinstance(old, dict) and isinstance(new, dict):
+        return old.keys() == new.keys() and all(_equal(old[k], new[k]) for k in old)
+    if isinstance(old, int | float) and isinstance(new, int | float):
+        return old == new
+    return type(old) is type(new) and old == new
+
+
+def _pruned(data: Any) -> Any:
+    """``data`` without empty lists (a file cannot tell an empty list of tables from none)."""
+    if isinstance(data, dict):
+        return {k: _pruned(v) for k, v in data.items() if v != []}
+    if isinstance(data, list):
+        return [_pruned(v) for v in data]
+    return data
 
 
 def _same(old: Any, new: Any) -> bool:
@@ -1102,27 +1169,70 @@ def _same(old: Any, new: Any) -> bool:
     return False
 
 
-def _merge_table(node: Any, new: dict[str, Any]) -> None:
-    from tomlkit.items import AoT, Item
+def _edit_table(node: Any, new: dict[str, Any], same: Callable[[Any, Any], bool]) -> None:
+    """Edit a tomlkit table in place to hold ``new``: the one faithful TOML edit (see :func:`edit_scenario_text`)."""
+    from tomlkit.items import AoT, Array, Item
 
     for key in list(node.keys()):
         if key not in new:
             del node[key]
     for key, value in new.items():
         if key not in node:
-            node[key] = value
+            if value != []:
+                node[key] = value
             continue
         old = node[key]
         if isinstance(value, dict) and isinstance(old, dict):
-            _merge_table(old, value)
-        elif _is_table_list(value) and isinstance(old, AoT) and len(old) == len(value):
+            _edit_table(old, value, same)
+        elif isinstance(value, list) and all(isinstance(v, dict) for v in value) and isinstance(old, AoT):
+            _edit_tables(old, value, same)
+        elif (
+            isinstance(value, list)
+            and isinstance(old, Array)
+            and len(old) == len(value)
+            and all(isinstance(a, dict) and isinstance(b, dict) for a, b in zip(old, value, strict=True))
+        ):
             for old_item, new_item in zip(old, value, strict=True):
-                _merge_table(old_item, new_item)
-        elif not _same(old.unwrap() if isinstance(old, Item) else old, value):
-            comment = getattr(getattr(old, "trivia", None), "comment", "")
+                _edit_table(old_item, new_item, same)
+        elif not same(old.unwrap() if isinstance(old, Item) else old, value):
             node[key] = value
-            if comment and isinstance(node[key], Item) and not isinstance(node[key], AoT | dict):
-                node[key].comment(comment.lstrip("# "))
+            _keep_comment(old, node[key])
+
+
+def _keep_comment(old: Any, new: Any) -> None:
+    """Give a rewritten value its line's comment, at the same column where the new value's width allows."""
+    from tomlkit.items import AoT, Item
+
+    before = getattr(old, "trivia", None)
+    if before is None or not before.comment or not isinstance(new, Item) or isinstance(new, AoT | dict):
+        return
+    width = len(before.comment_ws) + len(old.as_string()) - len(new.as_string())
+    new.trivia.comment_ws = " " * max(width, 1) if before.comment_ws.strip(" ") == "" else before.comment_ws
+    new.trivia.comment = before.comment
+    new.trivia.trail = before.trail
+
+
+def _edit_tables(old: Any, new: list[dict[str, Any]], same: Callable[[Any, Any], bool]) -> None:
+    """Edit an array of tables in place: entries matched by content (difflib), kept ones edited in place."""
+    import difflib
+    import json
+
+    def sig(item: Any) -> str:
+        return json.dumps(item, sort_keys=True, default=str)
+
+    a = [sig(t.unwrap()) for t in old]
+    b = [sig(t) for t in new]
+    ops = difflib.SequenceMatcher(a=a, b=b, autojunk=False).get_opcodes()
+    for tag, i1, i2, j1, j2 in reversed(ops):  # from the end, so earlier indices stay valid
+        if tag == "equal":
+            continue
+        paired = min(i2 - i1, j2 - j1) if tag == "replace" else 0
+        for k in range(paired):
+            _edit_table(old[i1 + k], new[j1 + k], same)
+        for i in range(i2 - 1, i1 + paired - 1, -1):
+            del old[i]
+        for j in range(j1 + paired, j2):
+            old.insert(i1 + j - j1, new[j])
 
 
 def write_text_atomic(path: Path, text: str | bytes, *, field: str = "path", force: bool = False) -> None:

@@ -14,16 +14,17 @@ __all__ = ["run_app"]
 def run_app(path: str | Path | None = None) -> int:
     """Open the app on ``path`` (or on the built-in invented demo); returns the exit status.
 
-    A file that cannot be opened is reported on standard error with all its
-    problems (exit status 2) and the app does not start.
+    A scenario with problems opens with each problem under its field, so it can
+    be fixed in the form; a file that cannot be read or is not TOML is reported
+    on standard error (exit status 2) and the app does not start.
     """
     from ..errors import InteractError
-    from .app import InteractApp, read_scenario_file
+    from .app import InteractApp, read_scenario_data
 
     data = None
     if path is not None:
         try:
-            data, _ = read_scenario_file(path)
+            data = read_scenario_data(path)
         except InteractError as exc:
             sys.stderr.write(f"interact: {exc}\n")
             return 2

@@ -13,6 +13,7 @@ from __future__ import annotations
 import copy
 import sys
 import time
+from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, ClassVar
 
@@ -31,8 +32,8 @@ from ..report.numbers import fmt
 from .doc import Doc
 from .document_view import DocumentView
 from .fitting_view import STEPS, FitPane, ki_entry
-from .form import MISSING, get_path, key_of, set_path, value_of
-from .form_view import FieldState, FormView
+from .form import get_path, key_of, set_path, shows, value_of
+from .form_view import FieldState, FormView, entry_keys
 from .screens import AskPath, CautionsScreen, ConfirmDiscard, HelpScreen, LoadProblems
 
 if TYPE_CHECKING:  # the engine loads after the first screen is painted (see InteractApp.on_mount)
@@ -40,10 +41,23 @@ if TYPE_CHECKING:  # the engine loads after the first screen is painted (see Int
     from ..scenario import Scenario
     from . import plots
 
-__all__ = ["InteractApp", "read_scenario_data", "read_scenario_file"]
+__all__ = ["InteractApp", "read_scenario_data"]
 
 #: the built-in invented demo (the same file as interact.scenario.demo_path(), found without loading pint)
 DEMO_PATH = Path(__file__).resolve().parents[1] / "demo.toml"
+
+#: how many edits Ctrl+Z can take back
+UNDO_DEPTH = 500
+
+
+@dataclass(frozen=True, slots=True)
+class Snapshot:
+    """A state Ctrl+Z / Ctrl+Y returns to: the data, every field's exact text and the selected field."""
+
+    data: dict[str, Any]
+    texts: dict[str, str]
+    selected: str
+
 
 #: the engine modules; the app shows its first screen before they are imported
 _CORE = ("interact.assessment", "interact.tui.notes", "interact.tui.results", "interact.tui.plots")
@@ -65,32 +79,22 @@ def load_core() -> None:
     assess(load_scenario(DEMO_PATH))
 
 
+def _read_text(path: str | Path) -> str:
+    """The file's text through the shared reader (a byte-order mark is dropped there)."""
+    from ..files import read_text
+
+    return read_text(Path(path), "scenario")
+
+
+def _parse(text: str, path: str | Path) -> dict[str, Any]:
+    from ..files import loads_toml
+
+    return loads_toml(text, str(path))
+
+
 def read_scenario_data(path: str | Path) -> dict[str, Any]:
-    """The file's TOML data, not yet validated (the built-in demo at start-up)."""
-    from ..files import loads_toml, read_text
-
-    p = Path(path)
-    return loads_toml(read_text(p, "scenario"), str(p))
-
-
-def read_scenario_file(path: str | Path) -> tuple[dict[str, Any], Scenario]:
-    """The file's data (as written, for the form) and its validated scenario.
-
-    Raises
-    ------
-    InputError
-        The file cannot be read or parsed, or the scenario has problems
-        (:class:`~interact.errors.ScenarioError`, all of them listed).
-    """
-    from ..files import loads_toml, read_text
-    from ..scenario import scenario_from_dict
-
-    p = Path(path)
-    text = read_text(p, "scenario")  # a byte-order mark is dropped here
-    data = loads_toml(text, str(p))
-
-    scenario = scenario_from_dict(data, source=str(p), text=text)
-    return data, scenario
+    """The file's TOML data, not yet validated (the built-in demo at start-up; a file opened to fix it)."""
+    return _parse(_read_text(path), path)
 
 
 class PlotView(Widget):
@@ -141,13 +145,15 @@ class InteractApp(App[int]):
         Binding("f2", "cautions", "Cautions"),
         Binding("f3", "pin", "Pin"),
         Binding("f4", "next_view", "Views"),
-        Binding("f5", "group(1)", "Next group"),
+        Binding("f5", "group(1)", "Group"),
         Binding("shift+f5", "group(-1)", "Previous group", show=False),
         Binding("ctrl+s", "save", "Save"),
         Binding("f6", "save_as", "Save as"),
         Binding("ctrl+o", "open", "Open"),
         Binding("ctrl+n", "add_entry", "Add entry", show=False),
         Binding("ctrl+r", "remove_entry", "Remove entry", show=False),
+        Binding("ctrl+z", "undo", "Undo", show=False),
+        Binding("ctrl+y", "redo", "Redo", show=False),
         Binding("ctrl+q", "quit", "Quit", priority=True),
     ]
     #: what each key does, for the help screen (Textual's own keys included)
@@ -156,7 +162,7 @@ class InteractApp(App[int]):
         ("F2", "the full cautions"),
         ("F3", "pin the current result; later edits show as differences from it (F3 again unpins)"),
         ("F4", "switch the right side between the answer, the plots and the fitting view"),
-        ("F5", "next group of inputs (targets, metabolites, victim, ...)"),
+        ("F5", "next group of inputs (each target, metabolite and pathway, the victim, ...)"),
         ("Shift+F5", "previous group of inputs"),
         ("Up / Down", "in the form: previous / next field; PageUp / PageDown by a screen"),
         ("Enter", "in the form: next field, or do the selected 'add ...' / 'remove ...'"),
@@ -167,7 +173,9 @@ class InteractApp(App[int]):
         ("F6", "save as a new file"),
         ("Ctrl+O", "open another scenario file"),
         ("Ctrl+N", "add an entry to the list the cursor is in (target, metabolite, pathway)"),
-        ("Ctrl+R", "remove the entry the cursor is in"),
+        ("Ctrl+R", "remove the entry the cursor is in (Ctrl+Z brings it back)"),
+        ("Ctrl+Z", "undo the last edit (typing, paste, add, remove, use the fitted Ki)"),
+        ("Ctrl+Y", "redo the edit last undone"),
         ("Ctrl+Q", "quit (asks first if there are unsaved edits)"),
         ("Escape", "close a pop-up"),
     )
@@ -175,7 +183,7 @@ class InteractApp(App[int]):
     def __init__(self, path: str | Path | None = None, *, data: dict[str, Any] | None = None) -> None:
         super().__init__()
         if data is None:
-            data = read_scenario_file(path)[0] if path is not None else read_scenario_data(DEMO_PATH)
+            data = read_scenario_data(path if path is not None else DEMO_PATH)  # problems show in the form
         self.path: Path | None = None if path is None else Path(path)
         self.data: dict[str, Any] = data
         self.saved_data: dict[str, Any] = copy.deepcopy(data)
@@ -191,6 +199,14 @@ class InteractApp(App[int]):
         self.fit: Any = None  # the last ModelComparison
         self._fit_started = 0.0
         self._fit_step = ""
+        #: the text of the file the data came from (the demo's own text for the demo): saving edits this text
+        self.source_text: str = _read_text(self.path or DEMO_PATH)
+        #: earlier states for Ctrl+Z and later ones for Ctrl+Y: (data, every field's text, selected key)
+        self.undo_stack: list[Snapshot] = []
+        self.redo_stack: list[Snapshot] = []
+        self._texts: dict[str, str] = {}  # every field's text as of the last update (what an undo restores)
+        #: the field a run of keystrokes is typed into, with the form's selection count (one undo step per run)
+        self._typing: tuple[str, int] | None = None
 
     # ------------------------------------------------------------------ layout
     def compose(self) -> ComposeResult:
@@ -216,6 +232,8 @@ class InteractApp(App[int]):
         return self.query_one("#form", FormView)
 
     def on_mount(self) -> None:
+        self.form.edited = self._typed
+        self._texts = self.form.texts()
         self.form.focus()
         if core_loaded():
             self._mount_fit_pane()
@@ -251,10 +269,10 @@ class InteractApp(App[int]):
 
     @property
     def file_label(self) -> str:
-        return "built-in demo (invented), not saved to a file" if self.path is None else str(self.path)
+        return "built-in demo (invented, no file)" if self.path is None else str(self.path)
 
     def update_title(self) -> None:
-        sub = self.file_label + ("  * unsaved edits" if self.dirty else "")
+        sub = self.file_label + (" * unsaved" if self.dirty else "")
         if self.sub_title != sub:
             self.sub_title = sub
 
@@ -337,9 +355,6 @@ class InteractApp(App[int]):
         if str(detail.content) != text:
             detail.update(text, layout=False)
 
-    def on_form_view_selected(self) -> None:
-        self.show_detail()
-
     def problem_lines(self) -> list[str]:
         lines = [str(p) for p in self.problems] + self.general
         known = {p.field for p in self.problems}
@@ -379,19 +394,62 @@ class InteractApp(App[int]):
                 view.show(view.chart, stale=True, empty_text=view.empty_text)
 
     # ------------------------------------------------------------------ editing
-    def on_form_view_edited(self, event: FormView.Edited) -> None:
-        st = event.state
-        value = value_of(st.spec.kind, st.text)
+    def update(
+        self,
+        data: dict[str, Any],
+        *,
+        undo: str | None = None,
+        select_key: str | None = None,
+        texts: dict[str, str] | None = None,
+    ) -> None:
+        """The one way the scenario changes: typing, paste, add/remove, undo/redo, fitted Ki, open, pin.
+
+        ``data`` becomes the scenario's data; the form is brought to it (rebuilt
+        when entries came or went, otherwise each field that does not hold its
+        value is given that value's text), then the scenario is assessed and
+        every view redrawn.  ``undo`` names the edit when it is one the user
+        can undo (the state before it is kept); ``texts`` restores the fields'
+        exact text (undo and redo).
+        """
+        if undo is not None:
+            self.undo_stack.append(Snapshot(copy.deepcopy(self.data), dict(self._texts), self._selected_key()))
+            del self.undo_stack[:-UNDO_DEPTH]
+            self.redo_stack.clear()
+        if undo is not None:
+            self._typing = None
+        self.data = data
+        form = self.form
+        if texts is not None or select_key is not None or entry_keys(data) != form.entry_keys():
+            form.load(data, select_key=select_key, texts=texts)
+        else:
+            form.sync(data)
+        self._texts = form.texts()
+        self.recompute()
+
+    def _selected_key(self) -> str:
+        row = self.form.current
+        return row.key if row is not None else ""
+
+    def _typed(self, st: FieldState) -> None:
+        """A field's text changed (called by the form on each keystroke or paste)."""
+        if self.form.fields.get(st.key) is not st:
+            return  # a field of rows since rebuilt (cannot happen: the form calls this at once); keep the data
         current = get_path(self.data, st.path)
-        if type(value) is type(current) and value == current:
+        if shows(st.spec.kind, st.text, current):
+            # the text holds the value already ("0.70" for 0.7): keep the data as it is spelled in the file
+            self._texts[st.key] = st.text
             self.show_detail()
             return
-        if value is MISSING and current is MISSING:
-            return
-        set_path(self.data, st.path, value)
+        data = copy.deepcopy(self.data)
+        set_path(data, st.path, value_of(st.spec.kind, st.text))
+        run = (st.key, self.form.moves)
+        self.update(data, undo=None if self._typing == run else f"type {st.key}")
+        self._typing = run
         if st.path[-1] in ("target", "enzyme", "name") and len(st.path) > 2:
             self.form.set_item_title(st.path[:-1], self.data)
-        self.recompute()
+
+    def on_form_view_selected(self) -> None:
+        self.show_detail()
 
     def on_form_view_action_chosen(self, event: FormView.ActionChosen) -> None:
         if event.kind == "add":
@@ -400,21 +458,37 @@ class InteractApp(App[int]):
             self.remove_entry(event.path)
 
     def add_entry(self, list_path: tuple[str | int, ...]) -> None:
-        entries = get_path(self.data, list_path, None)
+        data = copy.deepcopy(self.data)
+        entries = get_path(data, list_path, None)
         if not isinstance(entries, list):
             entries = []
-            set_path(self.data, list_path, entries)
+            set_path(data, list_path, entries)
         entries.append({})
-        self.form.load(self.data, select_key=key_of((*list_path, len(entries) - 1)) + ".")
-        self.recompute()
+        self.update(data, undo=f"add to {key_of(list_path)}", select_key=key_of((*list_path, len(entries) - 1)) + ".")
 
     def remove_entry(self, item_path: tuple[str | int, ...]) -> None:
-        entries = get_path(self.data, item_path[:-1], None)
+        data = copy.deepcopy(self.data)
+        entries = get_path(data, item_path[:-1], None)
         index = int(item_path[-1])
-        if isinstance(entries, list) and 0 <= index < len(entries):
-            del entries[index]
-        self.form.load(self.data, select_key=key_of(item_path[:-1]))
-        self.recompute()
+        if not (isinstance(entries, list) and 0 <= index < len(entries)):
+            return
+        del entries[index]
+        self.update(data, undo=f"remove {key_of(item_path)}", select_key=key_of(item_path[:-1]))
+        self.notify(f"Removed {key_of(item_path)} (Ctrl+Z brings it back).")
+
+    def action_undo(self) -> None:
+        self._step_history(self.undo_stack, self.redo_stack, "undo")
+
+    def action_redo(self) -> None:
+        self._step_history(self.redo_stack, self.undo_stack, "redo")
+
+    def _step_history(self, source: list[Snapshot], other: list[Snapshot], word: str) -> None:
+        if not source:
+            self.notify(f"Nothing to {word}.", severity="warning")
+            return
+        snap = source.pop()
+        other.append(Snapshot(copy.deepcopy(self.data), dict(self._texts), self._selected_key()))
+        self.update(copy.deepcopy(snap.data), texts=snap.texts, select_key=snap.selected or None)
 
     def _list_path(self, items_only: bool) -> tuple[str | int, ...] | None:
         """The list (or, with ``items_only``, the entry) the form's selection is in."""
@@ -460,7 +534,7 @@ class InteractApp(App[int]):
         tabs.active = order[(order.index(tabs.active) + 1) % len(order)] if tabs.active in order else order[0]
         if tabs.active == "fitting":
             self.query_one("#fit-path", Input).focus()
-        elif isinstance(self.focused, Input):
+        else:  # a control of a hidden view must not keep the focus (nothing would show it): back to the form
             self.form.focus()
 
     def action_pin(self) -> None:
@@ -473,7 +547,7 @@ class InteractApp(App[int]):
         else:
             self.pinned = (self.assessment, copy.deepcopy(self.valid_data))
             self.notify("Pinned: later edits show as differences from this result (F3 unpins).")
-        self._show_results()
+        self.update(self.data)
 
     # ------------------------------------------------------------------ fitting
     def on_mount_fit_defaults(self, tries: int = 0) -> None:
@@ -568,18 +642,18 @@ class InteractApp(App[int]):
         except ValueError as exc:
             self._fit_status(f"error: {exc}")
             return
-        entries = get_path(self.data, ("perpetrator", "inhibits"), None)
+        data = copy.deepcopy(self.data)
+        entries = get_path(data, ("perpetrator", "inhibits"), None)
         if not isinstance(entries, list):
             entries = []
-            set_path(self.data, ("perpetrator", "inhibits"), entries)
+            set_path(data, ("perpetrator", "inhibits"), entries)
         if fitted.index is None:
             entries.append(fitted.entry)
             index = len(entries) - 1
         else:
             entries[fitted.index] = fitted.entry
             index = fitted.index
-        self.form.load(self.data, select_key=f"perpetrator.inhibits[{index}].ki")
-        self.recompute()
+        self.update(data, undo="use the fitted Ki", select_key=f"perpetrator.inhibits[{index}].ki")
         text = f"{fitted.entry['ki']} ({fitted.entry['mechanism']}) written into target {fitted.target}; Ctrl+S saves it."
         if fitted.caution:
             text += f" Caution: {fitted.caution}"
@@ -594,17 +668,25 @@ class InteractApp(App[int]):
         return f"the inputs have {n} problem{'s' if n != 1 else ''}; fix them first (your text stays in the fields)"
 
     def save_to(self, path: Path) -> bool:
+        """Write the scenario as an edit of the text it was read from (comments, order and spelling kept).
+
+        Only the values the user changed are rewritten; the edited text is read
+        back before it is written and must give the same data and load as a
+        scenario, so a file that would not open again is never written.
+        """
         if not self.valid or self.scenario is None:
             self.notify(f"Not saved: {self._why_not_savable()}.", severity="error", timeout=8)
             return False
-        try:
-            from ..scenario import save_scenario
+        from ..scenario import edit_scenario_text, write_text_atomic
 
-            save_scenario(self.scenario, path)
+        try:
+            text = edit_scenario_text(self.source_text, self.data, source=str(path))
+            write_text_atomic(path, text)
         except InteractError as exc:
             self.notify(f"Not saved: {exc}", severity="error", timeout=8)
             return False
         self.path = path
+        self.source_text = text
         self.saved_data = copy.deepcopy(self.data)
         self.update_title()
         self.notify(f"Saved to {path}")
@@ -659,21 +741,37 @@ class InteractApp(App[int]):
         self.push_screen(AskPath("Open a scenario file", str(self.path.parent) + "/" if self.path else ""), chosen)
 
     async def open_file(self, path: Path) -> bool:
-        """Load ``path``; on any problem show it and change nothing."""
+        """Load ``path`` into the form; a file that cannot be read or is not TOML changes nothing.
+
+        A scenario with problems opens too, with each problem under its field,
+        so it can be fixed here (it cannot be saved until it loads).
+        """
         try:
-            data, _ = read_scenario_file(path)
+            text = _read_text(path)
+            data = _parse(text, path)
         except InteractError as exc:
             self.push_screen(LoadProblems(str(path), str(exc)))
             return False
         self.path = path
-        self.data = data
+        self.source_text = text
         self.saved_data = copy.deepcopy(data)
         self.assessment = None
+        self.scenario = None
         self.valid = False
         self.pinned = None
-        self.form.load(data)
-        self.recompute()
-        self.notify(f"Opened {path}")
+        self.undo_stack.clear()
+        self.redo_stack.clear()
+        self.form.selected = 0
+        self.update(data, select_key="")
+        if self.valid or not self.core_ready:
+            self.notify(f"Opened {path}")
+        else:
+            n = len(self.problem_lines())
+            self.notify(
+                f"Opened {path} with {n} problem{'s' if n != 1 else ''}: each is shown under its field.",
+                severity="warning",
+                timeout=8,
+            )
         self.form.focus()
         return True
 

@@ -31,6 +31,7 @@ __all__ = [
     "key_of",
     "local_check",
     "set_path",
+    "shows",
     "text_of",
     "value_of",
 ]
@@ -307,6 +308,16 @@ def value_of(kind: str, text: str) -> Any:
                 return t
         return t
     return text if kind == "text" else t
+
+
+def shows(kind: str, text: str, value: Any) -> bool:
+    """Whether a field of this kind holding ``text`` holds ``value`` (the data the engine evaluates).
+
+    Both sides are brought to the text the field would show for them, so "0.70"
+    holds 0.7, "300" holds a file's ``300`` and "y" holds ``true``; this is the
+    form's one test of "the field shows what was computed".
+    """
+    return text_of(kind, value_of(kind, text)) == text_of(kind, value)
 
 
 def local_check(kind: str, text: str, key: str) -> tuple[str | None, Any]:

@@ -16,6 +16,7 @@ Ctrl+K); Right at the end of a value accepts the greyed suggestion; Enter on
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import Any, ClassVar
 
@@ -27,9 +28,9 @@ from textual.message import Message
 from textual.scroll_view import ScrollView
 from textual.strip import Strip
 
-from .form import SCHEMA, FieldSpec, Heading, ListSpec, Path, choices_for, get_path, key_of, text_of
+from .form import SCHEMA, FieldSpec, Heading, ListSpec, Path, choices_for, get_path, key_of, shows, text_of
 
-__all__ = ["FieldState", "FormView", "Row"]
+__all__ = ["FieldState", "FormView", "Row", "entry_keys"]
 
 
 @dataclass(slots=True)
@@ -106,7 +107,7 @@ def build_rows(data: dict[str, Any]) -> list[Row]:
                 rows.append(
                     Row(
                         kind="field",
-                        state=FieldState(spec, path, key_of(path), text),
+                        state=FieldState(spec, path, key_of(path), text, cursor=len(text)),
                         path=path,
                         key=key_of(path),
                         depth=depth,
@@ -140,6 +141,24 @@ def build_rows(data: dict[str, Any]) -> list[Row]:
         rows.append(Row(kind="group", text=title, path=(key,) if key else ()))
         items(specs, (key,) if key else (), 0)
     return rows
+
+
+def entry_keys(data: dict[str, Any]) -> tuple[str, ...]:
+    """The key paths of the list entries in ``data`` (the rows of the form change exactly when these do)."""
+    keys: list[str] = []
+
+    def walk(specs: tuple[Any, ...], base: Path) -> None:
+        for spec in specs:
+            if isinstance(spec, ListSpec):
+                lpath = (*base, spec.key)
+                entries = get_path(data, lpath, [])
+                for i in range(len(entries) if isinstance(entries, list) else 0):
+                    keys.append(key_of((*lpath, i)))
+                    walk(spec.items, (*lpath, i))
+
+    for _title, key, specs in SCHEMA:
+        walk(specs, (key,) if key else ())
+    return tuple(keys)
 
 
 class FormView(ScrollView, can_focus=True):
@@ -192,7 +211,7 @@ class FormView(ScrollView, can_focus=True):
     LABEL_WIDTH: ClassVar[int] = 19
 
     class Edited(Message):
-        """A field's text changed."""
+        """A field's text changed (posted only when no :attr:`FormView.edited` handler is set)."""
 
         def __init__(self, state: FieldState) -> None:
             super().__init__()
@@ -213,15 +232,30 @@ class FormView(ScrollView, can_focus=True):
         super().__init__(id=id)
         self.rows: list[Row] = []
         self.fields: dict[str, FieldState] = {}
-        self.selected = 0
+        #: how many times the selection was set (the app starts a new undo step when typing follows a move)
+        self.moves = 0
+        self._selected = 0
         self._styles: dict[str, Style] = {}
+        #: called with the field on every change of its text, before the next key is handled (the app's update).
+        #: A posted message would arrive after keys already queued (Ctrl+R, Ctrl+Z), so a change could be
+        #: applied to an entry that had meanwhile been removed, or after an undo it should precede.
+        self.edited: Callable[[FieldState], None] | None = None
         self.load(data)
 
     # ---------------------------------------------------------------- model
-    def load(self, data: dict[str, Any], select_key: str | None = None) -> None:
-        """Rebuild the rows from the data (after opening a file or adding/removing an entry)."""
+    def load(self, data: dict[str, Any], select_key: str | None = None, texts: dict[str, str] | None = None) -> None:
+        """Rebuild the rows from the data (after opening a file or adding/removing an entry).
+
+        ``texts`` gives fields their exact earlier text (undo), where it still holds the field's value.
+        """
         self.rows = build_rows(data)
         self.fields = {r.key: r.state for r in self.rows if r.state is not None}
+        if texts:
+            for key, st in self.fields.items():
+                old = texts.get(key)
+                if old is not None and old != st.text and shows(st.spec.kind, old, get_path(data, st.path)):
+                    st.text = old
+                    st.cursor = len(old)
         line = 0
         for r in self.rows:
             r.line = line
@@ -236,6 +270,33 @@ class FormView(ScrollView, can_focus=True):
         self.selected = target
         self._show_selected()
         self.refresh()
+
+    def sync(self, data: dict[str, Any]) -> None:
+        """Give every field that does not hold its value in ``data`` the text of that value."""
+        for st in self.fields.values():
+            value = get_path(data, st.path)
+            if not shows(st.spec.kind, st.text, value):
+                st.text = text_of(st.spec.kind, value)
+                st.cursor = len(st.text)
+                self.refresh_field(st)
+
+    def entry_keys(self) -> tuple[str, ...]:
+        """The key paths of the list entries the rows show (see :func:`entry_keys`)."""
+        return tuple(r.key for r in self.rows if r.kind == "item")
+
+    def texts(self) -> dict[str, str]:
+        """Every field's text, by key path."""
+        return {key: st.text for key, st in self.fields.items()}
+
+    @property
+    def selected(self) -> int:
+        """The index of the selected row."""
+        return self._selected
+
+    @selected.setter
+    def selected(self, index: int) -> None:
+        self._selected = index
+        self.moves += 1
 
     @property
     def current(self) -> Row | None:
@@ -285,9 +346,9 @@ class FormView(ScrollView, can_focus=True):
         row = next((r for r in self.rows if r.state is state), None)
         if row is None:
             return
-        y = row.line - self.scroll_offset.y
-        if -2 < y < self.size.height:
-            self.refresh_lines(max(y, 0), 2)
+        # ScrollView.refresh_lines takes lines of the whole form (it subtracts the scroll offset itself):
+        # passing screen lines repainted the wrong lines once the form was scrolled, so the field kept its old text
+        self.refresh_lines(row.line, row.height)
 
     # ---------------------------------------------------------------- drawing
     def _style(self, name: str) -> Style:
@@ -319,7 +380,9 @@ class FormView(ScrollView, can_focus=True):
             st = row.state
             if offset == 0:
                 label = f" {indent}{st.spec.label}"
-                label = label[: self.LABEL_WIDTH - 1].ljust(self.LABEL_WIDTH)
+                if len(label) > self.LABEL_WIDTH - 1:  # marked as cut; the strip under the form gives it in full
+                    label = label[: self.LABEL_WIDTH - 2] + "…"
+                label = label.ljust(self.LABEL_WIDTH)
                 err = self._style("error") if st.error else Style()
                 segments.append(Segment(label, base + err + sel))
                 value_style = base + self._style("value") + sel
@@ -434,7 +497,7 @@ class FormView(ScrollView, can_focus=True):
         self._moved()
 
     def action_group(self, step: int) -> None:
-        starts = [i for i, r in enumerate(self.rows) if r.kind in ("group", "list")]
+        starts = [i for i, r in enumerate(self.rows) if r.kind in ("group", "list", "item")]  # every entry too
         ahead = [i for i in starts if (i > self.selected if step > 0 else i < self.selected - 1)]
         if not ahead:
             return
@@ -452,7 +515,10 @@ class FormView(ScrollView, can_focus=True):
         st.text = text
         st.cursor = max(0, min(cursor, len(text)))
         self.refresh_field(st)
-        self.post_message(self.Edited(st))
+        if self.edited is not None:
+            self.edited(st)
+        else:
+            self.post_message(self.Edited(st))
 
     def action_cursor(self, step: int) -> None:
         st = self.current_field
@@ -504,6 +570,19 @@ class FormView(ScrollView, can_focus=True):
             self.post_message(self.ActionChosen(row.kind, row.path))
         else:
             self.action_move(1)
+
+    def on_paste(self, event: events.Paste) -> None:
+        """Pasted text goes into the selected value at the cursor, as one edit (its first line only)."""
+        st = self.current_field
+        if st is None:
+            return
+        event.stop()
+        lines = event.text.splitlines()
+        text = "".join(c for c in (lines[0] if lines else "") if c.isprintable())
+        room = max(200 - len(st.text), 0)
+        text = text[:room]
+        if text:
+            self._edit(st.text[: st.cursor] + text + st.text[st.cursor :], st.cursor + len(text))
 
     def on_key(self, event: events.Key) -> None:
         known = self.KEYS.get(event.key)

@@ -111,7 +111,7 @@ def dose_curve(a: Assessment, points: int = 121) -> Chart | None:
     dose = float(s.perpetrator.dose.magnitude)
     unit = lim.dose_unit
     low, high = 0.01, 10.0
-    if lim.scale is not None:
+    if lim.scale is not None and math.isfinite(lim.scale) and lim.scale > 0:  # a scale of 0 crashed the app (stateful test)
         low = min(low, lim.scale / 3.0)
         high = max(high, lim.scale * 3.0)
     scales = np.geomspace(low, high, points)
@@ -182,6 +182,10 @@ def draw(chart: Chart, width: int, height: int) -> list[str]:
             y_lo, y_hi = min(y_lo, y), max(y_hi, y)
     if chart.point is not None:
         y_hi = max(y_hi, chart.point[1])
+    # the other series (the complete-inhibition ceiling) are kept inside the axes up to 3x the main curve's top;
+    # beyond that they are cut at the frame (the legend says so), not drawn off the scale
+    extra_top = max((y for s in chart.extra for y in s.y if math.isfinite(y)), default=y_hi)
+    y_hi = max(y_hi, min(extra_top, 3.0 * y_hi))
     if y_hi - y_lo < 1e-9:
         y_hi = y_lo + 1.0
     pad = (y_hi - y_lo) * 0.05
@@ -213,10 +217,10 @@ def draw(chart: Chart, width: int, height: int) -> list[str]:
     def line(series: Series, every: int = 1) -> None:
         prev = None
         for n, (x, y) in enumerate(zip(series.x, series.y, strict=True)):
-            if not math.isfinite(y) or y > y_hi * 4:
-                prev = None
+            if not math.isfinite(y) or y > y_hi * 1.001:
+                prev = None  # beyond the top: not drawn (it would sit on the frame as if it were a value)
                 continue
-            p = to_px(x, min(y, y_hi + pad * 10))
+            p = to_px(x, y)
             if prev is not None:
                 steps = max(abs(p[0] - prev[0]), abs(p[1] - prev[1]), 1)
                 for k in range(steps + 1):
@@ -264,6 +268,11 @@ def draw(chart: Chart, width: int, height: int) -> list[str]:
         start = min(max(c - len(text) // 2, 0), plot_w - len(text))
         if all(ch == " " for ch in axis[max(start - 1, 0) : start + len(text) + 1]):
             axis[start : start + len(text)] = list(text)
+    end = fmt(x_hi)  # the axis is labelled to the end of the data
+    if end not in "".join(axis).split():
+        start = plot_w - len(end)
+        if start > 0 and all(ch == " " for ch in axis[start - 1 :]):
+            axis[start:] = list(end)
     lines.append(" " * label_w + "└" + "".join(axis))
     lines.append(" " * label_w + " " + chart.x_label.center(plot_w))
     return lines

@@ -225,7 +225,7 @@ async def test_save_then_reopen_gives_the_same_scenario(tmp_path: Path) -> None:
     async with app2.run_test(size=SIZE) as pilot:
         await pilot.pause()
         assert app2.scenario == edited
-        assert app2.field("perpetrator.inhibits[0].ki").text == "2.9 µM"
+        assert app2.field("perpetrator.inhibits[0].ki").text == "2.9 uM"  # as the user typed it, not respelled
 
 
 @asynctest
@@ -274,7 +274,7 @@ async def test_unsaved_changes_guard_on_quit() -> None:
 @asynctest
 async def test_unsaved_changes_guard_on_open_and_bad_file_changes_nothing(tmp_path: Path) -> None:
     bad = tmp_path / "bad.toml"
-    bad.write_text(demo_path().read_text(encoding="utf-8").replace('ki = "4.2 uM"', 'ki = "4.2 parsecs"'), encoding="utf-8")
+    bad.write_text('[perpetrator]\nname = "unterminated\n', encoding="utf-8")
     app = InteractApp()
     async with app.run_test(size=SIZE) as pilot:
         await pilot.pause()
@@ -286,7 +286,7 @@ async def test_unsaved_changes_guard_on_open_and_bad_file_changes_nothing(tmp_pa
         await pilot.press("escape")
         await pilot.pause()
         assert app.data == before
-        # save is impossible to forget: discard explicitly, then try to open a broken file
+        # save is impossible to forget: discard explicitly, then try to open a file that is not TOML
         await pilot.press("ctrl+o")
         await pilot.pause()
         await pilot.press("d")
@@ -296,10 +296,38 @@ async def test_unsaved_changes_guard_on_open_and_bad_file_changes_nothing(tmp_pa
         await pilot.pause()
         assert isinstance(app.screen, LoadProblems)
         shown = text_of(app, "#problems")
-        assert "perpetrator.inhibits[0].ki" in shown and "parsecs" in shown
+        assert "could not be parsed" in shown
         await pilot.press("escape")
         assert app.path is None and app.data == before  # nothing changed
         assert app.field("victim.fg").text == "0.3"
+
+
+@asynctest
+async def test_a_file_with_problems_opens_into_the_form_to_be_fixed(tmp_path: Path) -> None:
+    broken = tmp_path / "broken.toml"
+    text = demo_path().read_text(encoding="utf-8").replace('ki = "4.2 uM"', 'ki = "4.2 parsecs"')
+    broken.write_text(text, encoding="utf-8")
+    app = InteractApp()
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        assert await app.open_file(broken)
+        await pilot.pause()
+        assert app.path == broken and not app.valid
+        field = app.field("perpetrator.inhibits[0].ki")
+        assert field.text == "4.2 parsecs" and field.error and "parsecs" in field.note
+        assert "No valid result yet" in text_of(app, "#answer-body")
+        await pilot.press("ctrl+s")  # refused: a file that would not load is never written
+        await pilot.pause()
+        assert broken.read_text(encoding="utf-8") == text
+        await replace_text(pilot, app, "perpetrator.inhibits[0].ki", "4.2 uM")
+        assert app.valid and not field.error
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+    saved = broken.read_text(encoding="utf-8").splitlines()
+    lines = text.splitlines()
+    changed = [(a, b) for a, b in zip(lines, saved, strict=True) if a != b]  # only the fixed value changed
+    assert len(changed) == 1 and changed[0][0].startswith('ki = "4.2 parsecs"')
+    assert changed[0][1].startswith('ki = "4.2 uM" ') and changed[0][1].endswith("# from an invented microsomal incubation")
 
 
 @asynctest
@@ -367,16 +395,30 @@ def test_first_screen_does_not_wait_for_the_engine() -> None:
     assert out == "", f"imported before the first screen: {out}"
 
 
-def test_run_app_refuses_a_broken_file_with_every_problem(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+def test_run_app_refuses_a_file_that_is_not_toml(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
     from interact.tui import run_app
 
     bad = tmp_path / "broken.toml"
-    text = demo_path().read_text(encoding="utf-8").replace("fu_plasma = 0.04", "fu_plasma = 4").replace("fm = 0.82", 'fm = "high"')
-    bad.write_text(text, encoding="utf-8")
+    bad.write_text('[perpetrator]\nname = "unterminated\n', encoding="utf-8")
     assert run_app(bad) == 2
     err = capsys.readouterr().err
-    assert "perpetrator.fu_plasma" in err and "victim.pathways[0].fm" in err
+    assert str(bad) in err and "could not be parsed" in err
     assert "Traceback" not in err
+
+
+@asynctest
+async def test_a_scenario_with_problems_starts_in_the_form_with_every_problem(tmp_path: Path) -> None:
+    bad = tmp_path / "broken.toml"
+    text = demo_path().read_text(encoding="utf-8").replace("fu_plasma = 0.04", "fu_plasma = 4").replace("fm = 0.82", 'fm = "high"')
+    bad.write_text(text, encoding="utf-8")
+    app = InteractApp(bad)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        assert not app.valid and app.path == bad
+        assert app.field("perpetrator.fu_plasma").error and app.field("victim.pathways[0].fm").error
+        assert app.field("victim.pathways[0].fm").text == "high"  # as written, to be fixed here
+        shown = text_of(app, "#answer-body")
+        assert "perpetrator.fu_plasma" in shown and "victim.pathways[0].fm" in shown
 
 
 @asynctest

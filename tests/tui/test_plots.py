@@ -10,6 +10,7 @@ import dataclasses
 import pytest
 
 from interact import assess, load_scenario
+from interact.report.numbers import fmt
 from interact.scenario import demo_path
 from interact.tui import plots
 
@@ -55,3 +56,16 @@ def test_drawing_names_every_mark_in_words() -> None:
     assert any("◆" in line for line in lines) and any("╌" in line for line in lines)
     legend = plots.legend(chart)
     assert "◆ now" in legend and "no-effect boundary" in legend and "highest dose within the boundary" in legend
+
+
+def test_fm_plot_keeps_the_ceiling_on_scale_and_labels_the_axis_to_the_end() -> None:
+    a = assess(load_scenario(demo_path()))
+    chart = plots.fm_curve(a)
+    assert chart is not None and chart.extra
+    lines = plots.draw(chart, 70, 18)
+    assert all(len(line) <= 70 for line in lines)
+    ticks = [float(line.split("┤")[0]) for line in lines if "┤" in line]
+    top_curve, top_ceiling = max(chart.curve.y), max(chart.extra[0].y)
+    # the y axis reaches up to the ceiling, or to 3x the curve's top when the ceiling runs higher
+    assert max(ticks) >= 0.8 * min(top_ceiling, 3.0 * top_curve) > top_curve
+    assert lines[-2].split()[-1] == fmt(max(chart.curve.x))  # the x axis is labelled to the data's end
