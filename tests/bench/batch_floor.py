@@ -7,7 +7,8 @@ validation), evaluates the same equations as interact (unbound Cmax, hepatic inl
 concentrations; Ki,u = Ki x fu,inc; the basic R1 values; the mechanistic static model's gut, liver and total AUC
 ratios), a class band, the study verdict, a plain dose action (reduce / increase / no change by the no-effect
 boundary) and the same flag bits, ranks every pair worst first (largest |log AUCR|) and writes the same 17
-columns with the same writer (pyarrow's CSV writer, in blocks of 65,536 rows) to an ordinary file (no atomic
+columns with the same writer (pyarrow's CSV writer, or its Parquet writer for an OUT ending in .parquet, in blocks of 65,536
+rows) to an ordinary file (no atomic
 replace, no fsync).  It does not import interact: the constants (physiology defaults, fu,p floor, cutoffs, class
 bounds) come from the bench as JSON, so both sides use the same values.
 """
@@ -20,6 +21,7 @@ import sys
 import numpy as np
 import pyarrow as pa
 import pyarrow.csv as pa_csv
+import pyarrow.parquet as pq
 
 ENZYMES = ("CYP3A", "CYP2C9", "CYP2D6")
 
@@ -83,8 +85,11 @@ def main(p_path: str, v_path: str, out_path: str, constants: str) -> None:
     yes_no = pa.array(["no", "yes"])
     no_phenotype = pa.array([""])
     n_v = len(v_names)
+    parquet = out_path.endswith(".parquet")
+    writer = None
     with open(out_path, "wb") as out:
-        out.write((",".join(f'"{n}"' if "," in n else n for n in names) + "\n").encode())
+        if not parquet:
+            out.write((",".join(f'"{n}"' if "," in n else n for n in names) + "\n").encode())
         for start in range(0, order.size, 65_536):
             idx = order[start : start + 65_536]
             ii, jj = np.divmod(idx, n_v)
@@ -103,11 +108,18 @@ def main(p_path: str, v_path: str, out_path: str, constants: str) -> None:
                 no_phenotype.take(np.zeros(idx.size, dtype=np.int8)),
                 pa.array(total.ravel()[idx]),
                 band_text.take(band[idx]),
-                yes_no.take(study.ravel()[idx].astype(np.int8)),
+                pa.array(study.ravel()[idx]) if parquet else yes_no.take(study.ravel()[idx].astype(np.int8)),
                 action_text.take(action.ravel()[idx]),
                 flag_text.take(flags.ravel()[idx]),
             ]
-            pa_csv.write_csv(pa.RecordBatch.from_arrays(cols, names=names), out, pa_csv.WriteOptions(include_header=False))
+            batch = pa.RecordBatch.from_arrays(cols, names=names)
+            if parquet:
+                writer = writer or pq.ParquetWriter(out, batch.schema)
+                writer.write_batch(batch)
+            else:
+                pa_csv.write_csv(batch, out, pa_csv.WriteOptions(include_header=False))
+        if writer is not None:
+            writer.close()
 
 
 if __name__ == "__main__":

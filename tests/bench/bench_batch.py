@@ -1,6 +1,6 @@
 """Benchmark (run by hand, not a test): batch screening, end to end and model alone.
 
-    python tests/bench/bench_batch.py [--pairs 1e4,1e6,1e7] [--runs 5] [--format csv|parquet|json]
+    python tests/bench/bench_batch.py [--pairs 1e4,1e6,1e7] [--runs 5] [--format csv|parquet]
     python tests/bench/bench_batch.py --model [--perpetrators 1000 --victims 1000]
 
 End to end (the default): the whole command a user runs, ``interact screen-batch P.csv V.csv -o OUT -q`` in a
@@ -195,7 +195,8 @@ def end_to_end(sizes: list[int], runs: int, fmt: str) -> None:
                 f.write(ptext)
             with open(vf, "w", encoding="utf-8") as f:
                 f.write(vtext)
-            out_cmd, out_floor = os.path.join(folder, f"out.{fmt}"), os.path.join(folder, "floor.csv")
+            out_cmd = os.path.join(folder, f"out.{fmt}")
+            out_floor = os.path.join(folder, "floor.parquet" if fmt == "parquet" else "floor.csv")
             cmd = [*interact_cmd, "screen-batch", pf, vf, "-o", out_cmd, "-q"]
             floor_cmd = [sys.executable, floor_script, pf, vf, out_floor, constants]
             t_cmd, t_floor, m_cmd, m_floor = [], [], 0.0, 0.0
@@ -206,13 +207,12 @@ def end_to_end(sizes: list[int], runs: int, fmt: str) -> None:
                 t, m = _run(floor_cmd)
                 t_floor.append(t)
                 m_floor = max(m_floor, m)
-            a_floor = pa_csv.read_csv(out_floor).column("AUCR").to_numpy()
             if fmt == "parquet":
+                a_floor = pq.read_table(out_floor, columns=["AUCR"]).column("AUCR").to_numpy()
                 a_cmd = pq.read_table(out_cmd, columns=["AUCR"]).column("AUCR").to_numpy()
-            elif fmt == "csv":
-                a_cmd = pa_csv.read_csv(out_cmd).column("AUCR").to_numpy()
             else:
-                a_cmd = a_floor
+                a_floor = pa_csv.read_csv(out_floor).column("AUCR").to_numpy()
+                a_cmd = pa_csv.read_csv(out_cmd).column("AUCR").to_numpy() if fmt == "csv" else a_floor
             diff = float(np.max(np.abs(a_cmd - a_floor) / a_floor))
             mc, mf = statistics.median(t_cmd), statistics.median(t_floor)
             print(
@@ -225,7 +225,7 @@ def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--model", action="store_true", help="the model-level figures instead of end to end")
     ap.add_argument("--pairs", default="1e4,1e6", help="end to end: comma-separated pair counts")
-    ap.add_argument("--format", default="csv", choices=("csv", "parquet", "json"), help="end to end: output format of the command")
+    ap.add_argument("--format", default="csv", choices=("csv", "parquet"), help="end to end: output format of the command")
     ap.add_argument("--perpetrators", type=int, default=1000)
     ap.add_argument("--victims", type=int, default=1000)
     ap.add_argument("--runs", type=int, default=5)
