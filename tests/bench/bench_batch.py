@@ -85,7 +85,7 @@ def tables(n_p: int, n_v: int, seed: int = 1) -> tuple[str, str]:
     vhead = ["name", "dose (mg)", "interval (h)", "fg", "strengths (mg)", *(f"fm {e}" for e in ENZYMES)]
     vlines = [",".join(vhead)]
     for j in range(n_v):
-        fm = rng.dirichlet(np.ones(len(ENZYMES) + 1))[: len(ENZYMES)]
+        fm = np.floor(rng.dirichlet(np.ones(len(ENZYMES) + 1))[: len(ENZYMES)] * 1000) / 1000  # 3 decimals, sum at most 1
         vlines.append(",".join([f"Invented-V{j}", "10", "24", f"{rng.uniform(0.2, 1):.3g}", "2.5;5;10", *(f"{x:.3f}" for x in fm)]))
     return ptext, "\n".join(vlines) + "\n"
 
