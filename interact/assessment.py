@@ -19,7 +19,7 @@ from .genotype import PhenotypeCase, phenotype_cases
 from .prediction import Prediction, predict, ratio_function
 from .scenario import Scenario
 from .screening import ScreenResult, screen
-from .tables import RuleSet, Sourced, load_classes, load_rules, resolve_target, table_versions
+from .tables import UNVERIFIED, RuleSet, Sourced, load_classes, load_rules, resolve_target, table_versions
 
 __all__ = ["Assessment", "Provenance", "assess"]
 
@@ -261,31 +261,43 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None) -> Assessment
             )
 
     all_settings = (*settings.values(), *fu_settings)
+
+    def tag(status: str) -> str:
+        return " [inferred from an older guidance]" if status == "inferred" else ""
+
     memory = tuple(
         sorted(
-            {f"{s.label}: {s.source}" for s in (*all_settings, *kdeg_used) if s.from_memory and s.origin in ("default", "rule set")}
-            | {f"{r.label} cutoff for {r.target} ({rule_set.id}): {r.cutoff.source}" for r in screen_results if r.cutoff.from_memory}
-            | {
-                f"Phenotype activity {enzyme} {name} = {act:g}: {src.source}"
-                for case in cases
-                for (enzyme, name, act), src in zip(case.activities, case.sources, strict=True)
-                if src is not None and src.from_memory
+            {
+                f"{s.label}: {s.source}{tag(s.status)}"
+                for s in (*all_settings, *kdeg_used)
+                if s.status in UNVERIFIED and s.origin in ("default", "rule set")
             }
             | {
-                f"Induction calibration factor d = 1 for {c.species} on {c.target}: default (S1 shows d in the R3 equation; "
+                f"{r.label} cutoff for {r.target} ({rule_set.id}): {r.cutoff.source}{tag(r.cutoff.status)}"
+                for r in screen_results
+                if r.cutoff.unverified
+            }
+            | {
+                f"Phenotype activity {enzyme} {name} = {act:g}: {src.source}{tag(src.status)}"
+                for case in cases
+                for (enzyme, name, act), src in zip(case.activities, case.sources, strict=True)
+                if src is not None and src.status in UNVERIFIED
+            }
+            | {
+                f"Induction calibration factor d = 1 for {c.species} on {c.target}: default ([@lee2024] shows d in the R3 equation; "
                 "the default value 1 is from memory)"
                 for c in constants
                 if c.emax is not None and c.calibration_origin == "default"
             }
             | {
-                f"{r.label} multiplier ({rule_set.id}): {r.multiplier_source.source}"
+                f"{r.label} multiplier ({rule_set.id}): {r.multiplier_source.source}{tag(r.multiplier_source.status)}"
                 for r in screen_results
-                if r.multiplier_source is not None and r.multiplier_source.from_memory
+                if r.multiplier_source is not None and r.multiplier_source.unverified
             }
-            | ({f"AUCR cutoff ({rule_set.id}): {aucr_cut.source}"} if aucr_cut.from_memory else set())
+            | ({f"AUCR cutoff ({rule_set.id}): {aucr_cut.source}{tag(aucr_cut.status)}"} if aucr_cut.unverified else set())
             | (
-                {f"Class band '{prediction.band.name}': {prediction.band.source}"}
-                if prediction.band is not None and prediction.band.status == "from memory"
+                {f"Class band '{prediction.band.name}': {prediction.band.source}{tag(prediction.band.status)}"}
+                if prediction.band is not None and prediction.band.status in UNVERIFIED
                 else set()
             )
         )

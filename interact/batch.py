@@ -123,7 +123,7 @@ OUTPUT_COLUMNS: Final = (
     "phenotype",
     "exposure vs normal",
     "class",
-    "study indicated",
+    "study indicated (mechanistic model)",
     "action",
     "flags",
 )

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import math
+import shutil
 import sys
 from collections.abc import Callable, Sequence
 from pathlib import Path
@@ -32,8 +33,14 @@ def _out(text: str, path: str | None = None, args: argparse.Namespace | None = N
         from .files import write_file
 
         write_file(path, text, field="--output", inputs=_inputs(args), force=bool(getattr(args, "force", False)))
+        _said_written(path)
     else:
         sys.stdout.write(text)
+
+
+def _said_written(path: str | Path, what: str = "output") -> None:
+    """Every command that writes a file says where (on standard error, so standard output stays the result)."""
+    sys.stderr.write(f"interact: {what} written to {Path(path).resolve()}\n")
 
 
 #: the arguments that name files a command reads; no output of the same run may overwrite one of them
@@ -105,11 +112,12 @@ def _cmd_timecourse(args: argparse.Namespace) -> int:
     if args.plot:
         write_file(
             args.plot,
-            timecourse_svg(course, title=result.scenario.title),
+            timecourse_svg(course, title=result.scenario.title, terms=result.rules.terms),
             field="--plot",
             inputs=(*_inputs(args), args.output),
             force=args.force,
         )
+        _said_written(args.plot, "plot")
     _out(format_timecourse(course, result, args.format, width=args.width), args.output, args)
     return 0
 
@@ -297,7 +305,11 @@ def _cmd_uncertainty(args: argparse.Namespace) -> int:
     method = args.method or spec.method or "lhs"
     spread = run_uncertainty(result, vary, samples=samples, seed=seed, method=method)
     sens = sensitivity(result, vary)
-    _out(format_uncertainty(spread, sens, args.format, title=result.scenario.title, width=args.width), args.output, args)
+    _out(
+        format_uncertainty(spread, sens, args.format, title=result.scenario.title, width=args.width, scenario=result.scenario),
+        args.output,
+        args,
+    )
     return 0
 
 
@@ -350,12 +362,20 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         sys.stderr.write(f"interact: skipped {problem}\n")
     n = len(perps.rows) * len(victims.rows)
     result = evaluate_pairs(perps, victims, rules, progress=_progress_bar("screening") if n >= 200_000 and not args.quiet else None)
-    fmt_name = args.format or {".json": "json", ".md": "markdown", ".markdown": "markdown", ".parquet": "parquet"}.get(
-        Path(args.output or "").suffix.lower(), "csv"
-    )
+    if args.format:
+        fmt_name = args.format
+    elif args.output:
+        fmt_name = {".json": "json", ".md": "markdown", ".markdown": "markdown", ".parquet": "parquet"}.get(
+            Path(args.output).suffix.lower(), "csv"
+        )
+    else:  # a person at a terminal reads a rounded table; a pipe gets CSV
+        fmt_name = "table" if sys.stdout.isatty() else "csv"
     if fmt_name == "parquet" and not args.output and sys.stdout.isatty():
         raise InputError("--format", "parquet", "is binary and would garble the terminal; write it to a file (-o results.parquet)")
-    rows = _write_streamed(args, lambda h: write_results(result, h, fmt_name, top=args.top), binary=fmt_name != "markdown")
+    width = shutil.get_terminal_size((100, 24)).columns
+    rows = _write_streamed(
+        args, lambda h: write_results(result, h, fmt_name, top=args.top, width=width), binary=fmt_name not in ("markdown", "table")
+    )
     if args.output and not args.quiet:
         skipped = len(perps.skipped) + len(victims.skipped)
         sys.stderr.write(
@@ -482,7 +502,7 @@ def _parser() -> argparse.ArgumentParser:
     with_report_options(p)
     p.set_defaults(run=_cmd_assess)
 
-    p = sub.add_parser("tables", help="print the reference tables with their sources and status")
+    p = sub.add_parser("tables", help="print the reference tables with their sources and status, and the source registry in full")
     p.add_argument("--rules", metavar="NAME|PATH", help="show only this rule set")
     p.add_argument("--format", choices=("text", "markdown"), default="text")
     p.set_defaults(run=_cmd_tables)
@@ -525,7 +545,11 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("perpetrators", metavar="PERPETRATORS.csv", help="perpetrator table (CSV or TOML; columns in README)")
     p.add_argument("victims", metavar="VICTIMS.csv", help="victim table (CSV or TOML; columns in README)")
     p.add_argument("-o", "--output", metavar="FILE", help="write results to FILE (.csv, .json, .parquet or .md) instead of standard output")
-    p.add_argument("--format", choices=("csv", "json", "parquet", "markdown"), help="output format (default: from the file name, else csv)")
+    p.add_argument(
+        "--format",
+        choices=("csv", "json", "parquet", "markdown", "table"),
+        help="output format (default: from the file name; to a terminal a rounded table, to a pipe csv)",
+    )
     p.add_argument("--rules", metavar="NAME|PATH", help="rule set (default ich-m12-2024)")
     p.add_argument(
         "--on-error",
@@ -828,7 +852,8 @@ def _add_fit_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[t
         dest="method_binding",
         choices=("austin-2002", "hallifax-2006", "kilford-2008"),
         default="hallifax-2006",
-        help="fu,inc relation (default hallifax-2006; coefficients from memory)",
+        help="fu,inc relation (default hallifax-2006; austin-2002 was derived in rat liver microsomes; "
+        "sources and status: interact tables)",
     )
     p.add_argument("--ic50", action="store_true", help="treat the file as an IC50 curve (inhibitor, response)")
     p.add_argument("--bottom", type=float, metavar="Y", help="IC50 mode: fix the bottom plateau (3-parameter fit), e.g. 0")

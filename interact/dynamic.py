@@ -628,7 +628,9 @@ def simulate(
             value=ka_v_q,
             unit="1/h",
             origin="given" if v.ka is not None else "default",
-            source="" if v.ka is not None else "the default perpetrator ka (S7, S8, S10) reused for the victim",
+            source=""
+            if v.ka is not None
+            else "the default perpetrator ka ([@dmd2019inlet], [@jpetverinurad], [@cpt2015]) reused for the object drug",
             status="" if v.ka is not None else "assumption",
         )
     )

@@ -2,13 +2,13 @@
 
 Equations (concentrations in uM, doses in umol, flows in L/min, ka in 1/min):
 
-- Imax,u = fu,p x Cmax, with fu,p floored at the rule set's value        (S7, S1)
-- Igut = Dose / V_gut, V_gut = 250 mL                                  (S7, S8)
-- Iin,max,u = fu,p x (Cmax + Fa*Fg x ka x Dose / (Qh x Rb))            (S7, S8, S10)
+- Imax,u = fu,p x Cmax, with fu,p floored at the rule set's value        (DMD 2019;47:779)
+- Igut = Dose / V_gut, V_gut = 250 mL                                  (DMD 2019;47:779)
+- Iin,max,u = fu,p x (Cmax + Fa*Fg x ka x Dose / (Qh x Rb))            (DMD 2019;47:779; JPET verinurad; CPT 2015;98:321)
 - I_ent = fu,gut x Fa x ka x Dose / Qent (enterocyte, mechanistic model) (from memory)
 
 Metabolites have no portal or gut-lumen term: their systemic unbound Cmax is
-used at every site (S8 practice).  For an intravenous perpetrator the
+used at every site (JPET verinurad study, Table 7).  For an intravenous perpetrator the
 gut-lumen and portal terms vanish and the enterocyte sees Imax,u.
 """
 

@@ -1,7 +1,7 @@
 """Mechanistic static model: the victim's AUC ratio in gut, liver and in total.
 
 Net-effect form (Fahmi et al., Drug Metab Dispos 2008;36:1698; structure seen
-in S14; the equations below are from memory, algebra checked).  For each
+in Guengerich 2022, Fig. 17; the equations below are from memory, algebra checked).  For each
 enzyme e that clears the victim, the fraction of its activity that remains
 in an organ is the product of three terms, named by meaning:
 

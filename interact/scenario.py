@@ -235,6 +235,13 @@ class Scenario:
     notes: str = ""
     #: the folder of the file it was read from: a relative ``rules`` path is read from there (not saved; not compared)
     folder: str | None = field(default=None, compare=False, repr=False)
+    spelling: tuple[str, str] = ("perpetrator", "victim")
+    """The table names the file used: ``[perpetrator]``/``[victim]`` or the ICH M12 terms ``[precipitant]``/``[object]``;
+    :func:`scenario_to_dict` writes them back the same way."""
+
+
+SPELLINGS: Final = {"perpetrator": "precipitant", "victim": "object"}
+"""Accepted aliases of the two drug tables: the older words and the ICH M12 terms (precipitant, object drug)."""
 
 
 # --------------------------------------------------------------------------- loading
@@ -436,15 +443,24 @@ class _Reader:
 
     # -- sections
     def scenario(self, data: object) -> Scenario | None:
-        top = self.table(data, "", ("title", "invented", "rules", "notes", "perpetrator", "victim", "physiology", "turnover"))
+        top = self.table(data, "", ("title", "invented", "rules", "notes", *SPELLINGS, *SPELLINGS.values(), "physiology", "turnover"))
         if top is None:
             return None
+        names: list[str] = []
+        for key, alias in SPELLINGS.items():
+            if key in top and alias in top:
+                self.fail(alias, f"and [{key}] are the same table; give one of them (ICH M12 calls it [{alias}])")
+            names.append(alias if alias in top and key not in top else key)
+        perp_name, victim_name = names
         title = self.text(top, "title", "", default="Untitled scenario")
         invented = self.flag(top, "invented", "")
         rules = self.text(top, "rules", "") or None
         notes = self.text(top, "notes", "")
-        perp = self.perpetrator(self.required(top, "perpetrator", ""))
-        victim = self.victim(self.required(top, "victim", ""))
+        for key, name in zip(SPELLINGS, names, strict=True):
+            if name not in top:
+                self.fail(key, f"is missing; expected a [{key}] table (or [{SPELLINGS[key]}], the ICH M12 term)")
+        perp = self.perpetrator(top[perp_name], perp_name) if perp_name in top else None
+        victim = self.victim(top[victim_name], victim_name) if victim_name in top else None
         physiology = self.physiology(top.get("physiology", {}))
         turnover_list: list[Turnover] = []
         for i, raw in self.items(top, "turnover", ""):
@@ -470,6 +486,7 @@ class _Reader:
             victim=victim,
             physiology=physiology,
             turnover=turnover,
+            spelling=(perp_name, victim_name),
         )
 
     def inhibition(self, raw: object, path: str, molar_mass: Q | None) -> Inhibition | None:
@@ -637,8 +654,7 @@ class _Reader:
                 f'"{units.format_quantity(q)}" is a mass concentration; give molar_mass (e.g. "452.5 g/mol") or a molar value such as "1.8 uM"',  # noqa: E501
             )
 
-    def perpetrator(self, raw: object) -> Perpetrator | None:
-        path = "perpetrator"
+    def perpetrator(self, raw: object, path: str = "perpetrator") -> Perpetrator | None:
         data = self.table(raw, path, tuple(f.name for f in fields(Perpetrator)))
         if data is None:
             return None
@@ -675,7 +691,7 @@ class _Reader:
             if met is not None:
                 metabolites.append(met)
         if not inhibits and not any(m.inhibits for m in metabolites) and "inhibits" not in data:
-            self.fail(f"{path}.inhibits", "is missing; expected at least one [[perpetrator.inhibits]] table with a target")
+            self.fail(f"{path}.inhibits", f"is missing; expected at least one [[{path}.inhibits]] table with a target")
         if None in (dose, cmax, fu_p):
             return None
         assert dose is not None and cmax is not None and fu_p is not None
@@ -713,8 +729,7 @@ class _Reader:
             return None
         return Metabolite(name=name, molar_mass=mw, cmax=cmax, fu_plasma=fu_p, fu_plasma_measured=measured, inhibits=inhibits)
 
-    def victim(self, raw: object) -> Victim | None:
-        path = "victim"
+    def victim(self, raw: object, path: str = "victim") -> Victim | None:
         data = self.table(
             raw,
             path,
@@ -1020,8 +1035,8 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
     put(out, "rules", scenario.rules)
     if scenario.notes:
         out["notes"] = scenario.notes
-    out["perpetrator"] = perp
-    out["victim"] = vic
+    out[scenario.spelling[0]] = perp
+    out[scenario.spelling[1]] = vic
     phys: dict[str, Any] = {}
     for f in fields(Physiology):
         put(phys, f.name, getattr(scenario.physiology, f.name))

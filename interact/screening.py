@@ -4,13 +4,13 @@ Forms (``[I]`` is the criterion's concentration times its multiplier; sums run
 over the parent and its metabolites, except the gut-lumen concentration,
 which only the parent has):
 
-- ``one-plus-sum``: R = 1 + sum([I]/K)             R1, R1,gut, OATP R    (S1, S8)
-- ``sum``:          R = sum([I]/K)                 transporter ratios    (S8)
-- ``tdi``:          R2 = (kobs + kdeg)/kdeg, kobs = sum(kinact [I]/(KI,u + [I]))   (S1)
-- ``induction``:    R3 = 1 / (1 + d sum(Emax [I]/(EC50,u + [I])))            (S1, from memory)
+- ``one-plus-sum``: R = 1 + sum([I]/K)             R1, R1,gut, OATP R    (Lee 2024; JPET)
+- ``sum``:          R = sum([I]/K)                 transporter ratios    (JPET)
+- ``tdi``:          R2 = (kobs + kdeg)/kdeg, kobs = sum(kinact [I]/(KI,u + [I]))   (Lee 2024)
+- ``induction``:    R3 = 1 / (1 + d sum(Emax [I]/(EC50,u + [I])))            (Lee 2024, from memory)
 - ``fold-change``:  F = 1 + sum(Emax [I]/(EC50,u + [I])), the in vitro mRNA fold change over
                     vehicle predicted at [I] from the fitted Emax and EC50 (no d: an in vitro
-                    quantity); flag F >= 2 (S1: FDA 2020 2-fold rule; the M12 concentration
+                    quantity); flag F >= 2 (Lee et al. 2024: FDA 2020 2-fold rule; the M12 concentration
                     limit is from memory)
 
 Emax is the maximal *increase* over vehicle (fold change minus 1), so that the

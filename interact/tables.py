@@ -20,6 +20,8 @@ from .errors import InputError
 
 __all__ = [
     "STATUSES",
+    "STATUS_MEANINGS",
+    "UNVERIFIED",
     "Band",
     "BindingEquation",
     "Classes",
@@ -28,6 +30,7 @@ __all__ = [
     "RuleSet",
     "Sourced",
     "Target",
+    "Terms",
     "load_binding",
     "load_classes",
     "load_phenotypes",
@@ -40,7 +43,16 @@ __all__ = [
 ]
 
 DEFAULT_RULES: Final = "ich-m12-2024"
-STATUSES: Final = ("seen in source", "from memory", "common practice")
+STATUS_MEANINGS: Final = {
+    "seen in source": "printed in a cited primary text (a guidance, a paper, a journal table or an abstract)",
+    "seen in a secondary source": "printed only in a summary or quotation of the primary text (a review quoting a guidance, "
+    "a blog, a forum post, package documentation)",
+    "inferred": "carried over from an older guidance or an earlier text, not seen for the one named",
+    "from memory": "recalled, not verified against any readable text: verify before relying on it",
+    "common practice": "a convention of the trade rather than a published number",
+}
+STATUSES: Final = tuple(STATUS_MEANINGS)
+UNVERIFIED: Final = ("from memory", "inferred")
 FORMS: Final = ("one-plus-sum", "sum", "tdi", "induction", "fold-change")
 CONCENTRATIONS: Final = ("unbound-cmax", "total-cmax", "gut-lumen", "unbound-inlet")
 MECHANISMS: Final = ("reversible", "time-dependent", "induction")
@@ -62,6 +74,11 @@ class Sourced:
     @property
     def from_memory(self) -> bool:
         return self.status == "from memory"
+
+    @property
+    def unverified(self) -> bool:
+        """From memory, or inferred from an older guidance: outputs list these for checking."""
+        return self.status in UNVERIFIED
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -88,6 +105,17 @@ class Criterion:
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
+class Terms:
+    """The words a guidance uses for the two drugs: ICH M12 says precipitant and object drug, older texts
+    perpetrator and victim.  Outputs under a rule set speak its words."""
+
+    precipitant: str = "perpetrator"
+    object: str = "victim"
+    source: str = ""
+    status: str = ""
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
 class RuleSet:
     """A guidance's cutoffs and multipliers."""
 
@@ -102,6 +130,9 @@ class RuleSet:
     aucr_induction_cutoff: Sourced
     criteria: tuple[Criterion, ...]
     physiology: tuple[Sourced, ...] = ()
+    source: str = ""
+    """The guidance the rule set encodes, as a citation marker (``[@ichm12]``)."""
+    terms: Terms = Terms()
 
     def physiology_value(self, name: str) -> Sourced | None:
         for item in self.physiology:
@@ -199,7 +230,10 @@ _RULE_KEYS: Final = (
     "aucr_inhibition_cutoff",
     "aucr_induction_cutoff",
     "criteria",
+    "source",
+    "terms",
 )
+_TERMS_KEYS: Final = ("precipitant", "object", "source", "status")
 _CRITERION_KEYS: Final = (
     "id",
     "label",
@@ -271,9 +305,37 @@ def _load_rules_file(path: str) -> RuleSet:
         note = raw.get("note", "")
         if not isinstance(note, str):
             r.fail(f"{full}.note", "is not text")
+        for part, text in (("source", source), ("note", note)):
+            cited(text, f"{full}.{part}")
         if value is None:
             return None
         return Sourced(name=key, value=value, source=str(source or ""), status=str(status or ""), note=str(note))
+
+    def cited(text: object, full: str) -> None:
+        """Every citation marker (``[@lee2024]``) in ``text`` names a source of reference_tables/sources.toml."""
+        if isinstance(text, str) and "[@" in text:
+            try:
+                _cites(text, full)
+            except InputError as exc:
+                r.fail(full, f"{exc.value} {exc.expected}")
+
+    def terms(raw: object) -> Terms:
+        """The ``[terms]`` table: the words the guidance uses for the two drugs."""
+        if raw is None or r.table(raw, "terms", _TERMS_KEYS) is None:
+            return Terms()
+        assert isinstance(raw, dict)
+        words = {}
+        for key in ("precipitant", "object"):
+            value = raw.get(key)
+            if not isinstance(value, str) or not value.strip() or not value.replace(" ", "").replace("-", "").isalpha():
+                r.fail(f"terms.{key}", f"{value!r} is not a word or two (letters, spaces, hyphens)")
+                value = Terms().precipitant if key == "precipitant" else Terms().object
+            words[key] = value.strip()
+        status = raw.get("status", "")
+        if status and status not in STATUSES:
+            r.fail("terms.status", f"{status!r} is not one of {', '.join(STATUSES)}")
+        cited(raw.get("source", ""), "terms.source")
+        return Terms(precipitant=words["precipitant"], object=words["object"], source=str(raw.get("source", "")), status=str(status))
 
     def number(low: float, high: float, low_open: bool = True) -> Any:
         return lambda raw, full: r.number(raw, "value", full, low=low, high=high, low_open=low_open)
@@ -357,7 +419,10 @@ def _load_rules_file(path: str) -> RuleSet:
         fu_plasma_floor_measured_exempt=sourced(data, "fu_plasma_floor_measured_exempt", "", flag),
         aucr_inhibition_cutoff=sourced(data, "aucr_inhibition_cutoff", "", number(1.0, 1e6, False)),
         aucr_induction_cutoff=sourced(data, "aucr_induction_cutoff", "", number(0.0, 1.0)),
+        source=r.text(data, "source", ""),
+        terms=terms(data.get("terms")),
     )
+    cited(rules["source"], "source")
     if r.problems:
         raise ScenarioError(tuple(r.problems), source=f"rules {path}")
     return RuleSet(path=path, criteria=tuple(criteria), physiology=tuple(physiology), **rules)  # type: ignore[arg-type]
@@ -373,11 +438,19 @@ def load_physiology() -> tuple[Sourced, ...]:
 def load_classes() -> Classes:
     data = _read(tables_dir() / "classes.toml", "classes")
     inhibition = tuple(
-        Band(name=b["name"], bound=float(b["lower"]), source=b["source"], status=_status(b, "classes.inhibition"))
+        Band(
+            name=b["name"],
+            bound=float(b["lower"]),
+            source=_cites(b["source"], "classes.inhibition"),
+            status=_status(b, "classes.inhibition"),
+        )
         for b in data["inhibition"]
     )
     induction = tuple(
-        Band(name=b["name"], bound=float(b["upper"]), source=b["source"], status=_status(b, "classes.induction")) for b in data["induction"]
+        Band(
+            name=b["name"], bound=float(b["upper"]), source=_cites(b["source"], "classes.induction"), status=_status(b, "classes.induction")
+        )
+        for b in data["induction"]
     )
     boundary = data["no_effect_boundary"]
     return Classes(
@@ -389,7 +462,7 @@ def load_classes() -> Classes:
         no_effect_source=Sourced(
             name="no_effect_boundary",
             value=(float(boundary["lower"]), float(boundary["upper"])),
-            source=boundary["source"],
+            source=_cites(boundary["source"], "classes.no_effect_boundary"),
             status=_status(boundary, "classes.no_effect_boundary"),
         ),
         version=str(data.get("version", "")),
@@ -475,6 +548,20 @@ def _norm(name: str) -> str:
     return name.upper().replace("-", "").replace(" ", "").replace("_", "")
 
 
+def read_table(path: Path, field: str) -> dict[str, Any]:
+    """A TOML table file; unreadable or invalid files raise :class:`InputError` naming ``field``."""
+    return _read(path, field)
+
+
+def _cites(text: str, field: str) -> str:
+    """``text``, after checking that its citation markers name registered sources."""
+    if "[@" in text:
+        from .sources import check_markers  # the registry reads its file through this module
+
+        check_markers(text, field)
+    return text
+
+
 def _read(path: Path, field: str) -> dict[str, Any]:
     try:
         text = path.read_text(encoding="utf-8")
@@ -506,9 +593,9 @@ def _sourced(data: dict[str, Any], key: str, where: str, *, number: bool = False
     return Sourced(
         name=key,
         value=float(value) if number else value,
-        source=raw["source"],
+        source=_cites(raw["source"], f"{at}.source"),
         status=_status(raw, at),
-        note=str(raw.get("note", "")),
+        note=_cites(str(raw.get("note", "")), f"{at}.note"),
     )
 
 
@@ -595,7 +682,7 @@ def load_binding() -> tuple[BindingEquation, ...]:
                 title=_str(raw, "title", at),
                 system=_choice(raw, "system", ("microsomes", "hepatocytes"), at),
                 equation=_str(raw, "equation", at),
-                source=_str(raw, "source", at),
+                source=_cites(_str(raw, "source", at), f"{at}.source"),
                 status=_status(raw, at),
                 note=str(raw.get("note", "")),
                 values=tuple(values),

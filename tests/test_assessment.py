@@ -19,7 +19,9 @@ def test_demo_assessment_is_complete() -> None:
     origins = {s.name: s.origin for s in a.settings}
     assert origins["hepatic_blood_flow"] == "default"
     assert origins["absorption_rate"] == "given"
-    assert any("Hepatic blood flow" in m for m in a.memory_values)  # Qh 97 L/h is from memory
+    # Qh 97 L/h is now seen in Drug Metab Dispos 2019;47:779, Table 8; Qent 18 L/h is still from memory
+    assert not any("Hepatic blood flow" in m for m in a.memory_values)
+    assert any("Enterocytic blood flow" in m for m in a.memory_values)
 
 
 def test_override_marks_origin(scenario_dict: dict) -> None:

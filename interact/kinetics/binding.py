@@ -1,15 +1,15 @@
 """Nonspecific binding in the incubation (fu,inc): predicted, rescaled, applied.
 
 Predictions use the published relations whose coefficients live in
-``reference_tables/binding.toml`` (all recalled from memory and marked so):
+``reference_tables/binding.toml`` (each with its source and status there):
 
-- Austin et al. 2002, microsomes: fu,inc = 1 / (1 + C 10^(0.56 logP/D - 1.41));
+- Austin et al. 2002, rat liver microsomes: fu,inc = 1 / (1 + C 10^(0.56 logP/D - 1.41));
 - Hallifax & Houston 2006, microsomes: fu,mic = 1 / (1 + C 10^(0.072 (logP/D)^2 + 0.067 logP/D - 1.126));
 - Kilford et al. 2008, hepatocytes: fu,hep = 1 / (1 + 125 VR 10^(same quadratic)), VR = 0.005 at 10^6 cells/mL,
   scaling with cell density.
 
 C is the microsomal protein concentration in mg/mL; use logP for bases and
-logD7.4 for acids and neutrals (S16).  Rescaling between protein
+logD7.4 for acids and neutrals (Austin et al. 2002, abstract).  Rescaling between protein
 concentrations assumes linear (non-saturable) binding (algebra):
 fu2 = 1 / (1 + (C2/C1) (1 - fu1)/fu1).  Ki,u = Ki x fu,inc.
 """
@@ -119,6 +119,10 @@ def predict_fu_inc(
         if not plo <= c <= phi:
             warnings.append(f"protein {c:g} mg/mL is outside {plo:g}-{phi:g} mg/mL ({eq.item('protein_range_mg_per_ml').status})")
         if method == "austin-2002":
+            warnings.append(
+                f"{eq.title}: derived in rat liver microsomes ([@austin2002], abstract); for human microsomes it is an "
+                "extrapolation, and its coefficients are from memory"
+            )
             exponent = eq.number("a") * x + eq.number("b")
         else:
             exponent = eq.number("a2") * x**2 + eq.number("a1") * x + eq.number("b")
@@ -135,7 +139,7 @@ def predict_fu_inc(
             warnings.append(f"cell density {n:g} x 10^6/mL is outside {clo:g}-{chi:g} ({eq.item('cell_range_million_per_ml').status})")
         accurate = eq.number("accurate_below_lipophilicity")
         if x > accurate:
-            warnings.append(f"logP/D {x:g} is above {accurate:g}, where {eq.title} is less accurate (S17)")
+            warnings.append(f"logP/D {x:g} is above {accurate:g}, where {eq.title} is less accurate ([@kilford2008], abstract)")
         vr = eq.number("volume_ratio_per_million_cells") * n
         exponent = eq.number("a2") * x**2 + eq.number("a1") * x + eq.number("b")
         fu = 1.0 / (1.0 + eq.number("scale") * vr * 10.0**exponent)

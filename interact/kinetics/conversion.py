@@ -3,9 +3,9 @@
 Cheng Y, Prusoff WH. Biochem Pharmacol 1973;22:3099-3108.  With substrate
 concentration S and Michaelis constant Km (same units as IC50):
 
-- competitive:    IC50 = Ki (1 + S/Km)                    (S10, S12: seen in source)
+- competitive:    IC50 = Ki (1 + S/Km)                    (Clin Pharmacol Ther 2015;98:321, Table 3 footnote: seen)
 - noncompetitive: IC50 = Ki                                (from memory)
-- uncompetitive:  IC50 = Ki (1 + Km/S)                     (S12: seen in source)
+- uncompetitive:  IC50 = Ki (1 + Km/S)                     (textbook page: seen)
 - mixed:          IC50 = (Km + S) / (Km/Ki + S/(alpha Ki)) (from memory; algebra checked:
                   alpha -> infinity gives the competitive form, alpha = 1 the noncompetitive)
 
@@ -21,7 +21,8 @@ from numpy.typing import ArrayLike, NDArray
 
 __all__ = ["CHENG_PRUSOFF_SOURCE", "ki_from_ic50", "unbound"]
 
-CHENG_PRUSOFF_SOURCE: Final = "Cheng & Prusoff, Biochem Pharmacol 1973;22:3099"
+CHENG_PRUSOFF_SOURCE: Final = "[@chengprusoff1973]"
+"""A citation marker: outputs resolve it to the author-year form and list the full citation."""
 
 
 def ki_from_ic50(

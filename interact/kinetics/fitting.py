@@ -81,7 +81,7 @@ FIT_WEIGHTS: Final = ("auto", *WEIGHTS)
 ERROR_MODELS: Final = ("constant", "proportional", "power")
 _FLOOR_FRACTION: Final = 0.02  # fitted values below 2 % of the largest are floored in g (blank rows, f = 0)
 OUTLIER_T: Final = 3.0  # |externally studentised residual| flagged as a possible outlier (common practice)
-DEPLETION_KINETIC_PCT: Final = 10.0  # S1: < 10 % turnover for kinetic constants (seen in source)
+DEPLETION_KINETIC_PCT: Final = 10.0  # Lee et al. 2024: < 10 % turnover for kinetic constants (seen)
 DEPLETION_LIMIT_PCT: Final = 20.0  # FDA: substrate depletion <= 20 % (from memory)
 
 
@@ -139,6 +139,12 @@ def _denominator(name: str, grid: _Grid, u: list[float]) -> tuple[Array, Array |
     return d, a
 
 
+def _nonzero(d: Array) -> Array:
+    """The denominator with its zeros set to 1: d = 0 only where [S] = 0 and Km (or a trial Km) is 0, where the rate
+    and its derivatives are 0 (the numerator holds [S]); avoids 0/0 for a trial Km of 0 on rows without substrate."""
+    return d if d.all() else np.where(d == 0.0, 1.0, d)
+
+
 def _function(name: str):  # type: ignore[no-untyped-def]
     grid = _Grid()
 
@@ -146,7 +152,7 @@ def _function(name: str):  # type: ignore[no-untyped-def]
         g = grid.of(x)
         ul = u.tolist()
         d, _ = _denominator(name, g, ul)
-        return (ul[0] * g.s) / d
+        return (ul[0] * g.s) / _nonzero(d)
 
     return f
 
@@ -168,6 +174,7 @@ def _fused(name: str):  # type: ignore[no-untyped-def]
         gr = grid.of(x)
         ul = u.tolist()
         d, a = _denominator(name, gr, ul)
+        d = _nonzero(d)
         out = np.empty((p, d.size))
         g = np.divide(gr.s, d, out=out[0])
         f = g * ul[0]
@@ -1169,10 +1176,10 @@ def _design_warnings(
             out.append(
                 f"Substrate depletion above 10 % on {hi.size} row(s) (lines {_lines(data, hi.tolist())}; up to "
                 f"{worst:.3g} %){limit}: "
-                "initial-rate conditions are doubtful there (S1: keep turnover below 10 % for kinetic constants)."
+                "initial-rate conditions are doubtful there ([@lee2024]: keep turnover below 10 % for kinetic constants)."
             )
     else:
-        out.append("No depletion column: substrate turnover was not checked (keep it below 10 % for kinetic constants, S1).")
+        out.append("No depletion column: substrate turnover was not checked (keep it below 10 % for kinetic constants, [@lee2024]).")
     if chosen is not None and chosen.success:
         t = np.asarray(chosen.studentized)
         flagged = np.flatnonzero(np.abs(t) > OUTLIER_T)

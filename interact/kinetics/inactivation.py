@@ -1,7 +1,7 @@
 """Time-dependent (mechanism-based) inhibition: kobs, then kinact and KI.
 
 Two steps, as the pre-incubation (dilution) design is analysed in practice
-(S1: "pre-incubation with NADPH ... fit kobs = kinact x I/(KI + I)", seen):
+(Lee et al. 2024: "pre-incubation with NADPH ... fit kobs = kinact x I/(KI + I)", seen):
 
 1. For each inhibitor concentration, the natural log of the remaining activity
    falls linearly with pre-incubation time: ln A(t) = ln A0 - kobs t.  kobs is
@@ -209,7 +209,7 @@ def fit_kobs_series(concentration_um: ArrayLike, time_min: ArrayLike, activity: 
 
 
 def kobs_hyperbola(concentration_um: ArrayLike, kinact: ArrayLike, ki_um: ArrayLike) -> Array:
-    """kobs = kinact x [I] / (KI + [I]) (S1), vectorised."""
+    """kobs = kinact x [I] / (KI + [I]) (Lee et al. 2024), vectorised."""
     c = np.asarray(concentration_um, dtype=float)
     return np.asarray(kinact, dtype=float) * c / (np.asarray(ki_um, dtype=float) + c)
 

@@ -1,6 +1,6 @@
 """Induction: Emax and EC50 (and optionally a Hill slope) from fold-change mRNA data.
 
-Model (hepatocytes, mRNA fold change over vehicle; S1, S12: mRNA is the
+Model (hepatocytes, mRNA fold change over vehicle; Lee et al. 2024 and a textbook page: mRNA is the
 endpoint, 48-72 h exposure, several concentrations, seen):
 
     fold = 1 + Emax x C^h / (EC50^h + C^h)

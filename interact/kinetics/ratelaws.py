@@ -6,7 +6,7 @@ constants are in the same unit, and ``vmax`` sets the velocity unit.  A
 constant of ``numpy.inf`` means "no inhibition through that route" and is
 handled exactly (the mixed law with ``kic = inf`` is the uncompetitive law).
 
-Equations (S1 Lee et al. Biomolecules 2024;14:99 and S12 for the type-by-type
+Equations (Lee et al. Biomolecules 2024;14:99 and a textbook page for the type-by-type
 behaviour, seen in source; the algebraic forms below are the standard ones,
 re-derived from the mixed law):
 

@@ -161,15 +161,16 @@ def inhibition_entry(text: str, *, target: str, source: str = "scenario", purpos
         doc = tomlkit.parse(text)
     except TOMLKitError as exc:
         raise InputError(source, "TOML", f"could not be parsed: {exc}") from None
-    perp = doc.get("perpetrator")
+    key = "precipitant" if "precipitant" in doc and "perpetrator" not in doc else "perpetrator"  # the file's own spelling
+    perp = doc.get(key)
     if not isinstance(perp, Table):
-        raise InputError(f"{source}: perpetrator", None, "is missing; expected a [perpetrator] table" + (f" {purpose}" if purpose else ""))
+        raise InputError(f"{source}: {key}", None, f"is missing; expected a [{key}] table" + (f" {purpose}" if purpose else ""))
     inhibits = perp.get("inhibits")
     if inhibits is None:
         inhibits = tomlkit.aot()
         perp.append("inhibits", inhibits)
     if not isinstance(inhibits, AoT):
-        raise InputError(f"{source}: perpetrator.inhibits", "value", "is not a list of [[perpetrator.inhibits]] tables")
+        raise InputError(f"{source}: {key}.inhibits", "value", f"is not a list of [[{key}.inhibits]] tables")
     for item in inhibits:
         name = item.get("target")
         found = resolve_target(str(name)) if name is not None else None

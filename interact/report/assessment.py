@@ -17,13 +17,14 @@ from ..assessment import Assessment
 from ..cautions import CAUTION_LINE, DOSE_CAUTIONS, GENOTYPE_CAUTIONS
 from ..dosing import ACTIONS, DoseSuggestion, RegimenOutcome
 from ..exposure import Setting
-from .document import Note, Section, Table, render_markdown, render_text
+from ..tables import load_physiology, resolve_target
+from .document import Note, Section, Table, cite, cite_data, render_markdown, render_text, speak_data, speak_sections
 from .numbers import fmt, fmt_ratio
 
 if TYPE_CHECKING:
     from ..dynamic import TimeCourse
 
-__all__ = ["JSON_SCHEMA", "assessment_sections", "assessment_to_dict", "format_assessment"]
+__all__ = ["JSON_SCHEMA", "assessment_sections", "assessment_to_dict", "format_assessment", "user_text"]
 
 JSON_SCHEMA = "interact.assessment/1"
 
@@ -51,11 +52,66 @@ def _q(q: pint.Quantity | None) -> str:
     return "-" if q is None else units.format_quantity(q)
 
 
-def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, time_course_note: str = "") -> list[Section]:
+# where a setting the user can give lives in the scenario (section, attribute)
+_GIVEN_AT = {
+    "hepatic_blood_flow": ("physiology", "hepatic_blood_flow"),
+    "enterocytic_blood_flow": ("physiology", "enterocytic_blood_flow"),
+    "gut_volume": ("physiology", "gut_volume"),
+    "fu_gut": ("physiology", "fu_gut"),
+    "absorption_rate": ("perpetrator", "ka"),
+    "fa_fg": ("perpetrator", "fa_fg"),
+    "fraction_absorbed": ("perpetrator", "fa"),
+    "blood_plasma_ratio": ("perpetrator", "blood_plasma_ratio"),
+}
+
+
+def _as_written(value: object) -> str | None:
+    if isinstance(value, pint.Quantity):
+        return units.format_quantity(value)
+    if isinstance(value, (int, float)) and not isinstance(value, bool):
+        return f"{value:g}"
+    if isinstance(value, str) and value.strip():
+        return value.strip()
+    return None
+
+
+def _setting_value(a: Assessment, st: Setting) -> str:
+    """A setting as the user wrote it (given) or as its table states it (default); computed values to the usual figures."""
+    shown: str | None = None
+    if st.origin in ("given", "override") and st.name in _GIVEN_AT:
+        section, attr = _GIVEN_AT[st.name]
+        shown = _as_written(getattr(getattr(a.scenario, section), attr, None))
+    elif st.origin in ("default", "rule set"):
+        table = a.rules.physiology_value(st.name) if st.origin == "rule set" else None
+        table = table or next((p for p in load_physiology() if p.name == st.name), None)
+        if table is not None and st.name in _GIVEN_AT:
+            shown = _as_written(table.value)
+    if shown is None and not st.unit and st.origin == "given":
+        shown = f"{st.value:g}"
+    return shown or f"{fmt(st.value)} {st.unit}".strip()
+
+
+def _given(a: Assessment, species_index: int, target: str, attr: str) -> str | None:
+    """The constant ``attr`` of the inhibition entry behind a computed constant, as the user wrote it."""
+    p = a.scenario.perpetrator
+    entries = p.inhibits if species_index == 0 else p.metabolites[species_index - 1].inhibits
+    for inh in entries:
+        found = resolve_target(inh.target)
+        if found is not None and found.name == target:
+            return _as_written(getattr(inh, attr, None))
+    return None
+
+
+def assessment_sections(
+    a: Assessment, time_course: TimeCourse | None = None, time_course_note: str = "", *, references: bool = True
+) -> list[Section]:
     """The assessment as document sections (shared by every format).
 
     With ``time_course`` (from :func:`interact.dynamic.simulate`) the dynamic
     check and the dose timing are added; ``time_course_note`` says why it is absent.
+    Citations are resolved to author-year forms and a references section ends the
+    list; with ``references=False`` the citation markers are left for the caller
+    (the HTML report adds sections of its own before resolving them all).
     """
     s = a.scenario
     p = s.perpetrator
@@ -66,7 +122,7 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
 
     head = [
         f"Scenario: {s.title}",
-        f"Rule set: {a.rules.title} [{a.rules.id}, table {a.rules.table_version}]",
+        f"Rule set: {a.rules.title} [{a.rules.id}, table {a.rules.table_version}]" + (f" ({a.rules.source})" if a.rules.source else ""),
     ]
     if s.invented:
         head.append("This scenario is INVENTED: its compounds and values describe no real drug.")
@@ -109,7 +165,9 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"{fmt(c.ki_um)} uM" + (f" (interval {fmt(c.ki_ci_um[0])}-{fmt(c.ki_ci_um[1])})" if c.ki_ci_um else ""),
+                    # a Ki the user gave is shown as written (unit and digits); a converted one to the usual figures
+                    ((c.ki_route == "Ki given" and _given(a, c.species_index, c.target, "ki")) or f"{fmt(c.ki_um)} uM")
+                    + (f" (interval {fmt(c.ki_ci_um[0])}-{fmt(c.ki_ci_um[1])} uM)" if c.ki_ci_um else ""),
                     c.ki_route,
                     f"{c.fu_inc:g} ({c.fu_inc_origin})",
                     f"{fmt(c.ki_u_um)} uM",
@@ -120,7 +178,8 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                 (
                     c.target,
                     c.species,
-                    f"kinact {fmt(c.kinact_per_h)} 1/h, KI {fmt(c.ki_inact_um)} uM",
+                    f"kinact {_given(a, c.species_index, c.target, 'kinact') or f'{fmt(c.kinact_per_h)} 1/h'}, "
+                    f"KI {_given(a, c.species_index, c.target, 'ki_inact') or f'{fmt(c.ki_inact_um)} uM'}",
                     "time-dependent",
                     f"{c.ki_inact_fu:g} ({c.ki_inact_fu_origin})",
                     f"KI,u {fmt(c.ki_inact_u_um)} uM",
@@ -137,7 +196,7 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
                     f"EC50,u {fmt(c.ec50_u_um)} uM",
                 )
             )
-    settings_rows = tuple((st.label, f"{fmt(st.value, 4)} {st.unit}".strip(), _origin(st)) for st in (*a.settings, *a.kdeg_used))
+    settings_rows = tuple((st.label, _setting_value(a, st), _origin(st)) for st in (*a.settings, *a.kdeg_used))
     sections.append(
         Section(
             title="Inputs",
@@ -171,8 +230,10 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
             title="Perpetrator concentrations (uM)",
             blocks=(
                 Table(headers=("species", "Cmax", "fu,p used", "Imax,u", "Igut", "Iin,max,u", "I,ent"), rows=conc_rows),
-                "Imax,u = fu,p x Cmax; Igut = dose / 250 mL; Iin,max,u = fu,p x (Cmax + Fa*Fg x ka x Dose / (Qh x Rb)); "
-                "I,ent = fu,gut x Fa x ka x Dose / Qent. Metabolites use their systemic Imax,u at every site.",
+                "Imax,u = fu,p x Cmax; Igut = dose / 250 mL ([@dmd2019inlet]); "
+                "Iin,max,u = fu,p x (Cmax + Fa*Fg x ka x Dose / (Qh x Rb)) ([@dmd2019inlet], Tables 7 and 8; [@jpetverinurad]); "
+                "I,ent = fu,gut x Fa x ka x Dose / Qent (from memory). Metabolites use their systemic Imax,u at every site "
+                "([@jpetverinurad], Table 7 footnote).",
             ),
         )
     )
@@ -249,7 +310,8 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
         blocks.append(f"Size band: {pr.band.name} ({pr.band.source}; {pr.band.status}).")
     blocks.append(
         "AUCR = [1 / (activity_gut x (1 - Fg) + Fg)] x [1 / (sum fm x activity_liver + (1 - sum fm))]; "
-        "activity = reversible x inactivation x induction (Fahmi et al. 2008 net-effect model)."
+        "activity = reversible x inactivation x induction (net-effect model of [@fahmi2008]; structure seen in [@guengerich2022], "
+        "equations from memory with the algebra checked)."
     )
     sections.append(Section(title="Mechanistic static model", blocks=tuple(blocks)))
 
@@ -287,7 +349,7 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
     if a.memory_values:
         sections.append(
             Section(
-                title="Values from memory (verify before relying on them)",
+                title="Values from memory or inferred from an older guidance (verify before relying on them)",
                 blocks=tuple(f"- {m}" for m in a.memory_values),
             )
         )
@@ -302,7 +364,18 @@ def assessment_sections(a: Assessment, time_course: TimeCourse | None = None, ti
             ),
         )
     )
-    return sections
+    sections = speak_sections(sections, a.rules.terms, user_text(a))
+    return cite(sections) if references else sections
+
+
+def user_text(a: Assessment) -> tuple[str, ...]:
+    """What the user typed that outputs show (title, notes, names, origins): never reworded by :func:`speak`."""
+    s = a.scenario
+    p = s.perpetrator
+    items = [s.title, s.notes, p.name, s.victim.name, *(m.name for m in p.metabolites)]
+    for inh in (*p.inhibits, *(i for m in p.metabolites for i in m.inhibits)):
+        items.append(inh.origin)
+    return tuple(x for x in items if x)
 
 
 def phenotype_section(a: Assessment) -> Section:
@@ -396,6 +469,8 @@ def _setting_dict(s: Setting) -> dict[str, Any]:
 def assessment_to_dict(a: Assessment, time_course: TimeCourse | None = None) -> dict[str, Any]:
     """JSON-ready data; concentrations in uM, rates in 1/h, ratios dimensionless.
 
+    Citations are resolved to author-year forms; ``references`` lists the sources cited, in full.
+
     With ``time_course``, a ``time_course`` entry holds its summary and the dose timing (no curves;
     ``interact timecourse --format json`` gives them).
     """
@@ -404,7 +479,9 @@ def assessment_to_dict(a: Assessment, time_course: TimeCourse | None = None) -> 
         from .timecourse import timecourse_to_dict
 
         out["time_course"] = timecourse_to_dict(time_course, a, curves=False)
-    return out
+    worded = speak_data(out, a.rules.terms, user_text(a))
+    assert isinstance(worded, dict)
+    return cite_data(worded)
 
 
 def _assessment_dict(a: Assessment) -> dict[str, Any]:
@@ -565,7 +642,7 @@ def format_assessment(
         data = assessment_to_dict(a, time_course)
         if time_course is None and time_course_note:
             data["time_course"] = {"computed": False, "reason": time_course_note}
-        return json.dumps(data, indent=2, allow_nan=False) + "\n"
+        return json.dumps(cite_data(data), indent=2, allow_nan=False) + "\n"
     sections = assessment_sections(a, time_course, time_course_note)
     if fmt_name == "markdown":
         return render_markdown(sections, title=f"interact assessment: {a.scenario.title}")

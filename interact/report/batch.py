@@ -1,9 +1,10 @@
-"""Writing batch-screen results: CSV, JSON (streamed), Parquet and Markdown.
+"""Writing batch-screen results: CSV, JSON (streamed), Parquet, Markdown and a terminal table.
 
 CSV, JSON and Parquet are written column by column with pyarrow (its CSV and Parquet writers, and its
 float-to-text cast for JSON: the shortest text that reads back as the same float, so full precision), in
 blocks of ranked pairs, so that the memory the output takes stays bounded by one block whatever the number
-of pairs.  Markdown, meant for a person to read, is written row by row from :func:`interact.batch.result_rows`.
+of pairs.  Markdown and the terminal table, meant for a person to read, are written row by row from
+:func:`interact.batch.result_rows`, rounded.
 """
 
 from __future__ import annotations
@@ -12,7 +13,7 @@ import csv
 import io
 import json
 from collections.abc import Callable, Iterator
-from typing import IO, TYPE_CHECKING, Any
+from typing import IO, TYPE_CHECKING, Any, Final
 
 import numpy as np
 from numpy.typing import NDArray
@@ -21,15 +22,15 @@ from ..batch import FLAGS, OUTPUT_COLUMNS, BatchResult, _flag_text, ranking, res
 from ..cautions import CAUTION_LINE
 from ..dosing import ACTIONS
 from ..errors import InputError
-from .document import md_escape, terminal_safe
-from .numbers import fmt
+from .document import Note, Section, Table, md_escape, render_text, speak, terminal_safe
+from .numbers import fmt, fmt_ratio
 
 if TYPE_CHECKING:
     import pyarrow as pa
 
 __all__ = ["BATCH_FORMATS", "result_batches", "write_results"]
 
-BATCH_FORMATS = ("csv", "json", "parquet", "markdown")
+BATCH_FORMATS = ("csv", "json", "parquet", "markdown", "table")
 
 #: ranked pairs per block written (a block of CSV text is about 30 MB at most)
 BLOCK_ROWS = 65_536
@@ -37,6 +38,50 @@ BLOCK_ROWS = 65_536
 #: JSON keys of the output columns, in order
 JSON_KEYS = tuple(c.split(" (")[0].replace(",", "_").replace(" ", "_").lower() for c in OUTPUT_COLUMNS)
 _TEXT_COLUMNS = ("perpetrator", "victim", "basic models", "phenotype", "class", "action", "flags")
+_STUDY = OUTPUT_COLUMNS.index("study indicated (mechanistic model)")
+
+#: the columns of the terminal table and the Markdown file, rounded; CSV and JSON carry every column in full
+SHOWN: Final = (
+    "rank",
+    "perpetrator",
+    "victim",
+    "Iin,max,u (uM)",
+    "AUCR gut",
+    "AUCR liver",
+    "AUCR",
+    "class",
+    "study indicated (mechanistic model)",
+    "basic models",
+    "action",
+    "flags",
+)
+_RATIOS: Final = ("AUCR gut", "AUCR liver", "AUCR")
+
+
+def _basic_rounded(cell: str) -> str:
+    """'R1 CYP3A 3.459 STUDY; ...' with each value rounded like every other ratio."""
+    out = []
+    for entry in cell.split("; "):
+        words = entry.split(" ")
+        at = len(words) - (2 if words[-1] == "STUDY" else 1)
+        try:
+            words[at] = fmt_ratio(float(words[at]))
+        except (ValueError, IndexError):
+            pass  # not a number where one is expected: shown as written
+        out.append(" ".join(words))
+    return "; ".join(out)
+
+
+def _rounded(col: str, cell: str) -> str:
+    if not cell:
+        return cell
+    if col == "basic models":
+        return _basic_rounded(cell)
+    if col in _RATIOS:
+        return fmt_ratio(float(cell))
+    if col.endswith("(uM)"):
+        return fmt(float(cell))
+    return cell
 
 
 def _md(text: str) -> str:
@@ -68,7 +113,7 @@ def result_batches(
     """The ranked results (worst first; ``top`` limits the count) as pyarrow record batches of ``block`` rows.
 
     Columns are :data:`~interact.batch.OUTPUT_COLUMNS`: ``rank`` int64, numbers float64 (concentrations in uM,
-    ratios dimensionless; a non-finite value is null), text as strings, ``study indicated`` bool (``yes``/``no``
+    ratios dimensionless; a non-finite value is null), text as strings, ``study indicated (mechanistic model)`` bool (``yes``/``no``
     with ``study_text``).  ``clean`` is applied to the names; ``texts`` replaces the dictionary of a text
     column (one entry per perpetrator, victim, class, action or flag bits).  The rows are those of
     :func:`interact.batch.result_rows`, in the same order.
@@ -200,7 +245,7 @@ def _write_json(result: BatchResult, handle: IO[Any], top: int | None) -> int:
             column = batch.column(k)
             if name in _TEXT_COLUMNS:
                 parts.append(column)  # already JSON text
-            elif name == "study indicated":
+            elif k == _STUDY:
                 parts.append(pc.if_else(column, "true", "false"))
             else:  # numbers: pyarrow's shortest text that reads back as the same float; missing as null
                 parts.append(pc.fill_null(column.cast(pa.string()), "null"))
@@ -222,12 +267,13 @@ def _text_writer(handle: IO[Any]) -> Callable[[str], Any]:
     return lambda text: handle.write(text.encode("utf-8"))
 
 
-def write_results(result: BatchResult, handle: IO[Any], fmt_name: str = "csv", *, top: int | None = None) -> int:
-    """Write the ranked results to an open ``handle`` as ``csv``, ``json``, ``parquet`` or ``markdown``; returns rows written.
+def write_results(result: BatchResult, handle: IO[Any], fmt_name: str = "csv", *, top: int | None = None, width: int = 100) -> int:
+    """Write the ranked results to an open ``handle`` as ``csv``, ``json``, ``parquet``, ``markdown`` or ``table``; returns rows written.
 
     Numbers are written in full precision for CSV, JSON and Parquet (concentrations in uM, ratios dimensionless)
-    and to 3 significant figures in Markdown.  ``handle`` may be a text or a binary file (Parquet needs one
-    with bytes underneath); CSV and JSON go in UTF-8 bytes through a text file's buffer.
+    and rounded like every report (``numbers.fmt``, ``fmt_ratio``) in Markdown and in the terminal ``table``.
+    ``handle`` may be a text or a binary file (Parquet needs one with bytes underneath); CSV and JSON go in UTF-8
+    bytes through a text file's buffer.
     """
     if fmt_name == "csv":
         return _write_csv(result, handle, top)
@@ -235,28 +281,73 @@ def write_results(result: BatchResult, handle: IO[Any], fmt_name: str = "csv", *
         return _write_json(result, handle, top)
     if fmt_name == "parquet":
         return _write_parquet(result, handle, top)
-    if fmt_name != "markdown":
-        raise InputError("format", fmt_name, "is not csv, json, parquet or markdown")
-    count = 0
     text_out = _text_writer(handle)
-    text_out(f"# interact batch screen ({_md(result.rules.id)})\n\n> **Caution:** {CAUTION_LINE}\n\n")
-    text_out(
-        f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
-        "worst first (largest |log AUCR|).\n\n"
-    )
-    shown = ("rank", "perpetrator", "victim", "Iin,max,u (uM)", "AUCR gut", "AUCR liver", "AUCR", "class", "action", "flags")
-    idx = [OUTPUT_COLUMNS.index(c) for c in shown]
-    text_out("| " + " | ".join(shown) + " |\n|" + "|".join("---" for _ in shown) + "|\n")
-    for row in result_rows(result, top):
-        cells = []
-        for col in idx:
-            cell = row[col]
-            if OUTPUT_COLUMNS[col] in ("Iin,max,u (uM)", "AUCR gut", "AUCR liver", "AUCR") and cell:
-                cell = fmt(float(cell))
-            cells.append(_md(cell))
-        text_out("| " + " | ".join(cells) + " |\n")
-        count += 1
-    skipped = (*result.perpetrators.skipped, *result.victims.skipped)
-    if skipped:
-        text_out("\n## Rows left out\n\n" + "".join(f"- {_md(str(s))}\n" for s in skipped))
+    count = 0
+    if fmt_name == "markdown":
+        text_out(f"# interact batch screen ({_md(result.rules.id)})\n\n> **Caution:** {CAUTION_LINE}\n\n")
+        terms = result.rules.terms  # a document for reading: the rule set's words (the CSV and JSON keys stay)
+        text_out(
+            speak(
+                f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
+                "worst first (largest |log AUCR|).\n\n",
+                terms,
+            )
+        )
+        idx = [OUTPUT_COLUMNS.index(c) for c in SHOWN]
+        names = (OUTPUT_COLUMNS.index("perpetrator"), OUTPUT_COLUMNS.index("victim"))
+        text_out("| " + " | ".join(speak(h, terms) for h in SHOWN) + " |\n|" + "|".join("---" for _ in SHOWN) + "|\n")
+        for row in result_rows(result, top):
+            cells = (row[i] if i in names else speak(_rounded(OUTPUT_COLUMNS[i], row[i]), terms) for i in idx)
+            text_out("| " + " | ".join(_md(c) for c in cells) + " |\n")
+            count += 1
+        skipped = (*result.perpetrators.skipped, *result.victims.skipped)
+        if skipped:
+            text_out("\n## Rows left out\n\n" + "".join(f"- {_md(str(s))}\n" for s in skipped))
+    elif fmt_name == "table":
+        # for a person at a terminal: the main columns, rounded like every other output, in the rule set's words
+        terms = result.rules.terms
+        col = {c: OUTPUT_COLUMNS.index(c) for c in OUTPUT_COLUMNS}
+        basic_flag = "basic model flags a study"
+        rows = []
+        for row in result_rows(result, top):
+            flags = [f for f in row[col["flags"]].split("; ") if f]
+            rows.append(
+                (
+                    row[col["rank"]],
+                    row[col["perpetrator"]],
+                    row[col["victim"]],
+                    _rounded("AUCR", row[col["AUCR"]]),
+                    row[col["class"]],
+                    row[col["study indicated (mechanistic model)"]],
+                    "yes" if basic_flag in flags else "no",
+                    row[col["action"]],
+                    speak("; ".join(f for f in flags if f != basic_flag), terms) or "-",
+                )
+            )
+        headers = tuple(
+            speak(h, terms)
+            for h in (
+                "rank",
+                "perpetrator",
+                "victim",
+                "AUCR",
+                "class",
+                "study: mechanistic model",
+                "study: basic models",
+                "action",
+                "flags",
+            )
+        )
+        intro = speak(
+            f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
+            f"rule set {result.rules.id}, worst first (largest |log AUCR|). 'study' says whether a clinical study is indicated "
+            "by the mechanistic static model (AUCR against its cutoff) and by any basic static model. "
+            "Every column in full precision: --format csv, or -o FILE.csv.",
+            terms,
+        )
+        sections = [Section(title="", blocks=(intro, Note(text=CAUTION_LINE), Table(headers=headers, rows=tuple(rows))))]
+        text_out(render_text(sections, width=width))
+        count = len(rows)
+    else:
+        raise InputError("format", fmt_name, "is not csv, json, parquet, markdown or table")
     return count

@@ -9,9 +9,34 @@ from __future__ import annotations
 import html
 import re
 import textwrap
+from collections.abc import Iterator
 from dataclasses import dataclass, field
+from functools import lru_cache
 
-__all__ = ["Note", "Section", "Table", "md_escape", "render_html_body", "render_markdown", "render_text", "terminal_safe"]
+from ..sources import cited_keys, full_citation, load_sources, resolve
+from ..tables import Terms
+
+__all__ = [
+    "REFERENCES_TITLE",
+    "Note",
+    "Section",
+    "Table",
+    "cite",
+    "cite_data",
+    "keep_together",
+    "list_groups",
+    "md_escape",
+    "render_html_body",
+    "render_markdown",
+    "render_text",
+    "speak",
+    "speak_data",
+    "speak_sections",
+    "terminal_safe",
+    "without_empty_columns",
+]
+
+REFERENCES_TITLE = "References"
 
 # Escape sequences (ECMA-48: CSI ... final byte, OSC/DCS/SOS/PM/APC ... terminator, two-byte ESC x) and then any
 # lone control character: C0 except tab and newline, DEL, C1, and the Unicode bidirectional overrides and isolates,
@@ -78,6 +103,223 @@ class Section:
     blocks: tuple[str | Table | Note, ...] = field(default_factory=tuple)
 
 
+def _texts(sections: list[Section]) -> Iterator[str]:
+    for section in sections:
+        yield section.title
+        for block in section.blocks:
+            if isinstance(block, Table):
+                yield from block.headers
+                for row in block.rows:
+                    yield from row
+            elif isinstance(block, Note):
+                yield block.text
+            else:
+                yield block
+
+
+def _resolve_block(block: str | Table | Note) -> str | Table | Note:
+    if isinstance(block, Table):
+        return Table(headers=tuple(resolve(h) for h in block.headers), rows=tuple(tuple(resolve(c) for c in r) for r in block.rows))
+    if isinstance(block, Note):
+        return Note(text=resolve(block.text), kind=block.kind)
+    return resolve(block)
+
+
+def references_section(keys: tuple[str, ...]) -> Section:
+    """Full citations of ``keys``, in the order given, each under its short author-year form."""
+    sources = load_sources()
+    return Section(title=REFERENCES_TITLE, blocks=tuple(f"- {sources[k].short}: {full_citation(k)}" for k in keys))
+
+
+def cite(sections: list[Section], *, every_source: bool = False) -> list[Section]:
+    """Resolve citation markers (``[@lee2024]``) to short author-year forms and end with the references they cite.
+
+    The references section lists exactly the sources cited in ``sections`` (all of the
+    registry with ``every_source``).  Idempotent: resolved sections cite nothing further.
+    """
+    keys = tuple(load_sources()) if every_source else cited_keys(_texts(sections))
+    if not keys:
+        return sections
+    known = load_sources()
+    keys = tuple(k for k in keys if k in known)
+    out = [Section(title=resolve(sec.title), blocks=tuple(_resolve_block(b) for b in sec.blocks)) for sec in sections]
+    return [*out, references_section(keys)] if keys else out
+
+
+def without_empty_columns(table: Table) -> Table:
+    """The table without columns that hold nothing: an empty header over empty (or "-") cells, or no cell text at all."""
+    cols = len(table.headers)
+
+    def cell(row: tuple[str, ...], i: int) -> str:
+        return row[i].strip() if i < len(row) else ""
+
+    keep = [
+        i
+        for i in range(cols)
+        if any(cell(r, i) for r in table.rows) and (table.headers[i].strip() or any(cell(r, i) not in ("", "-") for r in table.rows))
+    ]
+    if len(keep) == cols or not keep:
+        return table
+    return Table(headers=tuple(table.headers[i] for i in keep), rows=tuple(tuple(cell(r, i) for i in keep) for r in table.rows))
+
+
+_UNIT_AFTER_NUMBER = re.compile(
+    r"(?<=\d) (?=(?:x |/)?(?:[uµnmp]?M|[uµnm]?mol|[uµnm]?g|[um]?L|1/min|1/h|h|min|d|days?|weeks?|%|L/min|L/h|mL/min|"
+    r"g/mol|[uµnm]g/mL|mg/mL|cells|fold)\b)"
+)
+
+
+_OPERATOR_BEFORE_NUMBER = re.compile(r"(?<=[<>=]) (?=[-+]?\d)")
+
+
+def keep_together(text: str) -> str:
+    """``text`` with a no-break space between a number and its unit and after a comparison (>= 11), so that a line
+    never breaks between them."""
+    return _OPERATOR_BEFORE_NUMBER.sub("\u00a0", _UNIT_AFTER_NUMBER.sub("\u00a0", text))
+
+
+def list_groups(blocks: tuple[str | Table | Note, ...]) -> Iterator[str | Table | Note | list[str]]:
+    """The blocks with runs of "- " paragraphs gathered into lists (for renderers that have real lists)."""
+    run: list[str] = []
+    for b in blocks:
+        if isinstance(b, str) and b.startswith("- "):
+            run.append(b[2:])
+            continue
+        if run:
+            yield run
+            run = []
+        yield b
+    if run:
+        yield run
+
+
+def _strings(data: object) -> Iterator[str]:
+    if isinstance(data, str):
+        yield data
+    elif isinstance(data, dict):
+        for v in data.values():
+            yield from _strings(v)
+    elif isinstance(data, (list, tuple)):
+        for v in data:
+            yield from _strings(v)
+
+
+def _resolve_data(data: object) -> object:
+    if isinstance(data, str):
+        return resolve(data)
+    if isinstance(data, dict):
+        return {k: _resolve_data(v) for k, v in data.items()}
+    if isinstance(data, (list, tuple)):
+        return [_resolve_data(v) for v in data]
+    return data
+
+
+def cite_data(data: dict[str, object]) -> dict[str, object]:
+    """JSON-ready ``data`` with citation markers resolved and a ``references`` list of exactly the sources cited.
+
+    Idempotent: references already listed in ``data`` are kept and new ones appended.
+    """
+    known = load_sources()
+    keys = [k for k in cited_keys(_strings(data)) if k in known]
+    earlier = data.get("references")
+    out = _resolve_data({k: v for k, v in data.items() if k != "references"})
+    assert isinstance(out, dict)
+    listed = list(earlier) if isinstance(earlier, list) else []
+    have = {r.get("cited_as") for r in listed if isinstance(r, dict)}
+    out["references"] = listed + [
+        {
+            "cited_as": known[k].short,
+            "citation": full_citation(k),
+            "authors": known[k].authors,
+            "title": known[k].title,
+            "published": known[k].published,
+            "year": known[k].year,
+            "locator": known[k].locator,
+            "doi": known[k].doi or None,
+            "url": known[k].url or None,
+            "kind": known[k].kind,
+            "read": known[k].read,
+        }
+        for k in keys
+        if known[k].short not in have
+    ]
+    return out
+
+
+def _plural(noun: str) -> str:
+    head, _, last = noun.rpartition(" ")
+    return f"{head} {last}s".strip() if head else f"{noun}s"
+
+
+def _cap(word: str) -> str:
+    return word[:1].upper() + word[1:]
+
+
+@lru_cache(maxsize=8)
+def _term_pattern(terms: Terms) -> tuple[re.Pattern[str], dict[str, str]]:
+    """One pattern for every older word (longest first) and the replacement of each match, for ``terms``."""
+    pairs = (
+        ("victim drugs", _plural(terms.object)),
+        ("victim drug", terms.object),
+        ("victims", _plural(terms.object)),
+        ("victim", terms.object),
+        ("perpetrators", _plural(terms.precipitant)),
+        ("perpetrator", terms.precipitant),
+    )
+    table: dict[str, str] = {}
+    for old, new in pairs:
+        article = "an" if new[:1].lower() in "aeiou" else "a"  # "a victim" -> "an object drug"
+        table[f"a {old}"] = f"{article} {new}"
+        table[f"A {old}"] = f"{_cap(article)} {new}"
+        table[old] = new
+        table[_cap(old)] = _cap(new)
+    words = "|".join(re.escape(w) for w in sorted(table, key=len, reverse=True))
+    # not inside a file key (perpetrator.half_life, [victim]): those name what the user typed
+    return re.compile(rf"(?<![\[.\w])(?:{words})(?![.\w])"), table
+
+
+def speak(text: str, terms: Terms, protect: tuple[str, ...] = ()) -> str:
+    """``text`` in the rule set's words (ICH M12: precipitant, object drug), leaving the ``protect``ed strings
+    (what the user typed: title, drug names, notes) exactly as written."""
+    if terms.precipitant == "perpetrator" and terms.object == "victim":
+        return text
+    if "erpetrator" not in text and "ictim" not in text:
+        return text
+    pattern, table = _term_pattern(terms)
+    keep = sorted({p for p in protect if p}, key=len, reverse=True)
+    pieces = re.split("(" + "|".join(re.escape(p) for p in keep) + ")", text) if keep else [text]
+    for i in range(0, len(pieces), 2):  # even pieces lie outside the protected strings
+        pieces[i] = pattern.sub(lambda m: table[m.group(0)], pieces[i])
+    return "".join(pieces)
+
+
+def speak_sections(sections: list[Section], terms: Terms, protect: tuple[str, ...] = ()) -> list[Section]:
+    """The sections in the rule set's words (see :func:`speak`)."""
+
+    def say(t: str) -> str:
+        return speak(t, terms, protect)
+
+    def block(b: str | Table | Note) -> str | Table | Note:
+        if isinstance(b, Table):
+            return Table(headers=tuple(say(h) for h in b.headers), rows=tuple(tuple(say(c) for c in r) for r in b.rows))
+        if isinstance(b, Note):
+            return Note(text=say(b.text), kind=b.kind)
+        return say(b)
+
+    return [Section(title=say(s.title), blocks=tuple(block(b) for b in s.blocks)) for s in sections]
+
+
+def speak_data(data: object, terms: Terms, protect: tuple[str, ...] = ()) -> object:
+    """JSON-ready data with its text values (not its keys) in the rule set's words."""
+    if isinstance(data, str):
+        return speak(data, terms, protect)
+    if isinstance(data, dict):
+        return {k: speak_data(v, terms, protect) for k, v in data.items()}
+    if isinstance(data, list):
+        return [speak_data(v, terms, protect) for v in data]
+    return data
+
+
 def _text_table(table: Table, width: int) -> list[str]:
     cols = len(table.headers)
     widths = [max(len(h), 1) for h in table.headers]
@@ -106,21 +348,26 @@ def _text_table(table: Table, width: int) -> list[str]:
 
 def render_text(sections: list[Section], width: int = 100) -> str:
     """Plain text for a terminal: every string is passed through :func:`terminal_safe` before it is laid out."""
+    sections = cite(sections)
     t = terminal_safe
     out: list[str] = []
     for section in sections:
         title = t(section.title)
         out.append("")
-        out.append(title.upper() if title else "")
+        out.append(title)  # as written: upper-casing would turn a unit such as (uM) into (UM)
         out.append("=" * min(len(title), width) if title else "")
         for block in section.blocks:
             if isinstance(block, Table):
+                block = without_empty_columns(block)
                 safe = Table(headers=tuple(t(h) for h in block.headers), rows=tuple(tuple(t(c) for c in row) for row in block.rows))
                 out.extend(_text_table(safe, width))
                 out.append("")
             elif isinstance(block, Note):
                 prefix = "!! " if block.kind == "caution" else ">> "
                 out.extend(textwrap.wrap(t(block.text), width, initial_indent=prefix, subsequent_indent="   "))
+            elif block.startswith("- "):
+                # list items (warnings, references): an address or a long name is never cut, at a hyphen or anywhere
+                out.extend(textwrap.wrap(t(block), width, subsequent_indent="  ", break_long_words=False, break_on_hyphens=False) or [""])
             else:
                 out.extend(textwrap.wrap(t(block), width) or [""])
     return "\n".join(out).strip("\n") + "\n"
@@ -131,6 +378,7 @@ def _md_cell(text: str) -> str:
 
 
 def render_markdown(sections: list[Section], title: str = "") -> str:
+    sections = cite(sections)
     out: list[str] = []
     if title:
         out += [f"# {md_escape(title)}", ""]
@@ -139,6 +387,7 @@ def render_markdown(sections: list[Section], title: str = "") -> str:
             out += [f"## {md_escape(section.title)}", ""]
         for block in section.blocks:
             if isinstance(block, Table):
+                block = without_empty_columns(block)
                 out.append("| " + " | ".join(_md_cell(h) for h in block.headers) + " |")
                 out.append("|" + "|".join("---" for _ in block.headers) + "|")
                 for row in block.rows:
@@ -146,6 +395,8 @@ def render_markdown(sections: list[Section], title: str = "") -> str:
                 out.append("")
             elif isinstance(block, Note):
                 out += [f"> **{'Caution' if block.kind == 'caution' else 'Result'}:** {md_escape(block.text)}", ""]
+            elif block.startswith("- "):  # a list item of ours: the marker stays a marker, the text is escaped
+                out += ["- " + md_escape(block[2:]), ""]
             else:
                 out += [md_escape(block), ""]
     return "\n".join(out).rstrip("\n") + "\n"
@@ -153,6 +404,7 @@ def render_markdown(sections: list[Section], title: str = "") -> str:
 
 def render_html_body(sections: list[Section]) -> str:
     """HTML for the sections; every string is escaped."""
+    sections = cite(sections)
     e = html.escape
     out: list[str] = []
     for section in sections:

@@ -11,7 +11,7 @@ from ..kinetics.binding import BindingPrediction, UnboundConstant
 from ..kinetics.engine import Estimate, FitResult
 from ..kinetics.fitting import LABELS, ModelComparison
 from ..kinetics.ic50 import IC50Fit, KiFromIC50
-from .document import Note, Section, Table, render_markdown, render_text
+from .document import Note, Section, Table, cite_data, render_markdown, render_text
 from .numbers import fmt
 
 __all__ = ["comparison_to_dict", "fit_sections", "format_comparison", "format_ic50", "ic50_to_dict"]
@@ -272,14 +272,14 @@ def format_comparison(
 ) -> str:
     """The comparison as ``text``, ``markdown`` or ``json``."""
     if fmt_name == "json":
-        return json.dumps(comparison_to_dict(comp, unbound=unbound, binding=binding), indent=2) + "\n"
+        return json.dumps(cite_data(comparison_to_dict(comp, unbound=unbound, binding=binding)), indent=2) + "\n"
     sections = fit_sections(comp, unbound=unbound, binding=binding, plots=plots)
     if fmt_name == "markdown":
         text = render_markdown(sections, title="Incubation fit")
         return text + (f"\n```\n{plots}```\n" if plots else "")
     text = render_text(sections, width=width)
     if plots:
-        marker = "DIAGNOSTIC PLOT\n===============\n"
+        marker = "Diagnostic plot\n===============\n"
         text = text.replace(marker, marker + plots + "\n", 1)
     return text
 
@@ -351,7 +351,7 @@ def format_ic50(
 ) -> str:
     """An IC50 fit (and its Cheng-Prusoff Ki, and Ki,u) as ``text``, ``markdown`` or ``json``."""
     if fmt_name == "json":
-        return json.dumps(ic50_to_dict(result, ki, unbound), indent=2) + "\n"
+        return json.dumps(cite_data(ic50_to_dict(result, ki, unbound)), indent=2) + "\n"
     f = result.fit
     level = f"{f.level:.0%}"
     sections = [

@@ -15,17 +15,30 @@ import base64
 import hashlib
 import html
 import platform
+import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 from datetime import datetime
+from pathlib import Path
 
 from .. import __version__
 from ..assessment import Assessment
 from ..cautions import CAUTION_LINE
 from ..kinetics.conversion import CHENG_PRUSOFF_SOURCE
 from ..uncertainty import Sensitivity, UncertaintyResult
-from .assessment import assessment_sections
-from .document import Note, Section, Table, md_escape, render_markdown
+from .assessment import assessment_sections, user_text
+from .document import (
+    Note,
+    Section,
+    Table,
+    cite,
+    keep_together,
+    list_groups,
+    md_escape,
+    render_markdown,
+    speak_sections,
+    without_empty_columns,
+)
 from .svg import fm_curves_svg, histogram_svg, tornado_svg
 from .uncertainty import sensitivity_sections, uncertainty_sections
 
@@ -46,9 +59,9 @@ class ReportPart:
 
 def _equations(a: Assessment) -> Section:
     rows = [
-        ("Imax,u", "fu,p x Cmax (fu,p raised to the rule set's floor unless measured and allowed)", "S7, S1"),
-        ("Igut", "Dose / 250 mL (oral perpetrator)", "S7, S8"),
-        ("Iin,max,u", "fu,p x (Cmax + Fa x Fg x ka x Dose / (Qh x Rb))", "S7, S8, S10"),
+        ("Imax,u", "fu,p x Cmax (fu,p raised to the rule set's floor unless measured and allowed)", "[@dmd2019inlet]"),
+        ("Igut", "Dose / 250 mL (oral perpetrator)", "[@dmd2019inlet]"),
+        ("Iin,max,u", "fu,p x (Cmax + Fa x Fg x ka x Dose / (Qh x Rb))", "[@dmd2019inlet] (Tables 7, 8); [@jpetverinurad] (Table 7)"),
         ("I,ent", "fu,gut x Fa x ka x Dose / Qent", "from memory"),
         (
             "Ki,u",
@@ -61,14 +74,14 @@ def _equations(a: Assessment) -> Section:
     for r in a.screen:
         if r.criterion not in seen:
             seen.add(r.criterion)
-            rows.append((r.label, r.equation, f"rule set {a.rules.id}"))
+            rows.append((r.label, r.equation, f"rule set {a.rules.id}: {r.cutoff.source}"))
     rows += [
-        ("reversible term", "1 / (1 + sum [I] / Ki,u)", "Fahmi et al. 2008 (net-effect model)"),
-        ("inactivation term", "kdeg / (kdeg + sum kinact [I] / (KI,u + [I]))", "Fahmi et al. 2008"),
-        ("induction term", "1 + d x sum Emax [I] / (EC50,u + [I])", "Fahmi et al. 2008"),
-        ("AUCR liver", "1 / (sum fm x activity + (1 - sum fm)), [I] = Iin,max,u", "Fahmi et al. 2008"),
-        ("AUCR gut", "1 / (activity x (1 - Fg) + Fg), [I] = I,ent, gut-wall enzyme only", "Fahmi et al. 2008"),
-        ("AUCR", "AUCR gut x AUCR liver", "Fahmi et al. 2008"),
+        ("reversible term", "1 / (1 + sum [I] / Ki,u)", "[@fahmi2008] (net-effect model; structure seen in [@guengerich2022])"),
+        ("inactivation term", "kdeg / (kdeg + sum kinact [I] / (KI,u + [I]))", "[@fahmi2008]"),
+        ("induction term", "1 + d x sum Emax [I] / (EC50,u + [I])", "[@fahmi2008]; d as in [@lee2024]"),
+        ("AUCR liver", "1 / (sum fm x activity + (1 - sum fm)), [I] = Iin,max,u", "[@fahmi2008]"),
+        ("AUCR gut", "1 / (activity x (1 - Fg) + Fg), [I] = I,ent, gut-wall enzyme only", "[@fahmi2008]"),
+        ("AUCR", "AUCR gut x AUCR liver", "[@fahmi2008]"),
         (
             "exposure ratio of a regimen",
             "AUCR x dose / usual dose x usual interval / interval; offered only inside the no-effect boundary",
@@ -95,7 +108,7 @@ def _equations(a: Assessment) -> Section:
         title="Equations used",
         blocks=(
             Table(headers=("quantity", "equation", "source"), rows=tuple(rows)),
-            "Source keys (S1, S7 ...) are listed in README.md and reference_tables/README.md.",
+            "Sources are cited by author and year; the references at the end of this report give them in full.",
         ),
     )
 
@@ -107,7 +120,7 @@ def _rule_set(a: Assessment) -> Section:
         ("title", r.title, ""),
         ("version", r.version, ""),
         ("table version", r.table_version, ""),
-        ("file", r.path, ""),
+        ("guidance", r.source or "-", ""),
         ("fu,p floor", f"{r.fu_plasma_floor.value:g}", f"{r.fu_plasma_floor.source} ({r.fu_plasma_floor.status})"),
         (
             "mechanistic-model inhibition cutoff (AUCR >=)",
@@ -133,7 +146,10 @@ def report_parts(
     generated_at: datetime,
 ) -> list[ReportPart]:
     """The report as sections with their figures, in reading order."""
-    base = assessment_sections(a)
+    base = assessment_sections(a, references=False)
+    if base and not base[0].title:  # the page header shows the title and the invented notice once
+        head = tuple(b for b in base[0].blocks if not (isinstance(b, str) and (b.startswith("Scenario: ") or "INVENTED" in b)))
+        base[0] = Section(title="", blocks=head)
     titles = [s.title for s in base]
     cut = titles.index("Dose suggestion") if "Dose suggestion" in titles else len(base)
     parts = [ReportPart(section=s) for s in base[:cut]]
@@ -142,7 +158,7 @@ def report_parts(
     parts[at:at] = [ReportPart(section=_rule_set(a)), ReportPart(section=_equations(a))]
     boundary = a.dose.boundary
     if spread is not None:
-        u = uncertainty_sections(spread)[0]
+        u = uncertainty_sections(spread, a.scenario)[0]
         thresholds = sorted({b for _, b, _ in spread.exceedance})
         fig = Figure(
             svg=histogram_svg(spread.total, tuple(spread.percentile(q) for q in (5.0, 50.0, 95.0)), thresholds),  # type: ignore[arg-type]
@@ -156,12 +172,12 @@ def report_parts(
                     title="Uncertainty of the AUC ratio",
                     blocks=(
                         "No input distributions were declared, so no spread is shown: the AUC ratio above is a point estimate. "
-                        "Declare them with --vary PATH=SPEC or --spec FILE.toml (see README, 'Uncertainty').",
+                        "Declare them with --vary PATH=SPEC or --spec FILE.toml (interact report --help lists both).",
                     ),
                 )
             )
         )
-    s = sensitivity_sections(sens)[0]
+    s = sensitivity_sections(sens, a.scenario)[0]
     figs = [
         Figure(
             svg=tornado_svg(sens.bars, sens.point_total, boundary),
@@ -187,7 +203,7 @@ def report_parts(
         ("scenario file", source_name),
         ("scenario file SHA-256", digest),
         ("generated", generated_at.isoformat(timespec="seconds")),
-        ("rule set", f"{pv.rules_id} version {pv.rules_version}, table {pv.rules_table_version} ({pv.rules_path})"),
+        ("rule set", f"{pv.rules_id} version {pv.rules_version}, table {pv.rules_table_version} (file {Path(pv.rules_path).name})"),
         *((f"{k} table", ver) for k, ver in pv.table_versions),
     ]
     if spread is not None:
@@ -198,7 +214,11 @@ def report_parts(
             )
         )
     parts.append(ReportPart(section=Section(title="Provenance", blocks=(Table(headers=("item", "value"), rows=tuple(rows)),))))
-    return parts
+    # in the rule set's words; citations resolved once over the whole report, which then ends with exactly the
+    # sources it cites
+    resolved = cite(speak_sections([p.section for p in parts], a.rules.terms, user_text(a)))
+    out = [ReportPart(section=sec, figures=p.figures) for sec, p in zip(resolved, parts, strict=False)]
+    return out + [ReportPart(section=sec) for sec in resolved[len(parts) :]]
 
 
 _CSS = """
@@ -209,7 +229,12 @@ h1 { font-size: 1.5rem; margin-bottom: 0.3rem; }
 h2 { font-size: 1.15rem; border-bottom: 1px solid var(--rule); padding-bottom: 0.2rem; margin-top: 2rem; }
 .flag { display: inline-block; padding: 0.2rem 0.6rem; border: 1px solid var(--ink); font-weight: bold; }
 table { border-collapse: collapse; margin: 0.6rem 0 1rem; width: 100%; font-size: 12.5px; }
-th, td { border: 1px solid var(--rule); padding: 0.25rem 0.4rem; text-align: left; vertical-align: top; overflow-wrap: anywhere; }
+.wide { overflow-x: auto; }
+th, td { border: 1px solid var(--rule); padding: 0.25rem 0.4rem; text-align: left; vertical-align: top;
+         overflow-wrap: break-word; hyphens: none; }
+td.num { white-space: nowrap; }
+ul { margin: 0.4rem 0 1rem; padding-left: 1.4rem; }
+li { margin: 0.15rem 0; }
 th { background: #f2f2f2; }
 .note { padding: 0.5rem 0.7rem; border-left: 4px solid #b36b00; background: var(--caution); }
 .note.result { border-left-color: #0b5394; background: var(--result); }
@@ -229,15 +254,29 @@ footer { margin-top: 2.5rem; color: var(--muted); font-size: 12px; border-top: 1
 """
 
 
-def _block_html(block: str | Table | Note) -> str:
+_SHORT_VALUE = re.compile(r"^[-+<>=~ ]*[\d.,]+(?:e[-+]?\d+)?(?:\u00a0\S+)?$")
+
+
+def _cell(text: str) -> str:
+    """A table cell: numbers kept with their units; a cell that is one short value never wraps."""
+    shown = keep_together(text)
+    cls = ' class="num"' if _SHORT_VALUE.match(shown) else ""
+    return f"<td{cls}>{html.escape(shown)}</td>"
+
+
+def _block_html(block: str | Table | Note | list[str]) -> str:
     e = html.escape
+    if isinstance(block, list):
+        return "<ul>" + "".join(f"<li>{e(keep_together(item))}</li>" for item in block) + "</ul>"
     if isinstance(block, Table):
+        block = without_empty_columns(block)
         head = "".join(f"<th>{e(h)}</th>" for h in block.headers)
-        body = "".join("<tr>" + "".join(f"<td>{e(c)}</td>" for c in row) + "</tr>" for row in block.rows)
-        return f"<table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"
+        body = "".join("<tr>" + "".join(_cell(c) for c in row) + "</tr>" for row in block.rows)
+        # a table wider than the page scrolls inside its own box instead of squeezing words apart
+        return f'<div class="wide"><table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table></div>'
     if isinstance(block, Note):
-        return f'<p class="note {e(block.kind)}">{e(block.text)}</p>'
-    return f"<p>{e(block)}</p>"
+        return f'<p class="note {e(block.kind)}">{e(keep_together(block.text))}</p>'
+    return f"<p>{e(keep_together(block))}</p>"
 
 
 def render_report_html(a: Assessment, parts: Sequence[ReportPart]) -> str:
@@ -269,7 +308,7 @@ def render_report_html(a: Assessment, parts: Sequence[ReportPart]) -> str:
         out.append("<section>")
         if sec.title:
             out.append(f"<h2>{e(sec.title)}</h2>")
-        out.extend(_block_html(b) for b in sec.blocks)
+        out.extend(_block_html(b) for b in list_groups(sec.blocks))
         for fig in part.figures:
             out.append(f"<figure>{fig.svg}<figcaption>{e(fig.caption)}</figcaption></figure>")
         out.append("</section>")

@@ -8,7 +8,7 @@ from typing import Any
 
 from ..kinetics.inactivation import CurveFit, Estimate, InactivationFit
 from ..kinetics.induction import InductionFit
-from .document import Note, Section, Table, render_markdown, render_text
+from .document import Note, Section, Table, cite_data, render_markdown, render_text
 from .numbers import fmt
 
 __all__ = ["format_mechanism_fit", "mechanism_fit_to_dict"]
@@ -126,7 +126,7 @@ def mechanism_fit_to_dict(result: InactivationFit | InductionFit, source: str) -
 
 def format_mechanism_fit(result: InactivationFit | InductionFit, source: str, fmt_name: str = "text", width: int = 100) -> str:
     if fmt_name == "json":
-        return json.dumps(mechanism_fit_to_dict(result, source), indent=2, allow_nan=False) + "\n"
+        return json.dumps(cite_data(mechanism_fit_to_dict(result, source)), indent=2, allow_nan=False) + "\n"
     sections = _sections(result, source)
     if fmt_name == "markdown":
         return render_markdown(sections, title=sections[0].title)

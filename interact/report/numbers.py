@@ -21,7 +21,8 @@ def fmt(value: float | None, sig: int = SIG) -> str:
         return "not a number"
     if value == 0:
         return "0"
-    mag = math.floor(math.log10(abs(value)))
+    # the order of magnitude after rounding: 9.9996 rounds to 10.0, not "10.00"
+    mag = math.floor(math.log10(abs(float(f"{value:.{sig - 1}e}"))))
     if mag >= 6 or mag <= -4:
         return f"{value:.{sig - 1}e}"
     decimals = max(sig - 1 - mag, 0)

@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
-from ..tables import load_classes, load_physiology, load_rules, load_targets, rule_set_names
-from .document import Section, Table, render_markdown, render_text
+from pathlib import Path
+
+from ..tables import STATUS_MEANINGS, load_binding, load_classes, load_physiology, load_rules, load_targets, rule_set_names
+from .document import Section, Table, cite, render_markdown, render_text
 
 __all__ = ["format_tables"]
 
@@ -51,12 +53,19 @@ def format_tables(rules: str | None = None, fmt_name: str = "text") -> str:
                         c.multiplier.source,
                     )
                 )
+        if rs.terms.source:
+            rows.append(
+                ("words for the two drugs", f"{rs.terms.precipitant}, {rs.terms.object}", _status(rs.terms.status), rs.terms.source)
+            )
         for item in rs.physiology:
             rows.append((item.name, str(item.value), _status(item.status), item.source))
         sections.append(
             Section(
                 title=f"Rule set {rs.id}: {rs.title}",
-                blocks=(Table(headers=("item", "value", "status", "source"), rows=tuple(rows)), f"File: {rs.path}"),
+                blocks=(
+                    Table(headers=("item", "value", "status", "source"), rows=tuple(rows)),
+                    f"Guidance: {rs.source or 'not named'}. File: {Path(rs.path).name}",
+                ),
             )
         )
     phys = tuple((p.name, str(p.value), _status(p.status), p.source) for p in load_physiology())
@@ -83,13 +92,30 @@ def format_tables(rules: str | None = None, fmt_name: str = "text") -> str:
     sections.append(Section(title="Classes by AUC ratio", blocks=(Table(headers=("item", "value", "status", "source"), rows=tuple(rows)),)))
     trows = []
     for t in load_targets():
-        kd = []
-        if t.kdeg_liver is not None:
-            kd.append(f"liver {t.kdeg_liver.value} ({_status(t.kdeg_liver.status)})")
-        if t.kdeg_gut is not None:
-            kd.append(f"gut {t.kdeg_gut.value} ({_status(t.kdeg_gut.status)})")
-        trows.append((t.name, t.group, ", ".join(t.aliases) or "-", "yes" if t.gut_wall else "no", "; ".join(kd) or "-"))
-    sections.append(Section(title="Targets", blocks=(Table(headers=("name", "group", "aliases", "gut wall", "kdeg"), rows=tuple(trows)),)))
+        for site, kd in (("liver", t.kdeg_liver), ("gut", t.kdeg_gut)):
+            if kd is not None:
+                trows.append((t.name, t.group, site, str(kd.value), _status(kd.status), kd.source + (f" {kd.note}" if kd.note else "")))
+        if t.kdeg_liver is None and t.kdeg_gut is None:
+            trows.append((t.name, t.group, "-", "-", "-", "-"))
+    sections.append(
+        Section(
+            title="Targets and enzyme turnover (kdeg)",
+            blocks=(Table(headers=("name", "group", "site", "kdeg", "status", "source"), rows=tuple(trows)),),
+        )
+    )
+    brows = []
+    for eq in load_binding():
+        brows.append((eq.title, "equation", eq.equation, _status(eq.status), eq.source + (f" {eq.note}" if eq.note else "")))
+        for v in eq.values:
+            brows.append((eq.title, v.name, str(v.value), _status(v.status), v.source + (f" {v.note}" if v.note else "")))
+    sections.append(
+        Section(
+            title="Nonspecific-binding equations (fu,inc)",
+            blocks=(Table(headers=("equation", "item", "value", "status", "source"), rows=tuple(brows)),),
+        )
+    )
+    sections.append(Section(title="Status words", blocks=tuple(f"- {k}: {v}" for k, v in STATUS_MEANINGS.items())))
+    sections = cite(sections, every_source=True)
     if fmt_name == "markdown":
         return render_markdown(sections, title="interact reference tables")
     return render_text(sections, width=110)

@@ -7,10 +7,13 @@ import math
 from typing import Any
 
 import numpy as np
+import pint
 
+from .. import units
 from ..cautions import CAUTION_LINE
-from ..uncertainty import Sensitivity, UncertaintyResult
-from .document import Note, Section, Table, render_markdown, render_text
+from ..scenario import Scenario
+from ..uncertainty import Input, Sensitivity, TornadoBar, UncertaintyResult
+from .document import Note, Section, Table, cite_data, render_markdown, render_text
 from .numbers import fmt, fmt_ratio
 
 __all__ = ["JSON_SCHEMA", "format_uncertainty", "sensitivity_sections", "uncertainty_sections", "uncertainty_to_dict"]
@@ -31,7 +34,7 @@ def _pct(p: float) -> str:
     return f"{100 * p:.1f}%"
 
 
-def uncertainty_sections(r: UncertaintyResult) -> list[Section]:
+def uncertainty_sections(r: UncertaintyResult, scenario: Scenario | None = None) -> list[Section]:
     """The spread of the AUC ratio as document sections."""
     p5, p50, p95 = (r.percentile(q) for q in (5.0, 50.0, 95.0))
     moderate = next((p for op, b, p in r.exceedance if op == ">=" and b == 2.0), None)
@@ -46,7 +49,7 @@ def uncertainty_sections(r: UncertaintyResult) -> list[Section]:
         (
             v.input.path,
             v.input.label,
-            f"{fmt(v.input.value, 4)} {v.input.unit}".strip(),
+            _point_as_given(v.input.value, v.input, scenario),
             v.distribution.describe(v.input.unit),
             v.distribution.text,
             str(v.adjusted) if v.adjusted else "-",
@@ -112,12 +115,53 @@ def regimen_probability_blocks(r: UncertaintyResult) -> list[str | Table | Note]
     ]
 
 
-def sensitivity_sections(s: Sensitivity) -> list[Section]:
-    """Tornado, crossings and the AUCR-versus-fm table as document sections."""
+def _given_at(scenario: Scenario | None, path: str) -> object:
+    """The value at a scenario input path (``perpetrator.inhibits[0].ki``), as the user gave it; None when absent."""
+    node: object = scenario
+    for part in path.split("."):
+        name, _, index = part.partition("[")
+        node = getattr(node, name, None)
+        if index:
+            items = node if isinstance(node, tuple) else ()
+            k = int(index.rstrip("]"))
+            node = items[k] if k < len(items) else None
+        if node is None:
+            return None
+    return node
+
+
+def _user_unit(inp: Input, scenario: Scenario | None) -> tuple[str, float]:
+    """The unit the user wrote ``inp`` in and the model-unit amount in one of it (1 when the user gave none)."""
+    given = _given_at(scenario, inp.path)
+    if not (isinstance(given, pint.Quantity) and inp.unit):
+        return inp.unit, 1.0
+    one = units.ureg.Quantity(1.0, units.unit_text(given))
+    if inp.kind == "concentration":
+        per = units.concentration_um(one, inp.molar_mass, field=inp.path)
+    elif inp.kind == "dose":
+        per = units.amount_umol(one, inp.molar_mass, field=inp.path)
+    else:
+        per = units.magnitude(one, inp.unit)
+    return units.unit_text(given), per
+
+
+def _range_as_given(b: TornadoBar, scenario: Scenario | None) -> str:
+    """The swing of an input in the unit the user wrote it in (mg, ng/mL ...), else in the model's unit."""
+    unit, per = _user_unit(b.input, scenario)
+    return f"{fmt(b.low / per)} to {fmt(b.high / per)} {unit}".strip()
+
+
+def _point_as_given(value: float, inp: Input, scenario: Scenario | None) -> str:
+    unit, per = _user_unit(inp, scenario)
+    return f"{fmt(value / per)} {unit}".strip()
+
+
+def sensitivity_sections(s: Sensitivity, scenario: Scenario | None = None) -> list[Section]:
+    """Tornado, crossings and the AUCR-versus-fm table as document sections (ranges in the units of ``scenario``)."""
     rows = tuple(
         (
-            b.input.path,
-            f"{fmt(b.low)} to {fmt(b.high)} {b.input.unit}".strip(),
+            b.input.label,
+            _range_as_given(b, scenario),
             fmt_ratio(b.aucr_low),
             fmt_ratio(b.aucr_high),
             fmt(b.effect),
@@ -225,15 +269,21 @@ def uncertainty_to_dict(r: UncertaintyResult, s: Sensitivity | None = None) -> d
 
 
 def format_uncertainty(
-    r: UncertaintyResult, s: Sensitivity | None = None, fmt_name: str = "text", *, title: str = "", width: int = 100
+    r: UncertaintyResult,
+    s: Sensitivity | None = None,
+    fmt_name: str = "text",
+    *,
+    title: str = "",
+    width: int = 100,
+    scenario: Scenario | None = None,
 ) -> str:
     """The result as ``text``, ``markdown`` or ``json``."""
     if fmt_name == "json":
-        return json.dumps(uncertainty_to_dict(r, s), indent=2, allow_nan=False) + "\n"
+        return json.dumps(cite_data(uncertainty_to_dict(r, s)), indent=2, allow_nan=False) + "\n"
     sections = [Section(title="", blocks=((f"Scenario: {title}",) if title else ()) + (Note(text=CAUTION_LINE),))]
-    sections += uncertainty_sections(r)
+    sections += uncertainty_sections(r, scenario)
     if s is not None:
-        sections += sensitivity_sections(s)
+        sections += sensitivity_sections(s, scenario)
     if fmt_name == "markdown":
         return render_markdown(sections, title=f"interact uncertainty: {title}" if title else "interact uncertainty")
     return render_text(sections, width=width)

@@ -18,6 +18,7 @@ from ..errors import InteractError
 from ..exposure import Setting
 from ..report.assessment import _origin
 from ..report.numbers import fmt
+from ..sources import resolve
 from ..tables import resolve_target
 from .form import FieldSpec, Path, get_path, local_check
 
@@ -182,4 +183,4 @@ def field_note(spec: FieldSpec, path: Path, key: str, text: str, data: dict[str,
         extra = _engine(spec, key, path, not text.strip(), data, a)
         if extra:
             parts.append(extra)
-    return "; ".join(parts), False
+    return resolve("; ".join(parts)), False

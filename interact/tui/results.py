@@ -17,8 +17,9 @@ from rich.style import Style
 from ..assessment import Assessment
 from ..cautions import DOSE_CAUTIONS, INCREASE_CAUTION
 from ..report.assessment import assessment_sections
-from ..report.document import Note, Section, Table
+from ..report.document import Note, Section, Table, cite
 from ..report.numbers import fmt_ratio
+from ..sources import resolve
 from .doc import Doc
 
 __all__ = ["Comparison", "compare", "flatten", "render_answer", "render_stale", "sections_doc"]
@@ -235,19 +236,19 @@ def render_answer(a: Assessment, comparison: Comparison | None = None, *, narrow
     if a.warnings:
         doc.para(("Warnings", st("heading")))
         for w in a.warnings:
-            doc.para((f"- {w}", st("warning")), hanging=2)
+            doc.para((f"- {resolve(w)}", st("warning")), hanging=2)
         doc.blank()
     if a.memory_values:
-        doc.para((f"Values from memory ({len(a.memory_values)}): verify before relying on them", st("heading")))
+        doc.para((f"Values from memory or inferred ({len(a.memory_values)}): verify before relying on them", st("heading")))
         for m in a.memory_values:
-            doc.para((f"- {m}", st("dim")), hanging=2)
+            doc.para((f"- {resolve(m)}", st("dim")), hanging=2)
     return doc
 
 
 def sections_doc(sections: list[Section]) -> Doc:
-    """Report sections (any of the report module's) as a document for the terminal."""
+    """Report sections (any of the report module's) as a document for the terminal, citations resolved."""
     doc = Doc()
-    for sec in sections:
+    for sec in cite(sections):
         if sec.title:
             doc.para((sec.title, STYLE["heading"]))
         for b in sec.blocks:

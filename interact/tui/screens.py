@@ -12,7 +12,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, Static
 
 from ..cautions import CAUTIONS, DOSE_CAUTIONS, INCREASE_CAUTION
-from ..tables import tables_dir
+from ..sources import cited_keys, full_citation, load_sources, resolve
 
 __all__ = ["AskPath", "CautionsScreen", "ConfirmDiscard", "HelpScreen", "LoadProblems", "equations_text"]
 
@@ -21,37 +21,37 @@ Where each number comes from (concentrations in uM; sources as named in the core
 and reference tables; 'from memory' = recalled, not verified against the primary text)
 
 Perpetrator concentrations (interact/exposure.py)
-  Imax,u    = fu,p x Cmax (fu,p raised to the rule set's floor unless measured)   DMD 2019;47:779 (S7), S1
-  Igut      = dose / 250 mL                                                   S7, S8 (all agencies)
-  Iin,max,u = fu,p x (Cmax + Fa*Fg x ka x Dose / (Qh x Rb))                     S7, S8, S10
+  Imax,u    = fu,p x Cmax (fu,p raised to the rule set's floor unless measured)   [@dmd2019inlet]
+  Igut      = dose / 250 mL                                                   [@dmd2019inlet] (all agencies)
+  Iin,max,u = fu,p x (Cmax + Fa*Fg x ka x Dose / (Qh x Rb))                     [@dmd2019inlet], [@jpetverinurad]
   I,ent     = fu,gut x Fa x ka x Dose / Qent (gut wall, mechanistic model)      from memory
-  Metabolites: their systemic Imax,u at every site                            S8 practice
+  Metabolites: their systemic Imax,u at every site                            [@jpetverinurad] (practice)
 
 Unbound constants (interact/constants.py, interact/kinetics/conversion.py)
   Ki,u = Ki x fu,inc (fu,inc empty: 1, Ki taken as unbound)
-  Ki from IC50, Cheng & Prusoff, Biochem Pharmacol 1973;22:3099:
+  Ki from IC50, [@chengprusoff1973]:
     competitive Ki = IC50 / (1 + [S]/Km); uncompetitive Ki = IC50 / (1 + Km/[S]);
     noncompetitive Ki = IC50; mixed IC50 = (Km + [S]) / (Km/Ki + [S]/(alpha Ki))
   Transporters: IC50 taken as Ki, as guidance does
 
 Basic static models (interact/screening.py; cutoffs from the chosen rule set)
-  R1      = 1 + sum(Imax,u / Ki,u), study indicated if R1 >= 1.02             S1 (FDA 2020), S2/S3 (M12)
-  R1,gut  = 1 + Igut / Ki,u, study indicated if >= 11 (Igut/Ki >= 10)          S8
-  R(OATP) = 1 + Iin,max,u / IC50, study indicated if >= 1.1                    S8; M12 value from memory
+  R1      = 1 + sum(Imax,u / Ki,u), study indicated if R1 >= 1.02             [@lee2024] (FDA 2020)
+  R1,gut  = 1 + Igut / Ki,u, study indicated if >= 11 (Igut/Ki >= 10)          [@jpetverinurad]
+  R(OATP) = 1 + Iin,max,u / IC50, study indicated if >= 1.1                    [@jpetverinurad]; M12 value inferred
   Each test's source and status is shown in the rule-set table (interact tables)
 
-Mechanistic static model (interact/prediction.py; Fahmi et al. DMD 2008;36:1698 net-effect form,
-structure seen in S14, equations from memory with the algebra checked)
+Mechanistic static model (interact/prediction.py; net-effect form of [@fahmi2008],
+structure seen in [@guengerich2022], equations from memory with the algebra checked)
   activity left = 1 / (1 + sum [I]/Ki,u)  (reversible; x inactivation x induction when given)
   liver: AUCR_h = 1 / (sum fm x activity_h + (1 - sum fm)), [I] = Iin,max,u
   gut:   AUCR_g = 1 / (activity_g x (1 - Fg) + Fg), [I] = I,ent, victim's Fg
-  total: AUCR = AUCR_g x AUCR_h; class bands FDA 2020 clinical guidance (from memory)
+  total: AUCR = AUCR_g x AUCR_h; class bands of [@fda2020clinical] (see interact tables)
   complete-inhibition ceiling: 1/(1 - sum fm inhibited) in the liver, 1/Fg in the gut
-  study indicated if AUCR >= 1.25 (from memory)
+  study indicated if AUCR >= 1.25 ([@vieira2014]; inferred for the guidance)
 
 Dose (interact/dosing.py; linear pharmacokinetics, common practice)
   exposure of a regimen = AUCR x dose / usual dose x usual tau / tau; only regimens inside the boundary are offered
-  act only outside the victim's no-effect boundary (ICH M12 5.3.1, default 0.8-1.25, S6)
+  act only outside the object drug's no-effect boundary (ICH M12 5.3.1 as quoted in [@bebac-m12], default 0.8-1.25)
   perpetrator dose ceiling: highest dose keeping AUCR <= upper boundary, concentrations
   taken as dose-proportional
 
@@ -62,19 +62,11 @@ Plots
 """
 
 
-def _source_keys() -> str:
-    """The source key list from the reference tables' README (S1, S7 ...), if installed."""
-    try:
-        text = (tables_dir() / "README.md").read_text(encoding="utf-8")
-    except OSError:
-        return ""
-    lines = [ln for ln in text.splitlines() if ln.startswith("- **S")]
-    return "Source keys\n" + "\n".join("  " + ln[2:].replace("**", "") for ln in lines) if lines else ""
-
-
 def equations_text() -> str:
-    keys = _source_keys()
-    return EQUATIONS + ("\n" + keys if keys else "")
+    """The equations with their citations resolved, then the full references they cite."""
+    keys = cited_keys((EQUATIONS,))
+    refs = "\n".join(f"  {load_sources()[k].short}: {full_citation(k)}" for k in keys)
+    return resolve(EQUATIONS) + ("\nReferences\n" + refs + "\n" if refs else "")
 
 
 class _Popup(ModalScreen[object]):

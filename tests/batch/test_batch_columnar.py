@@ -100,7 +100,7 @@ def _expected(result: BatchResult, top: int | None, clean=str) -> dict[str, list
         "phenotype": [v.phenotype[j] for j in jj],
         "exposure vs normal": flat(result.exposure),
         "class": [result.band_names[b] for b in flat(result.band)],
-        "study indicated": flat(result.study),
+        "study indicated (mechanistic model)": flat(result.study),
         "action": [ACTIONS[a] for a in flat(result.action)],
         "flags": ["; ".join(FLAGS[k] for k in range(len(FLAGS)) if bits >> k & 1) for bits in flat(result.flags)],
     }
@@ -136,7 +136,7 @@ def test_written_files_equal_the_results_in_memory(texts: tuple[str, str], top: 
     safe = _expected(result, top, terminal_safe)
     for name in OUTPUT_COLUMNS:
         column = got.column(name).to_pylist()
-        if name == "study indicated":
+        if name == "study indicated (mechanistic model)":
             assert column == ["yes" if x else "no" for x in safe[name]]
         else:
             assert column == safe[name], name  # exact: full precision

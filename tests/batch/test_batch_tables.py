@@ -136,7 +136,8 @@ def test_markdown_renders_a_table() -> None:
     out = io.StringIO()
     write_results(result, out, "markdown")
     text = out.getvalue()
-    assert "| rank | perpetrator | victim |" in text and "|---|" in text and "not clinical advice" in text
+    # a document for reading speaks the default rule set's words (ICH M12: precipitant, object drug)
+    assert "| rank | precipitant | object drug |" in text and "|---|" in text and "not clinical advice" in text
 
 
 def test_cli_writes_file_and_reports(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:

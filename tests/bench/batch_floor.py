@@ -77,7 +77,7 @@ def main(p_path: str, v_path: str, out_path: str, constants: str) -> None:
     order = np.argsort(-np.abs(np.log(total.ravel())), kind="stable")
     # the same 17 columns, the same writer
     names = ["rank", "perpetrator", "victim", "Imax,u (uM)", "Iin,max,u (uM)", "Igut (uM)", "I,ent (uM)", "basic models", "AUCR gut"]
-    names += ["AUCR liver", "AUCR", "phenotype", "exposure vs normal", "class", "study indicated", "action", "flags"]
+    names += ["AUCR liver", "AUCR", "phenotype", "exposure vs normal", "class", "study indicated (mechanistic model)", "action", "flags"]
     p_text, v_text, basic_text = pa.array(p_names.tolist()), pa.array(v_names.tolist()), pa.array(basic)
     band_text = pa.array(c["band_names"])
     action_text = pa.array(["no change", "reduce dose", "increase dose"])

@@ -295,7 +295,10 @@ def test_kdeg_and_mechanisms_appear_in_text_and_json() -> None:
     data = json.loads(format_assessment(a, "json"))
     assert data == json.loads(json.dumps(assessment_to_dict(a)))
     kd = [s for s in data["settings"] if s["name"].startswith("kdeg")]
-    assert {s["status"] for s in kd} == {"from memory"}
+    # hepatic CYP3A kdeg 0.0193 1/h: Rowland Yeo et al. 2011 (abstract); the gut value is from memory
+    assert {s["status"] for s in kd} == {"from memory", "seen in source"}
+    assert any("Rowland Yeo et al. 2011" in s["source"] for s in kd)
+    assert "Rowland Yeo et al. 2011" in {r["cited_as"] for r in data["references"]}
     mech = {m["mechanism"] for m in data["auc_ratio"]["by_mechanism"]}
     assert {"time-dependent", "induction"} <= mech
     crit = {r["criterion"] for r in data["screen"]}

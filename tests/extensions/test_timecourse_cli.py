@@ -53,7 +53,7 @@ def test_assess_text_has_course_and_timing(capsys: pytest.CaptureFixture[str], c
     assert main(["assess", str(EXAMPLE), "--width", "140"]) == 0
     out = capsys.readouterr().out
     for needle in (
-        "TIME COURSE (DYNAMIC CHECK)",
+        "Time course (dynamic check)",
         "AUC ratio, dynamic steady state",
         "Start:",
         "Stop:",
@@ -87,7 +87,7 @@ def test_assess_without_half_life_says_why(tmp_path: Path, capsys: pytest.Captur
     err = capsys.readouterr().err
     assert "perpetrator.half_life" in err and "Traceback" not in err
     assert main(["assess", str(path), "--time-course", "off"]) == 0
-    assert "TIME COURSE" not in capsys.readouterr().out
+    assert "Time course" not in capsys.readouterr().out
 
 
 def test_timecourse_command_json_plot_and_errors(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:

@@ -18,7 +18,7 @@ from interact.errors import InputError
 from interact.kinetics import conversion
 from interact.kinetics.binding import predict_fu_inc, rescale_fu_inc, unbound_constant, unbound_ki
 from interact.kinetics.ic50 import fit_ic50, ki_from_ic50_fit
-from interact.tables import load_binding
+from interact.tables import STATUSES, load_binding
 
 from .conftest import columns, read_table
 
@@ -72,11 +72,19 @@ def test_ic50_bad_input_is_named() -> None:
 def test_binding_table_rows_name_source_and_status() -> None:
     eqs = {e.id: e for e in load_binding()}
     assert set(eqs) == {"austin-2002", "hallifax-2006", "kilford-2008"}
+    # Austin et al. 2002: coefficients from memory; Hallifax & Houston 2006 and Kilford et al. 2008: coefficients
+    # seen in the httk package documentation (calc_hep_fu), a secondary source
+    assert eqs["austin-2002"].status == "from memory"
+    assert eqs["hallifax-2006"].status == eqs["kilford-2008"].status == "seen in a secondary source"
     for eq in eqs.values():
-        assert eq.source and eq.status == "from memory"
+        assert eq.source
         for item in eq.values:
-            assert item.source and item.status in ("seen in source", "from memory", "common practice")
-    # coefficients as recalled in the project's reference notes, section 4 (from memory)
+            assert item.source and item.status in STATUSES
+    # Kilford et al. 2008 (abstract): accurate up to logP/D 2.5 (corrected from 3.0)
+    assert eqs["kilford-2008"].number("accurate_below_lipophilicity") == 2.5
+    assert "rat" in eqs["austin-2002"].title
+    # coefficients: Austin as recalled in the project's reference notes, section 4 (from memory); Hallifax-Houston as
+    # printed in the httk documentation
     assert (eqs["austin-2002"].number("a"), eqs["austin-2002"].number("b")) == (0.56, -1.41)
     assert (eqs["hallifax-2006"].number("a2"), eqs["hallifax-2006"].number("a1"), eqs["hallifax-2006"].number("b")) == (
         0.072,
@@ -91,7 +99,7 @@ def test_microsomal_predictions_follow_the_stated_equations(logp: float) -> None
     h = predict_fu_inc(logp, method="hallifax-2006", protein_mg_per_ml=1.0)
     assert a.fu_inc == pytest.approx(1.0 / (1.0 + 10 ** (0.56 * logp - 1.41)))
     assert h.fu_inc == pytest.approx(1.0 / (1.0 + 10 ** (0.072 * logp**2 + 0.067 * logp - 1.126)))
-    assert a.from_memory and h.from_memory
+    assert a.from_memory and h.status == "seen in a secondary source"
     # linear binding: the prediction at 0.25 mg/mL equals rescaling the 1 mg/mL prediction
     low = predict_fu_inc(logp, method="hallifax-2006", protein_mg_per_ml=0.25)
     assert rescale_fu_inc(h.fu_inc, 1.0, 0.25) == pytest.approx(low.fu_inc, rel=1e-12)

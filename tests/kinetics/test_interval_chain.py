@@ -47,7 +47,7 @@ def test_fit_into_writes_the_profile_interval_and_its_method(tmp_path: Path, cap
     assert low == pytest.approx(ki.profile_low, rel=1e-5) and high == pytest.approx(ki.profile_high, rel=1e-5)
     assert "ki_ci 95% profile likelihood" in entry.origin
     assert main(["assess", str(scenario), "--format", "markdown"]) == 0
-    assert f"(interval {low:.3g}-{high:.3g})" in capsys.readouterr().out  # assess shows it
+    assert f"(interval {low:.3g}-{high:.3g} uM)" in capsys.readouterr().out  # assess shows it, with its unit
 
 
 def test_uncertainty_uses_the_carried_interval_by_default(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:

@@ -20,8 +20,10 @@ import pytest
 from interact import assess
 from interact.cautions import CAUTIONS, DOSE_CAUTIONS
 from interact.cli import main
+from interact.report.document import speak
 from interact.report.html import render_report_html, render_report_markdown, report_parts
 from interact.scenario import demo_path, dumps_scenario, load_scenario, loads_scenario
+from interact.tables import load_rules
 from interact.uncertainty import run_uncertainty, sensitivity
 
 EVIL = '<script>alert("x")</script> & "quotes" <img src=x onerror=alert(1)>'
@@ -31,7 +33,7 @@ SECTIONS = (
     "Inputs",
     "Rule set",
     "Equations used",
-    "Perpetrator concentrations (uM)",
+    "Precipitant concentrations (uM)",
     "Basic static models (ich-m12-2024)",
     "Mechanistic static model",
     "Uncertainty of the AUC ratio",
@@ -113,8 +115,9 @@ def test_every_section_and_provenance() -> None:
     assert "2026-01-02T03:04:05+00:00" in page
     assert "INVENTED scenario" in page
     assert "interact 0." in page and "classes table" in page
+    terms = load_rules().terms  # the default rule set, ICH M12: its words (precipitant, object drug)
     for caution in (*CAUTIONS, *DOSE_CAUTIONS):
-        assert html.escape(caution) in page  # in full
+        assert html.escape(speak(caution, terms)) in page  # in full
     assert "Iin,max,u" in page and "Cheng" in page  # equations
     assert "@media print" in page
 
@@ -122,8 +125,12 @@ def test_every_section_and_provenance() -> None:
 def test_self_contained_and_svg_well_formed() -> None:
     page, _ = _report(Path(demo_path()).read_text(encoding="utf-8"))
     assert "<link" not in page and "@import" not in page and "url(" not in page
-    # the only URL is the SVG namespace name, which is never fetched
-    assert set(re.findall(r"https?://[^\s\"'<>]+", page)) == {"http://www.w3.org/2000/svg"}
+    # nothing is fetched: no link or source attribute names a URL; the SVG namespace name and the sources' addresses,
+    # printed as text in the references, are the only URLs on the page
+    assert not re.search(r"(href|src)\s*=\s*[\"']?https?:", page)
+    urls = set(re.findall(r"https?://[^\s\"'<>]+", page)) - {"http://www.w3.org/2000/svg"}
+    references = page[page.index("<h2>References</h2>") :]
+    assert urls and all(u in references for u in urls)
     assert "default-src 'none'" in page
     svgs = re.findall(r"<svg.*?</svg>", page, flags=re.S)
     assert len(svgs) == 3  # histogram, tornado, fm curves
@@ -170,7 +177,24 @@ def test_cli_report_html_and_md(tmp_path: Path, capsys: pytest.CaptureFixture[st
     md = tmp_path / "out.md"
     assert main(["report", str(scen), "-o", str(md)]) == 0
     assert md.read_text(encoding="utf-8").startswith("# interact report:")
+    # each written file is named on standard error
+    assert capsys.readouterr().err.splitlines() == [f"interact: output written to {p.resolve()}" for p in (out, md)]
     assert main(["report", str(tmp_path / "missing.toml"), "-o", str(out)]) == 2
     err = capsys.readouterr().err
     assert err.startswith("interact: ") and err.count("\n") == 1
     assert out.read_text(encoding="utf-8") == page  # a failed run leaves the earlier file alone
+
+
+def test_sensitivity_rows_read_as_the_user_wrote_the_inputs(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    # the demo (invented) gives its dose in mg and Cmax in µg/mL: the swing is shown in those units, with readable labels
+    out = tmp_path / "r.md"
+    assert main(["report", str(demo_path()), "-o", str(out)]) == 0
+    text = out.read_text(encoding="utf-8")
+    sens = text[text.index("## Sensitivity") : text.index("## Sensitivity") + 4000]
+    dose = next(line for line in sens.splitlines() if line.startswith("| Dose of "))
+    cmax = next(line for line in sens.splitlines() if line.startswith("| Cmax of Corvexazole"))
+    assert dose.split("|")[2].strip().endswith(" mg") and "umol" not in sens
+    assert cmax.split("|")[2].strip().endswith(" µg/mL")
+    # 150 mg swung x/÷ 2 by default: 75 to 300 mg
+    assert dose.split("|")[2].strip() == "75.0 to 300 mg"
+    assert "perpetrator.inhibits[" not in sens  # labels, not file paths

@@ -21,6 +21,7 @@ from interact import assess, load_scenario
 from interact.cautions import CAUTION_LINE, DOSE_CAUTIONS
 from interact.report.numbers import fmt_ratio
 from interact.scenario import demo_path
+from interact.sources import resolve
 from interact.tui.app import InteractApp
 from interact.tui.screens import AskPath, ConfirmDiscard, HelpScreen, LoadProblems
 
@@ -83,7 +84,7 @@ async def test_field_shows_what_the_value_was_understood_as() -> None:
         assert ka.startswith("empty: 0.1 1/min used, default")
         assert app.assessment is not None
         setting = next(s for s in app.assessment.settings if s.name == "absorption_rate")
-        assert setting.origin in ("default", "rule set") and setting.source in ka
+        assert setting.origin in ("default", "rule set") and resolve(setting.source) in ka
 
 
 @asynctest
