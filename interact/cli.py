@@ -388,13 +388,13 @@ def _read_text(path: str, what: str) -> str:
     return read_text(path, what)
 
 
-def _write_streamed(args: argparse.Namespace, write) -> int:  # type: ignore[no-untyped-def]
-    """Call ``write(handle)``: to standard output, or through the one writer to ``args.output``."""
+def _write_streamed(args: argparse.Namespace, write, binary: bool = False) -> int:  # type: ignore[no-untyped-def]
+    """Call ``write(handle)``: to standard output, or through the one writer to ``args.output`` (bytes with ``binary``)."""
     from .files import open_output
 
     if _stdout(args.output):
         return int(write(sys.stdout))
-    with open_output(args.output, field="--output", inputs=_inputs(args), force=args.force) as out:
+    with open_output(args.output, field="--output", inputs=_inputs(args), force=args.force, binary=binary) as out:
         return int(write(out))
 
 
@@ -423,11 +423,13 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
     if args.format:
         fmt_name = args.format
     elif not _stdout(args.output):
-        fmt_name = {".json": "json", ".md": "markdown", ".markdown": "markdown", ".xlsx": "xlsx"}.get(
+        fmt_name = {".json": "json", ".md": "markdown", ".markdown": "markdown", ".parquet": "parquet", ".xlsx": "xlsx"}.get(
             Path(args.output or "").suffix.lower(), "csv"
         )
     else:  # a person at a terminal reads a rounded table; a pipe gets CSV
         fmt_name = "table" if sys.stdout.isatty() else "csv"
+    if fmt_name in ("parquet", "xlsx") and _stdout(args.output) and sys.stdout.isatty():
+        raise InputError("--format", fmt_name, f"is binary and would garble the terminal; write it to a file (-o results.{fmt_name})")
     if fmt_name == "xlsx":
         from datetime import UTC, datetime
 
@@ -441,7 +443,9 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         rows = result.pairs if args.top is None else min(args.top, result.pairs)
     else:
         width = shutil.get_terminal_size((100, 24)).columns
-        rows = _write_streamed(args, lambda h: write_results(result, h, fmt_name, top=args.top, width=width))
+        rows = _write_streamed(
+            args, lambda h: write_results(result, h, fmt_name, top=args.top, width=width), binary=fmt_name not in ("markdown", "table")
+        )
     if not _stdout(args.output) and not args.quiet:
         skipped = len(perps.skipped) + len(victims.skipped)
         sys.stderr.write(
@@ -620,11 +624,14 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--sheet", metavar="NAME", help="sheet of an .xlsx table to read (default: the first sheet)")
     p.add_argument("--victim-sheet", metavar="NAME", help="sheet of the victims' .xlsx table, when it differs from --sheet")
     p.add_argument(
-        "-o", "--output", metavar="FILE", help="write results to FILE (.csv, .json, .md or .xlsx) instead of standard output (- for it)"
+        "-o",
+        "--output",
+        metavar="FILE",
+        help="write results to FILE (.csv, .json, .parquet, .md or .xlsx) instead of standard output (- for it)",
     )
     p.add_argument(
         "--format",
-        choices=("csv", "json", "markdown", "table", "xlsx"),
+        choices=("csv", "json", "parquet", "markdown", "table", "xlsx"),
         help="output format (default: from the file name; to a terminal a rounded table, to a pipe csv)",
     )
     p.add_argument("--rules", metavar="NAME|PATH", help="rule set (default ich-m12-2024)")

@@ -99,8 +99,26 @@ def enterocyte_um(
     return np.multiply(fu_gut, np.multiply(np.multiply(fa, ka_per_min), dose_umol)) / np.asarray(qent_l_per_min)
 
 
+#: settings already read from the tables, per rule set object (kept alive by the entry, so its id stays its own):
+#: a batch table resolves the same eight settings for every row; parsing their unit text each time was a fifth of
+#: reading a perpetrator table (tests/bench/bench_batch.py)
+_SETTINGS: dict[tuple[int, str, str, str], tuple[RuleSet, Setting]] = {}
+
+
 def _table_setting(name: str, label: str, unit: str, rules: RuleSet) -> Setting:
-    """A physiology value from the rule set when it has one, else from physiology.toml."""
+    """A physiology value from the rule set when it has one, else from physiology.toml (remembered per rule set)."""
+    key = (id(rules), name, label, unit)
+    hit = _SETTINGS.get(key)
+    if hit is not None and hit[0] is rules:
+        return hit[1]
+    if len(_SETTINGS) > 1024:
+        _SETTINGS.clear()
+    setting = _read_table_setting(name, label, unit, rules)
+    _SETTINGS[key] = (rules, setting)
+    return setting
+
+
+def _read_table_setting(name: str, label: str, unit: str, rules: RuleSet) -> Setting:
     item: Sourced | None = rules.physiology_value(name)
     origin = "rule set"
     if item is None:

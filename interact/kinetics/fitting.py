@@ -139,6 +139,12 @@ def _denominator(name: str, grid: _Grid, u: list[float]) -> tuple[Array, Array |
     return d, a
 
 
+def _nonzero(d: Array) -> Array:
+    """The denominator with its zeros set to 1: d = 0 only where [S] = 0 and Km (or a trial Km) is 0, where the rate
+    and its derivatives are 0 (the numerator holds [S]); avoids 0/0 for a trial Km of 0 on rows without substrate."""
+    return d if d.all() else np.where(d == 0.0, 1.0, d)
+
+
 def _function(name: str):  # type: ignore[no-untyped-def]
     grid = _Grid()
 
@@ -146,7 +152,7 @@ def _function(name: str):  # type: ignore[no-untyped-def]
         g = grid.of(x)
         ul = u.tolist()
         d, _ = _denominator(name, g, ul)
-        return (ul[0] * g.s) / d
+        return (ul[0] * g.s) / _nonzero(d)
 
     return f
 
@@ -168,6 +174,7 @@ def _fused(name: str):  # type: ignore[no-untyped-def]
         gr = grid.of(x)
         ul = u.tolist()
         d, a = _denominator(name, gr, ul)
+        d = _nonzero(d)
         out = np.empty((p, d.size))
         g = np.divide(gr.s, d, out=out[0])
         f = g * ul[0]

@@ -1,23 +1,45 @@
-"""Writing batch-screen results: CSV, JSON (streamed), Markdown and .xlsx workbooks."""
+"""Writing batch-screen results: CSV, JSON (streamed), Parquet, Markdown, a terminal table and .xlsx workbooks.
+
+CSV, JSON and Parquet are written column by column with pyarrow (its CSV and Parquet writers, and its
+float-to-text cast for JSON: the shortest text that reads back as the same float, so full precision), in
+blocks of ranked pairs, so that the memory the output takes stays bounded by one block whatever the number
+of pairs.  Markdown and the terminal table, meant for a person to read, are written row by row from
+:func:`interact.batch.result_rows`, rounded.
+"""
 
 from __future__ import annotations
 
 import csv
+import io
 import json
-from typing import Any, Final, TextIO
+from collections.abc import Callable, Iterator
+from typing import IO, TYPE_CHECKING, Any, Final
 
 import numpy as np
+from numpy.typing import NDArray
 
-from ..batch import OUTPUT_COLUMNS, BatchResult, result_rows
+from ..batch import FLAGS, OUTPUT_COLUMNS, BatchResult, _flag_text, ranking, result_rows
 from ..cautions import CAUTION_LINE
+from ..dosing import ACTIONS
 from ..errors import InputError
 from ..results import BATCH_SCHEMA
 from .document import Note, Section, Table, md_escape, render_text, speak, terminal_safe
 from .numbers import fmt, fmt_ratio
 
-__all__ = ["BATCH_FORMATS", "results_workbook", "write_results"]
+if TYPE_CHECKING:
+    import pyarrow as pa
 
-BATCH_FORMATS = ("csv", "json", "markdown", "table", "xlsx")
+__all__ = ["BATCH_FORMATS", "result_batches", "results_workbook", "write_results"]
+
+BATCH_FORMATS = ("csv", "json", "parquet", "markdown", "table", "xlsx")
+
+#: ranked pairs per block written (a block of CSV text is about 30 MB at most)
+BLOCK_ROWS = 65_536
+
+#: JSON keys of the output columns, in order
+JSON_KEYS = tuple(c.split(" (")[0].replace(",", "_").replace(" ", "_").lower() for c in OUTPUT_COLUMNS)
+_TEXT_COLUMNS = ("perpetrator", "victim", "basic models", "phenotype", "class", "action", "flags")
+_STUDY = OUTPUT_COLUMNS.index("study indicated (mechanistic model)")
 
 #: the columns of the terminal table and the Markdown file, rounded; CSV and JSON carry every column in full
 SHOWN: Final = (
@@ -67,48 +89,205 @@ def _md(text: str) -> str:
     return md_escape(text)
 
 
-def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *, top: int | None = None, width: int = 100) -> int:
-    """Write the ranked results to an open text ``handle`` as ``csv``, ``json``, ``markdown`` or ``table``; returns rows written.
+def _numbers(values: NDArray[np.float64]) -> pa.Array:
+    """A float64 column; a non-finite value is missing (an empty cell, JSON null), never written as nan or inf."""
+    import pyarrow as pa
 
-    Numbers are written in full precision for CSV and JSON (concentrations in
-    uM, ratios dimensionless) and rounded like every report (``numbers.fmt``,
-    ``fmt_ratio``) in Markdown and in the terminal ``table``.
+    return pa.array(values, type=pa.float64(), mask=~np.isfinite(values))
+
+
+def _strings(values: list[str]) -> pa.Array:
+    import pyarrow as pa
+
+    return pa.array(values, type=pa.string())
+
+
+def result_batches(
+    result: BatchResult,
+    top: int | None = None,
+    *,
+    block: int = BLOCK_ROWS,
+    clean: Callable[[str], str] = str,
+    study_text: bool = False,
+    texts: dict[str, pa.Array] | None = None,
+) -> Iterator[pa.RecordBatch]:
+    """The ranked results (worst first; ``top`` limits the count) as pyarrow record batches of ``block`` rows.
+
+    Columns are :data:`~interact.batch.OUTPUT_COLUMNS`: ``rank`` int64, numbers float64 (concentrations in uM,
+    ratios dimensionless; a non-finite value is null), text as strings, ``study indicated (mechanistic model)`` bool (``yes``/``no``
+    with ``study_text``).  ``clean`` is applied to the names; ``texts`` replaces the dictionary of a text
+    column (one entry per perpetrator, victim, class, action or flag bits).  The rows are those of
+    :func:`interact.batch.result_rows`, in the same order.
     """
+    import pyarrow as pa
+
+    p, v = result.perpetrators, result.victims
+    n_v = len(v.rows)
+    order = ranking(result, top)
+    # each text column is a small dictionary (one entry per table row or per label) gathered by index (pyarrow take)
+    dictionaries = {
+        "perpetrator": _strings([clean(r.name) for r in p.rows]),
+        "victim": _strings([clean(r.name) for r in v.rows]),
+        "basic models": _strings(list(p.basic)),
+        "phenotype": _strings(list(v.phenotype)),
+        "class": _strings(list(result.band_names)),
+        "action": _strings(list(ACTIONS)),
+        "flags": _strings([_flag_text(k) for k in range(1 << len(FLAGS))]),
+        **(texts or {}),
+    }
+    yes_no = _strings(["no", "yes"])
+    per_p = (p.imax_u_um, p.inlet_um, p.gut_lumen_um, p.enterocyte_um)
+    per_pair = (result.gut.ravel(), result.liver.ravel(), result.total.ravel())
+    exposure = result.exposure.ravel()
+    band, study, action, bits = result.band.ravel(), result.study.ravel(), result.action.ravel(), result.flags.ravel()
+    for start in range(0, order.size, block):
+        idx = order[start : start + block]
+        ii, jj = np.divmod(idx, n_v)
+        columns = [
+            pa.array(np.arange(start + 1, start + 1 + idx.size, dtype=np.int64)),
+            dictionaries["perpetrator"].take(ii),
+            dictionaries["victim"].take(jj),
+            *(_numbers(a[ii]) for a in per_p),
+            dictionaries["basic models"].take(ii),
+            *(_numbers(a[idx]) for a in per_pair),
+            dictionaries["phenotype"].take(jj),
+            _numbers(exposure[idx]),
+            dictionaries["class"].take(band[idx]),
+            yes_no.take(study[idx].astype(np.int8)) if study_text else pa.array(study[idx]),
+            dictionaries["action"].take(action[idx]),
+            dictionaries["flags"].take(bits[idx]),
+        ]
+        yield pa.RecordBatch.from_arrays(columns, names=list(OUTPUT_COLUMNS))
+
+
+def _byte_writer(handle: IO[Any]) -> Callable[[Any], Any]:
+    """Write bytes to ``handle``: a binary file directly, a text file through its byte buffer, a StringIO as text."""
+    if isinstance(handle, io.TextIOBase):
+        buffer = getattr(handle, "buffer", None)
+        if buffer is not None:
+            handle.flush()
+            return buffer.write  # type: ignore[no-any-return]
+        return lambda data: handle.write(bytes(data).decode("utf-8"))
+    return handle.write
+
+
+def _write_csv(result: BatchResult, handle: IO[Any], top: int | None) -> int:
+    import pyarrow.csv as pa_csv
+
+    header = io.StringIO()
+    csv.writer(header, lineterminator="\n").writerow(OUTPUT_COLUMNS)  # the header line as the csv module quotes it
+    write = _byte_writer(handle)
+    write(header.getvalue().encode("utf-8"))
+    options = pa_csv.WriteOptions(include_header=False, quoting_style="needed")  # every text value quoted (RFC 4180)
     count = 0
+    # names lose terminal control sequences: the CSV may go to standard output
+    for batch in result_batches(result, top, clean=terminal_safe, study_text=True):
+        sink = io.BytesIO()
+        pa_csv.write_csv(batch, sink, options)
+        write(sink.getbuffer())
+        count += batch.num_rows
+    return count
+
+
+def _write_parquet(result: BatchResult, handle: IO[Any], top: int | None) -> int:
+    import pyarrow.parquet as pq
+
+    if isinstance(handle, io.TextIOBase) and getattr(handle, "buffer", None) is None:
+        raise InputError("format", "parquet", "is binary; write it to a file (-o results.parquet)")
+    if isinstance(handle, io.TextIOBase):
+        handle.flush()
+        handle = handle.buffer  # type: ignore[attr-defined]
+    count = 0
+    writer = None
+    try:
+        for batch in result_batches(result, top):
+            if writer is None:
+                writer = pq.ParquetWriter(handle, batch.schema)
+            writer.write_batch(batch)
+            count += batch.num_rows
+    finally:
+        if writer is not None:
+            writer.close()
+    return count
+
+
+def _write_json(result: BatchResult, handle: IO[Any], top: int | None) -> int:
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    write = _byte_writer(handle)
+    head = {
+        "schema": BATCH_SCHEMA,
+        "rules": result.rules.id,
+        "pairs": result.pairs,
+        "perpetrators": len(result.perpetrators.rows),
+        "victims": len(result.victims.rows),
+        "skipped_rows": [str(s) for s in (*result.perpetrators.skipped, *result.victims.skipped)],
+        "caution": CAUTION_LINE,
+    }
+    write((json.dumps(head, indent=1)[:-2] + ',\n "results": [\n').encode("utf-8"))
+    p, v = result.perpetrators, result.victims
+    # text columns: each distinct value JSON-encoded once, then gathered by index like the plain text
+    texts: dict[str, list[Any]] = {
+        "perpetrator": [r.name for r in p.rows],
+        "victim": [r.name for r in v.rows],
+        "basic models": list(p.basic),
+        "phenotype": list(v.phenotype),
+        "class": list(result.band_names),
+        "action": list(ACTIONS),
+        "flags": [[f for f in _flag_text(k).split("; ") if f] for k in range(1 << len(FLAGS))],
+    }
+    as_json = {name: _strings([json.dumps(x, allow_nan=False) for x in values]) for name, values in texts.items()}
+    count = 0
+    for batch in result_batches(result, top, texts=as_json):
+        parts: list[Any] = []
+        for k, (name, key) in enumerate(zip(OUTPUT_COLUMNS, JSON_KEYS, strict=True)):
+            parts.append((",\n  {" if k == 0 else ", ") + json.dumps(key) + ": ")
+            column = batch.column(k)
+            if name in _TEXT_COLUMNS:
+                parts.append(column)  # already JSON text
+            elif k == _STUDY:
+                parts.append(pc.if_else(column, "true", "false"))
+            else:  # numbers: pyarrow's shortest text that reads back as the same float; missing as null
+                parts.append(pc.fill_null(column.cast(pa.string()), "null"))
+        parts.append("}")
+        rows = pc.binary_join_element_wise(*parts, "")
+        _, offsets, data = rows.buffers()  # the rows' text, end to end (int32 offsets: a block is far below 2 GiB)
+        bounds = np.frombuffer(offsets, dtype=np.int32)[rows.offset : rows.offset + len(rows) + 1]
+        first, last = int(bounds[0]), int(bounds[-1])
+        skip = 2 if count == 0 else 0  # the first row has no ",\n" before it
+        write(memoryview(data)[first + skip : last])
+        count += batch.num_rows
+    write(b"\n ]\n}\n")
+    return count
+
+
+def _text_writer(handle: IO[Any]) -> Callable[[str], Any]:
+    if isinstance(handle, io.TextIOBase):
+        return handle.write
+    return lambda text: handle.write(text.encode("utf-8"))
+
+
+def write_results(result: BatchResult, handle: IO[Any], fmt_name: str = "csv", *, top: int | None = None, width: int = 100) -> int:
+    """Write the ranked results to an open ``handle`` as ``csv``, ``json``, ``parquet``, ``markdown`` or ``table``; returns rows written.
+
+    Numbers are written in full precision for CSV, JSON and Parquet (concentrations in uM, ratios dimensionless)
+    and rounded like every report (``numbers.fmt``, ``fmt_ratio``) in Markdown and in the terminal ``table``.
+    ``handle`` may be a text or a binary file (Parquet needs one with bytes underneath); CSV and JSON go in UTF-8
+    bytes through a text file's buffer.
+    """
     if fmt_name == "csv":
-        w = csv.writer(handle, lineterminator="\n")
-        w.writerow(OUTPUT_COLUMNS)
-        safe = terminal_safe  # names reach a terminal when the CSV goes to standard output
-        w.writerows((r[0], safe(r[1]), safe(r[2]), *r[3:]) for r in result_rows(result, top))
-        count = result.pairs if top is None else min(top, result.pairs)
-    elif fmt_name == "json":
-        head = {
-            "schema": BATCH_SCHEMA,
-            "rules": result.rules.id,
-            "pairs": result.pairs,
-            "perpetrators": len(result.perpetrators.rows),
-            "victims": len(result.victims.rows),
-            "skipped_rows": [str(s) for s in (*result.perpetrators.skipped, *result.victims.skipped)],
-            "caution": CAUTION_LINE,
-        }
-        handle.write(json.dumps(head, indent=1)[:-2] + ',\n "results": [\n')
-        keys = [c.split(" (")[0].replace(",", "_").replace(" ", "_").lower() for c in OUTPUT_COLUMNS]
-        first = True
-        for row in result_rows(result, top):
-            d: dict[str, Any] = dict(zip(keys, row, strict=True))
-            d["rank"] = int(d["rank"])
-            for k in ("imax_u", "iin_max_u", "igut", "i_ent", "aucr_gut", "aucr_liver", "aucr"):
-                d[k] = float(d[k]) if d[k] else None
-            d["study_indicated"] = d["study_indicated"] == "yes"
-            d["flags"] = [f for f in d["flags"].split("; ") if f]
-            handle.write(("" if first else ",\n") + "  " + json.dumps(d, allow_nan=False))
-            first = False
-            count += 1
-        handle.write("\n ]\n}\n")
-    elif fmt_name == "markdown":
-        handle.write(f"# interact batch screen ({_md(result.rules.id)})\n\n> **Caution:** {CAUTION_LINE}\n\n")
+        return _write_csv(result, handle, top)
+    if fmt_name == "json":
+        return _write_json(result, handle, top)
+    if fmt_name == "parquet":
+        return _write_parquet(result, handle, top)
+    text_out = _text_writer(handle)
+    count = 0
+    if fmt_name == "markdown":
+        text_out(f"# interact batch screen ({_md(result.rules.id)})\n\n> **Caution:** {CAUTION_LINE}\n\n")
         terms = result.rules.terms  # a document for reading: the rule set's words (the CSV and JSON keys stay)
-        handle.write(
+        text_out(
             speak(
                 f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
                 "worst first (largest |log AUCR|).\n\n",
@@ -117,14 +296,14 @@ def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *,
         )
         idx = [OUTPUT_COLUMNS.index(c) for c in SHOWN]
         names = (OUTPUT_COLUMNS.index("perpetrator"), OUTPUT_COLUMNS.index("victim"))
-        handle.write("| " + " | ".join(speak(h, terms) for h in SHOWN) + " |\n|" + "|".join("---" for _ in SHOWN) + "|\n")
+        text_out("| " + " | ".join(speak(h, terms) for h in SHOWN) + " |\n|" + "|".join("---" for _ in SHOWN) + "|\n")
         for row in result_rows(result, top):
             cells = (row[i] if i in names else speak(_rounded(OUTPUT_COLUMNS[i], row[i]), terms) for i in idx)
-            handle.write("| " + " | ".join(_md(c) for c in cells) + " |\n")
+            text_out("| " + " | ".join(_md(c) for c in cells) + " |\n")
             count += 1
         skipped = (*result.perpetrators.skipped, *result.victims.skipped)
         if skipped:
-            handle.write("\n## Rows left out\n\n" + "".join(f"- {_md(str(s))}\n" for s in skipped))
+            text_out("\n## Rows left out\n\n" + "".join(f"- {_md(str(s))}\n" for s in skipped))
     elif fmt_name == "table":
         # for a person at a terminal: the main columns, rounded like every other output, in the rule set's words
         terms = result.rules.terms
@@ -168,10 +347,10 @@ def write_results(result: BatchResult, handle: TextIO, fmt_name: str = "csv", *,
             terms,
         )
         sections = [Section(title="", blocks=(intro, Note(text=CAUTION_LINE), Table(headers=headers, rows=tuple(rows))))]
-        handle.write(render_text(sections, width=width))
+        text_out(render_text(sections, width=width))
         count = len(rows)
     else:
-        raise InputError("format", fmt_name, "is not csv, json, markdown or table")
+        raise InputError("format", fmt_name, "is not csv, json, parquet, markdown or table")
     return count
 
 

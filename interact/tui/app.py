@@ -15,7 +15,7 @@ import sys
 import time
 from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING, Any, ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar, Final
 
 from rich.text import Text
 from textual import on, work
@@ -92,9 +92,30 @@ def _parse(text: str, path: str | Path) -> dict[str, Any]:
     return loads_toml(text, str(path))
 
 
+#: the ICH M12 table names a scenario file may use, and the form's names for them (interact.scenario.SPELLINGS,
+#: inverted; kept here so that the first screen does not wait for the engine's import; a test keeps them equal)
+FORM_NAMES: Final = {"precipitant": "perpetrator", "object": "victim"}
+
+
+def form_data(data: dict[str, Any]) -> tuple[dict[str, Any], tuple[str, str]]:
+    """The file's data with its drug tables under the form's names, and the names the file used (to save back)."""
+    out = {FORM_NAMES.get(k, k) if FORM_NAMES.get(k, k) not in data else k: v for k, v in data.items()}
+    spelling = (
+        "precipitant" if "precipitant" in data and "perpetrator" not in data else "perpetrator",
+        "object" if "object" in data and "victim" not in data else "victim",
+    )
+    return out, spelling
+
+
+def file_data(data: dict[str, Any], spelling: tuple[str, str]) -> dict[str, Any]:
+    """The form's data with its drug tables under the names the file used."""
+    names = {"perpetrator": spelling[0], "victim": spelling[1]}
+    return {names.get(k, k): v for k, v in data.items()}
+
+
 def read_scenario_data(path: str | Path) -> dict[str, Any]:
-    """The file's TOML data, not yet validated (the built-in demo at start-up; a file opened to fix it)."""
-    return _parse(_read_text(path), path)
+    """The file's TOML data under the form's table names, not yet validated (the demo at start-up; a file opened to fix it)."""
+    return form_data(_parse(_read_text(path), path))[0]
 
 
 class PlotView(Widget):
@@ -201,6 +222,8 @@ class InteractApp(App[int]):
         self._fit_step = ""
         #: the text of the file the data came from (the demo's own text for the demo): saving edits this text
         self.source_text: str = _read_text(self.path or DEMO_PATH)
+        #: the drug tables' names in the file ([perpetrator]/[victim] or [precipitant]/[object]), kept on saving
+        self.spelling: tuple[str, str] = form_data(_parse(self.source_text, self.path or DEMO_PATH))[1]
         #: earlier states for Ctrl+Z and later ones for Ctrl+Y: (data, every field's text, selected key)
         self.undo_stack: list[Snapshot] = []
         self.redo_stack: list[Snapshot] = []
@@ -680,7 +703,7 @@ class InteractApp(App[int]):
         from ..scenario import edit_scenario_text, write_text_atomic
 
         try:
-            text = edit_scenario_text(self.source_text, self.data, source=str(path))
+            text = edit_scenario_text(self.source_text, file_data(self.data, self.spelling), source=str(path))
             write_text_atomic(path, text)
         except InteractError as exc:
             self.notify(f"Not saved: {exc}", severity="error", timeout=8)
@@ -748,12 +771,13 @@ class InteractApp(App[int]):
         """
         try:
             text = _read_text(path)
-            data = _parse(text, path)
+            data, spelling = form_data(_parse(text, path))
         except InteractError as exc:
             self.push_screen(LoadProblems(str(path), str(exc)))
             return False
         self.path = path
         self.source_text = text
+        self.spelling = spelling
         self.saved_data = copy.deepcopy(data)
         self.assessment = None
         self.scenario = None

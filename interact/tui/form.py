@@ -175,8 +175,8 @@ _PHYSIOLOGY: Final = (
 
 #: the whole form: (group title, table key, items), in the order a pharmacologist fills it
 SCHEMA: Final = (
-    ("Perpetrator (inhibitor)", "perpetrator", (*_PERPETRATOR, TARGETS, METABOLITES)),
-    ("Victim (affected drug)", "victim", _VICTIM),
+    ("Precipitant (perpetrator)", "perpetrator", (*_PERPETRATOR, TARGETS, METABOLITES)),
+    ("Object drug (victim)", "victim", _VICTIM),
     ("Scenario", "", _SCENARIO),
     ("Physiology (leave empty for the defaults)", "physiology", _PHYSIOLOGY),
 )

@@ -1,8 +1,16 @@
-"""Benchmark (run by hand, not a test): batch screening of 1,000,000 perpetrator-victim pairs.
+"""Benchmark (run by hand, not a test): batch screening, end to end and model alone.
 
-    python tests/bench/bench_batch.py [--perpetrators 1000 --victims 1000]
+    python tests/bench/bench_batch.py [--pairs 1e4,1e6,1e7] [--runs 5] [--format csv|parquet]
+    python tests/bench/bench_batch.py --model [--perpetrators 1000 --victims 1000]
 
-Reports, measured in the same run:
+End to end (the default): the whole command a user runs, ``interact screen-batch P.csv V.csv -o OUT -q`` in a
+fresh process, against the floor ``tests/bench/batch_floor.py`` in a fresh process: a plain numpy script that
+reads the same CSVs with numpy, evaluates the same equations, ranks, and writes the same columns with the same
+writer (pyarrow's CSV writer) to a plain file (see its docstring for what it leaves out).  The two alternate,
+``--runs`` times each; medians and their ratio are printed per size (goal at most 2x), with each side's peak
+resident memory and the largest relative difference between the two AUCR columns read back.
+
+With ``--model``, measured in the same run:
 
 - reading and validating the two tables (per row, not per pair);
 - ``evaluate_pairs`` (mechanistic model for every pair, class band, dose action,
@@ -24,6 +32,7 @@ import argparse
 import io
 import os
 import resource
+import subprocess
 import sys
 import time
 import tracemalloc
@@ -76,7 +85,7 @@ def tables(n_p: int, n_v: int, seed: int = 1) -> tuple[str, str]:
     vhead = ["name", "dose (mg)", "interval (h)", "fg", "strengths (mg)", *(f"fm {e}" for e in ENZYMES)]
     vlines = [",".join(vhead)]
     for j in range(n_v):
-        fm = rng.dirichlet(np.ones(len(ENZYMES) + 1))[: len(ENZYMES)]
+        fm = np.floor(rng.dirichlet(np.ones(len(ENZYMES) + 1))[: len(ENZYMES)] * 1000) / 1000  # 3 decimals, sum at most 1
         vlines.append(",".join([f"Invented-V{j}", "10", "24", f"{rng.uniform(0.2, 1):.3g}", "2.5;5;10", *(f"{x:.3f}" for x in fm)]))
     return ptext, "\n".join(vlines) + "\n"
 
@@ -109,13 +118,122 @@ def best(fn, runs: int) -> float:  # type: ignore[no-untyped-def]
     return min(times)
 
 
+def floor_constants(rules_name: str | None = None) -> str:
+    """The values the floor script needs, from interact's own tables (so both sides use the same numbers)."""
+    import json
+
+    from interact import units
+    from interact.arrays import band_labels
+    from interact.batch import FLAGS
+    from interact.exposure import resolve_settings
+    from interact.scenario import Scenario, Victim
+    from interact.tables import load_classes
+
+    rules = load_rules(rules_name)
+    perps = loads_perpetrators(tables(1, 1)[0], rules)
+    victim = Victim(name="-", dose=units.parse("1 mg", "dose", field="-"), interval=units.parse("24 h", "time", field="-"))
+    settings = resolve_settings(Scenario(title="row", perpetrator=perps.rows[0], victim=victim), rules)
+    classes = load_classes()
+    cutoffs = {c.id: float(c.cutoff.value) for c in rules.criteria}
+    return json.dumps(
+        {
+            "qh": settings["hepatic_blood_flow"].value,
+            "qent": settings["enterocytic_blood_flow"].value,
+            "gut_volume": settings["gut_volume"].value,
+            "fu_gut": settings["fu_gut"].value,
+            "fa_fg": settings["fa_fg"].value,
+            "fa": settings["fraction_absorbed"].value,
+            "rb": settings["blood_plasma_ratio"].value,
+            "fu_floor": float(rules.fu_plasma_floor.value),
+            "r1_cutoff": cutoffs["reversible-liver"],
+            "r1_gut_cutoff": cutoffs["reversible-gut"],
+            "aucr_inhibition": float(rules.aucr_inhibition_cutoff.value),
+            "aucr_induction": float(rules.aucr_induction_cutoff.value),
+            "no_effect_lower": classes.no_effect_lower,
+            "no_effect_upper": classes.no_effect_upper,
+            # class bands as interact.arrays.band_codes tests them: inhibition from the strongest down, then induction
+            "inhibition": sorted((b.bound for b in classes.inhibition), reverse=True),
+            "induction": sorted(b.bound for b in classes.induction),
+            "band_names": list(band_labels(classes)),
+            "flag_texts": ["; ".join(FLAGS[k] for k in range(len(FLAGS)) if bits >> k & 1) for bits in range(32)],
+        }
+    )
+
+
+def _run(cmd: list[str]) -> tuple[float, float]:
+    """Wall time (s) and peak resident memory (MiB) of one child process."""
+    t0 = time.perf_counter()
+    proc = subprocess.Popen(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+    _, status, usage = os.wait4(proc.pid, 0)
+    elapsed = time.perf_counter() - t0
+    proc.returncode = os.waitstatus_to_exitcode(status)
+    err = proc.stderr.read().decode() if proc.stderr else ""
+    if proc.returncode != 0:
+        raise SystemExit(f"{' '.join(cmd)} failed ({proc.returncode}): {err}")
+    return elapsed, usage.ru_maxrss / 1024
+
+
+def end_to_end(sizes: list[int], runs: int, fmt: str) -> None:
+    import statistics
+    import tempfile
+
+    import pyarrow.csv as pa_csv
+    import pyarrow.parquet as pq
+
+    interact_cmd = [sys.executable, "-m", "interact"]
+    floor_script = os.path.join(os.path.dirname(os.path.abspath(__file__)), "batch_floor.py")
+    constants = floor_constants()
+    print(f"end to end, {os.cpu_count()} cores (shared with other work: figures vary with the load); median of {runs} alternated runs")
+    print("  command: python -m interact screen-batch P.csv V.csv -o OUT -q   floor: python tests/bench/batch_floor.py (numpy + pyarrow)")
+    with tempfile.TemporaryDirectory() as folder:
+        for pairs in sizes:
+            n_v = min(1000, round(pairs**0.5))
+            n_p = pairs // n_v
+            ptext, vtext = tables(n_p, n_v)
+            pf, vf = os.path.join(folder, "p.csv"), os.path.join(folder, "v.csv")
+            with open(pf, "w", encoding="utf-8") as f:
+                f.write(ptext)
+            with open(vf, "w", encoding="utf-8") as f:
+                f.write(vtext)
+            out_cmd = os.path.join(folder, f"out.{fmt}")
+            out_floor = os.path.join(folder, "floor.parquet" if fmt == "parquet" else "floor.csv")
+            cmd = [*interact_cmd, "screen-batch", pf, vf, "-o", out_cmd, "-q"]
+            floor_cmd = [sys.executable, floor_script, pf, vf, out_floor, constants]
+            t_cmd, t_floor, m_cmd, m_floor = [], [], 0.0, 0.0
+            for _ in range(runs):
+                t, m = _run(cmd)
+                t_cmd.append(t)
+                m_cmd = max(m_cmd, m)
+                t, m = _run(floor_cmd)
+                t_floor.append(t)
+                m_floor = max(m_floor, m)
+            if fmt == "parquet":
+                a_floor = pq.read_table(out_floor, columns=["AUCR"]).column("AUCR").to_numpy()
+                a_cmd = pq.read_table(out_cmd, columns=["AUCR"]).column("AUCR").to_numpy()
+            else:
+                a_floor = pa_csv.read_csv(out_floor).column("AUCR").to_numpy()
+                a_cmd = pa_csv.read_csv(out_cmd).column("AUCR").to_numpy() if fmt == "csv" else a_floor
+            diff = float(np.max(np.abs(a_cmd - a_floor) / a_floor))
+            mc, mf = statistics.median(t_cmd), statistics.median(t_floor)
+            print(
+                f"{pairs:>12,} pairs ({n_p:,} x {n_v:,}), {fmt}: command {mc:.3f} s, floor {mf:.3f} s, ratio {mc / mf:.2f}x (goal <= 2x); "
+                f"peak RSS {m_cmd:.0f} / {m_floor:.0f} MiB; AUCR columns (ranked) differ by at most {diff:.1e} relative"
+            )
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
+    ap.add_argument("--model", action="store_true", help="the model-level figures instead of end to end")
+    ap.add_argument("--pairs", default="1e4,1e6", help="end to end: comma-separated pair counts")
+    ap.add_argument("--format", default="csv", choices=("csv", "parquet"), help="end to end: output format of the command")
     ap.add_argument("--perpetrators", type=int, default=1000)
     ap.add_argument("--victims", type=int, default=1000)
     ap.add_argument("--runs", type=int, default=5)
     ap.add_argument("--assess-sample", type=int, default=300)
     args = ap.parse_args()
+    if not args.model:
+        end_to_end([int(float(x)) for x in args.pairs.split(",")], args.runs, args.format)
+        return
     n_p, n_v = args.perpetrators, args.victims
     pairs = n_p * n_v
     ptext, vtext = tables(n_p, n_v)

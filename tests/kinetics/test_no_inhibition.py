@@ -176,3 +176,18 @@ def test_the_printed_weight_is_the_models_own_and_a_group_is_labelled(seed: int,
     if comp.verdict.group:
         assert comp.verdict.group_support == pytest.approx(sum(weights[m] for m in comp.verdict.group), abs=1e-12)
         assert "together" in comp.verdict.text and "for the group" in comp.verdict.text
+
+
+def test_rows_at_substrate_zero_with_a_trial_km_of_zero_give_no_zero_division() -> None:
+    # the rate law v = Vmax [S] / (Km (1 + [I]/Ki) + [S]) is 0 at [S] = 0 for any Km; with Km = 0 the denominator is 0
+    # too, which once gave numpy's "invalid value" warning (an error under pytest's filterwarnings = error)
+    import numpy as np
+
+    from interact.kinetics.fitting import inhibition_model
+
+    model = inhibition_model("competitive")
+    x = np.array([[0.0, 0.0, 2.0], [0.0, 1.0, 0.0]])  # rows: substrate, inhibitor
+    u = np.array([10.0, 0.0, 0.5])  # Vmax, a trial Km of 0, 1/Ki
+    v = model.function(u, x)
+    assert v.tolist() == [0.0, 0.0, 10.0]
+    assert model.jacobian is not None and np.all(np.isfinite(model.jacobian(u, x)))

@@ -7,6 +7,8 @@ emphasis, code spans, block markers at the start of a line).
 
 from __future__ import annotations
 
+import csv
+import io
 import re
 from pathlib import Path
 
@@ -127,4 +129,6 @@ def test_error_messages_and_batch_csv_carry_no_escapes(tmp_path: Path, capsys: p
     victims.write_text("name,dose (mg),interval (h),fg,fm CYP3A\nV\x9b8m,10,24,0.5,0.9\n", encoding="utf-8")
     assert main(["screen-batch", str(perps), str(victims)]) == 0
     out = capsys.readouterr().out
-    assert "\x1b" not in out and "\x9b" not in out and ",P[8m," not in out and ",P," in out
+    assert "\x1b" not in out and "\x9b" not in out
+    row = next(csv.DictReader(io.StringIO(out)))  # text values are quoted (RFC 4180): read the cells back
+    assert (row["perpetrator"], row["victim"]) == ("P", "V")

@@ -336,3 +336,35 @@ async def test_f4_from_a_fitting_button_moves_on_and_focus_returns_to_the_form()
         await pilot.pause()
         assert app.query_one("#views").active == "answer"  # type: ignore[attr-defined]
         assert app.focused is app.form
+
+
+@asynctest
+async def test_a_file_in_ich_m12_words_opens_into_the_form_and_saves_in_its_own_words(tmp_path: Path) -> None:
+    # [precipitant]/[object] (ICH M12 terms) are the file's table names: the form shows their values and a save
+    # changes only the edited value, keeping the file's words
+    path = tmp_path / "m12.toml"
+    original = HANDWRITTEN.read_text(encoding="utf-8").replace("[perpetrator", "[precipitant").replace("[victim", "[object")
+    assert "[precipitant]" in original and "[object]" in original
+    path.write_text(original, encoding="utf-8")
+    app = InteractApp(path)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.pause()
+        assert app.valid, app.problems
+        assert app.assessment is not None and app.assessment.prediction.total == assess(load_scenario(path)).prediction.total
+        await replace_text(pilot, app, "perpetrator.dose", "300 mg")
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert "unsaved" not in app.sub_title
+    saved = path.read_text(encoding="utf-8")
+    assert changed_lines(original, saved) == [
+        '-dose = "200 mg"               # highest dose',
+        '+dose = "300 mg"               # highest dose',
+    ]
+    assert load_scenario(path).perpetrator.dose.magnitude == 300
+
+
+def test_the_app_knows_the_same_table_aliases_as_the_scenario_reader() -> None:
+    from interact.scenario import SPELLINGS
+    from interact.tui.app import FORM_NAMES
+
+    assert FORM_NAMES == {v: k for k, v in SPELLINGS.items()}
