@@ -149,7 +149,6 @@ class RegimenPlan:
     dose_unit: str
     usual_interval_h: float
     candidates: tuple[Regimen, ...]
-    strengths_given: bool
     half_life_h: float | None
     boundary: tuple[float, float]
     peak_boundary: tuple[float, float]
@@ -272,7 +271,6 @@ def plan_regimens(
         dose_unit=dose_unit,
         usual_interval_h=interval_h,
         candidates=regimens,
-        strengths_given=bool(sizes),
         half_life_h=half_life_h,
         boundary=b,
         peak_boundary=pb,
@@ -591,7 +589,7 @@ def _miss(o: RegimenOutcome, plan: RegimenPlan) -> float:
     )
 
 
-def _ratios_text(o: RegimenOutcome, plan: RegimenPlan) -> str:
+def _ratios_text(o: RegimenOutcome) -> str:
     text = f"exposure ratio {o.exposure_ratio:.3g}"
     if o.regimen.kind == "interval":
         if o.peak_ratio is not None and o.trough_ratio is not None:
@@ -678,7 +676,7 @@ def suggest_dose(
         if chosen is not None:
             what = "the exact dose (no strengths given: round to an available form)" if chosen.regimen.kind == "exact dose" else ""
             reasons.append(
-                f"Suggested regimen: {chosen.describe(unit)}{' - ' + what if what else ''}; {_ratios_text(chosen, plan)}, "
+                f"Suggested regimen: {chosen.describe(unit)}{' - ' + what if what else ''}; {_ratios_text(chosen)}, "
                 "against the usual regimen alone; the closest to the usual exposure of the regimens inside the boundary."
             )
             if chosen.regimen.kind == "interval":
