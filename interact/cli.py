@@ -407,6 +407,12 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
 
     t0 = time.perf_counter()
     rules = load_rules(args.rules)
+    if args.scheduler is not None and args.engine != "dask":
+        raise InputError("--scheduler", args.scheduler, "is a Dask scheduler address and needs --engine dask")
+    if args.engine == "dask":  # before reading the tables: a missing extra is said at once
+        from .batch_dask import import_distributed
+
+        import_distributed()
     if args.top is not None and args.top < 1:
         raise InputError("--top", args.top, "is not a whole number of at least 1")
     p_sheet, v_sheet = args.sheet, args.victim_sheet or args.sheet
@@ -419,7 +425,13 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
     for problem in (*perps.skipped, *victims.skipped):
         sys.stderr.write(f"interact: skipped {problem}\n")
     n = len(perps.rows) * len(victims.rows)
-    result = evaluate_pairs(perps, victims, rules, progress=_progress_bar("screening") if n >= 200_000 and not args.quiet else None)
+    bar = _progress_bar("screening") if n >= 200_000 and not args.quiet else None
+    if args.engine == "dask":
+        from .batch_dask import run_on_dask
+
+        result = run_on_dask(perps, victims, rules, scheduler=args.scheduler, progress=bar)
+    else:
+        result = evaluate_pairs(perps, victims, rules, progress=bar)
     if args.format:
         fmt_name = args.format
     elif not _stdout(args.output):
@@ -644,6 +656,17 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--top", type=int, metavar="N", help="write only the N worst pairs")
     p.add_argument("--force", action="store_true", help=FORCE_HELP)
     p.add_argument("-q", "--quiet", action="store_true", help="no progress bar or summary line")
+    p.add_argument(
+        "--engine",
+        choices=("local", "dask"),
+        default="local",
+        help='where the pairs are evaluated: in this process (local, default) or on Dask (needs pip install "interact[dask]")',
+    )
+    p.add_argument(
+        "--scheduler",
+        metavar="ADDRESS",
+        help="with --engine dask: a running Dask scheduler, e.g. tcp://host:8786 (default: a local cluster on this machine's cores)",
+    )
     p.set_defaults(run=_cmd_screen_batch)
 
     p = sub.add_parser("report", help="a self-contained HTML (or Markdown) report of a scenario, with uncertainty and sensitivity")
