@@ -23,6 +23,8 @@ from .batch import _PAIRS_PER_CHUNK, BatchResult, PerpetratorTable, VictimTable,
 from .errors import InputError
 from .tables import RuleSet, load_rules
 
+#: how long to wait for a scheduler given with --scheduler
+CONNECT_TIMEOUT = "10s"
 #: the one-line message when dask is not installed
 MISSING_DASK = 'needs Dask, which is not installed: pip install "interact[dask]" (or run without --engine dask)'
 
@@ -126,9 +128,7 @@ def evaluate_pairs_dask(
         if "error" in part:
             raise InputError(*part["error"])
     stacked = {k: np.concatenate([p[k] for p in ready], axis=0) for k in _ARRAYS}
-    return BatchResult(
-        perpetrators=perpetrators, victims=victims, rules=rule_set, band_names=ready[0]["band_names"], **stacked
-    )
+    return BatchResult(perpetrators=perpetrators, victims=victims, rules=rule_set, band_names=ready[0]["band_names"], **stacked)
 
 
 def run_on_dask(
@@ -147,9 +147,13 @@ def run_on_dask(
     distributed = import_distributed()
     if scheduler is not None:
         try:
-            client = distributed.Client(scheduler, timeout="10s")
+            client = distributed.Client(scheduler, timeout=CONNECT_TIMEOUT)
         except (OSError, TimeoutError, ValueError) as exc:
-            raise InputError("--scheduler", scheduler, f"could not be reached ({exc.__class__.__name__}); expected a running Dask scheduler address, e.g. tcp://host:8786") from None
+            raise InputError(
+                "--scheduler",
+                scheduler,
+                f"could not be reached ({exc.__class__.__name__}); expected a running Dask scheduler address, e.g. tcp://host:8786",
+            ) from None
         with client:
             return evaluate_pairs_dask(perpetrators, victims, rules, client=client, progress=progress)
     cores = os.cpu_count() or 1

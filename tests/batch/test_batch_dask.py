@@ -152,7 +152,10 @@ def test_scheduler_without_dask_engine_is_refused(capsys: pytest.CaptureFixture[
     assert "--scheduler" in capsys.readouterr().err
 
 
-def test_unreachable_scheduler_is_a_named_error(capsys: pytest.CaptureFixture[str]) -> None:
+def test_unreachable_scheduler_is_a_named_error(capsys: pytest.CaptureFixture[str], monkeypatch: pytest.MonkeyPatch) -> None:
+    import interact.batch_dask as engine
+
+    monkeypatch.setattr(engine, "CONNECT_TIMEOUT", "1s")
     p, v = str(EXAMPLES / "batch_perpetrators.csv"), str(EXAMPLES / "batch_victims.csv")
     assert main(["screen-batch", p, v, "-q", "--engine", "dask", "--scheduler", "tcp://127.0.0.1:9"]) == 2
     err = capsys.readouterr().err
