@@ -74,6 +74,8 @@ MAX_UNITS: Final = 4
 MAX_UNIT_SIZES: Final = 24
 #: the search looks at up to this many units per administration whatever the victim says
 MAX_UNITS_LIMIT: Final = 8
+#: at most this many unit combinations are enumerated (about 0.1 s); more is refused with a named error
+MAX_COMBINATIONS: Final = 100_000
 
 _LN2: Final = math.log(2.0)
 _CELLS: Final = 1 << 21  # rows x candidates evaluated at once (bounds memory to some tens of MB)
@@ -244,6 +246,14 @@ def plan_regimens(
             "victim.strengths",
             f"{len(sizes)} unit sizes",
             f"are more than the {MAX_UNIT_SIZES} the regimen search takes; list the forms in use",
+        )
+    combos = sum(math.comb(len(sizes) + k - 1, k) for k in range(1, max_units + 1))
+    if combos > MAX_COMBINATIONS:
+        raise InputError(
+            "victim.max_units",
+            max_units,
+            f"with {len(sizes)} unit sizes gives {combos:,} combinations, more than the {MAX_COMBINATIONS:,} the regimen search "
+            "enumerates; lower max_units or list fewer strengths",
         )
     doses: list[Regimen] = []
     if sizes:

@@ -308,6 +308,7 @@ def test_bad_plans_name_the_field() -> None:
         ({"half_life_h": -1.0}, "victim.half_life"),
         ({"peak_boundary": (1.2, 1.5)}, "victim.peak_boundary"),
         ({"strengths": tuple(float(x) for x in range(1, 30))}, "victim.strengths"),
+        ({"strengths": tuple(float(x) for x in range(1, 25)), "max_units": 8}, "victim.max_units"),  # 7.9 million combinations
     ):
         with pytest.raises(InputError) as err:
             _plan(**kw)

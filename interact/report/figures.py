@@ -13,6 +13,7 @@ nothing is recomputed here.  Every figure says it shows a model estimate.
 from __future__ import annotations
 
 import io
+import re
 from collections.abc import Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING, Final
@@ -20,6 +21,7 @@ from typing import TYPE_CHECKING, Final
 import numpy as np
 
 from ..errors import InputError
+from .document import terminal_safe
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
@@ -38,6 +40,7 @@ __all__ = [
     "fit_figure",
     "fm_curves_figure",
     "histogram_figure",
+    "inline_svg",
     "save_figure",
     "sobol_figure",
     "timecourse_figure",
@@ -48,6 +51,22 @@ FIGURE_SUFFIXES: Final = (".svg", ".png", ".pdf")
 MODEL_NOTE: Final = "model estimate, not clinical advice"
 _LOW: Final = "#2471a3"
 _HIGH: Final = "#d35400"
+
+
+def _t(text: str) -> str:
+    """User text (names, labels) as plain figure text: no control characters, and "$" not read as mathtext."""
+    return terminal_safe(text).replace("$", r"\$")
+
+
+def _log_axis(ax: Axes, which: str, *, fine: bool = False) -> None:
+    """A log-scale ratio axis labelled with plain numbers (0.5, 1, 2, 5; ``fine`` adds 1.5, 3 and 7), not powers of ten."""
+    from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
+
+    axis = ax.xaxis if which == "x" else ax.yaxis
+    (ax.set_xscale if which == "x" else ax.set_yscale)("log")
+    axis.set_major_locator(LogLocator(base=10.0, subs=(1.0, 1.5, 2.0, 3.0, 5.0, 7.0) if fine else (1.0, 2.0, 5.0)))
+    axis.set_major_formatter(FuncFormatter(lambda v, _: f"{v:g}"))
+    axis.set_minor_formatter(NullFormatter())
 
 
 def _figure(ax: Axes | None, size: tuple[float, float]) -> tuple[Figure, Axes]:
@@ -61,10 +80,20 @@ def _figure(ax: Axes | None, size: tuple[float, float]) -> tuple[Figure, Axes]:
 
 
 def figure_bytes(fig: Figure, fmt: str) -> bytes:
-    """The figure encoded as ``svg``, ``png`` or ``pdf`` (matplotlib picks the renderer for the format, not the backend)."""
+    """The figure encoded as ``svg``, ``png`` or ``pdf`` (matplotlib picks the renderer for the format, not the backend).
+
+    No creation date is written, so the same figure gives the same bytes.
+    """
     buffer = io.BytesIO()
-    fig.savefig(buffer, format=fmt)
+    fig.savefig(buffer, format=fmt, metadata={"Date": None} if fmt in ("svg", "pdf") else None)
     return buffer.getvalue()
+
+
+def inline_svg(fig: Figure) -> str:
+    """The figure as an ``<svg>`` element to place inside an HTML page (XML prolog, doctype and metadata dropped)."""
+    text = figure_bytes(fig, "svg").decode("utf-8")
+    text = re.sub(r"\s*<metadata>.*?</metadata>", "", text, flags=re.S)  # matplotlib's RDF block (namespace URLs, creator)
+    return text[text.index("<svg") :]
 
 
 def save_figure(
@@ -111,12 +140,12 @@ def _draw_fit_plot(ax: Axes, plot: PlotData) -> None:
     for s in plot.series:
         c = colour.get(s.level_um, "0.4") if s.level_um is not None else "0.4"
         if s.kind == "points":
-            ax.plot(s.x, s.y, "o", color=c, label=s.label, markersize=4)
+            ax.plot(s.x, s.y, "o", color=c, label=_t(s.label), markersize=4)
         else:
             ax.plot(s.x, s.y, color=c, linewidth=1.0, linestyle="-" if s.level_um is not None else "--")
     ax.axhline(0.0, color="0.8", linewidth=0.6)
     ax.axvline(0.0, color="0.8", linewidth=0.6)
-    ax.set_title(plot.title, fontsize=10)
+    ax.set_title(_t(plot.title), fontsize=10)
     ax.set_xlabel(plot.x_label)
     ax.set_ylabel(plot.y_label)
     if any(s.kind == "points" for s in plot.series):
@@ -178,13 +207,13 @@ def tornado_figure(sens: Sensitivity, boundary: tuple[float, float] = (0.8, 1.25
     for k, b in zip(y, bars, strict=True):
         ax.barh(k, b.aucr_low - point, left=point, color=_LOW, height=0.6, label="input low" if k == y[0] else None)
         ax.barh(k, b.aucr_high - point, left=point, color=_HIGH, height=0.6, label="input high" if k == y[0] else None)
-    ax.set_yticks(y, [b.input.label for b in bars], fontsize=8)
-    ax.set_xscale("log")
+    ax.set_yticks(y, [_t(b.input.label) for b in bars], fontsize=8)
+    _log_axis(ax, "x", fine=True)
     ax.axvline(point, color="k", linewidth=1.2)
     for edge in boundary:
         ax.axvline(edge, color="0.3", linestyle="--", linewidth=0.8)
-    ax.set_xlabel(f"AUC ratio (log scale); point estimate {point:.3g}; dashed: no-effect boundary")
-    ax.set_title(f"One-at-a-time sensitivity ({MODEL_NOTE})", fontsize=10)
+    ax.set_xlabel(f"AUC ratio (log scale)\npoint estimate {point:.3g} (solid line); dashed: no-effect boundary", fontsize=9)
+    fig.suptitle(f"One-at-a-time sensitivity ({MODEL_NOTE})", fontsize=10)
     if bars:
         ax.legend(fontsize=7, frameon=False)
     return fig
@@ -194,11 +223,11 @@ def fm_curves_figure(sens: Sensitivity, boundary: float = 1.25, ax: Axes | None 
     """Liver AUC ratio against fm for several [I]/Ki,u (reversible inhibition), log ratio axis."""
     fig, ax = _figure(ax, (6.5, 4.5))
     for c in sens.curves:
-        ax.plot(c.fm, c.aucr, label=c.label, linewidth=1.2)
+        ax.plot(c.fm, c.aucr, label=_t(c.label), linewidth=1.2)
     ax.axhline(boundary, color="0.3", linestyle="--", linewidth=0.8)
     if sens.scenario_fm is not None:
         ax.axvline(sens.scenario_fm, color="0.5", linestyle=":", linewidth=0.8)
-    ax.set_yscale("log")
+    _log_axis(ax, "y")
     ax.set_xlabel("fm (fraction of clearance through the pathway)")
     ax.set_ylabel("AUC ratio (liver)")
     ax.set_title(f"AUC ratio against fm ({MODEL_NOTE})", fontsize=10)
@@ -226,13 +255,13 @@ def histogram_figure(result: UncertaintyResult, thresholds: Sequence[float] | No
         mid = float(np.sqrt(lo * hi))
         lo, hi = mid / 1.1, mid * 1.1
     ax.hist(total, bins=np.geomspace(lo, hi, 41).tolist(), color=_LOW, alpha=0.75)
-    ax.set_xscale("log")
+    _log_axis(ax, "x", fine=True)
     for t in thresholds if thresholds is not None else sorted({b for _, b, _ in result.exceedance}):
         if lo < t < hi:
             ax.axvline(t, color="0.3", linestyle="--", linewidth=0.8)
     for q in (5.0, 50.0, 95.0):
         ax.axvline(result.percentile(q), color=_HIGH, linewidth=2.0 if q == 50.0 else 1.0)
-    ax.set_xlabel("AUC ratio (log scale); orange: 5th, 50th, 95th percentiles; dashed: class thresholds")
+    ax.set_xlabel("AUC ratio (log scale)\norange: 5th, 50th and 95th percentiles; dashed: class thresholds", fontsize=9)
     ax.set_ylabel("samples")
     ax.set_title(f"{result.samples:,} sampled AUC ratios ({MODEL_NOTE})", fontsize=10)
     return fig
@@ -254,7 +283,7 @@ def sobol_figure(sens: Sensitivity, ax: Axes | None = None) -> Figure:
     y = np.arange(len(order))
     ax.barh(y - 0.2, [v.first_order[k] for k in order], height=0.4, color=_LOW, label="first order")
     ax.barh(y + 0.2, [v.total_order[k] for k in order], height=0.4, color=_HIGH, label="total")
-    ax.set_yticks(y, [v.inputs[k].label for k in order], fontsize=8)
+    ax.set_yticks(y, [_t(v.inputs[k].label) for k in order], fontsize=8)
     ax.set_xlim(0.0, 1.0)
     ax.set_xlabel(f"share of the variance of the {v.output} (Sobol' indices, {v.base_samples:,} base samples)")
     ax.set_title(f"Variance-based sensitivity ({MODEL_NOTE})", fontsize=10)
@@ -292,7 +321,7 @@ def timecourse_figure(tc: TimeCourse, title: str = "", axes: Sequence[Axes] | No
 
         fig = Figure(figsize=(9.0, 6.2), layout="constrained")
         axes = list(fig.subplots(2, 1, sharex=True))
-        fig.suptitle(f"{title or 'Time course'} ({MODEL_NOTE})", fontsize=11)
+        fig.suptitle(f"{_t(title) or 'Time course'} ({MODEL_NOTE})", fontsize=11)
     if len(axes) != 2:
         raise InputError("axes", len(axes), "axes were given; give two (concentrations, ratios)")
     top, bottom = axes

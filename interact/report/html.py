@@ -39,7 +39,7 @@ from .document import (
     speak_sections,
     without_empty_columns,
 )
-from .svg import fm_curves_svg, histogram_svg, tornado_svg
+from .figures import fm_curves_figure, histogram_figure, inline_svg, tornado_figure
 from .uncertainty import sensitivity_sections, uncertainty_sections
 
 __all__ = ["Figure", "ReportPart", "render_report_html", "render_report_markdown", "report_parts"]
@@ -161,7 +161,7 @@ def report_parts(
         u = uncertainty_sections(spread, a.scenario)[0]
         thresholds = sorted({b for _, b, _ in spread.exceedance})
         fig = Figure(
-            svg=histogram_svg(spread.total, tuple(spread.percentile(q) for q in (5.0, 50.0, 95.0)), thresholds),  # type: ignore[arg-type]
+            svg=inline_svg(histogram_figure(spread, thresholds)),
             caption=f"Distribution of {spread.samples:,} sampled AUC ratios.",
         )
         parts.append(ReportPart(section=u, figures=(fig,)))
@@ -180,13 +180,13 @@ def report_parts(
     s = sensitivity_sections(sens, a.scenario)[0]
     figs = [
         Figure(
-            svg=tornado_svg(sens.bars, sens.point_total, boundary),
+            svg=inline_svg(tornado_figure(sens, boundary)),
             caption="Each input swung on its own; bars run from the AUC ratio at the input's low end to its high end.",
         )
     ]
     figs.append(
         Figure(
-            svg=fm_curves_svg(sens.curves, boundary[1]),
+            svg=inline_svg(fm_curves_figure(sens, boundary[1])),
             caption="Liver AUC ratio against fm for several [I]/Ki,u (reversible inhibition), and this scenario's "
             "total AUC ratio as the main pathway's fm varies.",
         )
