@@ -20,19 +20,19 @@ import os
 os.environ.setdefault("OMP_NUM_THREADS", "1")
 os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 
-import argparse  # noqa: E402
-import statistics  # noqa: E402
-import sys  # noqa: E402
-import time  # noqa: E402
-from pathlib import Path  # noqa: E402
+import argparse
+import statistics
+import sys
+import time
+from pathlib import Path
 
-import numpy as np  # noqa: E402
+import numpy as np
 
 sys.path.insert(0, str(Path(__file__).parent))
-from bench_batch import tables  # noqa: E402
+from bench_batch import tables
 
-from interact.batch import evaluate_pairs, loads_perpetrators, loads_victims  # noqa: E402
-from interact.batch_dask import evaluate_pairs_dask  # noqa: E402
+from interact.batch import evaluate_pairs, loads_perpetrators, loads_victims
+from interact.batch_dask import evaluate_pairs_dask
 
 
 def main() -> None:
