@@ -43,10 +43,11 @@ from .dosing import ACTIONS, RegimenPlan, choose_regimens, plan_for_victim
 from .errors import InputError, InteractError, Problem, ScenarioError
 from .exposure import resolve_exposure, resolve_settings
 from .files import loads_toml, read_text
+from .genotype import phenotype_options
 from .prediction import gut_ratio, liver_ratio, reversible_term
 from .scenario import Perpetrator, Scenario, Victim, scenario_from_dict
 from .screening import screen
-from .tables import RuleSet, load_classes, load_phenotypes, load_rules, load_targets, resolve_target
+from .tables import RuleSet, load_classes, load_rules, load_targets, resolve_target
 
 __all__ = [
     "COLUMN_KEYS",
@@ -765,7 +766,6 @@ def loads_victims(
     plans = []
     activity = np.ones((n, len(enzymes)))
     labels = []
-    table = load_phenotypes()
     for i, v in enumerate(rows):
         for pw in v.pathways:
             k = enzymes.index(pw.enzyme)
@@ -776,9 +776,7 @@ def loads_victims(
                 raise InputError(
                     f"{source} line {lines[i]}: phenotype {c.enzyme}", "all", "is not one phenotype; give each phenotype its own row"
                 )
-            activity[i, enzymes.index(c.enzyme)] = (
-                c.activity if c.activity is not None else next(p.activity.value for p in table[c.enzyme] if p.name == c.phenotype)
-            )
+            activity[i, enzymes.index(c.enzyme)] = phenotype_options(c)[0][1]
         labels.append(", ".join(f"{c.enzyme} {c.phenotype if c.activity is None else f'a = {c.activity:g}'}" for c in v.phenotypes))
         try:
             plans.append(plan_for_victim(v, default, "default 0.8-1.25, ICH M12 5.3.1"))

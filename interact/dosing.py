@@ -401,23 +401,27 @@ class RegimenChoice:
     chosen: NDArray[np.intp]
 
 
-def _choose_chunk(
-    plan: RegimenPlan, total: NDArray[np.float64], gut: NDArray[np.float64] | None
-) -> tuple[NDArray[np.int8], NDArray[np.intp]]:
+def _scores(plan: RegimenPlan, total: NDArray[np.float64], feasible: NDArray[np.bool_]) -> NDArray[np.float64]:
+    """Distance from the usual exposure on the log scale, |log(AUCR x factor)| (0 for the exact dose); inf where infeasible.
+
+    The one ranking of candidates: the choice is the smallest, ties to the earlier candidate.
+    """
+    with np.errstate(divide="ignore", invalid="ignore"):
+        score = np.abs(np.log(total)[:, None] + plan.log_factors[None, :])
+    if plan.exact.any():
+        score[:, plan.exact] = 0.0
+    score[~feasible] = np.inf
+    return score
+
+
+def _decide(plan: RegimenPlan, total: NDArray[np.float64], score: NDArray[np.float64]) -> tuple[NDArray[np.int8], NDArray[np.intp]]:
+    """Action codes and chosen candidates (-1 = none) from the scores (rows x candidates)."""
     n = total.shape[0]
     inside = _inside(total, plan.boundary)
     if not plan.candidates:
         chosen = np.full(n, -1, dtype=np.intp)
     else:
-        _, feasible, _ = _exposure_and_feasibility(plan, total, gut)
-        # distance from the usual exposure on the log scale, |log(AUCR x factor)|; 0 for the exact dose; ties go to the
-        # earlier candidate (argmin takes the first)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            score = np.abs(np.log(total)[:, None] + plan.log_factors[None, :])
-        if plan.exact.any():
-            score[:, plan.exact] = 0.0
-        score[~feasible] = np.inf
-        chosen = np.argmin(score, axis=1).astype(np.intp)
+        chosen = np.argmin(score, axis=1).astype(np.intp)  # argmin takes the first of equal scores
         chosen[~np.isfinite(score[np.arange(n), chosen])] = -1
     action = plan.codes[chosen]  # chosen = -1 picks AVOID
     if plan.exact.any():
@@ -425,6 +429,13 @@ def _choose_chunk(
     action = np.where(inside, np.int8(NO_CHANGE), action).astype(np.int8)
     chosen[inside] = -1
     return action, chosen
+
+
+def _choose_chunk(
+    plan: RegimenPlan, total: NDArray[np.float64], gut: NDArray[np.float64] | None
+) -> tuple[NDArray[np.int8], NDArray[np.intp]]:
+    _, feasible, _ = _exposure_and_feasibility(plan, total, gut)
+    return _decide(plan, total, _scores(plan, total, feasible))
 
 
 def choose_regimens(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | None = None) -> RegimenChoice:
@@ -563,8 +574,7 @@ class DoseSuggestion:
         return c.regimen.interval_h if c is not None and c.regimen.kind == "interval" else None
 
 
-def _outcomes(plan: RegimenPlan, auc_ratio: float, gut_ratio: float) -> list[RegimenOutcome]:
-    c = regimen_feasibility(plan, [auc_ratio], [gut_ratio])
+def _outcomes(plan: RegimenPlan, auc_ratio: float, c: CandidateRatios) -> list[RegimenOutcome]:
     out = []
     for k, reg in enumerate(plan.candidates):
         if reg.kind == "exact dose":
@@ -652,9 +662,13 @@ def suggest_dose(
         raise InputError("auc_ratio", auc_ratio, "is not a positive finite AUC ratio")
     lower, upper = plan.boundary
     unit = plan.dose_unit
-    choice = choose_regimens(plan, [auc_ratio], [gut_ratio])
-    code, k = int(choice.action[0]), int(choice.chosen[0])
-    outcomes = _outcomes(plan, auc_ratio, gut_ratio)
+    # the rule of choose_regimens for one row, with the ratios and scores kept for the text and the table
+    r = np.array([auc_ratio])
+    ratios = regimen_feasibility(plan, r, [gut_ratio])
+    score = _scores(plan, r, ratios.feasible)
+    codes, picks = _decide(plan, r, score)
+    code, k = int(codes[0]), int(picks[0])
+    outcomes = _outcomes(plan, auc_ratio, ratios)
     exact = plan.usual_dose / auc_ratio
     exact_tau = plan.usual_interval_h * auc_ratio
     reasons: list[str] = []
@@ -678,10 +692,7 @@ def suggest_dose(
             f"every {plan.usual_interval_h:g} h, or {plan.usual_dose:g} {unit} every {plan.usual_interval_h:g} h x {auc_ratio:.3g} "
             f"= {exact_tau:.3g} h."
         )
-        ranked = sorted(
-            (o for o in outcomes if o.feasible),
-            key=lambda o: (round(abs(math.log(o.exposure_ratio)), 12), o.index),
-        )
+        ranked = sorted((o for o in outcomes if o.feasible), key=lambda o: (score[0, o.index], o.index))
         options = tuple(ranked)
         if chosen is not None:
             what = "the exact dose (no strengths given: round to an available form)" if chosen.regimen.kind == "exact dose" else ""

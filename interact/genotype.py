@@ -37,7 +37,7 @@ from .prediction import Prediction, liver_ratio
 from .scenario import PhenotypeChoice
 from .tables import Sourced, load_phenotypes
 
-__all__ = ["MAX_CASES", "PhenotypeCase", "phenotype_cases"]
+__all__ = ["MAX_CASES", "PhenotypeCase", "phenotype_cases", "phenotype_options"]
 
 #: at most this many phenotype combinations are tabulated
 MAX_CASES: Final = 60
@@ -59,7 +59,8 @@ class PhenotypeCase:
     reference: bool  # every activity 1: the population result itself
 
 
-def _options(choice: PhenotypeChoice) -> list[tuple[str, float, Sourced | None]]:
+def phenotype_options(choice: PhenotypeChoice) -> list[tuple[str, float, Sourced | None]]:
+    """(phenotype, relative activity, its source) for a choice: one row, or every phenotype of the table for "all"."""
     table = load_phenotypes().get(choice.enzyme)
     if choice.activity is not None:
         return [("given", choice.activity, None)]
@@ -92,7 +93,7 @@ def phenotype_cases(
     """
     if not choices:
         return ()
-    per_enzyme = [(c.enzyme, _options(c)) for c in choices]
+    per_enzyme = [(c.enzyme, phenotype_options(c)) for c in choices]
     combos = list(itertools.product(*(opts for _, opts in per_enzyme)))
     if len(combos) > MAX_CASES:
         raise InputError("victim.phenotypes", f"{len(combos)} combinations", f"are more than the {MAX_CASES} tabulated; ask for fewer")

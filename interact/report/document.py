@@ -9,7 +9,7 @@ from __future__ import annotations
 import html
 import re
 import textwrap
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator
 from dataclasses import dataclass, field
 from functools import lru_cache
 
@@ -117,12 +117,13 @@ def _texts(sections: list[Section]) -> Iterator[str]:
                 yield block
 
 
-def _resolve_block(block: str | Table | Note) -> str | Table | Note:
+def map_text(block: str | Table | Note, f: Callable[[str], str]) -> str | Table | Note:
+    """The block with ``f`` applied to every piece of its text (headers and cells of a table, a note's text)."""
     if isinstance(block, Table):
-        return Table(headers=tuple(resolve(h) for h in block.headers), rows=tuple(tuple(resolve(c) for c in r) for r in block.rows))
+        return Table(headers=tuple(f(h) for h in block.headers), rows=tuple(tuple(f(c) for c in r) for r in block.rows))
     if isinstance(block, Note):
-        return Note(text=resolve(block.text), kind=block.kind)
-    return resolve(block)
+        return Note(text=f(block.text), kind=block.kind)
+    return f(block)
 
 
 def references_section(keys: tuple[str, ...]) -> Section:
@@ -142,7 +143,7 @@ def cite(sections: list[Section], *, every_source: bool = False) -> list[Section
         return sections
     known = load_sources()
     keys = tuple(k for k in keys if k in known)
-    out = [Section(title=resolve(sec.title), blocks=tuple(_resolve_block(b) for b in sec.blocks)) for sec in sections]
+    out = [Section(title=resolve(sec.title), blocks=tuple(map_text(b, resolve) for b in sec.blocks)) for sec in sections]
     return [*out, references_section(keys)] if keys else out
 
 
@@ -299,14 +300,7 @@ def speak_sections(sections: list[Section], terms: Terms, protect: tuple[str, ..
     def say(t: str) -> str:
         return speak(t, terms, protect)
 
-    def block(b: str | Table | Note) -> str | Table | Note:
-        if isinstance(b, Table):
-            return Table(headers=tuple(say(h) for h in b.headers), rows=tuple(tuple(say(c) for c in r) for r in b.rows))
-        if isinstance(b, Note):
-            return Note(text=say(b.text), kind=b.kind)
-        return say(b)
-
-    return [Section(title=say(s.title), blocks=tuple(block(b) for b in s.blocks)) for s in sections]
+    return [Section(title=say(s.title), blocks=tuple(map_text(b, say) for b in s.blocks)) for s in sections]
 
 
 def speak_data(data: object, terms: Terms, protect: tuple[str, ...] = ()) -> object:

@@ -63,6 +63,24 @@ def painted_field(app: Any, key: str) -> str:
     return painted(app)[region.y + y][region.x : region.right]
 
 
+async def edit_dose_and_save(path: Path, *, check_opened: bool = False) -> str:
+    """Open ``path`` in the app, type 300 mg as the precipitant's dose, Ctrl+S; the saved text.
+
+    ``check_opened`` also checks that the file opened valid, with the answer assess() gives for it.
+    """
+    app = InteractApp(path)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.pause()
+        if check_opened:
+            assert app.valid, app.problems
+            assert app.assessment is not None and app.assessment.prediction.total == assess(load_scenario(path)).prediction.total
+        await replace_text(pilot, app, "perpetrator.dose", "300 mg")
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        assert "unsaved" not in app.sub_title
+    return path.read_text(encoding="utf-8")
+
+
 def changed_lines(before: str, after: str) -> list[str]:
     return [
         d
@@ -155,14 +173,7 @@ async def test_ctrl_s_changes_only_the_edited_value_of_a_hand_written_file(tmp_p
     path = tmp_path / "mine.toml"
     shutil.copy(HANDWRITTEN, path)
     original = path.read_text(encoding="utf-8")
-    app = InteractApp(path)
-    async with app.run_test(size=(120, 40)) as pilot:
-        await pilot.pause()
-        await replace_text(pilot, app, "perpetrator.dose", "300 mg")
-        await pilot.press("ctrl+s")
-        await pilot.pause()
-        assert "unsaved" not in app.sub_title
-    saved = path.read_text(encoding="utf-8")
+    saved = await edit_dose_and_save(path)
     # exactly the edited line changed, and it keeps its comment (at the same column)
     assert changed_lines(original, saved) == [
         '-dose = "200 mg"               # highest dose',
@@ -346,16 +357,7 @@ async def test_a_file_in_ich_m12_words_opens_into_the_form_and_saves_in_its_own_
     original = HANDWRITTEN.read_text(encoding="utf-8").replace("[perpetrator", "[precipitant").replace("[victim", "[object")
     assert "[precipitant]" in original and "[object]" in original
     path.write_text(original, encoding="utf-8")
-    app = InteractApp(path)
-    async with app.run_test(size=(120, 40)) as pilot:
-        await pilot.pause()
-        assert app.valid, app.problems
-        assert app.assessment is not None and app.assessment.prediction.total == assess(load_scenario(path)).prediction.total
-        await replace_text(pilot, app, "perpetrator.dose", "300 mg")
-        await pilot.press("ctrl+s")
-        await pilot.pause()
-        assert "unsaved" not in app.sub_title
-    saved = path.read_text(encoding="utf-8")
+    saved = await edit_dose_and_save(path, check_opened=True)
     assert changed_lines(original, saved) == [
         '-dose = "200 mg"               # highest dose',
         '+dose = "300 mg"               # highest dose',
