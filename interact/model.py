@@ -1,0 +1,258 @@
+"""The interaction model, written once: site concentrations to the victim's AUC ratio.
+
+Net-effect mechanistic static model (Fahmi et al., Drug Metab Dispos 2008;36:1698; structure seen
+in Guengerich 2022, Fig. 17; the equations below are from memory, algebra checked).  For each
+target t that clears the victim, the fraction of its activity that remains at a site is the
+product of three terms, named by meaning, summed over the perpetrator's constants j on t:
+
+- reversible   = 1 / (1 + sum_j [I]_j / Ki,u,j)
+- inactivation = kdeg / (kdeg + sum_j kinact_j [I]_j / (KI,u,j + [I]_j))
+- induction    = 1 + sum_j d_j Emax_j [I]_j / (EC50,u,j + [I]_j)
+
+and the organ ratios are
+
+- liver: AUCR_h = 1 / (sum_e fm_e x activity_h,e + (1 - sum_e fm_e))    ("fraction" form)
+- gut:   AUCR_g = 1 / (activity_g x (1 - Fg) + Fg), for the gut-wall enzyme (CYP3A)   ("availability" form)
+- total: AUCR = AUCR_g x AUCR_h  (the product over :data:`ORGANS` in their order)
+
+with [I] at the liver the unbound hepatic inlet concentration Iin,max,u and at the gut the
+enterocyte concentration I,ent (see :mod:`interact.exposure`).
+
+**Arrays.** Every number may be a Python float or a numpy array; arrays broadcast against each other, so one
+call evaluates one scenario (floats: ``assess``), samples (a leading sample axis:
+:class:`interact.uncertainty.ScenarioModel`) or pairs (perpetrators along axis 0, victims along
+axis 1: :func:`interact.batch.pair_ratios`).  What acts on what is structure, given as tuples
+(one :class:`Acting` per perpetrator constant, one :class:`Pathway` per victim pathway); the sums
+over constants and over pathways run in that order, term by term, so that every caller gets the
+same result to the last bit.  An absent constant is ``None`` (structure); a constant absent for
+some rows of an array only is given as ``inf`` for Ki,u (its term is then exactly 0).
+
+**Adding a pathway kind or an organ** (for example transporters: intestinal efflux, hepatic uptake,
+renal secretion, and a kidney ratio) is data, not a new code path:
+
+1. a site is a name in the ``concentrations`` mapping given to :func:`evaluate`, holding one
+   unbound concentration per perpetrator species ("liver" = Iin,max,u, "gut" = I,ent; add for
+   example "systemic" = Imax,u);
+2. an organ is an entry of :data:`ORGANS`: the site its pathways see and the form of its ratio
+   (``"fraction"``: 1/(sum f x activity + 1 - sum f); ``"availability"``: 1/(activity x (1 - F) + F));
+   a kidney is ``Organ(site="systemic", form="fraction")`` with the renal fractions as pathways;
+   the total is the product of the organ ratios in the order of :data:`ORGANS`;
+3. a victim pathway is a :class:`Pathway` (target index, organ name, fraction): a transporter
+   route is a pathway whose target is the transporter; the perpetrator's constants on that
+   target (an :class:`Acting` with the same target index) act on it at the organ's site.
+   A new organ form (one the two above do not express) is one more branch in :func:`organ_ratio`.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+from typing import Any, Final
+
+__all__ = [
+    "MECHANISMS",
+    "ORGANS",
+    "Acting",
+    "Evaluation",
+    "Organ",
+    "Pathway",
+    "Terms",
+    "evaluate",
+    "organ_ratio",
+    "site_terms",
+]
+
+#: the mechanisms, each of which can be switched off (the mechanism parts of a prediction)
+MECHANISMS: Final = ("reversible", "time-dependent", "induction")
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Organ:
+    """An organ's ratio: the site whose concentrations its pathways see, and the form of the ratio."""
+
+    site: str
+    form: str  # "fraction" or "availability"
+
+
+#: the organs, in the order of the product that gives the total ratio
+ORGANS: Final[Mapping[str, Organ]] = {
+    "gut": Organ(site="gut", form="availability"),
+    "liver": Organ(site="liver", form="fraction"),
+}
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Acting:
+    """One unbound constant of the perpetrator on one target (uM, 1/h; ``None`` where not given)."""
+
+    target: int  # index of the target it acts on
+    species: int  # index of the perpetrator species whose concentrations it sees
+    ki_u: Any = None
+    kinact: Any = None
+    ki_inact_u: Any = None
+    emax: Any = None
+    ec50_u: Any = None
+    calibration: Any = 1.0
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Pathway:
+    """One pathway of the victim: the target it depends on, in which organ, with which fraction.
+
+    ``fraction`` is fm for a "fraction" organ and the availability (Fg) for an "availability" organ;
+    ``scale`` (a phenotype's activity) multiplies fm in the weighted sum, not in (1 - sum fm).
+    """
+
+    target: int
+    organ: str
+    fraction: Any
+    scale: Any = None
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Terms:
+    """The three terms for one target at one site (each a float or an array)."""
+
+    reversible: Any
+    inactivation: Any
+    induction: Any
+
+    @property
+    def activity(self) -> Any:
+        return self.reversible * self.inactivation * self.induction
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Evaluation:
+    """The organ ratios, their product and the terms they came from (keyed by (target, site))."""
+
+    organs: dict[str, Any]
+    total: Any
+    terms: dict[tuple[int, str], Terms]
+
+    @property
+    def gut(self) -> Any:
+        return self.organs["gut"]
+
+    @property
+    def liver(self) -> Any:
+        return self.organs["liver"]
+
+
+def reversible(sum_ratio: Any) -> Any:
+    """1/(1 + sum [I]/Ki,u) on floats or arrays."""
+    return 1.0 / (1.0 + sum_ratio)
+
+
+def inactivation(kobs_per_h: Any, kdeg_per_h: Any) -> Any:
+    """kdeg/(kdeg + kobs) on floats or arrays."""
+    return kdeg_per_h / (kdeg_per_h + kobs_per_h)
+
+
+def induction(effect: Any, calibration: Any = 1.0) -> Any:
+    """1 + d x effect on floats or arrays."""
+    return 1.0 + calibration * effect
+
+
+def _add(total: Any, term: Any) -> Any:
+    return term if total is None else total + term
+
+
+def site_terms(
+    acting: Sequence[Acting],
+    concentrations: Sequence[Any],
+    target: int,
+    kdeg_per_h: Any,
+    include: Sequence[str] = MECHANISMS,
+    scale: Any = None,
+) -> Terms:
+    """The reversible, inactivation and induction terms of ``target`` at one site.
+
+    ``concentrations`` holds the site's unbound concentration (uM) of each species, ``scale`` an optional
+    multiplier on them (perpetrator-dose scan); ``kdeg_per_h`` is ``None`` when unknown (no inactivation).
+    """
+    ratio = kobs = effect = None
+    rev_on, tdi_on, ind_on = (m in include for m in MECHANISMS)
+    for c in acting:
+        if c.target != target:
+            continue
+        conc = concentrations[c.species]
+        if scale is not None:
+            conc = scale * conc
+        if rev_on and c.ki_u is not None:
+            ratio = _add(ratio, conc / c.ki_u)
+        if tdi_on and c.kinact is not None and c.ki_inact_u is not None:
+            kobs = _add(kobs, c.kinact * conc / (c.ki_inact_u + conc))
+        if ind_on and c.emax is not None and c.ec50_u is not None:
+            effect = _add(effect, c.calibration * c.emax * conc / (c.ec50_u + conc))
+    return Terms(
+        reversible=reversible(0.0 if ratio is None else ratio),
+        inactivation=1.0 if kobs is None or kdeg_per_h is None else inactivation(kobs, kdeg_per_h),
+        induction=1.0 if effect is None else 1.0 + effect,
+    )
+
+
+def organ_ratio(form: str, pathways: Sequence[Pathway], activities: Sequence[Any]) -> Any:
+    """One organ's AUC ratio from its pathways and the activity left on each, in pathway order.
+
+    ``"fraction"``: 1/(sum f x activity + (1 - sum f)), with (1 - sum f) added after the weighted sum
+    (exact when sum f = 1, however small the activity); ``"availability"``: 1/(activity x (1 - F) + F)
+    for the organ's one pathway.  An organ without pathways has a ratio of exactly 1.
+    """
+    if not pathways:
+        return 1.0
+    if form == "availability":
+        (pw,), (act,) = pathways, activities
+        return 1.0 / (act * (1.0 - pw.fraction) + pw.fraction)
+    if form != "fraction":
+        raise ValueError(f"organ form {form!r}: expected 'fraction' or 'availability'")
+    weighted: Any = None
+    fm_sum: Any = None
+    for pw, act in zip(pathways, activities, strict=True):
+        f = pw.fraction if pw.scale is None else pw.fraction * pw.scale
+        weighted = _add(weighted, f * act)
+        fm_sum = _add(fm_sum, pw.fraction)
+    return 1.0 / (weighted + (1.0 - fm_sum))
+
+
+def evaluate(
+    acting: Sequence[Acting],
+    pathways: Sequence[Pathway],
+    concentrations: Mapping[str, Sequence[Any]],
+    kdeg_per_h: Mapping[tuple[int, str], Any],
+    *,
+    include: Sequence[str] = MECHANISMS,
+    scale: Any = None,
+) -> Evaluation:
+    """The victim's organ ratios and total AUC ratio.
+
+    Parameters
+    ----------
+    acting
+        The perpetrator's unbound constants, each on a target index.
+    pathways
+        The victim's pathways, each on a target index in an organ of :data:`ORGANS`.
+    concentrations
+        site -> unbound concentration (uM) of each perpetrator species at that site.
+    kdeg_per_h
+        (target, site) -> the target's degradation rate constant (1/h) there; missing or ``None``: unknown.
+    include
+        The mechanisms switched on (all by default; a subset gives a mechanism part).
+    scale
+        Multiplier on every concentration (perpetrator-dose scan); ``None`` for none.
+    """
+    terms: dict[tuple[int, str], Terms] = {}
+    organs: dict[str, Any] = {}
+    total: Any = None
+    for name, organ in ORGANS.items():
+        mine = [pw for pw in pathways if pw.organ == name]
+        acts = []
+        for pw in mine:
+            key = (pw.target, organ.site)
+            if key not in terms:
+                conc = concentrations[organ.site]
+                terms[key] = site_terms(acting, conc, pw.target, kdeg_per_h.get(key), include, scale)
+            acts.append(terms[key].activity)
+        organs[name] = organ_ratio(organ.form, mine, acts)
+        total = organs[name] if total is None else total * organs[name]
+    return Evaluation(organs=organs, total=total, terms=terms)
