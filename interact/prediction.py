@@ -140,8 +140,10 @@ class _Inputs:
     concentrations: dict[str, tuple[float, ...]]
     kdeg: dict[tuple[int, str], float | None]
 
+    structure: model.Model
+
     def evaluate(self, include: tuple[str, ...] = MECHANISM_PARTS, scale: float | None = None) -> model.Evaluation:
-        return model.evaluate(self.acting, self.pathways, self.concentrations, self.kdeg, include=include, scale=scale)
+        return self.structure.evaluate(self.concentrations, self.kdeg, include=include, scale=scale)
 
 
 def _inputs(
@@ -178,7 +180,7 @@ def _inputs(
         "liver": tuple(sp.unbound_inlet_um for sp in species),
         "gut": tuple(sp.enterocyte_um for sp in species),
     }
-    return _Inputs(targets, acting, tuple(victim), concentrations, rates)
+    return _Inputs(targets, acting, tuple(victim), concentrations, rates, model.Model(acting, victim))
 
 
 def _effects(
@@ -305,7 +307,9 @@ def ratio_function(
     """
     inputs = _inputs(pathways, fg, gut_enzyme, constants, species, kdeg)
 
+    structure, concentrations, rates = inputs.structure, inputs.concentrations, inputs.kdeg
+
     def total(scale: float) -> float:
-        return float(inputs.evaluate(scale=scale).total)
+        return float(structure.total(concentrations, rates, scale))
 
     return total
