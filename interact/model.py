@@ -60,7 +60,6 @@ __all__ = [
     "Terms",
     "evaluate",
     "organ_ratio",
-    "site_terms",
 ]
 
 #: the mechanisms, each of which can be switched off (the mechanism parts of a prediction)
@@ -155,53 +154,11 @@ def induction(effect: Any, calibration: Any = 1.0) -> Any:
     return 1.0 + calibration * effect
 
 
-def site_terms(
-    acting: Sequence[Acting],
-    concentrations: Sequence[Any],
-    target: int,
-    kdeg_per_h: Any,
-    include: Sequence[str] = MECHANISMS,
-    scale: Any = None,
-) -> Terms:
-    """The reversible, inactivation and induction terms of ``target`` at one site.
-
-    ``concentrations`` holds the site's unbound concentration (uM) of each species, ``scale`` an optional
-    multiplier on them (perpetrator-dose scan); ``kdeg_per_h`` is ``None`` when unknown (no inactivation).
-    """
-    on = tuple(c for c in acting if c.target == target)
-    return Terms(*_terms(on, concentrations, kdeg_per_h, _switches(include), scale))
-
-
 def _switches(include: Sequence[str]) -> tuple[bool, bool, bool]:
     return ("reversible" in include, "time-dependent" in include, "induction" in include)
 
 
 _ALL_ON: Final = (True, True, True)
-
-
-def _terms(
-    on: Sequence[Acting], concentrations: Sequence[Any], kdeg_per_h: Any, switches: tuple[bool, ...], scale: Any
-) -> tuple[Any, Any, Any]:
-    """:func:`site_terms` for the constants ``on`` the target, with the mechanisms' on/off switches."""
-    ratio = kobs = effect = None
-    rev_on, tdi_on, ind_on = switches
-    for c in on:
-        conc = concentrations[c.species]
-        if scale is not None:
-            conc = scale * conc
-        if rev_on and c.ki_u is not None:
-            ratio = conc / c.ki_u if ratio is None else ratio + conc / c.ki_u
-        if tdi_on and c.kinact is not None and c.ki_inact_u is not None:
-            k = c.kinact * conc / (c.ki_inact_u + conc)
-            kobs = k if kobs is None else kobs + k
-        if ind_on and c.emax is not None and c.ec50_u is not None:
-            e = c.calibration * c.emax * conc / (c.ec50_u + conc)
-            effect = e if effect is None else effect + e
-    return (
-        1.0 / (1.0 + ratio) if ratio is not None else 1.0,
-        1.0 if kobs is None or kdeg_per_h is None else inactivation(kobs, kdeg_per_h),
-        1.0 if effect is None else 1.0 + effect,
-    )
 
 
 _FORMS: Final = ("fraction", "availability")
@@ -243,18 +200,19 @@ class Model:
         on: dict[int, list[Acting]] = {}
         for c in acting:
             on.setdefault(c.target, []).append(c)
-        unknown = {pw.organ for pw in pathways} - set(ORGANS)
-        if unknown:
-            raise ValueError(f"pathway organ {sorted(unknown)[0]!r}: expected one of {', '.join(ORGANS)}")
+        for pw in pathways:
+            if pw.organ not in ORGANS:
+                raise ValueError(f"pathway organ {pw.organ!r}: expected one of {', '.join(ORGANS)}")
         sites: dict[tuple[int, str], int] = {}  # (target, site) -> position of its terms, each computed once
         organs = []
         for name, organ in ORGANS.items():
             if organ.form not in _FORMS:
                 raise ValueError(f"organ {name}: form {organ.form!r}, expected 'fraction' or 'availability'")
-            mine = tuple(pw for pw in pathways if pw.organ == name)
-            organs.append((name, organ.form, mine, tuple(sites.setdefault((pw.target, organ.site), len(sites)) for pw in mine)))
+            mine = [pw for pw in pathways if pw.organ == name]
+            where = [sites.setdefault((pw.target, organ.site), len(sites)) for pw in mine]
+            organs.append((name, organ.form, tuple(mine), tuple(where)))
         self._organs = tuple(organs)
-        self._sites = tuple((key, tuple(on.get(key[0], ()))) for key in sites)
+        self._sites = tuple([(key, tuple(on.get(key[0], ()))) for key in sites])
 
     def evaluate(
         self,
@@ -275,15 +233,36 @@ class Model:
     def _run(
         self, concentrations: Mapping[str, Sequence[Any]], kdeg_per_h: Mapping[tuple[int, str], Any], include: Sequence[str], scale: Any
     ) -> tuple[dict[str, Any], Any, dict[tuple[int, str], tuple[Any, Any, Any]]]:
-        switches = _ALL_ON if include is MECHANISMS else _switches(include)
-        terms = {key: _terms(on, concentrations[key[1]], kdeg_per_h.get(key), switches, scale) for key, on in self._sites}
-        acts = [t[0] * t[1] * t[2] for t in terms.values()]
+        rev_on, tdi_on, ind_on = _ALL_ON if include is MECHANISMS else _switches(include)
+        terms = {}
+        acts = []
+        # plain loops, the three terms written here once: a scalar dose scan runs this some 14 times per scenario
+        for key, on in self._sites:
+            site = concentrations[key[1]]
+            ratio = kobs = effect = None
+            for c in on:  # the constants on this target, in their order
+                conc = site[c.species] if scale is None else scale * site[c.species]
+                if rev_on and c.ki_u is not None:
+                    ratio = conc / c.ki_u if ratio is None else ratio + conc / c.ki_u
+                if tdi_on and c.kinact is not None and c.ki_inact_u is not None:
+                    k = c.kinact * conc / (c.ki_inact_u + conc)
+                    kobs = k if kobs is None else kobs + k
+                if ind_on and c.emax is not None and c.ec50_u is not None:
+                    e = c.calibration * c.emax * conc / (c.ec50_u + conc)
+                    effect = e if effect is None else effect + e
+            kdeg = kdeg_per_h.get(key)
+            t = terms[key] = (
+                1.0 if ratio is None else reversible(ratio),
+                1.0 if kobs is None or kdeg is None else inactivation(kobs, kdeg),
+                1.0 if effect is None else 1.0 + effect,
+            )
+            acts.append(t[0] * t[1] * t[2])
         organs: dict[str, Any] = {}
         total: Any = None
         for name, form, mine, where in self._organs:
-            ratio = organ_ratio(form, mine, [acts[k] for k in where])
-            organs[name] = ratio
-            total = ratio if total is None else total * ratio
+            value = organ_ratio(form, mine, tuple(map(acts.__getitem__, where)))
+            organs[name] = value
+            total = value if total is None else total * value
         return organs, total, terms
 
 

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -130,8 +131,7 @@ def _targets(pathways: tuple[tuple[str, float], ...], gut_enzyme: str | None, co
     return index
 
 
-@dataclass(frozen=True, slots=True)
-class _Inputs:
+class _Inputs(NamedTuple):
     """One scenario's numbers as the arguments of :func:`interact.model.evaluate` (floats: the n = 1 case)."""
 
     targets: dict[str, int]
@@ -139,7 +139,6 @@ class _Inputs:
     pathways: tuple[model.Pathway, ...]
     concentrations: dict[str, tuple[float, ...]]
     kdeg: dict[tuple[int, str], float | None]
-
     structure: model.Model
 
     def evaluate(self, include: tuple[str, ...] = MECHANISM_PARTS, scale: float | None = None) -> model.Evaluation:
@@ -307,9 +306,13 @@ def ratio_function(
     """
     inputs = _inputs(pathways, fg, gut_enzyme, constants, species, kdeg)
 
-    structure, concentrations, rates = inputs.structure, inputs.concentrations, inputs.kdeg
+    run, concentrations, rates = inputs.structure.total, inputs.concentrations, inputs.kdeg
+    seen: dict[float, float] = {}  # the root search asks again for the ends of its bracket
 
     def total(scale: float) -> float:
-        return float(structure.total(concentrations, rates, scale))
+        value = seen.get(scale)
+        if value is None:
+            value = seen[scale] = float(run(concentrations, rates, scale))
+        return value
 
     return total
