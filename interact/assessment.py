@@ -17,7 +17,7 @@ from .dosing import DoseLimit, DoseSuggestion, RegimenPlan, highest_perpetrator_
 from .errors import AssumptionWarning, FromMemoryWarning, InputError, InteractWarning, ModelLimitWarning, emit_warnings
 from .exposure import Setting, SpeciesExposure, resolve_exposure, resolve_settings
 from .genotype import PhenotypeCase, phenotype_cases
-from .prediction import Prediction, predict, ratio_function
+from .prediction import Prediction, model_inputs, predict, ratio_function
 from .scenario import Scenario
 from .screening import ScreenResult, screen
 from .tables import UNVERIFIED, RuleSet, Sourced, load_classes, load_rules, resolve_target, table_versions
@@ -201,7 +201,10 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
     gut_enzyme = next((c.target for c in constants if c.gut_wall), None) if v.route == "oral" else None
     fg = 1.0 if v.fg is None else v.fg
     pathways = tuple((pw.enzyme, pw.fm) for pw in v.pathways)
-    prediction = predict(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, classes=classes)
+    inputs = model_inputs(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
+    prediction = predict(
+        pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, classes=classes, inputs=inputs
+    )
     _check_finite(screen_results, prediction, constants)
     _input_warnings(warnings, scenario, constants, gut_enzyme, kdeg, kdeg_used)
     _model_limit_warnings(warnings, scenario, rule_set, constants, screen_results, prediction)
@@ -215,7 +218,9 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
     )
     cases = phenotype_cases(v.phenotypes, prediction, plan)
     _dose_warnings(warnings, scenario, plan)
-    ratio_at = ratio_function(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
+    ratio_at = ratio_function(
+        pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, inputs=inputs
+    )
     limit = _perpetrator_limit(p, prediction, ratio_at, plan.boundary[1])
     study, aucr_cut = _study(warnings, rule_set, prediction)
     all_settings = (*settings.values(), *fu_settings)

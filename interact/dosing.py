@@ -20,11 +20,12 @@ carries :data:`interact.cautions.DOSE_CAUTIONS`.
 from __future__ import annotations
 
 import dataclasses
+import functools
 import itertools
 import math
 from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING, Final
+from typing import TYPE_CHECKING, Final, ParamSpec
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -176,6 +177,25 @@ def _check_boundary(name: str, b: tuple[float, float]) -> tuple[float, float]:
     return lo, hi
 
 
+_P = ParamSpec("_P")
+
+
+def _remembered(function: Callable[_P, RegimenPlan]) -> Callable[_P, RegimenPlan]:
+    """``function`` remembered by its (keyword) arguments, typed (10 and 10.0 are kept apart), when they are hashable."""
+    cached = functools.lru_cache(maxsize=256, typed=True)(function)
+
+    @functools.wraps(function)
+    def call(*args: _P.args, **kwargs: _P.kwargs) -> RegimenPlan:
+        try:
+            hash((args, tuple(kwargs.values())))
+        except TypeError:  # a list or an array given: built, not remembered
+            return function(*args, **kwargs)
+        return cached(*args, **kwargs)  # type: ignore[arg-type]  # hashable: checked above
+
+    return call
+
+
+@_remembered
 def plan_regimens(
     *,
     usual_dose: float,
@@ -220,6 +240,13 @@ def plan_regimens(
     InputError
         Naming the field, for a non-positive dose or interval, a bad boundary,
         or more unit sizes than the search takes.
+
+    Notes
+    -----
+    Plans are remembered by their arguments (``functools.lru_cache``): the enumeration of
+    strength sums is most of an assessment's time otherwise (about 90 of 490 us for the
+    demo), and the terminal app re-assesses the same object drug on every keystroke.  A plan
+    is immutable (its arrays are read-only), so sharing one is safe.
     """
     for name, value in (("victim.dose", usual_dose), ("victim.interval", interval_h)):
         if not (math.isfinite(value) and value > 0.0):
@@ -276,6 +303,16 @@ def plan_regimens(
         dtype=float,
     )
     codes = [INTERVAL if c.kind == "interval" else (INCREASE if c.kind == "dose" and c.dose > usual_dose else REDUCE) for c in regimens]
+    arrays = {
+        "factors": factors,
+        "log_factors": np.log(factors),
+        "exact": np.array([c.kind == "exact dose" for c in regimens], dtype=bool),
+        "interval": np.array([c.kind == "interval" for c in regimens], dtype=bool),
+        "taus_h": np.array(taus, dtype=float),
+        "codes": np.array([*codes, AVOID], dtype=np.int8),
+    }
+    for a in arrays.values():
+        a.setflags(write=False)  # plans are shared (remembered by their arguments)
     return RegimenPlan(
         usual_dose=usual_dose,
         dose_unit=dose_unit,
@@ -289,12 +326,7 @@ def plan_regimens(
         narrow_therapeutic_index=narrow_therapeutic_index,
         max_units=max_units,
         intervals_h=tuple(sorted(float(t) for t in intervals_h)),
-        factors=factors,
-        log_factors=np.log(factors),
-        exact=np.array([c.kind == "exact dose" for c in regimens], dtype=bool),
-        interval=np.array([c.kind == "interval" for c in regimens], dtype=bool),
-        taus_h=np.array(taus, dtype=float),
-        codes=np.array([*codes, AVOID], dtype=np.int8),
+        **arrays,
     )
 
 
@@ -574,9 +606,13 @@ class DoseSuggestion:
         return c.regimen.interval_h if c is not None and c.regimen.kind == "interval" else None
 
 
-def _outcomes(plan: RegimenPlan, auc_ratio: float, c: CandidateRatios) -> list[RegimenOutcome]:
+def _outcomes(plan: RegimenPlan, auc_ratio: float, c: CandidateRatios, only: list[int] | None = None) -> list[RegimenOutcome]:
+    """The candidates (those at the positions ``only``, else all) with their ratios for the first row of ``c``."""
     out = []
-    for k, reg in enumerate(plan.candidates):
+    # the first row as Python numbers at once (the same values as float() of each element, without a numpy scalar each)
+    exposure, peak, trough, feasible = (c.exposure[0].tolist(), c.peak[0].tolist(), c.trough[0].tolist(), c.feasible[0].tolist())
+    for k in range(len(plan.candidates)) if only is None else only:
+        reg = plan.candidates[k]
         if reg.kind == "exact dose":
             reg = dataclasses.replace(reg, dose=plan.usual_dose / auc_ratio)
         judged = reg.kind == "interval" and plan.half_life_h is not None
@@ -584,10 +620,10 @@ def _outcomes(plan: RegimenPlan, auc_ratio: float, c: CandidateRatios) -> list[R
             RegimenOutcome(
                 index=k,
                 regimen=reg,
-                exposure_ratio=float(c.exposure[0, k]),
-                peak_ratio=float(c.peak[0, k]) if judged else None,
-                trough_ratio=float(c.trough[0, k]) if judged else None,
-                feasible=bool(c.feasible[0, k]),
+                exposure_ratio=exposure[k],
+                peak_ratio=peak[k] if judged else None,
+                trough_ratio=trough[k] if judged else None,
+                feasible=feasible[k],
                 checked=reg.kind != "interval" or judged,
             )
         )
@@ -668,12 +704,14 @@ def suggest_dose(
     score = _scores(plan, r, ratios.feasible)
     codes, picks = _decide(plan, r, score)
     code, k = int(codes[0]), int(picks[0])
-    outcomes = _outcomes(plan, auc_ratio, ratios)
+    # the records the text needs: none inside the boundary, the feasible ones when one is chosen, all for the nearest
+    feasible = [] if code == NO_CHANGE else np.flatnonzero(ratios.feasible[0]).tolist() if k >= 0 else None
+    outcomes = _outcomes(plan, auc_ratio, ratios, feasible)
     exact = plan.usual_dose / auc_ratio
     exact_tau = plan.usual_interval_h * auc_ratio
     reasons: list[str] = []
     cautions = list(DOSE_CAUTIONS)
-    chosen: RegimenOutcome | None = outcomes[k] if k >= 0 else None
+    chosen: RegimenOutcome | None = next(o for o in outcomes if o.index == k) if k >= 0 else None
     options: tuple[RegimenOutcome, ...] = ()
     nearest: tuple[RegimenOutcome, ...] = ()
     if code == NO_CHANGE:

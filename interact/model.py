@@ -45,7 +45,7 @@ renal secretion, and a kidney ratio) is data, not a new code path:
 
 from __future__ import annotations
 
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any, Final, NamedTuple
 
@@ -175,23 +175,46 @@ def organ_ratio(form: str, pathways: Sequence[Pathway], activities: Sequence[Any
         raise ValueError(f"organ form {form!r}: expected 'fraction' or 'availability'")
     if not pathways:
         return 1.0
+    return _ratio(_organ_constants(form, pathways), activities)
+
+
+def _organ_constants(form: str, pathways: Sequence[Pathway]) -> tuple[str, tuple[Any, ...], Any]:
+    """What an organ's ratio needs of its pathways, worked out once: (form, weights, rest).
+
+    "fraction": the weights f x scale and rest = 1 - sum f (summed in pathway order);
+    "availability": the weight 1 - F and rest = F.
+    """
     if form == "availability":
-        (pw,), (act,) = pathways, activities
-        return 1.0 / (act * (1.0 - pw.fraction) + pw.fraction)
-    weighted: Any = None
+        (pw,) = pathways
+        return form, (1.0 - pw.fraction,), pw.fraction
     fm_sum: Any = None
-    for pw, act in zip(pathways, activities, strict=True):
-        f = pw.fraction if pw.scale is None else pw.fraction * pw.scale
-        weighted = f * act if weighted is None else weighted + f * act
+    for pw in pathways:
         fm_sum = pw.fraction if fm_sum is None else fm_sum + pw.fraction
-    return 1.0 / (weighted + (1.0 - fm_sum))
+    return form, tuple(pw.fraction if pw.scale is None else pw.fraction * pw.scale for pw in pathways), 1.0 - fm_sum
+
+
+def _ratio(constants: tuple[str, tuple[Any, ...], Any], activities: Sequence[Any]) -> Any:
+    """The organ ratio from :func:`_organ_constants` and the activities (the one place of both forms' arithmetic)."""
+    form, weights, rest = constants
+    if form == "availability":
+        return 1.0 / (activities[0] * weights[0] + rest)
+    weighted: Any = None
+    for f, act in zip(weights, activities, strict=True):
+        weighted = f * act if weighted is None else weighted + f * act
+    return 1.0 / (weighted + rest)
+
+
+#: one site's constants bound to its concentrations: (conc, Ki,u) pairs, (conc, kinact, KI,u) triples,
+#: (conc, d x Emax, EC50,u) triples, each in the constants' order, and the site's kdeg (None: unknown)
+_Bound = tuple[tuple[tuple[Any, Any], ...], tuple[tuple[Any, Any, Any], ...], tuple[tuple[Any, Any, Any], ...], Any]
 
 
 class Model:
     """The structure of the model for one set of constants and pathways, built once, evaluated many times.
 
     Which constants act on each pathway's target, and at which site, is worked out here; :meth:`evaluate`
-    then does only the arithmetic (a perpetrator-dose scan evaluates the same structure at many scales).
+    then does only the arithmetic, and :meth:`total_function` binds the concentrations once for a
+    perpetrator-dose scan that evaluates the same inputs at many scales.
     """
 
     __slots__ = ("_organs", "_sites")
@@ -209,8 +232,8 @@ class Model:
             if organ.form not in _FORMS:
                 raise ValueError(f"organ {name}: form {organ.form!r}, expected 'fraction' or 'availability'")
             mine = [pw for pw in pathways if pw.organ == name]
-            where = [sites.setdefault((pw.target, organ.site), len(sites)) for pw in mine]
-            organs.append((name, organ.form, tuple(mine), tuple(where)))
+            where = tuple([sites.setdefault((pw.target, organ.site), len(sites)) for pw in mine])
+            organs.append((name, _organ_constants(organ.form, mine) if mine else None, where))
         self._organs = tuple(organs)
         self._sites = tuple([(key, tuple(on.get(key[0], ()))) for key in sites])
 
@@ -223,47 +246,82 @@ class Model:
         scale: Any = None,
     ) -> Evaluation:
         """The organ ratios and the total (arguments as for :func:`evaluate`)."""
-        organs, total, terms = self._run(concentrations, kdeg_per_h, include, scale)
-        return Evaluation(organs, total, {key: Terms(*t) for key, t in terms.items()})
+        terms = self._terms(self._bind(concentrations, kdeg_per_h), include, scale)
+        organs, total = self._organ_ratios([t[0] * t[1] * t[2] for t in terms])
+        return Evaluation(organs, total, {key: Terms(*t) for (key, _), t in zip(self._sites, terms, strict=True)})
 
     def total(self, concentrations: Mapping[str, Sequence[Any]], kdeg_per_h: Mapping[tuple[int, str], Any], scale: Any = None) -> Any:
         """The total ratio alone, every mechanism on (the perpetrator-dose scan)."""
-        return self._run(concentrations, kdeg_per_h, MECHANISMS, scale)[1]
+        return self.total_function(concentrations, kdeg_per_h)(scale)
 
-    def _run(
-        self, concentrations: Mapping[str, Sequence[Any]], kdeg_per_h: Mapping[tuple[int, str], Any], include: Sequence[str], scale: Any
-    ) -> tuple[dict[str, Any], Any, dict[tuple[int, str], tuple[Any, Any, Any]]]:
-        rev_on, tdi_on, ind_on = _ALL_ON if include is MECHANISMS else _switches(include)
-        terms = {}
-        acts = []
-        # plain loops, the three terms written here once: a scalar dose scan runs this some 14 times per scenario
+    def total_function(
+        self, concentrations: Mapping[str, Sequence[Any]], kdeg_per_h: Mapping[tuple[int, str], Any]
+    ) -> Callable[[Any], Any]:
+        """``scale -> total ratio`` (every mechanism on; ``None`` for no scale), the inputs bound once.
+
+        The same arithmetic as :meth:`evaluate`, to the last bit; a scalar dose scan calls it some 14 times per scenario.
+        """
+        bound = self._bind(concentrations, kdeg_per_h)
+        terms, organ_ratios = self._terms, self._organ_ratios
+
+        def total(scale: Any) -> Any:
+            return organ_ratios([t[0] * t[1] * t[2] for t in terms(bound, MECHANISMS, scale)])[1]
+
+        return total
+
+    def _bind(self, concentrations: Mapping[str, Sequence[Any]], kdeg_per_h: Mapping[tuple[int, str], Any]) -> tuple[_Bound, ...]:
+        """Each site's constants with the concentrations they see (d x Emax multiplied once: the same product as in the loop)."""
+        bound = []
         for key, on in self._sites:
             site = concentrations[key[1]]
-            ratio = kobs = effect = None
-            for c in on:  # the constants on this target, in their order
-                conc = site[c.species] if scale is None else scale * site[c.species]
-                if rev_on and c.ki_u is not None:
-                    ratio = conc / c.ki_u if ratio is None else ratio + conc / c.ki_u
-                if tdi_on and c.kinact is not None and c.ki_inact_u is not None:
-                    k = c.kinact * conc / (c.ki_inact_u + conc)
-                    kobs = k if kobs is None else kobs + k
-                if ind_on and c.emax is not None and c.ec50_u is not None:
-                    e = c.calibration * c.emax * conc / (c.ec50_u + conc)
-                    effect = e if effect is None else effect + e
-            kdeg = kdeg_per_h.get(key)
-            t = terms[key] = (
-                1.0 if ratio is None else reversible(ratio),
-                1.0 if kobs is None or kdeg is None else inactivation(kobs, kdeg),
-                1.0 if effect is None else 1.0 + effect,
+            bound.append(
+                (
+                    tuple([(site[c.species], c.ki_u) for c in on if c.ki_u is not None]),
+                    tuple([(site[c.species], c.kinact, c.ki_inact_u) for c in on if c.kinact is not None and c.ki_inact_u is not None]),
+                    tuple([(site[c.species], c.calibration * c.emax, c.ec50_u) for c in on if c.emax is not None and c.ec50_u is not None]),
+                    kdeg_per_h.get(key),
+                )
             )
-            acts.append(t[0] * t[1] * t[2])
+        return tuple(bound)
+
+    @staticmethod
+    def _terms(bound: tuple[_Bound, ...], include: Sequence[str], scale: Any) -> list[tuple[Any, Any, Any]]:
+        """(reversible, inactivation, induction) per site: the three terms, written here once."""
+        rev_on, tdi_on, ind_on = _ALL_ON if include is MECHANISMS else _switches(include)
+        out = []
+        for rev, tdi, ind, kdeg in bound:
+            ratio = kobs = effect = None
+            if rev_on:
+                for conc, ki in rev:  # sums over the constants on this target, in their order
+                    conc = conc if scale is None else scale * conc
+                    ratio = conc / ki if ratio is None else ratio + conc / ki
+            if tdi_on and kdeg is not None:
+                for conc, kinact, ki_inact in tdi:
+                    conc = conc if scale is None else scale * conc
+                    k = kinact * conc / (ki_inact + conc)
+                    kobs = k if kobs is None else kobs + k
+            if ind_on:
+                for conc, d_emax, ec50 in ind:
+                    conc = conc if scale is None else scale * conc
+                    e = d_emax * conc / (ec50 + conc)
+                    effect = e if effect is None else effect + e
+            out.append(
+                (
+                    1.0 if ratio is None else 1.0 / (1.0 + ratio),
+                    1.0 if kobs is None else kdeg / (kdeg + kobs),
+                    1.0 if effect is None else 1.0 + effect,
+                )
+            )
+        return out
+
+    def _organ_ratios(self, acts: list[Any]) -> tuple[dict[str, Any], Any]:
         organs: dict[str, Any] = {}
         total: Any = None
-        for name, form, mine, where in self._organs:
-            value = organ_ratio(form, mine, tuple(map(acts.__getitem__, where)))
+        for name, constants, where in self._organs:
+            value = 1.0 if constants is None else _ratio(constants, [acts[i] for i in where])
             organs[name] = value
             total = value if total is None else total * value
-        return organs, total, terms
+        return organs, total
 
 
 def evaluate(

@@ -28,6 +28,7 @@ __all__ = [
     "inactivation_term",
     "induction_term",
     "liver_ratio",
+    "model_inputs",
     "predict",
     "ratio_function",
     "reversible_term",
@@ -131,8 +132,12 @@ def _targets(pathways: tuple[tuple[str, float], ...], gut_enzyme: str | None, co
     return index
 
 
-class _Inputs(NamedTuple):
-    """One scenario's numbers as the arguments of :func:`interact.model.evaluate` (floats: the n = 1 case)."""
+class ModelInputs(NamedTuple):
+    """One scenario's numbers as the arguments of :func:`interact.model.evaluate` (floats: the n = 1 case).
+
+    Built once per assessment by :func:`model_inputs` and shared by :func:`predict` (ratios, terms, mechanism
+    parts) and :func:`ratio_function` (the perpetrator-dose scan).
+    """
 
     targets: dict[str, int]
     acting: tuple[model.Acting, ...]
@@ -145,14 +150,16 @@ class _Inputs(NamedTuple):
         return self.structure.evaluate(self.concentrations, self.kdeg, include=include, scale=scale)
 
 
-def _inputs(
+def model_inputs(
+    *,
     pathways: tuple[tuple[str, float], ...],
     fg: float,
     gut_enzyme: str | None,
     constants: tuple[Constant, ...],
     species: tuple[SpeciesExposure, ...],
     kdeg: dict[str, tuple[float | None, float | None]],
-) -> _Inputs:
+) -> ModelInputs:
+    """The model's inputs and structure for one scenario (arguments as for :func:`predict`)."""
     targets = _targets(pathways, gut_enzyme, constants)
     acting = tuple(
         model.Acting(
@@ -179,14 +186,14 @@ def _inputs(
         "liver": tuple(sp.unbound_inlet_um for sp in species),
         "gut": tuple(sp.enterocyte_um for sp in species),
     }
-    return _Inputs(targets, acting, tuple(victim), concentrations, rates, model.Model(acting, victim))
+    return ModelInputs(targets, acting, tuple(victim), concentrations, rates, model.Model(acting, victim))
 
 
 def _effects(
     pathways: tuple[tuple[str, float], ...],
     gut_enzyme: str | None,
     constants: tuple[Constant, ...],
-    inputs: _Inputs,
+    inputs: ModelInputs,
     result: model.Evaluation,
     kdeg: dict[str, tuple[float | None, float | None]],
     scale: float,
@@ -219,7 +226,7 @@ def _mechanisms(constants: tuple[Constant, ...]) -> tuple[str, ...]:
     return tuple(m for m, on in zip(MECHANISM_PARTS, present, strict=True) if on)
 
 
-def _parts(mechanisms: tuple[str, ...], inputs: _Inputs, scale: float) -> tuple[MechanismPart, ...]:
+def _parts(mechanisms: tuple[str, ...], inputs: ModelInputs, scale: float) -> tuple[MechanismPart, ...]:
     """The ratios with one mechanism at a time (and both inhibitory ones together when induction is also present)."""
     if len(mechanisms) <= 1:
         return ()
@@ -245,6 +252,7 @@ def predict(
     kdeg: dict[str, tuple[float | None, float | None]],
     classes: Classes,
     scale: float = 1.0,
+    inputs: ModelInputs | None = None,
 ) -> Prediction:
     """The mechanistic static model for one victim: :func:`interact.model.evaluate` on floats, with its terms.
 
@@ -264,8 +272,11 @@ def predict(
         enzyme -> (hepatic kdeg, intestinal kdeg) in 1/h, for inactivation.
     scale
         Multiplier on every perpetrator concentration (perpetrator-dose scan).
+    inputs
+        :func:`model_inputs` of the same arguments, when the caller has built them already.
     """
-    inputs = _inputs(pathways, fg, gut_enzyme, constants, species, kdeg)
+    if inputs is None:
+        inputs = model_inputs(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
     mechanisms = _mechanisms(constants)
     result = inputs.evaluate(scale=scale)
     gut_r, liver_r = float(result.gut), float(result.liver)
@@ -299,20 +310,21 @@ def ratio_function(
     constants: tuple[Constant, ...],
     species: tuple[SpeciesExposure, ...],
     kdeg: dict[str, tuple[float | None, float | None]],
+    inputs: ModelInputs | None = None,
 ) -> Callable[[float], float]:
     """``scale -> total AUCR``: :func:`interact.model.evaluate` with every concentration times ``scale``.
 
-    Used for root finding over the perpetrator's dose.
+    Used for root finding over the perpetrator's dose; ``inputs`` as for :func:`predict`.
     """
-    inputs = _inputs(pathways, fg, gut_enzyme, constants, species, kdeg)
-
-    run, concentrations, rates = inputs.structure.total, inputs.concentrations, inputs.kdeg
+    if inputs is None:
+        inputs = model_inputs(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
+    run = inputs.structure.total_function(inputs.concentrations, inputs.kdeg)
     seen: dict[float, float] = {}  # the root search asks again for the ends of its bracket
 
     def total(scale: float) -> float:
         value = seen.get(scale)
         if value is None:
-            value = seen[scale] = float(run(concentrations, rates, scale))
+            value = seen[scale] = float(run(scale))
         return value
 
     return total

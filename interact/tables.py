@@ -192,8 +192,9 @@ class Target:
 
 
 @lru_cache(maxsize=1)
+@lru_cache(maxsize=1)
 def tables_dir() -> Path:
-    """The folder holding the reference tables (installed or source checkout)."""
+    """The folder holding the reference tables (installed or source checkout; looked up once: it does not move)."""
     here = Path(__file__).resolve().parent
     for candidate in (here / "reference_tables", here.parent / "reference_tables"):
         if (candidate / "physiology.toml").is_file():
@@ -214,7 +215,7 @@ def load_rules(name_or_path: str | Path | None = None, *, base: str | Path | Non
     """
     key = DEFAULT_RULES if name_or_path is None else str(name_or_path)
     if key in rule_set_names():
-        return _load_rules_file(str(tables_dir() / "rules" / f"{key}.toml"))
+        return _load_rules_file(_shipped_rules_path(key))
     path = Path(key).expanduser()
     if base is not None and not path.is_absolute():
         path = Path(base) / path
@@ -222,6 +223,11 @@ def load_rules(name_or_path: str | Path | None = None, *, base: str | Path | Non
         return _load_rules_file(str(path.resolve()))
     names = ", ".join(rule_set_names())
     raise InputError("rules", key, f"is neither a known rule set ({names}) nor a readable .toml file")
+
+
+@lru_cache(maxsize=16)
+def _shipped_rules_path(name: str) -> str:
+    return str(tables_dir() / "rules" / f"{name}.toml")
 
 
 #: the keys of a rule-set file, and of each criterion
