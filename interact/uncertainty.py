@@ -47,7 +47,8 @@ from numpy.typing import NDArray
 
 from . import units
 from .arrays import band_codes, band_labels
-from .assessment import Assessment, _kdeg
+from .assessment import Assessment
+from .constants import kdeg_per_h
 from .dosing import ACTIONS, Regimen, choose_regimens, feasible_fraction, regimen_label
 from .errors import InputError
 from .exposure import enterocyte_um, unbound_cmax_um, unbound_inlet_um
@@ -433,7 +434,7 @@ class ScenarioModel:
             (pw.enzyme, add(f"victim.pathways[{k}].fm", f"fm {pw.enzyme} of {v.name}", "", "fraction", pw.fm))
             for k, pw in enumerate(v.pathways)
         ]
-        kdeg, _ = _kdeg(s, a.constants)
+        kdeg, _ = kdeg_per_h(s, a.constants)
         self._kdeg: dict[str, tuple[str | None, str | None]] = {}
         for enzyme, (k_liver, k_gut) in kdeg.items():
             self._kdeg[enzyme] = (
