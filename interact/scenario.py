@@ -822,8 +822,10 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
 
 
 def dumps_scenario(scenario: Scenario) -> str:
-    """The scenario as TOML text."""
-    return _dump_toml(scenario_to_dict(scenario))
+    """The scenario as TOML text (written by tomlkit)."""
+    import tomlkit
+
+    return tomlkit.dumps(scenario_to_dict(scenario))
 
 
 def save_scenario(scenario: Scenario, path: str | Path, *, force: bool = False) -> None:
@@ -1023,47 +1025,3 @@ def write_text_atomic(path: Path, text: str | bytes, *, field: str = "path", for
     from .files import write_file
 
     write_file(path, text, field=field, force=force)
-
-
-def _toml_value(value: Any) -> str:
-    if isinstance(value, bool):
-        return "true" if value else "false"
-    if isinstance(value, int):
-        return str(value)
-    if isinstance(value, float):
-        return repr(value)
-    if isinstance(value, str):
-        escaped = value.replace("\\", "\\\\").replace('"', '\\"')
-        escaped = escaped.replace("\n", "\\n").replace("\t", "\\t").replace("\r", "\\r")
-        escaped = "".join(c if ord(c) >= 0x20 and ord(c) != 0x7F else f"\\u{ord(c):04x}" for c in escaped)
-        return f'"{escaped}"'
-    if isinstance(value, list):
-        return "[" + ", ".join(_toml_value(v) for v in value) + "]"
-    raise TypeError(f"cannot write {type(value).__name__} to TOML")  # internal: scenario_to_dict emits only these
-
-
-def _dump_toml(data: dict[str, Any]) -> str:
-    lines: list[str] = []
-
-    def emit(table: dict[str, Any], prefix: str) -> None:
-        scalars = {k: v for k, v in table.items() if not isinstance(v, dict) and not _is_table_list(v)}
-        for key, value in scalars.items():
-            lines.append(f"{key} = {_toml_value(value)}")
-        for key, value in table.items():
-            name = f"{prefix}.{key}" if prefix else key
-            if isinstance(value, dict):
-                lines.append("")
-                lines.append(f"[{name}]")
-                emit(value, name)
-            elif _is_table_list(value):
-                for item in value:
-                    lines.append("")
-                    lines.append(f"[[{name}]]")
-                    emit(item, name)
-
-    emit(data, "")
-    return "\n".join(lines).lstrip("\n") + "\n"
-
-
-def _is_table_list(value: Any) -> bool:
-    return isinstance(value, list) and bool(value) and all(isinstance(v, dict) for v in value)
