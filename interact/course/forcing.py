@@ -134,7 +134,9 @@ class PerpetratorCourse:
         def course(t: float) -> tuple[list[float], list[float]]:
             if t < -1e-9:
                 return zero, zero
-            m = min(int(t * inv_tau + 1e-9) + 1, n)
+            m = int(t * inv_tau + 1e-9) + 1
+            if m > n:
+                m = n
             dt = t - (m - 1) * tau
             s_a = exp(-ka * dt) * geo_a[m] if oral else 0.0
             if prof is not None:
