@@ -71,8 +71,9 @@ def _one(item: Inhibition, species: str, index: int, mw: pint.Quantity | None, p
         elif item.mechanism == "noncompetitive":
             ki_um, route = ic50, f"Cheng-Prusoff, noncompetitive: Ki = IC50 ({CHENG_PRUSOFF_SOURCE})"
         else:
-            s = units.concentration_um(item.substrate_conc, mw, field=f"{path}.substrate_conc") if item.substrate_conc else None
-            km = units.concentration_um(item.km, mw, field=f"{path}.km") if item.km else None
+            # "is not None", not truth: a pint quantity's truth costs microseconds (the reader refuses zero)
+            s = units.concentration_um(item.substrate_conc, mw, field=f"{path}.substrate_conc") if item.substrate_conc is not None else None
+            km = units.concentration_um(item.km, mw, field=f"{path}.km") if item.km is not None else None
             ki_um = float(ki_from_ic50(ic50, item.mechanism, s, km, item.alpha))
             route = (
                 f"Cheng-Prusoff, {item.mechanism}: IC50 {ic50:.4g} uM, [S] {s:.4g} uM, Km {km:.4g} uM"

@@ -181,7 +181,12 @@ _P = ParamSpec("_P")
 
 
 def _remembered(function: Callable[_P, RegimenPlan]) -> Callable[_P, RegimenPlan]:
-    """``function`` remembered by its (keyword) arguments, typed (10 and 10.0 are kept apart), when they are hashable."""
+    """``function`` remembered by its (keyword) arguments, typed (10 and 10.0 are kept apart), when they are hashable.
+
+    For :func:`plan_regimens`: the enumeration of strength sums was about 90 of the 490 us of an assessment
+    of the demo, and the terminal app re-assesses the same object drug on every keystroke.  A plan is
+    immutable (its arrays are read-only), so sharing one is safe.
+    """
     cached = functools.lru_cache(maxsize=256, typed=True)(function)
 
     @functools.wraps(function)
@@ -297,12 +302,7 @@ def plan_regimens(
         Naming the field, for a non-positive dose or interval, a bad boundary,
         or more unit sizes than the search takes.
 
-    Notes
-    -----
-    Plans are remembered by their arguments (``functools.lru_cache``): the enumeration of
-    strength sums is most of an assessment's time otherwise (about 90 of 490 us for the
-    demo), and the terminal app re-assesses the same object drug on every keystroke.  A plan
-    is immutable (its arrays are read-only), so sharing one is safe.
+    Plans are remembered by their arguments (see ``_remembered``).
     """
     b, pb, tb = _check_plan(
         usual_dose, dose_unit, interval_h, strengths, scored, max_units, intervals_h, half_life_h, boundary, peak_boundary, trough_boundary
@@ -417,7 +417,8 @@ def regimen_feasibility(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | No
     tolerance).
     """
     r = np.atleast_1d(np.asarray(total, dtype=float))
-    g = None if gut is None else np.broadcast_to(np.atleast_1d(np.asarray(gut, dtype=float)), r.shape)
+    # the gut ratio counts only for judged intervals (a half-life given): not shaped otherwise (a few us of one row)
+    g = None if gut is None or plan.half_life_h is None else np.broadcast_to(np.atleast_1d(np.asarray(gut, dtype=float)), r.shape)
     exposure, feasible, judged = _exposure_and_feasibility(plan, r, g)
     peak = np.full(exposure.shape, np.nan)
     trough = np.full(exposure.shape, np.nan)

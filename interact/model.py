@@ -45,7 +45,7 @@ renal secretion, and a kidney ratio) is data, not a new code path:
 
 from __future__ import annotations
 
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any, Final, NamedTuple
 
@@ -53,6 +53,7 @@ __all__ = [
     "MECHANISMS",
     "ORGANS",
     "Acting",
+    "Bound",
     "Evaluation",
     "Model",
     "Organ",
@@ -175,10 +176,15 @@ def organ_ratio(form: str, pathways: Sequence[Pathway], activities: Sequence[Any
         raise ValueError(f"organ form {form!r}: expected 'fraction' or 'availability'")
     if not pathways:
         return 1.0
-    return _ratio(_organ_constants(form, pathways), activities)
+    if len(activities) != len(pathways):
+        raise ValueError(f"{len(activities)} activities for {len(pathways)} pathways: expected one per pathway")
+    return _ratios(((_organ_constants(form, pathways), range(len(pathways))),), activities)[1]
 
 
-def _organ_constants(form: str, pathways: Sequence[Pathway]) -> tuple[str, tuple[Any, ...], Any]:
+_OrganConstants = tuple[str, tuple[Any, ...], Any]
+
+
+def _organ_constants(form: str, pathways: Sequence[Pathway]) -> _OrganConstants:
     """What an organ's ratio needs of its pathways, worked out once: (form, weights, rest).
 
     "fraction": the weights f x scale and rest = 1 - sum f (summed in pathway order);
@@ -193,31 +199,42 @@ def _organ_constants(form: str, pathways: Sequence[Pathway]) -> tuple[str, tuple
     return form, tuple(pw.fraction if pw.scale is None else pw.fraction * pw.scale for pw in pathways), 1.0 - fm_sum
 
 
-def _ratio(constants: tuple[str, tuple[Any, ...], Any], activities: Sequence[Any]) -> Any:
-    """The organ ratio from :func:`_organ_constants` and the activities (the one place of both forms' arithmetic)."""
-    form, weights, rest = constants
-    if form == "availability":
-        return 1.0 / (activities[0] * weights[0] + rest)
-    weighted: Any = None
-    for f, act in zip(weights, activities, strict=True):
-        weighted = f * act if weighted is None else weighted + f * act
-    return 1.0 / (weighted + rest)
+def _ratios(organs: Sequence[tuple[_OrganConstants | None, Sequence[int]]], activities: Sequence[Any]) -> tuple[list[Any], Any]:
+    """Each organ's ratio from its :func:`_organ_constants` (``None``: no pathways, ratio 1) and the activities at its
+    positions, one per pathway; and their product, the total (the one place of both forms' arithmetic)."""
+    values = []
+    total: Any = None
+    for constants, where in organs:
+        if constants is None:
+            value: Any = 1.0
+        else:
+            form, weights, rest = constants
+            if form == "availability":
+                value = 1.0 / (activities[where[0]] * weights[0] + rest)
+            else:
+                weighted: Any = None
+                for f, k in zip(weights, where, strict=True):
+                    weighted = f * activities[k] if weighted is None else weighted + f * activities[k]
+                value = 1.0 / (weighted + rest)
+        values.append(value)
+        total = value if total is None else total * value
+    return values, total
 
 
 #: one site's constants bound to its concentrations: (conc, Ki,u) pairs, (conc, kinact, KI,u) triples,
 #: (conc, d x Emax, EC50,u) triples, each in the constants' order, and the site's kdeg (None: unknown)
-_Bound = tuple[tuple[tuple[Any, Any], ...], tuple[tuple[Any, Any, Any], ...], tuple[tuple[Any, Any, Any], ...], Any]
+_Site = tuple[tuple[tuple[Any, Any], ...], tuple[tuple[Any, Any, Any], ...], tuple[tuple[Any, Any, Any], ...], Any]
 
 
 class Model:
     """The structure of the model for one set of constants and pathways, built once, evaluated many times.
 
-    Which constants act on each pathway's target, and at which site, is worked out here; :meth:`evaluate`
-    then does only the arithmetic, and :meth:`total_function` binds the concentrations once for a
-    perpetrator-dose scan that evaluates the same inputs at many scales.
+    Which constants act on each pathway's target, and at which site, is worked out here; :meth:`bind`
+    then gives it the concentrations (a :class:`Bound`, which does only the arithmetic: a perpetrator-dose
+    scan evaluates the same inputs at many scales).
     """
 
-    __slots__ = ("_organs", "_sites")
+    __slots__ = ("_names", "_organs", "_sites")
 
     def __init__(self, acting: Sequence[Acting], pathways: Sequence[Pathway]) -> None:
         on: dict[int, list[Acting]] = {}
@@ -233,7 +250,8 @@ class Model:
                 raise ValueError(f"organ {name}: form {organ.form!r}, expected 'fraction' or 'availability'")
             mine = [pw for pw in pathways if pw.organ == name]
             where = tuple([sites.setdefault((pw.target, organ.site), len(sites)) for pw in mine])
-            organs.append((name, _organ_constants(organ.form, mine) if mine else None, where))
+            organs.append((_organ_constants(organ.form, mine) if mine else None, where))
+        self._names = tuple(ORGANS)
         self._organs = tuple(organs)
         self._sites = tuple([(key, tuple(on.get(key[0], ()))) for key in sites])
 
@@ -246,50 +264,61 @@ class Model:
         scale: Any = None,
     ) -> Evaluation:
         """The organ ratios and the total (arguments as for :func:`evaluate`)."""
-        terms = self._terms(self._bind(concentrations, kdeg_per_h), include, scale)
-        organs, total = self._organ_ratios([t[0] * t[1] * t[2] for t in terms])
-        return Evaluation(organs, total, {key: Terms(*t) for (key, _), t in zip(self._sites, terms, strict=True)})
+        return self.bind(concentrations, kdeg_per_h).evaluate(include=include, scale=scale)
 
     def total(self, concentrations: Mapping[str, Sequence[Any]], kdeg_per_h: Mapping[tuple[int, str], Any], scale: Any = None) -> Any:
         """The total ratio alone, every mechanism on (the perpetrator-dose scan)."""
-        return self.total_function(concentrations, kdeg_per_h)(scale)
+        return self.bind(concentrations, kdeg_per_h).total(scale)
 
-    def total_function(
-        self, concentrations: Mapping[str, Sequence[Any]], kdeg_per_h: Mapping[tuple[int, str], Any]
-    ) -> Callable[[Any], Any]:
-        """``scale -> total ratio`` (every mechanism on; ``None`` for no scale), the inputs bound once.
-
-        The same arithmetic as :meth:`evaluate`, to the last bit; a scalar dose scan calls it some 14 times per scenario.
-        """
-        bound = self._bind(concentrations, kdeg_per_h)
-        terms, organ_ratios = self._terms, self._organ_ratios
-
-        def total(scale: Any) -> Any:
-            return organ_ratios([t[0] * t[1] * t[2] for t in terms(bound, MECHANISMS, scale)])[1]
-
-        return total
-
-    def _bind(self, concentrations: Mapping[str, Sequence[Any]], kdeg_per_h: Mapping[tuple[int, str], Any]) -> tuple[_Bound, ...]:
-        """Each site's constants with the concentrations they see (d x Emax multiplied once: the same product as in the loop)."""
-        bound = []
+    def bind(self, concentrations: Mapping[str, Sequence[Any]], kdeg_per_h: Mapping[tuple[int, str], Any]) -> Bound:
+        """The model with its inputs (arguments as for :func:`evaluate`), ready to evaluate at any scale."""
+        sites = []
         for key, on in self._sites:
             site = concentrations[key[1]]
-            bound.append(
+            sites.append(
                 (
                     tuple([(site[c.species], c.ki_u) for c in on if c.ki_u is not None]),
                     tuple([(site[c.species], c.kinact, c.ki_inact_u) for c in on if c.kinact is not None and c.ki_inact_u is not None]),
+                    # d x Emax multiplied once: the same product as (d x Emax) x [I] in the loop
                     tuple([(site[c.species], c.calibration * c.emax, c.ec50_u) for c in on if c.emax is not None and c.ec50_u is not None]),
                     kdeg_per_h.get(key),
                 )
             )
-        return tuple(bound)
+        return Bound(self, tuple(sites))
 
-    @staticmethod
-    def _terms(bound: tuple[_Bound, ...], include: Sequence[str], scale: Any) -> list[tuple[Any, Any, Any]]:
-        """(reversible, inactivation, induction) per site: the three terms, written here once."""
+
+class Bound:
+    """A :class:`Model` with its concentrations and kdeg bound (:meth:`Model.bind`): only the arithmetic is left."""
+
+    __slots__ = ("_model", "_sites")
+
+    def __init__(self, model: Model, sites: tuple[_Site, ...]) -> None:
+        self._model = model
+        self._sites = sites
+
+    def evaluate(self, *, include: Sequence[str] = MECHANISMS, scale: Any = None) -> Evaluation:
+        """The organ ratios, the total and the terms (``include``, ``scale`` as for :func:`evaluate`)."""
+        model = self._model
+        terms, acts = self._terms(include, scale, True)
+        values, total = _ratios(model._organs, acts)
+        return Evaluation(
+            dict(zip(model._names, values, strict=True)),
+            total,
+            {key: Terms(*t) for (key, _), t in zip(model._sites, terms, strict=True)},
+        )
+
+    def total(self, scale: Any = None) -> Any:
+        """The total ratio alone, every mechanism on; the same arithmetic as :meth:`evaluate`, to the last bit
+        (a scalar dose scan calls it some 14 times per scenario)."""
+        return _ratios(self._model._organs, self._terms(MECHANISMS, scale, False)[1])[1]
+
+    def _terms(self, include: Sequence[str], scale: Any, keep: bool) -> tuple[list[tuple[Any, Any, Any]], list[Any]]:
+        """(reversible, inactivation, induction) per site when ``keep``, the three terms written here once; and their
+        products, the activities."""
         rev_on, tdi_on, ind_on = _ALL_ON if include is MECHANISMS else _switches(include)
         out = []
-        for rev, tdi, ind, kdeg in bound:
+        acts = []
+        for rev, tdi, ind, kdeg in self._sites:
             ratio = kobs = effect = None
             if rev_on:
                 for conc, ki in rev:  # sums over the constants on this target, in their order
@@ -305,23 +334,13 @@ class Model:
                     conc = conc if scale is None else scale * conc
                     e = d_emax * conc / (ec50 + conc)
                     effect = e if effect is None else effect + e
-            out.append(
-                (
-                    1.0 if ratio is None else 1.0 / (1.0 + ratio),
-                    1.0 if kobs is None else kdeg / (kdeg + kobs),
-                    1.0 if effect is None else 1.0 + effect,
-                )
-            )
-        return out
-
-    def _organ_ratios(self, acts: list[Any]) -> tuple[dict[str, Any], Any]:
-        organs: dict[str, Any] = {}
-        total: Any = None
-        for name, constants, where in self._organs:
-            value = 1.0 if constants is None else _ratio(constants, [acts[i] for i in where])
-            organs[name] = value
-            total = value if total is None else total * value
-        return organs, total
+            r = 1.0 if ratio is None else 1.0 / (1.0 + ratio)
+            i = 1.0 if kobs is None else kdeg / (kdeg + kobs)
+            d = 1.0 if effect is None else 1.0 + effect
+            if keep:
+                out.append((r, i, d))
+            acts.append(r * i * d)
+        return out, acts
 
 
 def evaluate(

@@ -145,9 +145,10 @@ class ModelInputs(NamedTuple):
     concentrations: dict[str, tuple[float, ...]]
     kdeg: dict[tuple[int, str], float | None]
     structure: model.Model
+    bound: model.Bound  # the structure with these concentrations and kdeg
 
     def evaluate(self, include: tuple[str, ...] = MECHANISM_PARTS, scale: float | None = None) -> model.Evaluation:
-        return self.structure.evaluate(self.concentrations, self.kdeg, include=include, scale=scale)
+        return self.bound.evaluate(include=include, scale=scale)
 
 
 def model_inputs(
@@ -186,7 +187,8 @@ def model_inputs(
         "liver": tuple(sp.unbound_inlet_um for sp in species),
         "gut": tuple(sp.enterocyte_um for sp in species),
     }
-    return ModelInputs(targets, acting, tuple(victim), concentrations, rates, model.Model(acting, victim))
+    structure = model.Model(acting, victim)
+    return ModelInputs(targets, acting, tuple(victim), concentrations, rates, structure, structure.bind(concentrations, rates))
 
 
 def _effects(
@@ -318,7 +320,7 @@ def ratio_function(
     """
     if inputs is None:
         inputs = model_inputs(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
-    run = inputs.structure.total_function(inputs.concentrations, inputs.kdeg)
+    run = inputs.bound.total
     seen: dict[float, float] = {}  # the root search asks again for the ends of its bracket
 
     def total(scale: float) -> float:

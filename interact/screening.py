@@ -142,11 +142,15 @@ def screen(
 ) -> tuple[ScreenResult, ...]:
     """Every criterion of ``rules`` that applies to a target in ``constants``."""
     results = []
-    targets = list(dict.fromkeys(c.target for c in constants))
+    on: dict[str, list[Constant]] = {}  # target -> its constants, in their order (targets in order of first mention)
+    for c in constants:
+        on.setdefault(c.target, []).append(c)
     for crit in rules.criteria:
         mult = float(crit.multiplier.value) if crit.multiplier else 1.0
-        for target in targets:
-            acting = [c for c in constants if c.target == target and _applies(crit, c, oral)]
+        for target, mine in on.items():
+            if mine[0].group not in crit.groups:  # a target has one group: none of its constants applies
+                continue
+            acting = [c for c in mine if _applies(crit, c, oral)]
             parts = []
             for c in acting:
                 conc = _concentration(species[c.species_index], crit.concentration)
