@@ -8,6 +8,7 @@ when given, kinact (1/h) with KI,u (uM) and Emax with EC50,u (uM) and d.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
 
 import pint
 
@@ -54,11 +55,16 @@ class Constant:
     ki_ci_um: tuple[float, float] | None = None
 
 
+@lru_cache(maxsize=1)
+def _default_fu_inc() -> float:
+    """fu,inc when a constant gives none (physiology.toml; looked up once, not per constant)."""
+    return float(next(p for p in load_physiology() if p.name == "fu_inc").value)
+
+
 def _one(item: Inhibition, species: str, index: int, mw: pint.Quantity | None, path: str) -> Constant:
     target = resolve_target(item.target)
     assert target is not None  # validated in scenario
-    fu_default = float(next(p for p in load_physiology() if p.name == "fu_inc").value)
-    fu = item.fu_inc if item.fu_inc is not None else fu_default
+    fu = item.fu_inc if item.fu_inc is not None else _default_fu_inc()
     ki_um: float | None = None
     route = ""
     if item.ki is not None:

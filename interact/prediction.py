@@ -146,6 +146,7 @@ class ModelInputs(NamedTuple):
     kdeg: dict[tuple[int, str], float | None]
     structure: model.Model
     bound: model.Bound  # the structure with these concentrations and kdeg
+    totals: dict[float, float]  # scale -> total ratio, every mechanism on, as evaluated so far (predict, the dose scan)
 
     def evaluate(self, include: tuple[str, ...] = MECHANISM_PARTS, scale: float | None = None) -> model.Evaluation:
         return self.bound.evaluate(include=include, scale=scale)
@@ -188,7 +189,7 @@ def model_inputs(
         "gut": tuple(sp.enterocyte_um for sp in species),
     }
     structure = model.Model(acting, victim)
-    return ModelInputs(targets, acting, tuple(victim), concentrations, rates, structure, structure.bind(concentrations, rates))
+    return ModelInputs(targets, acting, tuple(victim), concentrations, rates, structure, structure.bind(concentrations, rates), {})
 
 
 def _effects(
@@ -202,11 +203,15 @@ def _effects(
 ) -> tuple[EnzymeEffect, ...]:
     """The terms of each victim pathway (and of the gut-wall enzyme on its pathway) as :class:`EnzymeEffect` records."""
 
+    on: dict[str, list[Constant]] = {}  # target -> its constants, in their order
+    for c in constants:
+        on.setdefault(c.target, []).append(c)
+
     def site(enzyme: str, where: str) -> SiteTerms:
         t = result.terms[inputs.targets[enzyme], where]
         conc = inputs.concentrations[where]
         return SiteTerms(
-            concentration_um=tuple((c.species, scale * conc[c.species_index]) for c in constants if c.target == enzyme),
+            concentration_um=tuple([(c.species, scale * conc[c.species_index]) for c in on.get(enzyme, ())]),
             reversible=float(t.reversible),
             inactivation=float(t.inactivation),
             induction=float(t.induction),
@@ -282,6 +287,7 @@ def predict(
     mechanisms = _mechanisms(constants)
     result = inputs.evaluate(scale=scale)
     gut_r, liver_r = float(result.gut), float(result.liver)
+    inputs.totals[scale] = float(result.total)  # the dose scan's total at this scale (the same arithmetic: Bound.total)
     acted_on = {c.target for c in constants if c.ki_u_um is not None or c.kinact_per_h is not None}
     inhibited_fm = sum(fm for enzyme, fm in pathways if enzyme in acted_on)
     ceiling_liver = 1.0 / (1.0 - inhibited_fm) if inhibited_fm < 1.0 else float("inf")
@@ -321,7 +327,7 @@ def ratio_function(
     if inputs is None:
         inputs = model_inputs(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
     run = inputs.bound.total
-    seen: dict[float, float] = {}  # the root search asks again for the ends of its bracket
+    seen = inputs.totals  # the root search asks again for the ends of its bracket, and for predict's scale 1
 
     def total(scale: float) -> float:
         value = seen.get(scale)
