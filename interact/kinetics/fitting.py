@@ -43,6 +43,7 @@ __all__ = [
     "guess_inhibition",
     "guess_michaelis_menten",
     "inhibition_model",
+    "inverse_constants",
     "spearman",
 ]
 
@@ -88,16 +89,17 @@ DEPLETION_LIMIT_PCT: Final = 20.0  # FDA: substrate depletion <= 20 % (from memo
 # --------------------------------------------------------------------------- models
 
 
-def _kappas(name: str, u: Array) -> tuple[float, float]:
+def inverse_constants(name: str, theta: Sequence[float]) -> tuple[float, float]:
+    """(1/Kic, 1/Kiu) of the model ``name`` at its fitting parameters ``theta`` (0 for a route the model lacks)."""
     if name == "none":
         return 0.0, 0.0
     if name == "competitive":
-        return u[2], 0.0
+        return theta[2], 0.0
     if name == "noncompetitive":
-        return u[2], u[2]
+        return theta[2], theta[2]
     if name == "uncompetitive":
-        return 0.0, u[2]
-    return u[2], u[3]
+        return 0.0, theta[2]
+    return theta[2], theta[3]
 
 
 class _Grid:
