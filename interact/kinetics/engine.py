@@ -277,6 +277,8 @@ class _Solution:
     message: str
     iterations: int
     grad: list[float] | None = None  # J^T r at u (half the gradient of the cost)
+    resid: Array | None = None  # r(u) and J(u), kept so that callers need not evaluate them again at u
+    jac: Array | None = None
 
 
 def _lm(
@@ -320,11 +322,11 @@ def _lm(
     nu = 2.0
     for it in range(1, max_iter + 1):
         if cost == 0.0:
-            return _Solution(u, cost, True, "exact fit", it, grad=g)
+            return _Solution(u, cost, True, "exact fit", it, grad=g, resid=r, jac=jac)
         if bounded:
             idx = [k for k in base_idx if not ((ul[k] <= lo_l[k] and g[k] > 0) or (ul[k] >= hi_l[k] and g[k] < 0))]
             if not idx:
-                return _Solution(u, cost, True, "converged at the bounds", it, grad=g)
+                return _Solution(u, cost, True, "converged at the bounds", it, grad=g, resid=r, jac=jac)
         else:
             idx = base_idx
         q = len(idx)
@@ -362,15 +364,15 @@ def _lm(
             mu *= max(0.1, 1.0 - (2.0 * rho - 1.0) ** 3)
             nu = 2.0
             if reduction <= ftol * cost or small or floor:
-                return _Solution(u, cost, True, "converged", it, grad=g)
+                return _Solution(u, cost, True, "converged", it, grad=g, resid=r, jac=jac)
         else:
             if small or floor:
-                return _Solution(u, cost, True, "converged (step)", it, grad=g)
+                return _Solution(u, cost, True, "converged (step)", it, grad=g, resid=r, jac=jac)
             mu *= nu
             nu *= 2.0
             if mu > 1e300:
-                return _Solution(u, cost, True, "converged (no further decrease possible)", it, grad=g)
-    return _Solution(u, cost, False, f"did not converge in {max_iter} iterations", max_iter, grad=g)
+                return _Solution(u, cost, True, "converged (no further decrease possible)", it, grad=g, resid=r, jac=jac)
+    return _Solution(u, cost, False, f"did not converge in {max_iter} iterations", max_iter, grad=g, resid=r, jac=jac)
 
 
 def _trial_point(
@@ -488,7 +490,7 @@ def _degenerate(prob: _Problem, sol: _Solution, lo: Array, hi: Array) -> bool:
     free = ~(((sol.u <= lo) | (sol.u >= hi)) & (np.isfinite(lo) | np.isfinite(hi)))
     if not free.any():
         return False
-    jac = prob.resid_jac(sol.u)[1][:, free]
+    jac = (sol.jac if sol.jac is not None else prob.resid_jac(sol.u)[1])[:, free]
     if not np.all(np.isfinite(jac)):
         return True
     sv = np.linalg.svd(jac * (1.0 / np.maximum(np.linalg.norm(jac, axis=0), _TINY)), compute_uv=False)
@@ -723,7 +725,7 @@ def fit_curve(
     if not math.isfinite(cost):
         return _failed(model, prob, u, weights, n, p, df, best.message or "the model could not be evaluated", level)
 
-    r, jac = prob.resid_jac(u)
+    r, jac = (best.resid, best.jac) if best.resid is not None and best.jac is not None else prob.resid_jac(u)
     s2 = cost / df
     exact = cost <= 1e-30 * max(float(yv @ yv), 1e-300)  # noise-free data: no residual variance to work with
     on_bound = ((u <= lo) | (u >= hi)) & (np.isfinite(lo) | np.isfinite(hi))
