@@ -704,7 +704,7 @@ def _cmd_fit(args: argparse.Namespace) -> int:
 
     path = Path(args.data)
     try:
-        header = columns_of(path.read_text(encoding="utf-8-sig"))
+        header = columns_of(path.read_text(encoding="utf-8-sig"), source=path.name)
     except (OSError, UnicodeDecodeError) as exc:
         raise InputError("data", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
     ic50_mode = args.ic50 or ("substrate" not in header and "inhibitor" in header)

@@ -95,3 +95,13 @@ def test_errors_name_the_file_the_line_and_the_column(parse, text: str, needles:
         parse(text, source="f.csv")
     for needle in needles:
         assert needle in str(info.value)
+
+
+def test_the_fit_command_names_the_file_and_the_ambiguous_column(tmp_path, capsys) -> None:  # type: ignore[no-untyped-def]
+    from interact.cli import main
+
+    path = tmp_path / "grid.csv"
+    path.write_text("conc (uM),inhibitor (uM),velocity\n1,0,2\n", encoding="utf-8")
+    assert main(["fit", str(path)]) == 2
+    err = capsys.readouterr().err
+    assert "grid.csv header (line 1)" in err and "conc (uM)" in err and "substrate: substrate, s" in err

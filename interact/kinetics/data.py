@@ -261,12 +261,12 @@ class IC50Data:
     source: str = ""
 
 
-def columns_of(text: str) -> tuple[str, ...]:
+def columns_of(text: str, source: str = "data") -> tuple[str, ...]:
     """The recognised column names of a CSV header (for choosing between grid and IC50 modes)."""
-    rows = read_rows(text, "data")
+    rows = read_rows(text, source)
     if not rows:
         return ()
-    return tuple(find_columns(rows[0][1], (*_GRID, "activity"), source="data", line=rows[0][0]))
+    return tuple(find_columns(rows[0][1], (*_GRID, "activity"), source=source, line=rows[0][0]))
 
 
 def read_ic50_csv(path: str | Path, *, inhibitor_unit: str | None = None) -> IC50Data:
