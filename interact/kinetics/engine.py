@@ -491,10 +491,13 @@ def _degenerate(prob: _Problem, sol: _Solution, lo: Array, hi: Array) -> bool:
     if not free.any():
         return False
     jac = (sol.jac if sol.jac is not None else prob.resid_jac(sol.u)[1])[:, free]
-    if not np.all(np.isfinite(jac)):
+    if not np.isfinite(jac).all():
         return True
-    sv = np.linalg.svd(jac * (1.0 / np.maximum(np.linalg.norm(jac, axis=0), _TINY)), compute_uv=False)
-    return bool(sv[-1] < 1e-10 * sv[0] or np.any(np.linalg.norm(jac, axis=0) == 0.0))
+    norms = np.sqrt(np.einsum("ij,ij->j", jac, jac))
+    if not norms.all():  # a parameter the model does not depend on here
+        return True
+    sv = np.linalg.svd(jac / norms, compute_uv=False)
+    return bool(sv[-1] < 1e-10 * sv[0])
 
 
 def _scipy_fallback(prob: _Problem, u0: Array, lo: Array, hi: Array) -> _Solution:

@@ -350,10 +350,12 @@ def _power_exponent(resid: Array, fitted: Array, rows: NDArray[np.bool_]) -> flo
     logf = np.log(np.maximum(f, _FLOOR_FRACTION * float(np.max(f))))[rows]
     r2 = np.asarray(resid, dtype=float)[rows] ** 2
     n = r2.size
+    sum_logf = float(np.sum(logf))
+    minus_2logf = -2.0 * logf
 
     def neg(theta: float) -> float:
-        s2 = float(np.mean(r2 * np.exp(-2.0 * theta * logf)))
-        return 0.5 * n * math.log(max(s2, 1e-300)) + theta * float(np.sum(logf))
+        s2 = float(r2 @ np.exp(theta * minus_2logf)) / n
+        return 0.5 * n * math.log(max(s2, 1e-300)) + theta * sum_logf
 
     return float(minimize_scalar(neg, bounds=(0.0, 3.0), method="bounded", options={"xatol": 1e-6}).x)
 
