@@ -302,10 +302,10 @@ def _lm(
     """
     del gtol  # the rounding-floor test below subsumes a gradient test
     p = len(u0)
-    lo_l = [float(v) for v in lo]
-    hi_l = [float(v) for v in hi]
-    ul = [min(max(float(v), lo_l[k]), hi_l[k]) for k, v in enumerate(u0)]
-    fixed_l = [bool(v) for v in fixed]
+    lo_l = np.asarray(lo, dtype=float).tolist()
+    hi_l = np.asarray(hi, dtype=float).tolist()
+    ul = np.minimum(np.maximum(np.asarray(u0, dtype=float), lo_l), hi_l).tolist()
+    fixed_l = np.asarray(fixed, dtype=bool).tolist()
     bounded = any(math.isfinite(v) for v in lo_l) or any(math.isfinite(v) for v in hi_l)
     base_idx = [k for k in range(p) if not fixed_l[k]]
     if not base_idx:
@@ -320,6 +320,7 @@ def _lm(
     dmax = [max(a[k][k], _TINY) for k in range(p)]
     mu = mu0  # damping relative to the Marquardt scaling diag(J^T J)
     nu = 2.0
+    fused = prob.model.function_jacobian is not None
     for it in range(1, max_iter + 1):
         if cost == 0.0:
             return _Solution(u, cost, True, "exact fit", it, grad=g, resid=r, jac=jac)
@@ -345,7 +346,9 @@ def _lm(
         trial, small, predicted = _trial_point(ul, h, idx, lo_l, hi_l, bounded, xtol, af, gf, promised)
         floor = promised <= floor_tol * cost  # the linear model promises less than rounding (or the caller) needs
         ut = np.array(trial)
-        rt = prob.resid(ut)
+        # a model computing f and J together costs little more than f alone: evaluate both at the trial point,
+        # so an accepted step (the usual case) does not evaluate f again
+        rt, jt = prob.resid_jac(ut) if fused else (prob.resid(ut), None)
         ct = float(rt @ rt)
         if ct != ct:  # NaN: the model is undefined there
             ct = math.inf
@@ -353,7 +356,7 @@ def _lm(
             rho = (cost - ct) / predicted if predicted > 0 else 1.0
             reduction = cost - ct
             u, ul, cost = ut, trial, ct
-            r, jac = prob.resid_jac(u)
+            r, jac = (rt, jt) if jt is not None else prob.resid_jac(u)
             a = (jac.T @ jac).tolist()
             g = (jac.T @ r).tolist()
             if not math.isfinite(sum(g)):
