@@ -201,7 +201,7 @@ def _rule_set(scenario: Scenario, rules: str | RuleSet | None) -> RuleSet:
 
 
 def _input_warnings(
-    warnings: _Warnings,
+    warnings: WarningList,
     scenario: Scenario,
     constants: tuple[Constant, ...],
     gut_enzyme: str | None,
@@ -241,7 +241,7 @@ def _input_warnings(
             )
 
 
-def _constant_warnings(warnings: _Warnings, c: Constant) -> None:
+def _constant_warnings(warnings: WarningList, c: Constant) -> None:
     """One constant's warnings: uncompetitive applied as competitive, fu,inc assumed or shared between constants."""
     if c.mechanism == "uncompetitive" and c.ki_u_um is not None:
         warnings.append(f"{c.species} on {c.target}: {_UNCOMPETITIVE_NOTE}.", ModelLimitWarning)
@@ -263,7 +263,7 @@ def _constant_warnings(warnings: _Warnings, c: Constant) -> None:
 
 
 def _model_limit_warnings(
-    warnings: _Warnings,
+    warnings: WarningList,
     scenario: Scenario,
     rule_set: RuleSet,
     constants: tuple[Constant, ...],
@@ -283,7 +283,7 @@ def _model_limit_warnings(
             )
 
 
-def _dose_warnings(warnings: _Warnings, scenario: Scenario, plan: RegimenPlan) -> None:
+def _dose_warnings(warnings: WarningList, scenario: Scenario, plan: RegimenPlan) -> None:
     """A default boundary on a narrow-therapeutic-index victim; a Cmax measured at another perpetrator dose."""
     p = scenario.perpetrator
     boundary = plan.boundary
@@ -303,7 +303,7 @@ def _dose_warnings(warnings: _Warnings, scenario: Scenario, plan: RegimenPlan) -
             )
 
 
-def _study(warnings: _Warnings, rule_set: RuleSet, prediction: Prediction) -> tuple[bool, Sourced]:
+def _study(warnings: WarningList, rule_set: RuleSet, prediction: Prediction) -> tuple[bool, Sourced]:
     """Whether a clinical study is indicated, and the AUCR cutoff that decided it."""
     aucr_cut = rule_set.aucr_inhibition_cutoff
     induced = prediction.total <= float(rule_set.aucr_induction_cutoff.value)
