@@ -30,11 +30,9 @@ from textual.widgets import Footer, Header, Input, Static, TabbedContent, TabPan
 from ..cautions import CAUTION_LINE
 from ..errors import InteractError
 from .answer_view import AnswerView
-from .fitting_view import FitPane, ki_entry, with_fitted_ki
 from .form import get_path, key_of, set_path, shows, value_of
 from .form_view import FieldState, FormPane, FormView
 from .plots_view import PlotsPane
-from .screens import AskPath, CautionsScreen, ConfirmDiscard, HelpScreen, LoadProblems
 from .state import (
     DEMO_PATH,
     FORM_NAMES,
@@ -52,10 +50,11 @@ from .state import (
     texts_after_removal,
 )
 
-if TYPE_CHECKING:
+if TYPE_CHECKING:  # the fitting view and the pop-ups load when first used (a quicker first screen)
     from ..assessment import Assessment
     from ..errors import Problem
     from ..scenario import Scenario
+    from .fitting_view import FitPane
 
 __all__ = ["FORM_NAMES", "InteractApp", "read_scenario_data"]
 
@@ -115,18 +114,17 @@ class InteractApp(App[int]):
 
     def __init__(self, path: str | Path | None = None, *, data: dict[str, Any] | None = None) -> None:
         super().__init__()
-        if data is None:
-            data = read_scenario_data(path if path is not None else DEMO_PATH)  # problems show in the form
         self.path: Path | None = None if path is None else Path(path)
-        self.data: dict[str, Any] = data
-        self.saved_data: dict[str, Any] = copy.deepcopy(data)
+        #: the text of the file the data came from (the demo's own text for the demo): saving edits this text
+        self.source_text: str = read_text(self.path or DEMO_PATH)
+        file, spelling = form_data(parse(self.source_text, self.path or DEMO_PATH))
+        self.data: dict[str, Any] = file if data is None else data  # problems show in the form
+        #: the drug tables' names in the file ([perpetrator]/[victim] or [precipitant]/[object]), kept on saving
+        self.spelling: tuple[str, str] = spelling
+        self.saved_data: dict[str, Any] = copy.deepcopy(self.data)
         self.pinned: tuple[Assessment, dict[str, Any]] | None = None
         self.generation = 0
         self.core_ready = False
-        #: the text of the file the data came from (the demo's own text for the demo): saving edits this text
-        self.source_text: str = read_text(self.path or DEMO_PATH)
-        #: the drug tables' names in the file ([perpetrator]/[victim] or [precipitant]/[object]), kept on saving
-        self.spelling: tuple[str, str] = form_data(parse(self.source_text, self.path or DEMO_PATH))[1]
         self.history = History()
         self._texts: dict[str, str] = {}  # every field's text as of the last update (what an undo restores)
         #: the field a run of keystrokes is typed into, with the form's selection count (one undo step per run)
@@ -165,6 +163,8 @@ class InteractApp(App[int]):
         self.call_from_thread(self._core_loaded)
 
     def _core_loaded(self) -> None:
+        from .fitting_view import FitPane
+
         target = get_path(self.data, ("perpetrator", "inhibits", 0, "target"), "")
         self.query_one("#fitting", TabPane).mount(FitPane(id="fit-pane", target=target if isinstance(target, str) else ""))
         self.core_ready = True
@@ -339,6 +339,8 @@ class InteractApp(App[int]):
 
     def on_fit_pane_ki_chosen(self, event: FitPane.KiChosen) -> None:
         """Write the fitted Ki into the chosen target of the scenario (an unsaved edit, as any other)."""
+        from .fitting_view import ki_entry, with_fitted_ki
+
         try:
             fitted = ki_entry(event.fit, self.data, event.target, event.source)
         except ValueError as exc:
@@ -357,9 +359,13 @@ class InteractApp(App[int]):
 
     # ------------------------------------------------------------------ views
     def action_help(self) -> None:
+        from .screens import HelpScreen
+
         self.push_screen(HelpScreen(list(self.KEY_HELP)))
 
     def action_cautions(self) -> None:
+        from .screens import CautionsScreen
+
         self.push_screen(CautionsScreen())
 
     def action_group(self, step: int) -> None:
@@ -426,6 +432,8 @@ class InteractApp(App[int]):
             self.save_to(self.path)
 
     def action_save_as(self, then: Any = None) -> None:
+        from .screens import AskPath
+
         if not self.valid:
             self.notify(f"Not saved: {self._why_not_savable()}.", severity="error", timeout=8)
             return
@@ -439,6 +447,8 @@ class InteractApp(App[int]):
 
     def _guard(self, doing: str, proceed: Any) -> None:
         """Run ``proceed`` now, or after asking when there are unsaved edits."""
+        from .screens import ConfirmDiscard
+
         if not self.dirty:
             proceed()
             return
@@ -461,6 +471,8 @@ class InteractApp(App[int]):
         self._guard("open another file", self._ask_open)
 
     def _ask_open(self) -> None:
+        from .screens import AskPath
+
         def chosen(result: object) -> None:
             if isinstance(result, str):
                 self.run_worker(self.open_file(Path(result)), exclusive=True, group="open")
@@ -473,6 +485,8 @@ class InteractApp(App[int]):
         A scenario with problems opens too, with each problem under its field,
         so it can be fixed here (it cannot be saved until it loads).
         """
+        from .screens import LoadProblems
+
         try:
             text = read_text(path)
             data, spelling = form_data(parse(text, path))

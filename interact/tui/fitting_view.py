@@ -24,7 +24,6 @@ from textual.worker import get_current_worker
 
 from ..errors import InteractError
 from ..report.numbers import fmt
-from ..tables import resolve_target
 from .doc import Doc
 from .document_view import DocumentView
 from .form import get_path, set_path
@@ -192,6 +191,8 @@ def ki_entry(comp: ModelComparison, data: dict[str, Any], target_text: str, sour
     ValueError
         The verdict is "no inhibition", or the target is unknown.
     """
+    from ..tables import resolve_target
+
     ki = comp.ki
     mechanism = comp.verdict.mechanism
     if ki is None or mechanism is None:

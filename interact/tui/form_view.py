@@ -657,7 +657,9 @@ class FormPane(Vertical):
         st = form.current_field
         row = form.current
         if st is not None:
-            text = f"{st.spec.label} [{st.key}]: {st.note_text or st.spec.hint}"
+            # the hint is an example ("e.g. Compound A"): beside a value it would read as the value's meaning
+            hint = f"empty ({st.spec.hint})" if not st.text.strip() else st.text
+            text = f"{st.spec.label} [{st.key}]: {st.note_text or hint}"
         elif row is not None and row.kind in ("add", "remove"):
             text = f"Enter: {row.text}."
         else:

@@ -89,7 +89,14 @@ else:
             self.update(data)
             state = self.form.select("perpetrator.inhibits[0].fu_inc")
             state.cursor = len(state.text)
-            self.call_after_refresh(lambda: log.write("ready\n"))
+            self.call_after_refresh(self._bench_ready)
+        def _bench_ready(self):
+            if os.environ.get("BENCH_TUI_PROFILE"):  # --profile: where the milliseconds of the keys go
+                import cProfile, atexit
+                profile = cProfile.Profile()
+                profile.enable()
+                atexit.register(lambda: (profile.disable(), profile.dump_stats(os.environ["BENCH_TUI_PROFILE"])))
+            log.write("ready\n")
     logged(Ready, lambda app: app.generation)().run()
 """
 
@@ -105,7 +112,7 @@ class Terminal:
             os.execv(sys.executable, [sys.executable, "-c", CHILD, which, str(self.log)])
         self.pid, self.fd = pid, fd
         ioctl(fd, termios.TIOCSWINSZ, struct.pack("HHHH", size[1], size[0], 0, 0))
-        self.seen = 0
+        self.tail = b""  # the last output (shown when the app does not answer)
 
     def drain(self, seconds: float) -> None:
         end = time.monotonic() + seconds
@@ -113,7 +120,7 @@ class Terminal:
             ready, _, _ = select.select([self.fd], [], [], left)
             if ready:
                 try:
-                    os.read(self.fd, 65536)
+                    self.tail = (self.tail + os.read(self.fd, 65536))[-4000:]
                 except OSError:
                     return
 
@@ -126,11 +133,13 @@ class Terminal:
             if test(self.lines()):
                 return
             self.drain(0.002)
-        raise TimeoutError("the app did not answer")
+        raise TimeoutError(f"the app did not answer; its last output: {self.tail.decode(errors='replace')}")
 
     def close(self) -> None:
         os.write(self.fd, b"\x11")  # Ctrl+Q
         self.drain(0.3)
+        if b"Traceback" in self.tail or b"Error" in self.tail:
+            print("the app failed:", self.tail.decode(errors="replace")[-3000:], file=sys.stderr)
         try:
             os.kill(self.pid, 9)
         except ProcessLookupError:
@@ -218,7 +227,13 @@ def main() -> int:
     parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     parser.add_argument("--keys", type=int, default=60, help="keys per run (default 60)")
     parser.add_argument("--rounds", type=int, default=3, help="alternated runs of the app and the floor per size (default 3)")
+    parser.add_argument("--profile", metavar="FILE", help="only profile the app's keystrokes at 160x50 (cProfile stats to FILE)")
     args = parser.parse_args()
+    if args.profile:
+        os.environ["BENCH_TUI_PROFILE"] = str(Path(args.profile).resolve())
+        lat = key_latencies("interact", (160, 50), args.keys)
+        print(f"profiled {len(lat)} keys at 160x50: {ms(lat)}; stats in {args.profile}")
+        return 0
     os.environ["PYTHONPATH"] = str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", "")
     print(f"{os.cpu_count()} cores; load average {os.getloadavg()[0]:.1f} at the start")
     for size in ((80, 24), (160, 50)):

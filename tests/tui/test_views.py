@@ -48,3 +48,16 @@ async def test_the_plots_follow_edits_made_while_they_were_hidden() -> None:
         await replace_text(pilot, app, "perpetrator.dose", "100 mg")  # while they show
         expected = assess(scenario_from_dict(app.data), warn=False)
         assert app.query_one("#plot-dose", PlotView).chart == plots.dose_curve(expected)
+
+
+@asynctest
+async def test_a_cheng_prusoff_input_beside_a_ki_says_it_is_not_used() -> None:
+    # found by hand in tmux: [S] typed into a target that gives Ki was accepted without a word. Cheng-Prusoff
+    # (Ki = IC50 / (1 + [S]/Km), common practice) needs an IC50; the demo's first target gives a Ki
+    app = InteractApp()
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.pause()
+        await replace_text(pilot, app, "perpetrator.inhibits[0].substrate_conc", "3 uM")
+        assert "ic50" not in app.data["perpetrator"]["inhibits"][0]
+        assert "not used" in app.field("perpetrator.inhibits[0].substrate_conc").note
+        assert "not used" in str(app.query_one("#detail").content)  # type: ignore[attr-defined]
