@@ -12,15 +12,15 @@ from typing import Any, Final
 
 from . import __version__, units
 from .cautions import CAUTIONS
-from .constants import Constant, resolve_constants
+from .constants import Constant, kdeg_per_h, resolve_constants
 from .dosing import DoseLimit, DoseSuggestion, RegimenPlan, highest_perpetrator_scale, plan_for_victim, suggest_dose
-from .errors import AssumptionWarning, FromMemoryWarning, InputError, InteractWarning, ModelLimitWarning, emit_warnings
+from .errors import FromMemoryWarning, InputError, ModelLimitWarning, WarningList, emit_warnings
 from .exposure import Setting, SpeciesExposure, resolve_exposure, resolve_settings
 from .genotype import PhenotypeCase, phenotype_cases
 from .prediction import Prediction, predict, ratio_function
 from .scenario import Scenario
 from .screening import ScreenResult, screen
-from .tables import UNVERIFIED, RuleSet, Sourced, load_classes, load_rules, resolve_target, table_versions
+from .tables import UNVERIFIED, RuleSet, Sourced, load_classes, load_rules, table_versions
 
 __all__ = ["Assessment", "Provenance", "assess"]
 
@@ -102,59 +102,6 @@ class Assessment:
         return assessment_html(self)
 
 
-def _kdeg(
-    scenario: Scenario, constants: tuple[Constant, ...], enzymes: set[str] | None = None
-) -> tuple[dict[str, tuple[float | None, float | None]], list[Setting]]:
-    """kdeg per enzyme (liver, gut) in 1/h: the scenario's override, else the targets table.
-
-    ``enzymes`` defaults to the targets inactivated by the perpetrator (the static
-    model needs kdeg only there); the time course also asks for induced ones.
-    """
-    out: dict[str, tuple[float | None, float | None]] = {}
-    used: list[Setting] = []
-    needed = {c.target for c in constants if c.kinact_per_h is not None} if enzymes is None else set(enzymes)
-    overrides = {t.enzyme: t for t in scenario.turnover}
-    for enzyme in sorted(needed):
-        target = resolve_target(enzyme)
-        values: list[float | None] = []
-        for site in ("liver", "gut"):
-            given = getattr(overrides.get(enzyme), f"kdeg_{site}", None)
-            table: Sourced | None = getattr(target, f"kdeg_{site}", None) if target else None
-            if given is not None:
-                v = units.magnitude(given, "1/h")
-                used.append(Setting(name=f"kdeg_{site}", label=f"kdeg {enzyme} ({site})", value=v, unit="1/h", origin="override"))
-            elif table is not None:
-                v = units.magnitude(units.parse(table.value, "rate", field=f"targets.{enzyme}.kdeg_{site}"), "1/h")
-                used.append(
-                    Setting(
-                        name=f"kdeg_{site}",
-                        label=f"kdeg {enzyme} ({site})",
-                        value=v,
-                        unit="1/h",
-                        origin="default",
-                        source=table.source,
-                        status=table.status,
-                    )
-                )
-            else:
-                v = None
-            values.append(v)
-        out[enzyme] = (values[0], values[1])
-    return out, used
-
-
-class _Warnings(list[str]):
-    """The assessment's warning texts, each with its :class:`~interact.errors.InteractWarning` category."""
-
-    def __init__(self) -> None:
-        super().__init__()
-        self.categories: list[type[InteractWarning]] = []
-
-    def append(self, text: str, category: type[InteractWarning] = AssumptionWarning) -> None:  # type: ignore[override]
-        super().append(text)
-        self.categories.append(category)
-
-
 def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool = True) -> Assessment:
     """Assess a perpetrator-victim scenario.
 
@@ -191,10 +138,10 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
     settings = resolve_settings(scenario, rule_set)
     species, fu_settings = resolve_exposure(scenario, rule_set, settings)
     constants = resolve_constants(scenario)
-    kdeg, kdeg_used = _kdeg(scenario, constants)
+    kdeg, kdeg_used = kdeg_per_h(scenario, constants)
     p = scenario.perpetrator
     v = scenario.victim
-    warnings = _Warnings()
+    warnings = WarningList()
     screen_results = screen(
         rule_set, constants, species, oral=p.route == "oral", kdeg_liver={k: lv for k, (lv, _) in kdeg.items() if lv is not None}
     )
@@ -254,7 +201,7 @@ def _rule_set(scenario: Scenario, rules: str | RuleSet | None) -> RuleSet:
 
 
 def _input_warnings(
-    warnings: _Warnings,
+    warnings: WarningList,
     scenario: Scenario,
     constants: tuple[Constant, ...],
     gut_enzyme: str | None,
@@ -294,7 +241,7 @@ def _input_warnings(
             )
 
 
-def _constant_warnings(warnings: _Warnings, c: Constant) -> None:
+def _constant_warnings(warnings: WarningList, c: Constant) -> None:
     """One constant's warnings: uncompetitive applied as competitive, fu,inc assumed or shared between constants."""
     if c.mechanism == "uncompetitive" and c.ki_u_um is not None:
         warnings.append(f"{c.species} on {c.target}: {_UNCOMPETITIVE_NOTE}.", ModelLimitWarning)
@@ -316,7 +263,7 @@ def _constant_warnings(warnings: _Warnings, c: Constant) -> None:
 
 
 def _model_limit_warnings(
-    warnings: _Warnings,
+    warnings: WarningList,
     scenario: Scenario,
     rule_set: RuleSet,
     constants: tuple[Constant, ...],
@@ -336,7 +283,7 @@ def _model_limit_warnings(
             )
 
 
-def _dose_warnings(warnings: _Warnings, scenario: Scenario, plan: RegimenPlan) -> None:
+def _dose_warnings(warnings: WarningList, scenario: Scenario, plan: RegimenPlan) -> None:
     """A default boundary on a narrow-therapeutic-index victim; a Cmax measured at another perpetrator dose."""
     p = scenario.perpetrator
     boundary = plan.boundary
@@ -356,7 +303,7 @@ def _dose_warnings(warnings: _Warnings, scenario: Scenario, plan: RegimenPlan) -
             )
 
 
-def _study(warnings: _Warnings, rule_set: RuleSet, prediction: Prediction) -> tuple[bool, Sourced]:
+def _study(warnings: WarningList, rule_set: RuleSet, prediction: Prediction) -> tuple[bool, Sourced]:
     """Whether a clinical study is indicated, and the AUCR cutoff that decided it."""
     aucr_cut = rule_set.aucr_inhibition_cutoff
     induced = prediction.total <= float(rule_set.aucr_induction_cutoff.value)

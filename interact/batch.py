@@ -61,6 +61,7 @@ __all__ = [
     "RowProblem",
     "VictimTable",
     "evaluate_pairs",
+    "flag_text",
     "load_perpetrators",
     "load_victims",
     "loads_perpetrators",
@@ -883,7 +884,7 @@ class BatchResult:
         n_v = len(self.victims.rows)
         ii, jj = np.divmod(order, n_v)
         p = self.perpetrators
-        flag_texts = np.array([_flag_text(k) for k in range(1 << len(FLAGS))], dtype=object)
+        flag_texts = np.array([flag_text(k) for k in range(1 << len(FLAGS))], dtype=object)
         bits = self.flags.ravel()[order]
         return {
             "rank": np.arange(1, order.size + 1),
@@ -1105,7 +1106,8 @@ def ranking(result: BatchResult, top: int | None = None) -> NDArray[np.int64]:
 # --------------------------------------------------------------------------- output
 
 
-def _flag_text(bits: int) -> str:
+def flag_text(bits: int) -> str:
+    """The names of the flags set in ``bits`` (bit k is ``FLAGS[k]``), joined by "; "."""
     return "; ".join(FLAGS[k] for k in range(len(FLAGS)) if bits >> k & 1)
 
 
@@ -1124,7 +1126,7 @@ def result_rows(result: BatchResult, top: int | None = None) -> Iterator[tuple[s
     p_names = [r.name for r in p.rows]
     v_names = [r.name for r in v.rows]
     per_p = [[_num(x) for x in arr.tolist()] for arr in (p.imax_u_um, p.inlet_um, p.gut_lumen_um, p.enterocyte_um)]
-    flag_texts = [_flag_text(k) for k in range(1 << len(FLAGS))]
+    flag_texts = [flag_text(k) for k in range(1 << len(FLAGS))]
     flat_gut, flat_liver, flat_total = result.gut.ravel(), result.liver.ravel(), result.total.ravel()
     flat_exposure = result.exposure.ravel()
     flat_band, flat_study, flat_action, flat_flags = (

@@ -48,8 +48,8 @@ from numpy.typing import NDArray
 from . import model as _model
 from . import units
 from .arrays import band_codes, band_labels
-from .assessment import Assessment, _kdeg
-from .constants import Constant
+from .assessment import Assessment
+from .constants import Constant, kdeg_per_h
 from .dosing import ACTIONS, Regimen, choose_regimens, feasible_fraction, regimen_label
 from .errors import InputError
 from .exposure import enterocyte_um, unbound_cmax_um, unbound_inlet_um
@@ -452,7 +452,7 @@ class ScenarioModel:
             (pw.enzyme, add(f"victim.pathways[{k}].fm", f"fm {pw.enzyme} of {v.name}", "", "fraction", pw.fm))
             for k, pw in enumerate(v.pathways)
         ]
-        kdeg, _ = _kdeg(a.scenario, a.constants)
+        kdeg, _ = kdeg_per_h(a.scenario, a.constants)
         self._kdeg: dict[str, tuple[str | None, str | None]] = {}
         for enzyme, (k_liver, k_gut) in kdeg.items():
             self._kdeg[enzyme] = (
