@@ -191,6 +191,12 @@ def check_fraction_size(value: float, field: str, shown: object) -> None:
         raise UnitError(field, shown, f"is below {MIN_FRACTION:g}; expected a fraction of plausible size")
 
 
+@lru_cache(maxsize=512)
+def _dimensionality(container: Any) -> Any:
+    """A unit's dimensionality, remembered (pint's own lookup and comparison cost about 0.7 us a value)."""
+    return Quantity(1.0, container).dimensionality
+
+
 def magnitude(quantity: pint.Quantity, unit: str) -> float:
     """The magnitude of ``quantity`` in ``unit`` as a float (cached factor)."""
     return float(quantity.magnitude) * _factor(quantity._units, unit)
@@ -202,7 +208,7 @@ def concentration_um(quantity: pint.Quantity, molar_mass: pint.Quantity | None, 
     Mass to molar by cached factors (a few microseconds) rather than pint's ``chemistry`` context (``units.txt``,
     a few hundred microseconds a call); ``tests/test_units.py`` holds the two equal over random values.
     """
-    if quantity.dimensionality == _MOLAR:
+    if _dimensionality(quantity._units) == _MOLAR:
         return magnitude(quantity, "uM")
     if molar_mass is None:
         raise UnitError(
@@ -216,7 +222,7 @@ def concentration_um(quantity: pint.Quantity, molar_mass: pint.Quantity | None, 
 
 def amount_umol(quantity: pint.Quantity, molar_mass: pint.Quantity | None, *, field: str) -> float:
     """A dose in micromole; a mass dose needs the molar mass."""
-    if quantity.dimensionality == _AMOUNT:
+    if _dimensionality(quantity._units) == _AMOUNT:
         return magnitude(quantity, "umol")
     if molar_mass is None:
         raise UnitError(
