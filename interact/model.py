@@ -176,49 +176,16 @@ def organ_ratio(form: str, pathways: Sequence[Pathway], activities: Sequence[Any
         raise ValueError(f"organ form {form!r}: expected 'fraction' or 'availability'")
     if not pathways:
         return 1.0
-    if len(activities) != len(pathways):
-        raise ValueError(f"{len(activities)} activities for {len(pathways)} pathways: expected one per pathway")
-    return _ratios(((_organ_constants(form, pathways), range(len(pathways))),), activities)[1]
-
-
-_OrganConstants = tuple[str, tuple[Any, ...], Any]
-
-
-def _organ_constants(form: str, pathways: Sequence[Pathway]) -> _OrganConstants:
-    """What an organ's ratio needs of its pathways, worked out once: (form, weights, rest).
-
-    "fraction": the weights f x scale and rest = 1 - sum f (summed in pathway order);
-    "availability": the weight 1 - F and rest = F.
-    """
     if form == "availability":
-        (pw,) = pathways
-        return form, (1.0 - pw.fraction,), pw.fraction
+        (pw,), (act,) = pathways, activities
+        return 1.0 / (act * (1.0 - pw.fraction) + pw.fraction)
+    weighted: Any = None
     fm_sum: Any = None
-    for pw in pathways:
+    for pw, act in zip(pathways, activities, strict=True):
+        f = pw.fraction if pw.scale is None else pw.fraction * pw.scale
+        weighted = f * act if weighted is None else weighted + f * act
         fm_sum = pw.fraction if fm_sum is None else fm_sum + pw.fraction
-    return form, tuple(pw.fraction if pw.scale is None else pw.fraction * pw.scale for pw in pathways), 1.0 - fm_sum
-
-
-def _ratios(organs: Sequence[tuple[_OrganConstants | None, Sequence[int]]], activities: Sequence[Any]) -> tuple[list[Any], Any]:
-    """Each organ's ratio from its :func:`_organ_constants` (``None``: no pathways, ratio 1) and the activities at its
-    positions, one per pathway; and their product, the total (the one place of both forms' arithmetic)."""
-    values = []
-    total: Any = None
-    for constants, where in organs:
-        if constants is None:
-            value: Any = 1.0
-        else:
-            form, weights, rest = constants
-            if form == "availability":
-                value = 1.0 / (activities[where[0]] * weights[0] + rest)
-            else:
-                weighted: Any = None
-                for f, k in zip(weights, where, strict=True):
-                    weighted = f * activities[k] if weighted is None else weighted + f * activities[k]
-                value = 1.0 / (weighted + rest)
-        values.append(value)
-        total = value if total is None else total * value
-    return values, total
+    return 1.0 / (weighted + (1.0 - fm_sum))
 
 
 #: one site's constants bound to its concentrations: (conc, Ki,u) pairs, (conc, kinact, KI,u) triples,
@@ -234,7 +201,7 @@ class Model:
     scan evaluates the same inputs at many scales).
     """
 
-    __slots__ = ("_names", "_organs", "_sites")
+    __slots__ = ("_organs", "_sites")
 
     def __init__(self, acting: Sequence[Acting], pathways: Sequence[Pathway]) -> None:
         on: dict[int, list[Acting]] = {}
@@ -249,9 +216,8 @@ class Model:
             if organ.form not in _FORMS:
                 raise ValueError(f"organ {name}: form {organ.form!r}, expected 'fraction' or 'availability'")
             mine = [pw for pw in pathways if pw.organ == name]
-            where = tuple([sites.setdefault((pw.target, organ.site), len(sites)) for pw in mine])
-            organs.append((_organ_constants(organ.form, mine) if mine else None, where))
-        self._names = tuple(ORGANS)
+            where = [sites.setdefault((pw.target, organ.site), len(sites)) for pw in mine]
+            organs.append((name, organ.form, tuple(mine), tuple(where)))
         self._organs = tuple(organs)
         self._sites = tuple([(key, tuple(on.get(key[0], ()))) for key in sites])
 
@@ -286,6 +252,16 @@ class Model:
             )
         return Bound(self, tuple(sites))
 
+    def _combine(self, acts: Sequence[Any]) -> tuple[dict[str, Any], Any]:
+        """The organ ratios from the activity at each (target, site), and their product."""
+        organs: dict[str, Any] = {}
+        total: Any = None
+        for name, form, mine, where in self._organs:
+            value = organ_ratio(form, mine, tuple(map(acts.__getitem__, where)))
+            organs[name] = value
+            total = value if total is None else total * value
+        return organs, total
+
 
 class Bound:
     """A :class:`Model` with its concentrations and kdeg bound (:meth:`Model.bind`): only the arithmetic is left."""
@@ -298,23 +274,18 @@ class Bound:
 
     def evaluate(self, *, include: Sequence[str] = MECHANISMS, scale: Any = None) -> Evaluation:
         """The organ ratios, the total and the terms (``include``, ``scale`` as for :func:`evaluate`)."""
-        model = self._model
         terms, acts = self._terms(include, scale, True)
-        values, total = _ratios(model._organs, acts)
-        return Evaluation(
-            dict(zip(model._names, values, strict=True)),
-            total,
-            {key: Terms(*t) for (key, _), t in zip(model._sites, terms, strict=True)},
-        )
+        organs, total = self._model._combine(acts)
+        return Evaluation(organs, total, {key: Terms(*t) for (key, _), t in zip(self._model._sites, terms, strict=True)})
 
     def total(self, scale: Any = None) -> Any:
         """The total ratio alone, every mechanism on; the same arithmetic as :meth:`evaluate`, to the last bit
         (a scalar dose scan calls it some 14 times per scenario)."""
-        return _ratios(self._model._organs, self._terms(MECHANISMS, scale, False)[1])[1]
+        return self._model._combine(self._terms(MECHANISMS, scale, False)[1])[1]
 
     def _terms(self, include: Sequence[str], scale: Any, keep: bool) -> tuple[list[tuple[Any, Any, Any]], list[Any]]:
-        """(reversible, inactivation, induction) per site when ``keep``, the three terms written here once; and their
-        products, the activities."""
+        """(reversible, inactivation, induction) per site when ``keep``, and their products, the activities (plain
+        loops: a scalar dose scan runs this some 14 times per scenario)."""
         rev_on, tdi_on, ind_on = _ALL_ON if include is MECHANISMS else _switches(include)
         out = []
         acts = []
@@ -334,8 +305,8 @@ class Bound:
                     conc = conc if scale is None else scale * conc
                     e = d_emax * conc / (ec50 + conc)
                     effect = e if effect is None else effect + e
-            r = 1.0 if ratio is None else 1.0 / (1.0 + ratio)
-            i = 1.0 if kobs is None else kdeg / (kdeg + kobs)
+            r = 1.0 if ratio is None else reversible(ratio)
+            i = 1.0 if kobs is None else inactivation(kobs, kdeg)
             d = 1.0 if effect is None else 1.0 + effect
             if keep:
                 out.append((r, i, d))
