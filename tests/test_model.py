@@ -181,3 +181,17 @@ def test_fm_one_reversible_liver_ratio_is_the_published_r(row: dict[str, str]) -
 def test_an_unknown_organ_form_is_refused() -> None:
     with pytest.raises(ValueError, match="organ form"):
         model.organ_ratio("kidney-ish", [Pathway(target=0, organ="x", fraction=0.5)], [1.0])
+
+
+@settings(max_examples=100, deadline=None)
+@given(case=cases(), scales=st.lists(st.floats(0.0, 1e3), min_size=1, max_size=6))
+def test_a_bound_model_scans_scales_as_the_equations_do(case: dict, scales: list[float]) -> None:
+    # the perpetrator-dose scan binds the inputs once and evaluates many scales: each equals the equations written out
+    # with every concentration times the scale, and Model.evaluate at that scale, to the last bit
+    acting, pathways, conc, kdeg = _model_inputs(case)
+    structure = model.Model(acting, pathways)
+    bound = structure.bind(conc, kdeg)
+    for s in scales:
+        scaled = {**case, "conc": {site: [s * x for x in values] for site, values in case["conc"].items()}}
+        assert bound.total(s) == structure.evaluate(conc, kdeg, scale=s).total == _by_hand(scaled)[2]
+    assert bound.evaluate().total == bound.total() == _by_hand(case)[2]

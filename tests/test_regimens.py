@@ -340,3 +340,20 @@ def test_cmax_measured_at_another_dose_is_warned() -> None:
     with pytest.warns(AssumptionWarning, match="Cmax was measured"):
         a = assess(scenario_from_dict(data))
     assert any("Cmax was measured" in w and "200 mg" in w for w in a.warnings)
+
+
+def test_a_remembered_plan_is_shared_read_only_and_kept_apart_by_type() -> None:
+    # plans are remembered by their arguments: the same arguments (as tuples or as lists) give an equal plan, whose
+    # arrays nobody can change; an integer dose is kept apart from the equal float (its text could differ)
+    a = plan_regimens(usual_dose=10.0, dose_unit="mg", interval_h=24.0, strengths=(2.5, 5.0, 10.0), half_life_h=12.0)
+    b = plan_regimens(usual_dose=10.0, dose_unit="mg", interval_h=24.0, strengths=(2.5, 5.0, 10.0), half_life_h=12.0)
+    c = plan_regimens(usual_dose=10.0, dose_unit="mg", interval_h=24.0, strengths=[2.5, 5.0, 10.0], half_life_h=12.0)  # type: ignore[arg-type]
+    assert b is a and c == a and c.candidates == a.candidates
+    for arr in (a.factors, a.log_factors, a.exact, a.interval, a.taus_h, a.codes):
+        assert not arr.flags.writeable
+        with pytest.raises(ValueError):
+            arr[...] = arr
+    d = plan_regimens(usual_dose=10, dose_unit="mg", interval_h=24.0, strengths=(2.5, 5.0, 10.0), half_life_h=12.0)
+    assert type(d.usual_dose) is int and type(a.usual_dose) is float
+    with pytest.raises(InputError, match=r"victim\.dose"):
+        plan_regimens(usual_dose=-1.0, dose_unit="mg", interval_h=24.0)
