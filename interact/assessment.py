@@ -20,7 +20,7 @@ from .genotype import PhenotypeCase, phenotype_cases
 from .prediction import Prediction, predict, ratio_function
 from .scenario import Scenario
 from .screening import ScreenResult, screen
-from .tables import UNVERIFIED, RuleSet, Sourced, load_classes, load_rules, resolve_target, table_versions
+from .tables import UNVERIFIED, RuleSet, Sourced, load_classes, load_rules, resolve_target, table_versions, with_multipliers
 
 __all__ = ["Assessment", "Provenance", "assess"]
 
@@ -192,6 +192,8 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
         rule_set = load_rules(rules)
     else:  # the scenario's own key: a relative path is read from the scenario's folder
         rule_set = load_rules(scenario.rules, base=scenario.folder)
+    own_multipliers = {c.id: float(c.multiplier.value) if c.multiplier else 1.0 for c in rule_set.criteria}
+    rule_set = with_multipliers(rule_set, scenario.multipliers)
     classes = load_classes()
     settings = resolve_settings(scenario, rule_set)
     species, fu_settings = resolve_exposure(scenario, rule_set, settings)
@@ -208,11 +210,23 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
     gut_enzyme = next((c.target for c in constants if c.gut_wall), None) if v.route == "oral" else None
     fg_setting_default = v.fg is None
     fg = 1.0 if v.fg is None else v.fg
+    for k, pw in enumerate(v.pathways):  # until the interaction model takes transporter routes (issue 13, in progress)
+        if pw.route != "metabolism" or v.extended_clearance is not None or v.renal_fraction is not None:
+            raise InputError(
+                f"victim.pathways[{k}]" if pw.route != "metabolism" else "victim",
+                pw.enzyme,
+                "is read, but transporter routes, renal_fraction and extended_clearance are not modelled yet in this build",
+            )
     pathways = tuple((pw.enzyme, pw.fm) for pw in v.pathways)
     prediction = predict(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, classes=classes)
     _check_finite(screen_results, prediction, constants)
 
     # -- warnings a reviewer would want
+    for key, value in scenario.multipliers:
+        warnings.append(
+            f"Basic-model concentration multiplier of {key} overridden by the scenario: x {value:g} "
+            f"({rule_set.id} uses x {own_multipliers[key]:g})."
+        )
     if gut_enzyme is not None and fg_setting_default:
         warnings.append(
             f"victim.fg not given: Fg = 1 assumed, so no gut-wall interaction is predicted although {gut_enzyme} "
