@@ -17,8 +17,8 @@ from .dosing import DoseLimit, DoseSuggestion, RegimenPlan, highest_perpetrator_
 from .errors import AssumptionWarning, FromMemoryWarning, InputError, InteractWarning, ModelLimitWarning, emit_warnings
 from .exposure import Setting, SpeciesExposure, resolve_exposure, resolve_settings
 from .genotype import PhenotypeCase, phenotype_cases
-from .prediction import Prediction, predict, ratio_function
-from .scenario import Scenario
+from .prediction import Prediction, predict, ratio_function, routes_of
+from .scenario import METABOLISM, Scenario
 from .screening import ScreenResult, screen
 from .tables import UNVERIFIED, RuleSet, Sourced, load_classes, load_rules, resolve_target, table_versions, with_multipliers
 
@@ -210,15 +210,11 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
     gut_enzyme = next((c.target for c in constants if c.gut_wall), None) if v.route == "oral" else None
     fg_setting_default = v.fg is None
     fg = 1.0 if v.fg is None else v.fg
-    for k, pw in enumerate(v.pathways):  # until the interaction model takes transporter routes (issue 13, in progress)
-        if pw.route != "metabolism" or v.extended_clearance is not None or v.renal_fraction is not None:
-            raise InputError(
-                f"victim.pathways[{k}]" if pw.route != "metabolism" else "victim",
-                pw.enzyme,
-                "is read, but transporter routes, renal_fraction and extended_clearance are not modelled yet in this build",
-            )
-    pathways = tuple((pw.enzyme, pw.fm) for pw in v.pathways)
-    prediction = predict(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, classes=classes)
+    pathways = tuple((pw.enzyme, pw.fm) for pw in v.pathways if pw.route == METABOLISM)
+    routes = routes_of(v)
+    prediction = predict(
+        pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, classes=classes, routes=routes
+    )
     _check_finite(screen_results, prediction, constants)
 
     # -- warnings a reviewer would want
@@ -237,6 +233,8 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
         warnings.append(f"The perpetrator has no entry for the victim's pathway(s) {', '.join(untouched)}: taken as unaffected.")
     if not v.pathways:
         warnings.append("The victim lists no metabolic pathways: the liver term is 1 by construction.")
+    for text in _route_warnings(scenario, prediction):
+        warnings.append(text, ModelLimitWarning)
     for c in constants:
         if c.mechanism == "uncompetitive" and c.ki_u_um is not None:
             warnings.append(f"{c.species} on {c.target}: {_UNCOMPETITIVE_NOTE}.", ModelLimitWarning)
@@ -273,7 +271,7 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
             )
     rev_flags = {r.target for r in screen_results if r.criterion.startswith("reversible") and r.indicated}
     if prediction.total >= float(rule_set.aucr_inhibition_cutoff.value):
-        missed = [pw.enzyme for pw in v.pathways if pw.enzyme in acting_targets and pw.enzyme not in rev_flags]
+        missed = [pw.enzyme for pw in v.pathways if pw.route == METABOLISM and pw.enzyme in acting_targets and pw.enzyme not in rev_flags]
         if missed and any(c.ki_u_um is not None and c.target in missed for c in constants):
             warnings.append(
                 f"The mechanistic model predicts AUCR >= {rule_set.aucr_inhibition_cutoff.value:g} although the basic R1 "
@@ -305,7 +303,9 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
                 f"{units.format_quantity(p.dose)} (the perpetrator-dose ceiling below assumes Cmax scales with dose)."
             )
 
-    ratio_at = ratio_function(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
+    ratio_at = ratio_function(
+        pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, routes=routes
+    )
 
     limit = _perpetrator_limit(p, prediction, ratio_at, boundary[1])
 
@@ -409,6 +409,25 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
         memory_values=memory,
         provenance=provenance,
     )
+
+
+def _route_warnings(scenario: Scenario, prediction: Prediction) -> list[str]:
+    """What a reviewer of a transporter-cleared object drug should know."""
+    v = scenario.victim
+    out = []
+    if v.route != "oral" and any(pw.route == "intestinal efflux" for pw in v.pathways):
+        out.append("The victim is given intravenously: its intestinal efflux routes play no part and are left out.")
+    if v.extended_clearance is not None:
+        out.append(
+            "Hepatic clearances given: uptake and metabolism act through the extended clearance concept; the enzyme fm "
+            "are shares of CLmet and the hepatic uptake fractions shares of PS_inf."
+        )
+        if prediction.regime_with != prediction.regime:
+            out.append(
+                f"The precipitant moves the victim's hepatic clearance from {prediction.regime} to {prediction.regime_with}: "
+                "which step limits it depends on the inhibition ([@patileavrana2018])."
+            )
+    return out
 
 
 def _check_finite(screen_results: tuple[ScreenResult, ...], prediction: Prediction, constants: tuple[Constant, ...]) -> None:

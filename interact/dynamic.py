@@ -70,6 +70,7 @@ from numpy.typing import NDArray
 from . import units
 from .errors import FromMemoryWarning, InputError, ModelLimitWarning, emit_warnings
 from .exposure import Setting
+from .prediction import refuse_routes
 from .tables import load_physiology
 
 if TYPE_CHECKING:
@@ -461,6 +462,7 @@ def simulate(
     from .assessment import _kdeg, _Warnings
 
     s = assessment.scenario
+    refuse_routes(s.victim, "the time course")
     p = s.perpetrator
     v = s.victim
     warnings = _Warnings()  # texts with their InteractWarning topic

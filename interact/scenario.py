@@ -895,6 +895,12 @@ class _Reader:
         self._has_renal = "renal_fraction" in data
         pathways = self.pathways(data, path, fg=fg, renal_fraction=renal_fraction, ecm=ecm)
         phenotypes = self.phenotypes(data, path, {p.enzyme for p in pathways if p.route == METABOLISM})
+        if phenotypes and (ecm is not None or any(p.route != METABOLISM for p in pathways)):
+            self.fail(
+                f"{path}.phenotypes",
+                "are not combined with transporter routes or extended_clearance in this version; "
+                "assess the phenotypes with the enzyme pathways alone",
+            )
         lower, upper = self.boundary(data, "no_effect_boundary", path) or (None, None)
         peak_boundary = self.boundary(data, "peak_boundary", path)
         trough_boundary = self.boundary(data, "trough_boundary", path)

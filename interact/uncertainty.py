@@ -52,7 +52,7 @@ from .dosing import ACTIONS, Regimen, choose_regimens, feasible_fraction, regime
 from .errors import InputError
 from .exposure import enterocyte_um, unbound_cmax_um, unbound_inlet_um
 from .kinetics.conversion import ki_from_ic50
-from .prediction import gut_ratio, inactivation_term, induction_term, liver_ratio, reversible_term
+from .prediction import gut_ratio, inactivation_term, induction_term, liver_ratio, refuse_routes, reversible_term
 from .scenario import INTERVAL_KEYS, Inhibition
 from .tables import load_classes, resolve_target
 
@@ -320,6 +320,7 @@ class ScenarioModel:
         a = assessment
         self.assessment = a
         s = a.scenario
+        refuse_routes(s.victim, "the uncertainty and sensitivity analysis")
         p, v = s.perpetrator, s.victim
         rules = a.rules
         override = s.physiology.fu_plasma_floor

@@ -18,7 +18,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..assessment import Assessment, _kdeg
-from ..prediction import liver_ratio, ratio_function
+from ..prediction import liver_ratio, ratio_function, routes_of
 from ..report.numbers import fmt, fmt_ratio
 
 __all__ = ["Chart", "Series", "dose_curve", "draw", "fm_curve", "legend"]
@@ -100,12 +100,13 @@ def dose_curve(a: Assessment, points: int = 121) -> Chart | None:
         return None
     kdeg, _ = _kdeg(s, a.constants)
     at = ratio_function(
-        pathways=tuple((pw.enzyme, pw.fm) for pw in s.victim.pathways),
+        pathways=tuple((pw.enzyme, pw.fm) for pw in s.victim.pathways if pw.route == "metabolism"),
         fg=pr.fg_used,
         gut_enzyme=pr.gut_enzyme,
         constants=a.constants,
         species=a.species,
         kdeg=kdeg,
+        routes=routes_of(s.victim),
     )
     lim = a.perpetrator_limit
     dose = float(s.perpetrator.dose.magnitude)
