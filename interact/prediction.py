@@ -1,46 +1,31 @@
-"""Mechanistic static model: the victim's AUC ratio in gut, liver and in total.
+"""Mechanistic static model for one scenario: the victim's AUC ratio in gut, liver and in total.
 
-Net-effect form (Fahmi et al., Drug Metab Dispos 2008;36:1698; structure seen
-in Guengerich 2022, Fig. 17; the equations below are from memory, algebra checked).  For each
-enzyme e that clears the victim, the fraction of its activity that remains
-in an organ is the product of three terms, named by meaning:
+The arithmetic is :mod:`interact.model` (equations and sources there), evaluated on floats;
+this module turns a scenario's constants and concentrations into its inputs and its result into
+:class:`Prediction` records (terms per enzyme, mechanism parts, ceilings, band).  Complete
+inhibition bounds the ratio by 1/(1 - sum fm) in the liver and 1/Fg in the gut.
 
-- reversible   = 1 / (1 + sum_j [I]_j / Ki,u,j)
-- inactivation = kdeg / (kdeg + sum_j kinact_j [I]_j / (KI,u,j + [I]_j))
-- induction    = 1 + d sum_j Emax_j [I]_j / (EC50,u,j + [I]_j)
-
-and the organ ratios are
-
-- liver: AUCR_h = 1 / (sum_e fm_e x activity_h,e + (1 - sum_e fm_e))
-- gut:   AUCR_g = 1 / (activity_g x (1 - Fg) + Fg), for the gut-wall enzyme (CYP3A)
-- total: AUCR = AUCR_g x AUCR_h
-
-with [I]_h the unbound hepatic inlet concentration and [I]_g the enterocyte
-concentration (see :mod:`interact.exposure`).  Complete inhibition bounds the
-ratio by 1/(1 - sum fm) in the liver and 1/Fg in the gut.
-
-Transporter routes of the object drug (:class:`Routes`, :mod:`interact.transporters`) enter the same
-organ form: intestinal efflux beside gut-wall CYP3A in the gut term (at I,ent), hepatic uptake beside
-the enzymes in the liver term (at Iin,max,u) or, with the hepatic clearances given, through the
-extended clearance concept, and renal secretion in a kidney term (at Imax,u); the total is
-gut x liver x kidney (:func:`interact.transporters.organ_ratios`).
+The object drug's transporter routes (:class:`Routes`) are pathways of the same model: intestinal
+efflux in the gut (at I,ent), hepatic uptake in the liver (at Iin,max,u; with the hepatic clearances,
+the extended clearance concept), renal secretion in the kidney (at Imax,u); see :mod:`interact.model`.
 """
 
 from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Final
+from typing import Final, NamedTuple
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from . import model
 from .constants import Constant
 from .errors import InputError
 from .exposure import SpeciesExposure
-from .scenario import Victim
+from .scenario import METABOLISM, Victim
 from .tables import Band, Classes
-from .transporters import clearance_regime, extended_clearance_activity, fraction_weighted_activity, organ_ratios
+from .transporters import clearance_regime
 
 __all__ = [
     "EnzymeEffect",
@@ -66,41 +51,35 @@ INHIBITION_PART = "reversible + time-dependent"
 
 def reversible_term(sum_ratio: ArrayLike) -> NDArray[np.float64]:
     """Fraction of activity left by reversible inhibition: 1/(1 + sum [I]/Ki,u)."""
-    return 1.0 / (1.0 + np.asarray(sum_ratio, dtype=float))
+    return np.asarray(model.reversible(np.asarray(sum_ratio, dtype=float)))
 
 
 def inactivation_term(kobs_per_h: ArrayLike, kdeg_per_h: ArrayLike) -> NDArray[np.float64]:
     """Fraction of enzyme left at steady state by inactivation: kdeg/(kdeg + kobs)."""
-    kdeg = np.asarray(kdeg_per_h, dtype=float)
-    return kdeg / (kdeg + np.asarray(kobs_per_h, dtype=float))
+    return np.asarray(model.inactivation(np.asarray(kobs_per_h, dtype=float), np.asarray(kdeg_per_h, dtype=float)))
 
 
 def induction_term(effect: ArrayLike, calibration: ArrayLike = 1.0) -> NDArray[np.float64]:
     """Fold increase in enzyme: 1 + d x sum(Emax [I]/(EC50,u + [I]))."""
-    return 1.0 + np.multiply(calibration, effect)
+    return np.asarray(model.induction(np.asarray(effect, dtype=float), np.asarray(calibration, dtype=float)))
 
 
 def liver_ratio(fm: ArrayLike, activity: ArrayLike) -> NDArray[np.float64]:
-    """AUCR_h = 1/(sum fm x activity + 1 - sum fm), pathways along the last axis."""
+    """AUCR_h = 1/(sum fm x activity + 1 - sum fm), pathways along the last axis (summed in their order)."""
     f = np.asarray(fm, dtype=float)
     a = np.asarray(activity, dtype=float)
-    return 1.0 / (np.sum(f * a, axis=-1) + (1.0 - np.sum(f, axis=-1)))  # (1 - sum fm) first: exact when fm = 1
+    f, a = np.broadcast_arrays(f, a)
+    n = f.shape[-1] if f.ndim else 0
+    pathways = [model.Pathway(target=k, organ="liver", fraction=f[..., k]) for k in range(n)]
+    out = model.organ_ratio("fraction", pathways, [a[..., k] for k in range(n)])
+    return np.broadcast_to(np.asarray(out, dtype=float), f.shape[:-1]).copy() if n == 0 else np.asarray(out, dtype=float)
 
 
 def gut_ratio(fg: ArrayLike, activity: ArrayLike) -> NDArray[np.float64]:
     """AUCR_g = 1/(activity x (1 - Fg) + Fg); Fg is the victim's intestinal availability."""
     g = np.asarray(fg, dtype=float)
-    return 1.0 / (np.asarray(activity, dtype=float) * (1.0 - g) + g)
-
-
-#: the concentration each site sees: hepatic inlet (unbound), enterocyte, systemic unbound Cmax (kidney)
-_SITE_CONCENTRATION: Final = {
-    "liver": lambda e: e.unbound_inlet_um,
-    "gut": lambda e: e.enterocyte_um,
-    "kidney": lambda e: e.unbound_cmax_um,
-}
-#: the site of each transporter route
-_ROUTE_SITE: Final = {"intestinal efflux": "gut", "hepatic uptake": "liver", "renal secretion": "kidney"}
+    pathway = model.Pathway(target=0, organ="gut", fraction=g)
+    return np.asarray(model.organ_ratio("availability", (pathway,), (np.asarray(activity, dtype=float),)), dtype=float)
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -126,16 +105,8 @@ class Routes:
 
 
 NO_ROUTES: Final = Routes()
-
-
-def refuse_routes(victim: Victim, what: str) -> None:
-    """Raise :class:`InputError` naming the victim's first transporter route (or its extended clearance): ``what``
-    takes enzyme pathways only so far, and would otherwise count a transporter as an enzyme."""
-    for k, pw in enumerate(victim.pathways):
-        if pw.route != "metabolism":
-            raise InputError(f"victim.pathways[{k}]", pw.enzyme, f"is a {pw.route} route; {what} takes enzyme pathways only so far")
-    if victim.extended_clearance is not None:
-        raise InputError("victim.extended_clearance", "given", f"is not taken by {what} so far; assess the scenario without it")
+#: the organ and site of each transporter route
+_ROUTE_ORGAN: Final = {"intestinal efflux": "gut", "hepatic uptake": "liver", "renal secretion": "kidney"}
 
 
 def routes_of(victim: Victim) -> Routes:
@@ -154,6 +125,16 @@ def routes_of(victim: Victim) -> Routes:
         clearances=None if ecm is None else ecm.relative(),
         hepatic_fraction=hepatic,
     )
+
+
+def refuse_routes(victim: Victim, what: str) -> None:
+    """Raise :class:`InputError` naming the victim's first transporter route (or its extended clearance): ``what``
+    takes enzyme pathways only so far, and would otherwise count a transporter as an enzyme."""
+    for k, pw in enumerate(victim.pathways):
+        if pw.route != METABOLISM:
+            raise InputError(f"victim.pathways[{k}]", pw.enzyme, f"is a {pw.route} route; {what} takes enzyme pathways only so far")
+    if victim.extended_clearance is not None:
+        raise InputError("victim.extended_clearance", "given", f"is not taken by {what} so far; assess the scenario without it")
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -225,119 +206,136 @@ class Prediction:
     regime_with: str | None = None
 
 
-def _site(
-    enzyme: str,
-    constants: tuple[Constant, ...],
-    species: tuple[SpeciesExposure, ...],
-    site: str,
-    kdeg: float | None,
-    scale: float,
-    include: tuple[str, ...],
-) -> SiteTerms:
-    ratio = kobs = effect = 0.0
-    concs = []
-    for c in constants:
-        if c.target != enzyme:
-            continue
-        exp = species[c.species_index]
-        conc = scale * _SITE_CONCENTRATION[site](exp)
-        concs.append((c.species, conc))
-        if c.ki_u_um is not None and "reversible" in include:
-            ratio += conc / c.ki_u_um
-        if c.kinact_per_h is not None and c.ki_inact_u_um is not None and "time-dependent" in include:
-            kobs += c.kinact_per_h * conc / (c.ki_inact_u_um + conc)
-        if c.emax is not None and c.ec50_u_um is not None and "induction" in include:
-            effect += c.calibration * c.emax * conc / (c.ec50_u_um + conc)
-    return SiteTerms(
-        concentration_um=tuple(concs),
-        reversible=1.0 / (1.0 + ratio),
-        inactivation=1.0 if kobs == 0.0 or kdeg is None else kdeg / (kdeg + kobs),
-        induction=1.0 + effect,
-        kdeg_per_h=kdeg,
-    )
+def _targets(
+    pathways: tuple[tuple[str, float], ...], gut_enzyme: str | None, constants: tuple[Constant, ...], routes: Routes = NO_ROUTES
+) -> dict[str, int]:
+    """Index of every target named by the victim's pathways and routes, the gut-wall enzyme and the perpetrator's constants."""
+    index: dict[str, int] = {}
+    named = (e for e, _ in (*pathways, *routes.efflux, *routes.uptake, *routes.secretion))
+    for name in (*named, *((gut_enzyme,) if gut_enzyme else ()), *(c.target for c in constants)):
+        index.setdefault(name, len(index))
+    return index
 
 
-@dataclass(frozen=True, slots=True, kw_only=True)
-class _Organs:
-    gut: float
-    liver: float
-    kidney: float
-    effects: tuple[EnzymeEffect, ...]
-    routes: tuple[RouteEffect, ...]
-    metabolism_left: float  # with the hepatic clearances: the share of CLmet the precipitant leaves
+def _route_pathways(routes: Routes, targets: dict[str, int]) -> list[model.Pathway]:
+    """The transporter routes as model pathways: efflux by the availability it governs, uptake and secretion by fraction."""
+    role = "uptake" if routes.clearances is not None else ""
+    return [
+        *(model.Pathway(target=targets[t], organ="gut", fraction=1.0 - f) for t, f in routes.efflux),
+        *(model.Pathway(target=targets[t], organ="liver", fraction=f, role=role) for t, f in routes.uptake),
+        *(model.Pathway(target=targets[t], organ="kidney", fraction=f) for t, f in routes.secretion),
+    ]
 
 
-def _ratios(
+class _Inputs(NamedTuple):
+    """One scenario's numbers as the arguments of :func:`interact.model.evaluate` (floats: the n = 1 case)."""
+
+    targets: dict[str, int]
+    acting: tuple[model.Acting, ...]
+    pathways: tuple[model.Pathway, ...]
+    concentrations: dict[str, tuple[float, ...]]
+    kdeg: dict[tuple[int, str], float | None]
+    structure: model.Model
+
+    def evaluate(self, include: tuple[str, ...] = MECHANISM_PARTS, scale: float | None = None) -> model.Evaluation:
+        return self.structure.evaluate(self.concentrations, self.kdeg, include=include, scale=scale)
+
+
+def _inputs(
     pathways: tuple[tuple[str, float], ...],
     fg: float,
     gut_enzyme: str | None,
     constants: tuple[Constant, ...],
     species: tuple[SpeciesExposure, ...],
     kdeg: dict[str, tuple[float | None, float | None]],
-    scale: float,
-    include: tuple[str, ...],
     routes: Routes = NO_ROUTES,
-    zero: frozenset[str] = frozenset(),
-) -> _Organs:
-    """The organ ratios; targets in ``zero`` are taken as completely inhibited (for the ceilings)."""
-    effects = []
-    for enzyme, fm in pathways:
-        k_liver, k_gut = kdeg.get(enzyme, (None, None))
-        liver = _site(enzyme, constants, species, "liver", k_liver, scale, include)
-        gut = _site(enzyme, constants, species, "gut", k_gut, scale, include) if enzyme == gut_enzyme else None
-        effects.append(EnzymeEffect(enzyme=enzyme, fm=fm, liver=liver, gut=gut))
-    route_effects = []
-    for route, items in (("intestinal efflux", routes.efflux), ("hepatic uptake", routes.uptake), ("renal secretion", routes.secretion)):
-        site = _ROUTE_SITE[route]
-        for name, fraction in items:
-            k = kdeg.get(name, (None, None))
-            terms = _site(name, constants, species, site, k[1] if site == "gut" else k[0], scale, include)
-            route_effects.append(RouteEffect(transporter=name, route=route, fraction=fraction, site=terms))
-
-    def act(name: str, terms: SiteTerms) -> float:
-        return 0.0 if name in zero else terms.activity
-
-    gut_f: list[float] = []
-    gut_a: list[float] = []
+) -> _Inputs:
+    targets = _targets(pathways, gut_enzyme, constants, routes)
+    acting = tuple(
+        model.Acting(
+            target=targets[c.target],
+            species=c.species_index,
+            ki_u=c.ki_u_um,
+            kinact=c.kinact_per_h if c.ki_inact_u_um is not None else None,
+            ki_inact_u=c.ki_inact_u_um,
+            emax=c.emax if c.ec50_u_um is not None else None,
+            ec50_u=c.ec50_u_um,
+            calibration=c.calibration,
+        )
+        for c in constants
+    )
+    victim = [model.Pathway(target=targets[e], organ="liver", fraction=fm) for e, fm in pathways]
     if gut_enzyme is not None:
-        k_gut = kdeg.get(gut_enzyme, (None, None))[1]
-        g = next((e.gut for e in effects if e.enzyme == gut_enzyme), None)
-        if g is None:
-            g = _site(gut_enzyme, constants, species, "gut", k_gut, scale, include)
-        gut_f.append(1.0 - fg)
-        gut_a.append(act(gut_enzyme, g))
-    for r in route_effects:
-        if r.route == "intestinal efflux":
-            gut_f.append(r.fraction)
-            gut_a.append(act(r.transporter, r.site))
-    enzyme_f = [e.fm for e in effects]
-    enzyme_a = [act(e.enzyme, e.liver) for e in effects]
-    uptake = [(r.fraction, act(r.transporter, r.site)) for r in route_effects if r.route == "hepatic uptake"]
-    kidney = [(r.fraction, act(r.transporter, r.site)) for r in route_effects if r.route == "renal secretion"]
-    metabolism_left = 1.0
-    if routes.empty:  # the enzyme-only model, term for term as before (other callers match it to the last bit)
-        k_liver = 1.0 / (sum(f * a for f, a in zip(enzyme_f, enzyme_a, strict=True)) + (1.0 - sum(enzyme_f)))
-        k_gut = 1.0 / (gut_a[0] * (1.0 - fg) + fg) if gut_a else 1.0
-        return _Organs(gut=k_gut, liver=k_liver, kidney=1.0, effects=tuple(effects), routes=(), metabolism_left=1.0)
-    if routes.clearances is None:
-        liver_f = enzyme_f + [f for f, _ in uptake]
-        liver_a = enzyme_a + [a for _, a in uptake]
-    else:
-        metabolism_left = float(fraction_weighted_activity(enzyme_f or [0.0], enzyme_a or [1.0]))
-        uptake_left = float(fraction_weighted_activity([f for f, _ in uptake] or [0.0], [a for _, a in uptake] or [1.0]))
-        liver_f = [routes.hepatic_fraction]
-        liver_a = [float(extended_clearance_activity(*routes.clearances, uptake_left, metabolism_left))]
-    g_r, h_r, k_r = organ_ratios(
-        gut_f or [0.0], gut_a or [1.0], liver_f or [0.0], liver_a or [1.0], [f for f, _ in kidney] or [0.0], [a for _, a in kidney] or [1.0]
+        victim.insert(0, model.Pathway(target=targets[gut_enzyme], organ="gut", fraction=fg))
+    victim += _route_pathways(routes, targets)
+    rates: dict[tuple[int, str], float | None] = {}
+    for enzyme, (k_liver, k_gut) in kdeg.items():
+        if enzyme in targets:
+            rates[targets[enzyme], "liver"] = k_liver
+            rates[targets[enzyme], "gut"] = k_gut
+    concentrations = {
+        "liver": tuple(sp.unbound_inlet_um for sp in species),
+        "gut": tuple(sp.enterocyte_um for sp in species),
+        "kidney": tuple(sp.unbound_cmax_um for sp in species),
+    }
+    organs = model.ORGANS
+    if routes.clearances is not None:
+        extended = model.Organ(site="liver", form="extended", clearances=routes.clearances, fraction=routes.hepatic_fraction)
+        organs = {**model.ORGANS, "liver": extended}
+    return _Inputs(targets, acting, tuple(victim), concentrations, rates, model.Model(acting, victim, organs))
+
+
+def _effects(
+    pathways: tuple[tuple[str, float], ...],
+    gut_enzyme: str | None,
+    constants: tuple[Constant, ...],
+    inputs: _Inputs,
+    result: model.Evaluation,
+    kdeg: dict[str, tuple[float | None, float | None]],
+    scale: float,
+) -> tuple[EnzymeEffect, ...]:
+    """The terms of each victim pathway (and of the gut-wall enzyme on its pathway) as :class:`EnzymeEffect` records."""
+
+    def site(enzyme: str, where: str) -> SiteTerms:
+        t = result.terms[inputs.targets[enzyme], where]
+        conc = inputs.concentrations[where]
+        return SiteTerms(
+            concentration_um=tuple((c.species, scale * conc[c.species_index]) for c in constants if c.target == enzyme),
+            reversible=float(t.reversible),
+            inactivation=float(t.inactivation),
+            induction=float(t.induction),
+            kdeg_per_h=kdeg.get(enzyme, (None, None))[0 if where == "liver" else 1],
+        )
+
+    return tuple(
+        EnzymeEffect(enzyme=e, fm=fm, liver=site(e, "liver"), gut=site(e, "gut") if e == gut_enzyme else None) for e, fm in pathways
     )
-    return _Organs(
-        gut=float(g_r),
-        liver=float(h_r),
-        kidney=float(k_r),
-        effects=tuple(effects),
-        routes=tuple(route_effects),
-        metabolism_left=metabolism_left,
+
+
+def _mechanisms(constants: tuple[Constant, ...]) -> tuple[str, ...]:
+    """The mechanisms the perpetrator's constants carry, in the order of :data:`MECHANISM_PARTS`."""
+    present = (
+        any(c.ki_u_um is not None for c in constants),
+        any(c.kinact_per_h is not None for c in constants),
+        any(c.emax is not None for c in constants),
     )
+    return tuple(m for m, on in zip(MECHANISM_PARTS, present, strict=True) if on)
+
+
+def _parts(mechanisms: tuple[str, ...], inputs: _Inputs, scale: float) -> tuple[MechanismPart, ...]:
+    """The ratios with one mechanism at a time (and both inhibitory ones together when induction is also present)."""
+    if len(mechanisms) <= 1:
+        return ()
+    groups: list[tuple[str, tuple[str, ...]]] = [(m, (m,)) for m in mechanisms]
+    if set(MECHANISM_PARTS) <= set(mechanisms):
+        # inhibition and induction run separately, as guidance asks (memory): both inhibitory parts together
+        groups.append((INHIBITION_PART, ("reversible", "time-dependent")))
+    parts = []
+    for name, include in groups:
+        r = inputs.evaluate(include, scale)
+        g, h, k = float(r.gut), float(r.liver), float(r.kidney)
+        parts.append(MechanismPart(mechanism=name, gut=g, liver=h, total=g * h * k, kidney=k))
+    return tuple(parts)
 
 
 def predict(
@@ -352,7 +350,7 @@ def predict(
     scale: float = 1.0,
     routes: Routes = NO_ROUTES,
 ) -> Prediction:
-    """The mechanistic static model for one victim.
+    """The mechanistic static model for one victim: :func:`interact.model.evaluate` on floats, with its terms.
 
     Parameters
     ----------
@@ -371,63 +369,81 @@ def predict(
     scale
         Multiplier on every perpetrator concentration (perpetrator-dose scan).
     routes
-        The object drug's transporter routes and hepatic clearances, if any.
+        The victim's transporter routes and hepatic clearances (:func:`routes_of`).
     """
-    mechanisms = tuple(
-        m
-        for m, present in (
-            ("reversible", any(c.ki_u_um is not None for c in constants)),
-            ("time-dependent", any(c.kinact_per_h is not None for c in constants)),
-            ("induction", any(c.emax is not None for c in constants)),
-        )
-        if present
-    )
-    organs = _ratios(pathways, fg, gut_enzyme, constants, species, kdeg, scale, MECHANISM_PARTS, routes)
-    parts = []
-    if len(mechanisms) > 1:
-        groups: list[tuple[str, tuple[str, ...]]] = [(m, (m,)) for m in mechanisms]
-        if {"reversible", "time-dependent", "induction"} <= set(mechanisms):
-            # inhibition and induction run separately, as guidance asks (memory): both inhibitory parts together
-            groups.append((INHIBITION_PART, ("reversible", "time-dependent")))
-        for name, include in groups:
-            o = _ratios(pathways, fg, gut_enzyme, constants, species, kdeg, scale, include, routes)
-            parts.append(MechanismPart(mechanism=name, gut=o.gut, liver=o.liver, total=o.gut * o.liver * o.kidney, kidney=o.kidney))
+    inputs = _inputs(pathways, fg, gut_enzyme, constants, species, kdeg, routes)
+    mechanisms = _mechanisms(constants)
+    result = inputs.evaluate(scale=scale)
+    gut_r, liver_r, kidney_r = float(result.gut), float(result.liver), float(result.kidney)
     acted_on = {c.target for c in constants if c.ki_u_um is not None or c.kinact_per_h is not None}
     inhibited_fm = sum(fm for enzyme, fm in pathways if enzyme in acted_on)
-    regime = regime_with = None
-    if routes.empty:
-        ceiling_liver = 1.0 / (1.0 - inhibited_fm) if inhibited_fm < 1.0 else float("inf")
-        ceiling_gut = 1.0 / fg if gut_enzyme is not None and gut_enzyme in acted_on else 1.0
-        ceiling_kidney = 1.0
-    else:
-        with np.errstate(divide="ignore"):  # complete inhibition of all clearance: an infinite ceiling
-            top = _ratios(pathways, fg, gut_enzyme, constants, species, kdeg, scale, MECHANISM_PARTS, routes, frozenset(acted_on))
-        ceiling_gut, ceiling_liver, ceiling_kidney = top.gut, top.liver, top.kidney
-        if routes.clearances is not None:
-            ps_eff, cl_met, cl_bile = routes.clearances[1:]
-            regime = str(clearance_regime(ps_eff, cl_met, cl_bile))
-            regime_with = str(clearance_regime(ps_eff, cl_met * organs.metabolism_left, cl_bile))
-    total = organs.gut * organs.liver * organs.kidney
+    ceiling_liver = 1.0 / (1.0 - inhibited_fm) if inhibited_fm < 1.0 else float("inf")
+    ceiling_gut = 1.0 / fg if gut_enzyme is not None and gut_enzyme in acted_on else 1.0
+    total = gut_r * liver_r * kidney_r
+    ceilings = (ceiling_gut, ceiling_liver, 1.0) if routes.empty else _route_ceilings(inputs, acted_on)
     return Prediction(
-        gut=organs.gut,
-        liver=organs.liver,
+        gut=gut_r,
+        liver=liver_r,
         total=total,
-        ceiling_gut=ceiling_gut,
-        ceiling_liver=ceiling_liver,
-        ceiling_total=ceiling_gut * ceiling_liver * ceiling_kidney,
+        ceiling_gut=ceilings[0],
+        ceiling_liver=ceilings[1],
+        ceiling_total=ceilings[0] * ceilings[1] * ceilings[2],
         band=classes.classify(total),
-        effects=organs.effects,
-        parts=tuple(parts),
+        effects=_effects(pathways, gut_enzyme, constants, inputs, result, kdeg, scale),
+        parts=_parts(mechanisms, inputs, scale),
         mechanisms=mechanisms,
         fg_used=fg,
         gut_enzyme=gut_enzyme,
         inhibited_fm=inhibited_fm,
-        kidney=organs.kidney,
-        ceiling_kidney=ceiling_kidney,
-        routes=organs.routes,
-        regime=regime,
-        regime_with=regime_with,
+        kidney=kidney_r,
+        ceiling_kidney=ceilings[2],
+        routes=_route_effects(routes, constants, inputs, result, kdeg, scale),
+        regime=None if routes.clearances is None else str(clearance_regime(*routes.clearances[1:])),
+        regime_with=None if routes.clearances is None else _regime_with(routes, pathways, result, inputs),
     )
+
+
+def _route_ceilings(inputs: _Inputs, acted_on: set[str]) -> tuple[float, float, float]:
+    """Gut, liver and kidney ratios with every target the precipitant inhibits at activity 0 (infinite when nothing is left)."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        organs, _ = inputs.structure.ceilings({inputs.targets[t] for t in acted_on if t in inputs.targets})
+    out = [float(organs[name]) for name in ("gut", "liver", "kidney")]
+    return tuple(x if np.isfinite(x) and x > 0 else float("inf") for x in out)  # type: ignore[return-value]
+
+
+def _route_effects(
+    routes: Routes,
+    constants: tuple[Constant, ...],
+    inputs: _Inputs,
+    result: model.Evaluation,
+    kdeg: dict[str, tuple[float | None, float | None]],
+    scale: float,
+) -> tuple[RouteEffect, ...]:
+    """The terms of each transporter route at its site, as :class:`RouteEffect` records."""
+    out = []
+    for route, items in (("intestinal efflux", routes.efflux), ("hepatic uptake", routes.uptake), ("renal secretion", routes.secretion)):
+        where = _ROUTE_ORGAN[route]
+        conc = inputs.concentrations[where]
+        for name, fraction in items:
+            t = result.terms[inputs.targets[name], where]
+            terms = SiteTerms(
+                concentration_um=tuple((c.species, scale * conc[c.species_index]) for c in constants if c.target == name),
+                reversible=float(t.reversible),
+                inactivation=float(t.inactivation),
+                induction=float(t.induction),
+                kdeg_per_h=kdeg.get(name, (None, None))[1 if where == "gut" else 0],
+            )
+            out.append(RouteEffect(transporter=name, route=route, fraction=fraction, site=terms))
+    return tuple(out)
+
+
+def _regime_with(routes: Routes, pathways: tuple[tuple[str, float], ...], result: model.Evaluation, inputs: _Inputs) -> str:
+    """The extended-clearance regime with the precipitant: CLmet reduced by the enzymes' remaining activity."""
+    assert routes.clearances is not None
+    enzymes = [model.Pathway(target=inputs.targets[e], organ="liver", fraction=fm) for e, fm in pathways]
+    left = float(model.remaining(enzymes, [result.terms[pw.target, "liver"].activity for pw in enzymes]))
+    ps_eff, cl_met, cl_bile = routes.clearances[1:]
+    return str(clearance_regime(ps_eff, cl_met * left, cl_bile))
 
 
 def ratio_function(
@@ -440,71 +456,19 @@ def ratio_function(
     kdeg: dict[str, tuple[float | None, float | None]],
     routes: Routes = NO_ROUTES,
 ) -> Callable[[float], float]:
-    """A fast scalar ``scale -> total AUCR``, the same model as :func:`predict`.
+    """``scale -> total AUCR``: :func:`interact.model.evaluate` with every concentration times ``scale``.
 
-    Used for root finding over the perpetrator's dose; ``predict`` is the
-    reference and a test keeps the two equal.  With transporter routes it is
-    :func:`predict`'s own organ arithmetic at each scale.
+    Used for root finding over the perpetrator's dose.
     """
-    if not routes.empty:
+    inputs = _inputs(pathways, fg, gut_enzyme, constants, species, kdeg, routes)
 
-        def with_routes(scale: float) -> float:
-            o = _ratios(pathways, fg, gut_enzyme, constants, species, kdeg, scale, MECHANISM_PARTS, routes)
-            return o.gut * o.liver * o.kidney
-
-        return with_routes
-    rows: list[
-        tuple[float, bool, list[tuple[float, float, float | None, float | None, float | None, float | None, float | None, float]]]
-    ] = []
-    enzymes = [e for e, _ in pathways]
-    if gut_enzyme is not None and gut_enzyme not in enzymes:
-        pathways = (*pathways, (gut_enzyme, 0.0))
-    for enzyme, fm in pathways:
-        k_liver, k_gut = kdeg.get(enzyme, (None, None))
-        acts = []
-        for c in constants:
-            if c.target != enzyme:
-                continue
-            exp = species[c.species_index]
-            acts.append(
-                (
-                    exp.unbound_inlet_um,
-                    exp.enterocyte_um,
-                    c.ki_u_um,
-                    c.kinact_per_h,
-                    c.ki_inact_u_um,
-                    c.emax,
-                    c.ec50_u_um,
-                    c.calibration,
-                )
-            )
-        rows.append((fm, enzyme == gut_enzyme, [(*a, k_liver, k_gut) for a in acts]))  # type: ignore[misc]
-
-    def activity(items: list[tuple[float, ...]], site: int, scale: float) -> float:
-        ratio = kobs = effect = 0.0
-        kdeg_site = None
-        for item in items:
-            conc = scale * item[site]
-            ki, kinact, ki_inact, emax, ec50, d = item[2], item[3], item[4], item[5], item[6], item[7]
-            kdeg_site = item[8 + site]
-            if ki is not None:
-                ratio += conc / ki
-            if kinact is not None and ki_inact is not None:
-                kobs += kinact * conc / (ki_inact + conc)
-            if emax is not None and ec50 is not None:
-                effect += d * emax * conc / (ec50 + conc)
-        inact = 1.0 if kobs == 0.0 or kdeg_site is None else kdeg_site / (kdeg_site + kobs)
-        return inact * (1.0 + effect) / (1.0 + ratio)
+    run, concentrations, rates = inputs.structure.total, inputs.concentrations, inputs.kdeg
+    seen: dict[float, float] = {}  # the root search asks again for the ends of its bracket
 
     def total(scale: float) -> float:
-        weighted = 0.0
-        fm_sum = 0.0
-        gut = 1.0
-        for fm, is_gut, items in rows:
-            weighted += fm * activity(items, 0, scale)  # type: ignore[arg-type]
-            fm_sum += fm
-            if is_gut:
-                gut = 1.0 / (activity(items, 1, scale) * (1.0 - fg) + fg)  # type: ignore[arg-type]
-        return gut / (weighted + (1.0 - fm_sum))
+        value = seen.get(scale)
+        if value is None:
+            value = seen[scale] = float(run(concentrations, rates, scale))
+        return value
 
     return total

@@ -1,7 +1,7 @@
 """Object drugs cleared by transporters: the extended clearance concept and its regime.
 
-The organ ratios of transporter routes use the same net-effect form as the enzyme pathways
-(``1 / (sum f x activity + 1 - sum f)`` per organ, :func:`interact.prediction.liver_ratio`), with
+The organ ratios of transporter routes are pathways of the one interaction model (:mod:`interact.model`,
+the net-effect form ``1 / (sum f x activity + 1 - sum f)`` per organ), with
 
 - intestinal efflux (P-gp, BCRP): f = the fraction of the oral dose the transporter returns to the
   lumen, activity at the enterocyte concentration I,ent; it shares the gut term with gut-wall CYP3A
@@ -50,8 +50,6 @@ __all__ = [
     "clearance_regime",
     "extended_clearance",
     "extended_clearance_activity",
-    "fraction_weighted_activity",
-    "organ_ratios",
 ]
 
 #: beta = (CLmet + CLbile) / PS_eff at or beyond which one step is taken to limit the rate (this project's choice)
@@ -80,16 +78,6 @@ def extended_clearance(ps_inf: ArrayLike, ps_eff: ArrayLike, cl_met: ArrayLike, 
         return np.asarray(ps_inf, dtype=float) / (1.0 + np.divide(ps_eff, elim))
 
 
-def fraction_weighted_activity(fractions: ArrayLike, activity: ArrayLike) -> NDArray[np.float64]:
-    """Remaining share of a clearance split between pathways: sum f x activity + (1 - sum f), pathways on the last axis.
-
-    ``fractions`` are the shares of one clearance (PS_inf by uptake transporter, CLmet by enzyme); the part
-    not listed (passive diffusion, other enzymes) is unaffected.
-    """
-    f = np.asarray(fractions, dtype=float)
-    return (1.0 - np.sum(f, axis=-1)) + np.sum(f * np.asarray(activity, dtype=float), axis=-1)
-
-
 def extended_clearance_activity(
     ps_inf: ArrayLike,
     ps_eff: ArrayLike,
@@ -102,7 +90,7 @@ def extended_clearance_activity(
     """CLint,all with the precipitant over CLint,all without it: the hepatic activity the liver ratio uses.
 
     ``uptake_left``, ``metabolism_left`` and ``bile_left`` are the remaining fractions of PS_inf, CLmet and
-    CLbile (:func:`fraction_weighted_activity`); PS_eff is left unchanged.
+    CLbile (:func:`interact.model.remaining`); PS_eff is left unchanged.
     """
     before = extended_clearance(ps_inf, ps_eff, cl_met, cl_bile)
     after = extended_clearance(
@@ -119,47 +107,3 @@ def clearance_regime(ps_eff: ArrayLike, cl_met: ArrayLike, cl_bile: ArrayLike = 
     metabolism = ~uptake & (REGIME_BOUND * elim <= eff)
     return np.where(uptake, UPTAKE_LIMITED, np.where(metabolism, METABOLISM_LIMITED, MIXED))
 
-
-def organ_ratios(
-    gut_fractions: ArrayLike,
-    gut_activity: ArrayLike,
-    liver_fractions: ArrayLike,
-    liver_activity: ArrayLike,
-    kidney_fractions: ArrayLike,
-    kidney_activity: ArrayLike,
-) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64]]:
-    """The gut, liver and kidney AUC ratios; their product is the total.  Pathways on the last axis of each pair.
-
-    Parameters
-    ----------
-    gut_fractions, gut_activity
-        Fractions of the oral dose lost in the gut wall by route (gut-wall CYP3A: 1 - Fg; each efflux
-        transporter: its fraction), and the activity left of each (1 = uninhibited).
-    liver_fractions, liver_activity
-        Fractions of systemic clearance through hepatic routes (enzymes, uptake transporters; or one composite
-        hepatic fraction whose activity is :func:`extended_clearance_activity`).
-    kidney_fractions, kidney_activity
-        Fractions of systemic clearance through renal secretion (renal fraction x the transporter's share of
-        renal clearance).
-
-    Returns
-    -------
-    gut, liver, kidney
-        gut = 1 / W_g with W_g = sum f a + (1 - sum f) over the gut routes (for CYP3A alone:
-        1 / (a (1 - Fg) + Fg), the net-effect gut term); liver = 1 / W_h likewise.  The liver and the kidney
-        share one systemic clearance, so their joint ratio is 1 / W with W = W_h - sum_r f_r (1 - a_r); the
-        kidney ratio is W_h / W, the factor the kidney adds to the liver's.  It equals the lone renal form
-        1 / W_r when the liver is unaffected, and liver x kidney is the exact systemic ratio.
-
-    Evaluated with every inhibited activity at 0 the same function gives the complete-inhibition ceilings;
-    each ratio is at most its ceiling (the kidney's ceiling is taken with the liver also completely
-    inhibited, where it is largest), and the product of the ceilings is the total ceiling.
-    """
-    w_gut = fraction_weighted_activity(gut_fractions, gut_activity)
-    f_h, f_k = np.asarray(liver_fractions, dtype=float), np.asarray(kidney_fractions, dtype=float)
-    kept_h = np.sum(f_h * np.asarray(liver_activity, dtype=float), axis=-1)
-    kept_k = np.sum(f_k * np.asarray(kidney_activity, dtype=float), axis=-1)
-    untouched = 1.0 - np.sum(f_h, axis=-1)
-    w_liver = untouched + kept_h
-    w_systemic = (untouched - np.sum(f_k, axis=-1)) + kept_h + kept_k  # the unaffected share first: exact at complete inhibition
-    return 1.0 / w_gut, 1.0 / w_liver, w_liver / w_systemic

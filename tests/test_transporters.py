@@ -10,6 +10,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from interact.prediction import gut_ratio, liver_ratio, reversible_term
+from interact import model
 from interact.transporters import (
     METABOLISM_LIMITED,
     MIXED,
@@ -18,9 +19,33 @@ from interact.transporters import (
     clearance_regime,
     extended_clearance,
     extended_clearance_activity,
-    fraction_weighted_activity,
-    organ_ratios,
 )
+
+
+def fraction_weighted_activity(fractions: list[float], activity: list[float]) -> float:
+    """The model's remaining share of a clearance (interact.model.remaining)."""
+    return float(model.remaining([model.Pathway(target=k, organ="liver", fraction=f) for k, f in enumerate(fractions)], list(activity)))
+
+
+def organ_ratios(gut_f, gut_a, liver_f, liver_a, kidney_f, kidney_a):  # type: ignore[no-untyped-def]
+    """Gut, liver and kidney ratios through the model's organ forms (interact.model.organ_ratio): efflux as the
+    availability it governs (1 - its fraction of the dose), the kidney as the factor it adds to the liver."""
+
+    def pathways(organ: str, fractions: object, availability: bool = False) -> list[model.Pathway]:
+        f = np.asarray(fractions, dtype=float)
+        return [model.Pathway(target=k, organ=organ, fraction=(1.0 - f[k]) if availability else f[k]) for k in range(f.shape[-1])]
+
+    def acts(a: object, n: int) -> list[object]:
+        arr = np.asarray(a, dtype=float)
+        return [arr[..., k] for k in range(n)]
+
+    g = pathways("gut", gut_f, availability=True)
+    h = pathways("liver", liver_f)
+    k = pathways("kidney", kidney_f)
+    gut = model.organ_ratio("availability", g, acts(gut_a, len(g)))
+    liver = model.organ_ratio("fraction", h, acts(liver_a, len(h)))
+    kidney = model.organ_ratio("shared", k, acts(kidney_a, len(k)), base=liver)
+    return np.asarray(gut), np.asarray(liver), np.asarray(kidney)
 
 clearance = st.floats(min_value=1e-3, max_value=1e3, allow_nan=False)
 fraction = st.floats(min_value=0.0, max_value=1.0, allow_nan=False)
