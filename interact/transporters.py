@@ -106,4 +106,3 @@ def clearance_regime(ps_eff: ArrayLike, cl_met: ArrayLike, cl_bile: ArrayLike = 
     uptake = elim >= REGIME_BOUND * eff  # PS_eff = 0 is uptake-limited whatever the elimination
     metabolism = ~uptake & (REGIME_BOUND * elim <= eff)
     return np.where(uptake, UPTAKE_LIMITED, np.where(metabolism, METABOLISM_LIMITED, MIXED))
-

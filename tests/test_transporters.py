@@ -9,8 +9,8 @@ from conftest import read_checks
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from interact.prediction import gut_ratio, liver_ratio, reversible_term
 from interact import model
+from interact.prediction import gut_ratio, liver_ratio, reversible_term
 from interact.transporters import (
     METABOLISM_LIMITED,
     MIXED,
@@ -46,6 +46,7 @@ def organ_ratios(gut_f, gut_a, liver_f, liver_a, kidney_f, kidney_a):  # type: i
     liver = model.organ_ratio("fraction", h, acts(liver_a, len(h)))
     kidney = model.organ_ratio("shared", k, acts(kidney_a, len(k)), base=liver)
     return np.asarray(gut), np.asarray(liver), np.asarray(kidney)
+
 
 clearance = st.floats(min_value=1e-3, max_value=1e3, allow_nan=False)
 fraction = st.floats(min_value=0.0, max_value=1.0, allow_nan=False)
