@@ -23,7 +23,7 @@ from . import model
 from .constants import Constant
 from .errors import InputError
 from .exposure import SpeciesExposure
-from .scenario import METABOLISM, Victim
+from .scenario import METABOLISM, Scenario, Victim
 from .tables import Band, Classes
 from .transporters import clearance_regime
 
@@ -39,8 +39,10 @@ __all__ = [
     "liver_ratio",
     "predict",
     "ratio_function",
+    "refuse_given_sites",
     "refuse_routes",
     "reversible_term",
+    "route_pathways",
     "routes_of",
 ]
 
@@ -125,6 +127,19 @@ def routes_of(victim: Victim) -> Routes:
         clearances=None if ecm is None else ecm.relative(),
         hepatic_fraction=hepatic,
     )
+
+
+def refuse_given_sites(scenario: Scenario, what: str) -> None:
+    """Raise :class:`InputError` naming the first input ``what`` does not take yet: given site concentrations, an
+    active-moiety molar mass, the hepatic clearances (it would otherwise recompute what the user replaced)."""
+    p, v = scenario.perpetrator, scenario.victim
+    for field, present in (
+        ("perpetrator.site_concentrations", p.site_concentrations is not None),
+        ("perpetrator.active_molar_mass", p.active_molar_mass is not None),
+        ("victim.extended_clearance", v.extended_clearance is not None),
+    ):
+        if present:
+            raise InputError(field, "given", f"is not taken by {what} so far; assess the scenario without it")
 
 
 def refuse_routes(victim: Victim, what: str) -> None:
@@ -217,7 +232,7 @@ def _targets(
     return index
 
 
-def _route_pathways(routes: Routes, targets: dict[str, int]) -> list[model.Pathway]:
+def route_pathways(routes: Routes, targets: dict[str, int]) -> list[model.Pathway]:
     """The transporter routes as model pathways: efflux by the availability it governs, uptake and secretion by fraction."""
     role = "uptake" if routes.clearances is not None else ""
     return [
@@ -267,7 +282,7 @@ def _inputs(
     victim = [model.Pathway(target=targets[e], organ="liver", fraction=fm) for e, fm in pathways]
     if gut_enzyme is not None:
         victim.insert(0, model.Pathway(target=targets[gut_enzyme], organ="gut", fraction=fg))
-    victim += _route_pathways(routes, targets)
+    victim += route_pathways(routes, targets)
     rates: dict[tuple[int, str], float | None] = {}
     for enzyme, (k_liver, k_gut) in kdeg.items():
         if enzyme in targets:

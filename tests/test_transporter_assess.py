@@ -220,13 +220,35 @@ def test_phenotypes_with_transporter_routes_are_refused_by_name() -> None:
     assert "victim.phenotypes" in {p.field for p in info.value.problems}
 
 
-def test_paths_that_do_not_take_transporter_routes_yet_refuse_them_by_name() -> None:
-    """The uncertainty analysis and the time course would count a transporter as an enzyme: they refuse instead."""
+def test_the_time_course_refuses_transporter_routes_by_name() -> None:
+    """The time course would count a transporter as an enzyme: it refuses instead."""
     from interact.dynamic import simulate
-    from interact.uncertainty import ScenarioModel
+
+    with pytest.raises(ValueError, match=r"victim\.pathways\[0\].*the time course"):
+        simulate(assess(EXAMPLE))
+
+
+def test_uncertainty_model_takes_the_routes_and_equals_assess_at_point_values() -> None:
+    """The uncertainty analysis evaluates the same model with the routes (fractions at their point values)."""
+    import numpy as np
+
+    from interact.uncertainty import ScenarioModel, run_uncertainty
 
     a = assess(EXAMPLE)
-    with pytest.raises(ValueError, match=r"victim\.pathways\[0\].*intestinal efflux route"):
+    model = ScenarioModel(a)
+    r = model.evaluate()
+    assert float(r.total) == a.prediction.total
+    assert float(r.gut) == a.prediction.gut and float(r.liver) == a.prediction.liver
+    arrays = {i.path: np.full(3, i.value) for i in model.inputs()}
+    assert np.all(model.evaluate(arrays).total == a.prediction.total)
+    res = run_uncertainty(a, [("perpetrator.cmax", "cv:30%"), ("victim.pathways[2].fm", "uniform:0.05,0.5")], samples=256, seed=3)
+    assert np.all(res.total >= 1.0) and np.all(res.total <= a.prediction.ceiling_total)
+    assert res.fm_scaled > 0  # fm above 0.35 does not fit beside uptake 0.5 and renal secretion 0.25 x 0.6: scaled down
+
+
+def test_given_site_concentrations_are_refused_by_the_uncertainty_analysis_by_name() -> None:
+    from interact.uncertainty import ScenarioModel
+
+    a = assess(loads_scenario(_elsby_text(ROWS[0])))
+    with pytest.raises(ValueError, match=r"perpetrator\.site_concentrations"):
         ScenarioModel(a)
-    with pytest.raises(ValueError, match=r"victim\.pathways\[0\].*the time course"):
-        simulate(a)
