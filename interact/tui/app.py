@@ -406,7 +406,9 @@ class InteractApp(App[int]):
         body.show(doc.extend(render_answer(a, comparison, narrow=self.size.width < 120, stale=bool(problems))))
         if self.valid:
             self.query_one("#plot-fm", PlotView).show(
-                plots.fm_curve(a), stale=False, empty_text="No fm plot: the perpetrator acts on none of the victim's pathways."
+                plots.fm_curve(a),
+                stale=False,
+                empty_text="No fm plot: the perpetrator acts on none of the victim's enzyme pathways, or transporter routes are given.",
             )
             self.query_one("#plot-dose", PlotView).show(
                 plots.dose_curve(a), stale=False, empty_text="No dose plot: no inhibition constants."

@@ -60,7 +60,7 @@ def fm_curve(a: Assessment, points: int = 101) -> Chart | None:
     """
     pr = a.prediction
     effects = [e for e in pr.effects if e.liver.activity != 1.0]
-    if not effects:
+    if not effects or pr.routes or pr.regime is not None:  # with transporter routes this liver-only curve would be wrong
         return None
     main = max(effects, key=lambda e: e.fm)
     others = [e for e in pr.effects if e is not main]

@@ -56,3 +56,21 @@ async def test_transporter_routes_in_the_form_give_the_cores_ratios(tmp_path: Pa
     saved = path.read_text(encoding="utf-8")
     assert "fraction = 0.3" in saved and "# of the oral dose returned to the gut lumen" in saved
     assert load_scenario(path) == dataclasses.replace(edited, folder=load_scenario(path).folder)
+
+
+def test_plots_with_transporter_routes_follow_the_core() -> None:
+    """The dose curve evaluates the same model with the routes: at a scale s it equals assess() with the precipitant's
+    dose and Cmax times s; the liver-only fm curve is not drawn for a victim with transporter routes."""
+    from interact.scenario import scenario_from_dict, scenario_to_dict
+    from interact.tui import plots
+
+    s = load_scenario(EXAMPLE)
+    a = assess(s)
+    chart = plots.dose_curve(a)
+    assert chart is not None and plots.fm_curve(a) is None
+    k = len(chart.curve.x) // 3
+    scale = chart.curve.x[k] / float(s.perpetrator.dose.magnitude)
+    data = scenario_to_dict(s)
+    data["perpetrator"]["dose"] = f"{300 * scale!r} mg"
+    data["perpetrator"]["cmax"] = f"{2.4 * scale!r} ug/mL"
+    assert chart.curve.y[k] == pytest.approx(assess(scenario_from_dict(data)).prediction.total, rel=1e-9)
