@@ -23,7 +23,7 @@ from . import model
 from .constants import Constant
 from .errors import InputError
 from .exposure import SpeciesExposure
-from .scenario import METABOLISM, Scenario, Victim
+from .scenario import METABOLISM, VICTIM_ROUTES, Scenario, Victim
 from .tables import Band, Classes
 from .transporters import clearance_regime
 
@@ -107,8 +107,6 @@ class Routes:
 
 
 NO_ROUTES: Final = Routes()
-#: the organ and site of each transporter route
-_ROUTE_ORGAN: Final = {"intestinal efflux": "gut", "hepatic uptake": "liver", "renal secretion": "kidney"}
 
 
 def routes_of(victim: Victim) -> Routes:
@@ -437,7 +435,7 @@ def _route_effects(
     """The terms of each transporter route at its site, as :class:`RouteEffect` records."""
     out = []
     for route, items in (("intestinal efflux", routes.efflux), ("hepatic uptake", routes.uptake), ("renal secretion", routes.secretion)):
-        where = _ROUTE_ORGAN[route]
+        where = VICTIM_ROUTES[route]
         conc = inputs.concentrations[where]
         for name, fraction in items:
             t = result.terms[inputs.targets[name], where]
