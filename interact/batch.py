@@ -515,6 +515,7 @@ class VictimTable:
     #: intravenous victim), uptake of systemic clearance, secretion of systemic clearance (renal fraction x share)
     routes: tuple[tuple[str, str], ...] = ()
     route_fraction: NDArray[np.float64] | None = None  # (n, routes); 0 where not given
+    has_route: NDArray[np.bool_] | None = None  # (n, routes): the victim lists the route
 
 
 def _rows_records(table: Any, source: str) -> tuple[list[str], list[tuple[int, dict[str, Any]]]]:
@@ -786,11 +787,13 @@ def loads_victims(
     labels = []
     routes = tuple(dict.fromkeys((pw.enzyme, pw.route) for v in rows for pw in v.pathways if pw.route != "metabolism"))
     route_fraction = np.zeros((n, len(routes)))
+    has_route = np.zeros((n, len(routes)), dtype=bool)
     for i, v in enumerate(rows):
         r = routes_of(v)  # the fractions as the model takes them (efflux 0 for an intravenous victim)
         share = dict((*r.efflux, *r.uptake, *r.secretion))
         for pw in v.pathways:
             if pw.route != "metabolism":
+                has_route[i, routes.index((pw.enzyme, pw.route))] = True
                 route_fraction[i, routes.index((pw.enzyme, pw.route))] = share.get(pw.enzyme, 0.0)
                 continue
             k = enzymes.index(pw.enzyme)
@@ -825,6 +828,7 @@ def loads_victims(
         source=source,
         routes=routes,
         route_fraction=route_fraction,
+        has_route=has_route,
     )
 
 
@@ -1120,6 +1124,11 @@ def evaluate_pairs(
     p_mask = has_ki.astype(np.int64) @ weights if e_cols else np.zeros(n_p, dtype=np.int64)
     v_mask = victims.has_pathway.astype(np.int64) @ weights if e_cols else np.zeros(n_v, dtype=np.int64)
     flags |= ((v_mask[None, :] & ~p_mask[:, None]) != 0).astype(np.uint8) << 3
+    for r, (name, _) in enumerate(victims.routes):  # a transporter route without a Ki of this perpetrator
+        assert victims.has_route is not None
+        col = perpetrators.targets.index(name) if name in perpetrators.targets else -1
+        acts = ~np.isnan(perpetrators.ki_u_um[:, col]) if col >= 0 else np.zeros(n_p, dtype=bool)
+        flags |= (victims.has_route[None, :, r] & ~acts[:, None]).astype(np.uint8) << 3
     return BatchResult(
         perpetrators=perpetrators,
         victims=victims,

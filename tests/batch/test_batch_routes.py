@@ -79,8 +79,11 @@ def test_each_pair_with_routes_equals_assess_alone(texts: tuple[str, str]) -> No
     result = evaluate_pairs(perps, victims)
     for i in range(len(perps.rows)):
         for j in range(len(victims.rows)):
-            pr = assess(pair_scenario(perps, victims, i, j)).prediction
+            a = assess(pair_scenario(perps, victims, i, j))
+            pr = a.prediction
             assert result.total[i, j] == pytest.approx(pr.total, rel=1e-12), (i, j)
+            untouched = bool(result.flags[i, j] & 8)  # a pathway or route this perpetrator has no constant for
+            assert untouched == any("has no entry for the victim's pathway" in w for w in a.warnings)
             assert result.gut[i, j] == pytest.approx(pr.gut, rel=1e-12)
             assert result.liver[i, j] == pytest.approx(pr.liver, rel=1e-12)
 
