@@ -23,7 +23,7 @@ from . import model
 from .constants import Constant
 from .errors import InputError
 from .exposure import SpeciesExposure
-from .scenario import METABOLISM, VICTIM_ROUTES, Scenario, Victim
+from .scenario import METABOLISM, VICTIM_ROUTES, Victim
 from .tables import Band, Classes
 from .transporters import clearance_regime
 
@@ -39,7 +39,6 @@ __all__ = [
     "liver_ratio",
     "predict",
     "ratio_function",
-    "refuse_given_sites",
     "refuse_routes",
     "reversible_term",
     "route_pathways",
@@ -125,19 +124,6 @@ def routes_of(victim: Victim) -> Routes:
         clearances=None if ecm is None else ecm.relative(),
         hepatic_fraction=hepatic,
     )
-
-
-def refuse_given_sites(scenario: Scenario, what: str) -> None:
-    """Raise :class:`InputError` naming the first input ``what`` does not take yet: given site concentrations, an
-    active-moiety molar mass, the hepatic clearances (it would otherwise recompute what the user replaced)."""
-    p, v = scenario.perpetrator, scenario.victim
-    for field, present in (
-        ("perpetrator.site_concentrations", p.site_concentrations is not None),
-        ("perpetrator.active_molar_mass", p.active_molar_mass is not None),
-        ("victim.extended_clearance", v.extended_clearance is not None),
-    ):
-        if present:
-            raise InputError(field, "given", f"is not taken by {what} so far; assess the scenario without it")
 
 
 def refuse_routes(victim: Victim, what: str) -> None:

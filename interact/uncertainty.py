@@ -54,7 +54,7 @@ from .dosing import ACTIONS, Regimen, choose_regimens, feasible_fraction, regime
 from .errors import InputError
 from .exposure import enterocyte_um, unbound_cmax_um, unbound_inlet_um
 from .kinetics.conversion import ki_from_ic50
-from .prediction import liver_ratio, refuse_given_sites, reversible_term, route_pathways, routes_of
+from .prediction import liver_ratio, reversible_term, route_pathways, routes_of
 from .scenario import INTERVAL_KEYS, Inhibition
 from .tables import load_classes, resolve_target
 
@@ -321,7 +321,13 @@ class ScenarioModel:
     def __init__(self, assessment: Assessment) -> None:
         a = assessment
         self.assessment = a
-        refuse_given_sites(a.scenario, "the uncertainty and sensitivity analysis")
+        p_ = a.scenario.perpetrator
+        # given site concentrations stay at their given values; an active moiety's molar mass scales the absorbed amount
+        self._given = p_.site_concentrations
+        self._absorbed = 1.0
+        if p_.active_molar_mass is not None and a.species[0].dose_umol > 0:
+            absorbed = units.amount_umol(p_.dose, p_.active_molar_mass, field="perpetrator.active_molar_mass")
+            self._absorbed = absorbed / a.species[0].dose_umol
         rules = a.rules
         override = a.scenario.physiology.fu_plasma_floor
         self._floor = float(rules.fu_plasma_floor.value) if override is None else float(override)
@@ -457,7 +463,12 @@ class ScenarioModel:
         ]
         # transporter routes at their point fractions (not varied); the enzyme fm share what is left of systemic clearance
         self._routes = routes_of(v)
-        self._fm_room = 1.0 - sum(f for _, f in (*self._routes.uptake, *self._routes.secretion))
+        fixed = (*self._routes.secretion,) if self._routes.clearances is not None else (*self._routes.uptake, *self._routes.secretion)
+        self._fm_room = 1.0 - sum(f for _, f in fixed)  # with the hepatic clearances, fm are shares of CLmet
+        self._organs = _model.ORGANS
+        if self._routes.clearances is not None:
+            liver = _model.Organ(site="liver", form="extended", clearances=self._routes.clearances, fraction=self._routes.hepatic_fraction)
+            self._organs = {**_model.ORGANS, "liver": liver}
         kdeg, _ = kdeg_per_h(a.scenario, a.constants)
         self._kdeg: dict[str, tuple[str | None, str | None]] = {}
         for enzyme, (k_liver, k_gut) in kdeg.items():
@@ -508,7 +519,8 @@ class ScenarioModel:
             if path is not None
         }
         kidney_conc = [unbound_cmax_um(get(sp.cmax), self._fu(sp, get)) for sp in self._species]
-        r = _model.evaluate(self._acting(get), pathways, {"liver": liver_conc, "gut": gut_conc, "kidney": kidney_conc}, kdeg)
+        sites = {"liver": liver_conc, "gut": gut_conc, "kidney": kidney_conc}
+        r = _model.Model(self._acting(get), pathways, self._organs).evaluate(sites, kdeg)
         gut, liver, kidney = np.broadcast_arrays(
             np.asarray(r.gut, dtype=float), np.asarray(r.liver, dtype=float), np.asarray(r.kidney, dtype=float)
         )
@@ -522,7 +534,8 @@ class ScenarioModel:
             cmax = get(sp.cmax)
             fu = self._fu(sp, get)
             if sp.parent and self._oral:
-                dose, ka = get("perpetrator.dose"), get("perpetrator.ka")
+                ka = get("perpetrator.ka")
+                dose = get("perpetrator.dose") if self._absorbed == 1.0 else get("perpetrator.dose") * self._absorbed
                 qh, rb = get("physiology.hepatic_blood_flow"), get("perpetrator.blood_plasma_ratio")
                 liver_conc.append(unbound_inlet_um(cmax, fu, dose, get("perpetrator.fa_fg"), ka, qh, rb))
                 qent, fu_gut = get("physiology.enterocytic_blood_flow"), get("physiology.fu_gut")
@@ -531,6 +544,11 @@ class ScenarioModel:
                 imax_u = unbound_cmax_um(cmax, fu)
                 liver_conc.append(imax_u)
                 gut_conc.append(imax_u)
+        given = self._given
+        if given is not None and given.iin_max_u is not None:  # fixed at the given value (interact.exposure)
+            liver_conc[0] = units.concentration_um(given.iin_max_u, None, field="perpetrator.site_concentrations.iin_max_u")
+        if given is not None and given.ient is not None:
+            gut_conc[0] = units.concentration_um(given.ient, None, field="perpetrator.site_concentrations.ient")
         return liver_conc, gut_conc
 
     def _fu(self, sp: _Species, get: Callable[[str], Any]) -> Any:

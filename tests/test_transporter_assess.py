@@ -246,9 +246,26 @@ def test_uncertainty_model_takes_the_routes_and_equals_assess_at_point_values() 
     assert res.fm_scaled > 0  # fm above 0.35 does not fit beside uptake 0.5 and renal secretion 0.25 x 0.6: scaled down
 
 
-def test_given_site_concentrations_are_refused_by_the_uncertainty_analysis_by_name() -> None:
-    from interact.uncertainty import ScenarioModel
+@pytest.mark.parametrize("which", ["elsby-given-sites", "extended-clearance", "active-moiety"])
+def test_uncertainty_model_with_given_sites_clearances_and_active_moiety_equals_assess(which: str) -> None:
+    """Given site concentrations stay fixed, the hepatic clearances give the extended liver form, an active moiety's
+    molar mass scales the absorbed amount: at point values the uncertainty model equals assess()."""
+    import numpy as np
 
-    a = assess(loads_scenario(_elsby_text(ROWS[0])))
-    with pytest.raises(ValueError, match=r"perpetrator\.site_concentrations"):
-        ScenarioModel(a)
+    from interact.uncertainty import ScenarioModel, run_uncertainty
+
+    if which == "elsby-given-sites":
+        scenario = loads_scenario(_elsby_text(ROWS[0]))
+    elif which == "extended-clearance":
+        scenario = _ecm(3.0, 2.0, 1.0).scenario
+    else:
+        data = _plain(EXAMPLE)
+        data["perpetrator"]["active_molar_mass"] = "390 g/mol"
+        scenario = scenario_from_dict(data)
+    a = assess(scenario)
+    model = ScenarioModel(a)
+    assert float(model.evaluate().total) == pytest.approx(a.prediction.total, rel=1e-12)
+    res = run_uncertainty(a, [("perpetrator.cmax", "cv:30%")], samples=128, seed=1)
+    assert np.all(res.total >= 1.0 - 1e-12) and np.all(res.total <= a.prediction.ceiling_total * (1 + 1e-12))
+    if which == "elsby-given-sites":  # Cmax does not move the given Iin,max,u or I,ent: the ratio stays put
+        assert np.all(res.total == pytest.approx(a.prediction.total, rel=1e-12))
