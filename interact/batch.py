@@ -491,6 +491,7 @@ class VictimTable:
     fg_given: NDArray[np.bool_]
     oral: NDArray[np.bool_]
     plans: tuple[RegimenPlan, ...]  # each victim's regimen candidates and boundaries (interact.dosing)
+    plan_groups: tuple[tuple[int, ...], ...]  # victims whose plans give the dose rule the same inputs, in table order
     activity: NDArray[np.float64]  # (n, enzymes): the victim's phenotype activity on each pathway (1 = normal)
     genotype: NDArray[np.float64]  # exposure without a precipitant relative to a normal metaboliser (1 without phenotypes)
     phenotype: tuple[str, ...]  # the phenotype label of each victim ("" for none)
@@ -792,6 +793,7 @@ def loads_victims(
         fg_given=np.array([v.fg is not None for v in rows], dtype=bool),
         oral=np.array([v.route == "oral" for v in rows], dtype=bool),
         plans=tuple(plans),
+        plan_groups=_plan_groups(plans),
         activity=activity,
         genotype=liver_ratio(fm, activity) if n else np.ones(0),
         phenotype=tuple(labels),
@@ -1065,9 +1067,8 @@ def evaluate_pairs(
         liver = liver.copy()
         liver[:, phen] /= victims.genotype[None, phen]
         total = gut * liver
-    bad = ~np.isfinite(total)
-    if bad.any():  # never a blank ratio: the input ranges keep every ratio finite, so this names a pair if not
-        i, j = (int(k) for k in np.argwhere(bad)[0])
+    if not np.isfinite(total).all():  # never a blank ratio: the input ranges keep every ratio finite, so this names a pair if not
+        i, j = (int(k) for k in np.argwhere(~np.isfinite(total))[0])
         raise InputError(
             f"pair {perpetrators.rows[i].name} x {victims.rows[j].name}",
             float(total[i, j]),
@@ -1075,8 +1076,13 @@ def evaluate_pairs(
         )
     band = band_codes(total, classes)
     action = np.empty(total.shape, dtype=np.int8)
-    for j, plan in enumerate(victims.plans):  # one victim's regimens at a time, over all its pairs
-        action[:, j] = choose_regimens(plan, exposure[:, j], gut[:, j]).action
+    for js in victims.plan_groups:  # victims whose plans decide alike, at once over all their pairs
+        plan = victims.plans[js[0]]
+        if js[-1] - js[0] + 1 == len(js):  # a run of victims: views, not copies
+            cols: slice | list[int] = slice(js[0], js[-1] + 1)
+        else:
+            cols = list(js)
+        action[:, cols] = choose_regimens(plan, exposure[:, cols], gut[:, cols]).action
     study = (total >= float(rule_set.aucr_inhibition_cutoff.value)) | (total <= float(rule_set.aucr_induction_cutoff.value))
     # per-perpetrator and per-victim bits first, then broadcast once
     e_cols = victims.enzymes
@@ -1084,9 +1090,6 @@ def evaluate_pairs(
     gut_col = _gut_column(perpetrators)
     perp_gut = ~np.isnan(perpetrators.ki_u_um[:, gut_col]) if gut_col >= 0 else np.zeros(n_p, dtype=bool)
     p_bits = (perpetrators.fu_floored.astype(np.uint8) << 1) | (perpetrators.basic_flag.astype(np.uint8) << 4)
-    v_bits = victims.nti.astype(np.uint8) << 2
-    flags = p_bits[:, None] | v_bits[None, :]
-    flags |= (perp_gut[:, None] & (victims.oral & ~victims.fg_given)[None, :]).astype(np.uint8)
     # a victim pathway without a Ki of this perpetrator: bit masks of enzymes (victim has, perpetrator acts on)
     has_ki = np.zeros((n_p, len(e_cols)), dtype=bool)
     for k, t in enumerate(t_index):
@@ -1095,7 +1098,14 @@ def evaluate_pairs(
     weights = (1 << np.arange(len(e_cols), dtype=np.int64)) if e_cols else np.zeros(0, dtype=np.int64)
     p_mask = has_ki.astype(np.int64) @ weights if e_cols else np.zeros(n_p, dtype=np.int64)
     v_mask = victims.has_pathway.astype(np.int64) @ weights if e_cols else np.zeros(n_v, dtype=np.int64)
-    flags |= ((v_mask[None, :] & ~p_mask[:, None]) != 0).astype(np.uint8) << 3
+    # the bits that depend on both sides, per kind of perpetrator (its gut-wall Ki and its enzyme mask) and victim
+    kinds, kind_of = np.unique(np.column_stack([perp_gut.astype(np.int64), p_mask]), axis=0, return_inverse=True)
+    by_kind = (victims.nti.astype(np.uint8) << 2)[None, :] | ((kinds[:, :1] != 0) & (victims.oral & ~victims.fg_given)[None, :]).astype(
+        np.uint8
+    )
+    by_kind |= ((v_mask[None, :] & ~kinds[:, 1:]) != 0).astype(np.uint8) << 3
+    flags = by_kind[kind_of.ravel()]
+    flags |= p_bits[:, None]
     return BatchResult(
         perpetrators=perpetrators,
         victims=victims,
@@ -1107,9 +1117,31 @@ def evaluate_pairs(
         band=band,
         action=action,
         study=study,
-        flags=flags.astype(np.uint8),
+        flags=flags,
         band_names=band_labels(classes),
     )
+
+
+def _plan_groups(plans: list[RegimenPlan]) -> tuple[tuple[int, ...], ...]:
+    """Victims grouped by what the dose rule reads from their plans (:func:`interact.dosing.choose_regimens`: the
+    candidates' exposure factors, kinds and action codes, the intervals, the half-life and the boundaries), so that
+    each group's pairs are decided in one call."""
+    groups: dict[tuple[Any, ...], list[int]] = {}
+    for j, p in enumerate(plans):
+        key = (
+            p.boundary,
+            p.peak_boundary,
+            p.trough_boundary,
+            p.half_life_h,
+            p.usual_interval_h,
+            p.factors.tobytes(),
+            p.exact.tobytes(),
+            p.interval.tobytes(),
+            p.codes.tobytes(),
+            p.taus_h.tobytes(),
+        )
+        groups.setdefault(key, []).append(j)
+    return tuple(tuple(js) for js in groups.values())
 
 
 def ranking(result: BatchResult, top: int | None = None) -> NDArray[np.int64]:
