@@ -23,6 +23,7 @@ scenario file for those.
 from __future__ import annotations
 
 import csv
+import dataclasses
 import io
 import math
 import os
@@ -61,15 +62,19 @@ __all__ = [
     "RowProblem",
     "VictimTable",
     "evaluate_pairs",
+    "fits_in_memory",
     "load_perpetrators",
     "load_victims",
     "loads_perpetrators",
     "loads_victims",
     "pair_ratios",
     "pair_scenario",
+    "perpetrator_subset",
     "ranking",
     "read_table",
     "result_rows",
+    "stream_chunks",
+    "worst_pairs",
 ]
 
 #: perpetrator columns: (name, unit kind or type, required, meaning)
@@ -858,10 +863,13 @@ class BatchResult:
     study: NDArray[np.bool_]
     flags: NDArray[np.uint8]
     band_names: tuple[str, ...]
+    #: pairs screened when the arrays hold only some of them (:func:`worst_pairs`); None when they hold every pair
+    screened: int | None = None
 
     @property
     def pairs(self) -> int:
-        return int(self.total.size)
+        """The number of pairs screened."""
+        return int(self.total.size) if self.screened is None else self.screened
 
     def columns(self, top: int | None = None) -> dict[str, NDArray[Any]]:
         """The ranked results as named columns (worst pair first), numbers kept as numbers.
@@ -1019,18 +1027,25 @@ def _free_memory_bytes() -> int:
         return 4 * 2**30
 
 
+def fits_in_memory(n_perpetrators: int, n_victims: int) -> bool:
+    """Whether every pair's results fit in half the free memory (:data:`BYTES_PER_PAIR` each)."""
+    return n_perpetrators * n_victims * BYTES_PER_PAIR <= _MEMORY_SHARE * _free_memory_bytes()
+
+
 def check_pair_budget(n_perpetrators: int, n_victims: int) -> None:
     """Refuse, before any work, a batch whose pairs would not fit in half the free memory."""
+    if fits_in_memory(n_perpetrators, n_victims):
+        return
     n = n_perpetrators * n_victims
     need = n * BYTES_PER_PAIR
     free = _free_memory_bytes()
-    if need > _MEMORY_SHARE * free:
-        raise InputError(
-            "pairs",
-            f"{n_perpetrators:,} perpetrators x {n_victims:,} victims = {n:,}",
-            f"would need about {need / 2**30:,.1f} GiB, more than half the {free / 2**30:,.1f} GiB of free memory; "
-            "split the tables and screen the parts one after another",
-        )
+    raise InputError(
+        "pairs",
+        f"{n_perpetrators:,} perpetrators x {n_victims:,} victims = {n:,}",
+        f"would need about {need / 2**30:,.1f} GiB, more than half the {free / 2**30:,.1f} GiB of free memory; "
+        "keep only the worst pairs (--top N) or write Parquet (-o FILE.parquet), which are streamed in chunks, "
+        "or split the tables and screen the parts one after another",
+    )
 
 
 def count_rows(text: str | bytes, source: str, side: str, *, sheet: str | None = None) -> int:
@@ -1122,6 +1137,102 @@ def evaluate_pairs(
     )
 
 
+def perpetrator_subset(table: PerpetratorTable, rows: slice | NDArray[np.intp]) -> PerpetratorTable:
+    """The perpetrators ``rows`` (a slice, or indices in table order) with their per-perpetrator arrays.
+
+    The skipped rows stay with the whole table.
+    """
+    index = np.arange(len(table.rows))[rows]
+    return dataclasses.replace(
+        table,
+        rows=tuple(table.rows[i] for i in index),
+        lines=tuple(table.lines[i] for i in index),
+        imax_u_um=table.imax_u_um[rows],
+        inlet_um=table.inlet_um[rows],
+        enterocyte_um=table.enterocyte_um[rows],
+        gut_lumen_um=table.gut_lumen_um[rows],
+        ki_u_um=table.ki_u_um[rows],
+        fu_floored=table.fu_floored[rows],
+        basic=tuple(table.basic[i] for i in index),
+        basic_flag=table.basic_flag[rows],
+        skipped=(),
+    )
+
+
+#: pairs evaluated at once when a screen is streamed (about 100 MB of arrays)
+STREAM_PAIRS: Final = 1 << 20
+
+
+def _stream_pairs(asked: int | None) -> int:
+    """Pairs per streamed chunk: as asked, else :data:`STREAM_PAIRS` within the memory budget."""
+    if asked is not None:
+        return max(1, asked)
+    return max(1, min(STREAM_PAIRS, int(_MEMORY_SHARE * _free_memory_bytes() / BYTES_PER_PAIR)))
+
+
+def stream_chunks(
+    perpetrators: PerpetratorTable,
+    victims: VictimTable,
+    rules: RuleSet | str | None = None,
+    *,
+    pairs_per_chunk: int | None = None,
+    progress: Callable[[int, int], None] | None = None,
+) -> Iterator[tuple[int, BatchResult]]:
+    """:func:`evaluate_pairs` for consecutive chunks of perpetrators (each against every victim), with each chunk's first
+    perpetrator; memory stays that of one chunk whatever the number of pairs."""
+    rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules)
+    n_p, n_v = len(perpetrators.rows), len(victims.rows)
+    step = max(1, _stream_pairs(pairs_per_chunk) // max(n_v, 1))
+    for a in range(0, n_p, step):
+        b = min(n_p, a + step)
+        yield a, evaluate_pairs(perpetrator_subset(perpetrators, slice(a, b)), victims, rule_set)
+        if progress is not None:
+            progress(b * n_v, n_p * n_v)
+
+
+def worst_pairs(
+    perpetrators: PerpetratorTable,
+    victims: VictimTable,
+    top: int,
+    rules: RuleSet | str | None = None,
+    *,
+    pairs_per_chunk: int | None = None,
+    progress: Callable[[int, int], None] | None = None,
+) -> BatchResult:
+    """The ``top`` worst pairs of a screen of any size, in memory bounded by one chunk and the ``top`` pairs.
+
+    The AUC ratios are evaluated chunk by chunk of perpetrators, keeping a running list of the ``top`` worst (by the
+    ranking's measure, ties in table order); then the perpetrators in that list are screened again against every
+    victim.  The result's :func:`ranking` with ``top`` gives exactly the rows the whole screen's would (every pair
+    in the list is one of those pairs, and every other pair of those perpetrators ranks below them);
+    :attr:`BatchResult.screened` holds the number of pairs screened.
+    """
+    rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules)
+    n_p, n_v = len(perpetrators.rows), len(victims.rows)
+    keep_s = np.zeros(0)
+    keep_i = np.zeros(0, dtype=np.int64)
+    step = max(1, _stream_pairs(pairs_per_chunk) // max(n_v, 1))
+    for a in range(0, n_p, step):
+        b = min(n_p, a + step)
+        part = perpetrator_subset(perpetrators, slice(a, b))
+        _, _, exposure = pair_ratios(part, victims)
+        if not np.isfinite(exposure).all():
+            evaluate_pairs(part, victims, rule_set)  # names the pair, as the whole screen does
+        severity = np.abs(np.log(exposure.ravel()))
+        local = _worst_first(severity, top)
+        s = np.concatenate([keep_s, severity[local]])
+        i = np.concatenate([keep_i, local + a * n_v])
+        best = np.lexsort((i, -s))[:top]
+        keep_s, keep_i = s[best], i[best]
+        if progress is not None:
+            progress(b * n_v, n_p * n_v)
+    chosen = np.unique(keep_i // max(n_v, 1))
+    result = evaluate_pairs(perpetrator_subset(perpetrators, chosen), victims, rule_set)
+    return dataclasses.replace(
+        result, perpetrators=dataclasses.replace(result.perpetrators, skipped=perpetrators.skipped), screened=n_p * n_v
+    )
+
+
 def _plan_groups(plans: list[RegimenPlan]) -> tuple[tuple[int, ...], ...]:
     """Victims grouped by what the dose rule reads from their plans (:func:`interact.dosing.choose_regimens`: the
     candidates' exposure factors, kinds and action codes, the intervals, the half-life and the boundaries), so that
@@ -1150,10 +1261,15 @@ def ranking(result: BatchResult, top: int | None = None) -> NDArray[np.int64]:
     Worst = largest ``|log(exposure vs normal)|``: the AUC ratio itself for a victim without a phenotype; for one with a
     phenotype, the combined drug-drug-gene effect (a poor metaboliser's exposure counts even where the interaction is small).
     """
-    severity = np.abs(np.log(result.exposure.ravel()))
+    return _worst_first(np.abs(np.log(result.exposure.ravel())), top)
+
+
+def _worst_first(severity: NDArray[np.float64], top: int | None) -> NDArray[np.int64]:
+    """Indices of ``severity`` largest first, ties in index order; only the first ``top`` (every tie at the cut is weighed)."""
     if top is not None and top < severity.size:
-        part = np.argpartition(-severity, top - 1)[:top]
-        return part[np.lexsort((part, -severity[part]))]
+        cut = np.partition(severity, severity.size - top)[severity.size - top]  # the top-th largest
+        part = np.flatnonzero(severity >= cut)
+        return part[np.lexsort((part, -severity[part]))][:top]
     return np.argsort(-severity, kind="stable")
 
 

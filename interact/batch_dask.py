@@ -11,7 +11,6 @@ Dask is an optional extra (``pip install "interact[dask]"``); it is imported onl
 
 from __future__ import annotations
 
-import dataclasses
 import math
 import os
 from collections.abc import Callable
@@ -19,7 +18,15 @@ from typing import Any
 
 import numpy as np
 
-from .batch import _PAIRS_PER_CHUNK, BatchResult, PerpetratorTable, VictimTable, check_pair_budget, evaluate_pairs
+from .batch import (
+    _PAIRS_PER_CHUNK,
+    BatchResult,
+    PerpetratorTable,
+    VictimTable,
+    check_pair_budget,
+    evaluate_pairs,
+    perpetrator_subset,
+)
 from .errors import InputError
 from .tables import RuleSet, load_rules
 
@@ -39,21 +46,8 @@ def import_distributed() -> Any:
 
 
 def perpetrator_slice(table: PerpetratorTable, a: int, b: int) -> PerpetratorTable:
-    """Rows ``a:b`` of a perpetrator table, with their per-perpetrator arrays (the skipped rows stay with the whole table)."""
-    return dataclasses.replace(
-        table,
-        rows=table.rows[a:b],
-        lines=table.lines[a:b],
-        imax_u_um=table.imax_u_um[a:b],
-        inlet_um=table.inlet_um[a:b],
-        enterocyte_um=table.enterocyte_um[a:b],
-        gut_lumen_um=table.gut_lumen_um[a:b],
-        ki_u_um=table.ki_u_um[a:b],
-        fu_floored=table.fu_floored[a:b],
-        basic=table.basic[a:b],
-        basic_flag=table.basic_flag[a:b],
-        skipped=(),
-    )
+    """Rows ``a:b`` of a perpetrator table, with their per-perpetrator arrays (:func:`interact.batch.perpetrator_subset`)."""
+    return perpetrator_subset(table, slice(a, b))
 
 
 def _evaluate_chunk(chunk: PerpetratorTable, victims: VictimTable, rules: RuleSet) -> dict[str, Any]:
@@ -127,7 +121,7 @@ def evaluate_pairs_dask(
     for part in ready:  # the first bad pair in table order, as the in-process run names it
         if "error" in part:
             raise InputError(*part["error"])
-    stacked = {k: np.concatenate([p[k] for p in ready], axis=0) for k in _ARRAYS}
+    stacked: dict[str, Any] = {k: np.concatenate([p[k] for p in ready], axis=0) for k in _ARRAYS}
     return BatchResult(perpetrators=perpetrators, victims=victims, rules=rule_set, band_names=ready[0]["band_names"], **stacked)
 
 

@@ -401,8 +401,18 @@ def _write_streamed(args: argparse.Namespace, write, binary: bool = False) -> in
 def _cmd_screen_batch(args: argparse.Namespace) -> int:
     import time
 
-    from .batch import check_pair_budget, count_rows, evaluate_pairs, loads_perpetrators, loads_victims, read_table
-    from .report.batch import write_results
+    from .batch import (
+        check_pair_budget,
+        count_rows,
+        evaluate_pairs,
+        fits_in_memory,
+        loads_perpetrators,
+        loads_victims,
+        read_table,
+        stream_chunks,
+        worst_pairs,
+    )
+    from .report.batch import write_parquet_chunks, write_results
     from .tables import load_rules
 
     t0 = time.perf_counter()
@@ -415,23 +425,6 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         import_distributed()
     if args.top is not None and args.top < 1:
         raise InputError("--top", args.top, "is not a whole number of at least 1")
-    p_sheet, v_sheet = args.sheet, args.victim_sheet or args.sheet
-    p_table, v_table = read_table(args.perpetrators, "perpetrators"), read_table(args.victims, "victims")
-    check_pair_budget(  # before reading
-        count_rows(p_table, args.perpetrators, "perpetrator", sheet=p_sheet), count_rows(v_table, args.victims, "victim", sheet=v_sheet)
-    )
-    perps = loads_perpetrators(p_table, rules, source=args.perpetrators, on_error=args.on_error, sheet=p_sheet)
-    victims = loads_victims(v_table, source=args.victims, on_error=args.on_error, sheet=v_sheet)
-    for problem in (*perps.skipped, *victims.skipped):
-        sys.stderr.write(f"interact: skipped {problem}\n")
-    n = len(perps.rows) * len(victims.rows)
-    bar = _progress_bar("screening") if n >= 200_000 and not args.quiet else None
-    if args.engine == "dask":
-        from .batch_dask import run_on_dask
-
-        result = run_on_dask(perps, victims, rules, scheduler=args.scheduler, progress=bar)
-    else:
-        result = evaluate_pairs(perps, victims, rules, progress=bar)
     if args.format:
         fmt_name = args.format
     elif not _stdout(args.output):
@@ -442,6 +435,36 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         fmt_name = "table" if sys.stdout.isatty() else "csv"
     if fmt_name in ("parquet", "xlsx") and _stdout(args.output) and sys.stdout.isatty():
         raise InputError("--format", fmt_name, f"is binary and would garble the terminal; write it to a file (-o results.{fmt_name})")
+    p_sheet, v_sheet = args.sheet, args.victim_sheet or args.sheet
+    p_table, v_table = read_table(args.perpetrators, "perpetrators"), read_table(args.victims, "victims")
+    counted = (
+        count_rows(p_table, args.perpetrators, "perpetrator", sheet=p_sheet),
+        count_rows(v_table, args.victims, "victim", sheet=v_sheet),
+    )
+    # beyond memory, the worst pairs (--top) and Parquet are streamed in chunks of perpetrators; anything else is refused
+    streamed = not fits_in_memory(*counted) and args.engine == "local" and (args.top is not None or fmt_name == "parquet")
+    if not streamed:
+        check_pair_budget(*counted)  # before reading
+    perps = loads_perpetrators(p_table, rules, source=args.perpetrators, on_error=args.on_error, sheet=p_sheet)
+    victims = loads_victims(v_table, source=args.victims, on_error=args.on_error, sheet=v_sheet)
+    for problem in (*perps.skipped, *victims.skipped):
+        sys.stderr.write(f"interact: skipped {problem}\n")
+    n = len(perps.rows) * len(victims.rows)
+    bar = _progress_bar("screening") if n >= 200_000 and not args.quiet else None
+    streamed = streamed and not fits_in_memory(len(perps.rows), len(victims.rows))  # rows left out may make it fit
+    if streamed and args.top is None:  # Parquet, chunk after chunk, in table order
+        rows = _write_streamed(args, lambda h: write_parquet_chunks(stream_chunks(perps, victims, rules, progress=bar), h), binary=True)
+        _say_written(args, n, rows, t0, perps.skipped, victims.skipped, ranked=False)
+        return 0
+    if streamed:
+        assert args.top is not None
+        result = worst_pairs(perps, victims, args.top, rules, progress=bar)
+    elif args.engine == "dask":
+        from .batch_dask import run_on_dask
+
+        result = run_on_dask(perps, victims, rules, scheduler=args.scheduler, progress=bar)
+    else:
+        result = evaluate_pairs(perps, victims, rules, progress=bar)
     if fmt_name == "xlsx":
         from datetime import UTC, datetime
 
@@ -458,14 +481,22 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         rows = _write_streamed(
             args, lambda h: write_results(result, h, fmt_name, top=args.top, width=width), binary=fmt_name not in ("markdown", "table")
         )
+    _say_written(args, n, rows, t0, perps.skipped, victims.skipped, ranked=True)
+    return 0
+
+
+def _say_written(args: argparse.Namespace, n: int, rows: int, t0: float, *skipped_rows: tuple[object, ...], ranked: bool) -> None:
+    """The summary line of screen-batch (to standard error, unless quiet or the results went to standard output)."""
+    import time
+
     if not _stdout(args.output) and not args.quiet:
-        skipped = len(perps.skipped) + len(victims.skipped)
+        skipped = sum(len(s) for s in skipped_rows)
+        order = "worst first" if ranked else "in table order (streamed; rank left empty)"
         sys.stderr.write(
-            f"interact: {n:,} pairs screened in {time.perf_counter() - t0:.2f} s; {rows:,} rows, worst first, written to {args.output}"
+            f"interact: {n:,} pairs screened in {time.perf_counter() - t0:.2f} s; {rows:,} rows, {order}, written to {args.output}"
             + (f"; {skipped} bad rows left out (listed above)" if skipped else "")
             + "\n"
         )
-    return 0
 
 
 def _cmd_report(args: argparse.Namespace) -> int:

@@ -12,7 +12,7 @@ from __future__ import annotations
 import csv
 import io
 import json
-from collections.abc import Callable, Iterator
+from collections.abc import Callable, Iterable, Iterator
 from typing import IO, TYPE_CHECKING, Any, Final
 
 import numpy as np
@@ -29,7 +29,7 @@ from .numbers import fmt, fmt_ratio
 if TYPE_CHECKING:
     import pyarrow as pa
 
-__all__ = ["BATCH_FORMATS", "result_batches", "results_workbook", "write_results"]
+__all__ = ["BATCH_FORMATS", "result_batches", "results_workbook", "write_parquet_chunks", "write_results"]
 
 BATCH_FORMATS = ("csv", "json", "parquet", "markdown", "table", "xlsx")
 
@@ -110,8 +110,12 @@ def result_batches(
     clean: Callable[[str], str] = str,
     study_text: bool = False,
     texts: dict[str, pa.Array] | None = None,
+    ranked: bool = True,
 ) -> Iterator[pa.RecordBatch]:
     """The ranked results (worst first; ``top`` limits the count) as pyarrow record batches of ``block`` rows.
+
+    With ``ranked`` false, every pair in table order (perpetrator by perpetrator) with an empty ``rank``: the rows
+    of one chunk of a streamed screen (:func:`write_parquet_chunks`).
 
     Columns are :data:`~interact.batch.OUTPUT_COLUMNS`: ``rank`` int64, numbers float64 (concentrations in uM,
     ratios dimensionless; a non-finite value is null), text as strings, ``study indicated (mechanistic model)`` bool (``yes``/``no``
@@ -123,7 +127,7 @@ def result_batches(
 
     p, v = result.perpetrators, result.victims
     n_v = len(v.rows)
-    order = ranking(result, top)
+    order = ranking(result, top) if ranked else np.arange(result.total.size)
     # each text column is a small dictionary (one entry per table row or per label) gathered by index (pyarrow take)
     dictionaries = {
         "perpetrator": _strings([clean(r.name) for r in p.rows]),
@@ -144,7 +148,7 @@ def result_batches(
         idx = order[start : start + block]
         ii, jj = np.divmod(idx, n_v)
         columns = [
-            pa.array(np.arange(start + 1, start + 1 + idx.size, dtype=np.int64)),
+            pa.array(np.arange(start + 1, start + 1 + idx.size, dtype=np.int64)) if ranked else pa.nulls(idx.size, pa.int64()),
             dictionaries["perpetrator"].take(ii),
             dictionaries["victim"].take(jj),
             *(_numbers(a[ii]) for a in per_p),
@@ -190,6 +194,10 @@ def _write_csv(result: BatchResult, handle: IO[Any], top: int | None) -> int:
 
 
 def _write_parquet(result: BatchResult, handle: IO[Any], top: int | None) -> int:
+    return _parquet_batches(result_batches(result, top), handle)
+
+
+def _parquet_batches(batches: Iterable[pa.RecordBatch], handle: IO[Any]) -> int:
     import pyarrow.parquet as pq
 
     if isinstance(handle, io.TextIOBase) and getattr(handle, "buffer", None) is None:
@@ -200,7 +208,7 @@ def _write_parquet(result: BatchResult, handle: IO[Any], top: int | None) -> int
     count = 0
     writer = None
     try:
-        for batch in result_batches(result, top):
+        for batch in batches:
             if writer is None:
                 writer = pq.ParquetWriter(handle, batch.schema)
             writer.write_batch(batch)
@@ -209,6 +217,21 @@ def _write_parquet(result: BatchResult, handle: IO[Any], top: int | None) -> int
         if writer is not None:
             writer.close()
     return count
+
+
+def write_parquet_chunks(chunks: Iterable[tuple[int, BatchResult]], handle: IO[Any]) -> int:
+    """A streamed screen (:func:`interact.batch.stream_chunks`) to Parquet, chunk after chunk; returns rows written.
+
+    Rows come in table order (perpetrator by perpetrator) with an empty ``rank``: ranking every pair would need
+    them all in memory.  Sort the file by ``exposure vs normal`` (largest ``|log|`` first), or keep the worst
+    pairs with ``--top N``, which is ranked.
+    """
+
+    def batches() -> Iterator[pa.RecordBatch]:
+        for _, chunk in chunks:
+            yield from result_batches(chunk, ranked=False)
+
+    return _parquet_batches(batches(), handle)
 
 
 def _write_json(result: BatchResult, handle: IO[Any], top: int | None) -> int:
@@ -220,7 +243,7 @@ def _write_json(result: BatchResult, handle: IO[Any], top: int | None) -> int:
         "schema": BATCH_SCHEMA,
         "rules": result.rules.id,
         "pairs": result.pairs,
-        "perpetrators": len(result.perpetrators.rows),
+        "perpetrators": result.pairs // max(1, len(result.victims.rows)),
         "victims": len(result.victims.rows),
         "skipped_rows": [str(s) for s in (*result.perpetrators.skipped, *result.victims.skipped)],
         "caution": CAUTION_LINE,
@@ -289,8 +312,8 @@ def write_results(result: BatchResult, handle: IO[Any], fmt_name: str = "csv", *
         terms = result.rules.terms  # a document for reading: the rule set's words (the CSV and JSON keys stay)
         text_out(
             speak(
-                f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
-                "worst first (largest |log AUCR|).\n\n",
+                f"{result.pairs:,} pairs: {result.pairs // max(1, len(result.victims.rows))} perpetrators x "
+                f"{len(result.victims.rows)} victims, worst first (largest |log AUCR|).\n\n",
                 terms,
             )
         )
@@ -340,9 +363,10 @@ def write_results(result: BatchResult, handle: IO[Any], fmt_name: str = "csv", *
             )
         )
         intro = speak(
-            f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
-            f"rule set {result.rules.id}, worst first (largest |log AUCR|). 'study' says whether a clinical study is indicated "
-            "by the mechanistic static model (AUCR against its cutoff) and by any basic static model. "
+            f"{result.pairs:,} pairs: {result.pairs // max(1, len(result.victims.rows))} perpetrators x "
+            f"{len(result.victims.rows)} victims, rule set {result.rules.id}, worst first (largest |log AUCR|). "
+            "'study' says whether a clinical study is indicated by the mechanistic static model (AUCR against its cutoff) "
+            "and by any basic static model. "
             "Every column in full precision: --format csv, or -o FILE.csv.",
             terms,
         )
