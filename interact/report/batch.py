@@ -19,6 +19,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ..batch import FLAGS, OUTPUT_COLUMNS, BatchResult, _flag_text, ranking, result_rows
+from ..batch_probability import ProbabilityResult, probability_ranking
 from ..cautions import CAUTION_LINE
 from ..dosing import ACTIONS
 from ..errors import InputError
@@ -29,7 +30,16 @@ from .numbers import fmt, fmt_ratio
 if TYPE_CHECKING:
     import pyarrow as pa
 
-__all__ = ["BATCH_FORMATS", "result_batches", "results_workbook", "write_parquet_chunks", "write_results"]
+__all__ = [
+    "BATCH_FORMATS",
+    "PROBABILITY_FORMATS",
+    "probability_batches",
+    "result_batches",
+    "results_workbook",
+    "write_parquet_chunks",
+    "write_probabilities",
+    "write_results",
+]
 
 BATCH_FORMATS = ("csv", "json", "parquet", "markdown", "table", "xlsx")
 
@@ -232,6 +242,78 @@ def write_parquet_chunks(chunks: Iterable[tuple[int, BatchResult]], handle: IO[A
             yield from result_batches(chunk, ranked=False)
 
     return _parquet_batches(batches(), handle)
+
+
+#: the formats of a probabilistic screen's results
+PROBABILITY_FORMATS: Final = ("csv", "parquet")
+
+
+def probability_batches(result: ProbabilityResult, top: int | None = None, *, block: int = BLOCK_ROWS) -> Iterator[pa.RecordBatch]:
+    """A probabilistic screen's pairs, most probable dose change first, as pyarrow record batches.
+
+    Columns: ``rank``, ``perpetrator``, ``victim``, the point screen's ``AUCR``, ``exposure vs normal``, ``class`` and
+    ``action``, then ``P(<class>)`` for every class (they sum to 1 per pair) and ``P(dose change)`` (any action but
+    "no change"), fractions of ``samples`` draws.
+    """
+    import pyarrow as pa
+
+    point = result.point
+    p, v = point.perpetrators, point.victims
+    n_v = len(v.rows)
+    order = probability_ranking(result, top)
+    names = (
+        ["rank", "perpetrator", "victim", "AUCR", "exposure vs normal", "class", "action"]
+        + [f"P({c})" for c in point.band_names]
+        + ["P(dose change)"]
+    )
+    perpetrator, victim = _strings([terminal_safe(r.name) for r in p.rows]), _strings([terminal_safe(r.name) for r in v.rows])
+    classes, actions = _strings(list(point.band_names)), _strings(list(ACTIONS))
+    cp = result.class_probability.reshape(-1, len(point.band_names))
+    for start in range(0, order.size, block):
+        idx = order[start : start + block]
+        ii, jj = np.divmod(idx, n_v)
+        columns = [
+            pa.array(np.arange(start + 1, start + 1 + idx.size, dtype=np.int64)),
+            perpetrator.take(ii),
+            victim.take(jj),
+            _numbers(point.total.ravel()[idx]),
+            _numbers(point.exposure.ravel()[idx]),
+            classes.take(point.band.ravel()[idx]),
+            actions.take(point.action.ravel()[idx]),
+            *(pa.array(cp[idx, k]) for k in range(cp.shape[1])),
+            pa.array(result.change_probability.ravel()[idx]),
+        ]
+        yield pa.RecordBatch.from_arrays(columns, names=names)
+
+
+def write_probabilities(result: ProbabilityResult, handle: IO[Any], fmt_name: str = "csv", *, top: int | None = None) -> int:
+    """Write a probabilistic screen (:func:`probability_batches`) as ``csv`` or ``parquet``; returns rows written.
+
+    A CSV starts with ``#`` comment lines: the caution, the varied quantities, samples and seed.
+    """
+    if fmt_name == "parquet":
+        return _parquet_batches(probability_batches(result, top), handle)
+    if fmt_name != "csv":
+        raise InputError("--format", fmt_name, f"is not one of {', '.join(PROBABILITY_FORMATS)} for a probabilistic screen (--samples)")
+    import pyarrow.csv as pa_csv
+
+    write = _byte_writer(handle)
+    head = (
+        f"# {CAUTION_LINE}\n# varied: {result.variation.describe()}; {result.samples:,} samples per pair, seed {result.seed}; "
+        "P(...) are fractions of the samples\n"
+    )
+    count = 0
+    for batch in probability_batches(result, top):
+        sink = io.BytesIO()
+        if count == 0:
+            write(head.encode("utf-8"))
+            header = io.StringIO()
+            csv.writer(header, lineterminator="\n").writerow(batch.schema.names)
+            write(header.getvalue().encode("utf-8"))
+        pa_csv.write_csv(batch, sink, pa_csv.WriteOptions(include_header=False, quoting_style="needed"))
+        write(sink.getbuffer())
+        count += batch.num_rows
+    return count
 
 
 def _write_json(result: BatchResult, handle: IO[Any], top: int | None) -> int:
