@@ -402,6 +402,7 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
     import time
 
     from .batch import (
+        STREAM_PAIRS,
         check_pair_budget,
         count_rows,
         evaluate_pairs,
@@ -482,7 +483,8 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         rows = _write_streamed(args, lambda h: write_parquet_chunks(stream_chunks(perps, victims, rules, progress=bar), h), binary=True)
         _say_written(args, n, rows, t0, perps.skipped, victims.skipped, order="in table order (streamed; rank left empty)")
         return 0
-    if streamed:
+    local_top = args.top is not None and args.engine == "local" and n > 2 * STREAM_PAIRS
+    if streamed or local_top:  # the worst pairs of a large screen: a running list, whatever the memory (the same rows)
         assert args.top is not None
         result = worst_pairs(perps, victims, args.top, rules, progress=bar)
     elif args.engine == "dask":
