@@ -39,7 +39,7 @@ def band_codes(auc_ratio: ArrayLike, classes: Classes) -> NDArray[np.int8]:
     if r.size < _STEP_TABLE_ROWS:
         return _band_codes(r, classes)
     steps = _band_steps(classes)
-    codes, _, rest = steps.look_up(r)
+    (codes,), _, rest = steps.look_up(r)
     if rest.size:  # at a bound (or not a finite positive ratio): the comparisons themselves
         codes[rest] = _band_codes(r.ravel()[rest], classes)
     return codes.reshape(r.shape)

@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import csv
 import dataclasses
+import functools
 import io
 import math
 import os
@@ -48,7 +49,8 @@ from .genotype import phenotype_options
 from .prediction import gut_ratio, liver_ratio, reversible_term
 from .scenario import Perpetrator, Scenario, Victim, scenario_from_dict
 from .screening import screen
-from .tables import RuleSet, load_classes, load_rules, load_targets, resolve_target
+from .steps import StepTable
+from .tables import Classes, RuleSet, load_classes, load_rules, load_targets, resolve_target
 
 __all__ = [
     "COLUMN_KEYS",
@@ -1089,7 +1091,7 @@ def evaluate_pairs(
             float(total[i, j]),
             "is not a finite AUC ratio; check this perpetrator's Ki and concentrations and the victim's fm values",
         )
-    band = band_codes(total, classes)
+    band, study = _band_and_study(total, classes, rule_set)
     action = np.empty(total.shape, dtype=np.int8)
     for js in victims.plan_groups:  # victims whose plans decide alike, at once over all their pairs
         plan = victims.plans[js[0]]
@@ -1097,8 +1099,10 @@ def evaluate_pairs(
             cols: slice | list[int] = slice(js[0], js[-1] + 1)
         else:
             cols = list(js)
-        action[:, cols] = choose_regimens(plan, exposure[:, cols], gut[:, cols]).action
-    study = (total >= float(rule_set.aucr_inhibition_cutoff.value)) | (total <= float(rule_set.aucr_induction_cutoff.value))
+        if len(js) == n_v:
+            action = choose_regimens(plan, exposure, gut).action  # every victim: no copy
+        else:
+            action[:, cols] = choose_regimens(plan, exposure[:, cols], gut[:, cols]).action
     # per-perpetrator and per-victim bits first, then broadcast once
     e_cols = victims.enzymes
     t_index = [perpetrators.targets.index(e) if e in perpetrators.targets else -1 for e in e_cols]
@@ -1120,7 +1124,8 @@ def evaluate_pairs(
     )
     by_kind |= ((v_mask[None, :] & ~kinds[:, 1:]) != 0).astype(np.uint8) << 3
     flags = by_kind[kind_of.ravel()]
-    flags |= p_bits[:, None]
+    if p_bits.any():
+        flags |= p_bits[:, None]
     return BatchResult(
         perpetrators=perpetrators,
         victims=victims,
@@ -1231,6 +1236,31 @@ def worst_pairs(
     return dataclasses.replace(
         result, perpetrators=dataclasses.replace(result.perpetrators, skipped=perpetrators.skipped), screened=n_p * n_v
     )
+
+
+def _study(total: NDArray[np.float64], inhibition: float, induction: float) -> NDArray[np.bool_]:
+    """The mechanistic model's study verdict: AUCR at or above the inhibition cutoff, or at or below the induction one."""
+    return (total >= inhibition) | (total <= induction)  # type: ignore[no-any-return]
+
+
+def _band_and_study(total: NDArray[np.float64], classes: Classes, rules: RuleSet) -> tuple[NDArray[np.int8], NDArray[np.bool_]]:
+    """Class band codes (:func:`interact.arrays.band_codes`) and study verdicts, for many ratios from one step table."""
+    inh, ind = float(rules.aucr_inhibition_cutoff.value), float(rules.aucr_induction_cutoff.value)
+    if total.size < 4096:
+        return band_codes(total, classes), _study(total, inh, ind)
+    steps = _verdict_steps(classes, inh, ind)
+    (band, study), _, rest = steps.look_up(total, (0, 1))
+    if rest.size:  # at a bound or a cutoff: the comparisons themselves
+        r = total.ravel()[rest]
+        band[rest], study[rest] = band_codes(r, classes), _study(r, inh, ind)
+    return band.reshape(total.shape), study.reshape(total.shape)
+
+
+@functools.lru_cache(maxsize=8)
+def _verdict_steps(classes: Classes, inhibition: float, induction: float) -> StepTable:
+    """:func:`_band_and_study` as a step table (:mod:`interact.steps`): both constant between the bounds and cutoffs."""
+    points = np.array([b.bound for b in (*classes.inhibition, *classes.induction)] + [inhibition, induction], dtype=float)
+    return StepTable.build(points, lambda r: (band_codes(r, classes), _study(r, inhibition, induction)))
 
 
 def _plan_groups(plans: list[RegimenPlan]) -> tuple[tuple[int, ...], ...]:

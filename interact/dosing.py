@@ -469,7 +469,8 @@ def choose_regimens(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | None =
     if steps is None:
         action, chosen = _choose_rows(plan, r, g)
         return RegimenChoice(action=action.reshape(shape), chosen_rows=lambda: chosen.reshape(shape))
-    action, stretch, rest = steps.look_up(r)
+    (action,), stretch, rest = steps.look_up(r, stretch=True)
+    assert stretch is not None
     direct = _choose_rows(plan, r[rest], None if g is None else g[rest])  # near a change point, or not a finite positive ratio
     action[rest] = direct[0]
 

@@ -73,16 +73,21 @@ class StepTable:
         stretch[1:-1] = np.where(clean, before >> 1, -1)
         return cls(edges=edges, values=values, bucket_stretch=stretch)
 
-    def look_up(self, r: NDArray[np.float64], which: int = 0) -> tuple[NDArray[Any], NDArray[np.signedinteger[Any]], NDArray[np.intp]]:
-        """For each ratio: the answer ``values[which]``, the stretch (an index into each of ``values``; small integers),
-        and the indices of the ratios to evaluate directly (their stretch is set to 0, their answer is unset).
+    def look_up(
+        self, r: NDArray[np.float64], which: tuple[int, ...] = (0,), *, stretch: bool = False
+    ) -> tuple[tuple[NDArray[Any], ...], NDArray[np.signedinteger[Any]] | None, NDArray[np.intp]]:
+        """For each ratio: the answers ``values[i]`` for each ``i`` in ``which``; with ``stretch``, the stretch too (an
+        index into each of ``values``, small integers; else None); and the indices of the ratios to evaluate directly
+        (their stretch is set to 0, their answers are unset).
 
         Worked through in blocks whose scratch arrays stay in the processor's cache (fresh memory for whole-array
         temporaries costs more than the arithmetic here).
         """
         x = np.ascontiguousarray(r, dtype=np.float64).ravel()
-        out: NDArray[np.signedinteger[Any]] = np.empty(x.size, dtype=np.int16 if self.values[0].size < 2**15 else np.int32)
-        answer = np.empty(x.size, dtype=self.values[which].dtype)
+        out: NDArray[np.signedinteger[Any]] | None = (
+            np.empty(x.size, dtype=np.int16 if self.values[0].size < 2**15 else np.int32) if stretch else None
+        )
+        answers = tuple(np.empty(x.size, dtype=self.values[i].dtype) for i in which)
         near_parts: list[NDArray[np.intp]] = []
         k = np.empty(min(x.size, _BLOCK), dtype=np.int64)
         for a in range(0, x.size, _BLOCK):
@@ -101,6 +106,8 @@ class StepTable:
                 near = near[~ok]
                 kb[near] = 0
                 near_parts.append(near + a)
-            out[a : a + xb.size] = kb
-            np.take(self.values[which], kb, out=answer[a : a + xb.size])
-        return answer, out, (np.concatenate(near_parts) if near_parts else np.zeros(0, dtype=np.intp))
+            if out is not None:
+                out[a : a + xb.size] = kb
+            for i, answer in zip(which, answers, strict=True):
+                np.take(self.values[i], kb, out=answer[a : a + xb.size])
+        return answers, out, (np.concatenate(near_parts) if near_parts else np.zeros(0, dtype=np.intp))

@@ -89,3 +89,19 @@ def test_band_codes_from_the_table_equal_the_comparisons(seed) -> None:  # type:
     r = np.concatenate([near, odd, np.exp(np.random.default_rng(seed).normal(0.0, 1.5, 5000))])
     np.testing.assert_array_equal(band_codes(r, classes), _band_codes(r, classes))
     np.testing.assert_array_equal(band_codes(r.reshape(-1, 2)[:, ::-1], classes), _band_codes(r.reshape(-1, 2)[:, ::-1], classes))
+
+
+@settings(max_examples=20, deadline=None)
+@given(seed=st.integers(0, 2**32 - 1))
+def test_batch_band_and_study_from_one_table_equal_the_comparisons(seed) -> None:  # type: ignore[no-untyped-def]
+    from interact.batch import _band_and_study, _study
+    from interact.tables import load_rules
+
+    classes, rules = load_classes(), load_rules(None)
+    inh, ind = float(rules.aucr_inhibition_cutoff.value), float(rules.aucr_induction_cutoff.value)
+    points = np.array([b.bound for b in (*classes.inhibition, *classes.induction)] + [inh, ind])
+    near = np.concatenate([np.nextafter(points, 0.0), points, np.nextafter(points, np.inf)])
+    r = np.concatenate([near, np.exp(np.random.default_rng(seed).normal(0.0, 1.5, 6000))])
+    band, study = _band_and_study(r, classes, rules)
+    np.testing.assert_array_equal(band, _band_codes(r, classes))
+    np.testing.assert_array_equal(study, _study(r, inh, ind))
