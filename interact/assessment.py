@@ -12,15 +12,15 @@ from typing import Any, Final
 
 from . import __version__, units
 from .cautions import CAUTIONS
-from .constants import Constant, resolve_constants
+from .constants import Constant, kdeg_per_h, resolve_constants
 from .dosing import DoseLimit, DoseSuggestion, RegimenPlan, highest_perpetrator_scale, plan_for_victim, suggest_dose
-from .errors import AssumptionWarning, FromMemoryWarning, InputError, InteractWarning, ModelLimitWarning, emit_warnings
+from .errors import FromMemoryWarning, InputError, ModelLimitWarning, WarningList, emit_warnings
 from .exposure import Setting, SpeciesExposure, resolve_exposure, resolve_settings
 from .genotype import PhenotypeCase, phenotype_cases
 from .prediction import Prediction, predict, ratio_function
 from .scenario import Scenario
 from .screening import ScreenResult, screen
-from .tables import UNVERIFIED, RuleSet, Sourced, load_classes, load_rules, resolve_target, table_versions
+from .tables import UNVERIFIED, RuleSet, Sourced, load_classes, load_rules, table_versions
 
 __all__ = ["Assessment", "Provenance", "assess"]
 
@@ -102,59 +102,6 @@ class Assessment:
         return assessment_html(self)
 
 
-def _kdeg(
-    scenario: Scenario, constants: tuple[Constant, ...], enzymes: set[str] | None = None
-) -> tuple[dict[str, tuple[float | None, float | None]], list[Setting]]:
-    """kdeg per enzyme (liver, gut) in 1/h: the scenario's override, else the targets table.
-
-    ``enzymes`` defaults to the targets inactivated by the perpetrator (the static
-    model needs kdeg only there); the time course also asks for induced ones.
-    """
-    out: dict[str, tuple[float | None, float | None]] = {}
-    used: list[Setting] = []
-    needed = {c.target for c in constants if c.kinact_per_h is not None} if enzymes is None else set(enzymes)
-    overrides = {t.enzyme: t for t in scenario.turnover}
-    for enzyme in sorted(needed):
-        target = resolve_target(enzyme)
-        values: list[float | None] = []
-        for site in ("liver", "gut"):
-            given = getattr(overrides.get(enzyme), f"kdeg_{site}", None)
-            table: Sourced | None = getattr(target, f"kdeg_{site}", None) if target else None
-            if given is not None:
-                v = units.magnitude(given, "1/h")
-                used.append(Setting(name=f"kdeg_{site}", label=f"kdeg {enzyme} ({site})", value=v, unit="1/h", origin="override"))
-            elif table is not None:
-                v = units.magnitude(units.parse(table.value, "rate", field=f"targets.{enzyme}.kdeg_{site}"), "1/h")
-                used.append(
-                    Setting(
-                        name=f"kdeg_{site}",
-                        label=f"kdeg {enzyme} ({site})",
-                        value=v,
-                        unit="1/h",
-                        origin="default",
-                        source=table.source,
-                        status=table.status,
-                    )
-                )
-            else:
-                v = None
-            values.append(v)
-        out[enzyme] = (values[0], values[1])
-    return out, used
-
-
-class _Warnings(list[str]):
-    """The assessment's warning texts, each with its :class:`~interact.errors.InteractWarning` category."""
-
-    def __init__(self) -> None:
-        super().__init__()
-        self.categories: list[type[InteractWarning]] = []
-
-    def append(self, text: str, category: type[InteractWarning] = AssumptionWarning) -> None:  # type: ignore[override]
-        super().append(text)
-        self.categories.append(category)
-
-
 def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool = True) -> Assessment:
     """Assess a perpetrator-victim scenario.
 
@@ -186,34 +133,85 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
         :class:`~interact.errors.FromMemoryWarning`, :class:`~interact.errors.ModelLimitWarning`),
         so a notebook shows it; the shells pass ``warn=False`` and print ``Assessment.warnings``.
     """
-    if isinstance(rules, RuleSet):
-        rule_set = rules
-    elif rules is not None:
-        rule_set = load_rules(rules)
-    else:  # the scenario's own key: a relative path is read from the scenario's folder
-        rule_set = load_rules(scenario.rules, base=scenario.folder)
+    rule_set = _rule_set(scenario, rules)
     classes = load_classes()
     settings = resolve_settings(scenario, rule_set)
     species, fu_settings = resolve_exposure(scenario, rule_set, settings)
     constants = resolve_constants(scenario)
-    kdeg, kdeg_used = _kdeg(scenario, constants)
+    kdeg, kdeg_used = kdeg_per_h(scenario, constants)
     p = scenario.perpetrator
     v = scenario.victim
-    warnings = _Warnings()
+    warnings = WarningList()
     screen_results = screen(
         rule_set, constants, species, oral=p.route == "oral", kdeg_liver={k: lv for k, (lv, _) in kdeg.items() if lv is not None}
     )
-
-    acting_targets = {c.target for c in constants}
     gut_enzyme = next((c.target for c in constants if c.gut_wall), None) if v.route == "oral" else None
-    fg_setting_default = v.fg is None
     fg = 1.0 if v.fg is None else v.fg
     pathways = tuple((pw.enzyme, pw.fm) for pw in v.pathways)
     prediction = predict(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, classes=classes)
     _check_finite(screen_results, prediction, constants)
+    _input_warnings(warnings, scenario, constants, gut_enzyme, kdeg, kdeg_used)
+    _model_limit_warnings(warnings, scenario, rule_set, constants, screen_results, prediction)
+    # -- dose
+    plan = plan_for_victim(v, (classes.no_effect_lower, classes.no_effect_upper), "default 0.8-1.25, ICH M12 5.3.1")
+    dose = suggest_dose(
+        plan,
+        auc_ratio=prediction.total,
+        gut_ratio=prediction.gut,
+        mechanism_parts=tuple((pt.mechanism, pt.total) for pt in prediction.parts) if "induction" in prediction.mechanisms else (),
+    )
+    cases = phenotype_cases(v.phenotypes, prediction, plan)
+    _dose_warnings(warnings, scenario, plan)
+    ratio_at = ratio_function(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
+    limit = _perpetrator_limit(p, prediction, ratio_at, plan.boundary[1])
+    study, aucr_cut = _study(warnings, rule_set, prediction)
+    all_settings = (*settings.values(), *fu_settings)
+    memory = _memory_values(rule_set, (*all_settings, *kdeg_used), screen_results, cases, constants, aucr_cut, prediction)
+    if warn:
+        emit_warnings(zip(warnings.categories, warnings, strict=True))
+    return Assessment(
+        scenario=scenario,
+        rules=rule_set,
+        settings=all_settings,
+        species=species,
+        constants=constants,
+        screen=screen_results,
+        prediction=prediction,
+        aucr_cutoff=aucr_cut,
+        study_indicated=study,
+        dose=dose,
+        regimens=plan,
+        phenotypes=cases,
+        perpetrator_limit=limit,
+        kdeg_used=tuple(kdeg_used),
+        warnings=tuple(warnings),
+        cautions=CAUTIONS,
+        memory_values=memory,
+        provenance=_provenance(rule_set),
+    )
 
-    # -- warnings a reviewer would want
-    if gut_enzyme is not None and fg_setting_default:
+
+def _rule_set(scenario: Scenario, rules: str | RuleSet | None) -> RuleSet:
+    """The rule set asked for, else the scenario's own key (a relative path is read from the scenario's folder)."""
+    if isinstance(rules, RuleSet):
+        return rules
+    if rules is not None:
+        return load_rules(rules)
+    return load_rules(scenario.rules, base=scenario.folder)
+
+
+def _input_warnings(
+    warnings: WarningList,
+    scenario: Scenario,
+    constants: tuple[Constant, ...],
+    gut_enzyme: str | None,
+    kdeg: dict[str, tuple[float | None, float | None]],
+    kdeg_used: list[Setting],
+) -> None:
+    """Warnings a reviewer would want about the inputs: defaults assumed, pathways untouched, kdeg unknown."""
+    v = scenario.victim
+    acting_targets = {c.target for c in constants}
+    if gut_enzyme is not None and v.fg is None:
         warnings.append(
             f"victim.fg not given: Fg = 1 assumed, so no gut-wall interaction is predicted although {gut_enzyme} "
             "is inhibited; give the victim's Fg."
@@ -224,23 +222,7 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
     if not v.pathways:
         warnings.append("The victim lists no metabolic pathways: the liver term is 1 by construction.")
     for c in constants:
-        if c.mechanism == "uncompetitive" and c.ki_u_um is not None:
-            warnings.append(f"{c.species} on {c.target}: {_UNCOMPETITIVE_NOTE}.", ModelLimitWarning)
-        if c.fu_inc_origin == "default" and c.kind == "enzyme" and c.ki_u_um is not None:
-            warnings.append(f"{c.species} on {c.target}: fu,inc not given; Ki taken as unbound (fu,inc = 1).")
-        shared = [
-            name
-            for name, value, origin in (("KI", c.ki_inact_um, c.ki_inact_fu_origin), ("EC50", c.ec50_um, c.ec50_fu_origin))
-            if value is not None and origin.startswith("fu_inc (given")
-        ]
-        if shared and c.fu_inc != 1.0:
-            corrected = " and ".join(["Ki", *shared] if c.ki_um is not None else shared)
-            warnings.append(
-                f"{c.species} on {c.target}: fu_inc {c.fu_inc:g} corrects {corrected} "
-                f"alike; if {' or '.join(shared)} was measured in another system (hepatocytes) or is already unbound, give "
-                + " / ".join(f"fu_inc_{'ki_inact' if n == 'KI' else 'ec50'}" for n in shared)
-                + " (1 for an unbound value)."
-            )
+        _constant_warnings(warnings, c)
     for kd in kdeg_used:
         if kd.from_memory:
             warnings.append(
@@ -257,25 +239,54 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
                 f"No intestinal kdeg is known for {enzyme}: its time-dependent inhibition in the gut wall is left out; "
                 "give kdeg_gut under [[turnover]]."
             )
+
+
+def _constant_warnings(warnings: WarningList, c: Constant) -> None:
+    """One constant's warnings: uncompetitive applied as competitive, fu,inc assumed or shared between constants."""
+    if c.mechanism == "uncompetitive" and c.ki_u_um is not None:
+        warnings.append(f"{c.species} on {c.target}: {_UNCOMPETITIVE_NOTE}.", ModelLimitWarning)
+    if c.fu_inc_origin == "default" and c.kind == "enzyme" and c.ki_u_um is not None:
+        warnings.append(f"{c.species} on {c.target}: fu,inc not given; Ki taken as unbound (fu,inc = 1).")
+    shared = [
+        name
+        for name, value, origin in (("KI", c.ki_inact_um, c.ki_inact_fu_origin), ("EC50", c.ec50_um, c.ec50_fu_origin))
+        if value is not None and origin.startswith("fu_inc (given")
+    ]
+    if shared and c.fu_inc != 1.0:
+        corrected = " and ".join(["Ki", *shared] if c.ki_um is not None else shared)
+        warnings.append(
+            f"{c.species} on {c.target}: fu_inc {c.fu_inc:g} corrects {corrected} "
+            f"alike; if {' or '.join(shared)} was measured in another system (hepatocytes) or is already unbound, give "
+            + " / ".join(f"fu_inc_{'ki_inact' if n == 'KI' else 'ec50'}" for n in shared)
+            + " (1 for an unbound value)."
+        )
+
+
+def _model_limit_warnings(
+    warnings: WarningList,
+    scenario: Scenario,
+    rule_set: RuleSet,
+    constants: tuple[Constant, ...],
+    screen_results: tuple[ScreenResult, ...],
+    prediction: Prediction,
+) -> None:
+    """The mechanistic model flags what the basic R1 screen does not (the inlet concentration exceeds Cmax,u)."""
+    acting_targets = {c.target for c in constants}
     rev_flags = {r.target for r in screen_results if r.criterion.startswith("reversible") and r.indicated}
     if prediction.total >= float(rule_set.aucr_inhibition_cutoff.value):
-        missed = [pw.enzyme for pw in v.pathways if pw.enzyme in acting_targets and pw.enzyme not in rev_flags]
+        missed = [pw.enzyme for pw in scenario.victim.pathways if pw.enzyme in acting_targets and pw.enzyme not in rev_flags]
         if missed and any(c.ki_u_um is not None and c.target in missed for c in constants):
             warnings.append(
                 f"The mechanistic model predicts AUCR >= {rule_set.aucr_inhibition_cutoff.value:g} although the basic R1 "
                 f"screen does not flag {', '.join(missed)}: the hepatic inlet concentration exceeds Cmax,u.",
                 ModelLimitWarning,
             )
-    # -- dose
-    plan = plan_for_victim(v, (classes.no_effect_lower, classes.no_effect_upper), "default 0.8-1.25, ICH M12 5.3.1")
+
+
+def _dose_warnings(warnings: WarningList, scenario: Scenario, plan: RegimenPlan) -> None:
+    """A default boundary on a narrow-therapeutic-index victim; a Cmax measured at another perpetrator dose."""
+    p = scenario.perpetrator
     boundary = plan.boundary
-    dose = suggest_dose(
-        plan,
-        auc_ratio=prediction.total,
-        gut_ratio=prediction.gut,
-        mechanism_parts=tuple((pt.mechanism, pt.total) for pt in prediction.parts) if "induction" in prediction.mechanisms else (),
-    )
-    cases = phenotype_cases(v.phenotypes, prediction, plan)
     if plan.narrow_therapeutic_index and plan.boundary_origin.startswith("default"):
         warnings.append(
             f"The default no-effect boundary {boundary[0]:g}-{boundary[1]:g} was applied to a narrow-therapeutic-index victim; "
@@ -291,10 +302,9 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
                 f"{units.format_quantity(p.dose)} (the perpetrator-dose ceiling below assumes Cmax scales with dose)."
             )
 
-    ratio_at = ratio_function(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
 
-    limit = _perpetrator_limit(p, prediction, ratio_at, boundary[1])
-
+def _study(warnings: WarningList, rule_set: RuleSet, prediction: Prediction) -> tuple[bool, Sourced]:
+    """Whether a clinical study is indicated, and the AUCR cutoff that decided it."""
     aucr_cut = rule_set.aucr_inhibition_cutoff
     induced = prediction.total <= float(rule_set.aucr_induction_cutoff.value)
     study = prediction.total >= float(aucr_cut.value) or induced
@@ -321,19 +331,26 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
                 f"(<= {rule_set.aucr_induction_cutoff.value:g}); a clinical study is indicated on the induction alone.",
                 ModelLimitWarning,
             )
+    return study, aucr_cut
 
-    all_settings = (*settings.values(), *fu_settings)
+
+def _memory_values(
+    rule_set: RuleSet,
+    settings: tuple[Setting, ...],
+    screen_results: tuple[ScreenResult, ...],
+    cases: tuple[PhenotypeCase, ...],
+    constants: tuple[Constant, ...],
+    aucr_cut: Sourced,
+    prediction: Prediction,
+) -> tuple[str, ...]:
+    """Every from-memory or inferred value the assessment used, with its source."""
 
     def tag(status: str) -> str:
         return " [inferred from an older guidance]" if status == "inferred" else ""
 
-    memory = tuple(
+    return tuple(
         sorted(
-            {
-                f"{s.label}: {s.source}{tag(s.status)}"
-                for s in (*all_settings, *kdeg_used)
-                if s.status in UNVERIFIED and s.origin in ("default", "rule set")
-            }
+            {f"{s.label}: {s.source}{tag(s.status)}" for s in settings if s.status in UNVERIFIED and s.origin in ("default", "rule set")}
             | {
                 f"{r.label} cutoff for {r.target} ({rule_set.id}): {r.cutoff.source}{tag(r.cutoff.status)}"
                 for r in screen_results
@@ -364,7 +381,10 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
             )
         )
     )
-    provenance = Provenance(
+
+
+def _provenance(rule_set: RuleSet) -> Provenance:
+    return Provenance(
         tool_version=__version__,
         rules_id=rule_set.id,
         rules_title=rule_set.title,
@@ -372,28 +392,6 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
         rules_table_version=rule_set.table_version,
         rules_path=rule_set.path,
         table_versions=table_versions(),
-    )
-    if warn:
-        emit_warnings(zip(warnings.categories, warnings, strict=True))
-    return Assessment(
-        scenario=scenario,
-        rules=rule_set,
-        settings=all_settings,
-        species=species,
-        constants=constants,
-        screen=screen_results,
-        prediction=prediction,
-        aucr_cutoff=aucr_cut,
-        study_indicated=study,
-        dose=dose,
-        regimens=plan,
-        phenotypes=cases,
-        perpetrator_limit=limit,
-        kdeg_used=tuple(kdeg_used),
-        warnings=tuple(warnings),
-        cautions=CAUTIONS,
-        memory_values=memory,
-        provenance=provenance,
     )
 
 

@@ -38,7 +38,7 @@ import numpy as np
 import pint
 from numpy.typing import NDArray
 
-from . import units
+from . import model, units
 from .arrays import band_codes, band_labels
 from .constants import resolve_constants
 from .dosing import ACTIONS, RegimenPlan, choose_regimens, plan_for_victim
@@ -46,7 +46,7 @@ from .errors import InputError, InteractError, Problem, ScenarioError
 from .exposure import resolve_exposure, resolve_settings
 from .files import loads_toml, read_text
 from .genotype import phenotype_options
-from .prediction import gut_ratio, liver_ratio, reversible_term
+from .prediction import liver_ratio
 from .scenario import Perpetrator, Scenario, Victim, scenario_from_dict
 from .screening import screen
 from .steps import StepTable
@@ -65,6 +65,7 @@ __all__ = [
     "VictimTable",
     "evaluate_pairs",
     "fits_in_memory",
+    "flag_text",
     "load_perpetrators",
     "load_victims",
     "loads_perpetrators",
@@ -895,7 +896,7 @@ class BatchResult:
         n_v = len(self.victims.rows)
         ii, jj = np.divmod(order, n_v)
         p = self.perpetrators
-        flag_texts = np.array([_flag_text(k) for k in range(1 << len(FLAGS))], dtype=object)
+        flag_texts = np.array([flag_text(k) for k in range(1 << len(FLAGS))], dtype=object)
         bits = self.flags.ravel()[order]
         return {
             "rank": np.arange(1, order.size + 1),
@@ -947,58 +948,35 @@ def pair_ratios(
 ) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64]]:
     """Gut, liver and total AUC ratios of the mechanistic static model for every pair, vectorised.
 
-    With perpetrators along axis 0 and victims along axis 1 (in chunks of perpetrators):
-
-    - activity_e = 1 / (1 + Iin,max,u / Ki,u,e) per enzyme (1 where no Ki is given), per perpetrator;
-    - AUCR_liver = 1 / (sum_e fm_e x activity_e + 1 - sum_e fm_e)  (:func:`interact.prediction.liver_ratio`,
-      summed term by term in column order);
-    - AUCR_gut = 1 / (activity_gut x (1 - Fg) + Fg) with I,ent on the gut-wall enzyme, for an oral victim;
-    - AUCR = AUCR_gut x AUCR_liver  (Fahmi et al. 2008 net-effect model, see :mod:`interact.prediction`).
+    :func:`interact.model.evaluate` with perpetrators along axis 0 and victims along axis 1 (in chunks
+    of perpetrators): each perpetrator's Ki,u per target (reversible inhibition) at Iin,max,u and, on the
+    gut-wall enzyme, at I,ent; each victim's fm per enzyme (times its phenotype activity in the weighted
+    sum) and Fg (1 for an intravenous victim, and where the perpetrator does not act on the gut wall).
 
     ``progress(done_pairs, all_pairs)`` is called after each chunk.
     """
     n_p, n_v = len(perpetrators.rows), len(victims.rows)
     gut = np.empty((n_p, n_v))
     liver = np.empty((n_p, n_v))
-    e_cols = victims.enzymes
-    t_index = [perpetrators.targets.index(e) if e in perpetrators.targets else -1 for e in e_cols]
-    # per perpetrator (n_p, E): the reversible term of each victim enzyme at the hepatic inlet
-    act = np.ones((n_p, len(e_cols)))
-    for k, t in enumerate(t_index):
-        if t >= 0:
-            ki = perpetrators.ki_u_um[:, t]
-            given = ~np.isnan(ki)
-            act[given, k] = reversible_term(perpetrators.inlet_um[given] / ki[given])
+    targets = list(perpetrators.targets) + [e for e in victims.enzymes if e not in perpetrators.targets]
+    ki_u = np.where(np.isnan(perpetrators.ki_u_um), np.inf, perpetrators.ki_u_um)  # not given: [I]/Ki,u = 0 exactly
     gut_col = _gut_column(perpetrators)
-    if gut_col >= 0:
-        ki_g = perpetrators.ki_u_um[:, gut_col]
-        perp_gut = ~np.isnan(ki_g)
-        acts_gut = np.ones(n_p)
-        acts_gut[perp_gut] = reversible_term(perpetrators.enterocyte_um[perp_gut] / ki_g[perp_gut])
-    else:
-        acts_gut = np.ones(n_p)
-        perp_gut = np.zeros(n_p, dtype=bool)
-    fm = victims.fm
-    fm_sum = np.zeros(n_v)
-    for k in range(fm.shape[1]):
-        fm_sum += fm[:, k]
-    rest = 1.0 - fm_sum
-    fm = fm * victims.activity  # a phenotype scales its pathway (x 1.0 is exact: no change without phenotypes)
+    perp_gut = ~np.isnan(perpetrators.ki_u_um[:, gut_col]) if gut_col >= 0 else np.zeros(n_p, dtype=bool)
     fg = np.where(victims.oral, victims.fg, 1.0)[None, :]  # Fg = 1 gives a gut ratio of exactly 1 (intravenous victim)
+    pathways = [
+        model.Pathway(target=targets.index(e), organ="liver", fraction=victims.fm[None, :, k], scale=victims.activity[None, :, k])
+        for k, e in enumerate(victims.enzymes)
+    ]
     done = 0
     for a0, a1 in _chunks(n_p, n_v):
-        a = act[a0:a1]
-        # liver: sum over enzymes of fm x activity, term by term in column order (the order of the
-        # sums in interact.prediction, so that each pair equals assess() to the last bit)
-        weighted = np.zeros((a1 - a0, n_v))
-        for k in range(fm.shape[1]):
-            weighted += fm[None, :, k] * a[:, k, None]
-        out = liver[a0:a1]
-        np.add(weighted, rest[None, :], out=out)  # (1 - sum fm) first, as interact.prediction: exact when fm = 1
-        np.divide(1.0, out, out=out)
-        g = gut[a0:a1]
-        g[...] = gut_ratio(fg, acts_gut[a0:a1, None])
-        g[~perp_gut[a0:a1]] = 1.0  # no gut-wall enzyme inhibited: no gut term, as assess() does
+        acting = [model.Acting(target=t, species=0, ki_u=ki_u[a0:a1, t, None]) for t in range(len(perpetrators.targets))]
+        organs = list(pathways)
+        if gut_col >= 0:  # no gut-wall constant for a perpetrator: Fg = 1, a gut ratio of exactly 1, as assess() has none
+            organs.insert(0, model.Pathway(target=gut_col, organ="gut", fraction=np.where(perp_gut[a0:a1, None], fg, 1.0)))
+        sites = {"liver": (perpetrators.inlet_um[a0:a1, None],), "gut": (perpetrators.enterocyte_um[a0:a1, None],)}
+        r = model.evaluate(acting, organs, sites, {}, include=("reversible",))
+        liver[a0:a1] = r.liver
+        gut[a0:a1] = r.gut
         done += (a1 - a0) * n_v
         if progress is not None:
             progress(done, n_p * n_v)
@@ -1306,7 +1284,8 @@ def _worst_first(severity: NDArray[np.float64], top: int | None) -> NDArray[np.i
 # --------------------------------------------------------------------------- output
 
 
-def _flag_text(bits: int) -> str:
+def flag_text(bits: int) -> str:
+    """The names of the flags set in ``bits`` (bit k is ``FLAGS[k]``), joined by "; "."""
     return "; ".join(FLAGS[k] for k in range(len(FLAGS)) if bits >> k & 1)
 
 
@@ -1325,7 +1304,7 @@ def result_rows(result: BatchResult, top: int | None = None) -> Iterator[tuple[s
     p_names = [r.name for r in p.rows]
     v_names = [r.name for r in v.rows]
     per_p = [[_num(x) for x in arr.tolist()] for arr in (p.imax_u_um, p.inlet_um, p.gut_lumen_um, p.enterocyte_um)]
-    flag_texts = [_flag_text(k) for k in range(1 << len(FLAGS))]
+    flag_texts = [flag_text(k) for k in range(1 << len(FLAGS))]
     flat_gut, flat_liver, flat_total = result.gut.ravel(), result.liver.ravel(), result.total.ravel()
     flat_exposure = result.exposure.ravel()
     flat_band, flat_study, flat_action, flat_flags = (

@@ -11,7 +11,7 @@ import argparse
 import math
 import shutil
 import sys
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -117,17 +117,12 @@ def _cmd_timecourse(args: argparse.Namespace) -> int:
     )
     if args.plot:
         plot_inputs = (*_inputs(args), args.output)
-        if Path(args.plot).suffix.lower() in (".png", ".pdf"):  # drawn by matplotlib: the notebook's timecourse_figure
-            from .report.figures import save_figure, timecourse_figure
+        from .report.figures import save_figure, timecourse_figure
 
-            figure = timecourse_figure(course, title=result.scenario.title, terms=result.rules.terms)
-            save_figure(figure, args.plot, field="--plot", inputs=plot_inputs, force=args.force)
-        else:  # SVG (under any other name, as it always was): the report's own chart, readable without matplotlib
-            from .files import write_file
-            from .report.timecourse import timecourse_svg
-
-            svg = timecourse_svg(course, title=result.scenario.title, terms=result.rules.terms)
-            write_file(args.plot, svg, field="--plot", inputs=plot_inputs, force=args.force)
+        figure = timecourse_figure(course, title=result.scenario.title, terms=result.rules.terms)
+        suffix = Path(args.plot).suffix.lower()
+        fmt = suffix.lstrip(".") if suffix in (".png", ".pdf") else "svg"  # SVG under any other name, as it always was
+        save_figure(figure, args.plot, field="--plot", inputs=plot_inputs, force=args.force, fmt=fmt)
         _said_written(args.plot, "plot")
     _out(format_timecourse(course, result, args.format, width=args.width), args.output, args)
     return 0
@@ -626,7 +621,7 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--washout-days", type=_days_arg, default=None, help="days followed after stopping (default: long enough to fade)")
     p.add_argument("--fraction", type=_fraction_arg, default=0.9, help="share of the effect that defines onset and offset (default 0.9)")
     p.add_argument("--constant", action="store_true", help="hold the perpetrator's site concentrations at their static values")
-    p.add_argument("--plot", metavar="FILE", help="also write the curves to FILE: .png or .pdf (matplotlib), else SVG")
+    p.add_argument("--plot", metavar="FILE", help="also write the curves to FILE (matplotlib): .png or .pdf, else SVG")
     p.set_defaults(run=_cmd_timecourse)
 
     for name, text in (
@@ -771,13 +766,8 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--method", choices=("mc", "lhs"), help="mc: Monte Carlo; lhs: Latin hypercube (default)")
     p.set_defaults(run=_cmd_report)
 
-    for register in _EXTRA_COMMANDS:
-        register(sub)
+    _add_fit_command(sub)
     return parser
-
-
-#: other modules add their subcommands here (each a function taking the subparsers object)
-_EXTRA_COMMANDS: list[Callable[[argparse._SubParsersAction], None]] = []  # type: ignore[type-arg]
 
 
 # --------------------------------------------------------------------------- interact fit (incubation data)
@@ -1061,9 +1051,6 @@ def _add_fit_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[t
     p.add_argument("--km", metavar="CONC", help='IC50 mode: Km of the substrate, e.g. "5 uM"')
     p.add_argument("--alpha", type=float, help="IC50 mode, mixed: Kiu/Kic")
     p.set_defaults(run=_cmd_fit)
-
-
-_EXTRA_COMMANDS.append(_add_fit_command)
 
 
 def main(argv: Sequence[str] | None = None) -> int:

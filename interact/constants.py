@@ -12,11 +12,12 @@ from dataclasses import dataclass
 import pint
 
 from . import units
+from .exposure import Setting
 from .kinetics.conversion import CHENG_PRUSOFF_SOURCE, ki_from_ic50
 from .scenario import Inhibition, Scenario
-from .tables import load_physiology, resolve_target
+from .tables import Sourced, load_physiology, resolve_target
 
-__all__ = ["Constant", "resolve_constants"]
+__all__ = ["Constant", "kdeg_per_h", "resolve_constants"]
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -129,3 +130,44 @@ def resolve_constants(scenario: Scenario) -> tuple[Constant, ...]:
             _one(item, m.name, j, m.molar_mass, f"perpetrator.metabolites[{j - 1}].inhibits[{i}]") for i, item in enumerate(m.inhibits)
         )
     return tuple(out)
+
+
+def kdeg_per_h(
+    scenario: Scenario, constants: tuple[Constant, ...], enzymes: set[str] | None = None
+) -> tuple[dict[str, tuple[float | None, float | None]], list[Setting]]:
+    """kdeg per enzyme (liver, gut) in 1/h: the scenario's override, else the targets table.
+
+    ``enzymes`` defaults to the targets inactivated by the perpetrator (the static
+    model needs kdeg only there); the time course also asks for induced ones.
+    """
+    out: dict[str, tuple[float | None, float | None]] = {}
+    used: list[Setting] = []
+    needed = {c.target for c in constants if c.kinact_per_h is not None} if enzymes is None else set(enzymes)
+    overrides = {t.enzyme: t for t in scenario.turnover}
+    for enzyme in sorted(needed):
+        target = resolve_target(enzyme)
+        values: list[float | None] = []
+        for site in ("liver", "gut"):
+            given = getattr(overrides.get(enzyme), f"kdeg_{site}", None)
+            table: Sourced | None = getattr(target, f"kdeg_{site}", None) if target else None
+            if given is not None:
+                v = units.magnitude(given, "1/h")
+                used.append(Setting(name=f"kdeg_{site}", label=f"kdeg {enzyme} ({site})", value=v, unit="1/h", origin="override"))
+            elif table is not None:
+                v = units.magnitude(units.parse(table.value, "rate", field=f"targets.{enzyme}.kdeg_{site}"), "1/h")
+                used.append(
+                    Setting(
+                        name=f"kdeg_{site}",
+                        label=f"kdeg {enzyme} ({site})",
+                        value=v,
+                        unit="1/h",
+                        origin="default",
+                        source=table.source,
+                        status=table.status,
+                    )
+                )
+            else:
+                v = None
+            values.append(v)
+        out[enzyme] = (values[0], values[1])
+    return out, used

@@ -178,6 +178,62 @@ def _check_boundary(name: str, b: tuple[float, float]) -> tuple[float, float]:
     return lo, hi
 
 
+def _check_plan(
+    usual_dose: float,
+    dose_unit: str,
+    interval_h: float,
+    strengths: tuple[float, ...],
+    scored: tuple[float, ...],
+    max_units: int,
+    intervals_h: tuple[float, ...],
+    half_life_h: float | None,
+    boundary: tuple[float, float],
+    peak_boundary: tuple[float, float] | None,
+    trough_boundary: tuple[float, float] | None,
+) -> tuple[tuple[float, float], tuple[float, float], tuple[float, float]]:
+    """The usual regimen, strengths, intervals and half-life checked; the three boundaries (peak and trough default to AUC's)."""
+    for name, value in (("victim.dose", usual_dose), ("victim.interval", interval_h)):
+        if not (math.isfinite(value) and value > 0.0):
+            raise InputError(name, value, "is not a positive finite number")
+    bad = [s for s in (*strengths, *scored) if not (math.isfinite(s) and s > 0.0)]
+    if bad:
+        raise InputError("victim.strengths", bad[0], "is not a positive strength")
+    missing = [s for s in scored if s not in strengths]
+    if missing:
+        raise InputError("victim.scored_strengths", f"{missing[0]:g} {dose_unit}", "is not one of the strengths")
+    if not 1 <= max_units <= MAX_UNITS_LIMIT:
+        raise InputError("victim.max_units", max_units, f"is not a whole number from 1 to {MAX_UNITS_LIMIT}")
+    bad_tau = [t for t in intervals_h if not (math.isfinite(t) and t > 0.0)]
+    if bad_tau:
+        raise InputError("victim.intervals", bad_tau[0], "is not a positive interval")
+    if half_life_h is not None and not (math.isfinite(half_life_h) and half_life_h > 0.0):
+        raise InputError("victim.half_life", half_life_h, "is not a positive finite time")
+    b = _check_boundary("victim.no_effect_boundary", boundary)
+    pb = _check_boundary("victim.peak_boundary", peak_boundary) if peak_boundary is not None else b
+    tb = _check_boundary("victim.trough_boundary", trough_boundary) if trough_boundary is not None else b
+    return b, pb, tb
+
+
+def _checked_sizes(strengths: tuple[float, ...], scored: tuple[float, ...], max_units: int) -> list[float]:
+    """The unit sizes the search combines, checked against the search's limits."""
+    sizes = _unit_sizes(tuple(strengths), tuple(scored))
+    if len(sizes) > MAX_UNIT_SIZES:
+        raise InputError(
+            "victim.strengths",
+            f"{len(sizes)} unit sizes",
+            f"are more than the {MAX_UNIT_SIZES} the regimen search takes; list the forms in use",
+        )
+    combos = sum(math.comb(len(sizes) + k - 1, k) for k in range(1, max_units + 1))
+    if combos > MAX_COMBINATIONS:
+        raise InputError(
+            "victim.max_units",
+            max_units,
+            f"with {len(sizes)} unit sizes gives {combos:,} combinations, more than the {MAX_COMBINATIONS:,} the regimen search "
+            "enumerates; lower max_units or list fewer strengths",
+        )
+    return sizes
+
+
 def plan_regimens(
     *,
     usual_dose: float,
@@ -223,40 +279,10 @@ def plan_regimens(
         Naming the field, for a non-positive dose or interval, a bad boundary,
         or more unit sizes than the search takes.
     """
-    for name, value in (("victim.dose", usual_dose), ("victim.interval", interval_h)):
-        if not (math.isfinite(value) and value > 0.0):
-            raise InputError(name, value, "is not a positive finite number")
-    bad = [s for s in (*strengths, *scored) if not (math.isfinite(s) and s > 0.0)]
-    if bad:
-        raise InputError("victim.strengths", bad[0], "is not a positive strength")
-    missing = [s for s in scored if s not in strengths]
-    if missing:
-        raise InputError("victim.scored_strengths", f"{missing[0]:g} {dose_unit}", "is not one of the strengths")
-    if not 1 <= max_units <= MAX_UNITS_LIMIT:
-        raise InputError("victim.max_units", max_units, f"is not a whole number from 1 to {MAX_UNITS_LIMIT}")
-    bad_tau = [t for t in intervals_h if not (math.isfinite(t) and t > 0.0)]
-    if bad_tau:
-        raise InputError("victim.intervals", bad_tau[0], "is not a positive interval")
-    if half_life_h is not None and not (math.isfinite(half_life_h) and half_life_h > 0.0):
-        raise InputError("victim.half_life", half_life_h, "is not a positive finite time")
-    b = _check_boundary("victim.no_effect_boundary", boundary)
-    pb = _check_boundary("victim.peak_boundary", peak_boundary) if peak_boundary is not None else b
-    tb = _check_boundary("victim.trough_boundary", trough_boundary) if trough_boundary is not None else b
-    sizes = _unit_sizes(tuple(strengths), tuple(scored))
-    if len(sizes) > MAX_UNIT_SIZES:
-        raise InputError(
-            "victim.strengths",
-            f"{len(sizes)} unit sizes",
-            f"are more than the {MAX_UNIT_SIZES} the regimen search takes; list the forms in use",
-        )
-    combos = sum(math.comb(len(sizes) + k - 1, k) for k in range(1, max_units + 1))
-    if combos > MAX_COMBINATIONS:
-        raise InputError(
-            "victim.max_units",
-            max_units,
-            f"with {len(sizes)} unit sizes gives {combos:,} combinations, more than the {MAX_COMBINATIONS:,} the regimen search "
-            "enumerates; lower max_units or list fewer strengths",
-        )
+    b, pb, tb = _check_plan(
+        usual_dose, dose_unit, interval_h, strengths, scored, max_units, intervals_h, half_life_h, boundary, peak_boundary, trough_boundary
+    )
+    sizes = _checked_sizes(strengths, scored, max_units)
     doses: list[Regimen] = []
     if sizes:
         for dose, parts in _dose_candidates(sizes, max_units):
@@ -692,6 +718,68 @@ def _why_outside(o: RegimenOutcome, plan: RegimenPlan) -> str:
     return "; ".join(parts)
 
 
+def _regimen_reasons(
+    plan: RegimenPlan, outcomes: list[RegimenOutcome], score: NDArray[np.float64], chosen: RegimenOutcome | None, reasons: list[str]
+) -> tuple[tuple[RegimenOutcome, ...], tuple[RegimenOutcome, ...]]:
+    """The reasons for the chosen regimen (or for avoiding the combination), added to ``reasons``; the options inside
+    the boundary, best first, and the nearest ones outside when none is inside."""
+    unit = plan.dose_unit
+    nearest: tuple[RegimenOutcome, ...] = ()
+    ranked = sorted((o for o in outcomes if o.feasible), key=lambda o: (score[0, o.index], o.index))
+    if chosen is not None:
+        what = "the exact dose (no strengths given: round to an available form)" if chosen.regimen.kind == "exact dose" else ""
+        reasons.append(
+            f"Suggested regimen: {chosen.describe(unit)}{' - ' + what if what else ''}; {_ratios_text(chosen)}, "
+            "against the usual regimen alone; the closest to the usual exposure of the regimens inside the boundary."
+        )
+        if chosen.regimen.kind == "interval":
+            longer = chosen.regimen.interval_h > plan.usual_interval_h
+            reasons.append(
+                f"{'A longer' if longer else 'A shorter'} interval keeps the average concentration but "
+                f"{'widens' if longer else 'narrows'} the swing between peak and trough"
+                + (
+                    f"; with the half-life {plan.half_life_h:.3g} h the peak and trough stay inside "
+                    f"{plan.peak_boundary[0]:g}-{plan.peak_boundary[1]:g} and {plan.trough_boundary[0]:g}-{plan.trough_boundary[1]:g} "
+                    "(one-compartment accumulation, stated as such)."
+                    if plan.half_life_h is not None
+                    else ": unchecked, because no half-life was given; give victim.half_life to judge peak and trough."
+                )
+            )
+        if len(ranked) > 1:
+            reasons.append(f"{len(ranked) - 1} other regimen(s) also keep exposure inside the boundary (table below).")
+    else:
+        dose_side = [o for o in outcomes if o.regimen.kind != "interval"]
+        tau_side = [o for o in outcomes if o.regimen.kind == "interval"]
+        near = [min(side, key=lambda o: (_miss(o, plan), o.index)) for side in (dose_side, tau_side) if side]
+        nearest = tuple(near)
+        reasons.append(
+            f"No regimen within reach keeps exposure inside the boundary (doses of up to {plan.max_units} units of "
+            f"the strengths given; intervals {', '.join(f'{t:g}' for t in plan.intervals_h)} h): avoid the combination, "
+            "or monitor closely if it cannot be avoided."
+        )
+        if near:
+            reasons.append(
+                "Nearest options, all outside: " + "; ".join(f"{o.describe(unit)} ({_why_outside(o, plan)})" for o in near) + "."
+            )
+    return tuple(ranked), nearest
+
+
+def _mixed_reasons(auc_ratio: float, mechanism_parts: tuple[tuple[str, float], ...], boundary: tuple[float, float]) -> list[str]:
+    """For opposite mechanisms: the net ratio and each part, and a warning when a part alone is outside the boundary."""
+    lower, upper = boundary
+    reasons = []
+    shown = ", ".join(f"{name} alone {ratio:.3g}" for name, ratio in mechanism_parts)
+    reasons.append(f"Mixed effect: the net AUC ratio {auc_ratio:.3g} combines opposite mechanisms ({shown}).")
+    outside = [(n, r) for n, r in mechanism_parts if not lower <= r <= upper]
+    if outside:
+        reasons.append(
+            f"Parts outside the boundary ({', '.join(f'{n} alone {r:.3g}' for n, r in outside)}): if the mechanisms develop "
+            "at different speeds, exposure can move towards a part for a time (reversible inhibition ends at once when the "
+            "perpetrator stops, enzyme changes last days); the time course shows whether it does."
+        )
+    return reasons
+
+
 def suggest_dose(
     plan: RegimenPlan,
     *,
@@ -749,55 +837,11 @@ def suggest_dose(
             f"every {plan.usual_interval_h:g} h, or {plan.usual_dose:g} {unit} every {plan.usual_interval_h:g} h x {auc_ratio:.3g} "
             f"= {exact_tau:.3g} h."
         )
-        ranked = sorted((o for o in outcomes if o.feasible), key=lambda o: (score[0, o.index], o.index))
-        options = tuple(ranked)
-        if chosen is not None:
-            what = "the exact dose (no strengths given: round to an available form)" if chosen.regimen.kind == "exact dose" else ""
-            reasons.append(
-                f"Suggested regimen: {chosen.describe(unit)}{' - ' + what if what else ''}; {_ratios_text(chosen)}, "
-                "against the usual regimen alone; the closest to the usual exposure of the regimens inside the boundary."
-            )
-            if chosen.regimen.kind == "interval":
-                longer = chosen.regimen.interval_h > plan.usual_interval_h
-                reasons.append(
-                    f"{'A longer' if longer else 'A shorter'} interval keeps the average concentration but "
-                    f"{'widens' if longer else 'narrows'} the swing between peak and trough"
-                    + (
-                        f"; with the half-life {plan.half_life_h:.3g} h the peak and trough stay inside "
-                        f"{plan.peak_boundary[0]:g}-{plan.peak_boundary[1]:g} and {plan.trough_boundary[0]:g}-{plan.trough_boundary[1]:g} "
-                        "(one-compartment accumulation, stated as such)."
-                        if plan.half_life_h is not None
-                        else ": unchecked, because no half-life was given; give victim.half_life to judge peak and trough."
-                    )
-                )
-            if len(ranked) > 1:
-                reasons.append(f"{len(ranked) - 1} other regimen(s) also keep exposure inside the boundary (table below).")
-        else:
-            dose_side = [o for o in outcomes if o.regimen.kind != "interval"]
-            tau_side = [o for o in outcomes if o.regimen.kind == "interval"]
-            near = [min(side, key=lambda o: (_miss(o, plan), o.index)) for side in (dose_side, tau_side) if side]
-            nearest = tuple(near)
-            reasons.append(
-                f"No regimen within reach keeps exposure inside the boundary (doses of up to {plan.max_units} units of "
-                f"the strengths given; intervals {', '.join(f'{t:g}' for t in plan.intervals_h)} h): avoid the combination, "
-                "or monitor closely if it cannot be avoided."
-            )
-            if near:
-                reasons.append(
-                    "Nearest options, all outside: " + "; ".join(f"{o.describe(unit)} ({_why_outside(o, plan)})" for o in near) + "."
-                )
+        options, nearest = _regimen_reasons(plan, outcomes, score, chosen, reasons)
         if increase:
             cautions.insert(0, INCREASE_CAUTION)
     if mechanism_parts:
-        shown = ", ".join(f"{name} alone {ratio:.3g}" for name, ratio in mechanism_parts)
-        reasons.append(f"Mixed effect: the net AUC ratio {auc_ratio:.3g} combines opposite mechanisms ({shown}).")
-        outside = [(n, r) for n, r in mechanism_parts if not lower <= r <= upper]
-        if outside:
-            reasons.append(
-                f"Parts outside the boundary ({', '.join(f'{n} alone {r:.3g}' for n, r in outside)}): if the mechanisms develop "
-                "at different speeds, exposure can move towards a part for a time (reversible inhibition ends at once when the "
-                "perpetrator stops, enzyme changes last days); the time course shows whether it does."
-            )
+        reasons.extend(_mixed_reasons(auc_ratio, mechanism_parts, plan.boundary))
     monitoring = plan.narrow_therapeutic_index and auc_ratio != 1.0
     if plan.narrow_therapeutic_index:
         reasons.append(
@@ -903,6 +947,85 @@ def _days(hours: float) -> str:
     return f"{d:.1f}" if d < 10 else f"{d:.0f}"
 
 
+def _start_advice(onset_h: float, increase: bool, pct: str) -> str:
+    """When to change the victim's dose on starting the perpetrator, from the onset time (h)."""
+    if onset_h <= 24.0:
+        return (
+            f"Start: {pct} of the change is reached within {_days(onset_h)} days of starting the perpetrator; "
+            "change the victim's dose when the perpetrator is started."
+        )
+    elif increase:
+        return (
+            f"Start: induction builds over about {_days(onset_h)} days ({pct} of its steady effect); raise the victim's "
+            "dose stepwise over that time, guided by monitoring, rather than all at once."
+        )
+    else:
+        return (
+            f"Start: the rise in exposure builds over about {_days(onset_h)} days ({pct} of its steady effect); a reduced "
+            "dose from the first day of co-administration is the cautious choice, with review over that time."
+        )
+
+
+def _stop_advice(
+    offset_h: float | None, half_offset_h: float | None, follow_up_h: float, increase: bool, pct: str, mechanisms: tuple[str, ...]
+) -> str:
+    """When to go back to the usual dose on stopping the perpetrator, from the offset time (h) and its causes."""
+    if offset_h is not None:
+        why = []
+        if "time-dependent" in mechanisms:
+            why.append("inactivated enzyme must be resynthesised (set by kdeg)")
+        if "induction" in mechanisms:
+            why.append("induced enzyme returns to baseline (set by kdeg)")
+        if "reversible" in mechanisms or not why:
+            why.append("reversible inhibition ends as the perpetrator is eliminated")
+        reason = "; ".join(why)
+        half = f"half of it within {_days(half_offset_h)} days and " if half_offset_h is not None and half_offset_h < offset_h else ""
+        if offset_h <= 24.0:
+            return (
+                f"Stop: the effect is gone within {_days(offset_h)} days of stopping ({reason}); return to the usual dose "
+                "when the perpetrator is stopped."
+            )
+        elif increase:
+            return (
+                f"Stop: after the perpetrator is stopped the effect fades, {half}{pct} of it within {_days(offset_h)} days "
+                f"({reason}); bring the victim's dose back to the usual dose progressively over that time - keeping the "
+                "higher dose risks toxicity as induction fades."
+            )
+        else:
+            return (
+                f"Stop: after the perpetrator is stopped the effect fades, {half}{pct} of it within {_days(offset_h)} days "
+                f"({reason}); step back up to the usual dose over that time, fully by about day {_days(offset_h)}: "
+                "returning at once risks overexposure while the effect lasts, keeping the reduced dose too long risks "
+                "underexposure."
+            )
+    else:
+        return (
+            f"Stop: the effect had not faded within the {_days(follow_up_h)} days simulated after stopping; return to "
+            "the usual dose only under monitoring."
+        )
+
+
+def _rebound_advice(after_stop_ratio: float, after_stop_h: float, steady_ratio: float, boundary: tuple[float, float]) -> list[str]:
+    """A swing after stopping that leaves the boundary on the other side of 1, or beyond the steady effect."""
+    lower, upper = boundary
+    ln_ss = math.log(steady_ratio) if steady_ratio > 0 else 0.0
+    out = []
+    if not lower <= after_stop_ratio <= upper and (
+        (after_stop_ratio - 1.0) * (steady_ratio - 1.0) < 0 or abs(math.log(after_stop_ratio)) > abs(ln_ss) * 1.1
+    ):
+        out.append(
+            f"After the perpetrator is stopped, exposure swings to {after_stop_ratio:.3g} times the usual about day "
+            f"{_days(after_stop_h)} of the washout (the mechanisms fade at different speeds): "
+            + (
+                "exposure falls below the usual level, so efficacy may be lost if the reduced dose is kept; "
+                if after_stop_ratio < 1.0
+                else "exposure rises above the usual level; "
+            )
+            + "adjust the dose and monitor through the washout."
+        )
+    return out
+
+
 def timing_advice(
     *,
     action: str,
@@ -974,21 +1097,7 @@ def timing_advice(
         return tuple(out)
     increase = steady_ratio < 1.0
     if onset_h is not None:
-        if onset_h <= 24.0:
-            out.append(
-                f"Start: {pct} of the change is reached within {_days(onset_h)} days of starting the perpetrator; "
-                "change the victim's dose when the perpetrator is started."
-            )
-        elif increase:
-            out.append(
-                f"Start: induction builds over about {_days(onset_h)} days ({pct} of its steady effect); raise the victim's "
-                "dose stepwise over that time, guided by monitoring, rather than all at once."
-            )
-        else:
-            out.append(
-                f"Start: the rise in exposure builds over about {_days(onset_h)} days ({pct} of its steady effect); a reduced "
-                "dose from the first day of co-administration is the cautious choice, with review over that time."
-            )
+        out.append(_start_advice(onset_h, increase, pct))
     ln_ss = math.log(steady_ratio) if steady_ratio > 0 else 0.0
     if abs(math.log(peak_ratio) - ln_ss) > (1.0 - effect_fraction) * abs(ln_ss) + 1e-9 and not lower <= peak_ratio <= upper:
         out.append(
@@ -996,55 +1105,9 @@ def timing_advice(
             f"{steady_ratio:.3g} (the mechanisms act at different speeds): one dose change does not fit the whole course; "
             "monitor closely in the first weeks."
         )
-    if (
-        after_stop_ratio is not None
-        and after_stop_h is not None
-        and not lower <= after_stop_ratio <= upper
-        and ((after_stop_ratio - 1.0) * (steady_ratio - 1.0) < 0 or abs(math.log(after_stop_ratio)) > abs(ln_ss) * 1.1)
-    ):
-        out.append(
-            f"After the perpetrator is stopped, exposure swings to {after_stop_ratio:.3g} times the usual about day "
-            f"{_days(after_stop_h)} of the washout (the mechanisms fade at different speeds): "
-            + (
-                "exposure falls below the usual level, so efficacy may be lost if the reduced dose is kept; "
-                if after_stop_ratio < 1.0
-                else "exposure rises above the usual level; "
-            )
-            + "adjust the dose and monitor through the washout."
-        )
-    if offset_h is not None:
-        why = []
-        if "time-dependent" in mechanisms:
-            why.append("inactivated enzyme must be resynthesised (set by kdeg)")
-        if "induction" in mechanisms:
-            why.append("induced enzyme returns to baseline (set by kdeg)")
-        if "reversible" in mechanisms or not why:
-            why.append("reversible inhibition ends as the perpetrator is eliminated")
-        reason = "; ".join(why)
-        half = f"half of it within {_days(half_offset_h)} days and " if half_offset_h is not None and half_offset_h < offset_h else ""
-        if offset_h <= 24.0:
-            out.append(
-                f"Stop: the effect is gone within {_days(offset_h)} days of stopping ({reason}); return to the usual dose "
-                "when the perpetrator is stopped."
-            )
-        elif increase:
-            out.append(
-                f"Stop: after the perpetrator is stopped the effect fades, {half}{pct} of it within {_days(offset_h)} days "
-                f"({reason}); bring the victim's dose back to the usual dose progressively over that time - keeping the "
-                "higher dose risks toxicity as induction fades."
-            )
-        else:
-            out.append(
-                f"Stop: after the perpetrator is stopped the effect fades, {half}{pct} of it within {_days(offset_h)} days "
-                f"({reason}); step back up to the usual dose over that time, fully by about day {_days(offset_h)}: "
-                "returning at once risks overexposure while the effect lasts, keeping the reduced dose too long risks "
-                "underexposure."
-            )
-    else:
-        out.append(
-            f"Stop: the effect had not faded within the {_days(follow_up_h)} days simulated after stopping; return to "
-            "the usual dose only under monitoring."
-        )
+    if after_stop_ratio is not None and after_stop_h is not None:
+        out.extend(_rebound_advice(after_stop_ratio, after_stop_h, steady_ratio, boundary))
+    out.append(_stop_advice(offset_h, half_offset_h, follow_up_h, increase, pct, mechanisms))
     out.append(
         "Timing comes from a minimal one-compartment model and enzyme turnover rates that are often from memory: "
         "a guide for monitoring, not a schedule."

@@ -24,6 +24,7 @@ __all__ = [
     "Problem",
     "ScenarioError",
     "UnitError",
+    "WarningList",
     "emit_warnings",
 ]
 
@@ -129,3 +130,15 @@ def _show(value: object) -> str:
     if len(text) > 80:
         text = text[:77] + "..."
     return text
+
+
+class WarningList(list[str]):
+    """The assessment's warning texts, each with its :class:`~interact.errors.InteractWarning` category."""
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.categories: list[type[InteractWarning]] = []
+
+    def append(self, text: str, category: type[InteractWarning] = AssumptionWarning) -> None:  # type: ignore[override]
+        super().append(text)
+        self.categories.append(category)

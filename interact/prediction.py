@@ -1,33 +1,21 @@
-"""Mechanistic static model: the victim's AUC ratio in gut, liver and in total.
+"""Mechanistic static model for one scenario: the victim's AUC ratio in gut, liver and in total.
 
-Net-effect form (Fahmi et al., Drug Metab Dispos 2008;36:1698; structure seen
-in Guengerich 2022, Fig. 17; the equations below are from memory, algebra checked).  For each
-enzyme e that clears the victim, the fraction of its activity that remains
-in an organ is the product of three terms, named by meaning:
-
-- reversible   = 1 / (1 + sum_j [I]_j / Ki,u,j)
-- inactivation = kdeg / (kdeg + sum_j kinact_j [I]_j / (KI,u,j + [I]_j))
-- induction    = 1 + d sum_j Emax_j [I]_j / (EC50,u,j + [I]_j)
-
-and the organ ratios are
-
-- liver: AUCR_h = 1 / (sum_e fm_e x activity_h,e + (1 - sum_e fm_e))
-- gut:   AUCR_g = 1 / (activity_g x (1 - Fg) + Fg), for the gut-wall enzyme (CYP3A)
-- total: AUCR = AUCR_g x AUCR_h
-
-with [I]_h the unbound hepatic inlet concentration and [I]_g the enterocyte
-concentration (see :mod:`interact.exposure`).  Complete inhibition bounds the
-ratio by 1/(1 - sum fm) in the liver and 1/Fg in the gut.
+The arithmetic is :mod:`interact.model` (equations and sources there), evaluated on floats;
+this module turns a scenario's constants and concentrations into its inputs and its result into
+:class:`Prediction` records (terms per enzyme, mechanism parts, ceilings, band).  Complete
+inhibition bounds the ratio by 1/(1 - sum fm) in the liver and 1/Fg in the gut.
 """
 
 from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from . import model
 from .constants import Constant
 from .exposure import SpeciesExposure
 from .tables import Band, Classes
@@ -52,31 +40,35 @@ INHIBITION_PART = "reversible + time-dependent"
 
 def reversible_term(sum_ratio: ArrayLike) -> NDArray[np.float64]:
     """Fraction of activity left by reversible inhibition: 1/(1 + sum [I]/Ki,u)."""
-    return 1.0 / (1.0 + np.asarray(sum_ratio, dtype=float))
+    return np.asarray(model.reversible(np.asarray(sum_ratio, dtype=float)))
 
 
 def inactivation_term(kobs_per_h: ArrayLike, kdeg_per_h: ArrayLike) -> NDArray[np.float64]:
     """Fraction of enzyme left at steady state by inactivation: kdeg/(kdeg + kobs)."""
-    kdeg = np.asarray(kdeg_per_h, dtype=float)
-    return kdeg / (kdeg + np.asarray(kobs_per_h, dtype=float))
+    return np.asarray(model.inactivation(np.asarray(kobs_per_h, dtype=float), np.asarray(kdeg_per_h, dtype=float)))
 
 
 def induction_term(effect: ArrayLike, calibration: ArrayLike = 1.0) -> NDArray[np.float64]:
     """Fold increase in enzyme: 1 + d x sum(Emax [I]/(EC50,u + [I]))."""
-    return 1.0 + np.multiply(calibration, effect)
+    return np.asarray(model.induction(np.asarray(effect, dtype=float), np.asarray(calibration, dtype=float)))
 
 
 def liver_ratio(fm: ArrayLike, activity: ArrayLike) -> NDArray[np.float64]:
-    """AUCR_h = 1/(sum fm x activity + 1 - sum fm), pathways along the last axis."""
+    """AUCR_h = 1/(sum fm x activity + 1 - sum fm), pathways along the last axis (summed in their order)."""
     f = np.asarray(fm, dtype=float)
     a = np.asarray(activity, dtype=float)
-    return 1.0 / (np.sum(f * a, axis=-1) + (1.0 - np.sum(f, axis=-1)))  # (1 - sum fm) first: exact when fm = 1
+    f, a = np.broadcast_arrays(f, a)
+    n = f.shape[-1] if f.ndim else 0
+    pathways = [model.Pathway(target=k, organ="liver", fraction=f[..., k]) for k in range(n)]
+    out = model.organ_ratio("fraction", pathways, [a[..., k] for k in range(n)])
+    return np.broadcast_to(np.asarray(out, dtype=float), f.shape[:-1]).copy() if n == 0 else np.asarray(out, dtype=float)
 
 
 def gut_ratio(fg: ArrayLike, activity: ArrayLike) -> NDArray[np.float64]:
     """AUCR_g = 1/(activity x (1 - Fg) + Fg); Fg is the victim's intestinal availability."""
     g = np.asarray(fg, dtype=float)
-    return 1.0 / (np.asarray(activity, dtype=float) * (1.0 - g) + g)
+    pathway = model.Pathway(target=0, organ="gut", fraction=g)
+    return np.asarray(model.organ_ratio("availability", (pathway,), (np.asarray(activity, dtype=float),)), dtype=float)
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -131,67 +123,116 @@ class Prediction:
     inhibited_fm: float
 
 
-def _site(
-    enzyme: str,
-    constants: tuple[Constant, ...],
-    species: tuple[SpeciesExposure, ...],
-    site: str,
-    kdeg: float | None,
-    scale: float,
-    include: tuple[str, ...],
-) -> SiteTerms:
-    ratio = kobs = effect = 0.0
-    concs = []
-    for c in constants:
-        if c.target != enzyme:
-            continue
-        exp = species[c.species_index]
-        conc = scale * (exp.unbound_inlet_um if site == "liver" else exp.enterocyte_um)
-        concs.append((c.species, conc))
-        if c.ki_u_um is not None and "reversible" in include:
-            ratio += conc / c.ki_u_um
-        if c.kinact_per_h is not None and c.ki_inact_u_um is not None and "time-dependent" in include:
-            kobs += c.kinact_per_h * conc / (c.ki_inact_u_um + conc)
-        if c.emax is not None and c.ec50_u_um is not None and "induction" in include:
-            effect += c.calibration * c.emax * conc / (c.ec50_u_um + conc)
-    return SiteTerms(
-        concentration_um=tuple(concs),
-        reversible=1.0 / (1.0 + ratio),
-        inactivation=1.0 if kobs == 0.0 or kdeg is None else kdeg / (kdeg + kobs),
-        induction=1.0 + effect,
-        kdeg_per_h=kdeg,
-    )
+def _targets(pathways: tuple[tuple[str, float], ...], gut_enzyme: str | None, constants: tuple[Constant, ...]) -> dict[str, int]:
+    """Index of every target named by the victim's pathways, the gut-wall enzyme and the perpetrator's constants."""
+    index: dict[str, int] = {}
+    for name in (*(e for e, _ in pathways), *((gut_enzyme,) if gut_enzyme else ()), *(c.target for c in constants)):
+        index.setdefault(name, len(index))
+    return index
 
 
-def _ratios(
+class _Inputs(NamedTuple):
+    """One scenario's numbers as the arguments of :func:`interact.model.evaluate` (floats: the n = 1 case)."""
+
+    targets: dict[str, int]
+    acting: tuple[model.Acting, ...]
+    pathways: tuple[model.Pathway, ...]
+    concentrations: dict[str, tuple[float, ...]]
+    kdeg: dict[tuple[int, str], float | None]
+    structure: model.Model
+
+    def evaluate(self, include: tuple[str, ...] = MECHANISM_PARTS, scale: float | None = None) -> model.Evaluation:
+        return self.structure.evaluate(self.concentrations, self.kdeg, include=include, scale=scale)
+
+
+def _inputs(
     pathways: tuple[tuple[str, float], ...],
     fg: float,
     gut_enzyme: str | None,
     constants: tuple[Constant, ...],
     species: tuple[SpeciesExposure, ...],
     kdeg: dict[str, tuple[float | None, float | None]],
-    scale: float,
-    include: tuple[str, ...],
-) -> tuple[float, float, tuple[EnzymeEffect, ...]]:
-    effects = []
-    weighted = 0.0
-    fm_sum = 0.0
-    for enzyme, fm in pathways:
-        k_liver, k_gut = kdeg.get(enzyme, (None, None))
-        liver = _site(enzyme, constants, species, "liver", k_liver, scale, include)
-        gut = _site(enzyme, constants, species, "gut", k_gut, scale, include) if enzyme == gut_enzyme else None
-        effects.append(EnzymeEffect(enzyme=enzyme, fm=fm, liver=liver, gut=gut))
-        weighted += fm * liver.activity
-        fm_sum += fm
-    liver_r = 1.0 / (weighted + (1.0 - fm_sum))  # (1 - sum fm) first: exact when fm = 1, however small the activity
-    gut_r = 1.0
+) -> _Inputs:
+    targets = _targets(pathways, gut_enzyme, constants)
+    acting = tuple(
+        model.Acting(
+            target=targets[c.target],
+            species=c.species_index,
+            ki_u=c.ki_u_um,
+            kinact=c.kinact_per_h if c.ki_inact_u_um is not None else None,
+            ki_inact_u=c.ki_inact_u_um,
+            emax=c.emax if c.ec50_u_um is not None else None,
+            ec50_u=c.ec50_u_um,
+            calibration=c.calibration,
+        )
+        for c in constants
+    )
+    victim = [model.Pathway(target=targets[e], organ="liver", fraction=fm) for e, fm in pathways]
     if gut_enzyme is not None:
-        k_gut = kdeg.get(gut_enzyme, (None, None))[1]
-        g = next((e.gut for e in effects if e.enzyme == gut_enzyme), None)
-        if g is None:
-            g = _site(gut_enzyme, constants, species, "gut", k_gut, scale, include)
-        gut_r = 1.0 / (g.activity * (1.0 - fg) + fg)
-    return gut_r, liver_r, tuple(effects)
+        victim.insert(0, model.Pathway(target=targets[gut_enzyme], organ="gut", fraction=fg))
+    rates: dict[tuple[int, str], float | None] = {}
+    for enzyme, (k_liver, k_gut) in kdeg.items():
+        if enzyme in targets:
+            rates[targets[enzyme], "liver"] = k_liver
+            rates[targets[enzyme], "gut"] = k_gut
+    concentrations = {
+        "liver": tuple(sp.unbound_inlet_um for sp in species),
+        "gut": tuple(sp.enterocyte_um for sp in species),
+    }
+    return _Inputs(targets, acting, tuple(victim), concentrations, rates, model.Model(acting, victim))
+
+
+def _effects(
+    pathways: tuple[tuple[str, float], ...],
+    gut_enzyme: str | None,
+    constants: tuple[Constant, ...],
+    inputs: _Inputs,
+    result: model.Evaluation,
+    kdeg: dict[str, tuple[float | None, float | None]],
+    scale: float,
+) -> tuple[EnzymeEffect, ...]:
+    """The terms of each victim pathway (and of the gut-wall enzyme on its pathway) as :class:`EnzymeEffect` records."""
+
+    def site(enzyme: str, where: str) -> SiteTerms:
+        t = result.terms[inputs.targets[enzyme], where]
+        conc = inputs.concentrations[where]
+        return SiteTerms(
+            concentration_um=tuple((c.species, scale * conc[c.species_index]) for c in constants if c.target == enzyme),
+            reversible=float(t.reversible),
+            inactivation=float(t.inactivation),
+            induction=float(t.induction),
+            kdeg_per_h=kdeg.get(enzyme, (None, None))[0 if where == "liver" else 1],
+        )
+
+    return tuple(
+        EnzymeEffect(enzyme=e, fm=fm, liver=site(e, "liver"), gut=site(e, "gut") if e == gut_enzyme else None) for e, fm in pathways
+    )
+
+
+def _mechanisms(constants: tuple[Constant, ...]) -> tuple[str, ...]:
+    """The mechanisms the perpetrator's constants carry, in the order of :data:`MECHANISM_PARTS`."""
+    present = (
+        any(c.ki_u_um is not None for c in constants),
+        any(c.kinact_per_h is not None for c in constants),
+        any(c.emax is not None for c in constants),
+    )
+    return tuple(m for m, on in zip(MECHANISM_PARTS, present, strict=True) if on)
+
+
+def _parts(mechanisms: tuple[str, ...], inputs: _Inputs, scale: float) -> tuple[MechanismPart, ...]:
+    """The ratios with one mechanism at a time (and both inhibitory ones together when induction is also present)."""
+    if len(mechanisms) <= 1:
+        return ()
+    groups: list[tuple[str, tuple[str, ...]]] = [(m, (m,)) for m in mechanisms]
+    if set(MECHANISM_PARTS) <= set(mechanisms):
+        # inhibition and induction run separately, as guidance asks (memory): both inhibitory parts together
+        groups.append((INHIBITION_PART, ("reversible", "time-dependent")))
+    parts = []
+    for name, include in groups:
+        r = inputs.evaluate(include, scale)
+        g, h = float(r.gut), float(r.liver)
+        parts.append(MechanismPart(mechanism=name, gut=g, liver=h, total=g * h))
+    return tuple(parts)
 
 
 def predict(
@@ -205,7 +246,7 @@ def predict(
     classes: Classes,
     scale: float = 1.0,
 ) -> Prediction:
-    """The mechanistic static model for one victim.
+    """The mechanistic static model for one victim: :func:`interact.model.evaluate` on floats, with its terms.
 
     Parameters
     ----------
@@ -224,25 +265,10 @@ def predict(
     scale
         Multiplier on every perpetrator concentration (perpetrator-dose scan).
     """
-    mechanisms = tuple(
-        m
-        for m, present in (
-            ("reversible", any(c.ki_u_um is not None for c in constants)),
-            ("time-dependent", any(c.kinact_per_h is not None for c in constants)),
-            ("induction", any(c.emax is not None for c in constants)),
-        )
-        if present
-    )
-    gut_r, liver_r, effects = _ratios(pathways, fg, gut_enzyme, constants, species, kdeg, scale, MECHANISM_PARTS)
-    parts = []
-    if len(mechanisms) > 1:
-        groups: list[tuple[str, tuple[str, ...]]] = [(m, (m,)) for m in mechanisms]
-        if {"reversible", "time-dependent", "induction"} <= set(mechanisms):
-            # inhibition and induction run separately, as guidance asks (memory): both inhibitory parts together
-            groups.append((INHIBITION_PART, ("reversible", "time-dependent")))
-        for name, include in groups:
-            g, h, _ = _ratios(pathways, fg, gut_enzyme, constants, species, kdeg, scale, include)
-            parts.append(MechanismPart(mechanism=name, gut=g, liver=h, total=g * h))
+    inputs = _inputs(pathways, fg, gut_enzyme, constants, species, kdeg)
+    mechanisms = _mechanisms(constants)
+    result = inputs.evaluate(scale=scale)
+    gut_r, liver_r = float(result.gut), float(result.liver)
     acted_on = {c.target for c in constants if c.ki_u_um is not None or c.kinact_per_h is not None}
     inhibited_fm = sum(fm for enzyme, fm in pathways if enzyme in acted_on)
     ceiling_liver = 1.0 / (1.0 - inhibited_fm) if inhibited_fm < 1.0 else float("inf")
@@ -256,8 +282,8 @@ def predict(
         ceiling_liver=ceiling_liver,
         ceiling_total=ceiling_gut * ceiling_liver,
         band=classes.classify(total),
-        effects=effects,
-        parts=tuple(parts),
+        effects=_effects(pathways, gut_enzyme, constants, inputs, result, kdeg, scale),
+        parts=_parts(mechanisms, inputs, scale),
         mechanisms=mechanisms,
         fg_used=fg,
         gut_enzyme=gut_enzyme,
@@ -274,63 +300,19 @@ def ratio_function(
     species: tuple[SpeciesExposure, ...],
     kdeg: dict[str, tuple[float | None, float | None]],
 ) -> Callable[[float], float]:
-    """A fast scalar ``scale -> total AUCR``, the same model as :func:`predict`.
+    """``scale -> total AUCR``: :func:`interact.model.evaluate` with every concentration times ``scale``.
 
-    Used for root finding over the perpetrator's dose; ``predict`` is the
-    reference and a test keeps the two equal.
+    Used for root finding over the perpetrator's dose.
     """
-    rows: list[
-        tuple[float, bool, list[tuple[float, float, float | None, float | None, float | None, float | None, float | None, float]]]
-    ] = []
-    enzymes = [e for e, _ in pathways]
-    if gut_enzyme is not None and gut_enzyme not in enzymes:
-        pathways = (*pathways, (gut_enzyme, 0.0))
-    for enzyme, fm in pathways:
-        k_liver, k_gut = kdeg.get(enzyme, (None, None))
-        acts = []
-        for c in constants:
-            if c.target != enzyme:
-                continue
-            exp = species[c.species_index]
-            acts.append(
-                (
-                    exp.unbound_inlet_um,
-                    exp.enterocyte_um,
-                    c.ki_u_um,
-                    c.kinact_per_h,
-                    c.ki_inact_u_um,
-                    c.emax,
-                    c.ec50_u_um,
-                    c.calibration,
-                )
-            )
-        rows.append((fm, enzyme == gut_enzyme, [(*a, k_liver, k_gut) for a in acts]))  # type: ignore[misc]
+    inputs = _inputs(pathways, fg, gut_enzyme, constants, species, kdeg)
 
-    def activity(items: list[tuple[float, ...]], site: int, scale: float) -> float:
-        ratio = kobs = effect = 0.0
-        kdeg_site = None
-        for item in items:
-            conc = scale * item[site]
-            ki, kinact, ki_inact, emax, ec50, d = item[2], item[3], item[4], item[5], item[6], item[7]
-            kdeg_site = item[8 + site]
-            if ki is not None:
-                ratio += conc / ki
-            if kinact is not None and ki_inact is not None:
-                kobs += kinact * conc / (ki_inact + conc)
-            if emax is not None and ec50 is not None:
-                effect += d * emax * conc / (ec50 + conc)
-        inact = 1.0 if kobs == 0.0 or kdeg_site is None else kdeg_site / (kdeg_site + kobs)
-        return inact * (1.0 + effect) / (1.0 + ratio)
+    run, concentrations, rates = inputs.structure.total, inputs.concentrations, inputs.kdeg
+    seen: dict[float, float] = {}  # the root search asks again for the ends of its bracket
 
     def total(scale: float) -> float:
-        weighted = 0.0
-        fm_sum = 0.0
-        gut = 1.0
-        for fm, is_gut, items in rows:
-            weighted += fm * activity(items, 0, scale)  # type: ignore[arg-type]
-            fm_sum += fm
-            if is_gut:
-                gut = 1.0 / (activity(items, 1, scale) * (1.0 - fg) + fg)  # type: ignore[arg-type]
-        return gut / (weighted + (1.0 - fm_sum))
+        value = seen.get(scale)
+        if value is None:
+            value = seen[scale] = float(run(concentrations, rates, scale))
+        return value
 
     return total

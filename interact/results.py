@@ -21,7 +21,13 @@ from .numbers import fmt, fmt_ratio
 
 if TYPE_CHECKING:
     from .assessment import Assessment
+    from .constants import Constant
+    from .dosing import DoseSuggestion
+    from .exposure import SpeciesExposure
+    from .genotype import PhenotypeCase
     from .kinetics.fitting import ModelComparison
+    from .prediction import SiteTerms
+    from .screening import ScreenResult
     from .uncertainty import UncertaintyResult
 
 __all__ = [
@@ -97,6 +103,127 @@ def setting_dict(s: Setting) -> dict[str, Any]:
     }
 
 
+def _species_json(sp: SpeciesExposure) -> dict[str, Any]:
+    return {
+        "species": sp.species,
+        "parent": sp.is_parent,
+        "cmax": sp.cmax_um,
+        "fu_plasma_used": sp.fu_plasma_used,
+        "imax_u": sp.unbound_cmax_um,
+        "igut": sp.gut_lumen_um if sp.is_parent else None,
+        "iin_max_u": sp.unbound_inlet_um,
+        "i_ent": sp.enterocyte_um,
+    }
+
+
+def _constant_json(c: Constant) -> dict[str, Any]:
+    return {
+        "species": c.species,
+        "target": c.target,
+        "ki_um": c.ki_um,
+        "fu_inc": c.fu_inc,
+        "fu_inc_origin": c.fu_inc_origin,
+        "ki_u_um": c.ki_u_um,
+        "ki_route": c.ki_route,
+        "mechanism": c.mechanism,
+        "kinact_per_h": c.kinact_per_h,
+        "ki_ci_um": list(c.ki_ci_um) if c.ki_ci_um else None,
+        "ki_inact_um": c.ki_inact_um,
+        "ki_inact_fu": c.ki_inact_fu,
+        "ki_inact_fu_origin": c.ki_inact_fu_origin,
+        "ki_inact_u_um": c.ki_inact_u_um,
+        "emax": c.emax,
+        "ec50_um": c.ec50_um,
+        "ec50_fu": c.ec50_fu,
+        "ec50_fu_origin": c.ec50_fu_origin,
+        "ec50_u_um": c.ec50_u_um,
+        "calibration": c.calibration,
+    }
+
+
+def _screen_json(r: ScreenResult) -> dict[str, Any]:
+    return {
+        "criterion": r.criterion,
+        "label": r.label,
+        "target": r.target,
+        "mechanism": r.mechanism,
+        "value": r.value,
+        "comparison": r.comparison,
+        "cutoff": r.cutoff.value,
+        "cutoff_source": r.cutoff.source,
+        "cutoff_status": r.cutoff.status,
+        "study_indicated": r.indicated,
+        "equation": r.equation,
+        "concentration": r.concentration,
+        "multiplier": r.multiplier,
+        "kdeg_per_h": r.kdeg_per_h,
+    }
+
+
+def _site_json(t: SiteTerms) -> dict[str, Any]:
+    return {"reversible": t.reversible, "inactivation": t.inactivation, "induction": t.induction, "activity": t.activity}
+
+
+def _auc_ratio_json(a: Assessment) -> dict[str, Any]:
+    pr = a.prediction
+    return {
+        "gut": pr.gut,
+        "liver": pr.liver,
+        "total": pr.total,
+        "ceiling_gut": _num(pr.ceiling_gut),
+        "ceiling_liver": _num(pr.ceiling_liver),
+        "ceiling_total": _num(pr.ceiling_total),
+        "band": pr.band.name if pr.band else None,
+        "study_indicated": a.study_indicated,
+        "cutoff": a.aucr_cutoff.value,
+        "by_mechanism": [{"mechanism": m.mechanism, "gut": m.gut, "liver": m.liver, "total": m.total} for m in pr.parts],
+        "enzymes": [
+            {"enzyme": e.enzyme, "fm": e.fm, "liver": _site_json(e.liver), "gut": None if e.gut is None else _site_json(e.gut)}
+            for e in pr.effects
+        ],
+    }
+
+
+def _dose_json(d: DoseSuggestion) -> dict[str, Any]:
+    return {
+        "action": d.action,
+        "actions": list(ACTIONS),
+        "monitoring_required": d.monitoring,
+        "headline": d.headline,
+        "unit": d.dose_unit,
+        "usual_dose": d.usual_dose,
+        "usual_interval_h": d.usual_interval_h,
+        "half_life_h": d.half_life_h,
+        "exact_dose": d.exact_dose,
+        "exact_interval_h": d.exact_interval_h,
+        "suggested": _regimen_json(d.chosen),
+        "options_inside_boundary": [_regimen_json(o) for o in d.options],
+        "nearest_outside": [_regimen_json(o) for o in d.nearest],
+        "no_effect_boundary": list(d.boundary),
+        "peak_boundary": list(d.peak_boundary),
+        "trough_boundary": list(d.trough_boundary),
+        "boundary_origin": d.boundary_origin,
+        "reasons": list(d.reasons),
+        "cautions": list(d.cautions),
+    }
+
+
+def _phenotype_json(c: PhenotypeCase) -> dict[str, Any]:
+    return {
+        "label": c.label,
+        "reference": c.reference,
+        "activities": [{"enzyme": e, "phenotype": n, "activity": act} for e, n, act in c.activities],
+        "fm": dict(c.fm),
+        "exposure_vs_normal_alone": c.genotype_ratio,
+        "auc_ratio_with_precipitant": c.interaction_ratio,
+        "exposure_vs_normal_with_precipitant": c.combined_ratio,
+        "ceiling": _num(c.ceiling),
+        "action": c.dose.action,
+        "headline": c.dose.headline,
+        "suggested": _regimen_json(c.dose.chosen),
+    }
+
+
 def assessment_dict(a: Assessment) -> dict[str, Any]:
     """The assessment as JSON-ready data (schema :data:`ASSESSMENT_SCHEMA`, documented in README.md "JSON output").
 
@@ -105,8 +232,6 @@ def assessment_dict(a: Assessment) -> dict[str, Any]:
     become ``None``.  :meth:`Assessment.to_dict` and the reports call this one
     function.
     """
-    pr = a.prediction
-    d = a.dose
     lim = a.perpetrator_limit
     return {
         "schema": ASSESSMENT_SCHEMA,
@@ -114,133 +239,12 @@ def assessment_dict(a: Assessment) -> dict[str, Any]:
         "invented": a.scenario.invented,
         "rules": {"id": a.rules.id, "title": a.rules.title, "version": a.rules.version, "table_version": a.rules.table_version},
         "settings": [setting_dict(s) for s in (*a.settings, *a.kdeg_used)],
-        "concentrations_um": [
-            {
-                "species": sp.species,
-                "parent": sp.is_parent,
-                "cmax": sp.cmax_um,
-                "fu_plasma_used": sp.fu_plasma_used,
-                "imax_u": sp.unbound_cmax_um,
-                "igut": sp.gut_lumen_um if sp.is_parent else None,
-                "iin_max_u": sp.unbound_inlet_um,
-                "i_ent": sp.enterocyte_um,
-            }
-            for sp in a.species
-        ],
-        "constants": [
-            {
-                "species": c.species,
-                "target": c.target,
-                "ki_um": c.ki_um,
-                "fu_inc": c.fu_inc,
-                "fu_inc_origin": c.fu_inc_origin,
-                "ki_u_um": c.ki_u_um,
-                "ki_route": c.ki_route,
-                "mechanism": c.mechanism,
-                "kinact_per_h": c.kinact_per_h,
-                "ki_ci_um": list(c.ki_ci_um) if c.ki_ci_um else None,
-                "ki_inact_um": c.ki_inact_um,
-                "ki_inact_fu": c.ki_inact_fu,
-                "ki_inact_fu_origin": c.ki_inact_fu_origin,
-                "ki_inact_u_um": c.ki_inact_u_um,
-                "emax": c.emax,
-                "ec50_um": c.ec50_um,
-                "ec50_fu": c.ec50_fu,
-                "ec50_fu_origin": c.ec50_fu_origin,
-                "ec50_u_um": c.ec50_u_um,
-                "calibration": c.calibration,
-            }
-            for c in a.constants
-        ],
-        "screen": [
-            {
-                "criterion": r.criterion,
-                "label": r.label,
-                "target": r.target,
-                "mechanism": r.mechanism,
-                "value": r.value,
-                "comparison": r.comparison,
-                "cutoff": r.cutoff.value,
-                "cutoff_source": r.cutoff.source,
-                "cutoff_status": r.cutoff.status,
-                "study_indicated": r.indicated,
-                "equation": r.equation,
-                "concentration": r.concentration,
-                "multiplier": r.multiplier,
-                "kdeg_per_h": r.kdeg_per_h,
-            }
-            for r in a.screen
-        ],
-        "auc_ratio": {
-            "gut": pr.gut,
-            "liver": pr.liver,
-            "total": pr.total,
-            "ceiling_gut": _num(pr.ceiling_gut),
-            "ceiling_liver": _num(pr.ceiling_liver),
-            "ceiling_total": _num(pr.ceiling_total),
-            "band": pr.band.name if pr.band else None,
-            "study_indicated": a.study_indicated,
-            "cutoff": a.aucr_cutoff.value,
-            "by_mechanism": [{"mechanism": m.mechanism, "gut": m.gut, "liver": m.liver, "total": m.total} for m in pr.parts],
-            "enzymes": [
-                {
-                    "enzyme": e.enzyme,
-                    "fm": e.fm,
-                    "liver": {
-                        "reversible": e.liver.reversible,
-                        "inactivation": e.liver.inactivation,
-                        "induction": e.liver.induction,
-                        "activity": e.liver.activity,
-                    },
-                    "gut": None
-                    if e.gut is None
-                    else {
-                        "reversible": e.gut.reversible,
-                        "inactivation": e.gut.inactivation,
-                        "induction": e.gut.induction,
-                        "activity": e.gut.activity,
-                    },
-                }
-                for e in pr.effects
-            ],
-        },
-        "dose": {
-            "action": d.action,
-            "actions": list(ACTIONS),
-            "monitoring_required": d.monitoring,
-            "headline": d.headline,
-            "unit": d.dose_unit,
-            "usual_dose": d.usual_dose,
-            "usual_interval_h": d.usual_interval_h,
-            "half_life_h": d.half_life_h,
-            "exact_dose": d.exact_dose,
-            "exact_interval_h": d.exact_interval_h,
-            "suggested": _regimen_json(d.chosen),
-            "options_inside_boundary": [_regimen_json(o) for o in d.options],
-            "nearest_outside": [_regimen_json(o) for o in d.nearest],
-            "no_effect_boundary": list(d.boundary),
-            "peak_boundary": list(d.peak_boundary),
-            "trough_boundary": list(d.trough_boundary),
-            "boundary_origin": d.boundary_origin,
-            "reasons": list(d.reasons),
-            "cautions": list(d.cautions),
-        },
-        "phenotypes": [
-            {
-                "label": c.label,
-                "reference": c.reference,
-                "activities": [{"enzyme": e, "phenotype": n, "activity": act} for e, n, act in c.activities],
-                "fm": dict(c.fm),
-                "exposure_vs_normal_alone": c.genotype_ratio,
-                "auc_ratio_with_precipitant": c.interaction_ratio,
-                "exposure_vs_normal_with_precipitant": c.combined_ratio,
-                "ceiling": _num(c.ceiling),
-                "action": c.dose.action,
-                "headline": c.dose.headline,
-                "suggested": _regimen_json(c.dose.chosen),
-            }
-            for c in a.phenotypes
-        ],
+        "concentrations_um": [_species_json(sp) for sp in a.species],
+        "constants": [_constant_json(c) for c in a.constants],
+        "screen": [_screen_json(r) for r in a.screen],
+        "auc_ratio": _auc_ratio_json(a),
+        "dose": _dose_json(a.dose),
+        "phenotypes": [_phenotype_json(c) for c in a.phenotypes],
         "perpetrator_dose_limit": {"dose": lim.dose, "unit": lim.dose_unit, "scale": lim.scale, "reason": lim.reason},
         "warnings": list(a.warnings),
         "from_memory": list(a.memory_values),

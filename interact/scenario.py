@@ -14,8 +14,7 @@ when the scenario came from a file, the line it is on.
 from __future__ import annotations
 
 import math
-import re
-from collections.abc import Callable, Iterator
+from collections.abc import Callable
 from dataclasses import dataclass, field, fields, replace
 from pathlib import Path
 from typing import Any, Final, TypeVar
@@ -25,7 +24,8 @@ import pint
 from . import units
 from .dosing import MAX_UNIT_SIZES
 from .errors import InputError, Problem, ScenarioError
-from .tables import load_phenotypes, load_targets, resolve_target
+from .scenario_fields import FieldReader, brief
+from .tables import load_phenotypes, resolve_target
 
 __all__ = [
     "INTERVAL_KEYS",
@@ -51,8 +51,6 @@ __all__ = [
 
 MECHANISMS: Final = ("competitive", "noncompetitive", "uncompetitive", "mixed")
 ROUTES: Final = ("oral", "intravenous")
-_MAX_ITEMS: Final = 200
-_MAX_NAME: Final = 200
 
 Q = pint.Quantity
 T = TypeVar("T")
@@ -292,162 +290,358 @@ def scenario_from_dict(data: object, *, source: str = "scenario", text: str | No
     return scenario
 
 
-class _Reader:
-    """Walks raw data, converting values and collecting problems."""
+class _PerpetratorReader(FieldReader):
+    """The perpetrator's section: its exposure, its metabolites and what each of them inhibits or induces."""
 
-    def __init__(self, text: str | None) -> None:
-        self.problems: list[Problem] = []
-        self._lines = _KeyLines(text) if text else None
-
-    # -- helpers
-    def fail(self, path: str, message: str) -> None:
-        line = self._lines.find(path) if self._lines else None
-        self.problems.append(Problem(field=path, message=message, line=line))
-
-    def attempt(self, path: str, fn: Callable[[], T]) -> T | None:
-        """Run a conversion; record its InputError as a problem at ``path``."""
-        try:
-            return fn()
-        except InputError as exc:
-            self.fail(path, f"{_brief(exc.value)} {exc.expected}" if exc.field == path else str(exc))
+    def inhibition(self, raw: object, path: str, molar_mass: Q | None) -> Inhibition | None:
+        data = self.table(
+            raw,
+            path,
+            tuple(f.name for f in fields(Inhibition)),
+        )
+        if data is None:
             return None
-
-    def table(self, data: object, path: str, allowed: tuple[str, ...]) -> dict[str, Any] | None:
-        if not isinstance(data, dict):
-            self.fail(path, f"{_brief(data)} is not a table; expected a [{path}] table")
+        target = self.target_name(data, "target", path)
+        ki = self.quantity(data, "ki", path, "concentration")
+        ic50 = self.quantity(data, "ic50", path, "concentration")
+        sub = self.quantity(data, "substrate_conc", path, "concentration")
+        km = self.quantity(data, "km", path, "concentration")
+        mechanism = self.text(data, "mechanism", path, default="competitive")
+        if mechanism not in MECHANISMS:
+            self.fail(f"{path}.mechanism", f'"{mechanism[:40]}" is not one of {", ".join(MECHANISMS)}')
+        alpha = self.number(data, "alpha", path, low=0.0, high=1e6)
+        fu_inc = self.fraction(data, "fu_inc", path)
+        if fu_inc is not None:
+            self.attempt(f"{path}.fu_inc", lambda: units.check_fraction_size(fu_inc, f"{path}.fu_inc", fu_inc))  # type: ignore[arg-type]
+            fu_inc = fu_inc if fu_inc >= units.MIN_FRACTION else None
+        kinact = self.quantity(data, "kinact", path, "rate")
+        ki_inact = self.quantity(data, "ki_inact", path, "concentration")
+        emax = self.number(data, "emax", path, low=0.0, high=1e4, low_open=False)
+        ec50 = self.quantity(data, "ec50", path, "concentration")
+        calibration = self.number(data, "calibration", path, low=0.0, high=10.0, low_open=False)
+        origin = self.text(data, "origin", path)
+        own_fu = self.own_fu_inc(data, path)
+        points = {"ki": ki, "km": km, "kinact": kinact, "ki_inact": ki_inact, "emax": emax, "ec50": ec50}
+        cis = {key: self.interval(data, key, path, kind, points[key]) for key, kind in INTERVAL_KEYS.items()}
+        given: dict[str, Any] = {**points, "ic50": ic50, "substrate_conc": sub}
+        self.inhibition_pairs(data, path, target, mechanism, alpha, given)
+        for key in ("ki", "ic50", "substrate_conc", "km", "ki_inact", "ec50"):
+            value = given[key]
+            if value is not None and molar_mass is None and value.dimensionality != units.KINDS["molar_concentration"][0][0]:
+                self.fail(
+                    f"{path}.{key}",
+                    f'"{units.format_quantity(value)}" is a mass concentration; give molar_mass for this compound or a molar value such as "0.35 uM"',  # noqa: E501
+                )
+        if target is None:
             return None
-        for key in data:
-            if key not in allowed:
-                self.fail(f"{path}.{key}" if path else key, f"is not a known key; expected one of {', '.join(allowed)}")
-        return data
+        return Inhibition(
+            target=target,
+            ki=ki,
+            ic50=ic50,
+            substrate_conc=sub,
+            km=km,
+            mechanism=mechanism if mechanism in MECHANISMS else "competitive",
+            alpha=alpha,
+            fu_inc=fu_inc,
+            kinact=kinact,
+            ki_inact=ki_inact,
+            emax=emax,
+            ec50=ec50,
+            calibration=calibration,
+            origin=origin,
+            ki_ci=cis["ki"],
+            km_ci=cis["km"],
+            kinact_ci=cis["kinact"],
+            ki_inact_ci=cis["ki_inact"],
+            emax_ci=cis["emax"],
+            ec50_ci=cis["ec50"],
+            fu_inc_ki_inact=own_fu["fu_inc_ki_inact"],
+            fu_inc_ec50=own_fu["fu_inc_ec50"],
+        )
 
-    def required(self, data: dict[str, Any], key: str, path: str) -> Any:
-        if key not in data:
-            self.fail(f"{path}.{key}" if path else key, "is missing")
-            return None
-        return data[key]
+    def own_fu_inc(self, data: dict[str, Any], path: str) -> dict[str, float | None]:
+        """``fu_inc_ki_inact`` and ``fu_inc_ec50``: binding of its own for one constant, given beside that constant."""
+        own_fu: dict[str, float | None] = {}
+        for fu_key, constant in (("fu_inc_ki_inact", "ki_inact"), ("fu_inc_ec50", "ec50")):
+            fu_val = self.fraction(data, fu_key, path)
+            if fu_val is not None:
+                self.attempt(f"{path}.{fu_key}", lambda v=fu_val, k=fu_key: units.check_fraction_size(v, f"{path}.{k}", v))  # type: ignore[misc]
+                if constant not in data:
+                    self.fail(f"{path}.{fu_key}", f"is given without {constant}; expected it beside the constant it corrects")
+            own_fu[fu_key] = fu_val
+        return own_fu
 
-    def text(self, data: dict[str, Any], key: str, path: str, *, required: bool = False, default: str = "") -> str:
-        value = self.required(data, key, path) if required else data.get(key, default)
-        full = f"{path}.{key}" if path else key
-        if value is None:
-            return default
-        if not isinstance(value, str):
-            self.fail(full, f"{_brief(value)} is not text; expected a quoted string")
-            return default
-        if len(value) > _MAX_NAME * 10:
-            self.fail(full, f"is {len(value)} characters long; expected at most {_MAX_NAME * 10}")
-            return value[: _MAX_NAME * 10]
-        return value
+    def inhibition_pairs(
+        self, data: dict[str, Any], path: str, target: str | None, mechanism: str, alpha: float | None, values: dict[str, Any]
+    ) -> None:
+        """The constants that only work together: ic50 with substrate_conc and km (and alpha), kinact with KI, Emax with EC50."""
+        if "ki" in data and "ic50" in data:
+            self.fail(path, "gives both ki and ic50; expected one of them")
+        is_transporter = target is not None and getattr(resolve_target(target), "kind", "") == "transporter"
+        if values["ic50"] is not None and not is_transporter:
+            if mechanism != "noncompetitive":
+                for key in ("substrate_conc", "km"):
+                    if values[key] is None and key not in data:
+                        self.fail(f"{path}.{key}", f"is missing; the Cheng-Prusoff conversion of ic50 for {mechanism} inhibition needs it")
+            if mechanism == "mixed" and alpha is None and "alpha" not in data:
+                self.fail(f"{path}.alpha", "is missing; mixed inhibition needs alpha (Kiu = alpha x Kic)")
+        if (values["kinact"] is None) != (values["ki_inact"] is None) and ("kinact" in data) != ("ki_inact" in data):
+            self.fail(path, "time-dependent inhibition needs both kinact and ki_inact (KI)")
+        if (values["emax"] is None) != (values["ec50"] is None) and ("emax" in data) != ("ec50" in data):
+            self.fail(path, "induction needs both emax and ec50")
+        has_reversible = values["ki"] is not None or values["ic50"] is not None
+        if not has_reversible and values["kinact"] is None and values["emax"] is None and not {"ki", "ic50", "kinact", "emax"} & set(data):
+            self.fail(
+                path,
+                "gives no inhibition or induction constant; expected ki, or ic50 with substrate_conc and km, or kinact with ki_inact, or emax with ec50",  # noqa: E501
+            )
 
-    def name(self, data: dict[str, Any], key: str, path: str) -> str:
-        value = self.text(data, key, path, required=True)
-        if key in data and isinstance(data[key], str) and (not value.strip() or len(value) > _MAX_NAME):
-            self.fail(f"{path}.{key}", f"expected a name of 1 to {_MAX_NAME} characters")
-        return value
-
-    def quantity(self, data: dict[str, Any], key: str, path: str, kind: str, *, required: bool = False) -> Q | None:
-        full = f"{path}.{key}"
-        if key not in data:
-            if required:
-                self.fail(full, "is missing")
-            return None
-        return self.attempt(full, lambda: units.parse(data[key], kind, field=full))
-
-    def fraction(
-        self, data: dict[str, Any], key: str, path: str, *, required: bool = False, allow_zero: bool = False, upper: float = 1.0
-    ) -> float | None:
-        full = f"{path}.{key}"
-        if key not in data:
-            if required:
-                self.fail(full, "is missing")
-            return None
-        return self.attempt(full, lambda: units.parse_fraction(data[key], field=full, allow_zero=allow_zero, upper=upper))
-
-    def number(self, data: dict[str, Any], key: str, path: str, *, low: float, high: float, low_open: bool = True) -> float | None:
-        full = f"{path}.{key}"
-        if key not in data:
-            return None
-        value = data[key]
-        span = f"{'(' if low_open else '['}{low:g}, {high:g}]"
-        if isinstance(value, int) and not isinstance(value, bool) and abs(value) > high:
-            self.fail(full, f"{_brief(value)} is outside {span}")  # before math.isfinite: a huge integer overflows a float
-            return None
-        if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
-            self.fail(full, f"{_brief(value)} is not a finite number; expected a number in {span}")
-            return None
-        if value < low or value > high or (low_open and value == low):
-            self.fail(full, f"{_brief(value)} is outside {span}")
-            return None
-        return float(value)
-
-    def flag(self, data: dict[str, Any], key: str, path: str) -> bool:
-        value = data.get(key, False)
-        if not isinstance(value, bool):
-            self.fail(f"{path}.{key}", f"{_brief(value)} is not true or false")
-            return False
-        return value
-
-    def quantities(self, data: dict[str, Any], key: str, path: str, kind: str, *, example: str, like: Q | None = None) -> tuple[Q, ...]:
-        """A list of quantities of one kind (and, with ``like``, of the same dimension as ``like``)."""
-        raw = data.get(key, [])
-        if not isinstance(raw, list):
-            self.fail(f"{path}.{key}", f"{_brief(raw)} is not a list; expected e.g. {example}")
-            return ()
-        if len(raw) > _MAX_ITEMS:
-            self.fail(f"{path}.{key}", f"has {len(raw)} entries; expected at most {_MAX_ITEMS}")
-        out: list[Q] = []
-        for i, item in enumerate(raw[:_MAX_ITEMS]):
-            at = f"{path}.{key}[{i}]"
-            q = self.attempt(at, lambda item=item, at=at: units.parse(item, kind, field=at))  # type: ignore[misc]
-            if q is None:
+    def inhibitions(self, data: dict[str, Any], path: str, molar_mass: Q | None) -> tuple[Inhibition, ...]:
+        out = []
+        seen: dict[str, int] = {}
+        for i, raw in self.items(data, "inhibits", path):
+            item = self.inhibition(raw, f"{path}.inhibits[{i}]", molar_mass)
+            if item is None:
                 continue
-            if like is not None and q.dimensionality != like.dimensionality:
-                self.fail(at, f'"{units.format_quantity(q)}" is not in the same kind of unit as the dose')
+            if item.target in seen:
+                self.fail(
+                    f"{path}.inhibits[{i}].target",
+                    f'"{item.target}" is listed twice (also inhibits[{seen[item.target]}]); combine them',
+                )
                 continue
-            if kind == "dose" and _too_small_strength(q):
-                self.fail(at, f'"{units.format_quantity(q)}" is below {_MIN_STRENGTH_TEXT}; expected a tablet or capsule strength')
-                continue
-            out.append(q)
+            seen[item.target] = i
+            out.append(item)
         return tuple(out)
 
-    def boundary(self, data: dict[str, Any], key: str, path: str) -> tuple[float, float] | None:
-        """A [lower, upper] pair of ratios with 0 < lower <= 1 <= upper, or None when absent or wrong."""
-        if key not in data:
+    def perpetrator(self, raw: object, path: str = "perpetrator") -> Perpetrator | None:
+        data = self.table(raw, path, tuple(f.name for f in fields(Perpetrator)))
+        if data is None:
             return None
-        b = data[key]
-        if (
-            isinstance(b, list)
-            and len(b) == 2
-            and all(isinstance(x, (int, float)) and not isinstance(x, bool) and math.isfinite(x) for x in b)
-            and 0 < b[0] <= 1 <= b[1]
-        ):
-            return float(b[0]), float(b[1])
-        self.fail(f"{path}.{key}", f"{_brief(b)} is not a [lower, upper] pair of ratios with 0 < lower <= 1 <= upper, e.g. [0.8, 1.25]")
-        return None
-
-    def items(self, data: dict[str, Any], key: str, path: str) -> Iterator[tuple[int, Any]]:
-        value = data.get(key, [])
-        if not isinstance(value, list):
-            self.fail(f"{path}.{key}", f"{_brief(value)} is not a list; expected [[{path}.{key}]] tables")
-            return
-        if len(value) > _MAX_ITEMS:
-            self.fail(f"{path}.{key}", f"has {len(value)} entries; expected at most {_MAX_ITEMS}")
-            value = value[:_MAX_ITEMS]
-        yield from enumerate(value)
-
-    def target_name(self, data: dict[str, Any], key: str, path: str) -> str | None:
-        raw = self.text(data, key, path, required=True)
-        if not raw:
+        name = self.name(data, "name", path)
+        mw = self.quantity(data, "molar_mass", path, "molar_mass")
+        dose = self.quantity(data, "dose", path, "dose", required=True)
+        cmax = self.quantity(data, "cmax", path, "concentration", required=True)
+        fu_p = self.fraction(data, "fu_plasma", path, required=True)
+        route = self.text(data, "route", path, default="oral")
+        if route not in ROUTES:
+            self.fail(f"{path}.route", f'"{route[:40]}" is not one of {", ".join(ROUTES)}')
+        interval = self.quantity(data, "interval", path, "time")
+        measured = self.flag(data, "fu_plasma_measured", path)
+        # at least 0.2: a drug kept out of red cells has Rb = 1 - haematocrit, about 0.55 (common practice)
+        rb = self.number(data, "blood_plasma_ratio", path, low=BLOOD_PLASMA_RANGE[0], high=BLOOD_PLASMA_RANGE[1], low_open=False)
+        fa_fg = self.fraction(data, "fa_fg", path)
+        fa = self.fraction(data, "fa", path)
+        ka = self.quantity(data, "ka", path, "rate")
+        half_life = self.quantity(data, "half_life", path, "time")
+        cmax_dose = self.quantity(data, "cmax_dose", path, "dose")
+        if cmax_dose is not None and dose is not None and cmax_dose.dimensionality != dose.dimensionality:
+            self.fail(f"{path}.cmax_dose", f'"{units.format_quantity(cmax_dose)}" is not in the same kind of unit as the dose')
+            cmax_dose = None
+        self.mass_conc_needs_mw(cmax, mw, f"{path}.cmax")
+        if dose is not None and mw is None and dose.dimensionality == units.KINDS["mass"][0][0]:
+            self.fail(
+                f"{path}.molar_mass",
+                'is missing; a dose in mass units needs it to give molar concentrations (e.g. "452.5 g/mol")',
+            )
+        inhibits = self.inhibitions(data, path, mw)
+        metabolites = []
+        for i, mraw in self.items(data, "metabolites", path):
+            met = self.metabolite(mraw, f"{path}.metabolites[{i}]")
+            if met is not None:
+                metabolites.append(met)
+        if not inhibits and not any(m.inhibits for m in metabolites) and "inhibits" not in data:
+            self.fail(f"{path}.inhibits", f"is missing; expected at least one [[{path}.inhibits]] table with a target")
+        if None in (dose, cmax, fu_p):
             return None
-        target = resolve_target(raw)
-        if target is None:
-            known = ", ".join(t.name for t in load_targets())
-            self.fail(f"{path}.{key}", f'"{raw[:60]}" is not a known enzyme or transporter; expected one of {known}')
-            return None
-        return target.name
+        assert dose is not None and cmax is not None and fu_p is not None
+        return Perpetrator(
+            name=name,
+            molar_mass=mw,
+            dose=dose,
+            route=route if route in ROUTES else "oral",
+            interval=interval,
+            cmax=cmax,
+            fu_plasma=fu_p,
+            fu_plasma_measured=measured,
+            blood_plasma_ratio=rb,
+            fa_fg=fa_fg,
+            fa=fa,
+            ka=ka,
+            inhibits=inhibits,
+            metabolites=tuple(metabolites),
+            half_life=half_life,
+            cmax_dose=cmax_dose,
+        )
 
-    # -- sections
+    def metabolite(self, raw: object, path: str) -> Metabolite | None:
+        data = self.table(raw, path, tuple(f.name for f in fields(Metabolite)))
+        if data is None:
+            return None
+        name = self.name(data, "name", path)
+        mw = self.quantity(data, "molar_mass", path, "molar_mass")
+        cmax = self.quantity(data, "cmax", path, "concentration", required=True)
+        fu_p = self.fraction(data, "fu_plasma", path, required=True)
+        measured = self.flag(data, "fu_plasma_measured", path)
+        self.mass_conc_needs_mw(cmax, mw, f"{path}.cmax")
+        inhibits = self.inhibitions(data, path, mw)
+        if cmax is None or fu_p is None:
+            return None
+        return Metabolite(name=name, molar_mass=mw, cmax=cmax, fu_plasma=fu_p, fu_plasma_measured=measured, inhibits=inhibits)
+
+
+class _VictimReader(FieldReader):
+    """The victim's section: dose, regimen, unit sizes, elimination pathways and phenotypes."""
+
+    def victim(self, raw: object, path: str = "victim") -> Victim | None:
+        data = self.table(
+            raw,
+            path,
+            (*tuple(f.name for f in fields(Victim) if f.name not in ("no_effect_lower", "no_effect_upper")), "no_effect_boundary"),
+        )
+        if data is None:
+            return None
+        name = self.name(data, "name", path)
+        dose = self.quantity(data, "dose", path, "dose", required=True)
+        interval = self.quantity(data, "interval", path, "time", required=True)
+        fg = self.fraction(data, "fg", path)
+        route = self.text(data, "route", path, default="oral")
+        if route not in ROUTES:
+            self.fail(f"{path}.route", f'"{route[:40]}" is not one of {", ".join(ROUTES)}')
+        nti = self.flag(data, "narrow_therapeutic_index", path)
+        v_half_life = self.quantity(data, "half_life", path, "time")
+        v_extraction = self.fraction(data, "hepatic_extraction", path)
+        if v_extraction is not None and v_extraction >= 1.0:
+            self.fail(f"{path}.hepatic_extraction", f"{v_extraction:g} is not below 1; expected an extraction ratio in (0, 1)")
+            v_extraction = None
+        v_ka = self.quantity(data, "ka", path, "rate")
+        strengths, scored, intervals, max_units = self.unit_sizes(data, path, dose)
+        pathways = self.pathways(data, path)
+        phenotypes = self.phenotypes(data, path, {p.enzyme for p in pathways})
+        lower, upper = self.boundary(data, "no_effect_boundary", path) or (None, None)
+        peak_boundary = self.boundary(data, "peak_boundary", path)
+        trough_boundary = self.boundary(data, "trough_boundary", path)
+        if dose is None or interval is None:
+            return None
+        return Victim(
+            name=name,
+            dose=dose,
+            interval=interval,
+            fg=fg,
+            route=route if route in ROUTES else "oral",
+            strengths=strengths,
+            pathways=pathways,
+            no_effect_lower=lower,
+            no_effect_upper=upper,
+            narrow_therapeutic_index=nti,
+            scored_strengths=scored,
+            max_units=max_units,
+            intervals=intervals,
+            peak_boundary=peak_boundary,
+            trough_boundary=trough_boundary,
+            phenotypes=phenotypes,
+            half_life=v_half_life,
+            hepatic_extraction=v_extraction,
+            ka=v_ka,
+        )
+
+    def unit_sizes(self, data: dict[str, Any], path: str, dose: Q | None) -> tuple[tuple[Q, ...], tuple[Q, ...], tuple[Q, ...], int | None]:
+        """What doses can be given: strengths, scored strengths, intervals and units per administration."""
+        strengths = self.quantities(data, "strengths", path, "dose", example='["2.5 mg", "5 mg"]', like=dose)
+        scored = self.quantities(data, "scored_strengths", path, "dose", example='["10 mg"]', like=dose)
+        for i, q in enumerate(scored):
+            if not any(units.magnitude(q, units.unit_text(s)) == float(s.magnitude) for s in strengths):
+                self.fail(f"{path}.scored_strengths[{i}]", f'"{units.format_quantity(q)}" is not one of the strengths')
+        if len(strengths) + len(scored) > MAX_UNIT_SIZES:
+            self.fail(
+                f"{path}.strengths",
+                f"has {len(strengths)} strengths and {len(scored)} scored ones; the regimen search takes at most {MAX_UNIT_SIZES} "
+                "unit sizes in all (list the forms in use)",
+            )
+        intervals = self.quantities(data, "intervals", path, "time", example='["8 h", "12 h", "24 h"]')
+        max_units = None
+        if "max_units" in data:
+            mu = data["max_units"]
+            if isinstance(mu, (int, float)) and not isinstance(mu, bool) and math.isfinite(mu) and mu == int(mu) and 1 <= mu <= 8:
+                max_units = int(mu)
+            else:
+                self.fail(f"{path}.max_units", f"{brief(mu)} is not a whole number from 1 to 8 (units per administration)")
+        return strengths, scored, intervals, max_units
+
+    def pathways(self, data: dict[str, Any], path: str) -> tuple[Pathway, ...]:
+        """The victim's elimination pathways: known enzymes, each once, fm values summing to at most 1."""
+        pathways: list[Pathway] = []
+        seen: set[str] = set()
+        for i, praw in self.items(data, "pathways", path):
+            at = f"{path}.pathways[{i}]"
+            pdata = self.table(praw, at, ("enzyme", "fm"))
+            if pdata is None:
+                continue
+            enzyme = self.target_name(pdata, "enzyme", at)
+            fm = self.fraction(pdata, "fm", at, required=True, allow_zero=True)
+            if enzyme is not None:
+                target = resolve_target(enzyme)
+                if target is not None and target.kind != "enzyme":
+                    self.fail(
+                        f"{at}.enzyme",
+                        f'"{enzyme}" is a transporter; the mechanistic static model here takes metabolic pathways (enzymes) only',
+                    )
+                    continue
+                if enzyme in seen:
+                    self.fail(f"{at}.enzyme", f'"{enzyme}" is listed twice; give one fm per enzyme')
+                    continue
+                seen.add(enzyme)
+            if enzyme is not None and fm is not None:
+                pathways.append(Pathway(enzyme=enzyme, fm=fm))
+        total = sum(p.fm for p in pathways)
+        if total > 1.0 + 1e-9:
+            self.fail(
+                f"{path}.pathways",
+                f"fm values sum to {total:.12g}; expected a total of at most 1 (the rest is renal and other routes)",
+            )
+        return tuple(pathways)
+
+    def phenotypes(self, data: dict[str, Any], path: str, pathway_enzymes: set[str]) -> tuple[PhenotypeChoice, ...]:
+        table = load_phenotypes()
+        out: list[PhenotypeChoice] = []
+        seen: set[str] = set()
+        for i, raw in self.items(data, "phenotypes", path):
+            at = f"{path}.phenotypes[{i}]"
+            pdata = self.table(raw, at, ("enzyme", "phenotype", "activity"))
+            if pdata is None:
+                continue
+            enzyme = self.target_name(pdata, "enzyme", at)
+            if enzyme is None:
+                continue
+            if enzyme not in table:
+                self.fail(f"{at}.enzyme", f'"{enzyme}" has no phenotype table; expected one of {", ".join(table)}')
+                continue
+            if enzyme not in pathway_enzymes:
+                self.fail(f"{at}.enzyme", f'"{enzyme}" is not one of the victim\'s pathways; its phenotype would change nothing')
+                continue
+            if enzyme in seen:
+                self.fail(f"{at}.enzyme", f'"{enzyme}" is listed twice; give one phenotype (or "all") per enzyme')
+                continue
+            seen.add(enzyme)
+            if "activity" in pdata and "phenotype" in pdata:
+                self.fail(f"{at}.activity", "is given with a phenotype; give either a phenotype from the table or your own activity")
+                continue
+            if "activity" in pdata:
+                activity = self.number(pdata, "activity", at, low=0.0, high=10.0, low_open=False)
+                if activity is not None:
+                    out.append(PhenotypeChoice(enzyme=enzyme, phenotype="given", activity=activity))
+                continue
+            names = [p.name for p in table[enzyme]]
+            phenotype = self.text(pdata, "phenotype", at, required=True)
+            if phenotype not in (*names, "all"):
+                self.fail(f"{at}.phenotype", f'"{phenotype[:40]}" is not one of {", ".join(names)} or "all" (or give activity)')
+                continue
+            out.append(PhenotypeChoice(enzyme=enzyme, phenotype=phenotype))
+        return tuple(out)
+
+
+class _Reader(_PerpetratorReader, _VictimReader):
+    """Walks a whole scenario, section by section, converting values and collecting problems."""
+
     def scenario(self, data: object) -> Scenario | None:
         top = self.table(data, "", ("title", "invented", "rules", "notes", *SPELLINGS, *SPELLINGS.values(), "physiology", "turnover"))
         if top is None:
@@ -495,382 +689,6 @@ class _Reader:
             spelling=(perp_name, victim_name),
         )
 
-    def inhibition(self, raw: object, path: str, molar_mass: Q | None) -> Inhibition | None:
-        data = self.table(
-            raw,
-            path,
-            tuple(f.name for f in fields(Inhibition)),
-        )
-        if data is None:
-            return None
-        target = self.target_name(data, "target", path)
-        ki = self.quantity(data, "ki", path, "concentration")
-        ic50 = self.quantity(data, "ic50", path, "concentration")
-        sub = self.quantity(data, "substrate_conc", path, "concentration")
-        km = self.quantity(data, "km", path, "concentration")
-        mechanism = self.text(data, "mechanism", path, default="competitive")
-        if mechanism not in MECHANISMS:
-            self.fail(f"{path}.mechanism", f'"{mechanism[:40]}" is not one of {", ".join(MECHANISMS)}')
-        alpha = self.number(data, "alpha", path, low=0.0, high=1e6)
-        fu_inc = self.fraction(data, "fu_inc", path)
-        if fu_inc is not None:
-            self.attempt(f"{path}.fu_inc", lambda: units.check_fraction_size(fu_inc, f"{path}.fu_inc", fu_inc))  # type: ignore[arg-type]
-            fu_inc = fu_inc if fu_inc >= units.MIN_FRACTION else None
-        kinact = self.quantity(data, "kinact", path, "rate")
-        ki_inact = self.quantity(data, "ki_inact", path, "concentration")
-        emax = self.number(data, "emax", path, low=0.0, high=1e4, low_open=False)
-        ec50 = self.quantity(data, "ec50", path, "concentration")
-        calibration = self.number(data, "calibration", path, low=0.0, high=10.0, low_open=False)
-        origin = self.text(data, "origin", path)
-        own_fu: dict[str, float | None] = {}
-        for fu_key, constant in (("fu_inc_ki_inact", "ki_inact"), ("fu_inc_ec50", "ec50")):
-            fu_val = self.fraction(data, fu_key, path)
-            if fu_val is not None:
-                self.attempt(f"{path}.{fu_key}", lambda v=fu_val, k=fu_key: units.check_fraction_size(v, f"{path}.{k}", v))  # type: ignore[misc]
-                if constant not in data:
-                    self.fail(f"{path}.{fu_key}", f"is given without {constant}; expected it beside the constant it corrects")
-            own_fu[fu_key] = fu_val
-        points = {"ki": ki, "km": km, "kinact": kinact, "ki_inact": ki_inact, "emax": emax, "ec50": ec50}
-        cis = {key: self.interval(data, key, path, kind, points[key]) for key, kind in INTERVAL_KEYS.items()}
-        has_reversible = ki is not None or ic50 is not None
-        if "ki" in data and "ic50" in data:
-            self.fail(path, "gives both ki and ic50; expected one of them")
-        is_transporter = target is not None and getattr(resolve_target(target), "kind", "") == "transporter"
-        if ic50 is not None and not is_transporter:
-            if mechanism != "noncompetitive":
-                for key, value in (("substrate_conc", sub), ("km", km)):
-                    if value is None and key not in data:
-                        self.fail(
-                            f"{path}.{key}",
-                            f"is missing; the Cheng-Prusoff conversion of ic50 for {mechanism} inhibition needs it",
-                        )
-            if mechanism == "mixed" and alpha is None and "alpha" not in data:
-                self.fail(f"{path}.alpha", "is missing; mixed inhibition needs alpha (Kiu = alpha x Kic)")
-        if (kinact is None) != (ki_inact is None) and ("kinact" in data) != ("ki_inact" in data):
-            self.fail(path, "time-dependent inhibition needs both kinact and ki_inact (KI)")
-        if (emax is None) != (ec50 is None) and ("emax" in data) != ("ec50" in data):
-            self.fail(path, "induction needs both emax and ec50")
-        if not has_reversible and kinact is None and emax is None and not {"ki", "ic50", "kinact", "emax"} & set(data):
-            self.fail(
-                path,
-                "gives no inhibition or induction constant; expected ki, or ic50 with substrate_conc and km, or kinact with ki_inact, or emax with ec50",  # noqa: E501
-            )
-        for key, value in (
-            ("ki", ki),
-            ("ic50", ic50),
-            ("substrate_conc", sub),
-            ("km", km),
-            ("ki_inact", ki_inact),
-            ("ec50", ec50),
-        ):
-            if value is not None and molar_mass is None and value.dimensionality != units.KINDS["molar_concentration"][0][0]:
-                self.fail(
-                    f"{path}.{key}",
-                    f'"{units.format_quantity(value)}" is a mass concentration; give molar_mass for this compound or a molar value such as "0.35 uM"',  # noqa: E501
-                )
-        if target is None:
-            return None
-        return Inhibition(
-            target=target,
-            ki=ki,
-            ic50=ic50,
-            substrate_conc=sub,
-            km=km,
-            mechanism=mechanism if mechanism in MECHANISMS else "competitive",
-            alpha=alpha,
-            fu_inc=fu_inc,
-            kinact=kinact,
-            ki_inact=ki_inact,
-            emax=emax,
-            ec50=ec50,
-            calibration=calibration,
-            origin=origin,
-            ki_ci=cis["ki"],
-            km_ci=cis["km"],
-            kinact_ci=cis["kinact"],
-            ki_inact_ci=cis["ki_inact"],
-            emax_ci=cis["emax"],
-            ec50_ci=cis["ec50"],
-            fu_inc_ki_inact=own_fu["fu_inc_ki_inact"],
-            fu_inc_ec50=own_fu["fu_inc_ec50"],
-        )
-
-    def interval(self, data: dict[str, Any], key: str, path: str, kind: str, point: Any) -> Any:
-        """``<key>_ci``: two values, lower <= upper, above zero, around the point value when both are given."""
-        name = f"{key}_ci"
-        full = f"{path}.{name}"
-        if name not in data:
-            return None
-        raw = data[name]
-        if not isinstance(raw, list) or len(raw) != 2:
-            self.fail(full, f'{_brief(raw)} is not a list of two values; expected e.g. ["63.3 uM", "82.3 uM"]')
-            return None
-        if point is None and key not in data:
-            self.fail(full, f"is given without {key}; expected the interval beside the constant it belongs to")
-            return None
-        ends: list[Any]
-        if kind:
-            ends = [self.attempt(full, lambda v=v: units.parse(v, kind, field=full)) for v in raw]  # type: ignore[misc]
-        else:
-            ends = []
-            for v in raw:
-                if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v) or v < 0:
-                    self.fail(full, f"{_brief(v)} is not a finite number of at least 0")
-                    return None
-                ends.append(float(v))
-        if any(e is None for e in ends):
-            return None
-        lo: Any = ends[0]
-        hi: Any = ends[1]
-        try:
-            ref = point.units if kind and point is not None else (lo.units if kind else None)
-            lo_v, hi_v = (lo.to(ref).magnitude, hi.to(ref).magnitude) if kind else (lo, hi)
-            pt = point.to(ref).magnitude if kind and point is not None else point
-        except pint.errors.DimensionalityError:  # mass vs molar: needs the molar mass, checked where it is converted
-            return (lo, hi)
-        if not (0 < lo_v <= hi_v):
-            self.fail(full, f"{_brief(raw)} is not an interval with 0 < lower <= upper")
-            return None
-        if pt is not None and not (lo_v * (1 - 1e-9) <= pt <= hi_v * (1 + 1e-9)):
-            self.fail(full, f"{_brief(raw)} does not contain {key} = {_brief(data.get(key))}; expected an interval around the value")
-            return None
-        return (lo, hi)
-
-    def inhibitions(self, data: dict[str, Any], path: str, molar_mass: Q | None) -> tuple[Inhibition, ...]:
-        out = []
-        seen: dict[str, int] = {}
-        for i, raw in self.items(data, "inhibits", path):
-            item = self.inhibition(raw, f"{path}.inhibits[{i}]", molar_mass)
-            if item is None:
-                continue
-            if item.target in seen:
-                self.fail(
-                    f"{path}.inhibits[{i}].target",
-                    f'"{item.target}" is listed twice (also inhibits[{seen[item.target]}]); combine them',
-                )
-                continue
-            seen[item.target] = i
-            out.append(item)
-        return tuple(out)
-
-    def _mass_conc_needs_mw(self, q: Q | None, mw: Q | None, path: str) -> None:
-        if q is not None and mw is None and q.dimensionality != units.KINDS["molar_concentration"][0][0]:
-            self.fail(
-                path,
-                f'"{units.format_quantity(q)}" is a mass concentration; give molar_mass (e.g. "452.5 g/mol") or a molar value such as "1.8 uM"',  # noqa: E501
-            )
-
-    def perpetrator(self, raw: object, path: str = "perpetrator") -> Perpetrator | None:
-        data = self.table(raw, path, tuple(f.name for f in fields(Perpetrator)))
-        if data is None:
-            return None
-        name = self.name(data, "name", path)
-        mw = self.quantity(data, "molar_mass", path, "molar_mass")
-        dose = self.quantity(data, "dose", path, "dose", required=True)
-        cmax = self.quantity(data, "cmax", path, "concentration", required=True)
-        fu_p = self.fraction(data, "fu_plasma", path, required=True)
-        route = self.text(data, "route", path, default="oral")
-        if route not in ROUTES:
-            self.fail(f"{path}.route", f'"{route[:40]}" is not one of {", ".join(ROUTES)}')
-        interval = self.quantity(data, "interval", path, "time")
-        measured = self.flag(data, "fu_plasma_measured", path)
-        # at least 0.2: a drug kept out of red cells has Rb = 1 - haematocrit, about 0.55 (common practice)
-        rb = self.number(data, "blood_plasma_ratio", path, low=BLOOD_PLASMA_RANGE[0], high=BLOOD_PLASMA_RANGE[1], low_open=False)
-        fa_fg = self.fraction(data, "fa_fg", path)
-        fa = self.fraction(data, "fa", path)
-        ka = self.quantity(data, "ka", path, "rate")
-        half_life = self.quantity(data, "half_life", path, "time")
-        cmax_dose = self.quantity(data, "cmax_dose", path, "dose")
-        if cmax_dose is not None and dose is not None and cmax_dose.dimensionality != dose.dimensionality:
-            self.fail(f"{path}.cmax_dose", f'"{units.format_quantity(cmax_dose)}" is not in the same kind of unit as the dose')
-            cmax_dose = None
-        self._mass_conc_needs_mw(cmax, mw, f"{path}.cmax")
-        if dose is not None and mw is None and dose.dimensionality == units.KINDS["mass"][0][0]:
-            self.fail(
-                f"{path}.molar_mass",
-                'is missing; a dose in mass units needs it to give molar concentrations (e.g. "452.5 g/mol")',
-            )
-        inhibits = self.inhibitions(data, path, mw)
-        metabolites = []
-        for i, mraw in self.items(data, "metabolites", path):
-            met = self.metabolite(mraw, f"{path}.metabolites[{i}]")
-            if met is not None:
-                metabolites.append(met)
-        if not inhibits and not any(m.inhibits for m in metabolites) and "inhibits" not in data:
-            self.fail(f"{path}.inhibits", f"is missing; expected at least one [[{path}.inhibits]] table with a target")
-        if None in (dose, cmax, fu_p):
-            return None
-        assert dose is not None and cmax is not None and fu_p is not None
-        return Perpetrator(
-            name=name,
-            molar_mass=mw,
-            dose=dose,
-            route=route if route in ROUTES else "oral",
-            interval=interval,
-            cmax=cmax,
-            fu_plasma=fu_p,
-            fu_plasma_measured=measured,
-            blood_plasma_ratio=rb,
-            fa_fg=fa_fg,
-            fa=fa,
-            ka=ka,
-            inhibits=inhibits,
-            metabolites=tuple(metabolites),
-            half_life=half_life,
-            cmax_dose=cmax_dose,
-        )
-
-    def metabolite(self, raw: object, path: str) -> Metabolite | None:
-        data = self.table(raw, path, tuple(f.name for f in fields(Metabolite)))
-        if data is None:
-            return None
-        name = self.name(data, "name", path)
-        mw = self.quantity(data, "molar_mass", path, "molar_mass")
-        cmax = self.quantity(data, "cmax", path, "concentration", required=True)
-        fu_p = self.fraction(data, "fu_plasma", path, required=True)
-        measured = self.flag(data, "fu_plasma_measured", path)
-        self._mass_conc_needs_mw(cmax, mw, f"{path}.cmax")
-        inhibits = self.inhibitions(data, path, mw)
-        if cmax is None or fu_p is None:
-            return None
-        return Metabolite(name=name, molar_mass=mw, cmax=cmax, fu_plasma=fu_p, fu_plasma_measured=measured, inhibits=inhibits)
-
-    def victim(self, raw: object, path: str = "victim") -> Victim | None:
-        data = self.table(
-            raw,
-            path,
-            (*tuple(f.name for f in fields(Victim) if f.name not in ("no_effect_lower", "no_effect_upper")), "no_effect_boundary"),
-        )
-        if data is None:
-            return None
-        name = self.name(data, "name", path)
-        dose = self.quantity(data, "dose", path, "dose", required=True)
-        interval = self.quantity(data, "interval", path, "time", required=True)
-        fg = self.fraction(data, "fg", path)
-        route = self.text(data, "route", path, default="oral")
-        if route not in ROUTES:
-            self.fail(f"{path}.route", f'"{route[:40]}" is not one of {", ".join(ROUTES)}')
-        nti = self.flag(data, "narrow_therapeutic_index", path)
-        v_half_life = self.quantity(data, "half_life", path, "time")
-        v_extraction = self.fraction(data, "hepatic_extraction", path)
-        if v_extraction is not None and v_extraction >= 1.0:
-            self.fail(f"{path}.hepatic_extraction", f"{v_extraction:g} is not below 1; expected an extraction ratio in (0, 1)")
-            v_extraction = None
-        v_ka = self.quantity(data, "ka", path, "rate")
-        strengths = self.quantities(data, "strengths", path, "dose", example='["2.5 mg", "5 mg"]', like=dose)
-        scored = self.quantities(data, "scored_strengths", path, "dose", example='["10 mg"]', like=dose)
-        for i, q in enumerate(scored):
-            if not any(units.magnitude(q, units.unit_text(s)) == float(s.magnitude) for s in strengths):
-                self.fail(f"{path}.scored_strengths[{i}]", f'"{units.format_quantity(q)}" is not one of the strengths')
-        if len(strengths) + len(scored) > MAX_UNIT_SIZES:
-            self.fail(
-                f"{path}.strengths",
-                f"has {len(strengths)} strengths and {len(scored)} scored ones; the regimen search takes at most {MAX_UNIT_SIZES} "
-                "unit sizes in all (list the forms in use)",
-            )
-        intervals = self.quantities(data, "intervals", path, "time", example='["8 h", "12 h", "24 h"]')
-        max_units = None
-        if "max_units" in data:
-            mu = data["max_units"]
-            if isinstance(mu, (int, float)) and not isinstance(mu, bool) and math.isfinite(mu) and mu == int(mu) and 1 <= mu <= 8:
-                max_units = int(mu)
-            else:
-                self.fail(f"{path}.max_units", f"{_brief(mu)} is not a whole number from 1 to 8 (units per administration)")
-        pathways: list[Pathway] = []
-        seen: set[str] = set()
-        for i, praw in self.items(data, "pathways", path):
-            at = f"{path}.pathways[{i}]"
-            pdata = self.table(praw, at, ("enzyme", "fm"))
-            if pdata is None:
-                continue
-            enzyme = self.target_name(pdata, "enzyme", at)
-            fm = self.fraction(pdata, "fm", at, required=True, allow_zero=True)
-            if enzyme is not None:
-                target = resolve_target(enzyme)
-                if target is not None and target.kind != "enzyme":
-                    self.fail(
-                        f"{at}.enzyme",
-                        f'"{enzyme}" is a transporter; the mechanistic static model here takes metabolic pathways (enzymes) only',
-                    )
-                    continue
-                if enzyme in seen:
-                    self.fail(f"{at}.enzyme", f'"{enzyme}" is listed twice; give one fm per enzyme')
-                    continue
-                seen.add(enzyme)
-            if enzyme is not None and fm is not None:
-                pathways.append(Pathway(enzyme=enzyme, fm=fm))
-        total = sum(p.fm for p in pathways)
-        if total > 1.0 + 1e-9:
-            self.fail(
-                f"{path}.pathways",
-                f"fm values sum to {total:.12g}; expected a total of at most 1 (the rest is renal and other routes)",
-            )
-        phenotypes = self.phenotypes(data, path, {p.enzyme for p in pathways})
-        lower, upper = self.boundary(data, "no_effect_boundary", path) or (None, None)
-        peak_boundary = self.boundary(data, "peak_boundary", path)
-        trough_boundary = self.boundary(data, "trough_boundary", path)
-        if dose is None or interval is None:
-            return None
-        return Victim(
-            name=name,
-            dose=dose,
-            interval=interval,
-            fg=fg,
-            route=route if route in ROUTES else "oral",
-            strengths=strengths,
-            pathways=tuple(pathways),
-            no_effect_lower=lower,
-            no_effect_upper=upper,
-            narrow_therapeutic_index=nti,
-            scored_strengths=scored,
-            max_units=max_units,
-            intervals=intervals,
-            peak_boundary=peak_boundary,
-            trough_boundary=trough_boundary,
-            phenotypes=phenotypes,
-            half_life=v_half_life,
-            hepatic_extraction=v_extraction,
-            ka=v_ka,
-        )
-
-    def phenotypes(self, data: dict[str, Any], path: str, pathway_enzymes: set[str]) -> tuple[PhenotypeChoice, ...]:
-        table = load_phenotypes()
-        out: list[PhenotypeChoice] = []
-        seen: set[str] = set()
-        for i, raw in self.items(data, "phenotypes", path):
-            at = f"{path}.phenotypes[{i}]"
-            pdata = self.table(raw, at, ("enzyme", "phenotype", "activity"))
-            if pdata is None:
-                continue
-            enzyme = self.target_name(pdata, "enzyme", at)
-            if enzyme is None:
-                continue
-            if enzyme not in table:
-                self.fail(f"{at}.enzyme", f'"{enzyme}" has no phenotype table; expected one of {", ".join(table)}')
-                continue
-            if enzyme not in pathway_enzymes:
-                self.fail(f"{at}.enzyme", f'"{enzyme}" is not one of the victim\'s pathways; its phenotype would change nothing')
-                continue
-            if enzyme in seen:
-                self.fail(f"{at}.enzyme", f'"{enzyme}" is listed twice; give one phenotype (or "all") per enzyme')
-                continue
-            seen.add(enzyme)
-            if "activity" in pdata and "phenotype" in pdata:
-                self.fail(f"{at}.activity", "is given with a phenotype; give either a phenotype from the table or your own activity")
-                continue
-            if "activity" in pdata:
-                activity = self.number(pdata, "activity", at, low=0.0, high=10.0, low_open=False)
-                if activity is not None:
-                    out.append(PhenotypeChoice(enzyme=enzyme, phenotype="given", activity=activity))
-                continue
-            names = [p.name for p in table[enzyme]]
-            phenotype = self.text(pdata, "phenotype", at, required=True)
-            if phenotype not in (*names, "all"):
-                self.fail(f"{at}.phenotype", f'"{phenotype[:40]}" is not one of {", ".join(names)} or "all" (or give activity)')
-                continue
-            out.append(PhenotypeChoice(enzyme=enzyme, phenotype=phenotype))
-        return tuple(out)
-
     def physiology(self, raw: object) -> Physiology | None:
         path = "physiology"
         data = self.table(raw, path, tuple(f.name for f in fields(Physiology)))
@@ -896,122 +714,61 @@ class _Reader:
         return Turnover(enzyme=enzyme, kdeg_liver=liver, kdeg_gut=gut)
 
 
-#: the smallest strength accepted (1 ng, or 1 pmol for a molar amount): below it a dose suggestion rounds to nothing
-_MIN_STRENGTH_TEXT: Final = "1 ng (1 pmol)"
-
-
-def _too_small_strength(q: Q) -> bool:
-    unit = "mg" if q.dimensionality == units.parse("1 mg", "dose", field="unit").dimensionality else "umol"
-    return bool(units.magnitude(q, unit) < 1e-6)
-
-
-def _brief(value: object) -> str:
-    text = f'"{value}"' if isinstance(value, str) else repr(value)
-    return text if len(text) <= 60 else text[:57] + "..."
-
-
-class _KeyLines:
-    """Finds the line of a dotted key path in TOML text (best effort)."""
-
-    _HEADER = re.compile(r"^\s*(\[\[?)\s*([A-Za-z0-9_.\-]+)\s*\]\]?")
-    _KEY = re.compile(r"^\s*([A-Za-z0-9_\-]+)\s*=")
-
-    def __init__(self, text: str) -> None:
-        self._map: dict[str, int] = {}
-        counts: dict[str, int] = {}
-        table = ""
-        for number, line in enumerate(text.splitlines(), start=1):
-            header = self._HEADER.match(line)
-            if header:
-                name = header.group(2)
-                if header.group(1) == "[[":
-                    parent, _, leaf = name.rpartition(".")
-                    parent_path = self._indexed(parent, counts)
-                    base = f"{parent_path}.{leaf}" if parent_path else leaf
-                    counts[name] = counts.get(name, -1) + 1
-                    table = f"{base}[{counts[name]}]"
-                else:
-                    table = self._indexed(name, counts)
-                self._map.setdefault(table, number)
-                continue
-            key = self._KEY.match(line)
-            if key:
-                full = f"{table}.{key.group(1)}" if table else key.group(1)
-                self._map.setdefault(full, number)
-
-    @staticmethod
-    def _indexed(name: str, counts: dict[str, int]) -> str:
-        """Rewrite ``a.b`` to ``a.b[k]`` for parts that are arrays of tables."""
-        if not name:
-            return ""
-        parts = name.split(".")
-        out = []
-        for i in range(len(parts)):
-            prefix = ".".join(parts[: i + 1])
-            out.append(f"{parts[i]}[{counts[prefix]}]" if prefix in counts else parts[i])
-        return ".".join(out)
-
-    def find(self, path: str) -> int | None:
-        probe = path
-        while probe:
-            if probe in self._map:
-                return self._map[probe]
-            probe = re.sub(r"(\[\d+\]|\.[^.\[]*)$", "", probe) if ("." in probe or "[" in probe) else ""
-        return None
-
-
 # --------------------------------------------------------------------------- saving
 
 
-def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
-    """Plain data (strings, numbers, lists, tables) that :func:`scenario_from_dict` reads back."""
+def _put(out: dict[str, Any], key: str, value: Any) -> None:
+    """``out[key]`` as file data (a quantity as its text), unless ``value`` is None."""
+    if value is None:
+        return
+    if isinstance(value, pint.Quantity):
+        out[key] = units.format_quantity(value)
+    elif isinstance(value, tuple):
+        out[key] = [units.format_quantity(v) if isinstance(v, pint.Quantity) else v for v in value]
+    else:
+        out[key] = value
 
-    def put(out: dict[str, Any], key: str, value: Any) -> None:
-        if value is None:
-            return
-        if isinstance(value, pint.Quantity):
-            out[key] = units.format_quantity(value)
-        elif isinstance(value, tuple):
-            out[key] = [units.format_quantity(v) if isinstance(v, pint.Quantity) else v for v in value]
-        else:
-            out[key] = value
 
-    def inhibition(item: Inhibition) -> dict[str, Any]:
-        out: dict[str, Any] = {"target": item.target}
-        for f in fields(Inhibition)[1:]:
-            value = getattr(item, f.name)
-            if f.name == "mechanism" and value == "competitive" and item.ic50 is None:
-                continue
-            if f.name == "origin" and not value:
-                continue
-            put(out, f.name, value)
-        return out
+def _inhibition_dict(item: Inhibition) -> dict[str, Any]:
+    out: dict[str, Any] = {"target": item.target}
+    for f in fields(Inhibition)[1:]:
+        value = getattr(item, f.name)
+        if f.name == "mechanism" and value == "competitive" and item.ic50 is None:
+            continue
+        if f.name == "origin" and not value:
+            continue
+        _put(out, f.name, value)
+    return out
 
-    p = scenario.perpetrator
+
+def _perpetrator_dict(p: Perpetrator) -> dict[str, Any]:
     perp: dict[str, Any] = {"name": p.name}
     for key in ("molar_mass", "dose", "route", "interval", "cmax", "fu_plasma"):
-        put(perp, key, getattr(p, key))
+        _put(perp, key, getattr(p, key))
     if p.fu_plasma_measured:
         perp["fu_plasma_measured"] = True
     for key in ("blood_plasma_ratio", "fa_fg", "fa", "ka", "half_life", "cmax_dose"):
-        put(perp, key, getattr(p, key))
-    perp["inhibits"] = [inhibition(i) for i in p.inhibits]
+        _put(perp, key, getattr(p, key))
+    perp["inhibits"] = [_inhibition_dict(i) for i in p.inhibits]
     if p.metabolites:
         mets = []
         for m in p.metabolites:
             md: dict[str, Any] = {"name": m.name}
-            put(md, "molar_mass", m.molar_mass)
-            put(md, "cmax", m.cmax)
+            _put(md, "molar_mass", m.molar_mass)
+            _put(md, "cmax", m.cmax)
             md["fu_plasma"] = m.fu_plasma
             if m.fu_plasma_measured:
                 md["fu_plasma_measured"] = True
-            md["inhibits"] = [inhibition(i) for i in m.inhibits]
+            md["inhibits"] = [_inhibition_dict(i) for i in m.inhibits]
             mets.append(md)
         perp["metabolites"] = mets
-    v = scenario.victim
+    return perp
+
+
+def _victim_dict(v: Victim) -> dict[str, Any]:
     vic: dict[str, Any] = {"name": v.name}
     for key in ("dose", "interval", "fg", "route"):
-        put(vic, key, getattr(v, key))
+        _put(vic, key, getattr(v, key))
     if v.strengths:
         vic["strengths"] = [units.format_quantity(s) for s in v.strengths]
     if v.no_effect_lower is not None and v.no_effect_upper is not None:
@@ -1033,35 +790,42 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
             for c in v.phenotypes
         ]
     for key in ("half_life", "hepatic_extraction", "ka"):
-        put(vic, key, getattr(v, key))
+        _put(vic, key, getattr(v, key))
     vic["pathways"] = [{"enzyme": pw.enzyme, "fm": pw.fm} for pw in v.pathways]
+    return vic
+
+
+def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
+    """Plain data (strings, numbers, lists, tables) that :func:`scenario_from_dict` reads back."""
     out: dict[str, Any] = {"title": scenario.title}
     if scenario.invented:
         out["invented"] = True
-    put(out, "rules", scenario.rules)
+    _put(out, "rules", scenario.rules)
     if scenario.notes:
         out["notes"] = scenario.notes
-    out[scenario.spelling[0]] = perp
-    out[scenario.spelling[1]] = vic
+    out[scenario.spelling[0]] = _perpetrator_dict(scenario.perpetrator)
+    out[scenario.spelling[1]] = _victim_dict(scenario.victim)
     phys: dict[str, Any] = {}
     for f in fields(Physiology):
-        put(phys, f.name, getattr(scenario.physiology, f.name))
+        _put(phys, f.name, getattr(scenario.physiology, f.name))
     if phys:
         out["physiology"] = phys
     if scenario.turnover:
         turn = []
         for t in scenario.turnover:
             td: dict[str, Any] = {"enzyme": t.enzyme}
-            put(td, "kdeg_liver", t.kdeg_liver)
-            put(td, "kdeg_gut", t.kdeg_gut)
+            _put(td, "kdeg_liver", t.kdeg_liver)
+            _put(td, "kdeg_gut", t.kdeg_gut)
             turn.append(td)
         out["turnover"] = turn
     return out
 
 
 def dumps_scenario(scenario: Scenario) -> str:
-    """The scenario as TOML text."""
-    return _dump_toml(scenario_to_dict(scenario))
+    """The scenario as TOML text (written by tomlkit)."""
+    import tomlkit
+
+    return tomlkit.dumps(scenario_to_dict(scenario))
 
 
 def save_scenario(scenario: Scenario, path: str | Path, *, force: bool = False) -> None:
@@ -1261,47 +1025,3 @@ def write_text_atomic(path: Path, text: str | bytes, *, field: str = "path", for
     from .files import write_file
 
     write_file(path, text, field=field, force=force)
-
-
-def _toml_value(value: Any) -> str:
-    if isinstance(value, bool):
-        return "true" if value else "false"
-    if isinstance(value, int):
-        return str(value)
-    if isinstance(value, float):
-        return repr(value)
-    if isinstance(value, str):
-        escaped = value.replace("\\", "\\\\").replace('"', '\\"')
-        escaped = escaped.replace("\n", "\\n").replace("\t", "\\t").replace("\r", "\\r")
-        escaped = "".join(c if ord(c) >= 0x20 and ord(c) != 0x7F else f"\\u{ord(c):04x}" for c in escaped)
-        return f'"{escaped}"'
-    if isinstance(value, list):
-        return "[" + ", ".join(_toml_value(v) for v in value) + "]"
-    raise TypeError(f"cannot write {type(value).__name__} to TOML")  # internal: scenario_to_dict emits only these
-
-
-def _dump_toml(data: dict[str, Any]) -> str:
-    lines: list[str] = []
-
-    def emit(table: dict[str, Any], prefix: str) -> None:
-        scalars = {k: v for k, v in table.items() if not isinstance(v, dict) and not _is_table_list(v)}
-        for key, value in scalars.items():
-            lines.append(f"{key} = {_toml_value(value)}")
-        for key, value in table.items():
-            name = f"{prefix}.{key}" if prefix else key
-            if isinstance(value, dict):
-                lines.append("")
-                lines.append(f"[{name}]")
-                emit(value, name)
-            elif _is_table_list(value):
-                for item in value:
-                    lines.append("")
-                    lines.append(f"[[{name}]]")
-                    emit(item, name)
-
-    emit(data, "")
-    return "\n".join(lines).lstrip("\n") + "\n"
-
-
-def _is_table_list(value: Any) -> bool:
-    return isinstance(value, list) and bool(value) and all(isinstance(v, dict) for v in value)

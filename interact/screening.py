@@ -104,6 +104,34 @@ def _applies(crit: Criterion, c: Constant, oral: bool) -> bool:
     return c.emax is not None and c.ec50_u_um is not None
 
 
+def _contribution(crit: Criterion, c: Constant, x: float) -> Contribution:
+    """One species' term of a criterion at concentration ``x`` (uM, the multiplier applied)."""
+    if crit.form in ("one-plus-sum", "sum"):
+        assert c.ki_u_um is not None
+        return Contribution(species=c.species, concentration_um=x, constant_um=c.ki_u_um, term=x / c.ki_u_um)
+    if crit.form == "tdi":
+        assert c.kinact_per_h is not None and c.ki_inact_u_um is not None
+        term = c.kinact_per_h * x / (c.ki_inact_u_um + x)
+        return Contribution(species=c.species, concentration_um=x, constant_um=c.ki_inact_u_um, term=term)
+    assert c.emax is not None and c.ec50_u_um is not None
+    d = 1.0 if crit.form == "fold-change" else c.calibration
+    return Contribution(species=c.species, concentration_um=x, constant_um=c.ec50_u_um, term=d * c.emax * x / (c.ec50_u_um + x))
+
+
+def _criterion_value(form: str, total: float, kdeg: float | None) -> float:
+    """The criterion's value from the sum of its terms (``kdeg`` in 1/h for the time-dependent form)."""
+    if form == "one-plus-sum":
+        return 1.0 + total
+    if form == "sum":
+        return total
+    if form == "tdi":
+        assert kdeg is not None
+        return float(inactivation_ratio(total, kdeg))
+    if form == "fold-change":
+        return float(fold_change(total))
+    return float(induction_ratio(total))
+
+
 def screen(
     rules: RuleSet,
     constants: tuple[Constant, ...],
@@ -124,48 +152,13 @@ def screen(
                 conc = _concentration(species[c.species_index], crit.concentration)
                 if conc is None:
                     continue
-                x = mult * conc
-                if crit.form in ("one-plus-sum", "sum"):
-                    assert c.ki_u_um is not None
-                    parts.append(Contribution(species=c.species, concentration_um=x, constant_um=c.ki_u_um, term=x / c.ki_u_um))
-                elif crit.form == "tdi":
-                    assert c.kinact_per_h is not None and c.ki_inact_u_um is not None
-                    parts.append(
-                        Contribution(
-                            species=c.species,
-                            concentration_um=x,
-                            constant_um=c.ki_inact_u_um,
-                            term=c.kinact_per_h * x / (c.ki_inact_u_um + x),
-                        )
-                    )
-                else:
-                    assert c.emax is not None and c.ec50_u_um is not None
-                    d = 1.0 if crit.form == "fold-change" else c.calibration
-                    parts.append(
-                        Contribution(
-                            species=c.species,
-                            concentration_um=x,
-                            constant_um=c.ec50_u_um,
-                            term=d * c.emax * x / (c.ec50_u_um + x),
-                        )
-                    )
+                parts.append(_contribution(crit, c, mult * conc))
             if not parts:
                 continue
-            total = sum(p.term for p in parts)
-            kdeg = None
-            if crit.form == "one-plus-sum":
-                value = 1.0 + total
-            elif crit.form == "sum":
-                value = total
-            elif crit.form == "tdi":
-                kdeg = kdeg_liver.get(target)
-                if kdeg is None:
-                    continue
-                value = float(inactivation_ratio(total, kdeg))
-            elif crit.form == "fold-change":
-                value = float(fold_change(total))
-            else:
-                value = float(induction_ratio(total))
+            kdeg = kdeg_liver.get(target) if crit.form == "tdi" else None
+            if crit.form == "tdi" and kdeg is None:
+                continue
+            value = _criterion_value(crit.form, sum(p.term for p in parts), kdeg)
             results.append(
                 ScreenResult(
                     criterion=crit.id,

@@ -45,14 +45,16 @@ import numpy as np
 import pint
 from numpy.typing import NDArray
 
+from . import model as _model
 from . import units
 from .arrays import band_codes, band_labels
-from .assessment import Assessment, _kdeg
+from .assessment import Assessment
+from .constants import Constant, kdeg_per_h
 from .dosing import ACTIONS, Regimen, choose_regimens, feasible_fraction, regimen_label
 from .errors import InputError
 from .exposure import enterocyte_um, unbound_cmax_um, unbound_inlet_um
 from .kinetics.conversion import ki_from_ic50
-from .prediction import gut_ratio, inactivation_term, induction_term, liver_ratio, reversible_term
+from .prediction import liver_ratio, reversible_term
 from .scenario import INTERVAL_KEYS, Inhibition
 from .tables import load_classes, resolve_target
 
@@ -319,22 +321,47 @@ class ScenarioModel:
     def __init__(self, assessment: Assessment) -> None:
         a = assessment
         self.assessment = a
-        s = a.scenario
-        p, v = s.perpetrator, s.victim
         rules = a.rules
-        override = s.physiology.fu_plasma_floor
+        override = a.scenario.physiology.fu_plasma_floor
         self._floor = float(rules.fu_plasma_floor.value) if override is None else float(override)
         self._exempt = bool(rules.fu_plasma_floor_measured_exempt.value)
-        self._oral = p.route == "oral"
+        self._oral = a.scenario.perpetrator.route == "oral"
+        self._input_list: list[Input] = []
+        self._species = self._exposure_inputs()
+        self._consts = [
+            self._constant_inputs(prefix, item, mw, c)
+            for (prefix, item, mw), c in zip(_inhibition_items(a.scenario), a.constants, strict=True)
+        ]
+        self._victim_inputs()
+        # inputs the model actually uses (a constant on a target the victim does not depend on has no effect)
+        relevant_targets = {pw.enzyme for pw in a.scenario.victim.pathways} | ({self._gut_enzyme} if self._gut_enzyme else set())
+        inputs = self._input_list
+        self._inputs = tuple(inputs)
+        self._by_path = {i.path: i for i in inputs}
+        self._point: dict[str, float] = {i.path: i.value for i in inputs}
+        self._relevant = tuple(
+            i for i in inputs if not any(i.path.startswith(c.prefix + ".") and c.target not in relevant_targets for c in self._consts)
+        )
+        self._targets: dict[str, int] = {}
+        for name in (
+            *(e for e, _ in self._pathways),
+            *((self._gut_enzyme,) if self._gut_enzyme else ()),
+            *(c.target for c in self._consts),
+        ):
+            self._targets.setdefault(name, len(self._targets))
+
+    def _add(self, path: str, label: str, unit: str, kind: str, value: float | None, mw: pint.Quantity | None = None) -> str:
+        assert value is not None
+        self._input_list.append(Input(path=path, label=label, unit=unit, kind=kind, value=float(value), molar_mass=mw))
+        return path
+
+    def _exposure_inputs(self) -> list[_Species]:
+        """The perpetrator's exposure inputs: Cmax and fu,p of each species; for an oral perpetrator its absorption and flows."""
+        a, add = self.assessment, self._add
+        p = a.scenario.perpetrator
         settings = {st.name: st for st in a.settings}
-        inputs: list[Input] = []
-
-        def add(path: str, label: str, unit: str, kind: str, value: float, mw: pint.Quantity | None = None) -> str:
-            inputs.append(Input(path=path, label=label, unit=unit, kind=kind, value=float(value), molar_mass=mw))
-            return path
-
         parent = a.species[0]
-        self._species = [
+        species = [
             _Species(
                 cmax=add("perpetrator.cmax", f"Cmax of {p.name}", "uM", "concentration", parent.cmax_um, p.molar_mass),
                 fu=add("perpetrator.fu_plasma", f"fu,p of {p.name}", "", "fraction", p.fu_plasma),
@@ -344,7 +371,7 @@ class ScenarioModel:
         ]
         for j, m in enumerate(p.metabolites):
             sp = a.species[j + 1]
-            self._species.append(
+            species.append(
                 _Species(
                     cmax=add(f"perpetrator.metabolites[{j}].cmax", f"Cmax of {m.name}", "uM", "concentration", sp.cmax_um, m.molar_mass),
                     fu=add(f"perpetrator.metabolites[{j}].fu_plasma", f"fu,p of {m.name}", "", "fraction", m.fu_plasma),
@@ -357,75 +384,67 @@ class ScenarioModel:
             add("perpetrator.ka", "Perpetrator absorption rate ka", "1/min", "rate", settings["absorption_rate"].value)
             add("perpetrator.fa_fg", "Perpetrator Fa x Fg", "", "fraction", settings["fa_fg"].value)
             add("perpetrator.fa", "Perpetrator Fa", "", "fraction", settings["fraction_absorbed"].value)
-            add(
-                "perpetrator.blood_plasma_ratio",
-                "Perpetrator blood-to-plasma ratio Rb",
-                "",
-                "number",
-                settings["blood_plasma_ratio"].value,
-            )
+            rb = settings["blood_plasma_ratio"].value
+            add("perpetrator.blood_plasma_ratio", "Perpetrator blood-to-plasma ratio Rb", "", "number", rb)
             add("physiology.hepatic_blood_flow", "Hepatic blood flow Qh", "L/min", "flow", settings["hepatic_blood_flow"].value)
-            add(
-                "physiology.enterocytic_blood_flow",
-                "Enterocytic blood flow Qent",
-                "L/min",
-                "flow",
-                settings["enterocytic_blood_flow"].value,
-            )
+            qent = settings["enterocytic_blood_flow"].value
+            add("physiology.enterocytic_blood_flow", "Enterocytic blood flow Qent", "L/min", "flow", qent)
             add("physiology.fu_gut", "Unbound fraction in enterocytes fu,gut", "", "fraction", settings["fu_gut"].value)
+        return species
 
-        pathway_enzymes = {pw.enzyme for pw in v.pathways}
-        self._consts: list[_Const] = []
-        for (prefix, item, mw), c in zip(_inhibition_items(s), a.constants, strict=True):
-            who = f"{c.species} on {c.target}"
-            ki_path: str | None = None
-            route = None
-            if c.ki_um is not None:
-                if item.ki is not None:
-                    ki_path = add(f"{prefix}.ki", f"Ki of {who}", "uM", "concentration", c.ki_um, mw)
-                else:
-                    assert item.ic50 is not None
-                    ic50 = units.concentration_um(item.ic50, mw, field=f"{prefix}.ic50")
-                    ki_path = add(f"{prefix}.ic50", f"IC50 of {who}", "uM", "concentration", ic50, mw)
-                    target = resolve_target(c.target)
-                    if target is not None and target.kind != "transporter" and item.mechanism != "noncompetitive":
-                        sub = (
-                            units.concentration_um(item.substrate_conc, mw, field=f"{prefix}.substrate_conc")
-                            if item.substrate_conc
-                            else None
-                        )
-                        km = units.concentration_um(item.km, mw, field=f"{prefix}.km") if item.km else None
-                        route = (item.mechanism, sub, km, item.alpha)
-            fu_path = add(f"{prefix}.fu_inc", f"fu,inc of {who}", "", "fraction", c.fu_inc)
-            own_ki_inact = item.fu_inc_ki_inact is not None and c.ki_inact_um is not None
-            own_ec50 = item.fu_inc_ec50 is not None and c.ec50_um is not None
-            self._consts.append(
-                _Const(
-                    prefix=prefix,
-                    species=c.species,
-                    species_index=c.species_index,
-                    target=c.target,
-                    ki=ki_path,
-                    ic50_route=route,
-                    fu_inc=fu_path,
-                    kinact=add(f"{prefix}.kinact", f"kinact of {who}", "1/h", "rate", c.kinact_per_h)
-                    if c.kinact_per_h is not None
-                    else None,
-                    ki_inact=add(f"{prefix}.ki_inact", f"KI of {who}", "uM", "concentration", c.ki_inact_um, mw)
-                    if c.ki_inact_um is not None
-                    else None,
-                    ki_inact_fu=add(f"{prefix}.fu_inc_ki_inact", f"binding of KI of {who}", "", "fraction", c.ki_inact_fu)
-                    if own_ki_inact
-                    else fu_path,
-                    emax=add(f"{prefix}.emax", f"Emax of {who}", "", "number", c.emax) if c.emax is not None else None,
-                    ec50=add(f"{prefix}.ec50", f"EC50 of {who}", "uM", "concentration", c.ec50_um, mw) if c.ec50_um is not None else None,
-                    ec50_fu=add(f"{prefix}.fu_inc_ec50", f"binding of EC50 of {who}", "", "fraction", c.ec50_fu) if own_ec50 else fu_path,
-                    calibration=add(f"{prefix}.calibration", f"Induction calibration d of {who}", "", "number", c.calibration)
-                    if c.emax is not None
-                    else f"{prefix}.calibration",
-                )
-            )
+    def _ki_input(self, prefix: str, item: Inhibition, mw: pint.Quantity | None, c: Constant) -> tuple[str | None, Any]:
+        """The path of the Ki (or IC50) input and, for an IC50, the Cheng-Prusoff route (mechanism, S, Km, alpha)."""
+        who = f"{c.species} on {c.target}"
+        if c.ki_um is None:
+            return None, None
+        if item.ki is not None:
+            return self._add(f"{prefix}.ki", f"Ki of {who}", "uM", "concentration", c.ki_um, mw), None
+        assert item.ic50 is not None
+        ic50 = units.concentration_um(item.ic50, mw, field=f"{prefix}.ic50")
+        path = self._add(f"{prefix}.ic50", f"IC50 of {who}", "uM", "concentration", ic50, mw)
+        target = resolve_target(c.target)
+        if target is None or target.kind == "transporter" or item.mechanism == "noncompetitive":
+            return path, None
+        sub = units.concentration_um(item.substrate_conc, mw, field=f"{prefix}.substrate_conc") if item.substrate_conc else None
+        km = units.concentration_um(item.km, mw, field=f"{prefix}.km") if item.km else None
+        return path, (item.mechanism, sub, km, item.alpha)
 
+    def _constant_inputs(self, prefix: str, item: Inhibition, mw: pint.Quantity | None, c: Constant) -> _Const:
+        """The inputs of one constant (Ki or IC50, fu,inc, kinact, KI, Emax, EC50, their own bindings, d)."""
+        add = self._add
+        who = f"{c.species} on {c.target}"
+        ki_path, route = self._ki_input(prefix, item, mw, c)
+        fu_path = add(f"{prefix}.fu_inc", f"fu,inc of {who}", "", "fraction", c.fu_inc)
+        own_ki_inact = item.fu_inc_ki_inact is not None and c.ki_inact_um is not None
+        own_ec50 = item.fu_inc_ec50 is not None and c.ec50_um is not None
+        tdi, ind = c.kinact_per_h is not None, c.emax is not None
+        return _Const(
+            prefix=prefix,
+            species=c.species,
+            species_index=c.species_index,
+            target=c.target,
+            ki=ki_path,
+            ic50_route=route,
+            fu_inc=fu_path,
+            kinact=add(f"{prefix}.kinact", f"kinact of {who}", "1/h", "rate", c.kinact_per_h) if tdi else None,
+            ki_inact=add(f"{prefix}.ki_inact", f"KI of {who}", "uM", "concentration", c.ki_inact_um, mw)
+            if c.ki_inact_um is not None
+            else None,
+            ki_inact_fu=add(f"{prefix}.fu_inc_ki_inact", f"binding of KI of {who}", "", "fraction", c.ki_inact_fu)
+            if own_ki_inact
+            else fu_path,
+            emax=add(f"{prefix}.emax", f"Emax of {who}", "", "number", c.emax) if ind else None,
+            ec50=add(f"{prefix}.ec50", f"EC50 of {who}", "uM", "concentration", c.ec50_um, mw) if c.ec50_um is not None else None,
+            ec50_fu=add(f"{prefix}.fu_inc_ec50", f"binding of EC50 of {who}", "", "fraction", c.ec50_fu) if own_ec50 else fu_path,
+            calibration=add(f"{prefix}.calibration", f"Induction calibration d of {who}", "", "number", c.calibration)
+            if ind
+            else f"{prefix}.calibration",
+        )
+
+    def _victim_inputs(self) -> None:
+        """The victim's Fg (when the gut wall is modelled) and fm per pathway; kdeg of each inactivated enzyme."""
+        a, add = self.assessment, self._add
+        v = a.scenario.victim
         self._gut_enzyme = a.prediction.gut_enzyme
         if self._gut_enzyme is not None:
             add("victim.fg", f"Fg of {v.name}", "", "fraction", a.prediction.fg_used)
@@ -433,21 +452,13 @@ class ScenarioModel:
             (pw.enzyme, add(f"victim.pathways[{k}].fm", f"fm {pw.enzyme} of {v.name}", "", "fraction", pw.fm))
             for k, pw in enumerate(v.pathways)
         ]
-        kdeg, _ = _kdeg(s, a.constants)
+        kdeg, _ = kdeg_per_h(a.scenario, a.constants)
         self._kdeg: dict[str, tuple[str | None, str | None]] = {}
         for enzyme, (k_liver, k_gut) in kdeg.items():
             self._kdeg[enzyme] = (
                 add(f"turnover.{enzyme}.kdeg_liver", f"kdeg {enzyme} (liver)", "1/h", "rate", k_liver) if k_liver is not None else None,
                 add(f"turnover.{enzyme}.kdeg_gut", f"kdeg {enzyme} (gut)", "1/h", "rate", k_gut) if k_gut is not None else None,
             )
-        # inputs the model actually uses (a constant on a target the victim does not depend on has no effect)
-        relevant_targets = pathway_enzymes | ({self._gut_enzyme} if self._gut_enzyme else set())
-        self._inputs = tuple(inputs)
-        self._by_path = {i.path: i for i in inputs}
-        self._point: dict[str, float] = {i.path: i.value for i in inputs}
-        self._relevant = tuple(
-            i for i in inputs if not any(i.path.startswith(c.prefix + ".") and c.target not in relevant_targets for c in self._consts)
-        )
 
     # -- what can vary
     def inputs(self, relevant_only: bool = False) -> tuple[Input, ...]:
@@ -465,17 +476,36 @@ class ScenarioModel:
     def point(self, path: str) -> float:
         return self._point[path]
 
-    # -- the equations
+    # -- the equations: interact.model on the arrays of the inputs
     def evaluate(self, values: Mapping[str, Any] | None = None) -> Ratios:
         """AUC ratios with ``values`` (path -> array or float, canonical units) replacing point values.
 
-        Arrays broadcast against each other; the result has their common shape.
+        Arrays broadcast against each other; the result has their common shape.  The arithmetic is
+        :func:`interact.model.evaluate`, the one model :func:`interact.assess` evaluates on floats.
         """
         vals = values or {}
 
         def get(path: str) -> Any:
             return vals[path] if path in vals else self._point[path]
 
+        liver_conc, gut_conc = self._concentrations(get)
+        t = self._targets
+        pathways = [_model.Pathway(target=t[enzyme], organ="liver", fraction=get(path)) for enzyme, path in self._pathways]
+        if self._gut_enzyme is not None:
+            pathways.insert(0, _model.Pathway(target=t[self._gut_enzyme], organ="gut", fraction=get("victim.fg")))
+        kdeg = {
+            (t[enzyme], site): get(path)
+            for enzyme, paths in self._kdeg.items()
+            if enzyme in t
+            for site, path in zip(("liver", "gut"), paths, strict=True)
+            if path is not None
+        }
+        r = _model.evaluate(self._acting(get), pathways, {"liver": liver_conc, "gut": gut_conc}, kdeg)
+        gut, liver = np.broadcast_arrays(np.asarray(r.gut, dtype=float), np.asarray(r.liver, dtype=float))
+        return Ratios(gut=gut, liver=liver, total=gut * liver)
+
+    def _concentrations(self, get: Callable[[str], Any]) -> tuple[list[Any], list[Any]]:
+        """Unbound concentrations (uM) of each species at the hepatic inlet and in the enterocytes (:mod:`interact.exposure`)."""
         liver_conc: list[Any] = []
         gut_conc: list[Any] = []
         for sp in self._species:
@@ -485,74 +515,42 @@ class ScenarioModel:
                 fu = np.where(np.less(fu, self._floor), self._floor, fu)  # fu,p floor, as interact.exposure.floored_fu
             if sp.parent and self._oral:
                 dose, ka = get("perpetrator.dose"), get("perpetrator.ka")
-                liver_conc.append(
-                    unbound_inlet_um(
-                        cmax,
-                        fu,
-                        dose,
-                        get("perpetrator.fa_fg"),
-                        ka,
-                        get("physiology.hepatic_blood_flow"),
-                        get("perpetrator.blood_plasma_ratio"),
-                    )
-                )
-                gut_conc.append(
-                    enterocyte_um(dose, get("perpetrator.fa"), ka, get("physiology.enterocytic_blood_flow"), get("physiology.fu_gut"))
-                )
+                qh, rb = get("physiology.hepatic_blood_flow"), get("perpetrator.blood_plasma_ratio")
+                liver_conc.append(unbound_inlet_um(cmax, fu, dose, get("perpetrator.fa_fg"), ka, qh, rb))
+                qent, fu_gut = get("physiology.enterocytic_blood_flow"), get("physiology.fu_gut")
+                gut_conc.append(enterocyte_um(dose, get("perpetrator.fa"), ka, qent, fu_gut))
             else:
                 imax_u = unbound_cmax_um(cmax, fu)
                 liver_conc.append(imax_u)
                 gut_conc.append(imax_u)
-        ki_u: list[Any] = []
+        return liver_conc, gut_conc
+
+    def _acting(self, get: Callable[[str], Any]) -> list[_model.Acting]:
+        """Unbound constants of the perpetrator (Ki,u = Ki x fu,inc after Cheng-Prusoff for an IC50; KI,u; EC50,u)."""
+        out = []
         for c in self._consts:
-            if c.ki is None:
-                ki_u.append(None)
-                continue
-            ki = get(c.ki)
-            if c.ic50_route is not None:
-                mech, sub, km, alpha = c.ic50_route
-                ki = ki_from_ic50(ki, mech, sub, km, alpha)
-            ki_u.append(np.multiply(ki, get(c.fu_inc)))
-
-        def activity(enzyme: str, concs: list[Any], kdeg_path: str | None) -> Any:
-            ratio: Any = 0.0
-            kobs: Any = 0.0
-            effect: Any = 0.0
-            tdi = False
-            for c, k_u in zip(self._consts, ki_u, strict=True):
-                if c.target != enzyme:
-                    continue
-                conc = concs[c.species_index]
-                if k_u is not None:
-                    ratio = ratio + conc / k_u
-                if c.kinact is not None and c.ki_inact is not None:
-                    kobs = kobs + get(c.kinact) * conc / (get(c.ki_inact) * get(c.ki_inact_fu) + conc)
-                    tdi = True
-                if c.emax is not None and c.ec50 is not None:
-                    effect = effect + get(c.calibration) * get(c.emax) * conc / (get(c.ec50) * get(c.ec50_fu) + conc)
-            act = reversible_term(ratio)
-            if tdi and kdeg_path is not None:
-                act = act * np.where(np.equal(kobs, 0.0), 1.0, inactivation_term(kobs, get(kdeg_path)))
-            if not (isinstance(effect, float) and effect == 0.0):
-                act = act * induction_term(effect)
-            return act  # reversible x inactivation x induction; multiplying by an exact 1 is skipped (it changes nothing)
-
-        fms = [get(path) for _, path in self._pathways]
-        acts = [activity(enzyme, liver_conc, self._kdeg.get(enzyme, (None, None))[0]) for enzyme, _ in self._pathways]
-        # AUCR_liver = 1 / (sum fm x activity + 1 - sum fm)  (interact.prediction.liver_ratio), summed term by
-        # term in pathway order as predict() does, so that point values give its result to the last bit
-        weighted: Any = 0.0
-        total_fm: Any = 0.0
-        for f, act in zip(fms, acts, strict=True):
-            weighted = weighted + f * act
-            total_fm = total_fm + f
-        liver = 1.0 / (weighted + (1.0 - total_fm))  # (1 - sum fm) first: exact when fm = 1
-        if self._gut_enzyme is not None:
-            gut = gut_ratio(get("victim.fg"), activity(self._gut_enzyme, gut_conc, self._kdeg.get(self._gut_enzyme, (None, None))[1]))
-        else:
-            gut = np.asarray(1.0)
-        gut, liver = np.broadcast_arrays(np.asarray(gut, dtype=float), np.asarray(liver, dtype=float))
-        return Ratios(gut=gut, liver=liver, total=gut * liver)
+            ki_u = None
+            if c.ki is not None:
+                ki = get(c.ki)
+                if c.ic50_route is not None:
+                    mech, sub, km, alpha = c.ic50_route
+                    ki = ki_from_ic50(ki, mech, sub, km, alpha)
+                ki_u = np.multiply(ki, get(c.fu_inc))
+            tdi = c.kinact is not None and c.ki_inact is not None
+            ind = c.emax is not None and c.ec50 is not None
+            out.append(
+                _model.Acting(
+                    target=self._targets[c.target],
+                    species=c.species_index,
+                    ki_u=ki_u,
+                    kinact=get(c.kinact) if tdi and c.kinact else None,
+                    ki_inact_u=get(c.ki_inact) * get(c.ki_inact_fu) if tdi and c.ki_inact else None,
+                    emax=get(c.emax) if ind and c.emax else None,
+                    ec50_u=get(c.ec50) * get(c.ec50_fu) if ind and c.ec50 else None,
+                    calibration=get(c.calibration) if ind else 1.0,
+                )
+            )
+        return out
 
     def actions(self, total: NDArray[np.float64], gut: NDArray[np.float64] | None = None) -> NDArray[np.int8]:
         """Suggested-action codes (into :data:`interact.dosing.ACTIONS`) for AUC ratios ``total`` with gut parts ``gut``."""

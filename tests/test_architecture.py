@@ -69,3 +69,46 @@ def test_cold_path_does_not_import_scipy_or_textual() -> None:
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout.strip()
     assert out == "", f"imported on the cold path: {out}"
+
+
+#: the longest function the core may hold, in lines (def to last line); common practice for a function one reads at once
+MAX_FUNCTION_LINES = 100
+
+#: known long functions, each being split by another helper at the time of writing; the list may only shrink (an entry
+#: that is gone or short again fails the test below until it is removed).  The lead empties it after merging.
+LONG_FUNCTIONS_BEING_SPLIT = {
+    # the fitting engine, being split into named steps
+    "kinetics/engine.py:fit_curve",
+    "kinetics/engine.py:_lm",
+    "kinetics/fitting.py:fit_inhibition",
+    "kinetics/fitting.py:_verdict",
+}
+
+
+def _function_lengths() -> dict[str, int]:
+    """``path:Qualified.name`` -> lines, for every function and method in the core (nested ones too)."""
+    out: dict[str, int] = {}
+
+    def visit(node: ast.AST, prefix: str, rel: str) -> None:
+        for child in ast.iter_child_nodes(node):
+            if isinstance(child, (ast.FunctionDef, ast.AsyncFunctionDef, ast.ClassDef)):
+                name = f"{prefix}{child.name}"
+                if not isinstance(child, ast.ClassDef):
+                    out[f"{rel}:{name}"] = (child.end_lineno or child.lineno) - child.lineno + 1
+                visit(child, f"{name}.", rel)
+            else:
+                visit(child, prefix, rel)
+
+    for path in _core_files():
+        visit(ast.parse(path.read_text(encoding="utf-8")), "", path.relative_to(PACKAGE).as_posix())
+    return out
+
+
+def test_no_core_function_is_longer_than_100_lines() -> None:
+    lengths = _function_lengths()
+    assert len(lengths) > 500  # the walk found the core's functions
+    long = {name: n for name, n in lengths.items() if n > MAX_FUNCTION_LINES}
+    new = {name: n for name, n in long.items() if name not in LONG_FUNCTIONS_BEING_SPLIT}
+    assert not new, f"functions over {MAX_FUNCTION_LINES} lines in the core (split them into named pieces): {new}"
+    done = sorted(LONG_FUNCTIONS_BEING_SPLIT - set(long))
+    assert not done, f"no longer long (or gone): remove from LONG_FUNCTIONS_BEING_SPLIT: {done}"

@@ -19,7 +19,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from interact.errors import ScenarioError
-from interact.scenario import _KeyLines, demo_path, edit_scenario_text, scenario_from_dict
+from interact.scenario import demo_path, edit_scenario_text, scenario_from_dict
+from interact.scenario_fields import KeyLines
 from interact.tui.form import get_path, key_of, set_path
 
 HANDWRITTEN = Path(__file__).resolve().parent / "data" / "handwritten_scenario.toml"
@@ -80,7 +81,7 @@ def test_only_edited_lines_change(which: str, edits: list[Any], removals: list[A
     assert tomllib.loads(out) == edited  # reads back as exactly the data (the standard library's reader)
     scenario_from_dict(tomllib.loads(out))  # and loads as a scenario
     lines = text.splitlines()
-    where = _KeyLines(text)
+    where = KeyLines(text)
     own = {key: lines[where.find(key) - 1] for key in changed | removed}  # type: ignore[operator]
     diff = _diff(text, out)
     assert sorted(d[1:] for d in diff if d[0] == "-") == sorted(own.values())
@@ -111,7 +112,7 @@ def test_entries_removed_and_added_keep_the_rest_of_the_file(drop: list[int], ap
     for line in kept_comments[:4]:  # the file's head comment is never touched
         assert line in out
     for i in range(3):  # each entry's target line (with its comment) stays exactly when the entry stays
-        target_line = text.splitlines()[_KeyLines(text).find(f"perpetrator.inhibits[{i}].target") - 1]  # type: ignore[operator]
+        target_line = text.splitlines()[KeyLines(text).find(f"perpetrator.inhibits[{i}].target") - 1]  # type: ignore[operator]
         assert (target_line in out.splitlines()) == (i not in drop)
 
 

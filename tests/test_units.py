@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from interact import units
 from interact.errors import UnitError
@@ -152,3 +154,32 @@ def test_every_spelling_the_tool_writes_reads_back() -> None:
         if not same:
             failures.append((text, written))
     assert not failures, failures[:20]
+
+
+# The fast mass <-> molar conversion (cached factors, units.py) is checked against pint's own "chemistry" context
+# (defined in interact/units.txt, the library's way: a context with the molar mass passed in), over random values.
+_MASS_CONC = ("ng/mL", "ug/mL", "mg/L", "ug/L", "g/L", "mg/dL")
+_MOLAR_MASS = ("g/mol", "kg/mol", "mg/mmol")
+
+
+@settings(max_examples=200, deadline=None)
+@given(
+    value=st.floats(1e-6, 1e6),
+    unit=st.sampled_from(_MASS_CONC),
+    mw=st.floats(10.0, 5000.0),
+    mw_unit=st.sampled_from(_MOLAR_MASS),
+)
+def test_fast_molar_conversion_matches_pints_chemistry_context(value: float, unit: str, mw: float, mw_unit: str) -> None:
+    q = units.ureg.Quantity(value, unit)
+    molar_mass = units.ureg.Quantity(mw, mw_unit)
+    through_pint = q.to("uM", "chemistry", mw=molar_mass).magnitude
+    assert units.concentration_um(q, molar_mass, field="f") == pytest.approx(through_pint, rel=1e-12)
+
+
+@settings(max_examples=100, deadline=None)
+@given(value=st.floats(1e-6, 1e6), unit=st.sampled_from(("mg", "ug", "g", "ng")), mw=st.floats(10.0, 5000.0))
+def test_fast_amount_conversion_matches_pints_chemistry_context(value: float, unit: str, mw: float) -> None:
+    q = units.ureg.Quantity(value, unit)
+    molar_mass = units.ureg.Quantity(mw, "g/mol")
+    through_pint = q.to("umol", "chemistry", mw=molar_mass).magnitude
+    assert units.amount_umol(q, molar_mass, field="f") == pytest.approx(through_pint, rel=1e-12)

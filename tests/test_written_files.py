@@ -3,6 +3,7 @@ stays the result.  Scenarios: the built-in invented demo and the invented exampl
 
 from __future__ import annotations
 
+import xml.etree.ElementTree as ET
 from pathlib import Path
 
 import pytest
@@ -37,7 +38,7 @@ def test_timecourse_plot_is_named(tmp_path: Path, capsys: pytest.CaptureFixture[
     assert main(["timecourse", str(EXAMPLE), "--days", "10", "--plot", str(plot)]) == 0
     captured = capsys.readouterr()
     assert f"interact: plot written to {plot.resolve()}" in captured.err.splitlines()
-    assert plot.read_text(encoding="utf-8").startswith("<svg")
+    assert ET.parse(plot).getroot().tag == "{http://www.w3.org/2000/svg}svg"
     assert captured.out  # the text result still goes to standard output
 
 

@@ -24,12 +24,13 @@ from .numbers import fmt, fmt_ratio
 if TYPE_CHECKING:
     from ..dynamic import TimeCourse
 
-__all__ = ["JSON_SCHEMA", "assessment_sections", "assessment_to_dict", "format_assessment", "user_text"]
+__all__ = ["JSON_SCHEMA", "assessment_sections", "assessment_to_dict", "format_assessment", "setting_origin", "user_text"]
 
 JSON_SCHEMA = ASSESSMENT_SCHEMA  # the name other modules import; the value is declared in interact.results
 
 
-def _origin(s: Setting) -> str:
+def setting_origin(s: Setting) -> str:
+    """Where a setting's value came from, with its source and status, as shown beside it."""
     if s.origin == "given":
         text = "given"
     elif s.origin == "override":
@@ -196,7 +197,7 @@ def assessment_sections(
                     f"EC50,u {fmt(c.ec50_u_um)} uM",
                 )
             )
-    settings_rows = tuple((st.label, _setting_value(a, st), _origin(st)) for st in (*a.settings, *a.kdeg_used))
+    settings_rows = tuple((st.label, _setting_value(a, st), setting_origin(st)) for st in (*a.settings, *a.kdeg_used))
     sections.append(
         Section(
             title="Inputs",

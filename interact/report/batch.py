@@ -18,7 +18,7 @@ from typing import IO, TYPE_CHECKING, Any, Final
 import numpy as np
 from numpy.typing import NDArray
 
-from ..batch import FLAGS, OUTPUT_COLUMNS, BatchResult, _flag_text, ranking, result_rows
+from ..batch import FLAGS, OUTPUT_COLUMNS, BatchResult, flag_text, ranking, result_rows
 from ..batch_probability import ProbabilityResult, probability_ranking
 from ..cautions import CAUTION_LINE
 from ..dosing import ACTIONS
@@ -146,7 +146,7 @@ def result_batches(
         "phenotype": _strings(list(v.phenotype)),
         "class": _strings(list(result.band_names)),
         "action": _strings(list(ACTIONS)),
-        "flags": _strings([_flag_text(k) for k in range(1 << len(FLAGS))]),
+        "flags": _strings([flag_text(k) for k in range(1 << len(FLAGS))]),
         **(texts or {}),
     }
     yes_no = _strings(["no", "yes"])
@@ -340,7 +340,7 @@ def _write_json(result: BatchResult, handle: IO[Any], top: int | None) -> int:
         "phenotype": list(v.phenotype),
         "class": list(result.band_names),
         "action": list(ACTIONS),
-        "flags": [[f for f in _flag_text(k).split("; ") if f] for k in range(1 << len(FLAGS))],
+        "flags": [[f for f in flag_text(k).split("; ") if f] for k in range(1 << len(FLAGS))],
     }
     as_json = {name: _strings([json.dumps(x, allow_nan=False) for x in values]) for name, values in texts.items()}
     count = 0

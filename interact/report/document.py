@@ -6,7 +6,6 @@ so that what a shell shows and what a file holds never drift apart.
 
 from __future__ import annotations
 
-import html
 import re
 import textwrap
 from collections.abc import Callable, Iterator
@@ -26,7 +25,6 @@ __all__ = [
     "keep_together",
     "list_groups",
     "md_escape",
-    "render_html_body",
     "render_markdown",
     "render_text",
     "speak",
@@ -394,26 +392,3 @@ def render_markdown(sections: list[Section], title: str = "") -> str:
             else:
                 out += [md_escape(block), ""]
     return "\n".join(out).rstrip("\n") + "\n"
-
-
-def render_html_body(sections: list[Section]) -> str:
-    """HTML for the sections; every string is escaped."""
-    sections = cite(sections)
-    e = html.escape
-    out: list[str] = []
-    for section in sections:
-        out.append("<section>")
-        if section.title:
-            out.append(f"<h2>{e(section.title)}</h2>")
-        for block in section.blocks:
-            if isinstance(block, Table):
-                out.append("<table><thead><tr>" + "".join(f"<th>{e(h)}</th>" for h in block.headers) + "</tr></thead><tbody>")
-                for row in block.rows:
-                    out.append("<tr>" + "".join(f"<td>{e(c)}</td>" for c in row) + "</tr>")
-                out.append("</tbody></table>")
-            elif isinstance(block, Note):
-                out.append(f'<p class="note {e(block.kind)}">{e(block.text)}</p>')
-            else:
-                out.append(f"<p>{e(block)}</p>")
-        out.append("</section>")
-    return "\n".join(out)

@@ -13,10 +13,11 @@ nothing is recomputed here.  Every figure says it shows a model estimate.
 from __future__ import annotations
 
 import io
+import math
 import re
 from collections.abc import Sequence
 from pathlib import Path
-from typing import TYPE_CHECKING, Final
+from typing import TYPE_CHECKING, Final, cast
 
 import numpy as np
 
@@ -24,6 +25,7 @@ from ..errors import InputError
 from .document import terminal_safe
 
 if TYPE_CHECKING:
+    import pint
     from matplotlib.axes import Axes
     from matplotlib.figure import Figure
 
@@ -294,8 +296,21 @@ def sobol_figure(sens: Sensitivity, ax: Axes | None = None) -> Figure:
 # --------------------------------------------------------------------------- time course
 
 
+def _readable_unit(unit: str, largest: float) -> tuple[str, float]:
+    """A unit (same dimension) in which ``largest`` reads as a number between 1 and 1000, and the factor to it (pint)."""
+    from .. import units
+
+    if not largest > 0 or not math.isfinite(largest):
+        return unit, 1.0
+    compact = units.ureg.Quantity(largest, unit).to_compact()  # pint picks the prefix
+    return units.unit_text(cast("pint.Quantity", compact)), float(compact.magnitude) / largest
+
+
 def timecourse_figure(tc: TimeCourse, title: str = "", axes: Sequence[Axes] | None = None, terms: Terms | None = None) -> Figure:
     """Two panels: the object drug's concentration with and without the precipitant; exposure ratio and enzyme amounts.
+
+    Concentrations in a unit read as 1 to 1000 (chosen by pint), days in weeks from two weeks on, legends above
+    each panel so they never cover the data, a dotted reference line at 1 and a dashed line where dosing stops.
 
     Parameters
     ----------
@@ -309,6 +324,8 @@ def timecourse_figure(tc: TimeCourse, title: str = "", axes: Sequence[Axes] | No
     terms
         The rule set's words for the two drugs (``Assessment.rules.terms``); default perpetrator and victim.
     """
+    from matplotlib.ticker import MultipleLocator
+
     from ..dynamic import time_course_arrays
     from .document import speak
 
@@ -319,25 +336,31 @@ def timecourse_figure(tc: TimeCourse, title: str = "", axes: Sequence[Axes] | No
     if axes is None:
         from matplotlib.figure import Figure
 
-        fig = Figure(figsize=(9.0, 6.2), layout="constrained")
+        fig = Figure(figsize=(9.0, 6.8), layout="constrained")
         axes = list(fig.subplots(2, 1, sharex=True))
         fig.suptitle(f"{_t(title) or 'Time course'} ({MODEL_NOTE})", fontsize=11)
     if len(axes) != 2:
         raise InputError("axes", len(axes), "axes were given; give two (concentrations, ratios)")
     top, bottom = axes
     x = arr["time_day"]
-    top.plot(x, arr["victim_without"], color="0.55", linewidth=1.0, label=say("without the perpetrator"))
-    top.plot(x, arr["victim_with"], color="#c0392b", linewidth=1.0, label=say("with the perpetrator"))
-    top.set_ylabel(say(f"victim ({tc.victim_unit})"))
-    bottom.plot(x, arr["exposure_ratio"], color="#c0392b", linewidth=1.5, label="exposure ratio")
+    unit, factor = _readable_unit(tc.victim_unit, float(max(arr["victim_with"].max(), arr["victim_without"].max())))
+    top.plot(x, arr["victim_with"] * factor, color="#c0392b", linewidth=1.0, label=say("with perpetrator"))
+    top.plot(x, arr["victim_without"] * factor, color="0.55", linewidth=1.0, label=say("without perpetrator"))
+    top.set_ylabel(say(f"victim concentration ({_t(unit)})"))
+    top.set_ylim(bottom=0.0)
+    bottom.plot(x, arr["exposure_ratio"], color="#c0392b", linewidth=1.5, label=say("exposure ratio (over a dosing interval)"))
     for key, values in arr.items():
         if key.startswith("enzyme:"):
             _, enzyme, site = key.split(":")
-            bottom.plot(x, values, linewidth=1.2, label=f"{enzyme} {site} enzyme")
-    bottom.axhline(1.0, color="0.8", linewidth=0.6)
-    bottom.set_ylabel("relative to baseline")
+            bottom.plot(x, values, linewidth=1.2, label=f"{_t(enzyme)} {site} enzyme")
+    bottom.axhline(1.0, color="0.2", linestyle=":", linewidth=0.8)
+    bottom.set_ylabel("ratio to baseline (dotted: 1, no change)")
     bottom.set_xlabel(say("days after the first perpetrator dose"))
+    if x[-1] - x[0] >= 14.0:
+        bottom.xaxis.set_major_locator(MultipleLocator(7.0 * max(1, math.ceil((x[-1] - x[0]) / 6 / 7.0))))
+    bottom.set_xlim(0.0, float(x[-1]))
     for ax in (top, bottom):
-        ax.axvline(tc.stop_h / 24.0, color="0.6", linestyle="--", linewidth=0.8)
-        ax.legend(fontsize=7, frameon=False)
+        ax.axvline(tc.stop_h / 24.0, color="0.6", linestyle="--", linewidth=0.8, label=say("perpetrator stopped") if ax is top else None)
+        ax.grid(axis="y", color="0.93", linewidth=0.6)
+        ax.legend(fontsize=7, frameon=False, loc="lower left", bbox_to_anchor=(0.0, 1.0), ncols=4, borderaxespad=0.2)
     return top.figure  # type: ignore[return-value]

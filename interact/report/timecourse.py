@@ -1,26 +1,22 @@
-"""Formatting a :class:`~interact.dynamic.TimeCourse`: text sections, JSON data and an SVG plot.
+"""Formatting a :class:`~interact.dynamic.TimeCourse`: text sections and JSON data.
 
-``format_*`` and ``timecourse_svg`` return text; shells write it.
+``format_*`` return text; shells write it.  The chart is :func:`interact.report.figures.timecourse_figure`.
 """
 
 from __future__ import annotations
 
-import html
 import json
 import math
-import textwrap
-from typing import Any, cast
+from typing import Any
 
 import numpy as np
-import pint
 
 from ..assessment import Assessment
 from ..cautions import CAUTION_LINE
 from ..dosing import timing_advice
-from ..dynamic import TimeCourse, time_course_arrays
+from ..dynamic import TimeCourse
 from ..results import TIMECOURSE_SCHEMA, setting_dict
-from ..tables import Terms
-from .document import Note, Section, Table, cite_data, render_markdown, render_text, speak, speak_sections
+from .document import Note, Section, Table, cite_data, render_markdown, render_text, speak_sections
 from .numbers import fmt, fmt_ratio
 
 __all__ = [
@@ -28,7 +24,6 @@ __all__ = [
     "format_timecourse",
     "timecourse_advice",
     "timecourse_sections",
-    "timecourse_svg",
     "timecourse_to_dict",
 ]
 
@@ -229,134 +224,3 @@ def format_timecourse(tc: TimeCourse, a: Assessment | None = None, fmt_name: str
     if fmt_name == "markdown":
         return render_markdown(sections, title="interact time course")
     return render_text(sections, width=width)
-
-
-# --------------------------------------------------------------------------- SVG
-
-
-def _path(xs: np.ndarray, ys: np.ndarray, x0: float, x1: float, y0: float, y1: float, box: tuple[float, float, float, float]) -> str:
-    left, top, w, h = box
-    px = left + (xs - x0) / (x1 - x0) * w
-    py = top + h - (ys - y0) / (y1 - y0 if y1 > y0 else 1.0) * h
-    # thin the polyline to at most ~1500 points
-    step = max(1, len(px) // 1500)
-    return " ".join(f"{a:.1f},{b:.1f}" for a, b in zip(px[::step], py[::step], strict=True))
-
-
-def nice_ticks(lo: float, hi: float, count: int = 6, *, days: bool = False, enclose: bool = False) -> list[float]:
-    """Round tick values in [lo, hi]: steps of 1, 2 or 5 x 10^k (of 7 days on a time axis of two weeks or more).
-
-    With ``enclose`` the first and last ticks lie at or beyond ``lo`` and ``hi``, so they can serve as axis limits.
-    """
-    span = hi - lo
-    if not math.isfinite(span) or span <= 0:
-        return [lo]
-    raw = span / max(count - 1, 1)
-    if days and span >= 14:
-        step = 7.0 * max(1, math.ceil(raw / 7.0))
-    else:
-        base = 10.0 ** math.floor(math.log10(raw))
-        step = next(m * base for m in (1.0, 2.0, 5.0, 10.0) if m * base >= raw)
-    first = math.floor(lo / step + 1e-9) * step
-    ticks = []
-    k = 0
-    while first + k * step <= hi + 1e-9 * step:
-        t = first + k * step
-        if t >= lo - 1e-9 * step or enclose:
-            ticks.append(round(t, 10))
-        k += 1
-    if enclose and ticks[-1] < hi - 1e-9 * step:
-        ticks.append(round(ticks[-1] + step, 10))
-    return ticks
-
-
-def _readable_unit(unit: str, largest: float) -> tuple[str, float]:
-    """A unit (same dimension) in which ``largest`` reads as a number between 1 and 1000, and the factor to it (pint)."""
-    from .. import units
-
-    if not largest > 0 or not math.isfinite(largest):
-        return unit, 1.0
-    compact = units.ureg.Quantity(largest, unit).to_compact()  # pint picks the prefix
-    return units.unit_text(cast("pint.Quantity", compact)), float(compact.magnitude) / largest
-
-
-def timecourse_svg(tc: TimeCourse, title: str = "", terms: Terms | None = None) -> str:
-    """A two-panel SVG: the object drug's concentration with and without the precipitant; exposure ratio and enzymes.
-
-    Round ticks (days in weeks from two weeks on; concentrations in a unit read as 1 to 1000, chosen by pint), legends
-    above each panel so they never cover the data, a reference line at 1 in the ratio panel, axis titles clear of the
-    tick labels.  ``terms`` gives the rule set's words for the two drugs.
-    """
-    say = (lambda text: speak(text, terms)) if terms is not None else (lambda text: text)
-    arr = time_course_arrays(tc)
-    x = arr["time_day"]
-    x0, x1 = 0.0, float(x[-1])
-    W, H = 900, 680
-    e = html.escape
-    panels = [(90.0, 78.0, 780.0, 220.0), (90.0, 392.0, 780.0, 220.0)]
-    parts = [
-        f'<svg xmlns="http://www.w3.org/2000/svg" width="{W}" height="{H}" viewBox="0 0 {W} {H}" font-family="sans-serif" font-size="12">',
-        f'<rect width="{W}" height="{H}" fill="white"/>',
-    ]
-    heading = [*textwrap.wrap(title or "Time course", 100)[:2], "Model estimate, not clinical advice"]
-    for k, line in enumerate(heading):
-        parts.append(
-            f'<text x="{W / 2}" y="{20 + 16 * k}" text-anchor="middle" font-size="{14 if k < len(heading) - 1 else 12}">{e(line)}</text>'
-        )
-    stop_d = tc.stop_h / 24.0
-    xticks = nice_ticks(x0, x1, 7, days=True)
-
-    def frame(box: tuple[float, float, float, float], yticks: list[float], y0: float, y1: float, label: str) -> None:
-        left, top, w, h = box
-        parts.append(f'<rect x="{left}" y="{top}" width="{w}" height="{h}" fill="none" stroke="#444"/>')
-        # the axis title sits left of the widest tick label
-        parts.append(
-            f'<text x="{left - 70}" y="{top + h / 2}" text-anchor="middle" transform="rotate(-90 {left - 70} {top + h / 2})">{e(label)}</text>'  # noqa: E501
-        )
-        for v in yticks:
-            yy = top + h - (v - y0) / (y1 - y0) * h
-            parts.append(f'<text x="{left - 6}" y="{yy + 4:.1f}" text-anchor="end">{v:g}</text>')
-            parts.append(f'<line x1="{left}" x2="{left + w}" y1="{yy:.1f}" y2="{yy:.1f}" stroke="#eee"/>')
-        for d in xticks:
-            xx = left + (d - x0) / (x1 - x0) * w
-            parts.append(f'<text x="{xx:.1f}" y="{top + h + 16}" text-anchor="middle">{d:g}</text>')
-        sx = left + (stop_d - x0) / (x1 - x0) * w
-        parts.append(f'<line x1="{sx:.1f}" x2="{sx:.1f}" y1="{top}" y2="{top + h}" stroke="#999" stroke-dasharray="4 3"/>')
-
-    def legend(box: tuple[float, float, float, float], items: list[tuple[str, str]]) -> None:
-        left, top, _, _ = box
-        xx = left
-        for name, colour in items:
-            parts.append(f'<line x1="{xx:.0f}" x2="{xx + 18:.0f}" y1="{top - 12}" y2="{top - 12}" stroke="{colour}" stroke-width="2"/>')
-            parts.append(f'<text x="{xx + 22:.0f}" y="{top - 8}" fill="#222">{e(name)}</text>')
-            xx += 30 + 7 * len(name)
-
-    vw, vo = arr["victim_with"], arr["victim_without"]
-    unit, factor = _readable_unit(tc.victim_unit, float(max(vw.max(), vo.max())))
-    vw, vo = vw * factor, vo * factor
-    top_c = float(max(vw.max(), vo.max())) or 1.0
-    cticks = nice_ticks(0.0, top_c, 5, enclose=True)
-    cmax = cticks[-1]
-    frame(panels[0], cticks, 0.0, cmax, say(f"victim concentration ({unit})"))
-    parts.append(f'<polyline fill="none" stroke="#888" stroke-width="1" points="{_path(x, vo, x0, x1, 0.0, cmax, panels[0])}"/>')
-    parts.append(f'<polyline fill="none" stroke="#c0392b" stroke-width="1" points="{_path(x, vw, x0, x1, 0.0, cmax, panels[0])}"/>')
-    legend(panels[0], [(say("with perpetrator"), "#c0392b"), (say("without perpetrator"), "#888"), (say("perpetrator stopped"), "#999")])
-
-    series = [(say("exposure ratio (over a dosing interval)"), arr["exposure_ratio"], "#c0392b")]
-    colours = ["#2471a3", "#239b56", "#7d3c98", "#b9770e"]
-    for i, en in enumerate(tc.enzymes):
-        series.append((f"{en.enzyme} {en.site} enzyme", np.asarray(en.amount), colours[i % len(colours)]))
-    lo = min(float(min(s[1].min() for s in series)), 1.0)
-    hi = max(float(max(s[1].max() for s in series)), 1.0)
-    rticks = nice_ticks(max(lo, 0.0), hi, 6, enclose=True)
-    rlo, rhi = rticks[0], rticks[-1]
-    frame(panels[1], rticks, rlo, rhi, "ratio to baseline (dotted: 1, no change)")
-    left, top, w, h = panels[1]
-    y1 = top + h - (1.0 - rlo) / (rhi - rlo) * h
-    parts.append(f'<line x1="{left}" x2="{left + w}" y1="{y1:.1f}" y2="{y1:.1f}" stroke="#222" stroke-dasharray="2 3"/>')
-    for _name, ys, colour in series:
-        parts.append(f'<polyline fill="none" stroke="{colour}" stroke-width="1.5" points="{_path(x, ys, x0, x1, rlo, rhi, panels[1])}"/>')
-    legend(panels[1], [(name, colour) for name, _, colour in series])
-    parts.append(f'<text x="{W / 2}" y="{H - 12}" text-anchor="middle">{e(say("days after the first perpetrator dose"))}</text>')
-    parts.append("</svg>")
-    return "\n".join(parts) + "\n"

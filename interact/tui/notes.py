@@ -16,7 +16,7 @@ from .. import units
 from ..assessment import Assessment
 from ..errors import InteractError
 from ..exposure import Setting
-from ..report.assessment import _origin
+from ..report.assessment import setting_origin
 from ..report.numbers import fmt
 from ..sources import resolve
 from ..tables import resolve_target
@@ -94,7 +94,7 @@ def _setting(a: Assessment, name: str) -> Setting | None:
 
 def _default_text(s: Setting) -> str:
     value = f"{s.value:.4g} {s.unit}".strip()
-    return f"empty: {value} used, {_origin(s)}"
+    return f"empty: {value} used, {setting_origin(s)}"
 
 
 def _species_index(path: Path) -> int:

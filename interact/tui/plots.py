@@ -17,7 +17,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..assessment import Assessment, _kdeg
+from ..assessment import Assessment
+from ..constants import kdeg_per_h
 from ..prediction import liver_ratio, ratio_function
 from ..report.numbers import fmt, fmt_ratio
 
@@ -98,7 +99,7 @@ def dose_curve(a: Assessment, points: int = 121) -> Chart | None:
     pr = a.prediction
     if not a.constants:
         return None
-    kdeg, _ = _kdeg(s, a.constants)
+    kdeg, _ = kdeg_per_h(s, a.constants)
     at = ratio_function(
         pathways=tuple((pw.enzyme, pw.fm) for pw in s.victim.pathways),
         fg=pr.fg_used,

@@ -25,7 +25,7 @@ import pytest
 from conftest import base_dict
 
 from interact import assess
-from interact.dynamic import _fast_forcing, simulate, time_course_arrays
+from interact.dynamic import simulate, time_course_arrays
 from interact.errors import InputError
 from interact.scenario import scenario_from_dict
 
@@ -136,11 +136,11 @@ def test_kinact_and_emax_to_zero_reduce_to_the_reversible_course() -> None:
 def test_perpetrator_model_reproduces_cmax_and_fast_forcing_matches() -> None:
     a = _assess(REV, perp={"ka": "0.02 1/min"})
     tc = simulate(a, days=15)
-    from interact.dynamic import _ss_shape
+    from interact.course.forcing import ss_shape
 
     # the steady-state peak of the fitted one-compartment model is the scenario's Cmax (1 uM), by superposition on a fine grid
     ka, ke, tau = 1.2, math.log(2) / 10.0, 24.0
-    shape, tmax = _ss_shape(ka, ke, tau)
+    shape, tmax = ss_shape(ka, ke, tau)
     grid = np.linspace(0, tau, 20001)
     n = 60
     conc = sum(ka / (ka - ke) * (np.exp(-ke * (grid + i * tau)) - np.exp(-ka * (grid + i * tau))) for i in range(n))
@@ -148,36 +148,6 @@ def test_perpetrator_model_reproduces_cmax_and_fast_forcing_matches() -> None:
     assert grid[conc.argmax()] == pytest.approx(tmax, abs=2e-3)
     assert max(tc.perpetrator_um) == pytest.approx(1.0, rel=2e-3)  # grid of 0.5 h around the peak
     assert max(tc.perpetrator_um) <= 1.0 + 1e-9
-
-
-def test_fast_forcing_equals_the_reference_forcing() -> None:
-    a = _assess(REV, perp={"ka": "0.02 1/min"})
-    from interact.dynamic import _Perp
-
-    p = _Perp(
-        mode="regimen",
-        oral=True,
-        dose=250.0,
-        tau=24.0,
-        n_doses=10,
-        stop=240.0,
-        ka=1.2,
-        ke=0.07,
-        vf=80.0,
-        fu=0.1,
-        portal=0.01,
-        enterocyte=0.05,
-        cmax=2.0,
-        metabolites=((0.2, 0.4),),
-        const_inlet=(1.0, 0.1),
-        const_ent=(1.0, 0.1),
-    )
-    fast = _fast_forcing(p)
-    for t in (0.0, 0.3, 23.999, 24.0, 100.7, 239.0, 240.0, 300.0):
-        ref = p.sites(t, p.doses_by(t), t < p.stop)
-        got = fast(t)
-        assert got[0] == pytest.approx(ref[0], rel=1e-12) and got[1] == pytest.approx(ref[1], rel=1e-12)
-    assert a is not None
 
 
 def test_solvers_agree() -> None:
@@ -229,8 +199,6 @@ def test_profile_mode_reproduces_the_regimen() -> None:
     a = _assess({**REV, **TDI})
     reg = simulate(a, days=8, washout_days=6)
     grid = np.linspace(0.0, reg.end_h + 1.0, 40001)
-    from interact.dynamic import _Perp  # noqa: F401  (the profile is the regimen's own plasma curve)
-
     t = np.asarray(reg.time_h)
     # rebuild the plasma profile on a fine grid from the regimen's analytic model via the public arrays' model
     fine = np.interp(grid, t, np.asarray(reg.perpetrator_um))
@@ -288,12 +256,12 @@ def test_intravenous_perpetrator_reproduces_cmax() -> None:
 
 
 def test_window_spans_both_dosing_intervals() -> None:
-    from interact.dynamic import _lcm_window
+    from interact.course.model import lcm_window
 
-    assert _lcm_window(12.0, 24.0) == 24.0
-    assert _lcm_window(8.0, 12.0) == 24.0
-    assert _lcm_window(24.0, 24.0) == 24.0
-    assert _lcm_window(24.0, 7 * 24.0 + 1 / 60) == 192.0  # no common multiple within a week: next victim multiple
+    assert lcm_window(12.0, 24.0) == 24.0
+    assert lcm_window(8.0, 12.0) == 24.0
+    assert lcm_window(24.0, 24.0) == 24.0
+    assert lcm_window(24.0, 7 * 24.0 + 1 / 60) == 192.0  # no common multiple within a week: next victim multiple
 
 
 def test_rebound_below_baseline_after_stopping_a_reversible_inhibitor_that_induces() -> None:

@@ -229,9 +229,9 @@ def test_calibration_zero_removes_induction_in_every_model() -> None:
 def test_ratio_function_matches_predict_with_tdi_and_induction() -> None:
     d = _scenario(**TDI, **IND)
     a = assess(scenario_from_dict(d))
-    from interact.assessment import _kdeg
+    from interact.constants import kdeg_per_h
 
-    kdeg, _ = _kdeg(a.scenario, a.constants)
+    kdeg, _ = kdeg_per_h(a.scenario, a.constants)
     f = ratio_function(pathways=(("CYP3A", 0.8),), fg=0.5, gut_enzyme="CYP3A", constants=a.constants, species=a.species, kdeg=kdeg)
     assert f(1.0) == pytest.approx(a.prediction.total, rel=1e-12)
     doubled = dataclasses.replace(

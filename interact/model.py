@@ -1,0 +1,295 @@
+"""The interaction model, written once: site concentrations to the victim's AUC ratio.
+
+Net-effect mechanistic static model (Fahmi et al., Drug Metab Dispos 2008;36:1698; structure seen
+in Guengerich 2022, Fig. 17; the equations below are from memory, algebra checked).  For each
+target t that clears the victim, the fraction of its activity that remains at a site is the
+product of three terms, named by meaning, summed over the perpetrator's constants j on t:
+
+- reversible   = 1 / (1 + sum_j [I]_j / Ki,u,j)
+- inactivation = kdeg / (kdeg + sum_j kinact_j [I]_j / (KI,u,j + [I]_j))
+- induction    = 1 + sum_j d_j Emax_j [I]_j / (EC50,u,j + [I]_j)
+
+and the organ ratios are
+
+- liver: AUCR_h = 1 / (sum_e fm_e x activity_h,e + (1 - sum_e fm_e))    ("fraction" form)
+- gut:   AUCR_g = 1 / (activity_g x (1 - Fg) + Fg), for the gut-wall enzyme (CYP3A)   ("availability" form)
+- total: AUCR = AUCR_g x AUCR_h  (the product over :data:`ORGANS` in their order)
+
+with [I] at the liver the unbound hepatic inlet concentration Iin,max,u and at the gut the
+enterocyte concentration I,ent (see :mod:`interact.exposure`).
+
+**Arrays.** Every number may be a Python float or a numpy array; arrays broadcast against each other, so one
+call evaluates one scenario (floats: ``assess``), samples (a leading sample axis:
+:class:`interact.uncertainty.ScenarioModel`) or pairs (perpetrators along axis 0, victims along
+axis 1: :func:`interact.batch.pair_ratios`).  What acts on what is structure, given as tuples
+(one :class:`Acting` per perpetrator constant, one :class:`Pathway` per victim pathway); the sums
+over constants and over pathways run in that order, term by term, so that every caller gets the
+same result to the last bit.  An absent constant is ``None`` (structure); a constant absent for
+some rows of an array only is given as ``inf`` for Ki,u (its term is then exactly 0).
+
+**Adding a pathway kind or an organ** (for example transporters: intestinal efflux, hepatic uptake,
+renal secretion, and a kidney ratio) is data, not a new code path:
+
+1. a site is a name in the ``concentrations`` mapping given to :func:`evaluate`, holding one
+   unbound concentration per perpetrator species ("liver" = Iin,max,u, "gut" = I,ent; add for
+   example "systemic" = Imax,u);
+2. an organ is an entry of :data:`ORGANS`: the site its pathways see and the form of its ratio
+   (``"fraction"``: 1/(sum f x activity + 1 - sum f); ``"availability"``: 1/(activity x (1 - F) + F));
+   a kidney is ``Organ(site="systemic", form="fraction")`` with the renal fractions as pathways;
+   the total is the product of the organ ratios in the order of :data:`ORGANS`;
+3. a victim pathway is a :class:`Pathway` (target index, organ name, fraction): a transporter
+   route is a pathway whose target is the transporter; the perpetrator's constants on that
+   target (an :class:`Acting` with the same target index) act on it at the organ's site.
+   A new organ form (one the two above do not express) is one more branch in :func:`organ_ratio`.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+from typing import Any, Final, NamedTuple
+
+__all__ = [
+    "MECHANISMS",
+    "ORGANS",
+    "Acting",
+    "Evaluation",
+    "Model",
+    "Organ",
+    "Pathway",
+    "Terms",
+    "evaluate",
+    "organ_ratio",
+]
+
+#: the mechanisms, each of which can be switched off (the mechanism parts of a prediction)
+MECHANISMS: Final = ("reversible", "time-dependent", "induction")
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class Organ:
+    """An organ's ratio: the site whose concentrations its pathways see, and the form of the ratio."""
+
+    site: str
+    form: str  # "fraction" or "availability"
+
+
+#: the organs, in the order of the product that gives the total ratio
+ORGANS: Final[Mapping[str, Organ]] = {
+    "gut": Organ(site="gut", form="availability"),
+    "liver": Organ(site="liver", form="fraction"),
+}
+
+
+class Acting(NamedTuple):
+    """One unbound constant of the perpetrator on one target (uM, 1/h; ``None`` where not given).
+
+    Immutable records (named tuples rather than frozen dataclasses: a scenario builds them on every call,
+    and a named tuple is built about four times faster).
+    """
+
+    target: int  # index of the target it acts on
+    species: int  # index of the perpetrator species whose concentrations it sees
+    ki_u: Any = None
+    kinact: Any = None
+    ki_inact_u: Any = None
+    emax: Any = None
+    ec50_u: Any = None
+    calibration: Any = 1.0
+
+
+class Pathway(NamedTuple):
+    """One pathway of the victim: the target it depends on, in which organ, with which fraction.
+
+    ``fraction`` is fm for a "fraction" organ and the availability (Fg) for an "availability" organ;
+    ``scale`` (a phenotype's activity) multiplies fm in the weighted sum, not in (1 - sum fm).
+    """
+
+    target: int
+    organ: str
+    fraction: Any
+    scale: Any = None
+
+
+class Terms(NamedTuple):
+    """The three terms for one target at one site (each a float or an array)."""
+
+    reversible: Any
+    inactivation: Any
+    induction: Any
+
+    @property
+    def activity(self) -> Any:
+        return self.reversible * self.inactivation * self.induction
+
+
+class Evaluation(NamedTuple):
+    """The organ ratios, their product and the terms they came from (keyed by (target, site))."""
+
+    organs: dict[str, Any]
+    total: Any
+    terms: dict[tuple[int, str], Terms]
+
+    @property
+    def gut(self) -> Any:
+        return self.organs["gut"]
+
+    @property
+    def liver(self) -> Any:
+        return self.organs["liver"]
+
+
+def reversible(sum_ratio: Any) -> Any:
+    """1/(1 + sum [I]/Ki,u) on floats or arrays."""
+    return 1.0 / (1.0 + sum_ratio)
+
+
+def inactivation(kobs_per_h: Any, kdeg_per_h: Any) -> Any:
+    """kdeg/(kdeg + kobs) on floats or arrays."""
+    return kdeg_per_h / (kdeg_per_h + kobs_per_h)
+
+
+def induction(effect: Any, calibration: Any = 1.0) -> Any:
+    """1 + d x effect on floats or arrays."""
+    return 1.0 + calibration * effect
+
+
+def _switches(include: Sequence[str]) -> tuple[bool, bool, bool]:
+    return ("reversible" in include, "time-dependent" in include, "induction" in include)
+
+
+_ALL_ON: Final = (True, True, True)
+
+
+_FORMS: Final = ("fraction", "availability")
+
+
+def organ_ratio(form: str, pathways: Sequence[Pathway], activities: Sequence[Any]) -> Any:
+    """One organ's AUC ratio from its pathways and the activity left on each, in pathway order.
+
+    ``"fraction"``: 1/(sum f x activity + (1 - sum f)), with (1 - sum f) added after the weighted sum
+    (exact when sum f = 1, however small the activity); ``"availability"``: 1/(activity x (1 - F) + F)
+    for the organ's one pathway.  An organ without pathways has a ratio of exactly 1.
+    """
+    if form not in _FORMS:
+        raise ValueError(f"organ form {form!r}: expected 'fraction' or 'availability'")
+    if not pathways:
+        return 1.0
+    if form == "availability":
+        (pw,), (act,) = pathways, activities
+        return 1.0 / (act * (1.0 - pw.fraction) + pw.fraction)
+    weighted: Any = None
+    fm_sum: Any = None
+    for pw, act in zip(pathways, activities, strict=True):
+        f = pw.fraction if pw.scale is None else pw.fraction * pw.scale
+        weighted = f * act if weighted is None else weighted + f * act
+        fm_sum = pw.fraction if fm_sum is None else fm_sum + pw.fraction
+    return 1.0 / (weighted + (1.0 - fm_sum))
+
+
+class Model:
+    """The structure of the model for one set of constants and pathways, built once, evaluated many times.
+
+    Which constants act on each pathway's target, and at which site, is worked out here; :meth:`evaluate`
+    then does only the arithmetic (a perpetrator-dose scan evaluates the same structure at many scales).
+    """
+
+    __slots__ = ("_organs", "_sites")
+
+    def __init__(self, acting: Sequence[Acting], pathways: Sequence[Pathway]) -> None:
+        on: dict[int, list[Acting]] = {}
+        for c in acting:
+            on.setdefault(c.target, []).append(c)
+        for pw in pathways:
+            if pw.organ not in ORGANS:
+                raise ValueError(f"pathway organ {pw.organ!r}: expected one of {', '.join(ORGANS)}")
+        sites: dict[tuple[int, str], int] = {}  # (target, site) -> position of its terms, each computed once
+        organs = []
+        for name, organ in ORGANS.items():
+            if organ.form not in _FORMS:
+                raise ValueError(f"organ {name}: form {organ.form!r}, expected 'fraction' or 'availability'")
+            mine = [pw for pw in pathways if pw.organ == name]
+            where = [sites.setdefault((pw.target, organ.site), len(sites)) for pw in mine]
+            organs.append((name, organ.form, tuple(mine), tuple(where)))
+        self._organs = tuple(organs)
+        self._sites = tuple([(key, tuple(on.get(key[0], ()))) for key in sites])
+
+    def evaluate(
+        self,
+        concentrations: Mapping[str, Sequence[Any]],
+        kdeg_per_h: Mapping[tuple[int, str], Any],
+        *,
+        include: Sequence[str] = MECHANISMS,
+        scale: Any = None,
+    ) -> Evaluation:
+        """The organ ratios and the total (arguments as for :func:`evaluate`)."""
+        organs, total, terms = self._run(concentrations, kdeg_per_h, include, scale)
+        return Evaluation(organs, total, {key: Terms(*t) for key, t in terms.items()})
+
+    def total(self, concentrations: Mapping[str, Sequence[Any]], kdeg_per_h: Mapping[tuple[int, str], Any], scale: Any = None) -> Any:
+        """The total ratio alone, every mechanism on (the perpetrator-dose scan)."""
+        return self._run(concentrations, kdeg_per_h, MECHANISMS, scale)[1]
+
+    def _run(
+        self, concentrations: Mapping[str, Sequence[Any]], kdeg_per_h: Mapping[tuple[int, str], Any], include: Sequence[str], scale: Any
+    ) -> tuple[dict[str, Any], Any, dict[tuple[int, str], tuple[Any, Any, Any]]]:
+        rev_on, tdi_on, ind_on = _ALL_ON if include is MECHANISMS else _switches(include)
+        terms = {}
+        acts = []
+        # plain loops, the three terms written here once: a scalar dose scan runs this some 14 times per scenario
+        for key, on in self._sites:
+            site = concentrations[key[1]]
+            ratio = kobs = effect = None
+            for c in on:  # the constants on this target, in their order
+                conc = site[c.species] if scale is None else scale * site[c.species]
+                if rev_on and c.ki_u is not None:
+                    ratio = conc / c.ki_u if ratio is None else ratio + conc / c.ki_u
+                if tdi_on and c.kinact is not None and c.ki_inact_u is not None:
+                    k = c.kinact * conc / (c.ki_inact_u + conc)
+                    kobs = k if kobs is None else kobs + k
+                if ind_on and c.emax is not None and c.ec50_u is not None:
+                    e = c.calibration * c.emax * conc / (c.ec50_u + conc)
+                    effect = e if effect is None else effect + e
+            kdeg = kdeg_per_h.get(key)
+            t = terms[key] = (
+                1.0 if ratio is None else reversible(ratio),
+                1.0 if kobs is None or kdeg is None else inactivation(kobs, kdeg),
+                1.0 if effect is None else 1.0 + effect,
+            )
+            acts.append(t[0] * t[1] * t[2])
+        organs: dict[str, Any] = {}
+        total: Any = None
+        for name, form, mine, where in self._organs:
+            value = organ_ratio(form, mine, tuple(map(acts.__getitem__, where)))
+            organs[name] = value
+            total = value if total is None else total * value
+        return organs, total, terms
+
+
+def evaluate(
+    acting: Sequence[Acting],
+    pathways: Sequence[Pathway],
+    concentrations: Mapping[str, Sequence[Any]],
+    kdeg_per_h: Mapping[tuple[int, str], Any],
+    *,
+    include: Sequence[str] = MECHANISMS,
+    scale: Any = None,
+) -> Evaluation:
+    """The victim's organ ratios and total AUC ratio.
+
+    Parameters
+    ----------
+    acting
+        The perpetrator's unbound constants, each on a target index.
+    pathways
+        The victim's pathways, each on a target index in an organ of :data:`ORGANS`.
+    concentrations
+        site -> unbound concentration (uM) of each perpetrator species at that site.
+    kdeg_per_h
+        (target, site) -> the target's degradation rate constant (1/h) there; missing or ``None``: unknown.
+    include
+        The mechanisms switched on (all by default; a subset gives a mechanism part).
+    scale
+        Multiplier on every concentration (perpetrator-dose scan); ``None`` for none.
+    """
+    return Model(acting, pathways).evaluate(concentrations, kdeg_per_h, include=include, scale=scale)
