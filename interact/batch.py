@@ -40,6 +40,7 @@ from numpy.typing import NDArray
 
 from . import model, units
 from .arrays import band_codes, band_labels
+from .columns import split_header
 from .constants import resolve_constants
 from .dosing import ACTIONS, RegimenPlan, choose_regimens, plan_for_victim
 from .errors import InputError, InteractError, Problem, ScenarioError
@@ -200,7 +201,6 @@ class BadRowsError(InputError):
 # --------------------------------------------------------------------------- reading
 
 
-_HEAD = re.compile(r"^\s*([^()]*?)\s*(?:\(([^()]*)\))?\s*$")
 _TRUE = {"true", "yes", "y", "1"}
 _FALSE = {"false", "no", "n", "0", ""}
 
@@ -263,9 +263,7 @@ def _columns(headers: list[str], side: str, source: str) -> list[_Column]:
     out: list[_Column] = []
     seen: dict[tuple[str, str | None], str] = {}
     for raw in headers:
-        m = _HEAD.match(raw or "")
-        words = (m.group(1) if m else raw).strip()
-        unit = (m.group(2) or "").strip() or None if m else None
+        words, unit = split_header(raw)  # "cmax (ng/mL)" or "cmax [ng/mL]", as in every table
         low = " ".join(words.lower().split())
         target: str | None = None
         key = keys.get(low)

@@ -133,7 +133,8 @@ def _cmd_fit_mechanism(args: argparse.Namespace) -> int:
     import datetime
 
     from .files import write_file
-    from .kinetics.carry import carry_constants_text, parse_fold_change_csv, parse_preincubation_csv
+    from .kinetics.carry import parse_fold_change_csv, parse_preincubation_csv
+    from .kinetics.scenario_update import carry_constants_text
     from .report.mechanism_fits import format_mechanism_fit
 
     path = Path(args.data)
@@ -780,7 +781,7 @@ def _cmd_fit(args: argparse.Namespace) -> int:
 
     path = Path(args.data)
     try:
-        header = columns_of(path.read_text(encoding="utf-8-sig"))
+        header = columns_of(path.read_text(encoding="utf-8-sig"), source=path.name)
     except (OSError, UnicodeDecodeError) as exc:
         raise InputError("data", str(path), f"could not be read ({getattr(exc, 'strerror', None) or exc.__class__.__name__})") from None
     ic50_mode = args.ic50 or ("substrate" not in header and "inhibitor" in header)
@@ -848,7 +849,7 @@ def _weights_label(comp: Any) -> str:
 def _write_km_into(args: argparse.Namespace, comp: Any, data_name: str, today: str) -> None:
     """Carry the Km of a plain Michaelis-Menten fit into the target's entry (for its Cheng-Prusoff conversion)."""
     from .files import write_file
-    from .kinetics.carry import carry_constants_text
+    from .kinetics.scenario_update import carry_constants_text
 
     if not args.target:
         raise InputError("--target", None, "is needed with --into: the enzyme whose Cheng-Prusoff conversion uses this Km, e.g. CYP3A")

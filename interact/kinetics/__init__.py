@@ -7,7 +7,7 @@
 - :mod:`.ic50`            4PL/3PL IC50 curves and Cheng-Prusoff Ki
 - :mod:`.binding`         fu,inc predicted (Austin 2002, Hallifax & Houston 2006, Kilford 2008) or rescaled
 - :mod:`.diagnostics`     double-reciprocal, Dixon and residual plot data (arrays, no drawing)
-- :mod:`.scenario_update` carry a fitted Ki into a scenario file's text
+- :mod:`.scenario_update` carry fitted constants (Ki, kinact and KI, Emax and EC50) into a scenario file's text
 - :mod:`.conversion`      Cheng-Prusoff and the unbound correction used by the engine
 
 >>> from interact.kinetics import fit_inhibition, incubation_data

@@ -3,10 +3,11 @@
 CSV layout (documented in the README, "Fitting incubation data"):
 
 - a substrate of zero is allowed (a blank, velocity zero by the model);
-- a header row naming the columns; names are matched without regard to case,
-  spaces or underscores: ``substrate`` (or ``s``), ``inhibitor`` (or ``i``),
-  ``velocity`` (or ``v``, ``rate``), and optionally ``depletion`` (percent of
-  substrate consumed, or ``turnover``);
+- a header row naming the columns by the rules of :mod:`interact.columns` (names
+  without regard to case, spaces or underscores; the same aliases as every other
+  table): ``substrate`` (or ``s``), ``inhibitor`` (or ``i``), ``velocity`` (or
+  ``v``, ``rate``), and optionally ``depletion`` (percent of substrate consumed,
+  or ``turnover``); ``conc`` is refused here as ambiguous (two concentrations);
 - the unit may follow a name in parentheses or brackets: ``substrate (uM)``,
   ``velocity [pmol/min/mg]``, ``depletion (%)``; otherwise it is given to the
   reader (``--substrate-unit`` on the command line);
@@ -18,10 +19,7 @@ Concentrations are converted once to micromolar; velocities keep their unit.
 
 from __future__ import annotations
 
-import csv
-import io
 import math
-import re
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -31,6 +29,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from .. import units
+from ..columns import ALIASES, find_columns, read_columns, read_rows
 from ..errors import InputError, UnitError
 
 __all__ = [
@@ -43,16 +42,6 @@ __all__ = [
     "read_ic50_csv",
     "read_incubation_csv",
 ]
-
-_ALIASES: Final = {
-    "substrate": ("substrate", "s", "substrateconc", "substrateconcentration", "conc", "concentration"),
-    "inhibitor": ("inhibitor", "i", "inhibitorconc", "inhibitorconcentration"),
-    "velocity": ("velocity", "v", "rate", "v0"),
-    "response": ("response", "activity", "percentofcontrol", "%control", "remaining", "signal"),
-    "depletion": ("depletion", "turnover", "substratedepletion", "consumed"),
-}
-_HEADER: Final = re.compile(r"^\s*([^\(\[]*?)\s*(?:[\(\[]\s*(.*?)\s*[\)\]])?\s*$")
-_MAX_ROWS: Final = 100_000
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -193,40 +182,7 @@ def read_incubation_csv(
     )
 
 
-def _rows(text: str) -> list[tuple[int, list[str]]]:
-    out = []
-    reader = csv.reader(io.StringIO(text.removeprefix("\ufeff")))  # a byte-order mark (spreadsheet export) is dropped
-    rows = iter(reader)
-    while True:
-        try:
-            row = next(rows)
-        except StopIteration:
-            break
-        except csv.Error as exc:  # a stray carriage return or NUL inside a field
-            raise InputError(
-                f"data line {reader.line_num}", "CSV", f"could not be read ({exc}); expected plain comma-separated rows"
-            ) from None
-        line = reader.line_num
-        if not row or all(not c.strip() for c in row) or row[0].lstrip().startswith("#"):
-            continue
-        out.append((line, [c.strip() for c in row]))
-        if len(out) > _MAX_ROWS:
-            raise InputError("data", f"more than {_MAX_ROWS} rows", "is too large for an incubation data set")
-    return out
-
-
-def _columns(header: list[str], line: int) -> dict[str, tuple[int, str]]:
-    found: dict[str, tuple[int, str]] = {}
-    for k, cell in enumerate(header):
-        m = _HEADER.match(cell)
-        name, unit = (m.group(1), m.group(2) or "") if m else (cell, "")
-        key = re.sub(r"[\s_\-]+", "", name.lower())
-        for column, aliases in _ALIASES.items():
-            if key in aliases:
-                if column in found:
-                    raise InputError(f"header (line {line})", cell, f"names the {column} column twice; expected one {column} column")
-                found[column] = (k, unit)
-    return found
+_GRID: Final = ("substrate", "inhibitor", "velocity", "depletion")
 
 
 def parse_incubation_csv(
@@ -239,68 +195,26 @@ def parse_incubation_csv(
     require_inhibitor: bool = True,
 ) -> IncubationData:
     """Parse incubation CSV text; see :func:`read_incubation_csv`."""
-    rows = _rows(text)
-    if not rows:
-        raise InputError(source, "empty file", "expected a header row (substrate, inhibitor, velocity) and data rows")
-    header_line, header = rows[0]
-    cols = _columns(header, header_line)
     needed = ("substrate", "inhibitor", "velocity") if require_inhibitor else ("substrate", "velocity")
-    missing = [c for c in needed if c not in cols]
-    if missing:
-        raise InputError(
-            f"{source} header (line {header_line})",
-            ",".join(header),
-            f"lacks the column{'s' if len(missing) > 1 else ''} {', '.join(missing)}; expected named columns "
-            "substrate, inhibitor, velocity (units in the header like 'substrate (uM)'), optionally depletion (%)",
-        )
-    s_factor, s_unit = _substrate_unit(cols["substrate"][1], substrate_unit, header_line)
-    i_factor = _unit_factor("inhibitor", cols["inhibitor"][1], inhibitor_unit, header_line) if "inhibitor" in cols else 1.0
-    v_unit = _velocity_unit(cols["velocity"][1], velocity_unit, header_line)
-    if "depletion" in cols and cols["depletion"][1] not in ("", "%", "percent"):
-        raise InputError(f"depletion (line {header_line})", cols["depletion"][1], "is not a percentage; expected 'depletion (%)'")
-    s_vals, i_vals, v_vals, d_vals, lines = [], [], [], [], []
-    width = max(k for k, _ in cols.values()) + 1
-    for line, row in rows[1:]:
-        if len(row) < width:
-            raise InputError(f"{source} line {line}", ",".join(row), f"has {len(row)} fields; expected at least {width} (as in the header)")
-        s_vals.append(_number(row[cols["substrate"][0]], "substrate", line, source) * s_factor)
-        i_vals.append(_number(row[cols["inhibitor"][0]], "inhibitor", line, source) * i_factor if "inhibitor" in cols else 0.0)
-        v_vals.append(_number(row[cols["velocity"][0]], "velocity", line, source))
-        if "depletion" in cols:
-            d_vals.append(_number(row[cols["depletion"][0]], "depletion", line, source))
-        lines.append(line)
-    if not lines:
-        raise InputError(source, "no data rows", "expected rows of substrate, inhibitor and velocity under the header")
+    table = read_columns(text, _GRID, required=needed, source=source, what="incubation data")
+    cols, header_line = table.columns, table.header_line
+    s_factor, s_unit = _substrate_unit(cols["substrate"].unit, substrate_unit, header_line)
+    i_factor = _unit_factor("inhibitor", cols["inhibitor"].unit, inhibitor_unit, header_line) if "inhibitor" in cols else 1.0
+    v_unit = _velocity_unit(cols["velocity"].unit, velocity_unit, header_line)
+    if "depletion" in cols and cols["depletion"].unit not in ("", "%", "percent"):
+        raise InputError(f"depletion (line {header_line})", cols["depletion"].unit, "is not a percentage; expected 'depletion (%)'")
+    s_vals = [x * s_factor for x in table.numbers("substrate")]
+    i_vals = [x * i_factor for x in table.numbers("inhibitor")] if "inhibitor" in cols else [0.0] * len(table.rows)
     return incubation_data(
         s_vals,
         i_vals,
-        v_vals,
+        table.numbers("velocity"),
         velocity_unit=v_unit,
-        depletion_pct=d_vals if "depletion" in cols else None,
+        depletion_pct=table.numbers("depletion") if "depletion" in cols else None,
         source=source,
-        lines=lines,
+        lines=[line for line, _ in table.rows],
         substrate_unit=s_unit,
     )
-
-
-def _number(cell: str, column: str, line: int, source: str) -> float:
-    try:
-        value = float(cell)
-    except ValueError:
-        raise InputError(f"{source} line {line}, {column}", cell, "is not a number") from None
-    if not math.isfinite(value):
-        raise InputError(f"{source} line {line}, {column}", cell, "is not a finite number")
-    _check_size(value, f"{source} line {line}, {column}", cell)
-    return value
-
-
-def _check_size(value: float, field: str, cell: str) -> None:
-    """Refuse magnitudes the fit's linear algebra cannot square (near 1e300 its normal equations overflow)."""
-    from ..units import MAGNITUDE_RANGE
-
-    low, high = MAGNITUDE_RANGE
-    if value and not low <= abs(value) <= high:
-        raise InputError(field, cell, f"is beyond the accepted magnitudes ({low:g} to {high:g}); rescale the column's unit")
 
 
 def _unit_factor(column: str, header_unit: str, given: str | None, line: int) -> float:
@@ -347,12 +261,12 @@ class IC50Data:
     source: str = ""
 
 
-def columns_of(text: str) -> tuple[str, ...]:
+def columns_of(text: str, source: str = "data") -> tuple[str, ...]:
     """The recognised column names of a CSV header (for choosing between grid and IC50 modes)."""
-    rows = _rows(text)
+    rows = read_rows(text, source)
     if not rows:
         return ()
-    return tuple(_columns(rows[0][1], rows[0][0]))
+    return tuple(find_columns(rows[0][1], (*_GRID, "activity"), source=source, line=rows[0][0]))
 
 
 def read_ic50_csv(path: str | Path, *, inhibitor_unit: str | None = None) -> IC50Data:
@@ -367,31 +281,26 @@ def read_ic50_csv(path: str | Path, *, inhibitor_unit: str | None = None) -> IC5
 
 def parse_ic50_csv(text: str, *, source: str = "data", inhibitor_unit: str | None = None) -> IC50Data:
     """Parse IC50 CSV text (see :func:`read_ic50_csv`); zero inhibitor rows are controls."""
-    rows = _rows(text)
-    if not rows:
-        raise InputError(source, "empty file", "expected a header row (inhibitor, response) and data rows")
-    header_line, header = rows[0]
-    cols = _columns(header, header_line)
-    resp_key = "response" if "response" in cols else ("velocity" if "velocity" in cols else None)
-    if "inhibitor" not in cols or resp_key is None:
+    table = read_columns(text, ("inhibitor", "activity", "velocity"), required=("inhibitor",), source=source, what="an IC50 curve")
+    cols = table.columns
+    resp_key = "activity" if "activity" in cols else ("velocity" if "velocity" in cols else None)
+    if resp_key is None:
         raise InputError(
-            f"{source} header (line {header_line})",
-            ",".join(header),
+            f"{source} header (line {table.header_line})",
+            ",".join(table.header),
             "lacks the columns for an IC50 curve; expected inhibitor (with its unit, e.g. 'inhibitor (uM)') and "
-            "response (or activity, velocity)",
+            f"response (or {', '.join(n for n in ALIASES['activity'] if n != 'response')}, velocity)",
         )
-    factor = _unit_factor("inhibitor", cols["inhibitor"][1], inhibitor_unit, header_line)
-    width = max(cols["inhibitor"][0], cols[resp_key][0]) + 1
-    xs, ys, lines = [], [], []
-    for line, row in rows[1:]:
-        if len(row) < width:
-            raise InputError(f"{source} line {line}", ",".join(row), f"has {len(row)} fields; expected at least {width} (as in the header)")
-        x = _number(row[cols["inhibitor"][0]], "inhibitor", line, source) * factor
+    factor = _unit_factor("inhibitor", cols["inhibitor"].unit, inhibitor_unit, table.header_line)
+    xs = []
+    for (line, row), x in zip(table.rows, table.numbers("inhibitor"), strict=True):
         if x < 0:
-            raise InputError(f"{source} line {line}, inhibitor", row[cols["inhibitor"][0]], "must not be negative")
-        xs.append(x)
-        ys.append(_number(row[cols[resp_key][0]], resp_key, line, source))
-        lines.append(line)
-    if not lines:
-        raise InputError(source, "no data rows", "expected rows of inhibitor and response under the header")
-    return IC50Data(inhibitor_um=tuple(xs), response=tuple(ys), response_unit=cols[resp_key][1], lines=tuple(lines), source=source)
+            raise InputError(f"{source} line {line}, {cols['inhibitor'].header}", row[cols["inhibitor"].index], "must not be negative")
+        xs.append(x * factor)
+    return IC50Data(
+        inhibitor_um=tuple(xs),
+        response=tuple(table.numbers(resp_key)),
+        response_unit=cols[resp_key].unit,
+        lines=tuple(line for line, _ in table.rows),
+        source=source,
+    )

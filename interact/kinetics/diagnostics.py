@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .fitting import ModelComparison
+from .fitting import ModelComparison, inverse_constants
 
 __all__ = ["PlotData", "Series", "diagnostic_plots", "dixon_data", "double_reciprocal_data", "residual_data"]
 
@@ -48,19 +48,9 @@ class PlotData:
 
 
 def _kappas(comp: ModelComparison, model: str) -> tuple[float, float, float, float]:
-    fit = comp.fit(model)
-    u = fit.theta
-    vmax, km = u[0], u[1]
-    kc = ku = 0.0
-    if model == "competitive":
-        kc = u[2]
-    elif model == "uncompetitive":
-        ku = u[2]
-    elif model == "noncompetitive":
-        kc = ku = u[2]
-    elif model == "mixed":
-        kc, ku = u[2], u[3]
-    return vmax, km, kc, ku
+    """Vmax, Km, 1/Kic and 1/Kiu of the fitted ``model``."""
+    u = comp.fit(model).theta
+    return (u[0], u[1], *inverse_constants(model, u))
 
 
 def _recip_unit(unit: str) -> str:

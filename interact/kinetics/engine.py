@@ -277,6 +277,8 @@ class _Solution:
     message: str
     iterations: int
     grad: list[float] | None = None  # J^T r at u (half the gradient of the cost)
+    resid: Array | None = None  # r(u) and J(u), kept so that callers need not evaluate them again at u
+    jac: Array | None = None
 
 
 def _lm(
@@ -300,10 +302,10 @@ def _lm(
     """
     del gtol  # the rounding-floor test below subsumes a gradient test
     p = len(u0)
-    lo_l = [float(v) for v in lo]
-    hi_l = [float(v) for v in hi]
-    ul = [min(max(float(v), lo_l[k]), hi_l[k]) for k, v in enumerate(u0)]
-    fixed_l = [bool(v) for v in fixed]
+    lo_l = np.asarray(lo, dtype=float).tolist()
+    hi_l = np.asarray(hi, dtype=float).tolist()
+    ul = np.minimum(np.maximum(np.asarray(u0, dtype=float), lo_l), hi_l).tolist()
+    fixed_l = np.asarray(fixed, dtype=bool).tolist()
     bounded = any(math.isfinite(v) for v in lo_l) or any(math.isfinite(v) for v in hi_l)
     base_idx = [k for k in range(p) if not fixed_l[k]]
     if not base_idx:
@@ -318,13 +320,14 @@ def _lm(
     dmax = [max(a[k][k], _TINY) for k in range(p)]
     mu = mu0  # damping relative to the Marquardt scaling diag(J^T J)
     nu = 2.0
+    fused = prob.model.function_jacobian is not None
     for it in range(1, max_iter + 1):
         if cost == 0.0:
-            return _Solution(u, cost, True, "exact fit", it, grad=g)
+            return _Solution(u, cost, True, "exact fit", it, grad=g, resid=r, jac=jac)
         if bounded:
             idx = [k for k in base_idx if not ((ul[k] <= lo_l[k] and g[k] > 0) or (ul[k] >= hi_l[k] and g[k] < 0))]
             if not idx:
-                return _Solution(u, cost, True, "converged at the bounds", it, grad=g)
+                return _Solution(u, cost, True, "converged at the bounds", it, grad=g, resid=r, jac=jac)
         else:
             idx = base_idx
         q = len(idx)
@@ -340,33 +343,12 @@ def _lm(
         promised = 0.0
         for k in range(q):
             promised += -h[k] * gf[k] + damp[k] * h[k] * h[k]
-        trial = ul[:]
-        clipped = False
-        small = True
-        for n_k, k in enumerate(idx):
-            t = trial[k] + h[n_k]
-            if bounded:
-                if t < lo_l[k]:
-                    t, clipped = lo_l[k], True
-                elif t > hi_l[k]:
-                    t, clipped = hi_l[k], True
-            if abs(t - ul[k]) > xtol * (abs(ul[k]) + xtol):
-                small = False
-            trial[k] = t
-        if clipped:
-            sf = [trial[k] - ul[k] for k in idx]
-            predicted = 0.0
-            for i in range(q):
-                row = af[i]
-                acc = 0.0
-                for j in range(q):
-                    acc += row[j] * sf[j]
-                predicted += -2.0 * sf[i] * gf[i] - sf[i] * acc
-        else:
-            predicted = promised
+        trial, small, predicted = _trial_point(ul, h, idx, lo_l, hi_l, bounded, xtol, af, gf, promised)
         floor = promised <= floor_tol * cost  # the linear model promises less than rounding (or the caller) needs
         ut = np.array(trial)
-        rt = prob.resid(ut)
+        # a model computing f and J together costs little more than f alone: evaluate both at the trial point,
+        # so an accepted step (the usual case) does not evaluate f again
+        rt, jt = prob.resid_jac(ut) if fused else (prob.resid(ut), None)
         ct = float(rt @ rt)
         if ct != ct:  # NaN: the model is undefined there
             ct = math.inf
@@ -374,7 +356,7 @@ def _lm(
             rho = (cost - ct) / predicted if predicted > 0 else 1.0
             reduction = cost - ct
             u, ul, cost = ut, trial, ct
-            r, jac = prob.resid_jac(u)
+            r, jac = (rt, jt) if jt is not None else prob.resid_jac(u)
             a = (jac.T @ jac).tolist()
             g = (jac.T @ r).tolist()
             if not math.isfinite(sum(g)):
@@ -385,15 +367,58 @@ def _lm(
             mu *= max(0.1, 1.0 - (2.0 * rho - 1.0) ** 3)
             nu = 2.0
             if reduction <= ftol * cost or small or floor:
-                return _Solution(u, cost, True, "converged", it, grad=g)
+                return _Solution(u, cost, True, "converged", it, grad=g, resid=r, jac=jac)
         else:
             if small or floor:
-                return _Solution(u, cost, True, "converged (step)", it, grad=g)
+                return _Solution(u, cost, True, "converged (step)", it, grad=g, resid=r, jac=jac)
             mu *= nu
             nu *= 2.0
             if mu > 1e300:
-                return _Solution(u, cost, True, "converged (no further decrease possible)", it, grad=g)
-    return _Solution(u, cost, False, f"did not converge in {max_iter} iterations", max_iter, grad=g)
+                return _Solution(u, cost, True, "converged (no further decrease possible)", it, grad=g, resid=r, jac=jac)
+    return _Solution(u, cost, False, f"did not converge in {max_iter} iterations", max_iter, grad=g, resid=r, jac=jac)
+
+
+def _trial_point(
+    ul: list[float],
+    h: list[float],
+    idx: list[int],
+    lo_l: list[float],
+    hi_l: list[float],
+    bounded: bool,
+    xtol: float,
+    af: list[list[float]],
+    gf: list[float],
+    promised: float,
+) -> tuple[list[float], bool, float]:
+    """(trial point, step below xtol, decrease predicted by the linear model) of the LM step ``h`` on the free ``idx``.
+
+    A step clipped to the box predicts the decrease of the clipped step, -2 s.g - s.A.s.
+    """
+    trial = ul[:]
+    clipped = False
+    small = True
+    for n_k, k in enumerate(idx):
+        t = trial[k] + h[n_k]
+        if bounded:
+            if t < lo_l[k]:
+                t, clipped = lo_l[k], True
+            elif t > hi_l[k]:
+                t, clipped = hi_l[k], True
+        if abs(t - ul[k]) > xtol * (abs(ul[k]) + xtol):
+            small = False
+        trial[k] = t
+    if not clipped:
+        return trial, small, promised
+    sf = [trial[k] - ul[k] for k in idx]
+    predicted = 0.0
+    q = len(idx)
+    for i in range(q):
+        row = af[i]
+        acc = 0.0
+        for j in range(q):
+            acc += row[j] * sf[j]
+        predicted += -2.0 * sf[i] * gf[i] - sf[i] * acc
+    return trial, small, predicted
 
 
 def _solve_damped(a: list[list[float]], g: list[float], damping: list[float]) -> list[float] | None:
@@ -468,11 +493,14 @@ def _degenerate(prob: _Problem, sol: _Solution, lo: Array, hi: Array) -> bool:
     free = ~(((sol.u <= lo) | (sol.u >= hi)) & (np.isfinite(lo) | np.isfinite(hi)))
     if not free.any():
         return False
-    jac = prob.resid_jac(sol.u)[1][:, free]
-    if not np.all(np.isfinite(jac)):
+    jac = (sol.jac if sol.jac is not None else prob.resid_jac(sol.u)[1])[:, free]
+    if not np.isfinite(jac).all():
         return True
-    sv = np.linalg.svd(jac * (1.0 / np.maximum(np.linalg.norm(jac, axis=0), _TINY)), compute_uv=False)
-    return bool(sv[-1] < 1e-10 * sv[0] or np.any(np.linalg.norm(jac, axis=0) == 0.0))
+    norms = np.sqrt(np.einsum("ij,ij->j", jac, jac))
+    if not norms.all():  # a parameter the model does not depend on here
+        return True
+    sv = np.linalg.svd(jac / norms, compute_uv=False)
+    return bool(sv[-1] < 1e-10 * sv[0])
 
 
 def _scipy_fallback(prob: _Problem, u0: Array, lo: Array, hi: Array) -> _Solution:
@@ -630,8 +658,7 @@ def fit_point(
     """
     yv = np.asarray(y, dtype=float)
     p = len(model.parameters)
-    lo = np.asarray(model.lower, dtype=float) if model.lower else np.full(p, -np.inf)
-    hi = np.asarray(model.upper, dtype=float) if model.upper else np.full(p, np.inf)
+    lo, hi = _bounds(model)
     given = None if sample_weights is None else np.asarray(sample_weights, dtype=float)
     prob = _Problem(model, x, yv, "none", given)
     u0 = np.asarray(start, dtype=float)
@@ -693,143 +720,37 @@ def fit_curve(
     """
     from scipy.special import stdtrit
 
-    if weights not in WEIGHTS:
-        raise InputError("weights", weights, f"is not one of {', '.join(WEIGHTS)}")
-    yv = np.asarray(y, dtype=float)
-    if yv.ndim != 1 or not np.all(np.isfinite(yv)):
-        raise InputError("y", "data", "must be a one-dimensional array of finite numbers")
-    start_list = np.atleast_2d(np.asarray(starts, dtype=float))
-    p = len(model.parameters)
-    if start_list.shape[1] != p:
-        raise FitError(f"{model.name}: {start_list.shape[1]} starting values for {p} parameters")
-    n = yv.size
-    if n <= p:
-        raise InputError("data", f"{n} observations", f"are too few for the {model.name} model; expected more than {p}")
-    if weights in ("1/y", "1/y2", "poisson") and np.any(yv <= 0):
-        bad = int(np.flatnonzero(yv <= 0)[0])
-        raise InputError("weights", weights, f"needs positive observations; observation {bad + 1} is {yv[bad]:g} (use weights none)")
-    if not 0 < level < 1:
-        raise InputError("level", level, "is not between 0 and 1")
-    lo = np.asarray(model.lower, dtype=float) if model.lower else np.full(p, -np.inf)
-    hi = np.asarray(model.upper, dtype=float) if model.upper else np.full(p, np.inf)
-    given = None
-    if sample_weights is not None:
-        given = np.asarray(sample_weights, dtype=float)
-        if given.shape != yv.shape or not np.all(np.isfinite(given)) or np.any(given <= 0):
-            raise InputError("sample_weights", "array", f"must hold {n} finite weights above zero")
+    yv, start_list, given = _checked_inputs(model, y, starts, weights, level, sample_weights)
+    n, p = yv.size, len(model.parameters)
+    lo, hi = _bounds(model)
     prob = _Problem(model, x, yv, weights, given)
     fixed = np.zeros(p, dtype=bool)
-
-    best: _Solution | None = None
-
-    def start_cost(st: Array) -> float:
-        rr = prob.resid(np.minimum(np.maximum(st, lo), hi))
-        c = float(rr @ rr)
-        return c if math.isfinite(c) else math.inf
-
-    ordered = sorted(start_list, key=start_cost) if len(start_list) > 1 else list(start_list)
-    for start in ordered:
-        if best is not None and best.success:
-            break  # the best-looking start converged; others only as fallbacks
-        with np.errstate(all="ignore"):
-            sol = _lm(prob, start, lo, hi, fixed)
-            if not sol.success or _degenerate(prob, sol, lo, hi):
-                # scipy's trust-region reflective from the ORIGINAL start (a diverged iterate is a bad place to
-                # restart from: NIST MGH10 start 1); also when the solution is a flat, rank-deficient point
-                # (NIST BoxBOD start 1), where the lower cost wins
-                retry = _scipy_fallback(prob, np.asarray(start, dtype=float), lo, hi)
-                if retry.success and (retry.cost < sol.cost or not sol.success):
-                    retry.message = f"{sol.message}; retried with scipy from the start: {retry.message}"
-                    sol = retry
-        if best is None or (sol.success, -sol.cost) > (best.success, -best.cost):
-            best = sol
-    assert best is not None
-    u = best.u
-    df = n - p
-    cost = best.cost
+    best = _best_solution(prob, start_list, lo, hi, fixed)
+    u, cost, df = best.u, best.cost, n - p
     tq = float(stdtrit(df, 0.5 + level / 2.0))
     if not math.isfinite(cost):
         return _failed(model, prob, u, weights, n, p, df, best.message or "the model could not be evaluated", level)
 
-    r, jac = prob.resid_jac(u)
+    r, jac = (best.resid, best.jac) if best.resid is not None and best.jac is not None else prob.resid_jac(u)
     s2 = cost / df
     exact = cost <= 1e-30 * max(float(yv @ yv), 1e-300)  # noise-free data: no residual variance to work with
     on_bound = ((u <= lo) | (u >= hi)) & (np.isfinite(lo) | np.isfinite(hi))
     free = ~on_bound
-    cov_u: Array | None = None
-    leverage = np.zeros(n)
-    jf = jac[:, free]
-    if jf.size and not exact:
-        uu, sv, vt = np.linalg.svd(jf, full_matrices=False)
-        if sv.size and sv[-1] > sv[0] * 1e-12 and sv[-1] > 0:
-            cf = (vt.T / sv**2) @ vt * s2
-            if free.all():
-                cov_u = cf
-            else:
-                cov_u = np.full((p, p), np.nan)
-                cov_u[np.ix_(free, free)] = cf
-            leverage = np.sum(uu**2, axis=1)
-    # step scales for the profile where no standard error exists (unconstrained curvature)
-    hint = np.full(p, np.nan)
-    needs_hint = [j for j in profile if cov_u is None or not free[j]]
-    if needs_hint:
-        try:
-            hint = np.sqrt(np.abs(np.diag(np.linalg.pinv(jac.T @ jac)) * s2))
-        except np.linalg.LinAlgError:
-            pass
-        if step_hints is not None:
-            hint = np.where(np.isfinite(hint) & (hint > 0), hint, np.asarray(step_hints, dtype=float))
+    cov_u, leverage = (None, np.zeros(n)) if exact else _covariance(jac, free, s2)
+    hint = _profile_steps(jac, s2, [j for j in profile if cov_u is None or not free[j]], step_hints)
 
-    w = prob.weights_at(u)
     fitted = prob.fitted(u)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        loglik = (
-            -0.5 * n * (math.log(2.0 * math.pi * cost / n) + 1.0)
-            + (0.5 * float(np.sum(np.log(w))) if weights != "none" or given is not None else 0.0)
-            if not exact
-            else math.inf
-        )
-    k = p + 1 + extra_params
-    aic = -2.0 * loglik + 2.0 * k
-    aicc = aic + (2.0 * k * (k + 1) / (n - k - 1) if n - k - 1 > 0 else math.inf)
-    bic = -2.0 * loglik + k * math.log(n)
-    # externally studentised residuals
-    with np.errstate(divide="ignore", invalid="ignore"):
-        one_h = np.clip(1.0 - leverage, 1e-12, None)
-        s_i2 = (cost - r**2 / one_h) / (df - 1) if df > 1 else np.full(n, np.nan)
-        stud = r / np.sqrt(np.clip(s_i2, _TINY, None) * one_h)
-    stud = np.where(np.isfinite(stud), stud, 0.0) if not exact else np.zeros(n)
-
-    profiles: dict[int, tuple[float, float]] = {}
-    for j in profile if not exact else ():
-        se_j = math.sqrt(cov_u[j, j]) if cov_u is not None and free[j] and cov_u[j, j] > 0 else float(hint[j])
-        if not math.isfinite(se_j) or se_j <= 0:
-            se_j = max(abs(float(u[j])) * 0.5, 1e-12)
-        trend = None
-        if cov_u is not None and free[j] and cov_u[j, j] > 0:
-            trend = np.nan_to_num(cov_u[:, j] / cov_u[j, j], nan=0.0)
-        low = _profile_side(prob, u, cost, j, -1, tq * se_j, tq, s2, lo, hi, fixed, trend)
-        high = _profile_side(prob, u, cost, j, +1, tq * se_j, tq, s2, lo, hi, fixed, trend)
-        profiles[j] = (low, high)
-
-    estimates = []
-    warnings: list[str] = []
-    for j in range(p):
-        estimates.append(_estimate(model, j, u, cov_u, free[j], on_bound[j], tq, profiles.get(j), lo[j], hi[j]))
-    cov_rep = None
-    if cov_u is not None and free.all():
-        d = np.array([(-1.0 / u[j] ** 2 if model.kind(j) == "inverse" else 1.0) for j in range(p)])
-        cov_rep = tuple(tuple(float(v) for v in row) for row in (cov_u * np.outer(d, d)))
-    if exact:
-        warnings.append(f"{model.name}: the model fits the data exactly; standard errors and intervals are not defined")
-    elif cov_u is None:
-        warnings.append(f"{model.name}: the information matrix is singular; standard errors cannot be estimated")
+    loglik, aic, aicc, bic = _criteria(cost, n, p + 1 + extra_params, prob.weights_at(u), weights != "none" or given is not None, exact)
+    stud = np.zeros(n) if exact else _studentized(r, leverage, cost, df)
+    profiles = {} if exact else _profiles(prob, u, cost, profile, cov_u, free, hint, tq, s2, lo, hi, fixed)
+    estimates = tuple(_estimate(model, j, u, cov_u, free[j], on_bound[j], tq, profiles.get(j), lo[j], hi[j]) for j in range(p))
+    cov_rep, warnings = _reported_covariance(model, u, cov_u, free, exact)
     return FitResult(
         model=model.name,
         equation=model.equation,
         success=bool(best.success),
         message=best.message,
-        estimates=tuple(estimates),
+        estimates=estimates,
         weights=weights,
         n=n,
         n_params=p,
@@ -848,8 +769,179 @@ def fit_curve(
         theta=tuple(u.tolist()),
         covariance=cov_rep,
         level=level,
-        warnings=tuple(warnings),
+        warnings=warnings,
     )
+
+
+def _bounds(model: CurveModel) -> tuple[Array, Array]:
+    """The model's box bounds as arrays (infinite where none is given)."""
+    p = len(model.parameters)
+    lo = np.asarray(model.lower, dtype=float) if model.lower else np.full(p, -np.inf)
+    hi = np.asarray(model.upper, dtype=float) if model.upper else np.full(p, np.inf)
+    return lo, hi
+
+
+def _reported_covariance(
+    model: CurveModel, u: Array, cov_u: Array | None, free: NDArray[np.bool_], exact: bool
+) -> tuple[tuple[tuple[float, ...], ...] | None, tuple[str, ...]]:
+    """The covariance on the reported scale (1/K -> K: derivative -1/u^2) when every parameter is free, and the warnings."""
+    cov_rep = None
+    if cov_u is not None and free.all():
+        d = np.array([(-1.0 / u[j] ** 2 if model.kind(j) == "inverse" else 1.0) for j in range(u.size)])
+        cov_rep = tuple(tuple(float(v) for v in row) for row in (cov_u * np.outer(d, d)))
+    if exact:
+        return cov_rep, (f"{model.name}: the model fits the data exactly; standard errors and intervals are not defined",)
+    if cov_u is None:
+        return cov_rep, (f"{model.name}: the information matrix is singular; standard errors cannot be estimated",)
+    return cov_rep, ()
+
+
+def _checked_inputs(
+    model: CurveModel,
+    y: Sequence[float] | Array,
+    starts: Sequence[Sequence[float]] | Array,
+    weights: str,
+    level: float,
+    sample_weights: Sequence[float] | Array | None,
+) -> tuple[Array, Array, Array | None]:
+    """(observations, starting vectors, known weights) of :func:`fit_curve`, checked; InputError names the bad argument."""
+    if weights not in WEIGHTS:
+        raise InputError("weights", weights, f"is not one of {', '.join(WEIGHTS)}")
+    yv = np.asarray(y, dtype=float)
+    if yv.ndim != 1 or not np.all(np.isfinite(yv)):
+        raise InputError("y", "data", "must be a one-dimensional array of finite numbers")
+    start_list = np.atleast_2d(np.asarray(starts, dtype=float))
+    p = len(model.parameters)
+    if start_list.shape[1] != p:
+        raise FitError(f"{model.name}: {start_list.shape[1]} starting values for {p} parameters")
+    n = yv.size
+    if n <= p:
+        raise InputError("data", f"{n} observations", f"are too few for the {model.name} model; expected more than {p}")
+    if weights in ("1/y", "1/y2", "poisson") and np.any(yv <= 0):
+        bad = int(np.flatnonzero(yv <= 0)[0])
+        raise InputError("weights", weights, f"needs positive observations; observation {bad + 1} is {yv[bad]:g} (use weights none)")
+    if not 0 < level < 1:
+        raise InputError("level", level, "is not between 0 and 1")
+    given = None
+    if sample_weights is not None:
+        given = np.asarray(sample_weights, dtype=float)
+        if given.shape != yv.shape or not np.all(np.isfinite(given)) or np.any(given <= 0):
+            raise InputError("sample_weights", "array", f"must hold {n} finite weights above zero")
+    return yv, start_list, given
+
+
+def _best_solution(prob: _Problem, start_list: Array, lo: Array, hi: Array, fixed: NDArray[np.bool_]) -> _Solution:
+    """The lowest-cost converged solution, trying the starts from the best-looking one; scipy as the fallback."""
+
+    def start_cost(st: Array) -> float:
+        rr = prob.resid(np.minimum(np.maximum(st, lo), hi))
+        c = float(rr @ rr)
+        return c if math.isfinite(c) else math.inf
+
+    best: _Solution | None = None
+    ordered = sorted(start_list, key=start_cost) if len(start_list) > 1 else list(start_list)
+    for start in ordered:
+        if best is not None and best.success:
+            break  # the best-looking start converged; others only as fallbacks
+        with np.errstate(all="ignore"):
+            sol = _lm(prob, start, lo, hi, fixed)
+            if not sol.success or _degenerate(prob, sol, lo, hi):
+                # scipy's trust-region reflective from the ORIGINAL start (a diverged iterate is a bad place to
+                # restart from: NIST MGH10 start 1); also when the solution is a flat, rank-deficient point
+                # (NIST BoxBOD start 1), where the lower cost wins
+                retry = _scipy_fallback(prob, np.asarray(start, dtype=float), lo, hi)
+                if retry.success and (retry.cost < sol.cost or not sol.success):
+                    retry.message = f"{sol.message}; retried with scipy from the start: {retry.message}"
+                    sol = retry
+        if best is None or (sol.success, -sol.cost) > (best.success, -best.cost):
+            best = sol
+    assert best is not None
+    return best
+
+
+def _profile_steps(jac: Array, s2: float, needed: list[int], step_hints: Sequence[float] | None) -> Array:
+    """Step scales for the profile where no standard error exists (unconstrained curvature, else the hints)."""
+    hint = np.full(jac.shape[1], np.nan)
+    if needed:
+        try:
+            hint = np.sqrt(np.abs(np.diag(np.linalg.pinv(jac.T @ jac)) * s2))
+        except np.linalg.LinAlgError:
+            pass
+        if step_hints is not None:
+            hint = np.where(np.isfinite(hint) & (hint > 0), hint, np.asarray(step_hints, dtype=float))
+    return hint
+
+
+def _covariance(jac: Array, free: NDArray[np.bool_], s2: float) -> tuple[Array | None, Array]:
+    """(covariance of the fitting parameters, NaN rows for those on a bound; leverages) from the Jacobian's SVD."""
+    p = jac.shape[1]
+    cov_u: Array | None = None
+    leverage = np.zeros(jac.shape[0])
+    jf = jac[:, free]
+    if jf.size:
+        uu, sv, vt = np.linalg.svd(jf, full_matrices=False)
+        if sv.size and sv[-1] > sv[0] * 1e-12 and sv[-1] > 0:
+            cf = (vt.T / sv**2) @ vt * s2
+            if free.all():
+                cov_u = cf
+            else:
+                cov_u = np.full((p, p), np.nan)
+                cov_u[np.ix_(free, free)] = cf
+            leverage = np.sum(uu**2, axis=1)
+    return cov_u, leverage
+
+
+def _criteria(cost: float, n: int, k: int, w: Array, weighted: bool, exact: bool) -> tuple[float, float, float, float]:
+    """Gaussian log-likelihood (variance estimated), AIC, AICc and BIC with ``k`` parameters (module docstring)."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        loglik = (
+            -0.5 * n * (math.log(2.0 * math.pi * cost / n) + 1.0) + (0.5 * float(np.sum(np.log(w))) if weighted else 0.0)
+            if not exact
+            else math.inf
+        )
+    aic = -2.0 * loglik + 2.0 * k
+    aicc = aic + (2.0 * k * (k + 1) / (n - k - 1) if n - k - 1 > 0 else math.inf)
+    bic = -2.0 * loglik + k * math.log(n)
+    return loglik, aic, aicc, bic
+
+
+def _studentized(r: Array, leverage: Array, cost: float, df: int) -> Array:
+    """Externally studentised residuals (0 where not defined)."""
+    n = r.size
+    with np.errstate(divide="ignore", invalid="ignore"):
+        one_h = np.clip(1.0 - leverage, 1e-12, None)
+        s_i2 = (cost - r**2 / one_h) / (df - 1) if df > 1 else np.full(n, np.nan)
+        stud = r / np.sqrt(np.clip(s_i2, _TINY, None) * one_h)
+    return np.where(np.isfinite(stud), stud, 0.0)
+
+
+def _profiles(
+    prob: _Problem,
+    u: Array,
+    cost: float,
+    profile: Sequence[int],
+    cov_u: Array | None,
+    free: NDArray[np.bool_],
+    hint: Array,
+    tq: float,
+    s2: float,
+    lo: Array,
+    hi: Array,
+    fixed: NDArray[np.bool_],
+) -> dict[int, tuple[float, float]]:
+    """Profile-likelihood limits (fitting scale) of each parameter in ``profile``."""
+    profiles: dict[int, tuple[float, float]] = {}
+    for j in profile:
+        se_j = math.sqrt(cov_u[j, j]) if cov_u is not None and free[j] and cov_u[j, j] > 0 else float(hint[j])
+        if not math.isfinite(se_j) or se_j <= 0:
+            se_j = max(abs(float(u[j])) * 0.5, 1e-12)
+        trend = None
+        if cov_u is not None and free[j] and cov_u[j, j] > 0:
+            trend = np.nan_to_num(cov_u[:, j] / cov_u[j, j], nan=0.0)
+        low = _profile_side(prob, u, cost, j, -1, tq * se_j, tq, s2, lo, hi, fixed, trend)
+        high = _profile_side(prob, u, cost, j, +1, tq * se_j, tq, s2, lo, hi, fixed, trend)
+        profiles[j] = (low, high)
+    return profiles
 
 
 def _estimate(

@@ -43,6 +43,7 @@ __all__ = [
     "guess_inhibition",
     "guess_michaelis_menten",
     "inhibition_model",
+    "inverse_constants",
     "spearman",
 ]
 
@@ -88,16 +89,17 @@ DEPLETION_LIMIT_PCT: Final = 20.0  # FDA: substrate depletion <= 20 % (from memo
 # --------------------------------------------------------------------------- models
 
 
-def _kappas(name: str, u: Array) -> tuple[float, float]:
+def inverse_constants(name: str, theta: Sequence[float]) -> tuple[float, float]:
+    """(1/Kic, 1/Kiu) of the model ``name`` at its fitting parameters ``theta`` (0 for a route the model lacks)."""
     if name == "none":
         return 0.0, 0.0
     if name == "competitive":
-        return u[2], 0.0
+        return theta[2], 0.0
     if name == "noncompetitive":
-        return u[2], u[2]
+        return theta[2], theta[2]
     if name == "uncompetitive":
-        return 0.0, u[2]
-    return u[2], u[3]
+        return 0.0, theta[2]
+    return theta[2], theta[3]
 
 
 class _Grid:
@@ -139,9 +141,12 @@ def _denominator(name: str, grid: _Grid, u: list[float]) -> tuple[Array, Array |
     return d, a
 
 
-def _nonzero(d: Array) -> Array:
+def _nonzero(d: Array, u: list[float]) -> Array:
     """The denominator with its zeros set to 1: d = 0 only where [S] = 0 and Km (or a trial Km) is 0, where the rate
-    and its derivatives are 0 (the numerator holds [S]); avoids 0/0 for a trial Km of 0 on rows without substrate."""
+    and its derivatives are 0 (the numerator holds [S]); avoids 0/0 for a trial Km of 0 on rows without substrate.
+    With Km > 0 and no negative constant, d >= Km > 0 everywhere and the array is not scanned (a measured saving)."""
+    if u[1] > 0.0 and min(u) >= 0.0:
+        return d
     return d if d.all() else np.where(d == 0.0, 1.0, d)
 
 
@@ -152,7 +157,7 @@ def _function(name: str):  # type: ignore[no-untyped-def]
         g = grid.of(x)
         ul = u.tolist()
         d, _ = _denominator(name, g, ul)
-        return (ul[0] * g.s) / _nonzero(d)
+        return (ul[0] * g.s) / _nonzero(d, ul)
 
     return f
 
@@ -174,7 +179,7 @@ def _fused(name: str):  # type: ignore[no-untyped-def]
         gr = grid.of(x)
         ul = u.tolist()
         d, a = _denominator(name, gr, ul)
-        d = _nonzero(d)
+        d = _nonzero(d, ul)
         out = np.empty((p, d.size))
         g = np.divide(gr.s, d, out=out[0])
         f = g * ul[0]
@@ -345,10 +350,12 @@ def _power_exponent(resid: Array, fitted: Array, rows: NDArray[np.bool_]) -> flo
     logf = np.log(np.maximum(f, _FLOOR_FRACTION * float(np.max(f))))[rows]
     r2 = np.asarray(resid, dtype=float)[rows] ** 2
     n = r2.size
+    sum_logf = float(np.sum(logf))
+    minus_2logf = -2.0 * logf
 
     def neg(theta: float) -> float:
-        s2 = float(np.mean(r2 * np.exp(-2.0 * theta * logf)))
-        return 0.5 * n * math.log(max(s2, 1e-300)) + theta * float(np.sum(logf))
+        s2 = float(r2 @ np.exp(theta * minus_2logf)) / n
+        return 0.5 * n * math.log(max(s2, 1e-300)) + theta * sum_logf
 
     return float(minimize_scalar(neg, bounds=(0.0, 3.0), method="bounded", options={"xatol": 1e-6}).x)
 
@@ -686,75 +693,19 @@ def fit_inhibition(
     verdict says so; the model without inhibition is always fitted, because inhibition is reported only
     when it is rejected.
     """
-    chosen_models = tuple(dict.fromkeys(models))
-    if not chosen_models:
-        raise InputError("models", "none given", f"expected one or more of {', '.join(MODELS)}")
-    for m in chosen_models:
-        if m not in MODELS:
-            raise InputError("models", m, f"is not one of {', '.join(MODELS)}")
-    if weights not in FIT_WEIGHTS:
-        raise InputError("weights", weights, f"is not one of {', '.join(FIT_WEIGHTS)}")
     single_level = _check_design(data)
-    if single_level:
-        chosen_models = ("none",)
-    elif "none" not in chosen_models:
-        chosen_models = ("none", *chosen_models)  # the test of "no inhibition" needs it
-    s, i, v = data.arrays()
-    x = np.vstack((s, i))
-    starts = guess_inhibition(data)
-    hints = _step_hints(i)
-    # caps far outside any sensible value (10^4 x the data): reaching one means "not identifiable", not a result
-    positive_i = i[i > 0]
-    caps = (
-        1e4 * float(np.max(np.abs(v))) or math.inf,
-        1e4 * float(np.max(s)),
-        1e4 / float(np.min(positive_i)) if positive_i.size else math.inf,
-    )
-    order = [m for m in MODELS if m in chosen_models]
-
-    def fit_all(label: str, sample_weights: Array | None, with_profiles: bool, extra: int) -> dict[str, FitResult]:
-        out: dict[str, FitResult] = {}
-        for name in order:
-            model = inhibition_model(
-                name, data.velocity_unit, vmax_max=caps[0], km_max=caps[1], kappa_max=caps[2], km_unit=data.substrate_unit
-            )
-            st = list(starts[name])
-            if name == "mixed":
-                st.extend(_mixed_starts(out))
-            # Km and Vmax get profile intervals in the model without inhibition (a plain Michaelis-Menten fit
-            # reports them); the inhibition models profile their inhibition constants
-            prof = (tuple(range(2, len(model.parameters))) if name != "none" else (0, 1)) if with_profiles else ()
-            out[name] = fit_curve(
-                model,
-                x,
-                v,
-                st,
-                weights=label,
-                profile=prof,
-                level=level,
-                step_hints=(1.0, 1.0, *([hints] * (len(model.parameters) - 2))),
-                sample_weights=sample_weights,
-                extra_params=extra,
-            )
-        return out
-
+    grid = _GlobalFit.of_data(data, _models_to_fit(models, weights, single_level), level)
+    x, v, i = grid.x, grid.v, grid.x[1]
     error_model: ErrorModel | None = None
     sample_weights: Array | None = None
     if weights == "auto":
-        first = fit_all("none", None, False, 0)
-        error_model = choose_error_model(
-            first[order[-1]],
-            x,
-            v,
-            inhibition_model(
-                order[-1], data.velocity_unit, vmax_max=caps[0], km_max=caps[1], kappa_max=caps[2], km_unit=data.substrate_unit
-            ),
-        )
+        first = grid.fit_all("none", None, False, 0)
+        error_model = choose_error_model(first[grid.order[-1]], x, v, grid.model(grid.order[-1]))
         sample_weights = error_model.weights
-        fits = fit_all("none", sample_weights, profile, 1 if error_model.name == "power" else 0)
+        fits = grid.fit_all("none", sample_weights, profile, 1 if error_model.name == "power" else 0, first)
     else:
-        fits = fit_all(weights, None, profile, 0)
-    fit_tuple = tuple(fits[m] for m in order)
+        fits = grid.fit_all(weights, None, profile, 0)
+    fit_tuple = tuple(fits[m] for m in grid.order)
     ranking = _rank(fit_tuple)
     f_tests = _f_tests(fits)
     sub_fit, sub_test = (
@@ -782,6 +733,83 @@ def fit_inhibition(
         substrate_inhibition_test=sub_test,
         level=level,
     )
+
+
+def _models_to_fit(models: Sequence[str], weights: str, single_level: str) -> tuple[str, ...]:
+    """The models of a global fit in :data:`MODELS` order: the requested ones, always with "none" (checked)."""
+    chosen = tuple(dict.fromkeys(models))
+    if not chosen:
+        raise InputError("models", "none given", f"expected one or more of {', '.join(MODELS)}")
+    for m in chosen:
+        if m not in MODELS:
+            raise InputError("models", m, f"is not one of {', '.join(MODELS)}")
+    if weights not in FIT_WEIGHTS:
+        raise InputError("weights", weights, f"is not one of {', '.join(FIT_WEIGHTS)}")
+    if single_level:
+        return ("none",)
+    return tuple(m for m in MODELS if m in chosen or m == "none")  # the test of "no inhibition" needs "none"
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class _GlobalFit:
+    """One data set's global-fit setup: arrays, starting values, profile step hints and the parameter caps."""
+
+    data: IncubationData
+    x: Array
+    v: Array
+    order: tuple[str, ...]
+    starts: dict[str, tuple[tuple[float, ...], ...]]
+    hints: float
+    caps: tuple[float, float, float]
+    level: float
+
+    @staticmethod
+    def of_data(data: IncubationData, order: tuple[str, ...], level: float) -> _GlobalFit:
+        s, i, v = data.arrays()
+        # caps far outside any sensible value (10^4 x the data): reaching one means "not identifiable", not a result
+        positive_i = i[i > 0]
+        caps = (
+            1e4 * float(np.max(np.abs(v))) or math.inf,
+            1e4 * float(np.max(s)),
+            1e4 / float(np.min(positive_i)) if positive_i.size else math.inf,
+        )
+        return _GlobalFit(
+            data=data, x=np.vstack((s, i)), v=v, order=order, starts=guess_inhibition(data), hints=_step_hints(i), caps=caps, level=level
+        )
+
+    def model(self, name: str) -> CurveModel:
+        vmax_max, km_max, kappa_max = self.caps
+        unit = self.data.velocity_unit
+        return inhibition_model(name, unit, vmax_max=vmax_max, km_max=km_max, kappa_max=kappa_max, km_unit=self.data.substrate_unit)
+
+    def fit_all(
+        self, label: str, sample_weights: Array | None, with_profiles: bool, extra: int, warm: dict[str, FitResult] | None = None
+    ) -> dict[str, FitResult]:
+        """Every model of ``order`` fitted with the same weights (``warm``: earlier fits whose optima start these)."""
+        out: dict[str, FitResult] = {}
+        for name in self.order:
+            model = self.model(name)
+            st = list(self.starts[name])
+            if warm is not None and warm[name].success:  # the unweighted optimum starts the weighted fit (fewer steps)
+                st.insert(0, warm[name].theta)
+            if name == "mixed":
+                st.extend(_mixed_starts(out))
+            # Km and Vmax get profile intervals in the model without inhibition (a plain Michaelis-Menten fit
+            # reports them); the inhibition models profile their inhibition constants
+            prof = (tuple(range(2, len(model.parameters))) if name != "none" else (0, 1)) if with_profiles else ()
+            out[name] = fit_curve(
+                model,
+                self.x,
+                self.v,
+                st,
+                weights=label,
+                profile=prof,
+                level=self.level,
+                step_hints=(1.0, 1.0, *([self.hints] * (len(model.parameters) - 2))),
+                sample_weights=sample_weights,
+                extra_params=extra,
+            )
+        return out
 
 
 def _step_hints(i: Array) -> float:
@@ -1005,27 +1033,23 @@ def _group_label(chosen: str, group: tuple[str, ...], collapsed: str | None) -> 
     return f"{' and '.join(group)} together"
 
 
-def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests: tuple[FTest, ...], single_level: str = "") -> Verdict:
-    if not ranking:
-        first = next(iter(fits.values()))
-        return Verdict(
-            model=first.model,
-            mechanism=None,
-            strength="none",
-            support=0.0,
-            text="No model could be fitted to these data; see the warnings.",
-        )
-    weight = {r.model: r.weight for r in ranking}
-    rank_of = {r.model: r for r in ranking}
-    best = ranking[0].model
-    notes: list[str] = []
-    unidentifiable: list[str] = []
+def _collapse(
+    best: str,
+    fits: dict[str, FitResult],
+    tests: tuple[FTest, ...],
+    weight: dict[str, float],
+    rank_of: dict[str, RankedModel],
+    notes: list[str],
+    unidentifiable: list[str],
+) -> tuple[str, tuple[str, ...], str | None]:
+    """(chosen model, group counted with it, the mixed constant that runs away) for the best-ranked ``best``.
+
+    A mixed fit that collapses onto a one-constant model (Kic or Kiu unbounded), or is not significantly
+    better than it, is reported as that simpler model; the reasons go into ``notes`` and ``unidentifiable``.
+    """
     chosen = best
     group: tuple[str, ...] = ()
     collapsed: str | None = None
-    if single_level:
-        text = f"Michaelis-Menten fit only: {single_level}; no inhibition model can be fitted, so no Ki is reported."
-        return Verdict(model="none", mechanism=None, strength=_strength(weight["none"]), support=weight["none"], text=text)
     if best == "mixed":
         mixed = fits["mixed"]
         if _at_bound(mixed, "Kic") and "uncompetitive" in weight:
@@ -1059,6 +1083,28 @@ def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests
             group, collapsed = (best, "mixed"), collapse
             unidentifiable.append(collapse)
             notes.append(f"The mixed fit collapses onto this model ({collapse} unbounded).")
+    return chosen, group, collapsed
+
+
+def _verdict(fits: dict[str, FitResult], ranking: tuple[RankedModel, ...], tests: tuple[FTest, ...], single_level: str = "") -> Verdict:
+    if not ranking:
+        first = next(iter(fits.values()))
+        return Verdict(
+            model=first.model,
+            mechanism=None,
+            strength="none",
+            support=0.0,
+            text="No model could be fitted to these data; see the warnings.",
+        )
+    weight = {r.model: r.weight for r in ranking}
+    rank_of = {r.model: r for r in ranking}
+    best = ranking[0].model
+    notes: list[str] = []
+    unidentifiable: list[str] = []
+    if single_level:
+        text = f"Michaelis-Menten fit only: {single_level}; no inhibition model can be fitted, so no Ki is reported."
+        return Verdict(model="none", mechanism=None, strength=_strength(weight["none"]), support=weight["none"], text=text)
+    chosen, group, collapsed = _collapse(best, fits, tests, weight, rank_of, notes, unidentifiable)
     support = weight[chosen]
     group_support = sum(weight.get(m, 0.0) for m in group) if group else None
     if chosen == "none":

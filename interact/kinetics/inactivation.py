@@ -20,14 +20,15 @@ Units: times in minutes, concentrations in uM (unbound if the incubation was
 corrected for binding), kobs and kinact in 1/min.  The least squares run
 through the shared engine of the reversible-inhibition fitting
 (:mod:`interact.kinetics.engine`: analytic Jacobian, asymptotic standard
-errors, Wald and profile-likelihood intervals); :func:`fit_curve` here only
-adapts the call (and per-point standard deviations) to it.
+errors, Wald and profile-likelihood intervals); :func:`fit_with_sigma` here only
+passes per-point standard deviations to it as weights.  Model functions take
+``(theta, x)``, as every model of the engine does.
 """
 
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Final
 
@@ -35,7 +36,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from ..errors import FitError, InputError
-from .engine import Estimate, FitResult
+from .engine import CurveModel, Estimate, FitResult, fit_curve
 
 __all__ = [
     "HYPERBOLA_EQUATION",
@@ -43,11 +44,11 @@ __all__ = [
     "Estimate",
     "InactivationFit",
     "KobsFit",
-    "fit_curve",
     "fit_inactivation",
     "fit_inactivation_raw",
     "fit_kobs",
     "fit_kobs_series",
+    "fit_with_sigma",
     "guess_inactivation",
     "kobs_hyperbola",
 ]
@@ -89,45 +90,15 @@ def _checked(values: ArrayLike, field: str, *, positive: bool = False, nonnegati
     return a
 
 
-def fit_curve(
-    *,
-    model: str,
-    equation: str,
-    x: Array,
-    y: Array,
-    function: Callable[[Array, Array], Array],
-    jacobian: Callable[[Array, Array], Array],
-    start: Sequence[float],
-    names: Sequence[str],
-    units: Sequence[str],
-    lower: Sequence[float],
-    upper: Sequence[float],
-    sigma: Array | None = None,
-    level: float = 0.95,
-) -> FitResult:
-    """Least squares of ``y ~ function(x, theta)`` through the shared engine (analytic Jacobian).
+def fit_with_sigma(model: CurveModel, x: Array, y: Array, start: Sequence[float], sigma: Array | None, level: float) -> FitResult:
+    """The shared engine's :func:`~interact.kinetics.engine.fit_curve` with optional per-point standard deviations.
 
-    ``sigma`` (optional) gives standard deviations per point: the engine then
-    fits f/sigma to y/sigma, i.e. minimises sum(((y - f)/sigma)^2), with the
-    covariance scaled by the residual variance as usual (relative weights);
-    the result's residuals are then on that scaled form.  Wald and profile
-    intervals are computed for every parameter.
+    ``sigma`` becomes the weights 1/sigma^2 (the engine minimises sum(((y - f)/sigma)^2), with the
+    covariance scaled by the residual variance as usual: relative weights); Wald and profile intervals
+    are computed for every parameter.
     """
-    from .engine import CurveModel
-    from .engine import fit_curve as engine_fit
-
-    w = np.ones_like(y) if sigma is None else 1.0 / sigma
-    curve = CurveModel(
-        name=model,
-        parameters=tuple(names),
-        function=lambda th, xx: function(xx, th) * w,
-        jacobian=lambda th, xx: jacobian(xx, th) * w[:, None],
-        lower=tuple(float(v) for v in lower),
-        upper=tuple(float(v) for v in upper),
-        units=tuple(units),
-        equation=equation,
-    )
-    return engine_fit(curve, x, y * w, [list(start)], profile=tuple(range(len(start))), level=level)
+    weights = None if sigma is None else 1.0 / sigma**2
+    return fit_curve(model, x, y, [list(start)], profile=tuple(range(len(start))), level=level, sample_weights=weights)
 
 
 # --------------------------------------------------------------------------- step 1: kobs
@@ -173,16 +144,14 @@ def fit_kobs(time_min: ArrayLike, activity: ArrayLike, *, concentration_um: floa
         raise FitError(f"time_min and activity differ in length ({t.size} and {a.size})")
     if np.unique(t).size < 2:
         raise FitError(f"kobs at {concentration_um:g} uM needs at least two distinct pre-incubation times")
+    from scipy.stats import linregress  # ordinary least squares line with its slope's standard error
+
     y = np.log(a)
-    tm = t.mean()
-    sxx = float(((t - tm) ** 2).sum())
-    slope = float(((t - tm) * (y - y.mean())).sum() / sxx)
-    intercept = float(y.mean() - slope * tm)
-    resid = y - (intercept + slope * t)
+    line = linregress(t, y)
+    slope, intercept = float(line.slope), float(line.intercept)
     n = t.size
-    se = math.sqrt(float(resid @ resid) / (n - 2) / sxx) if n > 2 else None
-    syy = float(((y - y.mean()) ** 2).sum())
-    r2 = 1.0 - float(resid @ resid) / syy if syy > 0 else None
+    se = float(line.stderr) if n > 2 else None
+    r2 = float(line.rvalue) ** 2 if np.ptp(y) > 0 else None
     return KobsFit(
         concentration_um=float(concentration_um),
         kobs_per_min=-slope,
@@ -219,13 +188,25 @@ def _share(x: Array, d: Array) -> Array:
     return np.divide(x, d, out=np.zeros(np.broadcast(x, d).shape), where=x != 0)
 
 
-def _hyp(x: Array, th: Array) -> Array:
+def _hyp(th: Array, x: Array) -> Array:
     return th[0] * _share(x, th[1] + x)
 
 
-def _hyp_jac(x: Array, th: Array) -> Array:
+def _hyp_jac(th: Array, x: Array) -> Array:
     share = _share(x, th[1] + x)
     return np.column_stack((share, -th[0] * _share(share, th[1] + x)))
+
+
+_INACTIVATION: Final = CurveModel(
+    name="inactivation hyperbola",
+    parameters=("kinact", "KI"),
+    function=_hyp,
+    jacobian=_hyp_jac,
+    lower=(0.0, 0.0),
+    upper=(math.inf, math.inf),
+    units=("1/min", "uM"),
+    equation=HYPERBOLA_EQUATION,
+)
 
 
 def guess_hyperbola(x: ArrayLike, rise: ArrayLike) -> tuple[float, float]:
@@ -303,21 +284,7 @@ def fit_inactivation(
     s = None if sigma is None else _checked(sigma, "sigma", positive=True)
     if s is not None and s.shape != c.shape:
         raise FitError(f"sigma has {s.size} values for {c.size} points")
-    fit = fit_curve(
-        model="inactivation hyperbola",
-        equation=HYPERBOLA_EQUATION,
-        x=c,
-        y=k,
-        function=_hyp,
-        jacobian=_hyp_jac,
-        start=start or guess_inactivation(c, k),
-        names=("kinact", "KI"),
-        units=("1/min", "uM"),
-        lower=(0.0, 0.0),
-        upper=(np.inf, np.inf),
-        sigma=s,
-        level=level,
-    )
+    fit = fit_with_sigma(_INACTIVATION, c, k, start or guess_inactivation(c, k), s, level)
     kin, ki = fit.estimates
     notes = []
     if ki.value > 3.0 * float(c.max()):

@@ -13,13 +13,14 @@ static models use; a fitted h is reported but the static models cannot use
 it (they assume h = 1), which the result says.
 
 Fitted by nonlinear least squares with an analytic Jacobian
-(:func:`interact.kinetics.inactivation.fit_curve`); asymptotic standard
+(:func:`interact.kinetics.inactivation.fit_with_sigma`, the shared engine); asymptotic standard
 errors and Wald intervals on n - p degrees of freedom.  Concentrations in uM
 (unbound if corrected for binding in the medium).
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Final
 
@@ -27,8 +28,8 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from ..errors import FitError
-from .engine import extra_sum_of_squares
-from .inactivation import Array, CurveFit, Estimate, _checked, _share, fit_curve, guess_hyperbola
+from .engine import CurveModel, extra_sum_of_squares
+from .inactivation import Array, CurveFit, Estimate, _checked, _share, fit_with_sigma, guess_hyperbola
 
 __all__ = ["EMAX_EQUATION", "HILL_EQUATION", "InductionFit", "fit_induction", "fold_change_model", "guess_induction"]
 
@@ -43,23 +44,23 @@ def fold_change_model(concentration_um: ArrayLike, emax: ArrayLike, ec50_um: Arr
     return 1.0 + np.asarray(emax, dtype=float) * ch / (np.asarray(ec50_um, dtype=float) ** hill + ch)
 
 
-def _emax(x: Array, th: Array) -> Array:
+def _emax(th: Array, x: Array) -> Array:
     return 1.0 + th[0] * _share(x, th[1] + x)
 
 
-def _emax_jac(x: Array, th: Array) -> Array:
+def _emax_jac(th: Array, x: Array) -> Array:
     share = _share(x, th[1] + x)
     return np.column_stack((share, -th[0] * _share(share, th[1] + x)))
 
 
-def _hill(x: Array, th: Array) -> Array:
+def _hill(th: Array, x: Array) -> Array:
     emax, ec50, h = th
     with np.errstate(divide="ignore"):
         u = np.where(x > 0, (x / ec50) ** h, 0.0)
     return 1.0 + emax * u / (1.0 + u)
 
 
-def _hill_jac(x: Array, th: Array) -> Array:
+def _hill_jac(th: Array, x: Array) -> Array:
     emax, ec50, h = th
     pos = x > 0
     u = np.zeros_like(x)
@@ -72,6 +73,28 @@ def _hill_jac(x: Array, th: Array) -> Array:
     d_ec50 = emax * dg_du * u * (-h / ec50)
     d_h = emax * dg_du * u * logr
     return np.column_stack((d_emax, d_ec50, d_h))
+
+
+_EMAX_MODEL: Final = CurveModel(
+    name="induction Emax",
+    parameters=("Emax", "EC50"),
+    function=_emax,
+    jacobian=_emax_jac,
+    lower=(0.0, 0.0),
+    upper=(math.inf, math.inf),
+    units=("", "uM"),
+    equation=EMAX_EQUATION,
+)
+_HILL_MODEL: Final = CurveModel(
+    name="induction Emax (Hill)",
+    parameters=("Emax", "EC50", "h"),
+    function=_hill,
+    jacobian=_hill_jac,
+    lower=(0.0, 1e-12, 0.1),
+    upper=(math.inf, math.inf, 10.0),
+    units=("", "uM", ""),
+    equation=HILL_EQUATION,
+)
 
 
 def guess_induction(concentration_um: ArrayLike, fold: ArrayLike) -> tuple[float, float]:
@@ -139,21 +162,7 @@ def fit_induction(
     g_emax, g_ec50 = guess_induction(c, f)
     notes: list[str] = []
     if hill:
-        fit = fit_curve(
-            model="induction Emax (Hill)",
-            equation=HILL_EQUATION,
-            x=c,
-            y=f,
-            function=_hill,
-            jacobian=_hill_jac,
-            start=start or (g_emax, g_ec50, 1.0),
-            names=("Emax", "EC50", "h"),
-            units=("", "uM", ""),
-            lower=(0.0, 1e-12, 0.1),
-            upper=(np.inf, np.inf, 10.0),
-            sigma=s,
-            level=level,
-        )
+        fit = fit_with_sigma(_HILL_MODEL, c, f, start or (g_emax, g_ec50, 1.0), s, level)
         h_est = fit.estimates[2]
         if abs(h_est.value - 1.0) > 0.05:
             notes.append(
@@ -161,21 +170,7 @@ def fit_induction(
                 "are not directly their inputs; refit with h = 1 for them"
             )
     else:
-        fit = fit_curve(
-            model="induction Emax",
-            equation=EMAX_EQUATION,
-            x=c,
-            y=f,
-            function=_emax,
-            jacobian=_emax_jac,
-            start=start or (g_emax, g_ec50),
-            names=("Emax", "EC50"),
-            units=("", "uM"),
-            lower=(0.0, 0.0),
-            upper=(np.inf, np.inf),
-            sigma=s,
-            level=level,
-        )
+        fit = fit_with_sigma(_EMAX_MODEL, c, f, start or (g_emax, g_ec50), s, level)
         h_est = None
     if float(c.max()) < fit.estimates[1].value:
         notes.append("the highest concentration tested lies below the fitted EC50: Emax is an extrapolation")

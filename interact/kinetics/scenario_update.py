@@ -22,7 +22,7 @@ from ..errors import InputError
 from ..scenario import MECHANISMS, loads_scenario
 from ..tables import load_targets, resolve_target
 
-__all__ = ["inhibition_entry", "set_keeping_history", "update_inhibition_text"]
+__all__ = ["carry_constants_text", "inhibition_entry", "set_keeping_history", "update_inhibition_text"]
 
 _CONFLICTING = ("ic50", "substrate_conc", "km")
 
@@ -79,38 +79,59 @@ def update_inhibition_text(
         raise InputError("alpha", alpha, "is needed (finite, above zero) for a mixed mechanism")
     if fu_inc is not None and not (math.isfinite(fu_inc) and 0 < fu_inc <= 1):
         raise InputError("fu_inc", fu_inc, "is not in (0, 1]")
-    doc, entry, created = inhibition_entry(text, target=target, source=source, purpose="to carry the fitted Ki into")
+    values: dict[str, Any] = {"ki": f"{ki_um:.6g} uM", "mechanism": mechanism}
+    if mechanism == "mixed" and alpha is not None:
+        values["alpha"] = float(f"{alpha:.6g}")
+    if ki_ci_um is not None:
+        low, high = ki_ci_um
+        if not (math.isfinite(low) and math.isfinite(high) and 0 < low <= ki_um <= high):
+            raise InputError("ki_ci", ki_ci_um, f"is not a finite interval around ki = {ki_um:.6g} uM")
+        values["ki_ci"] = [f"{low:.6g} uM", f"{high:.6g} uM"]
+    if fu_inc is not None:
+        values["fu_inc"] = float(f"{fu_inc:.6g}")
+    # keys a Ki makes contradictory or stale go, recorded in a comment
+    stale = (*_CONFLICTING, *(("alpha",) if mechanism != "mixed" else ()), *(("ki_ci",) if ki_ci_um is None else ()), "ic50_ci", "km_ci")
+    return carry_constants_text(
+        text, target=target, values=values, origin=origin, source=source, remove=stale, purpose="to carry the fitted Ki into"
+    )
+
+
+def carry_constants_text(
+    text: str,
+    *,
+    target: str,
+    values: dict[str, Any],
+    origin: str,
+    source: str = "scenario",
+    remove: tuple[str, ...] = (),
+    purpose: str = "",
+) -> str:
+    """The scenario text with ``values`` (ki, kinact, ec50 ...) set on the target's inhibition entry: the one writer of fits.
+
+    The entry is created when absent.  Every replaced value is kept in a comment beside the new one
+    (:func:`set_keeping_history`), followed by the comment its line had; ``origin`` records where the
+    numbers came from (the previous origin stays in a comment).  Keys in ``remove`` that ``values``
+    does not set (a contradictory route, an older fit's interval) are deleted and recorded, with their
+    comments, in one ``# replaced by the new fit (<stamp>): ...`` line.  Raises :class:`InputError` for
+    unreadable TOML, an unknown target or an update that would make the scenario invalid.
+    """
+    doc, entry, created = inhibition_entry(text, target=target, source=source, purpose=purpose)
     body = entry.value.body
     trail: list[Any] = []
     while body and body[-1][0] is None and isinstance(body[-1][1], Whitespace):
         trail.insert(0, body.pop())
     stamp = origin.split(",")[-1].strip() if "," in origin else "fit"
-
-    def put(key: str, value: Any) -> None:
-        set_keeping_history(entry, key, value, stamp)
-
     removed = []
-    stale = (*(("alpha",) if mechanism != "mixed" else ()), *(("ki_ci",) if ki_ci_um is None else ()), "ic50_ci", "km_ci")
-    for key in (*_CONFLICTING, *stale):
-        if key in entry:
+    for key in remove:
+        if key in entry and key not in values:
             old = entry[key]
             note = _comment_of(old)
             removed.append(f"{key} = {_shown(old.unwrap() if hasattr(old, 'unwrap') else old)}" + (f" ({note})" if note else ""))
             del entry[key]
-    put("ki", f"{ki_um:.6g} uM")
-    put("mechanism", mechanism)
-    if mechanism == "mixed" and alpha is not None:
-        put("alpha", float(f"{alpha:.6g}"))
-    if ki_ci_um is not None:
-        low, high = ki_ci_um
-        if not (math.isfinite(low) and math.isfinite(high) and 0 < low <= ki_um <= high):
-            raise InputError("ki_ci", ki_ci_um, f"is not a finite interval around ki = {ki_um:.6g} uM")
-        put("ki_ci", [f"{low:.6g} uM", f"{high:.6g} uM"])
-    if fu_inc is not None:
-        put("fu_inc", float(f"{fu_inc:.6g}"))
-    put("origin", origin)
+    for key, value in (*values.items(), ("origin", origin)):
+        set_keeping_history(entry, key, value, stamp)
     if removed:
-        entry.add(tomlkit.comment(f"replaced by the fitted Ki ({stamp}): " + "; ".join(removed)))
+        entry.add(tomlkit.comment(f"replaced by the new fit ({stamp}): " + "; ".join(removed)))
     body.extend(trail)
     if created:
         entry.add(tomlkit.nl())

@@ -73,19 +73,44 @@ class Doc:
         return self
 
     def lines(self, width: int) -> list[list[Segment]]:
+        """The document laid out at ``width``; a block laid out before at this width gives the same line objects."""
         width = max(width, 20)
         out: list[list[Segment]] = []
         for b in self.blocks:
-            if isinstance(b, _Para):
-                out.extend(_wrap_spans(b.spans, width - b.indent, b.indent, b.hanging))
-            elif isinstance(b, _Pre):
-                out.extend([Segment(line, b.style)] for line in b.text.rstrip("\n").split("\n"))
-            else:
-                out.extend(_table_lines(b, width))
+            out.extend(_block_lines(b, width))
         return out
 
     def plain(self, width: int = 100) -> str:
         return "\n".join("".join(s.text for s in line).rstrip() for line in self.lines(width))
+
+
+#: blocks laid out before, by content and width: a keystroke changes a few numbers of the answer, and the
+#: blocks that did not change keep their lines (and DocumentView their painted strips); wrapping every block
+#: again cost about half of the answer's redraw (measured with cProfile on the demo at 160x50)
+_LAID_OUT: dict[tuple[object, ...], list[list[Segment]]] = {}
+_LAID_OUT_MAX = 2048
+
+
+def _block_lines(b: _Para | _Table | _Pre, width: int) -> list[list[Segment]]:
+    key: tuple[object, ...]
+    if isinstance(b, _Para):
+        key = ("p", tuple(b.spans), b.indent, b.hanging, width)
+    elif isinstance(b, _Pre):
+        key = ("r", b.text, b.style, width)
+    else:
+        key = ("t", b.headers, tuple(b.rows), tuple(sorted(b.styles.items())), b.indent, width)
+    lines = _LAID_OUT.get(key)
+    if lines is None:
+        if isinstance(b, _Para):
+            lines = _wrap_spans(b.spans, width - b.indent, b.indent, b.hanging)
+        elif isinstance(b, _Pre):
+            lines = [[Segment(line, b.style)] for line in b.text.rstrip("\n").split("\n")]
+        else:
+            lines = _table_lines(b, width)
+        if len(_LAID_OUT) >= _LAID_OUT_MAX:
+            _LAID_OUT.clear()
+        _LAID_OUT[key] = lines
+    return lines
 
 
 def _wrap_spans(spans: list[Span], width: int, indent: int, hanging: int) -> list[list[Segment]]:

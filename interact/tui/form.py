@@ -18,7 +18,6 @@ from functools import lru_cache
 from typing import Any, Final
 
 from ..errors import InputError
-from ..tables import load_phenotypes, load_targets, rule_set_names
 
 __all__ = [
     "MISSING",
@@ -194,6 +193,7 @@ def choices_for(kind: str) -> tuple[str, ...]:
 @lru_cache(maxsize=8)
 def _choices(name: str) -> tuple[str, ...]:
     from ..scenario import MECHANISMS, ROUTES
+    from ..tables import load_phenotypes, load_targets, rule_set_names  # not before the first screen
 
     if name == "mechanism":
         return MECHANISMS
@@ -320,8 +320,13 @@ def shows(kind: str, text: str, value: Any) -> bool:
     return text_of(kind, value_of(kind, text)) == text_of(kind, value)
 
 
+@lru_cache(maxsize=4096)
 def local_check(kind: str, text: str, key: str) -> tuple[str | None, Any]:
-    """Check one field on its own: (error message or None, parsed quantity or value)."""
+    """Check one field on its own: (error message or None, parsed quantity or value).
+
+    Cached: every keystroke notes all fields again, and parsing their unchanged
+    texts with pint was half of that. The values are shared; callers only read them.
+    """
     from .. import units
 
     t = text.strip()

@@ -18,19 +18,26 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import Any, ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar
 
 from rich.segment import Segment
 from rich.style import Style
 from textual import events
+from textual.app import ComposeResult
+from textual.containers import Vertical
 from textual.geometry import Size
 from textual.message import Message
+from textual.reactive import var
 from textual.scroll_view import ScrollView
 from textual.strip import Strip
+from textual.widgets import Static
 
 from .form import SCHEMA, FieldSpec, Heading, ListSpec, Path, choices_for, get_path, key_of, shows, text_of
 
-__all__ = ["FieldState", "FormView", "Row", "entry_keys"]
+if TYPE_CHECKING:
+    from .state import Evaluation
+
+__all__ = ["FieldState", "FormPane", "FormView", "Row", "entry_keys"]
 
 
 @dataclass(slots=True)
@@ -279,6 +286,13 @@ class FormView(ScrollView, can_focus=True):
                 st.text = text_of(st.spec.kind, value)
                 st.cursor = len(st.text)
                 self.refresh_field(st)
+
+    def bring_to(self, data: dict[str, Any], select_key: str | None = None, texts: dict[str, str] | None = None) -> None:
+        """Show ``data``: rebuilt when entries came or went (or a selection or texts are given), else :meth:`sync`."""
+        if texts is not None or select_key is not None or entry_keys(data) != self.entry_keys():
+            self.load(data, select_key=select_key, texts=texts)
+        else:
+            self.sync(data)
 
     def entry_keys(self) -> tuple[str, ...]:
         """The key paths of the list entries the rows show (see :func:`entry_keys`)."""
@@ -599,3 +613,57 @@ class FormView(ScrollView, can_focus=True):
         event.prevent_default()
         if len(st.text) < 200:
             self._edit(st.text[: st.cursor] + event.character + st.text[st.cursor :], st.cursor + 1)
+
+
+class FormPane(Vertical):
+    """The form and, under it, the selected field in full (its key path and whole note).
+
+    It watches the app's evaluation (bound to ``InteractApp.evaluation``) and
+    puts each field's note and each list's problems under them.
+    """
+
+    evaluation: var[Evaluation | None] = var(None, init=False)
+
+    def __init__(self, data: dict[str, Any], *, id: str) -> None:
+        super().__init__(id=id)
+        self._data = data
+
+    def compose(self) -> ComposeResult:
+        yield FormView(self._data, id="form")
+        yield Static("", id="detail", markup=False)
+
+    @property
+    def form(self) -> FormView:
+        return self.query_one("#form", FormView)
+
+    def watch_evaluation(self, evaluation: Evaluation | None) -> None:
+        if evaluation is None:
+            return
+        form = self.form
+        notes = evaluation.notes
+        for key, st in form.fields.items():
+            note = notes.get(key)
+            if note is not None:
+                form.set_note(st, *note)
+        form.set_problems(evaluation.list_problems)
+        self.show_detail()
+
+    def on_form_view_selected(self) -> None:
+        self.show_detail()
+
+    def show_detail(self) -> None:
+        """The selected field in full: its key path and the whole note (the line under it may be cut)."""
+        form = self.form
+        st = form.current_field
+        row = form.current
+        if st is not None:
+            # the hint is an example ("e.g. Compound A"): beside a value it would read as the value's meaning
+            hint = f"empty ({st.spec.hint})" if not st.text.strip() else st.text
+            text = f"{st.spec.label} [{st.key}]: {st.note_text or hint}"
+        elif row is not None and row.kind in ("add", "remove"):
+            text = f"Enter: {row.text}."
+        else:
+            text = "Up/Down move between fields; type values with units; F1 lists every key."
+        detail = self.query_one("#detail", Static)
+        if str(detail.content) != text:
+            detail.update(text, layout=False)

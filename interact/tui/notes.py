@@ -130,6 +130,9 @@ def _engine(spec: FieldSpec, key: str, path: Path, empty: bool, data: dict[str, 
             return unbound if leaf == "ki" else f"{c.ki_route}; {unbound}"
         if leaf == "fu_inc":
             return f"empty: {c.fu_inc:g} used, Ki taken as unbound" if empty else ""
+        entry = get_path(data, path[:-1], {})
+        if leaf in ("substrate_conc", "km") and not empty and isinstance(entry, dict) and "ic50" not in entry:
+            return "not used: Cheng-Prusoff converts an IC50, and this entry gives none"
         if leaf == "target":
             t = resolve_target(c.target)
             return f"{c.target}: {t.kind if t else ''}, {c.group}" + (", also in the gut wall" if c.gut_wall else "")

@@ -13,6 +13,7 @@ distinct characters and are named in the legend, so nothing depends on colour.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -164,18 +165,9 @@ def _log_ticks(lo: float, hi: float) -> list[float]:
     return out
 
 
-def draw(chart: Chart, width: int, height: int) -> list[str]:
-    """Render ``chart`` into at most ``height`` lines of ``width`` characters.
-
-    Braille dots are the curve (sparse dots: the complete-inhibition curve),
-    ``╌`` horizontal reference lines, ``┊`` vertical ones, ``◆`` the current
-    point; :func:`legend` names each in words.
-    """
-    width = max(width, 30)
-    height = max(height, 8)
+def _y_range(chart: Chart) -> tuple[float, float]:
+    """The y axis: the curve, 1, the reference lines near it and the point, padded by 5 %."""
     ys = [y for y in chart.curve.y if math.isfinite(y)]
-    if not ys:
-        return ["no finite values to plot"]
     y_lo = min(min(ys), 1.0)
     y_hi = max(ys)
     for y, _ in chart.hlines:
@@ -191,6 +183,21 @@ def draw(chart: Chart, width: int, height: int) -> list[str]:
         y_hi = y_lo + 1.0
     pad = (y_hi - y_lo) * 0.05
     y_lo, y_hi = y_lo - pad, y_hi + pad
+    return y_lo, y_hi
+
+
+def draw(chart: Chart, width: int, height: int) -> list[str]:
+    """Render ``chart`` into at most ``height`` lines of ``width`` characters.
+
+    Braille dots are the curve (sparse dots: the complete-inhibition curve),
+    ``╌`` horizontal reference lines, ``┊`` vertical ones, ``◆`` the current
+    point; :func:`legend` names each in words.
+    """
+    width = max(width, 30)
+    height = max(height, 8)
+    if not any(math.isfinite(y) for y in chart.curve.y):
+        return ["no finite values to plot"]
+    y_lo, y_hi = _y_range(chart)
     xs = chart.curve.x
     x_lo, x_hi = min(xs), max(xs)
     fx = (lambda v: math.log10(v)) if chart.log_x else (lambda v: v)
@@ -260,11 +267,18 @@ def draw(chart: Chart, width: int, height: int) -> list[str]:
         label = tick_rows.get(r, "").rjust(label_w)
         body = "".join(marks.get((r, c)) or (chr(0x2800 + cells[r][c]) if cells[r][c] else " ") for c in range(plot_w))
         lines.append(f"{label}┤{body}" if r in tick_rows else f"{label}│{body}")
-    # x axis with ticks
+    lines.append(" " * label_w + "└" + _x_axis(chart, plot_w, lambda t: to_px(t, y_lo)[0] // 2))
+    lines.append(" " * label_w + " " + chart.x_label.center(plot_w))
+    return lines
+
+
+def _x_axis(chart: Chart, plot_w: int, column: Callable[[float], int]) -> str:
+    """The x axis tick labels (``column`` places a value), labelled to the end of the data."""
+    x_lo, x_hi = min(chart.curve.x), max(chart.curve.x)
     x_ticks = _log_ticks(x_lo, x_hi) if chart.log_x else _ticks(x_lo, x_hi, max(2, plot_w // 12))
     axis = [" "] * plot_w
     for t in x_ticks:
-        c = to_px(t, y_lo)[0] // 2
+        c = column(t)
         text = fmt(t)
         start = min(max(c - len(text) // 2, 0), plot_w - len(text))
         if all(ch == " " for ch in axis[max(start - 1, 0) : start + len(text) + 1]):
@@ -274,9 +288,7 @@ def draw(chart: Chart, width: int, height: int) -> list[str]:
         start = plot_w - len(end)
         if start > 0 and all(ch == " " for ch in axis[start - 1 :]):
             axis[start:] = list(end)
-    lines.append(" " * label_w + "└" + "".join(axis))
-    lines.append(" " * label_w + " " + chart.x_label.center(plot_w))
-    return lines
+    return "".join(axis)
 
 
 def legend(chart: Chart) -> str:

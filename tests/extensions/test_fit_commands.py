@@ -19,8 +19,9 @@ from conftest import read_checks
 from interact import assess, load_scenario
 from interact.cli import main
 from interact.errors import InputError
-from interact.kinetics.carry import carry_constants_text, parse_fold_change_csv, parse_preincubation_csv
+from interact.kinetics.carry import parse_fold_change_csv, parse_preincubation_csv
 from interact.kinetics.inactivation import kobs_hyperbola
+from interact.kinetics.scenario_update import carry_constants_text
 
 # Scenarios and designs here trigger model and fit warnings (fu,inc = 1, few levels, an unbounded constant ...) as a
 # side effect of what they test; their emission is checked in tests/api/test_warnings.py.
@@ -39,9 +40,9 @@ def test_headers_carry_units() -> None:
 
 
 def test_bad_csv_names_row_and_column() -> None:
-    with pytest.raises(InputError, match="lacks columns"):
+    with pytest.raises(InputError, match="lacks the column time"):
         parse_preincubation_csv("inhibitor,activity\n1,2\n")
-    with pytest.raises(InputError, match=r"row 3, column 'activity'"):
+    with pytest.raises(InputError, match=r"line 3, activity"):
         parse_preincubation_csv("inhibitor,time,activity\n1,0,100\n1,5,abc\n")
     with pytest.raises(InputError, match="a molar concentration"):
         parse_preincubation_csv("inhibitor (mg),time,activity\n1,0,100\n")

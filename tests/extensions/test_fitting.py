@@ -143,6 +143,11 @@ def test_kobs_slope_and_se_match_scipy_linregress() -> None:
     assert k.r_squared == pytest.approx(ref.rvalue**2, rel=1e-12)
     # scale of activity (percent vs fraction) does not change kobs
     assert fit_kobs(t, act / 100.0).kobs_per_min == pytest.approx(k.kobs_per_min, rel=1e-12)
+    # first-order loss A = A0 exp(-kobs t) (the model's own algebra) gives kobs back exactly, r^2 = 1
+    exact = fit_kobs(t, 80.0 * np.exp(-0.037 * t))
+    assert exact.kobs_per_min == pytest.approx(0.037, rel=1e-12) and exact.r_squared == pytest.approx(1.0, abs=1e-12)
+    two = fit_kobs(t[:2], act[:2])  # two points: a line, but no standard error
+    assert two.std_error is None and two.kobs_per_min == pytest.approx(math.log(act[0] / act[1]) / 5.0, rel=1e-12)
 
 
 def test_two_step_recovers_known_constants_and_subtracts_vehicle() -> None:
@@ -204,11 +209,11 @@ def test_emax_model_matches_puromycin_fit_shifted_by_one() -> None:
 def test_hill_jacobian_matches_finite_differences() -> None:
     x = np.array([0.0, 0.1, 0.5, 1.0, 3.0, 10.0, 30.0])
     th = np.array([6.0, 2.0, 1.6])
-    jac = _hill_jac(x, th)
+    jac = _hill_jac(th, x)
     for i in range(3):
         step = np.zeros(3)
         step[i] = 1e-6 * th[i]
-        fd = (_hill(x, th + step) - _hill(x, th - step)) / (2 * step[i])
+        fd = (_hill(th + step, x) - _hill(th - step, x)) / (2 * step[i])
         assert jac[:, i] == pytest.approx(fd, rel=1e-6, abs=1e-9)
 
 

@@ -89,7 +89,7 @@ def test_into_creates_a_missing_entry_and_replaces_ic50(tmp_path: Path, capsys: 
     assert main(["fit", VMKMKI, *UNITS, "--into", str(scenario), "--target", "CYP2C9", "--no-terminal-plot"]) == 0
     capsys.readouterr()
     text = scenario.read_text(encoding="utf-8")
-    assert "replaced by the fitted Ki" in text and 'ic50 = "14 uM"' in text  # kept as a comment
+    assert "replaced by the new fit" in text and 'ic50 = "14 uM"' in text  # kept as a comment
     loaded = load_scenario(scenario)
     targets = {i.target: i for i in loaded.perpetrator.inhibits}
     assert targets["CYP2D6"].ki is not None and targets["CYP2C9"].ic50 is None

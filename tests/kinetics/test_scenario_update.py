@@ -97,7 +97,7 @@ def test_replaced_lines_keep_their_comments_and_every_earlier_origin() -> None:
 
 
 def test_carried_tdi_constants_keep_comments_and_origin() -> None:
-    from interact.kinetics.carry import carry_constants_text
+    from interact.kinetics.scenario_update import carry_constants_text
 
     text = DEMO.replace(
         'ki = "4.2 uM"                 # from an invented microsomal incubation\n',

@@ -15,6 +15,7 @@ from pilot_helpers import asynctest, text_of
 from interact import assess
 from interact.kinetics import fit_inhibition, read_incubation_csv
 from interact.tui.app import InteractApp
+from interact.tui.fitting_view import FitPane
 
 # Scenarios here trigger model warnings (Fg not given, fu,inc = 1, kdeg from memory ...) as a side effect of
 # what they test; the warnings themselves are checked in tests/api/test_warnings.py and where a test asks for one.
@@ -39,8 +40,8 @@ async def test_fit_in_worker_then_accept_ki_into_the_scenario() -> None:
         await pilot.pause()
         await app.workers.wait_for_complete()
         await pilot.pause()
-        assert app.fit is not None
-        assert app.fit.verdict.model == reference.verdict.model
+        assert app.query_one(FitPane).fit is not None
+        assert app.query_one(FitPane).fit.verdict.model == reference.verdict.model
         body = text_of(app, "#fit-body")
         assert reference.verdict.text.split(":")[0] in body
         assert "Double reciprocal" in body
@@ -77,5 +78,5 @@ async def test_unreadable_csv_gives_an_error_and_changes_nothing(tmp_path: Path)
         await pilot.pause()
         status = str(app.query_one("#fit-status").content)  # type: ignore[attr-defined]
         assert status.startswith("error:") and "abc" in status
-        assert app.fit is None and app.data == before
+        assert app.query_one(FitPane).fit is None and app.data == before
         assert app.query_one("#fit-accept").disabled  # type: ignore[attr-defined]

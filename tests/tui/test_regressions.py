@@ -23,6 +23,7 @@ from interact.kinetics import fit_inhibition, read_incubation_csv
 from interact.scenario import demo_path, edit_scenario_text, load_scenario, scenario_from_dict
 from interact.tui.app import InteractApp
 from interact.tui.document_view import DocumentView
+from interact.tui.fitting_view import FitPane
 from interact.tui.results import compare, render_answer
 from interact.tui.screens import AskPath
 
@@ -101,7 +102,8 @@ async def test_answer_follows_the_fitted_ki_used_from_the_fitting_view_with_a_pi
         pinned_a, pinned_data = app.pinned  # type: ignore[misc]
         await pilot.press("f4", "f4")  # answer -> plots -> fitting: the answer is hidden
         await pilot.pause()
-        app.fit, app._fit_source = comp, str(FIT_DATA)
+        pane = app.query_one(FitPane)
+        pane.fit, pane.source = comp, str(FIT_DATA)
         app.query_one("#fit-target").value = "CYP3A"  # type: ignore[attr-defined]
         app.query_one("#fit-accept").disabled = False
         app.query_one("#fit-accept").press()  # type: ignore[attr-defined]
@@ -276,9 +278,10 @@ async def test_undo_and_redo_cover_removal_typing_and_the_fitted_ki() -> None:
         assert app.field("perpetrator.inhibits[2].ic50").text == "2.5 uM"
         await replace_text(pilot, app, "victim.fg", "0.70", typed=4)  # one typing run: one undo step
         assert app.field("victim.fg").text == "0.70"
-        app.fit, app._fit_source = comp, str(FIT_DATA)
+        pane = app.query_one(FitPane)
+        pane.fit, pane.source = comp, str(FIT_DATA)
         app.query_one("#fit-target").value = "CYP3A"  # type: ignore[attr-defined]
-        app.accept_fit()
+        pane.accept()
         await pilot.pause()
         fitted = app.data
         assert app.field("perpetrator.inhibits[0].ki").text == fitted["perpetrator"]["inhibits"][0]["ki"]
@@ -370,3 +373,25 @@ def test_the_app_knows_the_same_table_aliases_as_the_scenario_reader() -> None:
     from interact.tui.app import FORM_NAMES
 
     assert FORM_NAMES == {v: k for k, v in SPELLINGS.items()}
+
+
+@asynctest
+async def test_adding_or_removing_an_entry_keeps_the_exact_text_typed_in_other_fields() -> None:
+    # found by the state machine: the rows were rebuilt from the data, so "0.5 to 2" came back as "0.5, 2"
+    app = InteractApp(HANDWRITTEN)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.pause()
+        await replace_text(pilot, app, "victim.trough_boundary", "0.5 to 2", typed=8)
+        await replace_text(pilot, app, "perpetrator.inhibits[1].fu_inc", "80 %", typed=4)
+        await app.reveal("victim.pathways")
+        await pilot.press("enter")  # add a pathway
+        await pilot.pause()
+        assert app.field("victim.trough_boundary").text == "0.5 to 2"
+        await app.reveal("perpetrator.inhibits[0].ki")
+        await pilot.press("ctrl+r")  # the second target moves up to the first place, with its text
+        await pilot.pause()
+        assert app.field("victim.trough_boundary").text == "0.5 to 2"
+        assert app.field("perpetrator.inhibits[0].fu_inc").text == "80 %"
+        await pilot.press("ctrl+z")
+        await pilot.pause()
+        assert app.field("perpetrator.inhibits[1].fu_inc").text == "80 %"

@@ -43,7 +43,7 @@ from interact.kinetics import fit_inhibition, read_incubation_csv
 from interact.scenario import load_scenario, scenario_from_dict
 from interact.tui.app import InteractApp
 from interact.tui.document_view import DocumentView
-from interact.tui.fitting_view import ki_entry
+from interact.tui.fitting_view import FitPane, ki_entry
 from interact.tui.form import get_path, set_path, shows, text_of, value_of
 from interact.tui.form_view import build_rows, entry_keys
 from interact.tui.results import compare, render_answer
@@ -329,7 +329,8 @@ class AppMachine(RuleBasedStateMachine):
         app = self.app
 
         async def act() -> None:
-            app.fit, app._fit_source = comp, str(FIT_DATA)
+            pane = app.query_one(FitPane)
+            pane.fit, pane.source = comp, str(FIT_DATA)
             app.query_one("#fit-target").value = target_text  # type: ignore[attr-defined]
             button = app.query_one("#fit-accept")
             button.disabled = False
