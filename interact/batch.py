@@ -48,7 +48,7 @@ from .exposure import resolve_exposure, resolve_settings
 from .files import loads_toml, read_text
 from .genotype import phenotype_options
 from .prediction import liver_ratio
-from .scenario import Perpetrator, Scenario, Victim, scenario_from_dict
+from .scenario import Perpetrator, Scenario, Victim, section_from_dict
 from .screening import screen
 from .steps import StepTable
 from .tables import Classes, RuleSet, load_classes, load_rules, load_targets, resolve_target
@@ -411,16 +411,6 @@ def _row_dict(cols: list[_Column], cells: dict[str, Any], side: str) -> tuple[di
     return out, where
 
 
-_DUMMY_VICTIM: Final = {"name": "-", "dose": "1 mg", "interval": "24 h"}
-_DUMMY_PERPETRATOR: Final = {
-    "name": "-",
-    "dose": "1 umol",
-    "cmax": "1 uM",
-    "fu_plasma": 1.0,
-    "inhibits": [{"target": "CYP3A", "ki": "1 uM"}],
-}
-
-
 def _validate(side: str, data: dict[str, Any], where: dict[str, str]) -> Perpetrator | Victim:
     """The row as a Perpetrator or Victim, validated by the scenario reader (messages name the column)."""
     problems: list[str] = []
@@ -436,18 +426,15 @@ def _validate(side: str, data: dict[str, Any], where: dict[str, str]) -> Perpetr
             if item.pop("fu_inc_alone", False):
                 problems.append(f"column '{col}': fu_inc {item['target']} is given without ki {item['target']}")
                 item["ki"] = "1 uM"  # placeholder so that the rest of the row is still checked
-        doc = {"title": "row", "perpetrator": data, "victim": dict(_DUMMY_VICTIM)}
-    else:
-        doc = {"title": "row", "perpetrator": dict(_DUMMY_PERPETRATOR), "victim": data}
     try:
-        scenario = scenario_from_dict(doc)
+        section = section_from_dict(side, data)
     except ScenarioError as exc:
         for p in exc.problems:
             problems.append(_explain(p, where, side))
         raise InputError("row", "", "; ".join(problems)) from None
     if problems:
         raise InputError("row", "", "; ".join(problems))
-    return scenario.perpetrator if side == "perpetrator" else scenario.victim
+    return section
 
 
 def _explain(p: Problem, where: dict[str, str], side: str) -> str:
