@@ -1,4 +1,4 @@
-"""interact: static drug-drug interaction risk for reversible enzyme inhibitors.
+"""interact: static drug-drug interaction risk for precipitants that inhibit or induce enzymes and transporters.
 
 The public API: load a scenario, assess it, read the result.
 

@@ -17,10 +17,10 @@ from .dosing import DoseLimit, DoseSuggestion, RegimenPlan, highest_perpetrator_
 from .errors import FromMemoryWarning, InputError, ModelLimitWarning, WarningList, emit_warnings
 from .exposure import Setting, SpeciesExposure, resolve_exposure, resolve_settings
 from .genotype import PhenotypeCase, phenotype_cases
-from .prediction import Prediction, predict, ratio_function
-from .scenario import Scenario
+from .prediction import Prediction, predict, ratio_function, routes_of
+from .scenario import METABOLISM, Scenario
 from .screening import ScreenResult, screen
-from .tables import UNVERIFIED, RuleSet, Sourced, load_classes, load_rules, table_versions
+from .tables import UNVERIFIED, RuleSet, Sourced, load_classes, load_rules, table_versions, with_multipliers
 
 __all__ = ["Assessment", "Provenance", "assess"]
 
@@ -142,16 +142,20 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
     p = scenario.perpetrator
     v = scenario.victim
     warnings = WarningList()
+    rule_set = _multipliers(warnings, scenario, rule_set)
     screen_results = screen(
         rule_set, constants, species, oral=p.route == "oral", kdeg_liver={k: lv for k, (lv, _) in kdeg.items() if lv is not None}
     )
     gut_enzyme = next((c.target for c in constants if c.gut_wall), None) if v.route == "oral" else None
     fg = 1.0 if v.fg is None else v.fg
-    pathways = tuple((pw.enzyme, pw.fm) for pw in v.pathways)
-    prediction = predict(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, classes=classes)
+    pathways, routes = tuple((pw.enzyme, pw.fm) for pw in v.pathways if pw.route == METABOLISM), routes_of(v)
+    prediction = predict(
+        pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, classes=classes, routes=routes
+    )
     _check_finite(screen_results, prediction, constants)
     _input_warnings(warnings, scenario, constants, gut_enzyme, kdeg, kdeg_used)
     _model_limit_warnings(warnings, scenario, rule_set, constants, screen_results, prediction)
+    _route_warnings(warnings, scenario, prediction)
     # -- dose
     plan = plan_for_victim(v, (classes.no_effect_lower, classes.no_effect_upper), "default 0.8-1.25, ICH M12 5.3.1")
     dose = suggest_dose(
@@ -162,7 +166,9 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
     )
     cases = phenotype_cases(v.phenotypes, prediction, plan)
     _dose_warnings(warnings, scenario, plan)
-    ratio_at = ratio_function(pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg)
+    ratio_at = ratio_function(
+        pathways=pathways, fg=fg, gut_enzyme=gut_enzyme, constants=constants, species=species, kdeg=kdeg, routes=routes
+    )
     limit = _perpetrator_limit(p, prediction, ratio_at, plan.boundary[1])
     study, aucr_cut = _study(warnings, rule_set, prediction)
     all_settings = (*settings.values(), *fu_settings)
@@ -189,6 +195,36 @@ def assess(scenario: Scenario, rules: str | RuleSet | None = None, *, warn: bool
         memory_values=memory,
         provenance=_provenance(rule_set),
     )
+
+
+def _multipliers(warnings: WarningList, scenario: Scenario, rule_set: RuleSet) -> RuleSet:
+    """The rule set with the scenario's basic-model multipliers, each override named in the warnings (every output)."""
+    own = {c.id: float(c.multiplier.value) if c.multiplier else 1.0 for c in rule_set.criteria}
+    changed = with_multipliers(rule_set, scenario.multipliers)
+    for key, value in scenario.multipliers:
+        warnings.append(
+            f"Basic-model concentration multiplier of {key} overridden by the scenario: x {value:g} ({rule_set.id} uses x {own[key]:g})."
+        )
+    return changed
+
+
+def _route_warnings(warnings: WarningList, scenario: Scenario, prediction: Prediction) -> None:
+    """What a reviewer of a transporter-cleared object drug should know."""
+    v = scenario.victim
+    if v.route != "oral" and any(pw.route == "intestinal efflux" for pw in v.pathways):
+        warnings.append("The victim is given intravenously: its intestinal efflux routes play no part and are left out.", ModelLimitWarning)
+    if v.extended_clearance is not None:
+        warnings.append(
+            "Hepatic clearances given: uptake and metabolism act through the extended clearance concept; the enzyme fm "
+            "are shares of CLmet and the hepatic uptake fractions shares of PS_inf.",
+            ModelLimitWarning,
+        )
+        if prediction.regime_with != prediction.regime:
+            warnings.append(
+                f"The precipitant moves the victim's hepatic clearance from {prediction.regime} to {prediction.regime_with}: "
+                "which step limits it depends on the inhibition ([@patileavrana2018]).",
+                ModelLimitWarning,
+            )
 
 
 def _rule_set(scenario: Scenario, rules: str | RuleSet | None) -> RuleSet:
@@ -274,7 +310,11 @@ def _model_limit_warnings(
     acting_targets = {c.target for c in constants}
     rev_flags = {r.target for r in screen_results if r.criterion.startswith("reversible") and r.indicated}
     if prediction.total >= float(rule_set.aucr_inhibition_cutoff.value):
-        missed = [pw.enzyme for pw in scenario.victim.pathways if pw.enzyme in acting_targets and pw.enzyme not in rev_flags]
+        missed = [
+            pw.enzyme
+            for pw in scenario.victim.pathways
+            if pw.route == METABOLISM and pw.enzyme in acting_targets and pw.enzyme not in rev_flags
+        ]
         if missed and any(c.ki_u_um is not None and c.target in missed for c in constants):
             warnings.append(
                 f"The mechanistic model predicts AUCR >= {rule_set.aucr_inhibition_cutoff.value:g} although the basic R1 "

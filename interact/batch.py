@@ -47,8 +47,8 @@ from .errors import InputError, InteractError, Problem, ScenarioError
 from .exposure import resolve_exposure, resolve_settings
 from .files import loads_toml, read_text
 from .genotype import phenotype_options
-from .prediction import liver_ratio
-from .scenario import Perpetrator, Scenario, Victim, section_from_dict
+from .prediction import liver_ratio, routes_of
+from .scenario import VICTIM_ROUTES, Perpetrator, Scenario, Victim, section_from_dict
 from .screening import screen
 from .steps import StepTable
 from .tables import Classes, RuleSet, load_classes, load_rules, load_targets, resolve_target
@@ -112,6 +112,10 @@ VICTIM_COLUMNS: Final = (
     ("no_effect_lower", "AUC ratio", False, "lower no-effect boundary (default 0.8)"),
     ("no_effect_upper", "AUC ratio", False, "upper no-effect boundary (default 1.25)"),
     ("fm ENZYME", "fraction", False, "fraction of clearance through ENZYME"),
+    ("efflux TRANSPORTER", "fraction", False, "fraction of the oral dose TRANSPORTER (P-gp, BCRP) returns to the gut lumen"),
+    ("uptake TRANSPORTER", "fraction", False, "fraction of systemic clearance that depends on hepatic uptake by TRANSPORTER"),
+    ("secretion TRANSPORTER", "fraction", False, "fraction of renal clearance secreted by TRANSPORTER (needs renal_fraction)"),
+    ("renal_fraction", "fraction", False, "fraction of systemic clearance that is renal"),
     ("phenotype ENZYME", "text or number", False, "metaboliser phenotype on that pathway (poor, intermediate, ...) or a relative activity"),
 )
 
@@ -243,6 +247,7 @@ _VICTIM_KEYS: Final = {
     "narrow_therapeutic_index": "narrow_therapeutic_index",
     "no_effect_lower": "no_effect_lower",
     "no_effect_upper": "no_effect_upper",
+    "renal_fraction": "renal_fraction",
 }
 _UNIT_KINDS: Final = {
     "dose": "dose",
@@ -255,7 +260,9 @@ _UNIT_KINDS: Final = {
     "half_life": "time",
     "strengths": "dose",
 }
-_PER_TARGET: Final = {"perpetrator": ("ki", "ki_u", "fu_inc"), "victim": ("fm", "phenotype")}
+_PER_TARGET: Final = {"perpetrator": ("ki", "ki_u", "fu_inc"), "victim": ("fm", "phenotype", "efflux", "uptake", "secretion")}
+#: the victim's route columns and the object-drug route each names (interact.scenario.VICTIM_ROUTES)
+_ROUTE_COLUMNS: Final = {"efflux": "intestinal efflux", "uptake": "hepatic uptake", "secretion": "renal secretion"}
 
 
 def _columns(headers: list[str], side: str, source: str) -> list[_Column]:
@@ -396,7 +403,13 @@ def _row_dict(cols: list[_Column], cells: dict[str, Any], side: str) -> tuple[di
         for k, t in enumerate(with_fm):
             where[f"victim.pathways[{k}].fm"] = where[f"victim.pathways[{k}].enzyme"] = headers_of[("fm", t)]
             where[f"victim.pathways[{k}]"] = headers_of[("fm", t)]
-        where["victim.pathways"] = "fm columns"
+        for key, route in _ROUTE_COLUMNS.items():
+            for t in [t for t, d in per_target.items() if key in d]:
+                k = len(out["pathways"])
+                out["pathways"].append({"transporter": t, "route": route, "fraction": per_target[t][key]})
+                for part in ("", ".transporter", ".route", ".fraction"):
+                    where[f"victim.pathways[{k}]{part}"] = headers_of[(key, t)]
+        where["victim.pathways"] = "fm, efflux, uptake and secretion columns"
         phen = [t for t, d in per_target.items() if "phenotype" in d]
         if phen:
             out["phenotypes"] = []
@@ -491,6 +504,11 @@ class VictimTable:
     nti: NDArray[np.bool_]
     skipped: tuple[RowProblem, ...]
     source: str
+    #: transporter routes (transporter, route) with the fraction the model takes: efflux of the oral dose (0 for an
+    #: intravenous victim), uptake of systemic clearance, secretion of systemic clearance (renal fraction x share)
+    routes: tuple[tuple[str, str], ...] = ()
+    route_fraction: NDArray[np.float64] | None = None  # (n, routes); 0 where not given
+    has_route: NDArray[np.bool_] | None = None  # (n, routes): the victim lists the route
 
 
 def _rows_records(table: Any, source: str) -> tuple[list[str], list[tuple[int, dict[str, Any]]]]:
@@ -760,8 +778,17 @@ def loads_victims(
     plans = []
     activity = np.ones((n, len(enzymes)))
     labels = []
+    routes = tuple(dict.fromkeys((pw.enzyme, pw.route) for v in rows for pw in v.pathways if pw.route != "metabolism"))
+    route_fraction = np.zeros((n, len(routes)))
+    has_route = np.zeros((n, len(routes)), dtype=bool)
     for i, v in enumerate(rows):
+        r = routes_of(v)  # the fractions as the model takes them (efflux 0 for an intravenous victim)
+        share = dict((*r.efflux, *r.uptake, *r.secretion))
         for pw in v.pathways:
+            if pw.route != "metabolism":
+                has_route[i, routes.index((pw.enzyme, pw.route))] = True
+                route_fraction[i, routes.index((pw.enzyme, pw.route))] = share.get(pw.enzyme, 0.0)
+                continue
             k = enzymes.index(pw.enzyme)
             fm[i, k] = pw.fm
             has[i, k] = True
@@ -793,6 +820,9 @@ def loads_victims(
         nti=np.array([v.narrow_therapeutic_index for v in rows], dtype=bool),
         skipped=tuple(problems),
         source=source,
+        routes=routes,
+        route_fraction=route_fraction,
+        has_route=has_route,
     )
 
 
@@ -931,7 +961,8 @@ def pair_ratios(
     *,
     progress: Callable[[int, int], None] | None = None,
 ) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64]]:
-    """Gut, liver and total AUC ratios of the mechanistic static model for every pair, vectorised.
+    """Gut, liver and total AUC ratios of the mechanistic static model for every pair, vectorised (the total includes the
+    kidney term of victims with renal secretion routes).
 
     :func:`interact.model.evaluate` with perpetrators along axis 0 and victims along axis 1 (in chunks
     of perpetrators): each perpetrator's Ki,u per target (reversible inhibition) at Iin,max,u and, on the
@@ -943,7 +974,8 @@ def pair_ratios(
     n_p, n_v = len(perpetrators.rows), len(victims.rows)
     gut = np.empty((n_p, n_v))
     liver = np.empty((n_p, n_v))
-    targets = list(perpetrators.targets) + [e for e in victims.enzymes if e not in perpetrators.targets]
+    named = (*victims.enzymes, *(t for t, _ in victims.routes))
+    targets = list(perpetrators.targets) + list(dict.fromkeys(e for e in named if e not in perpetrators.targets))
     ki_u = np.where(np.isnan(perpetrators.ki_u_um), np.inf, perpetrators.ki_u_um)  # not given: [I]/Ki,u = 0 exactly
     gut_col = _gut_column(perpetrators)
     perp_gut = ~np.isnan(perpetrators.ki_u_um[:, gut_col]) if gut_col >= 0 else np.zeros(n_p, dtype=bool)
@@ -952,20 +984,38 @@ def pair_ratios(
         model.Pathway(target=targets.index(e), organ="liver", fraction=victims.fm[None, :, k], scale=victims.activity[None, :, k])
         for k, e in enumerate(victims.enzymes)
     ]
+    pathways += _route_pathways(victims, targets)
+    kidney = np.empty((n_p, n_v))
     done = 0
     for a0, a1 in _chunks(n_p, n_v):
         acting = [model.Acting(target=t, species=0, ki_u=ki_u[a0:a1, t, None]) for t in range(len(perpetrators.targets))]
         organs = list(pathways)
         if gut_col >= 0:  # no gut-wall constant for a perpetrator: Fg = 1, a gut ratio of exactly 1, as assess() has none
             organs.insert(0, model.Pathway(target=gut_col, organ="gut", fraction=np.where(perp_gut[a0:a1, None], fg, 1.0)))
-        sites = {"liver": (perpetrators.inlet_um[a0:a1, None],), "gut": (perpetrators.enterocyte_um[a0:a1, None],)}
+        sites = {
+            "liver": (perpetrators.inlet_um[a0:a1, None],),
+            "gut": (perpetrators.enterocyte_um[a0:a1, None],),
+            "kidney": (perpetrators.imax_u_um[a0:a1, None],),
+        }
         r = model.evaluate(acting, organs, sites, {}, include=("reversible",))
         liver[a0:a1] = r.liver
         gut[a0:a1] = r.gut
+        kidney[a0:a1] = r.kidney
         done += (a1 - a0) * n_v
         if progress is not None:
             progress(done, n_p * n_v)
-    return gut, liver, gut * liver
+    return gut, liver, gut * liver * kidney
+
+
+def _route_pathways(victims: VictimTable, targets: list[str]) -> list[model.Pathway]:
+    """The victims' transporter routes as model pathways (as :func:`interact.prediction.route_pathways`, on arrays)."""
+    out = []
+    for r, (t, route) in enumerate(victims.routes):
+        assert victims.route_fraction is not None
+        f = victims.route_fraction[None, :, r]
+        organ = VICTIM_ROUTES[route]
+        out.append(model.Pathway(target=targets.index(t), organ=organ, fraction=1.0 - f if organ == "gut" else f))
+    return out
 
 
 def _gut_column(perpetrators: PerpetratorTable) -> int:
@@ -1089,6 +1139,11 @@ def evaluate_pairs(
     flags = by_kind[kind_of.ravel()]
     if p_bits.any():
         flags |= p_bits[:, None]
+    for r, (name, _) in enumerate(victims.routes):  # a transporter route without a Ki of this perpetrator
+        assert victims.has_route is not None
+        col = perpetrators.targets.index(name) if name in perpetrators.targets else -1
+        acts = ~np.isnan(perpetrators.ki_u_um[:, col]) if col >= 0 else np.zeros(n_p, dtype=bool)
+        flags |= (victims.has_route[None, :, r] & ~acts[:, None]).astype(np.uint8) << 3
     return BatchResult(
         perpetrators=perpetrators,
         victims=victims,

@@ -584,7 +584,7 @@ def _parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="interact",
         description=(
-            "Static drug-drug interaction risk for reversible enzyme inhibitors. "
+            "Static drug-drug interaction risk for precipitants that inhibit or induce enzymes and transporters. "
             "Run without arguments to open the terminal app on the built-in invented demo. "
             "Predictions are model estimates, not clinical advice."
         ),

@@ -68,6 +68,7 @@ from . import units
 from .course.model import DEFAULT_EXTRACTION, MAX_INTERVALS, MODES
 from .errors import InputError, emit_warnings
 from .exposure import Setting
+from .prediction import refuse_routes
 
 if TYPE_CHECKING:
     from .assessment import Assessment
@@ -192,6 +193,7 @@ def simulate(
 
     if not 0.0 < effect_fraction < 1.0:
         raise InputError("effect_fraction", effect_fraction, "is not a fraction in (0, 1), e.g. 0.9")
+    refuse_routes(assessment.scenario.victim, "the time course")
     model = build(assessment, days=days, washout_days=washout_days, mode=mode, profile=profile)
     solution = integrate(model, method=method, rtol=rtol, atol=atol, points_per_interval=points_per_interval)
     dose = assessment.scenario.victim.dose

@@ -10,18 +10,23 @@ Equations (concentrations in uM, doses in umol, flows in L/min, ka in 1/min):
 Metabolites have no portal or gut-lumen term: their systemic unbound Cmax is
 used at every site (JPET verinurad study, Table 7).  For an intravenous perpetrator the
 gut-lumen and portal terms vanish and the enterocyte sees Imax,u.
+
+Two inputs serve the reproduction of published tables: ``perpetrator.active_molar_mass`` converts a
+mass dose into the amount that reaches the enterocyte and the liver (the enterocyte and portal terms)
+when that species differs from the dosed compound; ``[perpetrator.site_concentrations]`` gives Igut,
+I,ent or Iin,max,u directly, used instead of the computed value and listed as "given".
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-from typing import Final
+from dataclasses import dataclass, replace
+from typing import Any, Final
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from . import units
-from .scenario import Scenario
+from .scenario import Perpetrator, Scenario
 from .tables import RuleSet, Sourced, load_physiology
 
 __all__ = [
@@ -227,6 +232,9 @@ def resolve_exposure(
     p = scenario.perpetrator
     oral = p.route == "oral"
     dose_umol = units.amount_umol(p.dose, p.molar_mass, field="perpetrator.dose")
+    absorbed_umol = (
+        dose_umol if p.active_molar_mass is None else units.amount_umol(p.dose, p.active_molar_mass, field="perpetrator.active_molar_mass")
+    )
     cmax = units.concentration_um(p.cmax, p.molar_mass, field="perpetrator.cmax")
     floor = scenario.physiology.fu_plasma_floor
     fu, fu_setting = floored_fu(p.fu_plasma, p.fu_plasma_measured, rules, f"fu,p of {p.name}", floor)
@@ -241,16 +249,19 @@ def resolve_exposure(
         fu_plasma_used=fu,
         unbound_cmax_um=imax_u,
         gut_lumen_um=float(gut_lumen_um(dose_umol, settings["gut_volume"].value)) if oral else 0.0,
-        unbound_inlet_um=float(unbound_inlet_um(cmax, fu, dose_umol, settings["fa_fg"].value, ka, qh, settings["blood_plasma_ratio"].value))
+        unbound_inlet_um=float(
+            unbound_inlet_um(cmax, fu, absorbed_umol, settings["fa_fg"].value, ka, qh, settings["blood_plasma_ratio"].value)
+        )
         if oral
         else imax_u,
-        enterocyte_um=float(enterocyte_um(dose_umol, settings["fraction_absorbed"].value, ka, qent, settings["fu_gut"].value))
+        enterocyte_um=float(enterocyte_um(absorbed_umol, settings["fraction_absorbed"].value, ka, qent, settings["fu_gut"].value))
         if oral
         else imax_u,
         dose_umol=dose_umol,
     )
+    parent, given = _given_sites(parent, p)
     species = [parent]
-    fus = [fu_setting]
+    fus = [fu_setting, *given]
     for i, m in enumerate(p.metabolites):
         mc = units.concentration_um(m.cmax, m.molar_mass, field=f"perpetrator.metabolites[{i}].cmax")
         mfu, mset = floored_fu(m.fu_plasma, m.fu_plasma_measured, rules, f"fu,p of {m.name}", floor)
@@ -270,3 +281,37 @@ def resolve_exposure(
         )
         fus.append(mset)
     return tuple(species), tuple(fus)
+
+
+#: the parent's site concentrations a scenario may give directly: scenario key, field, label
+_SITES: Final = (
+    ("igut", "gut_lumen_um", "Igut (gut lumen)"),
+    ("ient", "enterocyte_um", "I,ent (enterocyte)"),
+    ("iin_max_u", "unbound_inlet_um", "Iin,max,u (unbound hepatic inlet)"),
+)
+
+
+def _given_sites(parent: SpeciesExposure, p: Perpetrator) -> tuple[SpeciesExposure, list[Setting]]:
+    """The parent with the site concentrations the scenario gives in place of the computed ones, and their settings."""
+    sites = p.site_concentrations
+    if sites is None:
+        return parent, []
+    changes: dict[str, Any] = {}
+    used = []
+    for key, attr, label in _SITES:
+        q = getattr(sites, key)
+        if q is None:
+            continue
+        value = units.concentration_um(q, p.molar_mass, field=f"perpetrator.site_concentrations.{key}")
+        changes[attr] = value
+        used.append(
+            Setting(
+                name=f"given_{key}",
+                label=f"{label} of {p.name}",
+                value=value,
+                unit="uM",
+                origin="given",
+                note=f"replaces the computed {getattr(parent, attr):.4g} uM",
+            )
+        )
+    return replace(parent, **changes), used

@@ -41,6 +41,19 @@ renal secretion, and a kidney ratio) is data, not a new code path:
    route is a pathway whose target is the transporter; the perpetrator's constants on that
    target (an :class:`Acting` with the same target index) act on it at the organ's site.
    A new organ form (one the two above do not express) is one more branch in :func:`organ_ratio`.
+
+**Transporter routes** (:mod:`interact.transporters`, issue 13) are such data.  Intestinal efflux is a
+pathway of the gut organ whose fraction is the availability it governs (1 - the fraction of the oral
+dose it returns to the lumen); several gut pathways are parallel losses of one dose,
+1/(sum (1 - F) x activity + 1 - sum (1 - F)), which for the one CYP3A pathway is the form above.
+Hepatic uptake is a liver pathway (a fraction of systemic clearance).  Renal secretion is a pathway of
+the kidney organ (site "kidney" = Imax,u), whose form ``"shared"`` makes its ratio the factor it adds to
+the liver's: liver and kidney share one systemic clearance, so liver x kidney = 1/(sum over both of
+f x activity + 1 - sum f) exactly.  With the hepatic clearances given, the liver organ has the form
+``"extended"`` (:class:`Organ` carries PS_inf, PS_eff, CLmet, CLbile and the hepatic fraction): its
+"uptake" pathways are shares of PS_inf, the others shares of CLmet, and the activity of the hepatic
+fraction is CLint,all with the precipitant over CLint,all without
+(:func:`interact.transporters.extended_clearance_activity`).
 """
 
 from __future__ import annotations
@@ -48,6 +61,8 @@ from __future__ import annotations
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any, Final, NamedTuple
+
+from .transporters import extended_clearance_activity
 
 __all__ = [
     "MECHANISMS",
@@ -60,6 +75,7 @@ __all__ = [
     "Terms",
     "evaluate",
     "organ_ratio",
+    "remaining",
 ]
 
 #: the mechanisms, each of which can be switched off (the mechanism parts of a prediction)
@@ -71,13 +87,17 @@ class Organ:
     """An organ's ratio: the site whose concentrations its pathways see, and the form of the ratio."""
 
     site: str
-    form: str  # "fraction" or "availability"
+    form: str  # "fraction", "availability", "shared" (the factor added to the organ ``shares``) or "extended"
+    shares: str | None = None  # "shared": the organ whose systemic clearance it shares
+    clearances: tuple[Any, Any, Any, Any] | None = None  # "extended": PS_inf, PS_eff, CLmet, CLbile (one unit)
+    fraction: Any = 1.0  # "extended": the organ's share of systemic clearance
 
 
 #: the organs, in the order of the product that gives the total ratio
 ORGANS: Final[Mapping[str, Organ]] = {
     "gut": Organ(site="gut", form="availability"),
     "liver": Organ(site="liver", form="fraction"),
+    "kidney": Organ(site="kidney", form="shared", shares="liver"),
 }
 
 
@@ -109,6 +129,7 @@ class Pathway(NamedTuple):
     organ: str
     fraction: Any
     scale: Any = None
+    role: str = ""  # "uptake": a share of PS_inf in an "extended" organ
 
 
 class Terms(NamedTuple):
@@ -138,6 +159,10 @@ class Evaluation(NamedTuple):
     def liver(self) -> Any:
         return self.organs["liver"]
 
+    @property
+    def kidney(self) -> Any:
+        return self.organs["kidney"]
+
 
 def reversible(sum_ratio: Any) -> Any:
     """1/(1 + sum [I]/Ki,u) on floats or arrays."""
@@ -161,29 +186,61 @@ def _switches(include: Sequence[str]) -> tuple[bool, bool, bool]:
 _ALL_ON: Final = (True, True, True)
 
 
-_FORMS: Final = ("fraction", "availability")
+_FORMS: Final = ("fraction", "availability", "shared", "extended")
 
 
-def organ_ratio(form: str, pathways: Sequence[Pathway], activities: Sequence[Any]) -> Any:
-    """One organ's AUC ratio from its pathways and the activity left on each, in pathway order.
-
-    ``"fraction"``: 1/(sum f x activity + (1 - sum f)), with (1 - sum f) added after the weighted sum
-    (exact when sum f = 1, however small the activity); ``"availability"``: 1/(activity x (1 - F) + F)
-    for the organ's one pathway.  An organ without pathways has a ratio of exactly 1.
-    """
-    if form not in _FORMS:
-        raise ValueError(f"organ form {form!r}: expected 'fraction' or 'availability'")
-    if not pathways:
-        return 1.0
-    if form == "availability":
-        (pw,), (act,) = pathways, activities
-        return 1.0 / (act * (1.0 - pw.fraction) + pw.fraction)
+def _weighted(pathways: Sequence[Pathway], activities: Sequence[Any]) -> tuple[Any, Any]:
+    """(sum f x activity, sum f) in pathway order; f scaled by a phenotype's activity in the first sum only."""
     weighted: Any = None
     fm_sum: Any = None
     for pw, act in zip(pathways, activities, strict=True):
         f = pw.fraction if pw.scale is None else pw.fraction * pw.scale
         weighted = f * act if weighted is None else weighted + f * act
         fm_sum = pw.fraction if fm_sum is None else fm_sum + pw.fraction
+    return weighted, fm_sum
+
+
+def remaining(pathways: Sequence[Pathway], activities: Sequence[Any]) -> Any:
+    """The share of a clearance the precipitant leaves: sum f x activity + (1 - sum f) (1 without pathways)."""
+    if not pathways:
+        return 1.0
+    weighted, f_sum = _weighted(pathways, activities)
+    return weighted + (1.0 - f_sum)
+
+
+def organ_ratio(form: str, pathways: Sequence[Pathway], activities: Sequence[Any], *, base: Any = 1.0, organ: Organ | None = None) -> Any:
+    """One organ's AUC ratio from its pathways and the activity left on each, in pathway order.
+
+    ``"fraction"``: 1/(sum f x activity + (1 - sum f)), with (1 - sum f) added after the weighted sum
+    (exact when sum f = 1, however small the activity); ``"availability"``: 1/(activity x (1 - F) + F)
+    for the organ's one pathway, and for several (parallel losses of one dose, loss = 1 - F)
+    1/(sum loss x activity + (1 - sum loss)); ``"shared"``: the factor the organ adds to ``base``, the ratio
+    of the organ whose clearance it shares, 1/(1 - base x sum f (1 - activity)); ``"extended"``: the
+    extended clearance concept with ``organ``'s clearances (see the module notes).  An organ without
+    pathways has a ratio of exactly 1.
+    """
+    if form not in _FORMS:
+        raise ValueError(f"organ form {form!r}: expected one of {', '.join(_FORMS)}")
+    if not pathways:
+        return 1.0
+    if form == "availability":
+        if len(pathways) == 1:
+            (pw,), (act,) = pathways, activities
+            return 1.0 / (act * (1.0 - pw.fraction) + pw.fraction)
+        losses = [pw._replace(fraction=1.0 - pw.fraction) for pw in pathways]
+        return organ_ratio("fraction", losses, activities)
+    if form == "shared":
+        weighted, f_sum = _weighted(pathways, activities)
+        return 1.0 / (1.0 - base * (f_sum - weighted))
+    if form == "extended":
+        if organ is None or organ.clearances is None:
+            raise ValueError("an 'extended' organ needs its clearances")
+        uptake = [(pw, a) for pw, a in zip(pathways, activities, strict=True) if pw.role == "uptake"]
+        other = [(pw, a) for pw, a in zip(pathways, activities, strict=True) if pw.role != "uptake"]
+        left = [remaining([p for p, _ in part], [a for _, a in part]) for part in (uptake, other)]
+        act = extended_clearance_activity(*organ.clearances, left[0], left[1])
+        return organ_ratio("fraction", (Pathway(target=-1, organ="liver", fraction=organ.fraction),), (act,))
+    weighted, fm_sum = _weighted(pathways, activities)
     return 1.0 / (weighted + (1.0 - fm_sum))
 
 
@@ -196,22 +253,24 @@ class Model:
 
     __slots__ = ("_organs", "_sites")
 
-    def __init__(self, acting: Sequence[Acting], pathways: Sequence[Pathway]) -> None:
+    def __init__(self, acting: Sequence[Acting], pathways: Sequence[Pathway], organs: Mapping[str, Organ] = ORGANS) -> None:
+        """``organs``: :data:`ORGANS` unless an organ takes scenario data (the liver's clearances, form "extended")."""
         on: dict[int, list[Acting]] = {}
         for c in acting:
             on.setdefault(c.target, []).append(c)
         for pw in pathways:
-            if pw.organ not in ORGANS:
-                raise ValueError(f"pathway organ {pw.organ!r}: expected one of {', '.join(ORGANS)}")
+            if pw.organ not in organs:
+                raise ValueError(f"pathway organ {pw.organ!r}: expected one of {', '.join(organs)}")
         sites: dict[tuple[int, str], int] = {}  # (target, site) -> position of its terms, each computed once
-        organs = []
-        for name, organ in ORGANS.items():
+        built = []
+        for name, organ in organs.items():
             if organ.form not in _FORMS:
-                raise ValueError(f"organ {name}: form {organ.form!r}, expected 'fraction' or 'availability'")
+                raise ValueError(f"organ {name}: form {organ.form!r}, expected one of {', '.join(_FORMS)}")
             mine = [pw for pw in pathways if pw.organ == name]
             where = [sites.setdefault((pw.target, organ.site), len(sites)) for pw in mine]
-            organs.append((name, organ.form, tuple(mine), tuple(where)))
-        self._organs = tuple(organs)
+            built.append((name, organ, tuple(mine), tuple(where)))
+        organs_built = built
+        self._organs = tuple(organs_built)
         self._sites = tuple([(key, tuple(on.get(key[0], ()))) for key in sites])
 
     def evaluate(
@@ -257,13 +316,24 @@ class Model:
                 1.0 if effect is None else 1.0 + effect,
             )
             acts.append(t[0] * t[1] * t[2])
+        return (*self._combine(acts), terms)
+
+    def _combine(self, acts: Sequence[Any]) -> tuple[dict[str, Any], Any]:
+        """The organ ratios from the activity at each (target, site), and their product."""
         organs: dict[str, Any] = {}
         total: Any = None
-        for name, form, mine, where in self._organs:
-            value = organ_ratio(form, mine, tuple(map(acts.__getitem__, where)))
+        for name, organ, mine, where in self._organs:
+            base = organs.get(organ.shares, 1.0) if organ.shares else 1.0
+            value = organ_ratio(organ.form, mine, tuple(map(acts.__getitem__, where)), base=base, organ=organ)
             organs[name] = value
             total = value if total is None else total * value
-        return organs, total, terms
+        return organs, total
+
+    def ceilings(self, inhibited: set[int]) -> tuple[dict[str, Any], Any]:
+        """The organ ratios and total with every target in ``inhibited`` completely inhibited (activity 0), the rest
+        untouched: the complete-inhibition ceilings, from the same organ forms."""
+        acts = [0.0 if key[0] in inhibited else 1.0 for key, _ in self._sites]
+        return self._combine(acts)
 
 
 def evaluate(

@@ -170,13 +170,28 @@ def _auc_ratio_json(a: Assessment) -> dict[str, Any]:
         "gut": pr.gut,
         "liver": pr.liver,
         "total": pr.total,
+        "kidney": pr.kidney,
         "ceiling_gut": _num(pr.ceiling_gut),
         "ceiling_liver": _num(pr.ceiling_liver),
+        "ceiling_kidney": _num(pr.ceiling_kidney),
         "ceiling_total": _num(pr.ceiling_total),
+        "hepatic_regime": None if pr.regime is None else {"without_precipitant": pr.regime, "with_precipitant": pr.regime_with},
         "band": pr.band.name if pr.band else None,
         "study_indicated": a.study_indicated,
         "cutoff": a.aucr_cutoff.value,
-        "by_mechanism": [{"mechanism": m.mechanism, "gut": m.gut, "liver": m.liver, "total": m.total} for m in pr.parts],
+        "by_mechanism": [
+            {"mechanism": m.mechanism, "gut": m.gut, "liver": m.liver, "kidney": m.kidney, "total": m.total} for m in pr.parts
+        ],
+        "transporter_routes": [
+            {
+                "transporter": r.transporter,
+                "route": r.route,
+                "fraction": r.fraction,
+                "concentration_um": dict(r.site.concentration_um),
+                **_site_json(r.site),
+            }
+            for r in pr.routes
+        ],
         "enzymes": [
             {"enzyme": e.enzyme, "fm": e.fm, "liver": _site_json(e.liver), "gut": None if e.gut is None else _site_json(e.gut)}
             for e in pr.effects
@@ -261,6 +276,10 @@ def assessment_dict(a: Assessment) -> dict[str, Any]:
 # --------------------------------------------------------------------------- short summaries (repr, notebook HTML)
 
 
+def _organ_product(pr: Any) -> str:
+    return f"{fmt_ratio(pr.gut)} x {fmt_ratio(pr.liver)}" + (f" x {fmt_ratio(pr.kidney)}" if pr.kidney != 1.0 else "")
+
+
 def _short(text: str, limit: int = 60) -> str:
     return text if len(text) <= limit else text[: limit - 3] + "..."
 
@@ -302,7 +321,7 @@ def _ratio_rows(a: Assessment) -> list[tuple[str, str]]:
     pr = a.prediction
     rows = [
         ("AUC ratio (total)", fmt_ratio(pr.total)),
-        ("AUC ratio gut x liver", f"{fmt_ratio(pr.gut)} x {fmt_ratio(pr.liver)}"),
+        ("AUC ratio gut x liver" + (" x kidney" if pr.kidney != 1.0 else ""), _organ_product(pr)),
         ("Complete-inhibition ceiling", fmt_ratio(pr.ceiling_total)),
         ("Size band", pr.band.name if pr.band else "-"),
         ("Clinical study", f"{'indicated' if a.study_indicated else 'not indicated'} (AUCR cutoff {a.aucr_cutoff.value:g})"),
@@ -316,7 +335,9 @@ def assessment_repr(a: Assessment) -> str:
     pr = a.prediction
     return (
         f"Assessment({_short(a.scenario.title)!r}, AUCR={fmt_ratio(pr.total)} "
-        f"(gut {fmt_ratio(pr.gut)} x liver {fmt_ratio(pr.liver)}), "
+        f"(gut {fmt_ratio(pr.gut)} x liver {fmt_ratio(pr.liver)}"
+        + (f" x kidney {fmt_ratio(pr.kidney)}" if pr.kidney != 1.0 else "")
+        + "), "
         f"study {'indicated' if a.study_indicated else 'not indicated'}, action={a.dose.action!r}, "
         f"warnings={len(a.warnings)}, rules={a.rules.id!r})"
     )

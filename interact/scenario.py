@@ -24,18 +24,21 @@ import pint
 from . import units
 from .dosing import MAX_UNIT_SIZES
 from .errors import InputError, Problem, ScenarioError
-from .scenario_fields import FieldReader, brief
+from .scenario_fields import MAX_ITEMS, FieldReader, brief
 from .tables import load_phenotypes, resolve_target
 
 __all__ = [
     "INTERVAL_KEYS",
     "MECHANISMS",
+    "VICTIM_ROUTES",
+    "ExtendedClearance",
     "Inhibition",
     "Metabolite",
     "Pathway",
     "Perpetrator",
     "Physiology",
     "Scenario",
+    "SiteConcentrations",
     "Turnover",
     "Victim",
     "demo_path",
@@ -127,6 +130,24 @@ class Metabolite:
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
+class SiteConcentrations:
+    """Site concentrations of the parent given directly (``[perpetrator.site_concentrations]``), e.g. from a
+    published table: each replaces the computed value, and outputs mark it "given".
+
+    ``igut`` is the gut-lumen concentration of the basic screens (dose / 250 mL), ``ient`` the enterocyte
+    concentration of the mechanistic model, ``iin_max_u`` the unbound hepatic inlet concentration.
+    """
+
+    igut: Q | None = None
+    ient: Q | None = None
+    iin_max_u: Q | None = None
+
+
+#: the keys of [perpetrator.site_concentrations]
+SITE_KEYS: Final = ("igut", "ient", "iin_max_u")
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
 class Perpetrator:
     """The inhibiting drug.  ``cmax`` is the total plasma Cmax at steady state, highest dose."""
 
@@ -146,14 +167,65 @@ class Perpetrator:
     metabolites: tuple[Metabolite, ...] = ()
     half_life: Q | None = None  # elimination half-life; used only by the time course (interact.dynamic)
     cmax_dose: Q | None = None  # the dose at which cmax was measured (checked against dose)
+    #: molar mass of the species that reaches the enterocyte and the liver when it differs from the dosed compound
+    #: (a prodrug whose active form inhibits): the enterocyte and portal terms convert a mass dose with it
+    active_molar_mass: Q | None = None
+    site_concentrations: SiteConcentrations | None = None
+
+
+#: routes by which a transporter clears the object drug, and the organ of each
+VICTIM_ROUTES: Final = {"intestinal efflux": "gut", "hepatic uptake": "liver", "renal secretion": "kidney"}
+#: the route of an enzyme pathway
+METABOLISM: Final = "metabolism"
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Pathway:
-    """A fraction of the victim's clearance through one enzyme."""
+    """A fraction of the victim's disposition through one enzyme or transporter.
+
+    ``enzyme`` names the target (an enzyme, or a transporter for the transporter routes) and ``fm`` its fraction:
+
+    - ``metabolism`` (file keys ``enzyme``, ``fm``): the fraction of systemic clearance through the enzyme
+      (with ``extended_clearance``: the fraction of the metabolic clearance CLmet);
+    - ``intestinal efflux`` (``transporter``, ``fraction``): the fraction of the oral dose the transporter
+      returns to the gut lumen (the intestinal availability it governs is 1 - fraction);
+    - ``hepatic uptake``: the fraction of systemic clearance that depends on uptake by the transporter
+      (with ``extended_clearance``: its fraction of the uptake clearance PS_inf);
+    - ``renal secretion``: the fraction of the *renal* clearance secreted by the transporter.
+    """
 
     enzyme: str
     fm: float
+    route: str = METABOLISM
+
+    @property
+    def organ(self) -> str:
+        """``gut``, ``liver`` or ``kidney``: the organ whose ratio the pathway enters."""
+        return VICTIM_ROUTES.get(self.route, "liver")
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class ExtendedClearance:
+    """Hepatic clearances of the object drug for the extended clearance concept (``[victim.extended_clearance]``).
+
+    Flows (``"120 mL/min"``) or plain numbers relative to any common reference (ratios): sinusoidal uptake
+    ``ps_inf``, sinusoidal efflux ``ps_eff``, metabolism ``cl_met`` and biliary excretion ``cl_bile``, all
+    unbound intrinsic clearances.  ``hepatic_fraction`` is the hepatic share of systemic clearance (default
+    1 - renal_fraction).
+    """
+
+    ps_inf: Q | float
+    ps_eff: Q | float
+    cl_met: Q | float
+    cl_bile: Q | float | None = None
+    hepatic_fraction: float | None = None
+
+    def relative(self) -> tuple[float, float, float, float]:
+        """(PS_inf, PS_eff, CLmet, CLbile) as floats in one unit (L/min for flows)."""
+        out = []
+        for value in (self.ps_inf, self.ps_eff, self.cl_met, self.cl_bile):
+            out.append(units.magnitude(value, "L/min") if isinstance(value, pint.Quantity) else float(value or 0.0))
+        return out[0], out[1], out[2], out[3]
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -195,6 +267,8 @@ class Victim:
     half_life: Q | None = None  # elimination half-life without the perpetrator
     hepatic_extraction: float | None = None  # hepatic (blood) extraction ratio without the perpetrator
     ka: Q | None = None  # first-order absorption rate constant (oral)
+    renal_fraction: float | None = None  # fraction of systemic clearance that is renal (fe,renal)
+    extended_clearance: ExtendedClearance | None = None
 
 
 @dataclass(frozen=True, slots=True, kw_only=True)
@@ -235,6 +309,8 @@ class Scenario:
     notes: str = ""
     #: the folder of the file it was read from: a relative ``rules`` path is read from there (not saved; not compared)
     folder: str | None = field(default=None, compare=False, repr=False)
+    #: per-scenario overrides of basic-model multipliers: (criterion id of the rule set, value); shown in every output
+    multipliers: tuple[tuple[str, float], ...] = ()
     spelling: tuple[str, str] = ("perpetrator", "victim")
     """The table names the file used: ``[perpetrator]``/``[victim]`` or the ICH M12 terms ``[precipitant]``/``[object]``;
     :func:`scenario_to_dict` writes them back the same way."""
@@ -453,6 +529,8 @@ class _PerpetratorReader(FieldReader):
         ka = self.quantity(data, "ka", path, "rate")
         half_life = self.quantity(data, "half_life", path, "time")
         cmax_dose = self.quantity(data, "cmax_dose", path, "dose")
+        active_mw = self.quantity(data, "active_molar_mass", path, "molar_mass")
+        sites = self.site_concentrations(data, path)
         if cmax_dose is not None and dose is not None and cmax_dose.dimensionality != dose.dimensionality:
             self.fail(f"{path}.cmax_dose", f'"{units.format_quantity(cmax_dose)}" is not in the same kind of unit as the dose')
             cmax_dose = None
@@ -490,7 +568,25 @@ class _PerpetratorReader(FieldReader):
             metabolites=tuple(metabolites),
             half_life=half_life,
             cmax_dose=cmax_dose,
+            active_molar_mass=active_mw,
+            site_concentrations=sites,
         )
+
+    def site_concentrations(self, data: dict[str, Any], path: str) -> SiteConcentrations | None:
+        if "site_concentrations" not in data:
+            return None
+        at = f"{path}.site_concentrations"
+        sdata = self.table(data["site_concentrations"], at, SITE_KEYS)
+        if sdata is None:
+            return None
+        values = {}
+        for key in SITE_KEYS:
+            q = self.quantity(sdata, key, at, "molar_concentration")
+            if q is not None and not q.magnitude > 0:
+                self.fail(f"{at}.{key}", f'"{units.format_quantity(q)}" is not above zero; expected a concentration such as "29 uM"')
+                q = None
+            values[key] = q
+        return SiteConcentrations(**values)
 
     def metabolite(self, raw: object, path: str) -> Metabolite | None:
         data = self.table(raw, path, tuple(f.name for f in fields(Metabolite)))
@@ -511,6 +607,8 @@ class _PerpetratorReader(FieldReader):
 class _VictimReader(FieldReader):
     """The victim's section: dose, regimen, unit sizes, elimination pathways and phenotypes."""
 
+    _victim_keys: frozenset[str] = frozenset()
+
     def victim(self, raw: object, path: str = "victim") -> Victim | None:
         data = self.table(
             raw,
@@ -519,6 +617,7 @@ class _VictimReader(FieldReader):
         )
         if data is None:
             return None
+        self._victim_keys = frozenset(data)
         name = self.name(data, "name", path)
         dose = self.quantity(data, "dose", path, "dose", required=True)
         interval = self.quantity(data, "interval", path, "time", required=True)
@@ -534,8 +633,16 @@ class _VictimReader(FieldReader):
             v_extraction = None
         v_ka = self.quantity(data, "ka", path, "rate")
         strengths, scored, intervals, max_units = self.unit_sizes(data, path, dose)
-        pathways = self.pathways(data, path)
-        phenotypes = self.phenotypes(data, path, {p.enzyme for p in pathways})
+        renal_fraction = self.fraction(data, "renal_fraction", path, allow_zero=True)
+        ecm = self.extended_clearance(data, path)
+        pathways = self.pathways(data, path, fg=fg, renal_fraction=renal_fraction, ecm=ecm)
+        phenotypes = self.phenotypes(data, path, {p.enzyme for p in pathways if p.route == METABOLISM})
+        if phenotypes and (ecm is not None or any(p.route != METABOLISM for p in pathways)):
+            self.fail(
+                f"{path}.phenotypes",
+                "are not combined with transporter routes or extended_clearance in this version; "
+                "assess the phenotypes with the enzyme pathways alone",
+            )
         lower, upper = self.boundary(data, "no_effect_boundary", path) or (None, None)
         peak_boundary = self.boundary(data, "peak_boundary", path)
         trough_boundary = self.boundary(data, "trough_boundary", path)
@@ -561,6 +668,8 @@ class _VictimReader(FieldReader):
             half_life=v_half_life,
             hepatic_extraction=v_extraction,
             ka=v_ka,
+            renal_fraction=renal_fraction,
+            extended_clearance=ecm,
         )
 
     def unit_sizes(self, data: dict[str, Any], path: str, dose: Q | None) -> tuple[tuple[Q, ...], tuple[Q, ...], tuple[Q, ...], int | None]:
@@ -586,38 +695,175 @@ class _VictimReader(FieldReader):
                 self.fail(f"{path}.max_units", f"{brief(mu)} is not a whole number from 1 to 8 (units per administration)")
         return strengths, scored, intervals, max_units
 
-    def pathways(self, data: dict[str, Any], path: str) -> tuple[Pathway, ...]:
-        """The victim's elimination pathways: known enzymes, each once, fm values summing to at most 1."""
+    def pathway(self, praw: object, at: str) -> Pathway | None:
+        """One ``[[victim.pathways]]`` entry: ``enzyme`` with ``fm``, or ``transporter`` with ``fraction`` (and ``route``)."""
+        pdata = self.table(praw, at, ("enzyme", "fm", "transporter", "fraction", "route"))
+        if pdata is None:
+            return None
+        if "transporter" in pdata or ("enzyme" not in pdata and ("fraction" in pdata or "route" in pdata)):
+            for key in ("enzyme", "fm"):
+                if key in pdata:
+                    self.fail(f"{at}.{key}", "is given with a transporter; give transporter, fraction (and route) for a transporter")
+            name = self.target_name(pdata, "transporter", at)
+            fraction = self.fraction(pdata, "fraction", at, required=True, allow_zero=True)
+            target = resolve_target(name) if name is not None else None
+            if target is None:
+                return None
+            routes = ", ".join(f'"{r}"' for r in VICTIM_ROUTES)
+            if target.kind != "transporter" or target.victim_route is None:
+                self.fail(
+                    f"{at}.transporter",
+                    f'"{name}" is not a transporter of an object-drug route ({routes}); an enzyme goes under enzyme, with fm',
+                )
+                return None
+            route = self.text(pdata, "route", at, default=target.victim_route)
+            if route not in VICTIM_ROUTES:
+                self.fail(f"{at}.route", f'"{route[:40]}" is not one of {routes}')
+                return None
+            if route != target.victim_route:
+                self.fail(
+                    f"{at}.route", f'"{route}" is not a route of {target.name}; the static model takes it for "{target.victim_route}"'
+                )
+                return None
+            return None if fraction is None else Pathway(enzyme=target.name, fm=fraction, route=route)
+        for key in ("fraction", "route"):
+            if key in pdata:
+                self.fail(f"{at}.{key}", "is given with an enzyme; an enzyme pathway takes enzyme and fm")
+        enzyme = self.target_name(pdata, "enzyme", at)
+        fm = self.fraction(pdata, "fm", at, required=True, allow_zero=True)
+        if enzyme is None:
+            return None
+        target = resolve_target(enzyme)
+        if target is not None and target.kind != "enzyme":
+            self.fail(
+                f"{at}.enzyme",
+                f'"{enzyme}" is a transporter; write it as transporter = "{enzyme}" with its fraction (and route)',
+            )
+            return None
+        return None if fm is None else Pathway(enzyme=enzyme, fm=fm)
+
+    def pathways(
+        self, data: dict[str, Any], path: str, *, fg: float | None, renal_fraction: float | None, ecm: ExtendedClearance | None
+    ) -> tuple[Pathway, ...]:
+        """The victim's pathways, each target once, and each organ's fractions summing to at most 1."""
         pathways: list[Pathway] = []
         seen: set[str] = set()
         for i, praw in self.items(data, "pathways", path):
             at = f"{path}.pathways[{i}]"
-            pdata = self.table(praw, at, ("enzyme", "fm"))
-            if pdata is None:
+            item = self.pathway(praw, at)
+            if item is None:
                 continue
-            enzyme = self.target_name(pdata, "enzyme", at)
-            fm = self.fraction(pdata, "fm", at, required=True, allow_zero=True)
-            if enzyme is not None:
-                target = resolve_target(enzyme)
-                if target is not None and target.kind != "enzyme":
-                    self.fail(
-                        f"{at}.enzyme",
-                        f'"{enzyme}" is a transporter; the mechanistic static model here takes metabolic pathways (enzymes) only',
-                    )
-                    continue
-                if enzyme in seen:
-                    self.fail(f"{at}.enzyme", f'"{enzyme}" is listed twice; give one fm per enzyme')
-                    continue
-                seen.add(enzyme)
-            if enzyme is not None and fm is not None:
-                pathways.append(Pathway(enzyme=enzyme, fm=fm))
-        total = sum(p.fm for p in pathways)
-        if total > 1.0 + 1e-9:
+            key = "enzyme" if item.route == METABOLISM else "transporter"
+            if item.enzyme in seen:
+                self.fail(f"{at}.{key}", f'"{item.enzyme}" is listed twice; give one fraction per {key}')
+                continue
+            seen.add(item.enzyme)
+            pathways.append(item)
+        self._check_sums(pathways, path, fg=fg, renal_fraction=renal_fraction, ecm=ecm)
+        return tuple(pathways)
+
+    def _check_sums(
+        self, pathways: list[Pathway], path: str, *, fg: float | None, renal_fraction: float | None, ecm: ExtendedClearance | None
+    ) -> None:
+        """Each organ's fractions must sum to at most 1 (the rest is unaffected); the message names the parts."""
+
+        def total(route: str) -> float:
+            return sum(p.fm for p in pathways if p.route == route)
+
+        def over(value: float) -> bool:
+            return value > 1.0 + 1e-9
+
+        fm, uptake, efflux, secretion = (total(r) for r in (METABOLISM, "hepatic uptake", "intestinal efflux", "renal secretion"))
+        renal = renal_fraction or 0.0
+        if ecm is not None:
+            if over(fm):
+                self.fail(
+                    f"{path}.pathways",
+                    f"fm values sum to {fm:.12g}; with extended_clearance they are fractions of CLmet: expected at most 1",
+                )
+            if over(uptake):
+                self.fail(
+                    f"{path}.pathways",
+                    f"hepatic uptake fractions sum to {uptake:.12g}; with extended_clearance they are fractions of PS_inf: "
+                    "expected at most 1",
+                )
+            hepatic = ecm.hepatic_fraction if ecm.hepatic_fraction is not None else 1.0 - renal
+            if over(hepatic + renal):
+                self.fail(
+                    f"{path}.extended_clearance.hepatic_fraction",
+                    f"{hepatic:g} with renal_fraction {renal:g} sums to {hepatic + renal:.12g}; "
+                    "expected at most 1 (fractions of systemic clearance)",
+                )
+        elif uptake == 0.0 and renal_fraction is None:
+            if over(fm):
+                self.fail(
+                    f"{path}.pathways", f"fm values sum to {fm:.12g}; expected a total of at most 1 (the rest is renal and other routes)"
+                )
+        elif over(fm + uptake + renal):
             self.fail(
                 f"{path}.pathways",
-                f"fm values sum to {total:.12g}; expected a total of at most 1 (the rest is renal and other routes)",
+                f"fractions of systemic clearance sum to {fm + uptake + renal:.12g} (metabolism fm {fm:g} + hepatic uptake {uptake:g} + "
+                f"renal_fraction {renal:g}); expected at most 1",
             )
-        return tuple(pathways)
+        gut_loss = efflux + (1.0 - fg if fg is not None else 0.0)
+        if over(gut_loss):
+            self.fail(
+                f"{path}.pathways",
+                f"intestinal fractions sum to {gut_loss:.12g} (intestinal efflux {efflux:g}"
+                + (f" + gut-wall metabolism 1 - fg = {1.0 - fg:g}" if fg is not None else "")
+                + "); expected at most 1 (fractions of the oral dose lost in the gut wall)",
+            )
+        if over(secretion):
+            self.fail(
+                f"{path}.pathways", f"renal secretion fractions sum to {secretion:.12g}; expected at most 1 (fractions of renal clearance)"
+            )
+        if secretion > 0.0 and renal_fraction is None and "renal_fraction" not in self._victim_keys:
+            self.fail(f"{path}.renal_fraction", "is missing; a renal secretion pathway needs the renal fraction of systemic clearance")
+
+    def extended_clearance(self, data: dict[str, Any], path: str) -> ExtendedClearance | None:
+        """``[victim.extended_clearance]``: all four clearances as flows, or all as plain numbers (ratios)."""
+        if "extended_clearance" not in data:
+            return None
+        at = f"{path}.extended_clearance"
+        edata = self.table(data["extended_clearance"], at, ("ps_inf", "ps_eff", "cl_met", "cl_bile", "hepatic_fraction"))
+        if edata is None:
+            return None
+        values: dict[str, Any] = {}
+        kinds = set()
+        for key in ("ps_inf", "ps_eff", "cl_met", "cl_bile"):
+            if key not in edata:
+                if key != "cl_bile":
+                    self.fail(f"{at}.{key}", 'is missing; expected a clearance such as "120 mL/min" or a number (a ratio)')
+                continue
+            raw = edata[key]
+            value: Any
+            if isinstance(raw, (int, float)) and not isinstance(raw, bool):
+                value = self.number(edata, key, at, low=0.0, high=1e12, low_open=key in ("ps_inf",))
+                kinds.add("ratio")
+            else:
+                value = self.quantity(edata, key, at, "flow")
+                if value is not None and not (math.isfinite(value.magnitude) and value.magnitude >= 0):
+                    self.fail(f"{at}.{key}", f'"{units.format_quantity(value)}" is not a clearance of at least 0')
+                    value = None
+                elif value is not None and key == "ps_inf" and value.magnitude == 0:
+                    self.fail(f"{at}.{key}", "is zero; expected an uptake clearance above 0")
+                    value = None
+                kinds.add("flow")
+            if value is not None:
+                values[key] = value
+        if len(kinds) > 1:
+            self.fail(at, "mixes flows and plain numbers; give all four clearances as flows or all as ratios to one reference")
+            return None
+        hepatic = self.fraction(edata, "hepatic_fraction", at, allow_zero=True)
+        if not {"ps_inf", "ps_eff", "cl_met"} <= values.keys():
+            return None
+        cl_met, cl_bile = values["cl_met"], values.get("cl_bile") or 0.0
+        met = units.magnitude(cl_met, "L/min") if isinstance(cl_met, pint.Quantity) else cl_met
+        bile = units.magnitude(cl_bile, "L/min") if isinstance(cl_bile, pint.Quantity) else cl_bile
+        if met + bile <= 0:
+            self.fail(f"{at}.cl_met", "and cl_bile are both zero; expected a hepatic elimination clearance above 0")
+            return None
+        return ExtendedClearance(hepatic_fraction=hepatic, **values)
 
     def phenotypes(self, data: dict[str, Any], path: str, pathway_enzymes: set[str]) -> tuple[PhenotypeChoice, ...]:
         table = load_phenotypes()
@@ -662,7 +908,9 @@ class _Reader(_PerpetratorReader, _VictimReader):
     """Walks a whole scenario, section by section, converting values and collecting problems."""
 
     def scenario(self, data: object) -> Scenario | None:
-        top = self.table(data, "", ("title", "invented", "rules", "notes", *SPELLINGS, *SPELLINGS.values(), "physiology", "turnover"))
+        top = self.table(
+            data, "", ("title", "invented", "rules", "notes", *SPELLINGS, *SPELLINGS.values(), "physiology", "turnover", "multipliers")
+        )
         if top is None:
             return None
         names: list[str] = []
@@ -694,6 +942,7 @@ class _Reader(_PerpetratorReader, _VictimReader):
                 continue
             turnover_list.append(entry)
         turnover = tuple(turnover_list)
+        multipliers = self.multipliers(top)
         if perp is None or victim is None or physiology is None:
             return None
         return Scenario(
@@ -705,8 +954,22 @@ class _Reader(_PerpetratorReader, _VictimReader):
             victim=victim,
             physiology=physiology,
             turnover=turnover,
+            multipliers=multipliers,
             spelling=(perp_name, victim_name),
         )
+
+    def multipliers(self, top: dict[str, Any]) -> tuple[tuple[str, float], ...]:
+        """``[multipliers]``: criterion id -> a positive number (checked against the rule set when assessed)."""
+        raw = top.get("multipliers", {})
+        if not isinstance(raw, dict):
+            self.fail("multipliers", f'{brief(raw)} is not a table; expected e.g. [multipliers] with "tdi-liver" = 5')
+            return ()
+        out = []
+        for key in list(raw)[:MAX_ITEMS]:
+            value = self.number(raw, key, "multipliers", low=0.0, high=1e4)
+            if value is not None:
+                out.append((str(key), value))
+        return tuple(out)
 
     def physiology(self, raw: object) -> Physiology | None:
         path = "physiology"
@@ -766,8 +1029,13 @@ def _perpetrator_dict(p: Perpetrator) -> dict[str, Any]:
         _put(perp, key, getattr(p, key))
     if p.fu_plasma_measured:
         perp["fu_plasma_measured"] = True
-    for key in ("blood_plasma_ratio", "fa_fg", "fa", "ka", "half_life", "cmax_dose"):
+    for key in ("blood_plasma_ratio", "fa_fg", "fa", "ka", "half_life", "cmax_dose", "active_molar_mass"):
         _put(perp, key, getattr(p, key))
+    if p.site_concentrations is not None:
+        sites: dict[str, Any] = {}
+        for key in SITE_KEYS:
+            _put(sites, key, getattr(p.site_concentrations, key))
+        perp["site_concentrations"] = sites
     perp["inhibits"] = [_inhibition_dict(i) for i in p.inhibits]
     if p.metabolites:
         mets = []
@@ -808,9 +1076,17 @@ def _victim_dict(v: Victim) -> dict[str, Any]:
             {"enzyme": c.enzyme, "activity": c.activity} if c.activity is not None else {"enzyme": c.enzyme, "phenotype": c.phenotype}
             for c in v.phenotypes
         ]
-    for key in ("half_life", "hepatic_extraction", "ka"):
+    for key in ("half_life", "hepatic_extraction", "ka", "renal_fraction"):
         _put(vic, key, getattr(v, key))
-    vic["pathways"] = [{"enzyme": pw.enzyme, "fm": pw.fm} for pw in v.pathways]
+    if v.extended_clearance is not None:
+        ecm: dict[str, Any] = {}
+        for f in fields(ExtendedClearance):
+            _put(ecm, f.name, getattr(v.extended_clearance, f.name))
+        vic["extended_clearance"] = ecm
+    vic["pathways"] = [
+        {"enzyme": pw.enzyme, "fm": pw.fm} if pw.route == METABOLISM else {"transporter": pw.enzyme, "route": pw.route, "fraction": pw.fm}
+        for pw in v.pathways
+    ]
     return vic
 
 
@@ -837,6 +1113,8 @@ def scenario_to_dict(scenario: Scenario) -> dict[str, Any]:
             _put(td, "kdeg_gut", t.kdeg_gut)
             turn.append(td)
         out["turnover"] = turn
+    if scenario.multipliers:
+        out["multipliers"] = dict(scenario.multipliers)
     return out
 
 

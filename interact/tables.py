@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import math
 import tomllib
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import lru_cache
 from pathlib import Path
 from typing import Any, Final
@@ -40,6 +40,7 @@ __all__ = [
     "resolve_target",
     "rule_set_names",
     "tables_dir",
+    "with_multipliers",
 ]
 
 DEFAULT_RULES: Final = "ich-m12-2024"
@@ -189,6 +190,9 @@ class Target:
     gut_wall: bool
     kdeg_liver: Sourced | None = None
     kdeg_gut: Sourced | None = None
+    #: for a transporter: the route by which it clears an object drug (``intestinal efflux``, ``hepatic uptake``,
+    #: ``renal secretion``; see :data:`interact.scenario.VICTIM_ROUTES`)
+    victim_route: str | None = None
 
 
 @lru_cache(maxsize=1)
@@ -341,6 +345,7 @@ def load_targets() -> tuple[Target, ...]:
                 gut_wall=bool(raw.get("gut_wall", False)),
                 kdeg_liver=_sourced(raw, "kdeg_liver", at) if "kdeg_liver" in raw else None,
                 kdeg_gut=_sourced(raw, "kdeg_gut", at) if "kdeg_gut" in raw else None,
+                victim_route=raw.get("victim_route"),
             )
         )
     return tuple(out)
@@ -384,6 +389,42 @@ def _target_index() -> dict[str, Target]:
         for key in (target.name, *target.aliases):
             index[_norm(key)] = target
     return index
+
+
+def with_multipliers(rules: RuleSet, overrides: tuple[tuple[str, float], ...]) -> RuleSet:
+    """``rules`` with a scenario's basic-model multipliers (criterion id, value) in place of its own.
+
+    The replaced criterion's multiplier names the override and the rule set's own value in its source, so the
+    override is shown wherever the multiplier is.
+
+    Raises
+    ------
+    InputError
+        An id that is not a criterion of ``rules`` (field ``multipliers.<id>``).
+    """
+    if not overrides:
+        return rules
+    ids = [c.id for c in rules.criteria]
+    for key, _ in overrides:
+        if key not in ids:
+            raise InputError(f"multipliers.{key}", key, f"is not a criterion of {rules.id}; expected one of {', '.join(ids)}")
+    new = dict(overrides)
+    criteria = tuple(
+        replace(
+            c,
+            multiplier=Sourced(
+                name="multiplier",
+                value=new[c.id],
+                source=f"scenario [multipliers] override of {rules.id} (its own value: "
+                f"{'x ' + format(float(c.multiplier.value), 'g') if c.multiplier else 'none, i.e. x 1'})",
+                status="",
+            ),
+        )
+        if c.id in new
+        else c
+        for c in rules.criteria
+    )
+    return replace(rules, criteria=criteria)
 
 
 def resolve_target(name: str) -> Target | None:

@@ -54,7 +54,7 @@ from .dosing import ACTIONS, Regimen, choose_regimens, feasible_fraction, regime
 from .errors import InputError
 from .exposure import enterocyte_um, unbound_cmax_um, unbound_inlet_um
 from .kinetics.conversion import ki_from_ic50
-from .prediction import liver_ratio, reversible_term
+from .prediction import liver_ratio, reversible_term, route_pathways, routes_of
 from .scenario import INTERVAL_KEYS, Inhibition
 from .tables import load_classes, resolve_target
 
@@ -321,6 +321,13 @@ class ScenarioModel:
     def __init__(self, assessment: Assessment) -> None:
         a = assessment
         self.assessment = a
+        p_ = a.scenario.perpetrator
+        # given site concentrations stay at their given values; an active moiety's molar mass scales the absorbed amount
+        self._given = p_.site_concentrations
+        self._absorbed = 1.0
+        if p_.active_molar_mass is not None and a.species[0].dose_umol > 0:
+            absorbed = units.amount_umol(p_.dose, p_.active_molar_mass, field="perpetrator.active_molar_mass")
+            self._absorbed = absorbed / a.species[0].dose_umol
         rules = a.rules
         override = a.scenario.physiology.fu_plasma_floor
         self._floor = float(rules.fu_plasma_floor.value) if override is None else float(override)
@@ -345,6 +352,7 @@ class ScenarioModel:
         self._targets: dict[str, int] = {}
         for name in (
             *(e for e, _ in self._pathways),
+            *(e for e, _ in (*self._routes.efflux, *self._routes.uptake, *self._routes.secretion)),
             *((self._gut_enzyme,) if self._gut_enzyme else ()),
             *(c.target for c in self._consts),
         ):
@@ -451,7 +459,16 @@ class ScenarioModel:
         self._pathways = [
             (pw.enzyme, add(f"victim.pathways[{k}].fm", f"fm {pw.enzyme} of {v.name}", "", "fraction", pw.fm))
             for k, pw in enumerate(v.pathways)
+            if pw.route == "metabolism"
         ]
+        # transporter routes at their point fractions (not varied); the enzyme fm share what is left of systemic clearance
+        self._routes = routes_of(v)
+        fixed = (*self._routes.secretion,) if self._routes.clearances is not None else (*self._routes.uptake, *self._routes.secretion)
+        self._fm_room = 1.0 - sum(f for _, f in fixed)  # with the hepatic clearances, fm are shares of CLmet
+        self._organs = _model.ORGANS
+        if self._routes.clearances is not None:
+            liver = _model.Organ(site="liver", form="extended", clearances=self._routes.clearances, fraction=self._routes.hepatic_fraction)
+            self._organs = {**_model.ORGANS, "liver": liver}
         kdeg, _ = kdeg_per_h(a.scenario, a.constants)
         self._kdeg: dict[str, tuple[str | None, str | None]] = {}
         for enzyme, (k_liver, k_gut) in kdeg.items():
@@ -493,6 +510,7 @@ class ScenarioModel:
         pathways = [_model.Pathway(target=t[enzyme], organ="liver", fraction=get(path)) for enzyme, path in self._pathways]
         if self._gut_enzyme is not None:
             pathways.insert(0, _model.Pathway(target=t[self._gut_enzyme], organ="gut", fraction=get("victim.fg")))
+        pathways += route_pathways(self._routes, t)
         kdeg = {
             (t[enzyme], site): get(path)
             for enzyme, paths in self._kdeg.items()
@@ -500,9 +518,13 @@ class ScenarioModel:
             for site, path in zip(("liver", "gut"), paths, strict=True)
             if path is not None
         }
-        r = _model.evaluate(self._acting(get), pathways, {"liver": liver_conc, "gut": gut_conc}, kdeg)
-        gut, liver = np.broadcast_arrays(np.asarray(r.gut, dtype=float), np.asarray(r.liver, dtype=float))
-        return Ratios(gut=gut, liver=liver, total=gut * liver)
+        kidney_conc = [unbound_cmax_um(get(sp.cmax), self._fu(sp, get)) for sp in self._species]
+        sites = {"liver": liver_conc, "gut": gut_conc, "kidney": kidney_conc}
+        r = _model.Model(self._acting(get), pathways, self._organs).evaluate(sites, kdeg)
+        gut, liver, kidney = np.broadcast_arrays(
+            np.asarray(r.gut, dtype=float), np.asarray(r.liver, dtype=float), np.asarray(r.kidney, dtype=float)
+        )
+        return Ratios(gut=gut, liver=liver, total=gut * liver * kidney)
 
     def _concentrations(self, get: Callable[[str], Any]) -> tuple[list[Any], list[Any]]:
         """Unbound concentrations (uM) of each species at the hepatic inlet and in the enterocytes (:mod:`interact.exposure`)."""
@@ -510,11 +532,10 @@ class ScenarioModel:
         gut_conc: list[Any] = []
         for sp in self._species:
             cmax = get(sp.cmax)
-            fu = get(sp.fu)
-            if not (sp.measured and self._exempt):
-                fu = np.where(np.less(fu, self._floor), self._floor, fu)  # fu,p floor, as interact.exposure.floored_fu
+            fu = self._fu(sp, get)
             if sp.parent and self._oral:
-                dose, ka = get("perpetrator.dose"), get("perpetrator.ka")
+                ka = get("perpetrator.ka")
+                dose = get("perpetrator.dose") if self._absorbed == 1.0 else get("perpetrator.dose") * self._absorbed
                 qh, rb = get("physiology.hepatic_blood_flow"), get("perpetrator.blood_plasma_ratio")
                 liver_conc.append(unbound_inlet_um(cmax, fu, dose, get("perpetrator.fa_fg"), ka, qh, rb))
                 qent, fu_gut = get("physiology.enterocytic_blood_flow"), get("physiology.fu_gut")
@@ -523,7 +544,19 @@ class ScenarioModel:
                 imax_u = unbound_cmax_um(cmax, fu)
                 liver_conc.append(imax_u)
                 gut_conc.append(imax_u)
+        given = self._given
+        if given is not None and given.iin_max_u is not None:  # fixed at the given value (interact.exposure)
+            liver_conc[0] = units.concentration_um(given.iin_max_u, None, field="perpetrator.site_concentrations.iin_max_u")
+        if given is not None and given.ient is not None:
+            gut_conc[0] = units.concentration_um(given.ient, None, field="perpetrator.site_concentrations.ient")
         return liver_conc, gut_conc
+
+    def _fu(self, sp: _Species, get: Callable[[str], Any]) -> Any:
+        """fu,p as used: raised to the floor unless a measured value may stand below it (as interact.exposure.floored_fu)."""
+        fu = get(sp.fu)
+        if not (sp.measured and self._exempt):
+            fu = np.where(np.less(fu, self._floor), self._floor, fu)
+        return fu
 
     def _acting(self, get: Callable[[str], Any]) -> list[_model.Acting]:
         """Unbound constants of the perpetrator (Ki,u = Ki x fu,inc after Cheng-Prusoff for an IC50; KI,u; EC50,u)."""
@@ -806,12 +839,13 @@ def _evaluate_draws(
             return model.point(path)
         return d.high if d.kind == "uniform" else 1.0
 
-    if any(p in drawn for p in fm_paths) and sum(fm_max(p) for p in fm_paths) > 1.0:
+    room = model._fm_room  # 1 less the fixed transporter shares of systemic clearance
+    if any(p in drawn for p in fm_paths) and sum(fm_max(p) for p in fm_paths) > room:
         total_fm = sum((drawn.get(p, model.point(p)) for p in fm_paths), start=np.zeros(samples))
-        over = total_fm > 1.0
+        over = total_fm > room
         fm_scaled = int(np.count_nonzero(over))
         if fm_scaled:
-            factor = np.where(over, 1.0 / np.where(over, total_fm, 1.0), 1.0)
+            factor = np.where(over, room / np.where(over, total_fm, 1.0), 1.0)
             for p in fm_paths:
                 drawn[p] = np.asarray(drawn.get(p, model.point(p))) * factor
 
@@ -1188,7 +1222,7 @@ def _default_range(inp: Input, model: ScenarioModel) -> tuple[float, float]:
         cap = 1.0
         if inp.path.endswith(".fm"):
             others = sum(model.point(p) for _, p in model._pathways if p != inp.path)
-            cap = max(inp.value, 1.0 - others)
+            cap = max(inp.value, model._fm_room - others)
         hi = min(hi, cap)
     return lo, hi
 
@@ -1316,7 +1350,7 @@ def crossing_points(model: ScenarioModel) -> tuple[CrossingPoint, ...]:
         enzyme, path = main
         inp = model.input(path)
         others = sum(model.point(p) for _, p in model._pathways if p != path)
-        cap = max(0.0, 1.0 - others)
+        cap = max(0.0, model._fm_room - others)
 
         def h(fm: float) -> float:
             return total_at(path, fm) - boundary
@@ -1356,7 +1390,7 @@ def sensitivity(assessment: Assessment, vary: Sequence[tuple[str, str]] = ()) ->
         if eff is not None and eff.liver.reversible < 1.0:
             ratio = 1.0 / eff.liver.reversible - 1.0  # sum [I]/Ki,u on that enzyme in the liver
         others = sum(model.point(p) for _, p in model._pathways if p != path)
-        grid = np.linspace(0.0, max(0.0, 1.0 - others), 101)
+        grid = np.linspace(0.0, max(0.0, model._fm_room - others), 101)
         tot = np.broadcast_to(model.evaluate({path: grid}).total, grid.shape)
         curves.append(
             FmCurve(label=f"this scenario (fm {enzyme} varied)", fm=tuple(float(x) for x in grid), aucr=tuple(float(x) for x in tot))

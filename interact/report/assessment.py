@@ -7,7 +7,7 @@ documented in README.md ("JSON output") and versioned by ``schema``.
 from __future__ import annotations
 
 import json
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, Final
 
 import pint
 
@@ -132,7 +132,7 @@ def assessment_sections(
     # -- answer first
     band = pr.band.name if pr.band else ("no meaningful change" if 0.8 < pr.total < 1.25 else "-")
     verdict = (
-        f"Predicted victim AUC ratio {fmt_ratio(pr.total)} (gut {fmt_ratio(pr.gut)} x liver {fmt_ratio(pr.liver)}): "
+        f"Predicted victim AUC ratio {fmt_ratio(pr.total)} ({organ_words(pr)}): "
         f"{band}. Mechanistic model {'indicates' if a.study_indicated else 'does not indicate'} a clinical study "
         f"(cutoff {a.aucr_cutoff.value:g}, {a.aucr_cutoff.status}). Suggested action: {a.dose.headline}."
     )
@@ -156,9 +156,7 @@ def assessment_sections(
         ("Fg", "1 (assumed, not given)" if v.fg is None else f"{v.fg:g}", ""),
         ("Strengths", ", ".join(_q(x) for x in v.strengths) or "-", ""),
     ]
-    for pw in v.pathways:
-        vic_rows.append((f"fm {pw.enzyme}", f"{pw.fm:g}", ""))
-    vic_rows.append(("fm other routes (unaffected)", f"{max(0.0, 1 - sum(pw.fm for pw in v.pathways)):.3g}", ""))
+    vic_rows.extend(pathway_rows(v))
     const_rows = []
     for c in a.constants:
         if c.ki_u_um is not None:
@@ -296,6 +294,7 @@ def assessment_sections(
     ratio_rows = [
         ("gut", fmt_ratio(pr.gut), fmt_ratio(pr.ceiling_gut)),
         ("liver", fmt_ratio(pr.liver), fmt_ratio(pr.ceiling_liver)),
+        *([("kidney", fmt_ratio(pr.kidney), fmt_ratio(pr.ceiling_kidney))] if pr.routes or pr.kidney != 1.0 else []),
         ("total", fmt_ratio(pr.total), fmt_ratio(pr.ceiling_total)),
     ]
     blocks: list[str | Table | Note] = [
@@ -303,10 +302,35 @@ def assessment_sections(
             headers=("enzyme", "site", "fm / Fg", "[I] uM", "reversible", "inactivation", "induction", "activity left"),
             rows=tuple(eff_rows),
         ),
-        Table(headers=("AUC ratio", "predicted", "complete-inhibition ceiling"), rows=tuple(ratio_rows)),
     ]
+    if pr.routes:
+        blocks.append(
+            Table(
+                headers=("transporter", "route", "fraction", "[I] uM", "reversible", "inactivation", "induction", "activity left"),
+                rows=tuple(
+                    (
+                        r.transporter,
+                        r.route,
+                        f"{r.fraction:.3g}",
+                        ", ".join(f"{fmt(cv)}" for _, cv in r.site.concentration_um) or "-",
+                        fmt_ratio(r.site.reversible),
+                        fmt_ratio(r.site.inactivation),
+                        fmt_ratio(r.site.induction),
+                        fmt_ratio(r.site.activity),
+                    )
+                    for r in pr.routes
+                ),
+            )
+        )
+    blocks.append(Table(headers=("AUC ratio", "predicted", "complete-inhibition ceiling"), rows=tuple(ratio_rows)))
+    if pr.regime is not None:
+        blocks.append(
+            f"Hepatic clearance (extended clearance concept): {pr.regime} without the {a.rules.terms.precipitant}, "
+            f"{pr.regime_with} with it (beta = (CLmet + CLbile) / PS_eff: uptake-limited at >= 10, metabolism-limited "
+            "at <= 0.1, this tool's bounds)."
+        )
     for part in pr.parts:
-        blocks.append(f"{part.mechanism} alone: AUCR {fmt_ratio(part.total)} (gut {fmt_ratio(part.gut)}, liver {fmt_ratio(part.liver)})")
+        blocks.append(f"{part.mechanism} alone: AUCR {fmt_ratio(part.total)} ({organ_words(part)})")
     if pr.band is not None:
         blocks.append(f"Size band: {pr.band.name} ({pr.band.source}; {pr.band.status}).")
     blocks.append(
@@ -314,6 +338,15 @@ def assessment_sections(
         "activity = reversible x inactivation x induction (net-effect model of [@fahmi2008]; structure seen in [@guengerich2022], "
         "equations from memory with the algebra checked)."
     )
+    if pr.routes:
+        blocks.append(
+            "Transporter routes enter the same organ form: the gut term counts each efflux fraction of the oral dose beside "
+            "gut-wall metabolism (1 - Fg) at I,ent; the liver term counts hepatic uptake fractions beside fm at Iin,max,u "
+            "(or, with the hepatic clearances given, CLint,all = PS_inf (CLmet + CLbile) / (PS_eff + CLmet + CLbile), "
+            "[@shitara2006], [@camenisch2012]); the kidney term counts renal fraction x secreted share at Imax,u and is "
+            "the factor it adds to the liver's (the two share one systemic clearance); per route AUCR = 1 / (fe / (1 + [I]/Ki) "
+            "+ 1 - fe) as in [@elsby2016]; total = gut x liver x kidney."
+        )
     sections.append(Section(title="Mechanistic static model", blocks=tuple(blocks)))
 
     if a.phenotypes:
@@ -377,6 +410,50 @@ def user_text(a: Assessment) -> tuple[str, ...]:
     for inh in (*p.inhibits, *(i for m in p.metabolites for i in m.inhibits)):
         items.append(inh.origin)
     return tuple(x for x in items if x)
+
+
+def organ_words(pr: Any) -> str:
+    """``gut 1.74 x liver 1.29`` (``x kidney 1.01`` when the kidney term is not 1)."""
+    kidney = getattr(pr, "kidney", 1.0)
+    return f"gut {fmt_ratio(pr.gut)} x liver {fmt_ratio(pr.liver)}" + (f" x kidney {fmt_ratio(kidney)}" if kidney != 1.0 else "")
+
+
+#: what each route's fraction is a share of
+_SHARE_OF: Final = {
+    "intestinal efflux": "of the oral dose (returned to the gut lumen)",
+    "hepatic uptake": "of systemic clearance (uptake-dependent)",
+    "renal secretion": "of renal clearance (secreted)",
+}
+
+
+def pathway_rows(v: Any) -> list[tuple[str, str, str]]:
+    """The object drug's pathways as input rows: fm per enzyme, fractions per transporter route, the rest."""
+    ecm = v.extended_clearance
+    rows = []
+    for pw in v.pathways:
+        if pw.route == "metabolism":
+            rows.append((f"fm {pw.enzyme}", f"{pw.fm:g}", "of CLmet" if ecm is not None else ""))
+        else:
+            share = "of PS_inf (uptake)" if ecm is not None and pw.route == "hepatic uptake" else _SHARE_OF[pw.route]
+            rows.append((f"{pw.enzyme} ({pw.route})", f"{pw.fm:g}", share))
+    if v.renal_fraction is not None:
+        rows.append(("Renal fraction of clearance", f"{v.renal_fraction:g}", ""))
+    if ecm is not None:
+        for key, label in (
+            ("ps_inf", "PS_inf (uptake)"),
+            ("ps_eff", "PS_eff (sinusoidal efflux)"),
+            ("cl_met", "CLmet"),
+            ("cl_bile", "CLbile"),
+        ):
+            value = getattr(ecm, key)
+            if value is not None:
+                rows.append((label, _q(value) if hasattr(value, "units") else f"{value:g}", "extended clearance"))
+        hepatic = ecm.hepatic_fraction if ecm.hepatic_fraction is not None else 1.0 - (v.renal_fraction or 0.0)
+        rows.append(("Hepatic fraction of clearance", f"{hepatic:.3g}", "" if ecm.hepatic_fraction is not None else "1 - renal fraction"))
+    else:
+        systemic = sum(pw.fm for pw in v.pathways if pw.route in ("metabolism", "hepatic uptake")) + (v.renal_fraction or 0.0)
+        rows.append(("Other routes (unaffected)", f"{max(0.0, 1 - systemic):.3g}", "of systemic clearance"))
+    return rows
 
 
 def phenotype_section(a: Assessment) -> Section:

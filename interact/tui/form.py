@@ -108,6 +108,9 @@ PATHWAYS: Final = ListSpec(
     (
         FieldSpec("enzyme", "Enzyme", "choice:enzyme", "e.g. CYP3A"),
         FieldSpec("fm", "fm", "fraction0", "fraction of clearance, e.g. 0.8"),
+        FieldSpec("transporter", "or Transporter", "choice:transporter", "instead of an enzyme, e.g. BCRP"),
+        FieldSpec("route", "Route", "choice:victim_route", "intestinal efflux, hepatic uptake or renal secretion"),
+        FieldSpec("fraction", "Fraction", "fraction0", "of the oral dose (efflux), clearance (uptake), renal clearance (secretion)"),
     ),
 )
 
@@ -147,6 +150,7 @@ _VICTIM: Final = (
     FieldSpec("interval", "Interval", "time", "e.g. 24 h"),
     FieldSpec("route", "Route", "choice:route", "oral or intravenous"),
     FieldSpec("fg", "Fg", "fraction", "intestinal availability, e.g. 0.5"),
+    FieldSpec("renal_fraction", "Renal fraction", "fraction0", "of systemic clearance, e.g. 0.3"),
     FieldSpec("strengths", "Strengths", "doses", "e.g. 2.5 mg, 5 mg, 10 mg"),
     FieldSpec("scored_strengths", "Scored (halvable)", "doses", "strengths that may be halved, e.g. 10 mg"),
     FieldSpec("max_units", "Units per dose, max", "number", "tablets per administration (default 4)"),
@@ -192,11 +196,15 @@ def choices_for(kind: str) -> tuple[str, ...]:
 
 @lru_cache(maxsize=8)
 def _choices(name: str) -> tuple[str, ...]:
-    from ..scenario import MECHANISMS, ROUTES
+    from ..scenario import MECHANISMS, ROUTES, VICTIM_ROUTES
     from ..tables import load_phenotypes, load_targets, rule_set_names  # not before the first screen
 
     if name == "mechanism":
         return MECHANISMS
+    if name == "victim_route":
+        return tuple(VICTIM_ROUTES)
+    if name == "transporter":
+        return tuple(t.name for t in load_targets() if t.victim_route is not None)
     if name == "route":
         return ROUTES
     if name == "rules":
@@ -345,7 +353,7 @@ def local_check(kind: str, text: str, key: str) -> tuple[str | None, Any]:
             return f'"{t}" is not two AUC ratios such as "0.8, 1.25"', None
         if kind.startswith("choice:"):
             options = _choices(kind.split(":", 1)[1])
-            if kind in ("choice:target", "choice:enzyme"):
+            if kind in ("choice:target", "choice:enzyme", "choice:transporter"):
                 return None, t  # aliases are resolved by the core
             if t not in options:
                 return f'"{t}" is not one of {", ".join(options)}', None

@@ -20,7 +20,7 @@ import numpy as np
 
 from ..assessment import Assessment
 from ..constants import kdeg_per_h
-from ..prediction import liver_ratio, ratio_function
+from ..prediction import liver_ratio, ratio_function, routes_of
 from ..report.numbers import fmt, fmt_ratio
 
 __all__ = ["Chart", "Series", "dose_curve", "draw", "fm_curve", "legend"]
@@ -61,7 +61,7 @@ def fm_curve(a: Assessment, points: int = 101) -> Chart | None:
     """
     pr = a.prediction
     effects = [e for e in pr.effects if e.liver.activity != 1.0]
-    if not effects:
+    if not effects or pr.routes or pr.regime is not None:  # with transporter routes this liver-only curve would be wrong
         return None
     main = max(effects, key=lambda e: e.fm)
     others = [e for e in pr.effects if e is not main]
@@ -102,12 +102,13 @@ def dose_curve(a: Assessment, points: int = 121) -> Chart | None:
         return None
     kdeg, _ = kdeg_per_h(s, a.constants)
     at = ratio_function(
-        pathways=tuple((pw.enzyme, pw.fm) for pw in s.victim.pathways),
+        pathways=tuple((pw.enzyme, pw.fm) for pw in s.victim.pathways if pw.route == "metabolism"),
         fg=pr.fg_used,
         gut_enzyme=pr.gut_enzyme,
         constants=a.constants,
         species=a.species,
         kdeg=kdeg,
+        routes=routes_of(s.victim),
     )
     lim = a.perpetrator_limit
     dose = float(s.perpetrator.dose.magnitude)

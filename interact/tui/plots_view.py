@@ -103,7 +103,11 @@ class PlotsPane(VerticalScroll):
             from . import plots
 
             a = ev.assessment
-            fm_view.show(plots.fm_curve(a), stale=False, empty_text="No fm plot: the perpetrator acts on none of the victim's pathways.")
+            fm_view.show(
+                plots.fm_curve(a),
+                stale=False,
+                empty_text="No fm plot: the perpetrator acts on none of the victim's enzyme pathways, or transporter routes are given.",
+            )
             dose_view.show(plots.dose_curve(a), stale=False, empty_text="No dose plot: no inhibition constants.")
         else:
             for view in (fm_view, dose_view):

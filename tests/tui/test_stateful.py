@@ -76,6 +76,8 @@ TEXTS: dict[str, list[str]] = {
     "choice:enzyme": ["CYP3A", "CYP2C9", "CYP2D6", "OATP1B1", ""],
     "choice:mechanism": ["competitive", "mixed", "noncompetitive", "sticky", ""],
     "choice:route": ["oral", "intravenous", "nasal", ""],
+    "choice:transporter": ["BCRP", "OATP1B1", "OAT3", "CYP3A", ""],
+    "choice:victim_route": ["intestinal efflux", "hepatic uptake", "renal secretion", "biliary", ""],
     "choice:rules": ["ich-m12-2024", "no-such-rules", ""],
     "choice:polymorphic": ["CYP2D6", "CYP2C19", "CYP3A", ""],
     "choice:phenotype": ["poor", "normal", "all", "fast-ish", ""],
