@@ -10,9 +10,12 @@ every caller.
 
 from __future__ import annotations
 
+import functools
+
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from .steps import StepTable
 from .tables import Classes
 
 __all__ = ["band_codes", "band_labels"]
@@ -33,8 +36,29 @@ def band_codes(auc_ratio: ArrayLike, classes: Classes) -> NDArray[np.int8]:
     strongest up (upper bound inclusive).
     """
     r = np.asarray(auc_ratio, dtype=float)
+    if r.size < _STEP_TABLE_ROWS:
+        return _band_codes(r, classes)
+    steps = _band_steps(classes)
+    (codes,), _, rest = steps.look_up(r)
+    if rest.size:  # at a bound (or not a finite positive ratio): the comparisons themselves
+        codes[rest] = _band_codes(r.ravel()[rest], classes)
+    return codes.reshape(r.shape)
+
+
+#: ratios from which band_codes looks codes up in a table (interact.steps) rather than comparing with every bound
+_STEP_TABLE_ROWS = 4096
+
+
+def _band_codes(r: NDArray[np.float64], classes: Classes) -> NDArray[np.int8]:
     inh = sorted(classes.inhibition, key=lambda b: -b.bound)
     ind = sorted(classes.induction, key=lambda b: b.bound)
     conditions = [r >= b.bound for b in inh] + [r <= b.bound for b in ind]
     choices = list(range(1, len(conditions) + 1))
     return np.select(conditions, choices, default=0).astype(np.int8)
+
+
+@functools.lru_cache(maxsize=8)
+def _band_steps(classes: Classes) -> StepTable:
+    """:func:`_band_codes` as a step table: constant between the bounds."""
+    bounds = np.array([b.bound for b in (*classes.inhibition, *classes.induction)], dtype=float)
+    return StepTable.build(bounds, lambda r: (_band_codes(r, classes),))

@@ -23,6 +23,8 @@ scenario file for those.
 from __future__ import annotations
 
 import csv
+import dataclasses
+import functools
 import io
 import math
 import os
@@ -46,9 +48,10 @@ from .exposure import resolve_exposure, resolve_settings
 from .files import loads_toml, read_text
 from .genotype import phenotype_options
 from .prediction import liver_ratio, routes_of
-from .scenario import VICTIM_ROUTES, Perpetrator, Scenario, Victim, scenario_from_dict
+from .scenario import VICTIM_ROUTES, Perpetrator, Scenario, Victim, section_from_dict
 from .screening import screen
-from .tables import RuleSet, load_classes, load_rules, load_targets, resolve_target
+from .steps import StepTable
+from .tables import Classes, RuleSet, load_classes, load_rules, load_targets, resolve_target
 
 __all__ = [
     "COLUMN_KEYS",
@@ -62,6 +65,7 @@ __all__ = [
     "RowProblem",
     "VictimTable",
     "evaluate_pairs",
+    "fits_in_memory",
     "flag_text",
     "load_perpetrators",
     "load_victims",
@@ -69,9 +73,12 @@ __all__ = [
     "loads_victims",
     "pair_ratios",
     "pair_scenario",
+    "perpetrator_subset",
     "ranking",
     "read_table",
     "result_rows",
+    "stream_chunks",
+    "worst_pairs",
 ]
 
 #: perpetrator columns: (name, unit kind or type, required, meaning)
@@ -417,16 +424,6 @@ def _row_dict(cols: list[_Column], cells: dict[str, Any], side: str) -> tuple[di
     return out, where
 
 
-_DUMMY_VICTIM: Final = {"name": "-", "dose": "1 mg", "interval": "24 h"}
-_DUMMY_PERPETRATOR: Final = {
-    "name": "-",
-    "dose": "1 umol",
-    "cmax": "1 uM",
-    "fu_plasma": 1.0,
-    "inhibits": [{"target": "CYP3A", "ki": "1 uM"}],
-}
-
-
 def _validate(side: str, data: dict[str, Any], where: dict[str, str]) -> Perpetrator | Victim:
     """The row as a Perpetrator or Victim, validated by the scenario reader (messages name the column)."""
     problems: list[str] = []
@@ -442,18 +439,15 @@ def _validate(side: str, data: dict[str, Any], where: dict[str, str]) -> Perpetr
             if item.pop("fu_inc_alone", False):
                 problems.append(f"column '{col}': fu_inc {item['target']} is given without ki {item['target']}")
                 item["ki"] = "1 uM"  # placeholder so that the rest of the row is still checked
-        doc = {"title": "row", "perpetrator": data, "victim": dict(_DUMMY_VICTIM)}
-    else:
-        doc = {"title": "row", "perpetrator": dict(_DUMMY_PERPETRATOR), "victim": data}
     try:
-        scenario = scenario_from_dict(doc)
+        section = section_from_dict(side, data)
     except ScenarioError as exc:
         for p in exc.problems:
             problems.append(_explain(p, where, side))
         raise InputError("row", "", "; ".join(problems)) from None
     if problems:
         raise InputError("row", "", "; ".join(problems))
-    return scenario.perpetrator if side == "perpetrator" else scenario.victim
+    return section
 
 
 def _explain(p: Problem, where: dict[str, str], side: str) -> str:
@@ -503,6 +497,7 @@ class VictimTable:
     fg_given: NDArray[np.bool_]
     oral: NDArray[np.bool_]
     plans: tuple[RegimenPlan, ...]  # each victim's regimen candidates and boundaries (interact.dosing)
+    plan_groups: tuple[tuple[int, ...], ...]  # victims whose plans give the dose rule the same inputs, in table order
     activity: NDArray[np.float64]  # (n, enzymes): the victim's phenotype activity on each pathway (1 = normal)
     genotype: NDArray[np.float64]  # exposure without a precipitant relative to a normal metaboliser (1 without phenotypes)
     phenotype: tuple[str, ...]  # the phenotype label of each victim ("" for none)
@@ -818,6 +813,7 @@ def loads_victims(
         fg_given=np.array([v.fg is not None for v in rows], dtype=bool),
         oral=np.array([v.route == "oral" for v in rows], dtype=bool),
         plans=tuple(plans),
+        plan_groups=_plan_groups(plans),
         activity=activity,
         genotype=liver_ratio(fm, activity) if n else np.ones(0),
         phenotype=tuple(labels),
@@ -885,10 +881,13 @@ class BatchResult:
     study: NDArray[np.bool_]
     flags: NDArray[np.uint8]
     band_names: tuple[str, ...]
+    #: pairs screened when the arrays hold only some of them (:func:`worst_pairs`); None when they hold every pair
+    screened: int | None = None
 
     @property
     def pairs(self) -> int:
-        return int(self.total.size)
+        """The number of pairs screened."""
+        return int(self.total.size) if self.screened is None else self.screened
 
     def columns(self, top: int | None = None) -> dict[str, NDArray[Any]]:
         """The ranked results as named columns (worst pair first), numbers kept as numbers.
@@ -1043,18 +1042,25 @@ def _free_memory_bytes() -> int:
         return 4 * 2**30
 
 
+def fits_in_memory(n_perpetrators: int, n_victims: int) -> bool:
+    """Whether every pair's results fit in half the free memory (:data:`BYTES_PER_PAIR` each)."""
+    return n_perpetrators * n_victims * BYTES_PER_PAIR <= _MEMORY_SHARE * _free_memory_bytes()
+
+
 def check_pair_budget(n_perpetrators: int, n_victims: int) -> None:
     """Refuse, before any work, a batch whose pairs would not fit in half the free memory."""
+    if fits_in_memory(n_perpetrators, n_victims):
+        return
     n = n_perpetrators * n_victims
     need = n * BYTES_PER_PAIR
     free = _free_memory_bytes()
-    if need > _MEMORY_SHARE * free:
-        raise InputError(
-            "pairs",
-            f"{n_perpetrators:,} perpetrators x {n_victims:,} victims = {n:,}",
-            f"would need about {need / 2**30:,.1f} GiB, more than half the {free / 2**30:,.1f} GiB of free memory; "
-            "split the tables and screen the parts one after another",
-        )
+    raise InputError(
+        "pairs",
+        f"{n_perpetrators:,} perpetrators x {n_victims:,} victims = {n:,}",
+        f"would need about {need / 2**30:,.1f} GiB, more than half the {free / 2**30:,.1f} GiB of free memory; "
+        "keep only the worst pairs (--top N) or write Parquet (-o FILE.parquet), which are streamed in chunks, "
+        "or split the tables and screen the parts one after another",
+    )
 
 
 def count_rows(text: str | bytes, source: str, side: str, *, sheet: str | None = None) -> int:
@@ -1091,28 +1097,31 @@ def evaluate_pairs(
         liver = liver.copy()
         liver[:, phen] /= victims.genotype[None, phen]
         total = gut * liver
-    bad = ~np.isfinite(total)
-    if bad.any():  # never a blank ratio: the input ranges keep every ratio finite, so this names a pair if not
-        i, j = (int(k) for k in np.argwhere(bad)[0])
+    if not np.isfinite(total).all():  # never a blank ratio: the input ranges keep every ratio finite, so this names a pair if not
+        i, j = (int(k) for k in np.argwhere(~np.isfinite(total))[0])
         raise InputError(
             f"pair {perpetrators.rows[i].name} x {victims.rows[j].name}",
             float(total[i, j]),
             "is not a finite AUC ratio; check this perpetrator's Ki and concentrations and the victim's fm values",
         )
-    band = band_codes(total, classes)
+    band, study = _band_and_study(total, classes, rule_set)
     action = np.empty(total.shape, dtype=np.int8)
-    for j, plan in enumerate(victims.plans):  # one victim's regimens at a time, over all its pairs
-        action[:, j] = choose_regimens(plan, exposure[:, j], gut[:, j]).action
-    study = (total >= float(rule_set.aucr_inhibition_cutoff.value)) | (total <= float(rule_set.aucr_induction_cutoff.value))
+    for js in victims.plan_groups:  # victims whose plans decide alike, at once over all their pairs
+        plan = victims.plans[js[0]]
+        if js[-1] - js[0] + 1 == len(js):  # a run of victims: views, not copies
+            cols: slice | list[int] = slice(js[0], js[-1] + 1)
+        else:
+            cols = list(js)
+        if len(js) == n_v:
+            action = choose_regimens(plan, exposure, gut).action  # every victim: no copy
+        else:
+            action[:, cols] = choose_regimens(plan, exposure[:, cols], gut[:, cols]).action
     # per-perpetrator and per-victim bits first, then broadcast once
     e_cols = victims.enzymes
     t_index = [perpetrators.targets.index(e) if e in perpetrators.targets else -1 for e in e_cols]
     gut_col = _gut_column(perpetrators)
     perp_gut = ~np.isnan(perpetrators.ki_u_um[:, gut_col]) if gut_col >= 0 else np.zeros(n_p, dtype=bool)
     p_bits = (perpetrators.fu_floored.astype(np.uint8) << 1) | (perpetrators.basic_flag.astype(np.uint8) << 4)
-    v_bits = victims.nti.astype(np.uint8) << 2
-    flags = p_bits[:, None] | v_bits[None, :]
-    flags |= (perp_gut[:, None] & (victims.oral & ~victims.fg_given)[None, :]).astype(np.uint8)
     # a victim pathway without a Ki of this perpetrator: bit masks of enzymes (victim has, perpetrator acts on)
     has_ki = np.zeros((n_p, len(e_cols)), dtype=bool)
     for k, t in enumerate(t_index):
@@ -1121,7 +1130,15 @@ def evaluate_pairs(
     weights = (1 << np.arange(len(e_cols), dtype=np.int64)) if e_cols else np.zeros(0, dtype=np.int64)
     p_mask = has_ki.astype(np.int64) @ weights if e_cols else np.zeros(n_p, dtype=np.int64)
     v_mask = victims.has_pathway.astype(np.int64) @ weights if e_cols else np.zeros(n_v, dtype=np.int64)
-    flags |= ((v_mask[None, :] & ~p_mask[:, None]) != 0).astype(np.uint8) << 3
+    # the bits that depend on both sides, per kind of perpetrator (its gut-wall Ki and its enzyme mask) and victim
+    kinds, kind_of = np.unique(np.column_stack([perp_gut.astype(np.int64), p_mask]), axis=0, return_inverse=True)
+    by_kind = (victims.nti.astype(np.uint8) << 2)[None, :] | ((kinds[:, :1] != 0) & (victims.oral & ~victims.fg_given)[None, :]).astype(
+        np.uint8
+    )
+    by_kind |= ((v_mask[None, :] & ~kinds[:, 1:]) != 0).astype(np.uint8) << 3
+    flags = by_kind[kind_of.ravel()]
+    if p_bits.any():
+        flags |= p_bits[:, None]
     for r, (name, _) in enumerate(victims.routes):  # a transporter route without a Ki of this perpetrator
         assert victims.has_route is not None
         col = perpetrators.targets.index(name) if name in perpetrators.targets else -1
@@ -1138,9 +1155,152 @@ def evaluate_pairs(
         band=band,
         action=action,
         study=study,
-        flags=flags.astype(np.uint8),
+        flags=flags,
         band_names=band_labels(classes),
     )
+
+
+def perpetrator_subset(table: PerpetratorTable, rows: slice | NDArray[np.intp]) -> PerpetratorTable:
+    """The perpetrators ``rows`` (a slice, or indices in table order) with their per-perpetrator arrays.
+
+    The skipped rows stay with the whole table.
+    """
+    index = np.arange(len(table.rows))[rows]
+    return dataclasses.replace(
+        table,
+        rows=tuple(table.rows[i] for i in index),
+        lines=tuple(table.lines[i] for i in index),
+        imax_u_um=table.imax_u_um[rows],
+        inlet_um=table.inlet_um[rows],
+        enterocyte_um=table.enterocyte_um[rows],
+        gut_lumen_um=table.gut_lumen_um[rows],
+        ki_u_um=table.ki_u_um[rows],
+        fu_floored=table.fu_floored[rows],
+        basic=tuple(table.basic[i] for i in index),
+        basic_flag=table.basic_flag[rows],
+        skipped=(),
+    )
+
+
+#: pairs evaluated at once when a screen is streamed (about 100 MB of arrays)
+STREAM_PAIRS: Final = 1 << 20
+
+
+def _stream_pairs(asked: int | None) -> int:
+    """Pairs per streamed chunk: as asked, else :data:`STREAM_PAIRS` within the memory budget."""
+    if asked is not None:
+        return max(1, asked)
+    return max(1, min(STREAM_PAIRS, int(_MEMORY_SHARE * _free_memory_bytes() / BYTES_PER_PAIR)))
+
+
+def stream_chunks(
+    perpetrators: PerpetratorTable,
+    victims: VictimTable,
+    rules: RuleSet | str | None = None,
+    *,
+    pairs_per_chunk: int | None = None,
+    progress: Callable[[int, int], None] | None = None,
+) -> Iterator[tuple[int, BatchResult]]:
+    """:func:`evaluate_pairs` for consecutive chunks of perpetrators (each against every victim), with each chunk's first
+    perpetrator; memory stays that of one chunk whatever the number of pairs."""
+    rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules)
+    n_p, n_v = len(perpetrators.rows), len(victims.rows)
+    step = max(1, _stream_pairs(pairs_per_chunk) // max(n_v, 1))
+    for a in range(0, n_p, step):
+        b = min(n_p, a + step)
+        yield a, evaluate_pairs(perpetrator_subset(perpetrators, slice(a, b)), victims, rule_set)
+        if progress is not None:
+            progress(b * n_v, n_p * n_v)
+
+
+def worst_pairs(
+    perpetrators: PerpetratorTable,
+    victims: VictimTable,
+    top: int,
+    rules: RuleSet | str | None = None,
+    *,
+    pairs_per_chunk: int | None = None,
+    progress: Callable[[int, int], None] | None = None,
+) -> BatchResult:
+    """The ``top`` worst pairs of a screen of any size, in memory bounded by one chunk and the ``top`` pairs.
+
+    The AUC ratios are evaluated chunk by chunk of perpetrators, keeping a running list of the ``top`` worst (by the
+    ranking's measure, ties in table order); then the perpetrators in that list are screened again against every
+    victim.  The result's :func:`ranking` with ``top`` gives exactly the rows the whole screen's would (every pair
+    in the list is one of those pairs, and every other pair of those perpetrators ranks below them);
+    :attr:`BatchResult.screened` holds the number of pairs screened.
+    """
+    rule_set = rules if isinstance(rules, RuleSet) else load_rules(rules)
+    n_p, n_v = len(perpetrators.rows), len(victims.rows)
+    keep_s = np.zeros(0)
+    keep_i = np.zeros(0, dtype=np.int64)
+    step = max(1, _stream_pairs(pairs_per_chunk) // max(n_v, 1))
+    for a in range(0, n_p, step):
+        b = min(n_p, a + step)
+        part = perpetrator_subset(perpetrators, slice(a, b))
+        _, _, exposure = pair_ratios(part, victims)
+        if not np.isfinite(exposure).all():
+            evaluate_pairs(part, victims, rule_set)  # names the pair, as the whole screen does
+        severity = np.abs(np.log(exposure.ravel()))
+        local = _worst_first(severity, top)
+        s = np.concatenate([keep_s, severity[local]])
+        i = np.concatenate([keep_i, local + a * n_v])
+        best = np.lexsort((i, -s))[:top]
+        keep_s, keep_i = s[best], i[best]
+        if progress is not None:
+            progress(b * n_v, n_p * n_v)
+    chosen = np.unique(keep_i // max(n_v, 1))
+    result = evaluate_pairs(perpetrator_subset(perpetrators, chosen), victims, rule_set)
+    return dataclasses.replace(
+        result, perpetrators=dataclasses.replace(result.perpetrators, skipped=perpetrators.skipped), screened=n_p * n_v
+    )
+
+
+def _study(total: NDArray[np.float64], inhibition: float, induction: float) -> NDArray[np.bool_]:
+    """The mechanistic model's study verdict: AUCR at or above the inhibition cutoff, or at or below the induction one."""
+    return (total >= inhibition) | (total <= induction)  # type: ignore[no-any-return]
+
+
+def _band_and_study(total: NDArray[np.float64], classes: Classes, rules: RuleSet) -> tuple[NDArray[np.int8], NDArray[np.bool_]]:
+    """Class band codes (:func:`interact.arrays.band_codes`) and study verdicts, for many ratios from one step table."""
+    inh, ind = float(rules.aucr_inhibition_cutoff.value), float(rules.aucr_induction_cutoff.value)
+    if total.size < 4096:
+        return band_codes(total, classes), _study(total, inh, ind)
+    steps = _verdict_steps(classes, inh, ind)
+    (band, study), _, rest = steps.look_up(total, (0, 1))
+    if rest.size:  # at a bound or a cutoff: the comparisons themselves
+        r = total.ravel()[rest]
+        band[rest], study[rest] = band_codes(r, classes), _study(r, inh, ind)
+    return band.reshape(total.shape), study.reshape(total.shape)
+
+
+@functools.lru_cache(maxsize=8)
+def _verdict_steps(classes: Classes, inhibition: float, induction: float) -> StepTable:
+    """:func:`_band_and_study` as a step table (:mod:`interact.steps`): both constant between the bounds and cutoffs."""
+    points = np.array([b.bound for b in (*classes.inhibition, *classes.induction)] + [inhibition, induction], dtype=float)
+    return StepTable.build(points, lambda r: (band_codes(r, classes), _study(r, inhibition, induction)))
+
+
+def _plan_groups(plans: list[RegimenPlan]) -> tuple[tuple[int, ...], ...]:
+    """Victims grouped by what the dose rule reads from their plans (:func:`interact.dosing.choose_regimens`: the
+    candidates' exposure factors, kinds and action codes, the intervals, the half-life and the boundaries), so that
+    each group's pairs are decided in one call."""
+    groups: dict[tuple[Any, ...], list[int]] = {}
+    for j, p in enumerate(plans):
+        key = (
+            p.boundary,
+            p.peak_boundary,
+            p.trough_boundary,
+            p.half_life_h,
+            p.usual_interval_h,
+            p.factors.tobytes(),
+            p.exact.tobytes(),
+            p.interval.tobytes(),
+            p.codes.tobytes(),
+            p.taus_h.tobytes(),
+        )
+        groups.setdefault(key, []).append(j)
+    return tuple(tuple(js) for js in groups.values())
 
 
 def ranking(result: BatchResult, top: int | None = None) -> NDArray[np.int64]:
@@ -1149,10 +1309,15 @@ def ranking(result: BatchResult, top: int | None = None) -> NDArray[np.int64]:
     Worst = largest ``|log(exposure vs normal)|``: the AUC ratio itself for a victim without a phenotype; for one with a
     phenotype, the combined drug-drug-gene effect (a poor metaboliser's exposure counts even where the interaction is small).
     """
-    severity = np.abs(np.log(result.exposure.ravel()))
+    return _worst_first(np.abs(np.log(result.exposure.ravel())), top)
+
+
+def _worst_first(severity: NDArray[np.float64], top: int | None) -> NDArray[np.int64]:
+    """Indices of ``severity`` largest first, ties in index order; only the first ``top`` (every tie at the cut is weighed)."""
     if top is not None and top < severity.size:
-        part = np.argpartition(-severity, top - 1)[:top]
-        return part[np.lexsort((part, -severity[part]))]
+        cut = np.partition(severity, severity.size - top)[severity.size - top]  # the top-th largest
+        part = np.flatnonzero(severity >= cut)
+        return part[np.lexsort((part, -severity[part]))][:top]
     return np.argsort(-severity, kind="stable")
 
 

@@ -397,8 +397,19 @@ def _write_streamed(args: argparse.Namespace, write, binary: bool = False) -> in
 def _cmd_screen_batch(args: argparse.Namespace) -> int:
     import time
 
-    from .batch import check_pair_budget, count_rows, evaluate_pairs, loads_perpetrators, loads_victims, read_table
-    from .report.batch import write_results
+    from .batch import (
+        STREAM_PAIRS,
+        check_pair_budget,
+        count_rows,
+        evaluate_pairs,
+        fits_in_memory,
+        loads_perpetrators,
+        loads_victims,
+        read_table,
+        stream_chunks,
+        worst_pairs,
+    )
+    from .report.batch import write_parquet_chunks, write_results
     from .tables import load_rules
 
     t0 = time.perf_counter()
@@ -411,23 +422,19 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         import_distributed()
     if args.top is not None and args.top < 1:
         raise InputError("--top", args.top, "is not a whole number of at least 1")
-    p_sheet, v_sheet = args.sheet, args.victim_sheet or args.sheet
-    p_table, v_table = read_table(args.perpetrators, "perpetrators"), read_table(args.victims, "victims")
-    check_pair_budget(  # before reading
-        count_rows(p_table, args.perpetrators, "perpetrator", sheet=p_sheet), count_rows(v_table, args.victims, "victim", sheet=v_sheet)
-    )
-    perps = loads_perpetrators(p_table, rules, source=args.perpetrators, on_error=args.on_error, sheet=p_sheet)
-    victims = loads_victims(v_table, source=args.victims, on_error=args.on_error, sheet=v_sheet)
-    for problem in (*perps.skipped, *victims.skipped):
-        sys.stderr.write(f"interact: skipped {problem}\n")
-    n = len(perps.rows) * len(victims.rows)
-    bar = _progress_bar("screening") if n >= 200_000 and not args.quiet else None
-    if args.engine == "dask":
-        from .batch_dask import run_on_dask
+    args.variation = None
+    if args.samples is not None or args.vary is not None:
+        from .batch_probability import MAX_SAMPLES, parse_vary
 
-        result = run_on_dask(perps, victims, rules, scheduler=args.scheduler, progress=bar)
-    else:
-        result = evaluate_pairs(perps, victims, rules, progress=bar)
+        if args.samples is None or args.vary is None:
+            raise InputError(
+                "--samples" if args.samples is None else "--vary",
+                "missing",
+                "a probabilistic screen needs both --samples N and --vary (e.g. --samples 1000 --vary ki=30%,conc=20%)",
+            )
+        if not 1 <= args.samples <= MAX_SAMPLES:
+            raise InputError("--samples", args.samples, f"is not a whole number from 1 to {MAX_SAMPLES:,}")
+        args.variation = parse_vary(args.vary)
     if args.format:
         fmt_name = args.format
     elif not _stdout(args.output):
@@ -436,8 +443,52 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         )
     else:  # a person at a terminal reads a rounded table; a pipe gets CSV
         fmt_name = "table" if sys.stdout.isatty() else "csv"
+    if args.variation is not None:
+        from .report.batch import PROBABILITY_FORMATS
+
+        if fmt_name == "table" and args.format is None:
+            fmt_name = "csv"
+        if fmt_name not in PROBABILITY_FORMATS:
+            raise InputError("--format", fmt_name, f"is not one of {', '.join(PROBABILITY_FORMATS)} for a probabilistic screen (--samples)")
     if fmt_name in ("parquet", "xlsx") and _stdout(args.output) and sys.stdout.isatty():
         raise InputError("--format", fmt_name, f"is binary and would garble the terminal; write it to a file (-o results.{fmt_name})")
+    p_sheet, v_sheet = args.sheet, args.victim_sheet or args.sheet
+    p_table, v_table = read_table(args.perpetrators, "perpetrators"), read_table(args.victims, "victims")
+    counted = (
+        count_rows(p_table, args.perpetrators, "perpetrator", sheet=p_sheet),
+        count_rows(v_table, args.victims, "victim", sheet=v_sheet),
+    )
+    # beyond memory, the worst pairs (--top) and Parquet are streamed in chunks of perpetrators; anything else is refused
+    streamed = (
+        not fits_in_memory(*counted) and args.engine == "local" and args.samples is None and (args.top is not None or fmt_name == "parquet")
+    )
+    if not streamed:
+        check_pair_budget(*counted)  # before reading
+    perps = loads_perpetrators(p_table, rules, source=args.perpetrators, on_error=args.on_error, sheet=p_sheet)
+    victims = loads_victims(v_table, source=args.victims, on_error=args.on_error, sheet=v_sheet)
+    for problem in (*perps.skipped, *victims.skipped):
+        sys.stderr.write(f"interact: skipped {problem}\n")
+    n = len(perps.rows) * len(victims.rows)
+    bar = _progress_bar("screening") if n >= 200_000 and not args.quiet else None
+    streamed = streamed and not fits_in_memory(len(perps.rows), len(victims.rows))  # rows left out may make it fit
+    if args.samples is not None:  # a probabilistic screen
+        rows = _probabilistic_screen(args, perps, victims, rules, fmt_name, bar)
+        _say_written(args, n, rows, t0, perps.skipped, victims.skipped, order="most probable dose change first")
+        return 0
+    if streamed and args.top is None:  # Parquet, chunk after chunk, in table order
+        rows = _write_streamed(args, lambda h: write_parquet_chunks(stream_chunks(perps, victims, rules, progress=bar), h), binary=True)
+        _say_written(args, n, rows, t0, perps.skipped, victims.skipped, order="in table order (streamed; rank left empty)")
+        return 0
+    local_top = args.top is not None and args.engine == "local" and n > 2 * STREAM_PAIRS
+    if streamed or local_top:  # the worst pairs of a large screen: a running list, whatever the memory (the same rows)
+        assert args.top is not None
+        result = worst_pairs(perps, victims, args.top, rules, progress=bar)
+    elif args.engine == "dask":
+        from .batch_dask import run_on_dask
+
+        result = run_on_dask(perps, victims, rules, scheduler=args.scheduler, progress=bar)
+    else:
+        result = evaluate_pairs(perps, victims, rules, progress=bar)
     if fmt_name == "xlsx":
         from datetime import UTC, datetime
 
@@ -454,14 +505,37 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         rows = _write_streamed(
             args, lambda h: write_results(result, h, fmt_name, top=args.top, width=width), binary=fmt_name not in ("markdown", "table")
         )
+    _say_written(args, n, rows, t0, perps.skipped, victims.skipped, order="worst first")
+    return 0
+
+
+def _probabilistic_screen(args: argparse.Namespace, perps: Any, victims: Any, rules: Any, fmt_name: str, bar: Any) -> int:
+    """screen-batch --samples: the probability of each class and of a dose change per pair (interact.batch_probability)."""
+    from .batch_probability import screen_probabilities
+    from .report.batch import write_probabilities
+
+    variation = args.variation
+    if args.engine == "dask":
+        from .batch_dask import dask_client, probabilities_dask
+
+        with dask_client(args.scheduler) as client:
+            result = probabilities_dask(perps, victims, variation, rules, samples=args.samples, seed=args.seed, client=client, progress=bar)
+    else:
+        result = screen_probabilities(perps, victims, variation, rules, samples=args.samples, seed=args.seed, progress=bar)
+    return _write_streamed(args, lambda h: write_probabilities(result, h, fmt_name, top=args.top), binary=True)
+
+
+def _say_written(args: argparse.Namespace, n: int, rows: int, t0: float, *skipped_rows: tuple[object, ...], order: str) -> None:
+    """The summary line of screen-batch (to standard error, unless quiet or the results went to standard output)."""
+    import time
+
     if not _stdout(args.output) and not args.quiet:
-        skipped = len(perps.skipped) + len(victims.skipped)
+        skipped = sum(len(s) for s in skipped_rows)
         sys.stderr.write(
-            f"interact: {n:,} pairs screened in {time.perf_counter() - t0:.2f} s; {rows:,} rows, worst first, written to {args.output}"
+            f"interact: {n:,} pairs screened in {time.perf_counter() - t0:.2f} s; {rows:,} rows, {order}, written to {args.output}"
             + (f"; {skipped} bad rows left out (listed above)" if skipped else "")
             + "\n"
         )
-    return 0
 
 
 def _cmd_report(args: argparse.Namespace) -> int:
@@ -663,6 +737,19 @@ def _parser() -> argparse.ArgumentParser:
         metavar="ADDRESS",
         help="with --engine dask: a running Dask scheduler, e.g. tcp://host:8786 (default: a local cluster on this machine's cores)",
     )
+    p.add_argument(
+        "--samples",
+        type=int,
+        metavar="N",
+        help="a probabilistic screen: N draws of the varied inputs per pair; per pair the probability of each class and of a dose change",
+    )
+    p.add_argument(
+        "--vary",
+        metavar="Q=CV,...",
+        help="with --samples: the CV of each varied quantity for every row, lognormal around the table's value: ki, conc "
+        "(the perpetrator's site concentrations), fm, fg; e.g. ki=30%%,conc=20%%",
+    )
+    p.add_argument("--seed", type=int, default=0, help="with --samples: the random seed (the same seed, the same probabilities)")
     p.set_defaults(run=_cmd_screen_batch)
 
     p = sub.add_parser("report", help="a self-contained HTML (or Markdown) report of a scenario, with uncertainty and sensitivity")

@@ -33,6 +33,7 @@ from numpy.typing import ArrayLike, NDArray
 from . import units
 from .cautions import DOSE_CAUTIONS, INCREASE_CAUTION
 from .errors import InputError
+from .steps import StepTable
 
 if TYPE_CHECKING:
     from .scenario import Victim
@@ -454,10 +455,15 @@ def _exposure_and_feasibility(
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class RegimenChoice:
-    """Per row: the action code (into :data:`ACTIONS`) and the chosen candidate (-1 = none)."""
+    """Per row: the action code (into :data:`ACTIONS`) and the chosen candidate (-1 = none; worked out when asked for)."""
 
     action: NDArray[np.int8]
-    chosen: NDArray[np.intp]
+    chosen_rows: Callable[[], NDArray[np.intp]] = field(repr=False, compare=False)
+
+    @property
+    def chosen(self) -> NDArray[np.intp]:
+        """The chosen candidate of each row (an index into the plan's candidates), -1 for none."""
+        return self.chosen_rows()
 
 
 def _scores(plan: RegimenPlan, total: NDArray[np.float64], feasible: NDArray[np.bool_]) -> NDArray[np.float64]:
@@ -509,18 +515,68 @@ def choose_regimens(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | None =
       action (reduce dose, increase dose, change interval);
     - no feasible candidate: avoid or monitor.
 
-    Evaluated in chunks of rows, so memory stays bounded for any length.
+    Evaluated in chunks of rows, so memory stays bounded for any length.  For many rows of a plan whose candidates
+    are judged on exposure alone, the rule is first evaluated once per stretch of AUC ratios over which it cannot
+    change (:func:`_rule_steps`), and each row looks its answer up; rows near a point where the answer may change
+    are evaluated directly.  Both give the same answer (``tests/test_regimens.py`` holds them equal).
     """
     r = np.atleast_1d(np.asarray(total, dtype=float)).ravel()
     g = None if gut is None else np.broadcast_to(np.asarray(gut, dtype=float), np.shape(total)).ravel()
+    shape = np.shape(total)
+    steps = _rule_steps(plan) if r.size >= _STEP_TABLE_ROWS else None
+    if steps is None:
+        action, chosen = _choose_rows(plan, r, g)
+        return RegimenChoice(action=action.reshape(shape), chosen_rows=lambda: chosen.reshape(shape))
+    (action,), stretch, rest = steps.look_up(r, stretch=True)
+    assert stretch is not None
+    direct = _choose_rows(plan, r[rest], None if g is None else g[rest])  # near a change point, or not a finite positive ratio
+    action[rest] = direct[0]
+
+    def chosen_rows() -> NDArray[np.intp]:
+        assert steps is not None
+        chosen: NDArray[np.intp] = steps.values[1][stretch]
+        chosen[rest] = direct[1]
+        return chosen.reshape(shape)
+
+    return RegimenChoice(action=action.reshape(shape), chosen_rows=chosen_rows)
+
+
+def _choose_rows(plan: RegimenPlan, r: NDArray[np.float64], g: NDArray[np.float64] | None) -> tuple[NDArray[np.int8], NDArray[np.intp]]:
+    """The rule evaluated directly, every candidate of every row, in chunks of rows."""
     action = np.empty(r.size, dtype=np.int8)
     chosen = np.empty(r.size, dtype=np.intp)
     step = _rows_per_chunk(plan)
     for a in range(0, r.size, step):
         b = min(r.size, a + step)
         action[a:b], chosen[a:b] = _choose_chunk(plan, r[a:b], None if g is None else g[a:b])
-    shape = np.shape(total)
-    return RegimenChoice(action=action.reshape(shape), chosen=chosen.reshape(shape))
+    return action, chosen
+
+
+#: rows from which choose_regimens builds (or reuses) a plan's step table rather than scanning every candidate per row
+_STEP_TABLE_ROWS: Final = 4096
+
+
+@functools.lru_cache(maxsize=128)
+def _rule_steps(plan: RegimenPlan) -> StepTable | None:
+    """The rule of :func:`choose_regimens` as a step function of the AUC ratio (:class:`interact.steps.StepTable`), or
+    None where it is not one.
+
+    When no candidate is judged on peak and trough (no half-life, or no interval candidates), a row's answer depends
+    on its AUC ratio r alone, through the candidates' exposures r x f (f: exposure factor) against the boundary
+    [lo, hi] and their scores |log r + log f|.  Sorted by f, the feasible candidates are one run (r x f rises with f)
+    and the scores fall then rise, lowest next to where log r + log f changes sign; so, in exact arithmetic, the
+    chosen candidate can change only where the run's ends move (r = lo / f, r = hi / f), where two neighbouring
+    scores swap (r = 1 / sqrt(f_k x f_k+1)), and where r crosses the boundary itself (lo, hi; and 1, where an exact
+    dose turns from reduce to increase).  Between those points the answer is constant: it is taken from the rule
+    itself (:func:`_choose_rows`), evaluated at one ratio in each stretch.  Plans are compared by value, so victims
+    with the same regimens share one table.
+    """
+    if plan.half_life_h is not None and bool(plan.interval.any()):
+        return None  # peak and trough depend on the gut ratio too: evaluated directly
+    lo, hi = plan.boundary
+    f = np.unique(plan.factors[~plan.exact])
+    points = np.concatenate([[lo, hi, 1.0], lo / f, hi / f, 1.0 / np.sqrt(f[:-1] * f[1:])])
+    return StepTable.build(points, lambda r: _choose_rows(plan, r, None))
 
 
 def _rows_per_chunk(plan: RegimenPlan) -> int:

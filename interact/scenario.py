@@ -49,6 +49,7 @@ __all__ = [
     "save_scenario",
     "scenario_from_dict",
     "scenario_to_dict",
+    "section_from_dict",
     "starter_path",
 ]
 
@@ -364,6 +365,24 @@ def scenario_from_dict(data: object, *, source: str = "scenario", text: str | No
     if reader.problems or scenario is None:
         raise ScenarioError(tuple(reader.problems) or (Problem(field="scenario", message="is empty"),), source)
     return scenario
+
+
+def section_from_dict(side: str, data: object) -> Perpetrator | Victim:
+    """One section of a scenario, ``perpetrator`` or ``victim``, from plain data, validated as in a whole scenario.
+
+    The batch tables read each row this way (:mod:`interact.batch`): the same checks and messages, without a
+    scenario around it.
+
+    Raises
+    ------
+    ScenarioError
+        Every problem of the section, with its key path (``perpetrator.cmax``).
+    """
+    reader = _Reader(None)
+    item = reader.perpetrator(data, side) if side == "perpetrator" else reader.victim(data, side)
+    if reader.problems or item is None:
+        raise ScenarioError(tuple(reader.problems) or (Problem(field=side, message="is empty"),), "scenario")
+    return item
 
 
 class _PerpetratorReader(FieldReader):

@@ -12,13 +12,14 @@ from __future__ import annotations
 import csv
 import io
 import json
-from collections.abc import Callable, Iterator
+from collections.abc import Callable, Iterable, Iterator
 from typing import IO, TYPE_CHECKING, Any, Final
 
 import numpy as np
 from numpy.typing import NDArray
 
 from ..batch import FLAGS, OUTPUT_COLUMNS, BatchResult, flag_text, ranking, result_rows
+from ..batch_probability import ProbabilityResult, probability_ranking
 from ..cautions import CAUTION_LINE
 from ..dosing import ACTIONS
 from ..errors import InputError
@@ -29,7 +30,16 @@ from .numbers import fmt, fmt_ratio
 if TYPE_CHECKING:
     import pyarrow as pa
 
-__all__ = ["BATCH_FORMATS", "result_batches", "results_workbook", "write_results"]
+__all__ = [
+    "BATCH_FORMATS",
+    "PROBABILITY_FORMATS",
+    "probability_batches",
+    "result_batches",
+    "results_workbook",
+    "write_parquet_chunks",
+    "write_probabilities",
+    "write_results",
+]
 
 BATCH_FORMATS = ("csv", "json", "parquet", "markdown", "table", "xlsx")
 
@@ -110,8 +120,12 @@ def result_batches(
     clean: Callable[[str], str] = str,
     study_text: bool = False,
     texts: dict[str, pa.Array] | None = None,
+    ranked: bool = True,
 ) -> Iterator[pa.RecordBatch]:
     """The ranked results (worst first; ``top`` limits the count) as pyarrow record batches of ``block`` rows.
+
+    With ``ranked`` false, every pair in table order (perpetrator by perpetrator) with an empty ``rank``: the rows
+    of one chunk of a streamed screen (:func:`write_parquet_chunks`).
 
     Columns are :data:`~interact.batch.OUTPUT_COLUMNS`: ``rank`` int64, numbers float64 (concentrations in uM,
     ratios dimensionless; a non-finite value is null), text as strings, ``study indicated (mechanistic model)`` bool (``yes``/``no``
@@ -123,7 +137,7 @@ def result_batches(
 
     p, v = result.perpetrators, result.victims
     n_v = len(v.rows)
-    order = ranking(result, top)
+    order = ranking(result, top) if ranked else np.arange(result.total.size)
     # each text column is a small dictionary (one entry per table row or per label) gathered by index (pyarrow take)
     dictionaries = {
         "perpetrator": _strings([clean(r.name) for r in p.rows]),
@@ -144,7 +158,7 @@ def result_batches(
         idx = order[start : start + block]
         ii, jj = np.divmod(idx, n_v)
         columns = [
-            pa.array(np.arange(start + 1, start + 1 + idx.size, dtype=np.int64)),
+            pa.array(np.arange(start + 1, start + 1 + idx.size, dtype=np.int64)) if ranked else pa.nulls(idx.size, pa.int64()),
             dictionaries["perpetrator"].take(ii),
             dictionaries["victim"].take(jj),
             *(_numbers(a[ii]) for a in per_p),
@@ -190,6 +204,10 @@ def _write_csv(result: BatchResult, handle: IO[Any], top: int | None) -> int:
 
 
 def _write_parquet(result: BatchResult, handle: IO[Any], top: int | None) -> int:
+    return _parquet_batches(result_batches(result, top), handle)
+
+
+def _parquet_batches(batches: Iterable[pa.RecordBatch], handle: IO[Any]) -> int:
     import pyarrow.parquet as pq
 
     if isinstance(handle, io.TextIOBase) and getattr(handle, "buffer", None) is None:
@@ -200,7 +218,7 @@ def _write_parquet(result: BatchResult, handle: IO[Any], top: int | None) -> int
     count = 0
     writer = None
     try:
-        for batch in result_batches(result, top):
+        for batch in batches:
             if writer is None:
                 writer = pq.ParquetWriter(handle, batch.schema)
             writer.write_batch(batch)
@@ -208,6 +226,93 @@ def _write_parquet(result: BatchResult, handle: IO[Any], top: int | None) -> int
     finally:
         if writer is not None:
             writer.close()
+    return count
+
+
+def write_parquet_chunks(chunks: Iterable[tuple[int, BatchResult]], handle: IO[Any]) -> int:
+    """A streamed screen (:func:`interact.batch.stream_chunks`) to Parquet, chunk after chunk; returns rows written.
+
+    Rows come in table order (perpetrator by perpetrator) with an empty ``rank``: ranking every pair would need
+    them all in memory.  Sort the file by ``exposure vs normal`` (largest ``|log|`` first), or keep the worst
+    pairs with ``--top N``, which is ranked.
+    """
+
+    def batches() -> Iterator[pa.RecordBatch]:
+        for _, chunk in chunks:
+            yield from result_batches(chunk, ranked=False)
+
+    return _parquet_batches(batches(), handle)
+
+
+#: the formats of a probabilistic screen's results
+PROBABILITY_FORMATS: Final = ("csv", "parquet")
+
+
+def probability_batches(result: ProbabilityResult, top: int | None = None, *, block: int = BLOCK_ROWS) -> Iterator[pa.RecordBatch]:
+    """A probabilistic screen's pairs, most probable dose change first, as pyarrow record batches.
+
+    Columns: ``rank``, ``perpetrator``, ``victim``, the point screen's ``AUCR``, ``exposure vs normal``, ``class`` and
+    ``action``, then ``P(<class>)`` for every class (they sum to 1 per pair) and ``P(dose change)`` (any action but
+    "no change"), fractions of ``samples`` draws.
+    """
+    import pyarrow as pa
+
+    point = result.point
+    p, v = point.perpetrators, point.victims
+    n_v = len(v.rows)
+    order = probability_ranking(result, top)
+    names = (
+        ["rank", "perpetrator", "victim", "AUCR", "exposure vs normal", "class", "action"]
+        + [f"P({c})" for c in point.band_names]
+        + ["P(dose change)"]
+    )
+    perpetrator, victim = _strings([terminal_safe(r.name) for r in p.rows]), _strings([terminal_safe(r.name) for r in v.rows])
+    classes, actions = _strings(list(point.band_names)), _strings(list(ACTIONS))
+    cp = result.class_probability.reshape(-1, len(point.band_names))
+    for start in range(0, order.size, block):
+        idx = order[start : start + block]
+        ii, jj = np.divmod(idx, n_v)
+        columns = [
+            pa.array(np.arange(start + 1, start + 1 + idx.size, dtype=np.int64)),
+            perpetrator.take(ii),
+            victim.take(jj),
+            _numbers(point.total.ravel()[idx]),
+            _numbers(point.exposure.ravel()[idx]),
+            classes.take(point.band.ravel()[idx]),
+            actions.take(point.action.ravel()[idx]),
+            *(pa.array(cp[idx, k]) for k in range(cp.shape[1])),
+            pa.array(result.change_probability.ravel()[idx]),
+        ]
+        yield pa.RecordBatch.from_arrays(columns, names=names)
+
+
+def write_probabilities(result: ProbabilityResult, handle: IO[Any], fmt_name: str = "csv", *, top: int | None = None) -> int:
+    """Write a probabilistic screen (:func:`probability_batches`) as ``csv`` or ``parquet``; returns rows written.
+
+    A CSV starts with ``#`` comment lines: the caution, the varied quantities, samples and seed.
+    """
+    if fmt_name == "parquet":
+        return _parquet_batches(probability_batches(result, top), handle)
+    if fmt_name != "csv":
+        raise InputError("--format", fmt_name, f"is not one of {', '.join(PROBABILITY_FORMATS)} for a probabilistic screen (--samples)")
+    import pyarrow.csv as pa_csv
+
+    write = _byte_writer(handle)
+    head = (
+        f"# {CAUTION_LINE}\n# varied: {result.variation.describe()}; {result.samples:,} samples per pair, seed {result.seed}; "
+        "P(...) are fractions of the samples\n"
+    )
+    count = 0
+    for batch in probability_batches(result, top):
+        sink = io.BytesIO()
+        if count == 0:
+            write(head.encode("utf-8"))
+            header = io.StringIO()
+            csv.writer(header, lineterminator="\n").writerow(batch.schema.names)
+            write(header.getvalue().encode("utf-8"))
+        pa_csv.write_csv(batch, sink, pa_csv.WriteOptions(include_header=False, quoting_style="needed"))
+        write(sink.getbuffer())
+        count += batch.num_rows
     return count
 
 
@@ -220,7 +325,7 @@ def _write_json(result: BatchResult, handle: IO[Any], top: int | None) -> int:
         "schema": BATCH_SCHEMA,
         "rules": result.rules.id,
         "pairs": result.pairs,
-        "perpetrators": len(result.perpetrators.rows),
+        "perpetrators": result.pairs // max(1, len(result.victims.rows)),
         "victims": len(result.victims.rows),
         "skipped_rows": [str(s) for s in (*result.perpetrators.skipped, *result.victims.skipped)],
         "caution": CAUTION_LINE,
@@ -289,8 +394,8 @@ def write_results(result: BatchResult, handle: IO[Any], fmt_name: str = "csv", *
         terms = result.rules.terms  # a document for reading: the rule set's words (the CSV and JSON keys stay)
         text_out(
             speak(
-                f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
-                "worst first (largest |log AUCR|).\n\n",
+                f"{result.pairs:,} pairs: {result.pairs // max(1, len(result.victims.rows))} perpetrators x "
+                f"{len(result.victims.rows)} victims, worst first (largest |log AUCR|).\n\n",
                 terms,
             )
         )
@@ -340,9 +445,10 @@ def write_results(result: BatchResult, handle: IO[Any], fmt_name: str = "csv", *
             )
         )
         intro = speak(
-            f"{result.pairs:,} pairs: {len(result.perpetrators.rows)} perpetrators x {len(result.victims.rows)} victims, "
-            f"rule set {result.rules.id}, worst first (largest |log AUCR|). 'study' says whether a clinical study is indicated "
-            "by the mechanistic static model (AUCR against its cutoff) and by any basic static model. "
+            f"{result.pairs:,} pairs: {result.pairs // max(1, len(result.victims.rows))} perpetrators x "
+            f"{len(result.victims.rows)} victims, rule set {result.rules.id}, worst first (largest |log AUCR|). "
+            "'study' says whether a clinical study is indicated by the mechanistic static model (AUCR against its cutoff) "
+            "and by any basic static model. "
             "Every column in full precision: --format csv, or -o FILE.csv.",
             terms,
         )

@@ -2,6 +2,7 @@
 
     python tests/bench/bench_batch.py [--pairs 1e4,1e6,1e7] [--runs 5] [--format csv|parquet]
     python tests/bench/bench_batch.py --model [--perpetrators 1000 --victims 1000]
+    python tests/bench/bench_batch.py --probability [--perpetrators 100 --victims 100 --samples 1000]
 
 End to end (the default): the whole command a user runs, ``interact screen-batch P.csv V.csv -o OUT -q`` in a
 fresh process, against the floor ``tests/bench/batch_floor.py`` in a fresh process: a plain numpy script that
@@ -21,6 +22,12 @@ With ``--model``, measured in the same run:
 - peak memory of reading plus evaluating (tracemalloc, which numpy reports
   its arrays to) and the process's maximum resident size - goal under 1 GB;
 - writing the ranked CSV (for information).
+
+With ``--probability``: the probabilistic screen (:func:`interact.batch_probability.screen_probabilities`, every
+pair x every sample through evaluate_pairs, ki, conc, fm and fg varied) against a plain numpy floor of the same
+arithmetic in the same run, alternated, medians: the same lognormal draws, the mechanistic static model on
+(perpetrators, victims, samples) arrays, the class band by comparisons with the bounds, a dose change as the AUC
+ratio outside the no-effect boundary, and the fractions per pair (goal at most 3x).
 
 The tables are generated with a seeded random generator: invented compounds
 with plausible values, not data about any drug.
@@ -221,9 +228,107 @@ def end_to_end(sizes: list[int], runs: int, fmt: str) -> None:
             )
 
 
+def probability_floor(
+    inlet: np.ndarray,
+    ki_u: np.ndarray,
+    ent: np.ndarray,
+    fm: np.ndarray,
+    fg: np.ndarray,
+    cv: dict[str, float],
+    samples: int,
+    inhibition: list[float],
+    induction: list[float],
+    boundary: tuple[float, float],
+    seed: int = 0,
+) -> tuple[np.ndarray, np.ndarray]:
+    """The floor of the probabilistic screen: the same draws and arithmetic in plain numpy, chunks of 16 perpetrators.
+
+    Missing Ki as +inf; CYP3A (the gut-wall enzyme) is column 0.  Returns (class probabilities, dose-change probability).
+    """
+    rng = np.random.default_rng(seed)
+    sig = {k: np.sqrt(np.log1p(v**2)) for k, v in cv.items()}
+    n_p, n_e = ki_u.shape
+    n_v = fm.shape[0]
+    fmf = np.minimum(fm[:, None, :] * np.exp(sig["fm"] * rng.standard_normal((n_v, samples, n_e))), 1.0)
+    tot = fmf.sum(-1, keepdims=True)
+    fmf = np.where(tot > 1.0, fmf / tot, fmf)
+    fgf = np.minimum(fg[:, None] * np.exp(sig["fg"] * rng.standard_normal((n_v, samples))), 1.0)
+    rest = 1.0 - fmf.sum(-1)
+    n_c = 1 + len(inhibition) + len(induction)
+    probs = np.empty((n_p, n_v, n_c))
+    change = np.empty((n_p, n_v))
+    for a in range(0, n_p, 16):
+        b = min(n_p, a + 16)
+        conc = np.exp(sig["conc"] * rng.standard_normal((b - a, samples)))
+        kif = np.exp(sig["ki"] * rng.standard_normal((b - a, samples, n_e)))
+        act = 1.0 / (1.0 + inlet[a:b, None, None] * conc[:, :, None] / (ki_u[a:b, None, :] * kif))
+        act_g = 1.0 / (1.0 + ent[a:b, None] * conc / (ki_u[a:b, None, 0] * kif[:, :, 0]))
+        liver = 1.0 / (np.einsum("pse,vse->pvs", act, fmf) + rest[None])
+        gut = 1.0 / (act_g[:, None, :] * (1.0 - fgf[None]) + fgf[None])
+        total = gut * liver
+        tests = [total >= x for x in inhibition] + [total <= x for x in induction]
+        band = np.select(tests, list(range(1, len(tests) + 1)), default=0)
+        for k in range(n_c):
+            probs[a:b, :, k] = (band == k).mean(-1)
+        change[a:b] = ((total < boundary[0]) | (total > boundary[1])).mean(-1)
+    return probs, change
+
+
+def probability(n_p: int, n_v: int, samples: int, runs: int) -> None:
+    import statistics
+
+    from interact.batch_probability import Variation, screen_probabilities
+    from interact.tables import load_classes
+
+    ptext, vtext = tables(n_p, n_v)
+    rules = load_rules(None)
+    perps, victims = loads_perpetrators(ptext, rules), loads_victims(vtext)
+    cv = {"ki": 0.3, "conc": 0.2, "fm": 0.1, "fg": 0.1}
+    variation = Variation(**cv)
+    ki = np.where(np.isnan(perps.ki_u_um), np.inf, perps.ki_u_um)[:, [perps.targets.index(e) for e in ENZYMES]]
+    fm = victims.fm[:, [victims.enzymes.index(e) for e in ENZYMES]]
+    classes = load_classes()
+    inh = sorted((b.bound for b in classes.inhibition), reverse=True)
+    ind = sorted(b.bound for b in classes.induction)
+    t_cmd, t_floor = [], []
+    for _ in range(runs):
+        t0 = time.perf_counter()
+        result = screen_probabilities(perps, victims, variation, rules, samples=samples, seed=1)
+        t_cmd.append(time.perf_counter() - t0)
+        t0 = time.perf_counter()
+        _, change = probability_floor(
+            perps.inlet_um,
+            ki,
+            perps.enterocyte_um,
+            fm,
+            victims.fg,
+            cv,
+            samples,
+            inh,
+            ind,
+            (classes.no_effect_lower, classes.no_effect_upper),
+        )
+        t_floor.append(time.perf_counter() - t0)
+    mc, mf = statistics.median(t_cmd), statistics.median(t_floor)
+    print(
+        f"probabilistic screen: {n_p * n_v:,} pairs x {samples:,} samples; median of {runs} alternated runs; "
+        f"{os.cpu_count()} cores (shared)"
+    )
+    print(
+        f"screen_probabilities {mc:.3f} s, numpy floor of the same arithmetic {mf:.3f} s: ratio {mc / mf:.2f}x (goal <= 3x); "
+        f"{n_p * n_v * samples / mc / 1e6:.1f} million pair-samples per second"
+    )
+    print(
+        f"  mean dose-change probability: screen {result.change_probability.mean():.3f}, floor {change.mean():.3f} "
+        f"(independent draws: they agree in distribution, not number for number)"
+    )
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--model", action="store_true", help="the model-level figures instead of end to end")
+    ap.add_argument("--probability", action="store_true", help="the probabilistic screen against its numpy floor")
+    ap.add_argument("--samples", type=int, default=1000)
     ap.add_argument("--pairs", default="1e4,1e6", help="end to end: comma-separated pair counts")
     ap.add_argument("--format", default="csv", choices=("csv", "parquet"), help="end to end: output format of the command")
     ap.add_argument("--perpetrators", type=int, default=1000)
@@ -231,6 +336,11 @@ def main() -> None:
     ap.add_argument("--runs", type=int, default=5)
     ap.add_argument("--assess-sample", type=int, default=300)
     args = ap.parse_args()
+    if args.probability:
+        probability(
+            args.perpetrators if args.perpetrators != 1000 else 100, args.victims if args.victims != 1000 else 100, args.samples, args.runs
+        )
+        return
     if not args.model:
         end_to_end([int(float(x)) for x in args.pairs.split(",")], args.runs, args.format)
         return
