@@ -588,18 +588,48 @@ def feasible_fraction(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | None
 
     The probability, under the sampled inputs, that the object drug's
     exposure stays inside its boundaries with each regimen (the same
-    feasibility test as :func:`choose_regimens`).
+    feasibility test as :func:`choose_regimens`).  For many rows of a plan judged on exposure alone, the rows are
+    counted per stretch of AUC ratios over which no candidate's feasibility can change (:func:`_feasibility_steps`),
+    and each stretch's counts go to the candidates feasible there; rows near a change point are tested directly.
     """
     r = np.atleast_1d(np.asarray(total, dtype=float)).ravel()
     g = None if gut is None else np.broadcast_to(np.asarray(gut, dtype=float), np.shape(total)).ravel()
-    counts = np.zeros(len(plan.candidates))
     usual = int(np.count_nonzero(_inside(r, plan.boundary)))
+    n = max(1, r.size)
+    steps = _feasibility_steps(plan) if r.size >= _STEP_TABLE_ROWS else None
+    if steps is None:
+        return usual / n, _feasible_counts(plan, r, g) / n
+    _, stretch, rest = steps.look_up(r, (), stretch=True)
+    assert stretch is not None
+    per_stretch = np.bincount(stretch, minlength=steps.values[0].shape[0])
+    per_stretch[0] -= rest.size  # the rows tested directly were counted in stretch 0
+    counts = (per_stretch @ steps.values[0].astype(np.int64)) + _feasible_counts(plan, r[rest], None if g is None else g[rest])
+    return usual / n, counts / n
+
+
+def _feasible_counts(plan: RegimenPlan, r: NDArray[np.float64], g: NDArray[np.float64] | None) -> NDArray[np.float64]:
+    """How many rows each candidate is feasible for, tested directly in chunks of rows."""
+    counts = np.zeros(len(plan.candidates))
     step = _rows_per_chunk(plan)
     for a in range(0, r.size, step):
         b = min(r.size, a + step)
         counts += regimen_feasibility(plan, r[a:b], None if g is None else g[a:b]).feasible.sum(axis=0)
-    n = max(1, r.size)
-    return usual / n, counts / n
+    return counts
+
+
+@functools.lru_cache(maxsize=128)
+def _feasibility_steps(plan: RegimenPlan) -> StepTable | None:
+    """Each candidate's feasibility (:func:`regimen_feasibility`) as a step function of the AUC ratio r (values: stretches
+    x candidates), or None where it is not one (intervals judged on peak and trough depend on the gut ratio too).
+
+    Judged on exposure alone, a candidate is feasible while lo <= r x f <= hi: its feasibility changes only at
+    r = lo / f and r = hi / f (the exact dose: at none, for a finite positive r).
+    """
+    if plan.half_life_h is not None and bool(plan.interval.any()):
+        return None
+    lo, hi = plan.boundary
+    f = np.unique(plan.factors[~plan.exact])
+    return StepTable.build(np.concatenate([lo / f, hi / f]), lambda r: (regimen_feasibility(plan, r).feasible,))
 
 
 # --------------------------------------------------------------------------- one scenario, with reasons

@@ -24,7 +24,7 @@ from hypothesis import strategies as st
 
 from interact import assess
 from interact.cautions import DOSE_CAUTIONS, INCREASE_CAUTION
-from interact.dosing import ACTIONS, choose_regimens, plan_regimens, regimen_feasibility, suggest_dose
+from interact.dosing import ACTIONS, choose_regimens, feasible_fraction, plan_regimens, regimen_feasibility, suggest_dose
 from interact.errors import AssumptionWarning, InputError, ScenarioError
 from interact.scenario import scenario_from_dict
 
@@ -357,3 +357,23 @@ def test_a_remembered_plan_is_shared_read_only_and_kept_apart_by_type() -> None:
     assert type(d.usual_dose) is int and type(a.usual_dose) is float
     with pytest.raises(InputError, match=r"victim\.dose"):
         plan_regimens(usual_dose=-1.0, dose_unit="mg", interval_h=24.0)
+
+
+@settings(max_examples=25, deadline=None)
+@given(seed=st.integers(0, 2**32 - 1), exact=st.booleans(), lo=st.sampled_from([0.5, 0.8, 0.9]), hi=st.sampled_from([1.1, 1.25, 2.0]))
+def test_feasible_fractions_counted_per_stretch_equal_every_row_tested(seed: int, exact: bool, lo: float, hi: float) -> None:
+    # many rows (samples) are counted per stretch of AUC ratios where no candidate's feasibility can change; rows at
+    # and next to every change point (lo / f, hi / f), and ratios that are not finite positive numbers, must give the
+    # same fractions as testing every row against every candidate
+    from interact.dosing import _feasibility_steps, _feasible_counts
+
+    plan = plan_regimens(usual_dose=USUAL, dose_unit="mg", interval_h=TAU0, strengths=() if exact else (2.5, 5.0, 10.0), boundary=(lo, hi))
+    assert _feasibility_steps(plan) is not None
+    f = np.unique(plan.factors[~plan.exact])
+    points = np.concatenate([lo / f, hi / f, [lo, hi, 1.0]])
+    near = np.concatenate([np.nextafter(points, 0.0), points, np.nextafter(points, np.inf), points * (1 + 2e-9)])
+    odd = np.array([0.0, -1.0, np.nan, np.inf, 1e-300, 1e300])
+    r = np.concatenate([near, odd, np.exp(np.random.default_rng(seed).normal(0.0, 1.2, 20_000))])
+    usual, fractions = feasible_fraction(plan, r)
+    np.testing.assert_array_equal(fractions, _feasible_counts(plan, r, None) / r.size)
+    assert usual == np.count_nonzero((r >= lo) & (r <= hi)) / r.size
