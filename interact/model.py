@@ -190,23 +190,20 @@ _ALL_ON: Final = (True, True, True)
 _FORMS: Final = ("fraction", "availability", "shared", "extended")
 
 
-def _weighted(pathways: Sequence[Pathway], activities: Sequence[Any]) -> tuple[Any, Any]:
-    """(sum f x activity, sum f) in pathway order; f scaled by a phenotype's activity in the first sum only."""
+def _weighted(weights: Sequence[Any], activities: Sequence[Any]) -> Any:
+    """sum f x activity, in pathway order (``weights`` from :func:`_prepare`: f scaled by a phenotype's activity)."""
     weighted: Any = None
-    fm_sum: Any = None
-    for pw, act in zip(pathways, activities, strict=True):
-        f = pw.fraction if pw.scale is None else pw.fraction * pw.scale
+    for f, act in zip(weights, activities, strict=True):
         weighted = f * act if weighted is None else weighted + f * act
-        fm_sum = pw.fraction if fm_sum is None else fm_sum + pw.fraction
-    return weighted, fm_sum
+    return weighted
 
 
 def remaining(pathways: Sequence[Pathway], activities: Sequence[Any]) -> Any:
     """The share of a clearance the precipitant leaves: sum f x activity + (1 - sum f) (1 without pathways)."""
     if not pathways:
         return 1.0
-    weighted, f_sum = _weighted(pathways, activities)
-    return weighted + (1.0 - f_sum)
+    _, weights, f_sum = _prepare("fraction", pathways)
+    return _weighted(weights, activities) + (1.0 - f_sum)
 
 
 def organ_ratio(form: str, pathways: Sequence[Pathway], activities: Sequence[Any], *, base: Any = 1.0, organ: Organ | None = None) -> Any:
@@ -224,25 +221,52 @@ def organ_ratio(form: str, pathways: Sequence[Pathway], activities: Sequence[Any
         raise ValueError(f"organ form {form!r}: expected one of {', '.join(_FORMS)}")
     if not pathways:
         return 1.0
-    if form == "availability":
-        if len(pathways) == 1:
-            (pw,), (act,) = pathways, activities
-            return 1.0 / (act * (1.0 - pw.fraction) + pw.fraction)
-        losses = [pw._replace(fraction=1.0 - pw.fraction) for pw in pathways]
-        return organ_ratio("fraction", losses, activities)
-    if form == "shared":
-        weighted, f_sum = _weighted(pathways, activities)
-        return 1.0 / (1.0 - base * (f_sum - weighted))
+    if len(activities) != len(pathways):
+        raise ValueError(f"{len(activities)} activities for {len(pathways)} pathways: expected one per pathway")
+    return _apply(_prepare(form, pathways), activities, base, organ)
+
+
+#: what an organ's ratio needs of its pathways, worked out once (:func:`_prepare`): (kind, weights, sum)
+_Prepared = tuple[str, tuple[Any, ...], Any]
+
+
+def _prepare(form: str, pathways: Sequence[Pathway]) -> _Prepared:
+    """An organ's pathways reduced to what its ratio needs (a Model does this once, not per evaluation).
+
+    "one" (availability, one pathway): the weight 1 - F and F; "fraction" and "shared": the weights f x scale and
+    sum f, in pathway order (several availability pathways are losses 1 - F of the fraction form); "extended": the
+    pathways themselves.
+    """
+    if form == "availability" and len(pathways) == 1:
+        (pw,) = pathways
+        return "one", (1.0 - pw.fraction,), pw.fraction
     if form == "extended":
+        return form, tuple(pathways), None
+    if form == "availability":
+        form, pathways = "fraction", [pw._replace(fraction=1.0 - pw.fraction) for pw in pathways]
+    f_sum: Any = None
+    for pw in pathways:
+        f_sum = pw.fraction if f_sum is None else f_sum + pw.fraction
+    return form, tuple(pw.fraction if pw.scale is None else pw.fraction * pw.scale for pw in pathways), f_sum
+
+
+def _apply(prepared: _Prepared, activities: Sequence[Any], base: Any, organ: Organ | None) -> Any:
+    """The organ ratio from :func:`_prepare` and the activity of each pathway (the arithmetic of every form, once)."""
+    kind, weights, f_sum = prepared
+    if kind == "one":
+        return 1.0 / (activities[0] * weights[0] + f_sum)
+    if kind == "extended":
         if organ is None or organ.clearances is None:
             raise ValueError("an 'extended' organ needs its clearances")
-        uptake = [(pw, a) for pw, a in zip(pathways, activities, strict=True) if pw.role == "uptake"]
-        other = [(pw, a) for pw, a in zip(pathways, activities, strict=True) if pw.role != "uptake"]
+        uptake = [(pw, a) for pw, a in zip(weights, activities, strict=True) if pw.role == "uptake"]
+        other = [(pw, a) for pw, a in zip(weights, activities, strict=True) if pw.role != "uptake"]
         left = [remaining([p for p, _ in part], [a for _, a in part]) for part in (uptake, other)]
         act = extended_clearance_activity(*organ.clearances, left[0], left[1])
         return organ_ratio("fraction", (Pathway(target=-1, organ="liver", fraction=organ.fraction),), (act,))
-    weighted, fm_sum = _weighted(pathways, activities)
-    return 1.0 / (weighted + (1.0 - fm_sum))
+    weighted = _weighted(weights, activities)
+    if kind == "shared":
+        return 1.0 / (1.0 - base * (f_sum - weighted))
+    return 1.0 / (weighted + (1.0 - f_sum))
 
 
 #: one site's constants bound to its concentrations: (conc, Ki,u) pairs, (conc, kinact, KI,u) triples,
@@ -275,9 +299,8 @@ class Model:
                 raise ValueError(f"organ {name}: form {organ.form!r}, expected one of {', '.join(_FORMS)}")
             mine = [pw for pw in pathways if pw.organ == name]
             where = [sites.setdefault((pw.target, organ.site), len(sites)) for pw in mine]
-            built.append((name, organ, tuple(mine), tuple(where)))
-        organs_built = built
-        self._organs = tuple(organs_built)
+            built.append((name, organ, _prepare(organ.form, mine) if mine else None, tuple(where)))
+        self._organs = tuple(built)
         self._sites = tuple([(key, tuple(on.get(key[0], ()))) for key in sites])
 
     def evaluate(
@@ -315,9 +338,9 @@ class Model:
         """The organ ratios from the activity at each (target, site), and their product."""
         organs: dict[str, Any] = {}
         total: Any = None
-        for name, organ, mine, where in self._organs:
+        for name, organ, prepared, where in self._organs:
             base = organs.get(organ.shares, 1.0) if organ.shares else 1.0
-            value = organ_ratio(organ.form, mine, tuple(map(acts.__getitem__, where)), base=base, organ=organ)
+            value = 1.0 if prepared is None else _apply(prepared, [acts[i] for i in where], base, organ)
             organs[name] = value
             total = value if total is None else total * value
         return organs, total
