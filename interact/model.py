@@ -190,11 +190,12 @@ _ALL_ON: Final = (True, True, True)
 _FORMS: Final = ("fraction", "availability", "shared", "extended")
 
 
-def _weighted(weights: Sequence[Any], activities: Sequence[Any]) -> Any:
-    """sum f x activity, in pathway order (``weights`` from :func:`_prepare`: f scaled by a phenotype's activity)."""
+def _weighted(weights: Sequence[Any], activities: Sequence[Any], where: Sequence[int]) -> Any:
+    """sum f x activity, in pathway order (``weights`` from :func:`_prepare`: f scaled by a phenotype's activity; the
+    activity of pathway k at ``activities[where[k]]``)."""
     weighted: Any = None
-    for f, act in zip(weights, activities, strict=True):
-        weighted = f * act if weighted is None else weighted + f * act
+    for f, k in zip(weights, where, strict=True):
+        weighted = f * activities[k] if weighted is None else weighted + f * activities[k]
     return weighted
 
 
@@ -203,7 +204,7 @@ def remaining(pathways: Sequence[Pathway], activities: Sequence[Any]) -> Any:
     if not pathways:
         return 1.0
     _, weights, f_sum = _prepare("fraction", pathways)
-    return _weighted(weights, activities) + (1.0 - f_sum)
+    return _weighted(weights, activities, range(len(pathways))) + (1.0 - f_sum)
 
 
 def organ_ratio(form: str, pathways: Sequence[Pathway], activities: Sequence[Any], *, base: Any = 1.0, organ: Organ | None = None) -> Any:
@@ -223,7 +224,7 @@ def organ_ratio(form: str, pathways: Sequence[Pathway], activities: Sequence[Any
         return 1.0
     if len(activities) != len(pathways):
         raise ValueError(f"{len(activities)} activities for {len(pathways)} pathways: expected one per pathway")
-    return _apply(_prepare(form, pathways), activities, base, organ)
+    return _apply(_prepare(form, pathways), activities, range(len(pathways)), base, organ)
 
 
 #: what an organ's ratio needs of its pathways, worked out once (:func:`_prepare`): (kind, weights, sum)
@@ -250,12 +251,14 @@ def _prepare(form: str, pathways: Sequence[Pathway]) -> _Prepared:
     return form, tuple(pw.fraction if pw.scale is None else pw.fraction * pw.scale for pw in pathways), f_sum
 
 
-def _apply(prepared: _Prepared, activities: Sequence[Any], base: Any, organ: Organ | None) -> Any:
-    """The organ ratio from :func:`_prepare` and the activity of each pathway (the arithmetic of every form, once)."""
+def _apply(prepared: _Prepared, activities: Sequence[Any], where: Sequence[int], base: Any, organ: Organ | None) -> Any:
+    """The organ ratio from :func:`_prepare` and the activity of each pathway, pathway k's at ``activities[where[k]]``
+    (the arithmetic of every form, once)."""
     kind, weights, f_sum = prepared
     if kind == "one":
-        return 1.0 / (activities[0] * weights[0] + f_sum)
+        return 1.0 / (activities[where[0]] * weights[0] + f_sum)
     if kind == "extended":
+        activities = [activities[k] for k in where]
         if organ is None or organ.clearances is None:
             raise ValueError("an 'extended' organ needs its clearances")
         uptake = [(pw, a) for pw, a in zip(weights, activities, strict=True) if pw.role == "uptake"]
@@ -263,7 +266,7 @@ def _apply(prepared: _Prepared, activities: Sequence[Any], base: Any, organ: Org
         left = [remaining([p for p, _ in part], [a for _, a in part]) for part in (uptake, other)]
         act = extended_clearance_activity(*organ.clearances, left[0], left[1])
         return organ_ratio("fraction", (Pathway(target=-1, organ="liver", fraction=organ.fraction),), (act,))
-    weighted = _weighted(weights, activities)
+    weighted = _weighted(weights, activities, where)
     if kind == "shared":
         return 1.0 / (1.0 - base * (f_sum - weighted))
     return 1.0 / (weighted + (1.0 - f_sum))
@@ -340,7 +343,7 @@ class Model:
         total: Any = None
         for name, organ, prepared, where in self._organs:
             base = organs.get(organ.shares, 1.0) if organ.shares else 1.0
-            value = 1.0 if prepared is None else _apply(prepared, [acts[i] for i in where], base, organ)
+            value = 1.0 if prepared is None else _apply(prepared, acts, where, base, organ)
             organs[name] = value
             total = value if total is None else total * value
         return organs, total
