@@ -114,32 +114,58 @@ def assessment_sections(
     list; with ``references=False`` the citation markers are left for the caller
     (the HTML report adds sections of its own before resolving them all).
     """
-    s = a.scenario
-    p = s.perpetrator
-    v = s.victim
-    pr = a.prediction
-    parent = a.species[0]
-    sections: list[Section] = []
+    sections: list[Section] = [
+        _head_section(a),
+        _summary_section(a),
+        _inputs_section(a),
+        _concentrations_section(a),
+        _basic_models_section(a),
+        _mechanistic_section(a),
+    ]
+    if a.phenotypes:
+        sections.append(phenotype_section(a))
+    timing: tuple[str, ...] = ()
+    if time_course is not None:  # (interact.dynamic), when computed
+        from .timecourse import timecourse_advice, timecourse_sections
 
+        sections.extend(timecourse_sections(time_course))
+        timing = timecourse_advice(time_course, a)
+    elif time_course_note:
+        sections.append(Section(title="Time course (dynamic check)", blocks=(time_course_note,)))
+    sections.append(_dose_section(a, timing))
+    sections.extend(_closing_sections(a))
+    sections = speak_sections(sections, a.rules.terms, user_text(a))
+    return cite(sections) if references else sections
+
+
+def _head_section(a: Assessment) -> Section:
+    """The untitled opening: scenario, rule set, invented-scenario flag and the caution line."""
+    s = a.scenario
     head = [
         f"Scenario: {s.title}",
         f"Rule set: {a.rules.title} [{a.rules.id}, table {a.rules.table_version}]" + (f" ({a.rules.source})" if a.rules.source else ""),
     ]
     if s.invented:
         head.append("This scenario is INVENTED: its compounds and values describe no real drug.")
-    sections.append(Section(title="", blocks=(*head, Note(text=CAUTION_LINE))))
+    return Section(title="", blocks=(*head, Note(text=CAUTION_LINE)))
 
-    # -- answer first
+
+def _summary_section(a: Assessment) -> Section:
+    """The answer first: the predicted ratio, its band, the study verdict and the suggested action."""
+    pr = a.prediction
     band = pr.band.name if pr.band else ("no meaningful change" if 0.8 < pr.total < 1.25 else "-")
     verdict = (
         f"Predicted victim AUC ratio {fmt_ratio(pr.total)} ({organ_words(pr)}): "
         f"{band}. Mechanistic model {'indicates' if a.study_indicated else 'does not indicate'} a clinical study "
         f"(cutoff {a.aucr_cutoff.value:g}, {a.aucr_cutoff.status}). Suggested action: {a.dose.headline}."
     )
-    sections.append(Section(title="Summary", blocks=(Note(text=verdict, kind="result"),)))
+    return Section(title="Summary", blocks=(Note(text=verdict, kind="result"),))
 
-    # -- inputs
-    perp_rows = [
+
+def _perpetrator_rows(a: Assessment) -> list[tuple[str, str, str]]:
+    p = a.scenario.perpetrator
+    parent = a.species[0]
+    rows = [
         ("Name", p.name, ""),
         ("Route", p.route, ""),
         ("Dose", _q(p.dose), f"= {fmt(parent.dose_umol)} umol"),
@@ -148,15 +174,25 @@ def assessment_sections(
         ("Molar mass", _q(p.molar_mass), ""),
     ]
     for m in p.metabolites:
-        perp_rows.append((f"Metabolite {m.name}", f"Cmax {_q(m.cmax)}, fu,p {m.fu_plasma:g}", ""))
-    vic_rows = [
+        rows.append((f"Metabolite {m.name}", f"Cmax {_q(m.cmax)}, fu,p {m.fu_plasma:g}", ""))
+    return rows
+
+
+def _victim_rows(a: Assessment) -> list[tuple[str, str, str]]:
+    v = a.scenario.victim
+    rows = [
         ("Name", v.name, ""),
         ("Route", v.route, ""),
         ("Dose and interval", f"{_q(v.dose)} every {_q(v.interval)}", ""),
         ("Fg", "1 (assumed, not given)" if v.fg is None else f"{v.fg:g}", ""),
         ("Strengths", ", ".join(_q(x) for x in v.strengths) or "-", ""),
     ]
-    vic_rows.extend(pathway_rows(v))
+    rows.extend(pathway_rows(v))
+    return rows
+
+
+def _constant_rows(a: Assessment) -> list[tuple[str, str, str, str, str, str]]:
+    """One row per constant given (reversible Ki, time-dependent kinact/KI, induction Emax/EC50) with its binding."""
     const_rows = []
     for c in a.constants:
         if c.ki_u_um is not None:
@@ -195,23 +231,26 @@ def assessment_sections(
                     f"EC50,u {fmt(c.ec50_u_um)} uM",
                 )
             )
+    return const_rows
+
+
+def _inputs_section(a: Assessment) -> Section:
     settings_rows = tuple((st.label, _setting_value(a, st), setting_origin(st)) for st in (*a.settings, *a.kdeg_used))
-    sections.append(
-        Section(
-            title="Inputs",
-            blocks=(
-                Table(headers=("Perpetrator", "value", "as used"), rows=tuple(perp_rows)),
-                Table(
-                    headers=("Target", "species", "constant given", "route to Ki", "binding: fu (source)", "unbound"),
-                    rows=tuple(const_rows),
-                ),
-                Table(headers=("Victim", "value", ""), rows=tuple(vic_rows)),
-                Table(headers=("Setting", "value used", "origin and source"), rows=settings_rows),
+    return Section(
+        title="Inputs",
+        blocks=(
+            Table(headers=("Perpetrator", "value", "as used"), rows=tuple(_perpetrator_rows(a))),
+            Table(
+                headers=("Target", "species", "constant given", "route to Ki", "binding: fu (source)", "unbound"),
+                rows=tuple(_constant_rows(a)),
             ),
-        )
+            Table(headers=("Victim", "value", ""), rows=tuple(_victim_rows(a))),
+            Table(headers=("Setting", "value used", "origin and source"), rows=settings_rows),
+        ),
     )
 
-    # -- concentrations
+
+def _concentrations_section(a: Assessment) -> Section:
     conc_rows = tuple(
         (
             sp.species,
@@ -224,20 +263,19 @@ def assessment_sections(
         )
         for sp in a.species
     )
-    sections.append(
-        Section(
-            title="Perpetrator concentrations (uM)",
-            blocks=(
-                Table(headers=("species", "Cmax", "fu,p used", "Imax,u", "Igut", "Iin,max,u", "I,ent"), rows=conc_rows),
-                "Imax,u = fu,p x Cmax; Igut = dose / 250 mL ([@dmd2019inlet]); "
-                "Iin,max,u = fu,p x (Cmax + Fa*Fg x ka x Dose / (Qh x Rb)) ([@dmd2019inlet], Tables 7 and 8; [@jpetverinurad]); "
-                "I,ent = fu,gut x Fa x ka x Dose / Qent (from memory). Metabolites use their systemic Imax,u at every site "
-                "([@jpetverinurad], Table 7 footnote).",
-            ),
-        )
+    return Section(
+        title="Perpetrator concentrations (uM)",
+        blocks=(
+            Table(headers=("species", "Cmax", "fu,p used", "Imax,u", "Igut", "Iin,max,u", "I,ent"), rows=conc_rows),
+            "Imax,u = fu,p x Cmax; Igut = dose / 250 mL ([@dmd2019inlet]); "
+            "Iin,max,u = fu,p x (Cmax + Fa*Fg x ka x Dose / (Qh x Rb)) ([@dmd2019inlet], Tables 7 and 8; [@jpetverinurad]); "
+            "I,ent = fu,gut x Fa x ka x Dose / Qent (from memory). Metabolites use their systemic Imax,u at every site "
+            "([@jpetverinurad], Table 7 footnote).",
+        ),
     )
 
-    # -- basic models
+
+def _basic_models_section(a: Assessment) -> Section:
     screen_rows = tuple(
         (
             r.target,
@@ -250,18 +288,19 @@ def assessment_sections(
         )
         for r in a.screen
     )
-    sections.append(
-        Section(
-            title=f"Basic static models ({a.rules.id})",
-            blocks=(
-                Table(headers=("target", "test", "value", "cutoff", "verdict", "cutoff status", "equation"), rows=screen_rows)
-                if screen_rows
-                else "No criterion of this rule set applies to the targets given.",
-            ),
-        )
+    return Section(
+        title=f"Basic static models ({a.rules.id})",
+        blocks=(
+            Table(headers=("target", "test", "value", "cutoff", "verdict", "cutoff status", "equation"), rows=screen_rows)
+            if screen_rows
+            else "No criterion of this rule set applies to the targets given.",
+        ),
     )
 
-    # -- mechanistic model
+
+def _effect_rows(a: Assessment) -> list[tuple[str, ...]]:
+    """The mechanistic model's per-enzyme rows: liver, then gut wall where the enzyme acts there."""
+    pr = a.prediction
     eff_rows = []
     for e in pr.effects:
         conc = ", ".join(f"{fmt(cv)}" for _, cv in e.liver.concentration_um) or "-"
@@ -291,6 +330,31 @@ def assessment_sections(
                     fmt_ratio(e.gut.activity),
                 )
             )
+    return eff_rows
+
+
+def _route_table(a: Assessment) -> Table:
+    """The mechanistic model's per-transporter-route rows."""
+    return Table(
+        headers=("transporter", "route", "fraction", "[I] uM", "reversible", "inactivation", "induction", "activity left"),
+        rows=tuple(
+            (
+                r.transporter,
+                r.route,
+                f"{r.fraction:.3g}",
+                ", ".join(f"{fmt(cv)}" for _, cv in r.site.concentration_um) or "-",
+                fmt_ratio(r.site.reversible),
+                fmt_ratio(r.site.inactivation),
+                fmt_ratio(r.site.induction),
+                fmt_ratio(r.site.activity),
+            )
+            for r in a.prediction.routes
+        ),
+    )
+
+
+def _mechanistic_section(a: Assessment) -> Section:
+    pr = a.prediction
     ratio_rows = [
         ("gut", fmt_ratio(pr.gut), fmt_ratio(pr.ceiling_gut)),
         ("liver", fmt_ratio(pr.liver), fmt_ratio(pr.ceiling_liver)),
@@ -300,28 +364,11 @@ def assessment_sections(
     blocks: list[str | Table | Note] = [
         Table(
             headers=("enzyme", "site", "fm / Fg", "[I] uM", "reversible", "inactivation", "induction", "activity left"),
-            rows=tuple(eff_rows),
+            rows=tuple(_effect_rows(a)),
         ),
     ]
     if pr.routes:
-        blocks.append(
-            Table(
-                headers=("transporter", "route", "fraction", "[I] uM", "reversible", "inactivation", "induction", "activity left"),
-                rows=tuple(
-                    (
-                        r.transporter,
-                        r.route,
-                        f"{r.fraction:.3g}",
-                        ", ".join(f"{fmt(cv)}" for _, cv in r.site.concentration_um) or "-",
-                        fmt_ratio(r.site.reversible),
-                        fmt_ratio(r.site.inactivation),
-                        fmt_ratio(r.site.induction),
-                        fmt_ratio(r.site.activity),
-                    )
-                    for r in pr.routes
-                ),
-            )
-        )
+        blocks.append(_route_table(a))
     blocks.append(Table(headers=("AUC ratio", "predicted", "complete-inhibition ceiling"), rows=tuple(ratio_rows)))
     if pr.regime is not None:
         blocks.append(
@@ -347,22 +394,11 @@ def assessment_sections(
             "the factor it adds to the liver's (the two share one systemic clearance); per route AUCR = 1 / (fe / (1 + [I]/Ki) "
             "+ 1 - fe) as in [@elsby2016]; total = gut x liver x kidney."
         )
-    sections.append(Section(title="Mechanistic static model", blocks=tuple(blocks)))
+    return Section(title="Mechanistic static model", blocks=tuple(blocks))
 
-    if a.phenotypes:
-        sections.append(phenotype_section(a))
 
-    # -- time course (interact.dynamic), when computed
-    timing: tuple[str, ...] = ()
-    if time_course is not None:
-        from .timecourse import timecourse_advice, timecourse_sections
-
-        sections.extend(timecourse_sections(time_course))
-        timing = timecourse_advice(time_course, a)
-    elif time_course_note:
-        sections.append(Section(title="Time course (dynamic check)", blocks=(time_course_note,)))
-
-    # -- dose
+def _dose_section(a: Assessment, timing: tuple[str, ...]) -> Section:
+    """The suggested action, its reasons and regimens, the dose timing (``timing``), the perpetrator's ceiling, cautions."""
     d = a.dose
     dose_blocks: list[str | Table | Note] = [Note(text=f"Suggested action: {d.headline}.", kind="result"), *d.reasons]
     shown = d.options or d.nearest
@@ -376,8 +412,12 @@ def assessment_sections(
         else f"Perpetrator dose ceiling: {lim.reason}."
     )
     dose_blocks.extend(Note(text=c) for c in d.cautions)
-    sections.append(Section(title="Dose suggestion", blocks=tuple(dose_blocks)))
+    return Section(title="Dose suggestion", blocks=tuple(dose_blocks))
 
+
+def _closing_sections(a: Assessment) -> list[Section]:
+    """Warnings, values from memory, cautions and provenance."""
+    sections: list[Section] = []
     if a.warnings:
         sections.append(Section(title="Warnings", blocks=tuple(f"- {w}" for w in a.warnings)))
     if a.memory_values:
@@ -398,8 +438,7 @@ def assessment_sections(
             ),
         )
     )
-    sections = speak_sections(sections, a.rules.terms, user_text(a))
-    return cite(sections) if references else sections
+    return sections
 
 
 def user_text(a: Assessment) -> tuple[str, ...]:

@@ -9,7 +9,7 @@ from typing import Any
 from ..cautions import FIT_CAUTION
 from ..kinetics.binding import BindingPrediction, UnboundConstant
 from ..kinetics.engine import Estimate, FitResult
-from ..kinetics.fitting import LABELS, ModelComparison
+from ..kinetics.fitting import LABELS, ErrorModel, ModelComparison
 from ..kinetics.ic50 import IC50Fit, KiFromIC50
 from ..results import FIT_SCHEMA, IC50_SCHEMA
 from .document import Note, Section, Table, cite_data, render_markdown, render_text
@@ -59,21 +59,42 @@ def fit_sections(
     plots: str = "",
 ) -> list[Section]:
     """Document sections for a comparison (rendered by every format alike)."""
+    level = f"{comp.level:.0%}"
+    out = [_data_section(comp), _comparison_section(comp, level)]
+    if comp.error_model is not None:
+        out.append(_error_model_section(comp.error_model))
+    out.append(Section(title="Verdict", blocks=(Note(text=comp.verdict.text, kind="verdict"),)))
+    out.append(_estimates_section(comp, level))
+    if comp.f_tests:
+        out.append(_f_test_section(comp))
+    if unbound is not None:
+        out.append(_unbound_section(unbound, binding))
+    if comp.warnings:
+        out.append(Section(title="Design and fit warnings", blocks=tuple(Note(text=w, kind="caution") for w in comp.warnings)))
+    if plots:
+        out.append(Section(title="Diagnostic plot", blocks=()))
+    out.append(Section(title="Caution", blocks=(Note(text=FIT_CAUTION, kind="caution"),)))
+    return out
+
+
+def _data_section(comp: ModelComparison) -> Section:
+    """What was read: rows, substrate and inhibitor levels, velocity unit, weights."""
     d = comp.data
     s_lv, i_lv = d.substrate_levels, d.inhibitor_levels
-    level = f"{comp.level:.0%}"
-    out = [
-        Section(
-            title="Incubation data",
-            blocks=(
-                f"{d.source or 'data'}: {d.n} rows; substrate {fmt(min(s_lv))}-{fmt(max(s_lv))} {d.substrate_unit} at "
-                f"{len(s_lv)} levels; "
-                + (f"inhibitor {', '.join(fmt(x) for x in i_lv)} uM; " if i_lv != (0.0,) else "no inhibitor; ")
-                + f"velocity in {d.velocity_unit or 'unstated units'}; "
-                f"weights: {comp.weights}.",
-            ),
-        )
-    ]
+    return Section(
+        title="Incubation data",
+        blocks=(
+            f"{d.source or 'data'}: {d.n} rows; substrate {fmt(min(s_lv))}-{fmt(max(s_lv))} {d.substrate_unit} at "
+            f"{len(s_lv)} levels; "
+            + (f"inhibitor {', '.join(fmt(x) for x in i_lv)} uM; " if i_lv != (0.0,) else "no inhibitor; ")
+            + f"velocity in {d.velocity_unit or 'unstated units'}; "
+            f"weights: {comp.weights}.",
+        ),
+    )
+
+
+def _comparison_section(comp: ModelComparison, level: str) -> Section:
+    """One row per model fitted: fit quality, AICc and its weight, the key constant."""
     weights = {r.model: r for r in comp.ranking}
     rows = []
     for f in comp.fits:
@@ -90,74 +111,63 @@ def fit_sections(
                 _key_constant(f) if f.success else f.message,
             )
         )
-    out.append(
-        Section(
-            title="Model comparison",
-            blocks=(
-                Table(
-                    headers=(
-                        "model",
-                        "p",
-                        "RSS",
-                        "residual SD",
-                        "AICc",
-                        "dAICc",
-                        "weight",
-                        f"constants (uM) [{level} profile interval]",
-                    ),
-                    rows=tuple(rows),
+    return Section(
+        title="Model comparison",
+        blocks=(
+            Table(
+                headers=(
+                    "model",
+                    "p",
+                    "RSS",
+                    "residual SD",
+                    "AICc",
+                    "dAICc",
+                    "weight",
+                    f"constants (uM) [{level} profile interval]",
                 ),
+                rows=tuple(rows),
             ),
-        )
+        ),
     )
-    if comp.error_model is not None:
-        e = comp.error_model
-        out.append(
-            Section(
-                title="Error model",
-                blocks=(
-                    e.text,
-                    Table(
-                        headers=("variance model", "exponent theta", "log-likelihood", "AICc"),
-                        rows=tuple((n, f"{th:.3g}", fmt(ll), fmt(a)) for n, th, ll, a in e.candidates),
-                    ),
-                ),
-            )
-        )
-    out.append(Section(title="Verdict", blocks=(Note(text=comp.verdict.text, kind="verdict"),)))
+
+
+def _error_model_section(e: ErrorModel) -> Section:
+    return Section(
+        title="Error model",
+        blocks=(
+            e.text,
+            Table(
+                headers=("variance model", "exponent theta", "log-likelihood", "AICc"),
+                rows=tuple((n, f"{th:.3g}", fmt(ll), fmt(a)) for n, th, ll, a in e.candidates),
+            ),
+        ),
+    )
+
+
+def _estimates_section(comp: ModelComparison, level: str) -> Section:
     chosen = comp.chosen
-    out.append(
-        Section(
-            title=f"Estimates: {LABELS[chosen.model]} model",
-            blocks=(
-                f"{chosen.equation}; n = {chosen.n}, df = {chosen.df}, residual SD {fmt(chosen.residual_sd)}; {chosen.message}.",
-                Table(
-                    headers=("parameter", "estimate", "unit", "SE", f"{level} CI (asymptotic)", f"{level} CI (profile)", "note"),
-                    rows=tuple(_est_cells(e) for e in chosen.estimates),
-                ),
+    return Section(
+        title=f"Estimates: {LABELS[chosen.model]} model",
+        blocks=(
+            f"{chosen.equation}; n = {chosen.n}, df = {chosen.df}, residual SD {fmt(chosen.residual_sd)}; {chosen.message}.",
+            Table(
+                headers=("parameter", "estimate", "unit", "SE", f"{level} CI (asymptotic)", f"{level} CI (profile)", "note"),
+                rows=tuple(_est_cells(e) for e in chosen.estimates),
             ),
-        )
+        ),
     )
-    if comp.f_tests:
-        out.append(
-            Section(
-                title="Nested models: extra-sum-of-squares F tests",
-                blocks=(
-                    Table(
-                        headers=("reduced", "full", "F", "df", "p"),
-                        rows=tuple((t.reduced, t.full, fmt(t.f), f"{t.df_num}, {t.df_den}", f"{t.p_value:.3g}") for t in comp.f_tests),
-                    ),
-                ),
-            )
-        )
-    if unbound is not None:
-        out.append(_unbound_section(unbound, binding))
-    if comp.warnings:
-        out.append(Section(title="Design and fit warnings", blocks=tuple(Note(text=w, kind="caution") for w in comp.warnings)))
-    if plots:
-        out.append(Section(title="Diagnostic plot", blocks=()))
-    out.append(Section(title="Caution", blocks=(Note(text=FIT_CAUTION, kind="caution"),)))
-    return out
+
+
+def _f_test_section(comp: ModelComparison) -> Section:
+    return Section(
+        title="Nested models: extra-sum-of-squares F tests",
+        blocks=(
+            Table(
+                headers=("reduced", "full", "F", "df", "p"),
+                rows=tuple((t.reduced, t.full, fmt(t.f), f"{t.df_num}, {t.df_den}", f"{t.p_value:.3g}") for t in comp.f_tests),
+            ),
+        ),
+    )
 
 
 def _num(x: float | None) -> float | None:
