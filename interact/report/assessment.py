@@ -301,7 +301,7 @@ def _basic_models_section(a: Assessment) -> Section:
 def _effect_rows(a: Assessment) -> list[tuple[str, ...]]:
     """The mechanistic model's per-enzyme rows: liver, then gut wall where the enzyme acts there."""
     pr = a.prediction
-    eff_rows = []
+    eff_rows: list[tuple[str, ...]] = []
     for e in pr.effects:
         conc = ", ".join(f"{fmt(cv)}" for _, cv in e.liver.concentration_um) or "-"
         eff_rows.append(
