@@ -409,49 +409,13 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         stream_chunks,
         worst_pairs,
     )
-    from .report.batch import write_parquet_chunks, write_results
+    from .report.batch import write_parquet_chunks
     from .tables import load_rules
 
     t0 = time.perf_counter()
     rules = load_rules(args.rules)
-    if args.scheduler is not None and args.engine != "dask":
-        raise InputError("--scheduler", args.scheduler, "is a Dask scheduler address and needs --engine dask")
-    if args.engine == "dask":  # before reading the tables: a missing extra is said at once
-        from .batch_dask import import_distributed
-
-        import_distributed()
-    if args.top is not None and args.top < 1:
-        raise InputError("--top", args.top, "is not a whole number of at least 1")
-    args.variation = None
-    if args.samples is not None or args.vary is not None:
-        from .batch_probability import MAX_SAMPLES, parse_vary
-
-        if args.samples is None or args.vary is None:
-            raise InputError(
-                "--samples" if args.samples is None else "--vary",
-                "missing",
-                "a probabilistic screen needs both --samples N and --vary (e.g. --samples 1000 --vary ki=30%,conc=20%)",
-            )
-        if not 1 <= args.samples <= MAX_SAMPLES:
-            raise InputError("--samples", args.samples, f"is not a whole number from 1 to {MAX_SAMPLES:,}")
-        args.variation = parse_vary(args.vary)
-    if args.format:
-        fmt_name = args.format
-    elif not _stdout(args.output):
-        fmt_name = {".json": "json", ".md": "markdown", ".markdown": "markdown", ".parquet": "parquet", ".xlsx": "xlsx"}.get(
-            Path(args.output or "").suffix.lower(), "csv"
-        )
-    else:  # a person at a terminal reads a rounded table; a pipe gets CSV
-        fmt_name = "table" if sys.stdout.isatty() else "csv"
-    if args.variation is not None:
-        from .report.batch import PROBABILITY_FORMATS
-
-        if fmt_name == "table" and args.format is None:
-            fmt_name = "csv"
-        if fmt_name not in PROBABILITY_FORMATS:
-            raise InputError("--format", fmt_name, f"is not one of {', '.join(PROBABILITY_FORMATS)} for a probabilistic screen (--samples)")
-    if fmt_name in ("parquet", "xlsx") and _stdout(args.output) and sys.stdout.isatty():
-        raise InputError("--format", fmt_name, f"is binary and would garble the terminal; write it to a file (-o results.{fmt_name})")
+    _check_screen_options(args)
+    fmt_name = _screen_format(args)
     p_sheet, v_sheet = args.sheet, args.victim_sheet or args.sheet
     p_table, v_table = read_table(args.perpetrators, "perpetrators"), read_table(args.victims, "victims")
     counted = (
@@ -489,6 +453,62 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         result = run_on_dask(perps, victims, rules, scheduler=args.scheduler, progress=bar)
     else:
         result = evaluate_pairs(perps, victims, rules, progress=bar)
+    rows = _write_screen_results(args, result, fmt_name)
+    _say_written(args, n, rows, t0, perps.skipped, victims.skipped, order="worst first")
+    return 0
+
+
+def _check_screen_options(args: argparse.Namespace) -> None:
+    """screen-batch's options that go together, checked before any table is read; sets ``args.variation``."""
+    if args.scheduler is not None and args.engine != "dask":
+        raise InputError("--scheduler", args.scheduler, "is a Dask scheduler address and needs --engine dask")
+    if args.engine == "dask":  # before reading the tables: a missing extra is said at once
+        from .batch_dask import import_distributed
+
+        import_distributed()
+    if args.top is not None and args.top < 1:
+        raise InputError("--top", args.top, "is not a whole number of at least 1")
+    args.variation = None
+    if args.samples is not None or args.vary is not None:
+        from .batch_probability import MAX_SAMPLES, parse_vary
+
+        if args.samples is None or args.vary is None:
+            raise InputError(
+                "--samples" if args.samples is None else "--vary",
+                "missing",
+                "a probabilistic screen needs both --samples N and --vary (e.g. --samples 1000 --vary ki=30%,conc=20%)",
+            )
+        if not 1 <= args.samples <= MAX_SAMPLES:
+            raise InputError("--samples", args.samples, f"is not a whole number from 1 to {MAX_SAMPLES:,}")
+        args.variation = parse_vary(args.vary)
+
+
+def _screen_format(args: argparse.Namespace) -> str:
+    """The output format: --format, else from the file name, else a table at a terminal and CSV down a pipe."""
+    if args.format:
+        fmt_name = args.format
+    elif not _stdout(args.output):
+        fmt_name = {".json": "json", ".md": "markdown", ".markdown": "markdown", ".parquet": "parquet", ".xlsx": "xlsx"}.get(
+            Path(args.output or "").suffix.lower(), "csv"
+        )
+    else:  # a person at a terminal reads a rounded table; a pipe gets CSV
+        fmt_name = "table" if sys.stdout.isatty() else "csv"
+    if args.variation is not None:
+        from .report.batch import PROBABILITY_FORMATS
+
+        if fmt_name == "table" and args.format is None:
+            fmt_name = "csv"
+        if fmt_name not in PROBABILITY_FORMATS:
+            raise InputError("--format", fmt_name, f"is not one of {', '.join(PROBABILITY_FORMATS)} for a probabilistic screen (--samples)")
+    if fmt_name in ("parquet", "xlsx") and _stdout(args.output) and sys.stdout.isatty():
+        raise InputError("--format", fmt_name, f"is binary and would garble the terminal; write it to a file (-o results.{fmt_name})")
+    return fmt_name
+
+
+def _write_screen_results(args: argparse.Namespace, result: Any, fmt_name: str) -> int:
+    """Write a screen's results (an .xlsx workbook, or a text or binary table); returns the rows written."""
+    from .report.batch import write_results
+
     if fmt_name == "xlsx":
         from datetime import UTC, datetime
 
@@ -505,8 +525,7 @@ def _cmd_screen_batch(args: argparse.Namespace) -> int:
         rows = _write_streamed(
             args, lambda h: write_results(result, h, fmt_name, top=args.top, width=width), binary=fmt_name not in ("markdown", "table")
         )
-    _say_written(args, n, rows, t0, perps.skipped, victims.skipped, order="worst first")
-    return 0
+    return rows
 
 
 def _probabilistic_screen(args: argparse.Namespace, perps: Any, victims: Any, rules: Any, fmt_name: str, bar: Any) -> int:
@@ -591,21 +610,34 @@ def _parser() -> argparse.ArgumentParser:
     )
     parser.add_argument("--version", action="version", version=f"interact {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    _add_assess_commands(sub)
+    _add_mechanism_fit_commands(sub)
+    _add_small_commands(sub)
+    _add_uncertainty_command(sub)
+    _add_screen_batch_command(sub)
+    _add_report_command(sub)
+    _add_fit_command(sub)
+    return parser
 
-    def with_report_options(p: argparse.ArgumentParser) -> None:
-        p.add_argument(
-            "--rules",
-            metavar="NAME|PATH",
-            help="rule set by name (see 'interact tables') or a TOML file; default: the scenario's 'rules' key, else ich-m12-2024",
-        )
-        p.add_argument("--format", choices=FORMATS, default="text", help="output format (default: text)")
-        p.add_argument("--width", type=_width_arg, default=100, help="text width, 40 to 1000 (default: 100)")
-        p.add_argument("-o", "--output", metavar="FILE", help="write to FILE instead of standard output")
-        p.add_argument("--force", action="store_true", help=FORCE_HELP)
 
+def _with_report_options(p: argparse.ArgumentParser) -> None:
+    """--rules, --format, --width, -o/--output and --force: the options of every command that reports a scenario."""
+    p.add_argument(
+        "--rules",
+        metavar="NAME|PATH",
+        help="rule set by name (see 'interact tables') or a TOML file; default: the scenario's 'rules' key, else ich-m12-2024",
+    )
+    p.add_argument("--format", choices=FORMATS, default="text", help="output format (default: text)")
+    p.add_argument("--width", type=_width_arg, default=100, help="text width, 40 to 1000 (default: 100)")
+    p.add_argument("-o", "--output", metavar="FILE", help="write to FILE instead of standard output")
+    p.add_argument("--force", action="store_true", help=FORCE_HELP)
+
+
+def _add_assess_commands(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+    """assess and timecourse: a scenario's static assessment and its time course."""
     p = sub.add_parser("assess", help="assess a scenario file: basic models, AUC ratio, dose suggestion")
     p.add_argument("scenario", metavar="SCENARIO.toml")
-    with_report_options(p)
+    _with_report_options(p)
     p.add_argument(
         "--time-course",
         choices=("auto", "on", "off"),
@@ -617,7 +649,7 @@ def _parser() -> argparse.ArgumentParser:
 
     p = sub.add_parser("timecourse", help="time course of the interaction: curves, dynamic vs static ratio, onset and offset")
     p.add_argument("scenario", metavar="SCENARIO.toml")
-    with_report_options(p)
+    _with_report_options(p)
     p.add_argument("--days", type=_days_arg, default=30.0, help="days of perpetrator dosing (default 30)")
     p.add_argument("--washout-days", type=_days_arg, default=None, help="days followed after stopping (default: long enough to fade)")
     p.add_argument("--fraction", type=_fraction_arg, default=0.9, help="share of the effect that defines onset and offset (default 0.9)")
@@ -625,6 +657,9 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--plot", metavar="FILE", help="also write the curves to FILE (matplotlib): .png or .pdf, else SVG")
     p.set_defaults(run=_cmd_timecourse)
 
+
+def _add_mechanism_fit_commands(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+    """fit-tdi and fit-induction: time-dependent inhibition and induction constants from incubation data."""
     for name, text in (
         ("fit-tdi", "fit kinact and KI from pre-incubation data (columns inhibitor, time, activity)"),
         ("fit-induction", "fit Emax and EC50 from mRNA fold-change data (columns concentration, fold_change)"),
@@ -652,13 +687,16 @@ def _parser() -> argparse.ArgumentParser:
             p.add_argument("--hill", action="store_true", help="also fit a Hill slope (reported; not carried unless it is 1)")
         p.set_defaults(run=_cmd_fit_mechanism)
 
+
+def _add_small_commands(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+    """new, demo, tables, fm and open."""
     p = sub.add_parser("new", help="write a commented starter scenario (placeholder values to replace) to FILE")
     p.add_argument("file", metavar="FILE", help="the scenario file to create (- for standard output)")
     p.add_argument("--force", action="store_true", help="replace FILE if it exists")
     p.set_defaults(run=_cmd_new)
 
     p = sub.add_parser("demo", help="assess the built-in invented demo scenario (same output as assess)")
-    with_report_options(p)
+    _with_report_options(p)
     p.set_defaults(run=_cmd_assess)
 
     p = sub.add_parser("tables", help="print the reference tables with their sources and status, and the source registry in full")
@@ -682,6 +720,9 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("scenario", nargs="?", metavar="SCENARIO.toml")
     p.set_defaults(run=_cmd_open)
 
+
+def _add_uncertainty_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+    """uncertainty: the spread of the AUC ratio under input distributions."""
     p = sub.add_parser("uncertainty", help="spread of the AUC ratio under input distributions, and sensitivity")
     p.add_argument("scenario", metavar="SCENARIO.toml")
     p.add_argument(
@@ -697,9 +738,12 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--seed", type=int, metavar="S", help="random seed (default 0); the same seed gives the same numbers")
     p.add_argument("--method", choices=("mc", "lhs"), help="mc: Monte Carlo; lhs: Latin hypercube (default)")
     p.add_argument("--list-inputs", action="store_true", help="list the input paths this scenario's model reads, and stop")
-    with_report_options(p)
+    _with_report_options(p)
     p.set_defaults(run=_cmd_uncertainty)
 
+
+def _add_screen_batch_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+    """screen-batch: every perpetrator of one table against every victim of another."""
     p = sub.add_parser("screen-batch", help="every perpetrator of one table against every victim of another, worst pairs first")
     p.add_argument("perpetrators", metavar="PERPETRATORS.csv", help="perpetrator table (CSV, TOML or .xlsx; columns in README)")
     p.add_argument("victims", metavar="VICTIMS.csv", help="victim table (CSV, TOML or .xlsx; columns in README)")
@@ -752,6 +796,9 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--seed", type=int, default=0, help="with --samples: the random seed (the same seed, the same probabilities)")
     p.set_defaults(run=_cmd_screen_batch)
 
+
+def _add_report_command(sub: argparse._SubParsersAction) -> None:  # type: ignore[type-arg]
+    """report: a self-contained HTML or Markdown report of a scenario."""
     p = sub.add_parser("report", help="a self-contained HTML (or Markdown) report of a scenario, with uncertainty and sensitivity")
     p.add_argument("scenario", metavar="SCENARIO.toml")
     p.add_argument("-o", "--output", metavar="FILE", help="write to FILE (.html or .md) instead of standard output")
@@ -766,9 +813,6 @@ def _parser() -> argparse.ArgumentParser:
     p.add_argument("--seed", type=int, metavar="S", help="random seed (default 0)")
     p.add_argument("--method", choices=("mc", "lhs"), help="mc: Monte Carlo; lhs: Latin hypercube (default)")
     p.set_defaults(run=_cmd_report)
-
-    _add_fit_command(sub)
-    return parser
 
 
 # --------------------------------------------------------------------------- interact fit (incubation data)
