@@ -169,6 +169,9 @@ class RegimenPlan:
     interval: NDArray[np.bool_] = field(repr=False, compare=False)
     taus_h: NDArray[np.float64] = field(repr=False, compare=False)  # the interval candidates' intervals
     codes: NDArray[np.int8] = field(repr=False, compare=False)  # action of each candidate, then AVOID (index -1)
+    # whether any candidate is the exact dose / an interval (exact.any(), interval.any(): asked on every row chunk)
+    has_exact: bool = field(repr=False, compare=False)
+    has_interval: bool = field(repr=False, compare=False)
 
 
 def _check_boundary(name: str, b: tuple[float, float]) -> tuple[float, float]:
@@ -353,6 +356,8 @@ def plan_regimens(
         narrow_therapeutic_index=narrow_therapeutic_index,
         max_units=max_units,
         intervals_h=tuple(sorted(float(t) for t in intervals_h)),
+        has_exact=bool(arrays["exact"].any()),
+        has_interval=bool(arrays["interval"].any()),
         **arrays,
     )
 
@@ -435,10 +440,10 @@ def _exposure_and_feasibility(
     r = total[:, None]
     with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
         exposure = r * plan.factors[None, :]
-        if plan.exact.any():
+        if plan.has_exact:
             exposure[:, plan.exact] = np.where(np.isfinite(r) & (r > 0.0), 1.0, np.nan)
         feasible = _inside(exposure, plan.boundary)
-        if plan.half_life_h is None or not plan.interval.any():
+        if plan.half_life_h is None or not plan.has_interval:
             return exposure, feasible, None
         g = np.ones_like(r) if gut is None else gut[:, None]
         k = _LN2 / plan.half_life_h
@@ -473,7 +478,7 @@ def _scores(plan: RegimenPlan, total: NDArray[np.float64], feasible: NDArray[np.
     """
     with np.errstate(divide="ignore", invalid="ignore"):
         score = np.abs(np.log(total)[:, None] + plan.log_factors[None, :])
-    if plan.exact.any():
+    if plan.has_exact:
         score[:, plan.exact] = 0.0
     score[~feasible] = np.inf
     return score
@@ -489,7 +494,7 @@ def _decide(plan: RegimenPlan, total: NDArray[np.float64], score: NDArray[np.flo
         chosen = np.argmin(score, axis=1).astype(np.intp)  # argmin takes the first of equal scores
         chosen[~np.isfinite(score[np.arange(n), chosen])] = -1
     action = plan.codes[chosen]  # chosen = -1 picks AVOID
-    if plan.exact.any():
+    if plan.has_exact:
         action = np.where(plan.exact[np.maximum(chosen, 0)] & (chosen >= 0) & (total < 1.0), np.int8(INCREASE), action)
     action = np.where(inside, np.int8(NO_CHANGE), action).astype(np.int8)
     chosen[inside] = -1
@@ -571,7 +576,7 @@ def _rule_steps(plan: RegimenPlan) -> StepTable | None:
     itself (:func:`_choose_rows`), evaluated at one ratio in each stretch.  Plans are compared by value, so victims
     with the same regimens share one table.
     """
-    if plan.half_life_h is not None and bool(plan.interval.any()):
+    if plan.half_life_h is not None and plan.has_interval:
         return None  # peak and trough depend on the gut ratio too: evaluated directly
     lo, hi = plan.boundary
     f = np.unique(plan.factors[~plan.exact])
@@ -625,7 +630,7 @@ def _feasibility_steps(plan: RegimenPlan) -> StepTable | None:
     Judged on exposure alone, a candidate is feasible while lo <= r x f <= hi: its feasibility changes only at
     r = lo / f and r = hi / f (the exact dose: at none, for a finite positive r).
     """
-    if plan.half_life_h is not None and bool(plan.interval.any()):
+    if plan.half_life_h is not None and plan.has_interval:
         return None
     lo, hi = plan.boundary
     f = np.unique(plan.factors[~plan.exact])
@@ -880,7 +885,7 @@ def suggest_dose(
     codes, picks = _decide(plan, r, score)
     code, k = int(codes[0]), int(picks[0])
     # the records the text needs: none inside the boundary, the feasible ones when one is chosen, all for the nearest
-    feasible = [] if code == NO_CHANGE else np.flatnonzero(ratios.feasible[0]).tolist() if k >= 0 else None
+    feasible = [] if code == NO_CHANGE else ratios.feasible[0].nonzero()[0].tolist() if k >= 0 else None
     outcomes = _outcomes(plan, auc_ratio, ratios, feasible)
     exact = plan.usual_dose / auc_ratio
     exact_tau = plan.usual_interval_h * auc_ratio
