@@ -422,6 +422,18 @@ def regimen_feasibility(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | No
     its peak and trough ratios, lie inside their boundaries (inclusive, no
     tolerance).
     """
+    with _quiet():
+        return _candidate_ratios(plan, total, gut)
+
+
+def _quiet() -> np.errstate:
+    """The floating-point states the candidate arithmetic ignores (a row that is not a finite positive ratio gives NaN
+    or inf, never a warning): entered once by each caller of the unguarded helpers below (about 1.6 us each time)."""
+    return np.errstate(invalid="ignore", over="ignore", divide="ignore")
+
+
+def _candidate_ratios(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | None) -> CandidateRatios:
+    """:func:`regimen_feasibility` without its ``np.errstate`` (the caller enters it)."""
     r = np.atleast_1d(np.asarray(total, dtype=float))
     # the gut ratio counts only for judged intervals (a half-life given): not shaped otherwise (a few us of one row)
     g = None if gut is None or plan.half_life_h is None else np.broadcast_to(np.atleast_1d(np.asarray(gut, dtype=float)), r.shape)
@@ -438,25 +450,25 @@ def regimen_feasibility(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | No
 def _exposure_and_feasibility(
     plan: RegimenPlan, total: NDArray[np.float64], gut: NDArray[np.float64] | None
 ) -> tuple[NDArray[np.float64], NDArray[np.bool_], tuple[NDArray[np.float64], NDArray[np.float64]] | None]:
-    """(exposure ratios, feasibility, (peak, trough) of the interval columns or None): rows x candidates."""
+    """(exposure ratios, feasibility, (peak, trough) of the interval columns or None): rows x candidates (called
+    under ``_quiet()``)."""
     r = total[:, None]
-    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
-        exposure = r * plan.factors[None, :]
-        if plan.has_exact:
-            exposure[:, plan.exact] = np.where(np.isfinite(r) & (r > 0.0), 1.0, np.nan)
-        feasible = _inside(exposure, plan.boundary)
-        if plan.half_life_h is None or not plan.has_interval:
-            return exposure, feasible, None
-        g = np.ones_like(r) if gut is None else gut[:, None]
-        k = _LN2 / plan.half_life_h
-        tau0 = plan.usual_interval_h
-        taus = plan.taus_h[None, :]
-        k_new = k * g / r  # clearance divided by the hepatic (non-gut) part AUCR / Rg
-        base = -math.expm1(-k * tau0)
-        den = -np.expm1(-k_new * taus)
-        pk = g * base / den
-        tr = np.exp(np.log(g) + k * tau0 - k_new * taus + math.log(base) - np.log(den))
-        feasible[:, plan.interval] &= _inside(pk, plan.peak_boundary) & _inside(tr, plan.trough_boundary)
+    exposure = r * plan.factors[None, :]
+    if plan.has_exact:
+        exposure[:, plan.exact] = np.where(np.isfinite(r) & (r > 0.0), 1.0, np.nan)
+    feasible = _inside(exposure, plan.boundary)
+    if plan.half_life_h is None or not plan.has_interval:
+        return exposure, feasible, None
+    g = np.ones_like(r) if gut is None else gut[:, None]
+    k = _LN2 / plan.half_life_h
+    tau0 = plan.usual_interval_h
+    taus = plan.taus_h[None, :]
+    k_new = k * g / r  # clearance divided by the hepatic (non-gut) part AUCR / Rg
+    base = -math.expm1(-k * tau0)
+    den = -np.expm1(-k_new * taus)
+    pk = g * base / den
+    tr = np.exp(np.log(g) + k * tau0 - k_new * taus + math.log(base) - np.log(den))
+    feasible[:, plan.interval] &= _inside(pk, plan.peak_boundary) & _inside(tr, plan.trough_boundary)
     return exposure, feasible, (pk, tr)
 
 
@@ -476,10 +488,10 @@ class RegimenChoice:
 def _scores(plan: RegimenPlan, total: NDArray[np.float64], feasible: NDArray[np.bool_]) -> NDArray[np.float64]:
     """Distance from the usual exposure on the log scale, |log(AUCR x factor)| (0 for the exact dose); inf where infeasible.
 
-    The one ranking of candidates: the choice is the smallest, ties to the earlier candidate.
+    The one ranking of candidates: the choice is the smallest, ties to the earlier candidate (called under
+    ``_quiet()``).
     """
-    with np.errstate(divide="ignore", invalid="ignore"):
-        score = np.abs(np.log(total)[:, None] + plan.log_factors[None, :])
+    score = np.abs(np.log(total)[:, None] + plan.log_factors[None, :])
     if plan.has_exact:
         score[:, plan.exact] = 0.0
     score[~feasible] = np.inf
@@ -506,8 +518,10 @@ def _decide(plan: RegimenPlan, total: NDArray[np.float64], score: NDArray[np.flo
 def _choose_chunk(
     plan: RegimenPlan, total: NDArray[np.float64], gut: NDArray[np.float64] | None
 ) -> tuple[NDArray[np.int8], NDArray[np.intp]]:
-    _, feasible, _ = _exposure_and_feasibility(plan, total, gut)
-    return _decide(plan, total, _scores(plan, total, feasible))
+    with _quiet():
+        _, feasible, _ = _exposure_and_feasibility(plan, total, gut)
+        score = _scores(plan, total, feasible)
+    return _decide(plan, total, score)
 
 
 def choose_regimens(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | None = None) -> RegimenChoice:
@@ -882,8 +896,9 @@ def suggest_dose(
     unit = plan.dose_unit
     # the rule of choose_regimens for one row, with the ratios and scores kept for the text and the table
     r = np.array([auc_ratio])
-    ratios = regimen_feasibility(plan, r, [gut_ratio])
-    score = _scores(plan, r, ratios.feasible)
+    with _quiet():  # entered once for both
+        ratios = _candidate_ratios(plan, r, [gut_ratio])
+        score = _scores(plan, r, ratios.feasible)
     codes, picks = _decide(plan, r, score)
     code, k = int(codes[0]), int(picks[0])
     # the records the text needs: none inside the boundary, the feasible ones when one is chosen, all for the nearest
