@@ -354,8 +354,15 @@ class ScenarioModel:
         self._inputs = tuple(inputs)
         self._by_path = {i.path: i for i in inputs}
         self._point: dict[str, float] = {i.path: i.value for i in inputs}
+        # the renal fraction moves the ratio only through renal secretion routes or the hepatic share of the clearances
+        renal_moves = any(r == "renal secretion" for r, _, _ in self._route_inputs) or (
+            self._routes.clearances is not None and not self._hepatic_given
+        )
         self._relevant = tuple(
-            i for i in inputs if not any(i.path.startswith(c.prefix + ".") and c.target not in relevant_targets for c in self._consts)
+            i
+            for i in inputs
+            if not any(i.path.startswith(c.prefix + ".") and c.target not in relevant_targets for c in self._consts)
+            and (i.path != RENAL or renal_moves)
         )
         self._targets: dict[str, int] = {}
         for name in (

@@ -13,7 +13,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from interact import assess
-from interact.scenario import demo_path, load_scenario
+from interact.scenario import demo_path, load_scenario, loads_scenario
 from interact.uncertainty import ScenarioModel, run_uncertainty
 
 pytestmark = pytest.mark.filterwarnings("ignore::interact.errors.InteractWarning")
@@ -96,3 +96,13 @@ def test_sampled_route_fractions_keep_the_readers_organ_sums(method: str) -> Non
     assert pct[50.0][2] == pytest.approx(float(np.percentile(res.kidney, 50.0)), rel=0, abs=0)
     cols = res.sample_columns()
     assert np.array_equal(cols["auc_ratio_kidney"], res.kidney)
+
+
+def test_the_renal_fraction_is_relevant_only_with_a_secretion_route() -> None:
+    text = (demo_path().with_name("examples") / "transporter_victim.toml").read_text(encoding="utf-8")
+    without = loads_scenario(text[: text.rindex("[[victim.pathways]]")])  # the OAT3 secretion route left out
+    model = ScenarioModel(assess(without))
+    assert RENAL in {i.path for i in model.inputs()} and RENAL not in {i.path for i in model.inputs(relevant_only=True)}
+    moved = np.broadcast_to(model.evaluate({RENAL: np.linspace(0.0, 0.4, 5)}).total, (5,))  # does not enter: a scalar
+    assert moved.tolist() == [float(model.evaluate().total)] * 5
+    assert RENAL in {i.path for i in MODEL.inputs(relevant_only=True)}
