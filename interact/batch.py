@@ -139,6 +139,7 @@ OUTPUT_COLUMNS: Final = (
     "basic models",
     "AUCR gut",
     "AUCR liver",
+    "AUCR kidney",
     "AUCR",
     "phenotype",
     "exposure vs normal",
@@ -160,6 +161,7 @@ COLUMN_KEYS: Final = (
     "basic_models",
     "auc_ratio_gut",
     "auc_ratio_liver",
+    "auc_ratio_kidney",
     "auc_ratio",
     "phenotype",
     "exposure_vs_normal",
@@ -874,6 +876,7 @@ class BatchResult:
     rules: RuleSet
     gut: NDArray[np.float64]
     liver: NDArray[np.float64]
+    kidney: NDArray[np.float64]  # renal secretion at Imax,u (1 for a victim without secretion routes); total = gut x liver x kidney
     total: NDArray[np.float64]  # AUC ratio with / without the precipitant (within the victim's phenotype)
     exposure: NDArray[np.float64]  # with the precipitant relative to a normal metaboliser without it: the dose answers this
     band: NDArray[np.int8]
@@ -902,7 +905,8 @@ class BatchResult:
         dict of str to ndarray
             ``rank``, ``perpetrator``, ``victim`` (names), ``imax_u_um``, ``iin_max_u_um``,
             ``igut_um``, ``i_ent_um`` (perpetrator concentrations in uM), ``basic_models`` (text),
-            ``auc_ratio_gut``, ``auc_ratio_liver``, ``auc_ratio`` (dimensionless), ``phenotype`` (text),
+            ``auc_ratio_gut``, ``auc_ratio_liver``, ``auc_ratio_kidney``, ``auc_ratio`` (dimensionless; the
+            product of the three), ``phenotype`` (text),
             ``exposure_vs_normal`` (dimensionless), ``class``,
             ``study_indicated`` (bool), ``action`` and ``flags`` (text; ``flag_bits`` the same as
             bits of :data:`FLAGS`).  The same rows, in the same order, as :func:`result_rows`.
@@ -924,6 +928,7 @@ class BatchResult:
             "basic_models": np.array(p.basic, dtype=object)[ii],
             "auc_ratio_gut": self.gut.ravel()[order],
             "auc_ratio_liver": self.liver.ravel()[order],
+            "auc_ratio_kidney": self.kidney.ravel()[order],
             "auc_ratio": self.total.ravel()[order],
             "phenotype": np.array(self.victims.phenotype, dtype=object)[jj],
             "exposure_vs_normal": self.exposure.ravel()[order],
@@ -960,9 +965,9 @@ def pair_ratios(
     victims: VictimTable,
     *,
     progress: Callable[[int, int], None] | None = None,
-) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64]]:
-    """Gut, liver and total AUC ratios of the mechanistic static model for every pair, vectorised (the total includes the
-    kidney term of victims with renal secretion routes).
+) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64], NDArray[np.float64]]:
+    """Gut, liver, kidney and total AUC ratios of the mechanistic static model for every pair, vectorised (total = gut x
+    liver x kidney; the kidney ratio is 1 for a victim without renal secretion routes).
 
     :func:`interact.model.evaluate` with perpetrators along axis 0 and victims along axis 1 (in chunks
     of perpetrators): each perpetrator's Ki,u per target (reversible inhibition) at Iin,max,u and, on the
@@ -1004,7 +1009,7 @@ def pair_ratios(
         done += (a1 - a0) * n_v
         if progress is not None:
             progress(done, n_p * n_v)
-    return gut, liver, gut * liver * kidney
+    return gut, liver, kidney, gut * liver * kidney
 
 
 def _route_pathways(victims: VictimTable, targets: list[str]) -> list[model.Pathway]:
@@ -1088,7 +1093,7 @@ def evaluate_pairs(
     classes = load_classes()
     n_p, n_v = len(perpetrators.rows), len(victims.rows)
     check_pair_budget(n_p, n_v)
-    gut, liver, exposure = pair_ratios(perpetrators, victims, progress=progress)
+    gut, liver, kidney, exposure = pair_ratios(perpetrators, victims, progress=progress)
     total = exposure
     phen = np.array([bool(v.phenotypes) for v in victims.rows], dtype=bool)
     if phen.any():
@@ -1096,7 +1101,7 @@ def evaluate_pairs(
         # within the phenotype it is that over the genotype effect alone (interact.genotype)
         liver = liver.copy()
         liver[:, phen] /= victims.genotype[None, phen]
-        total = gut * liver
+        total = gut * liver * kidney  # the kidney term does not depend on the genotype
     if not np.isfinite(total).all():  # never a blank ratio: the input ranges keep every ratio finite, so this names a pair if not
         i, j = (int(k) for k in np.argwhere(~np.isfinite(total))[0])
         raise InputError(
@@ -1150,6 +1155,7 @@ def evaluate_pairs(
         rules=rule_set,
         gut=gut,
         liver=liver,
+        kidney=kidney,
         total=total,
         exposure=exposure,
         band=band,
@@ -1238,7 +1244,7 @@ def worst_pairs(
     for a in range(0, n_p, step):
         b = min(n_p, a + step)
         part = perpetrator_subset(perpetrators, slice(a, b))
-        _, _, exposure = pair_ratios(part, victims)
+        *_, exposure = pair_ratios(part, victims)
         if not np.isfinite(exposure).all():
             evaluate_pairs(part, victims, rule_set)  # names the pair, as the whole screen does
         severity = np.abs(np.log(exposure.ravel()))
@@ -1345,7 +1351,7 @@ def result_rows(result: BatchResult, top: int | None = None) -> Iterator[tuple[s
     v_names = [r.name for r in v.rows]
     per_p = [[_num(x) for x in arr.tolist()] for arr in (p.imax_u_um, p.inlet_um, p.gut_lumen_um, p.enterocyte_um)]
     flag_texts = [flag_text(k) for k in range(1 << len(FLAGS))]
-    flat_gut, flat_liver, flat_total = result.gut.ravel(), result.liver.ravel(), result.total.ravel()
+    flat_ratios = (result.gut.ravel(), result.liver.ravel(), result.kidney.ravel(), result.total.ravel())
     flat_exposure = result.exposure.ravel()
     flat_band, flat_study, flat_action, flat_flags = (
         result.band.ravel(),
@@ -1364,7 +1370,7 @@ def result_rows(result: BatchResult, top: int | None = None) -> Iterator[tuple[s
             [v_names[j] for j in jl],
             *([col[i] for i in il] for col in per_p),
             [p.basic[i] for i in il],
-            *([_num(x) for x in arr[idx].tolist()] for arr in (flat_gut, flat_liver, flat_total)),
+            *([_num(x) for x in arr[idx].tolist()] for arr in flat_ratios),
             [v.phenotype[j] for j in jl],
             [_num(x) for x in flat_exposure[idx].tolist()],
             [result.band_names[k] for k in flat_band[idx].tolist()],

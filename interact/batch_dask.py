@@ -64,7 +64,7 @@ def _evaluate_chunk(chunk: PerpetratorTable, victims: VictimTable, rules: RuleSe
     return {k: getattr(r, k) for k in _ARRAYS} | {"band_names": r.band_names}
 
 
-_ARRAYS = ("gut", "liver", "total", "exposure", "band", "action", "study", "flags")
+_ARRAYS = ("gut", "liver", "kidney", "total", "exposure", "band", "action", "study", "flags")
 
 
 def chunk_bounds(n_perpetrators: int, n_victims: int, workers: int) -> list[tuple[int, int]]:

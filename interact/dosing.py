@@ -169,6 +169,9 @@ class RegimenPlan:
     interval: NDArray[np.bool_] = field(repr=False, compare=False)
     taus_h: NDArray[np.float64] = field(repr=False, compare=False)  # the interval candidates' intervals
     codes: NDArray[np.int8] = field(repr=False, compare=False)  # action of each candidate, then AVOID (index -1)
+    # whether any candidate is the exact dose / an interval (exact.any(), interval.any(): asked on every row chunk)
+    has_exact: bool = field(repr=False, compare=False)
+    has_interval: bool = field(repr=False, compare=False)
 
 
 def _check_boundary(name: str, b: tuple[float, float]) -> tuple[float, float]:
@@ -353,6 +356,8 @@ def plan_regimens(
         narrow_therapeutic_index=narrow_therapeutic_index,
         max_units=max_units,
         intervals_h=tuple(sorted(float(t) for t in intervals_h)),
+        has_exact=bool(arrays["exact"].any()),
+        has_interval=bool(arrays["interval"].any()),
         **arrays,
     )
 
@@ -417,12 +422,26 @@ def regimen_feasibility(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | No
     its peak and trough ratios, lie inside their boundaries (inclusive, no
     tolerance).
     """
+    with _quiet():
+        return _candidate_ratios(plan, total, gut)
+
+
+def _quiet() -> np.errstate:
+    """The floating-point states the candidate arithmetic ignores (a row that is not a finite positive ratio gives NaN
+    or inf, never a warning): entered once by each caller of the unguarded helpers below (about 1.6 us each time)."""
+    return np.errstate(invalid="ignore", over="ignore", divide="ignore")
+
+
+def _candidate_ratios(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | None) -> CandidateRatios:
+    """:func:`regimen_feasibility` without its ``np.errstate`` (the caller enters it)."""
     r = np.atleast_1d(np.asarray(total, dtype=float))
     # the gut ratio counts only for judged intervals (a half-life given): not shaped otherwise (a few us of one row)
     g = None if gut is None or plan.half_life_h is None else np.broadcast_to(np.atleast_1d(np.asarray(gut, dtype=float)), r.shape)
     exposure, feasible, judged = _exposure_and_feasibility(plan, r, g)
-    peak = np.full(exposure.shape, np.nan)
-    trough = np.full(exposure.shape, np.nan)
+    peak = np.empty(exposure.shape)  # empty then fill: the same NaN arrays as np.full, in half its time on one row
+    peak.fill(np.nan)
+    trough = np.empty(exposure.shape)
+    trough.fill(np.nan)
     if judged is not None:
         peak[:, plan.interval], trough[:, plan.interval] = judged
     return CandidateRatios(exposure=exposure, peak=peak, trough=trough, feasible=feasible)
@@ -431,25 +450,25 @@ def regimen_feasibility(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | No
 def _exposure_and_feasibility(
     plan: RegimenPlan, total: NDArray[np.float64], gut: NDArray[np.float64] | None
 ) -> tuple[NDArray[np.float64], NDArray[np.bool_], tuple[NDArray[np.float64], NDArray[np.float64]] | None]:
-    """(exposure ratios, feasibility, (peak, trough) of the interval columns or None): rows x candidates."""
+    """(exposure ratios, feasibility, (peak, trough) of the interval columns or None): rows x candidates (called
+    under ``_quiet()``)."""
     r = total[:, None]
-    with np.errstate(invalid="ignore", over="ignore", divide="ignore"):
-        exposure = r * plan.factors[None, :]
-        if plan.exact.any():
-            exposure[:, plan.exact] = np.where(np.isfinite(r) & (r > 0.0), 1.0, np.nan)
-        feasible = _inside(exposure, plan.boundary)
-        if plan.half_life_h is None or not plan.interval.any():
-            return exposure, feasible, None
-        g = np.ones_like(r) if gut is None else gut[:, None]
-        k = _LN2 / plan.half_life_h
-        tau0 = plan.usual_interval_h
-        taus = plan.taus_h[None, :]
-        k_new = k * g / r  # clearance divided by the hepatic (non-gut) part AUCR / Rg
-        base = -math.expm1(-k * tau0)
-        den = -np.expm1(-k_new * taus)
-        pk = g * base / den
-        tr = np.exp(np.log(g) + k * tau0 - k_new * taus + math.log(base) - np.log(den))
-        feasible[:, plan.interval] &= _inside(pk, plan.peak_boundary) & _inside(tr, plan.trough_boundary)
+    exposure = r * plan.factors[None, :]
+    if plan.has_exact:
+        exposure[:, plan.exact] = np.where(np.isfinite(r) & (r > 0.0), 1.0, np.nan)
+    feasible = _inside(exposure, plan.boundary)
+    if plan.half_life_h is None or not plan.has_interval:
+        return exposure, feasible, None
+    g = np.ones_like(r) if gut is None else gut[:, None]
+    k = _LN2 / plan.half_life_h
+    tau0 = plan.usual_interval_h
+    taus = plan.taus_h[None, :]
+    k_new = k * g / r  # clearance divided by the hepatic (non-gut) part AUCR / Rg
+    base = -math.expm1(-k * tau0)
+    den = -np.expm1(-k_new * taus)
+    pk = g * base / den
+    tr = np.exp(np.log(g) + k * tau0 - k_new * taus + math.log(base) - np.log(den))
+    feasible[:, plan.interval] &= _inside(pk, plan.peak_boundary) & _inside(tr, plan.trough_boundary)
     return exposure, feasible, (pk, tr)
 
 
@@ -469,11 +488,11 @@ class RegimenChoice:
 def _scores(plan: RegimenPlan, total: NDArray[np.float64], feasible: NDArray[np.bool_]) -> NDArray[np.float64]:
     """Distance from the usual exposure on the log scale, |log(AUCR x factor)| (0 for the exact dose); inf where infeasible.
 
-    The one ranking of candidates: the choice is the smallest, ties to the earlier candidate.
+    The one ranking of candidates: the choice is the smallest, ties to the earlier candidate (called under
+    ``_quiet()``).
     """
-    with np.errstate(divide="ignore", invalid="ignore"):
-        score = np.abs(np.log(total)[:, None] + plan.log_factors[None, :])
-    if plan.exact.any():
+    score = np.abs(np.log(total)[:, None] + plan.log_factors[None, :])
+    if plan.has_exact:
         score[:, plan.exact] = 0.0
     score[~feasible] = np.inf
     return score
@@ -486,12 +505,12 @@ def _decide(plan: RegimenPlan, total: NDArray[np.float64], score: NDArray[np.flo
     if not plan.candidates:
         chosen = np.full(n, -1, dtype=np.intp)
     else:
-        chosen = np.argmin(score, axis=1).astype(np.intp)  # argmin takes the first of equal scores
+        chosen = np.argmin(score, axis=1)  # intp, a new array; argmin takes the first of equal scores
         chosen[~np.isfinite(score[np.arange(n), chosen])] = -1
     action = plan.codes[chosen]  # chosen = -1 picks AVOID
-    if plan.exact.any():
+    if plan.has_exact:
         action = np.where(plan.exact[np.maximum(chosen, 0)] & (chosen >= 0) & (total < 1.0), np.int8(INCREASE), action)
-    action = np.where(inside, np.int8(NO_CHANGE), action).astype(np.int8)
+    action = np.where(inside, np.int8(NO_CHANGE), action).astype(np.int8, copy=False)
     chosen[inside] = -1
     return action, chosen
 
@@ -499,8 +518,10 @@ def _decide(plan: RegimenPlan, total: NDArray[np.float64], score: NDArray[np.flo
 def _choose_chunk(
     plan: RegimenPlan, total: NDArray[np.float64], gut: NDArray[np.float64] | None
 ) -> tuple[NDArray[np.int8], NDArray[np.intp]]:
-    _, feasible, _ = _exposure_and_feasibility(plan, total, gut)
-    return _decide(plan, total, _scores(plan, total, feasible))
+    with _quiet():
+        _, feasible, _ = _exposure_and_feasibility(plan, total, gut)
+        score = _scores(plan, total, feasible)
+    return _decide(plan, total, score)
 
 
 def choose_regimens(plan: RegimenPlan, total: ArrayLike, gut: ArrayLike | None = None) -> RegimenChoice:
@@ -571,7 +592,7 @@ def _rule_steps(plan: RegimenPlan) -> StepTable | None:
     itself (:func:`_choose_rows`), evaluated at one ratio in each stretch.  Plans are compared by value, so victims
     with the same regimens share one table.
     """
-    if plan.half_life_h is not None and bool(plan.interval.any()):
+    if plan.half_life_h is not None and plan.has_interval:
         return None  # peak and trough depend on the gut ratio too: evaluated directly
     lo, hi = plan.boundary
     f = np.unique(plan.factors[~plan.exact])
@@ -625,7 +646,7 @@ def _feasibility_steps(plan: RegimenPlan) -> StepTable | None:
     Judged on exposure alone, a candidate is feasible while lo <= r x f <= hi: its feasibility changes only at
     r = lo / f and r = hi / f (the exact dose: at none, for a finite positive r).
     """
-    if plan.half_life_h is not None and bool(plan.interval.any()):
+    if plan.half_life_h is not None and plan.has_interval:
         return None
     lo, hi = plan.boundary
     f = np.unique(plan.factors[~plan.exact])
@@ -875,12 +896,13 @@ def suggest_dose(
     unit = plan.dose_unit
     # the rule of choose_regimens for one row, with the ratios and scores kept for the text and the table
     r = np.array([auc_ratio])
-    ratios = regimen_feasibility(plan, r, [gut_ratio])
-    score = _scores(plan, r, ratios.feasible)
+    with _quiet():  # entered once for both
+        ratios = _candidate_ratios(plan, r, [gut_ratio])
+        score = _scores(plan, r, ratios.feasible)
     codes, picks = _decide(plan, r, score)
     code, k = int(codes[0]), int(picks[0])
     # the records the text needs: none inside the boundary, the feasible ones when one is chosen, all for the nearest
-    feasible = [] if code == NO_CHANGE else np.flatnonzero(ratios.feasible[0]).tolist() if k >= 0 else None
+    feasible = [] if code == NO_CHANGE else ratios.feasible[0].nonzero()[0].tolist() if k >= 0 else None
     outcomes = _outcomes(plan, auc_ratio, ratios, feasible)
     exact = plan.usual_dose / auc_ratio
     exact_tau = plan.usual_interval_h * auc_ratio

@@ -342,8 +342,10 @@ class Model:
         organs: dict[str, Any] = {}
         total: Any = None
         for name, organ, prepared, where in self._organs:
-            base = organs.get(organ.shares, 1.0) if organ.shares else 1.0
-            value = 1.0 if prepared is None else _apply(prepared, acts, where, base, organ)
+            if prepared is None:  # no pathways: exactly 1
+                value = 1.0
+            else:
+                value = _apply(prepared, acts, where, organs.get(organ.shares, 1.0) if organ.shares else 1.0, organ)
             organs[name] = value
             total = value if total is None else total * value
         return organs, total

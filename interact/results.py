@@ -368,7 +368,10 @@ def uncertainty_repr(r: UncertaintyResult) -> str:
 def uncertainty_html(r: UncertaintyResult) -> str:
     """The notebook summary of an uncertainty run: percentiles, class and action probabilities, cautions."""
     rows = [("Samples", f"{r.samples:,} ({r.method}, seed {r.seed})"), ("Point AUC ratio", fmt_ratio(r.point_total))]
-    rows += [(f"P{q:g} AUCR (gut, liver)", f"{fmt_ratio(t)} ({fmt_ratio(g)}, {fmt_ratio(h)})") for q, g, h, t in r.percentiles]
+    rows += [
+        (f"P{q:g} AUCR (gut, liver, kidney)", f"{fmt_ratio(t)} ({fmt_ratio(g)}, {fmt_ratio(h)}, {fmt_ratio(k)})")
+        for q, g, h, k, t in r.percentiles
+    ]
     rows += [(f"P(AUCR {op} {b:g})", f"{p:.3f}") for op, b, p in r.exceedance]
     rows += [(f"P(action: {a})", f"{p:.3f}") for a, p in r.action_probabilities if p > 0]
     rows.append(("Varied inputs", ", ".join(v.input.path for v in r.varied)))

@@ -25,11 +25,17 @@ How the user declares them (not part of the scenario file):
 
 PATH names a scenario input as in the scenario file, e.g.
 ``perpetrator.inhibits[0].ki``, ``perpetrator.cmax``,
-``victim.pathways[0].fm`` (see :meth:`ScenarioModel.inputs`).
+``victim.pathways[0].fm``, a transporter route's ``victim.pathways[1].fraction``,
+``victim.renal_fraction`` (see :meth:`ScenarioModel.inputs`).
 
-Sampled fractions are kept inside (0, 1] (values outside are moved to the
-bound and counted), and when sampled fm values add up to more than 1 they
-are scaled down together (counted too).
+Sampled fractions are kept inside (0, 1] (fm, route and renal fractions inside
+[0, 1]; values outside are moved to the bound and counted), and where sampled
+fractions break one of the scenario reader's organ sums they are scaled down
+together (counted too): fm + hepatic uptake + renal fraction at most 1 of
+systemic clearance (with the hepatic clearances: fm at most 1 of CLmet, uptake
+at most 1 of PS_inf, renal fraction at most 1 - the hepatic fraction);
+intestinal efflux at most Fg of the oral dose; renal secretion at most 1 of
+renal clearance.
 """
 
 from __future__ import annotations
@@ -54,7 +60,7 @@ from .dosing import ACTIONS, Regimen, choose_regimens, feasible_fraction, regime
 from .errors import InputError
 from .exposure import enterocyte_um, unbound_cmax_um, unbound_inlet_um
 from .kinetics.conversion import ki_from_ic50
-from .prediction import liver_ratio, reversible_term, route_pathways, routes_of
+from .prediction import Routes, liver_ratio, reversible_term, route_pathways, routes_of
 from .scenario import INTERVAL_KEYS, Inhibition
 from .tables import load_classes, resolve_target
 
@@ -89,6 +95,7 @@ Z975: Final = 1.959963984540054  # standard normal 97.5th percentile (scipy.stat
 MAX_SAMPLES: Final = 5_000_000
 _TINY: Final = 1e-12
 _CHUNK: Final = 250_000  # samples evaluated at once (bounds memory)
+RENAL: Final = "victim.renal_fraction"
 
 
 # --------------------------------------------------------------------------- distributions
@@ -267,10 +274,11 @@ def interval_distribution(lower: float, upper: float, text: str = "") -> Distrib
 
 @dataclass(frozen=True, slots=True, kw_only=True)
 class Ratios:
-    """Gut, liver and total AUC ratios (dimensionless) as arrays of a common shape."""
+    """Gut, liver, kidney and total AUC ratios (dimensionless) as arrays of a common shape (total = gut x liver x kidney)."""
 
     gut: NDArray[np.float64]
     liver: NDArray[np.float64]
+    kidney: NDArray[np.float64]
     total: NDArray[np.float64]
 
 
@@ -346,8 +354,15 @@ class ScenarioModel:
         self._inputs = tuple(inputs)
         self._by_path = {i.path: i for i in inputs}
         self._point: dict[str, float] = {i.path: i.value for i in inputs}
+        # the renal fraction moves the ratio only through renal secretion routes or the hepatic share of the clearances
+        renal_moves = any(r == "renal secretion" for r, _, _ in self._route_inputs) or (
+            self._routes.clearances is not None and not self._hepatic_given
+        )
         self._relevant = tuple(
-            i for i in inputs if not any(i.path.startswith(c.prefix + ".") and c.target not in relevant_targets for c in self._consts)
+            i
+            for i in inputs
+            if not any(i.path.startswith(c.prefix + ".") and c.target not in relevant_targets for c in self._consts)
+            and (i.path != RENAL or renal_moves)
         )
         self._targets: dict[str, int] = {}
         for name in (
@@ -461,10 +476,22 @@ class ScenarioModel:
             for k, pw in enumerate(v.pathways)
             if pw.route == "metabolism"
         ]
-        # transporter routes at their point fractions (not varied); the enzyme fm share what is left of systemic clearance
+        # transporter routes: each fraction an input (path as in the scenario file; efflux only for an oral object drug,
+        # as interact.prediction.routes_of), and the renal fraction that scales the secretion fractions
         self._routes = routes_of(v)
-        fixed = (*self._routes.secretion,) if self._routes.clearances is not None else (*self._routes.uptake, *self._routes.secretion)
-        self._fm_room = 1.0 - sum(f for _, f in fixed)  # with the hepatic clearances, fm are shares of CLmet
+        self._route_inputs = [
+            (
+                pw.route,
+                pw.enzyme,
+                add(f"victim.pathways[{k}].fraction", f"{pw.route} fraction {pw.enzyme} of {v.name}", "", "fraction", pw.fm),
+            )
+            for k, pw in enumerate(v.pathways)
+            if pw.route != "metabolism" and (pw.route != "intestinal efflux" or v.route == "oral")
+        ]
+        self._renal = None if v.renal_fraction is None else add(RENAL, f"renal fraction of {v.name}", "", "fraction", v.renal_fraction)
+        ecm = v.extended_clearance
+        self._hepatic_given = ecm is not None and ecm.hepatic_fraction is not None
+        self._fg_given = v.fg
         self._organs = _model.ORGANS
         if self._routes.clearances is not None:
             liver = _model.Organ(site="liver", form="extended", clearances=self._routes.clearances, fraction=self._routes.hepatic_fraction)
@@ -481,6 +508,35 @@ class ScenarioModel:
     def inputs(self, relevant_only: bool = False) -> tuple[Input, ...]:
         """Every input the model reads (``relevant_only``: only those that can move the AUC ratio)."""
         return self._relevant if relevant_only else self._inputs
+
+    def fraction_groups(self) -> tuple[tuple[tuple[str, ...], str | float], ...]:
+        """The scenario reader's organ sums as (paths, limit): the paths' fractions add up to at most the limit
+        (a number, or the path of the input that is the limit: Fg for intestinal efflux)."""
+        fm = tuple(p for _, p in self._pathways)
+        of = lambda route: tuple(p for r, _, p in self._route_inputs if r == route)  # noqa: E731
+        renal = (self._renal,) if self._renal else ()
+        if self._routes.clearances is None:
+            groups: list[tuple[tuple[str, ...], str | float]] = [((*fm, *of("hepatic uptake"), *renal), 1.0)]
+        else:
+            hepatic = self._routes.hepatic_fraction if self._hepatic_given else 0.0
+            groups = [(fm, 1.0), (of("hepatic uptake"), 1.0), (renal, 1.0 - hepatic)]
+        fg: str | float = "victim.fg" if "victim.fg" in self._point else (1.0 if self._fg_given is None else self._fg_given)
+        groups += [(of("intestinal efflux"), fg), (of("renal secretion"), 1.0)]
+        return tuple((paths, limit) for paths, limit in groups if paths)
+
+    def group_of(self, path: str) -> tuple[tuple[str, ...], str | float] | None:
+        """The organ sum (:meth:`fraction_groups`) ``path`` belongs to, if any."""
+        return next((g for g in self.fraction_groups() if path in g[0]), None)
+
+    def fraction_room(self, path: str) -> float:
+        """The largest value the fraction at ``path`` can take with the others of its organ sum at their point values
+        (at most 1, at least 0)."""
+        group = self.group_of(path)
+        if group is None:
+            return 1.0
+        paths, limit = group
+        whole = self._point[limit] if isinstance(limit, str) else limit
+        return max(0.0, min(1.0, whole - sum(self._point[p] for p in paths if p != path)))
 
     def input(self, path: str) -> Input:
         """The input at ``path``; an :class:`InputError` lists the valid paths otherwise."""
@@ -510,7 +566,7 @@ class ScenarioModel:
         pathways = [_model.Pathway(target=t[enzyme], organ="liver", fraction=get(path)) for enzyme, path in self._pathways]
         if self._gut_enzyme is not None:
             pathways.insert(0, _model.Pathway(target=t[self._gut_enzyme], organ="gut", fraction=get("victim.fg")))
-        pathways += route_pathways(self._routes, t)
+        pathways += route_pathways(self._routes_at(get), t)
         kdeg = {
             (t[enzyme], site): get(path)
             for enzyme, paths in self._kdeg.items()
@@ -520,11 +576,24 @@ class ScenarioModel:
         }
         kidney_conc = [unbound_cmax_um(get(sp.cmax), self._fu(sp, get)) for sp in self._species]
         sites = {"liver": liver_conc, "gut": gut_conc, "kidney": kidney_conc}
-        r = _model.Model(self._acting(get), pathways, self._organs).evaluate(sites, kdeg)
+        organs = self._organs
+        if self._routes.clearances is not None and not self._hepatic_given and RENAL in vals:
+            # the hepatic share of systemic clearance is 1 - the renal fraction when not given (routes_of)
+            organs = {**organs, "liver": dataclasses.replace(organs["liver"], fraction=1.0 - get(RENAL))}
+        r = _model.Model(self._acting(get), pathways, organs).evaluate(sites, kdeg)
         gut, liver, kidney = np.broadcast_arrays(
             np.asarray(r.gut, dtype=float), np.asarray(r.liver, dtype=float), np.asarray(r.kidney, dtype=float)
         )
-        return Ratios(gut=gut, liver=liver, total=gut * liver * kidney)
+        return Ratios(gut=gut, liver=liver, kidney=kidney, total=gut * liver * kidney)
+
+    def _routes_at(self, get: Callable[[str], Any]) -> Routes:
+        """The transporter routes with the fractions ``get`` gives (:func:`interact.prediction.routes_of`'s arithmetic)."""
+        if not self._route_inputs:
+            return self._routes
+        renal = get(self._renal) if self._renal else 0.0
+        of = lambda route: tuple((t, get(p)) for r, t, p in self._route_inputs if r == route)  # noqa: E731
+        secretion = tuple((t, renal * f) for t, f in of("renal secretion"))
+        return dataclasses.replace(self._routes, efflux=of("intestinal efflux"), uptake=of("hepatic uptake"), secretion=secretion)
 
     def _concentrations(self, get: Callable[[str], Any]) -> tuple[list[Any], list[Any]]:
         """Unbound concentrations (uM) of each species at the hepatic inlet and in the enterocytes (:mod:`interact.exposure`)."""
@@ -673,7 +742,7 @@ class UncertaintyResult:
     seed: int
     varied: tuple[Varied, ...]
     point_total: float
-    percentiles: tuple[tuple[float, float, float, float], ...]  # (percent, gut, liver, total)
+    percentiles: tuple[tuple[float, float, float, float, float], ...]  # (percent, gut, liver, kidney, total)
     exceedance: tuple[tuple[str, float, float], ...]  # (">=" | "<=", threshold, probability)
     classes: tuple[tuple[str, float], ...]  # (label, probability), all labels
     most_probable_class: str
@@ -681,7 +750,7 @@ class UncertaintyResult:
     point_action: str
     action_probabilities: tuple[tuple[str, float], ...]
     action_change_probability: float
-    fm_scaled: int
+    fm_scaled: int  # samples whose fractions broke an organ sum and were scaled down (fm, transporter routes, renal fraction)
     boundary: tuple[float, float]
     regimen_probabilities: tuple[RegimenProbability, ...]  # the usual regimen, every point-feasible option, and the best
     best_regimen: RegimenProbability  # the highest probability of staying inside (ties: the usual regimen, then dose changes)
@@ -689,10 +758,11 @@ class UncertaintyResult:
     total: NDArray[np.float64] = field(repr=False, compare=False)
     gut: NDArray[np.float64] = field(default_factory=lambda: np.empty(0), repr=False, compare=False)
     liver: NDArray[np.float64] = field(default_factory=lambda: np.empty(0), repr=False, compare=False)
+    kidney: NDArray[np.float64] = field(default_factory=lambda: np.empty(0), repr=False, compare=False)
     inputs: dict[str, NDArray[np.float64]] = field(default_factory=dict, repr=False, compare=False)
 
     def percentile(self, q: float) -> float:
-        for pct, _, _, t in self.percentiles:
+        for pct, *_, t in self.percentiles:
             if pct == q:
                 return t
         raise KeyError(q)
@@ -705,12 +775,12 @@ class UncertaintyResult:
         dict of str to ndarray
             One column per varied input, named by its path (values in the
             input's canonical unit, :attr:`Input.unit`, after clipping to its
-            bounds and scaling of fm sums), then ``auc_ratio_gut``,
-            ``auc_ratio_liver`` and ``auc_ratio`` (dimensionless).
+            bounds and scaling of organ sums), then ``auc_ratio_gut``,
+            ``auc_ratio_liver``, ``auc_ratio_kidney`` and ``auc_ratio`` (dimensionless).
         """
         n = self.total.size
         out = {path: np.broadcast_to(x, (n,)) for path, x in self.inputs.items()}
-        out.update(auc_ratio_gut=self.gut, auc_ratio_liver=self.liver, auc_ratio=self.total)
+        out.update(auc_ratio_gut=self.gut, auc_ratio_liver=self.liver, auc_ratio_kidney=self.kidney, auc_ratio=self.total)
         return out
 
     def to_records(self) -> np.ndarray:
@@ -806,11 +876,12 @@ def _evaluate_draws(
     drawn: dict[str, NDArray[np.float64]],
     samples: int,
     progress: Callable[[int, int], None] | None = None,
-) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64], dict[str, int], int]:
-    """Gut, liver and total AUC ratios of drawn inputs, after moving draws to their bounds and scaling fm sums over 1.
+) -> tuple[Ratios, dict[str, int], int]:
+    """Gut, liver, kidney and total AUC ratios of drawn inputs, after moving draws to their bounds and scaling
+    fractions that break an organ sum (:func:`_scale_groups`).
 
     ``drawn`` (path -> array of ``samples`` values, canonical units) is updated in place with the values used.
-    Returns the ratios, the count of draws moved to a bound per path, and the count of samples whose fm were scaled.
+    Returns the ratios, the count of draws moved to a bound per path, and the count of samples whose fractions were scaled.
     """
     adjusted: dict[str, int] = {}
     for inp, dist in pairs:
@@ -819,7 +890,7 @@ def _evaluate_draws(
         if x is None:
             continue
         # only the bounds a distribution can cross are checked: a log-normal is positive, a uniform stays in its range
-        low = 0.0 if inp.path.endswith(".fm") else _TINY
+        low = 0.0 if inp.path.endswith((".fm", ".fraction")) or inp.path == RENAL else _TINY
         high = 1.0 if inp.is_fraction else math.inf
         check_low = dist.kind == "uniform" and dist.low < low
         check_high = dist.kind == "lognormal" and high < math.inf
@@ -829,38 +900,58 @@ def _evaluate_draws(
             adjusted[inp.path] = int(bad)
             if bad:
                 drawn[inp.path] = np.clip(x, low, high)
-    fm_paths = [p for _, p in model._pathways]
-    fm_scaled = 0
-    dist_of = {i.path: d for i, d in pairs}
-
-    def fm_max(path: str) -> float:
-        d = dist_of.get(path)
-        if d is None or d.kind == "fixed":
-            return model.point(path)
-        return d.high if d.kind == "uniform" else 1.0
-
-    room = model._fm_room  # 1 less the fixed transporter shares of systemic clearance
-    if any(p in drawn for p in fm_paths) and sum(fm_max(p) for p in fm_paths) > room:
-        total_fm = sum((drawn.get(p, model.point(p)) for p in fm_paths), start=np.zeros(samples))
-        over = total_fm > room
-        fm_scaled = int(np.count_nonzero(over))
-        if fm_scaled:
-            factor = np.where(over, room / np.where(over, total_fm, 1.0), 1.0)
-            for p in fm_paths:
-                drawn[p] = np.asarray(drawn.get(p, model.point(p))) * factor
+    fm_scaled = _scale_groups(model, pairs, drawn, samples)
 
     gut = np.empty(samples)
     liver = np.empty(samples)
+    kidney = np.empty(samples)
     total = np.empty(samples)
     for start in range(0, samples, _CHUNK):
         stop = min(samples, start + _CHUNK)
         r = model.evaluate({k: v[start:stop] for k, v in drawn.items()})
         gut[start:stop] = np.broadcast_to(r.gut, (stop - start,))
         liver[start:stop] = np.broadcast_to(r.liver, (stop - start,))
+        kidney[start:stop] = np.broadcast_to(r.kidney, (stop - start,))
         total[start:stop] = np.broadcast_to(r.total, (stop - start,))
         if progress is not None:
             progress(stop, samples)
-    return gut, liver, total, adjusted, fm_scaled
+    return Ratios(gut=gut, liver=liver, kidney=kidney, total=total), adjusted, fm_scaled
+
+
+def _scale_groups(
+    model: ScenarioModel, pairs: list[tuple[Input, Distribution]], drawn: dict[str, NDArray[np.float64]], samples: int
+) -> int:
+    """Per sample, scale down together the varied fractions of each organ sum they break (the scenario reader's
+    sums, :meth:`ScenarioModel.fraction_groups`): the drawn ones, and every fm when any fm is drawn; the others stay
+    at their point values and leave the rest of the limit.  ``drawn`` is updated in place; returns the number of
+    samples scaled."""
+    dist_of = {i.path: d for i, d in pairs}
+    fm_paths = {p for _, p in model._pathways}
+    any_fm = any(p in drawn for p in fm_paths)
+
+    def most(path: str) -> float:
+        d = dist_of.get(path)
+        if path not in drawn or d is None or d.kind == "fixed":
+            return model.point(path)
+        return d.high if d.kind == "uniform" else 1.0
+
+    scaled = np.zeros(samples, dtype=bool)
+    for paths, limit in model.fraction_groups():
+        moving = [p for p in paths if p in drawn or (any_fm and p in fm_paths)]
+        if not moving:
+            continue
+        whole = drawn.get(limit, model.point(limit)) if isinstance(limit, str) else limit
+        room = np.maximum(np.asarray(whole, dtype=float) - sum(model.point(p) for p in paths if p not in moving), 0.0)
+        if np.all(sum(most(p) for p in moving) <= room):
+            continue  # no draw can break this sum
+        total = sum((drawn.get(p, model.point(p)) for p in moving), start=np.zeros(samples))
+        over = total > room
+        if over.any():
+            factor = np.where(over, room / np.where(over, total, 1.0), 1.0)
+            for p in moving:
+                drawn[p] = np.asarray(drawn.get(p, model.point(p))) * factor
+            scaled |= over
+    return int(np.count_nonzero(scaled))
 
 
 def _refuse_nonfinite(total: NDArray[np.float64], pairs: list[tuple[Input, Distribution]]) -> None:
@@ -923,9 +1014,9 @@ def run_uncertainty(
             "vary", "nothing", "declares no uncertain input and the scenario carries no interval; give --vary PATH=SPEC or a --spec file"
         )
     drawn = _draw(pairs, samples, method, seed)
-    gut, liver, total, adjusted, fm_scaled = _evaluate_draws(model, pairs, drawn, samples, progress)
-    _refuse_nonfinite(total, pairs)
-    result = summarise(assessment, model, pairs, adjusted, fm_scaled, gut, liver, total, method=method, seed=seed)
+    ratios, adjusted, fm_scaled = _evaluate_draws(model, pairs, drawn, samples, progress)
+    _refuse_nonfinite(ratios.total, pairs)
+    result = summarise(assessment, model, pairs, adjusted, fm_scaled, ratios, method=method, seed=seed)
     return dataclasses.replace(result, inputs=dict(drawn))
 
 
@@ -935,20 +1026,19 @@ def summarise(
     pairs: list[tuple[Input, Distribution]],
     adjusted: dict[str, int],
     fm_scaled: int,
-    gut: NDArray[np.float64],
-    liver: NDArray[np.float64],
-    total: NDArray[np.float64],
+    ratios: Ratios,
     *,
     method: str,
     seed: int,
 ) -> UncertaintyResult:
     classes = load_classes()
+    gut, liver, kidney, total = ratios.gut, ratios.liver, ratios.kidney, ratios.total
     n = total.size
     # one sort of the total ratios serves its percentiles, the threshold counts, the classes and the
     # actions (counts do not depend on the order; searching sorted values is fast)
     ts = np.sort(total)
-    pg, pl, pt = (np.percentile(x, PERCENTS) for x in (gut, liver, ts))
-    percentiles = tuple((q, float(pg[k]), float(pl[k]), float(pt[k])) for k, q in enumerate(PERCENTS))
+    pg, pl, pk, pt = (np.percentile(x, PERCENTS) for x in (gut, liver, kidney, ts))
+    percentiles = tuple((q, float(pg[k]), float(pl[k]), float(pk[k]), float(pt[k])) for k, q in enumerate(PERCENTS))
     exceed = [
         (">=", b.bound, float(n - np.searchsorted(ts, b.bound, side="left")) / n) for b in sorted(classes.inhibition, key=lambda b: b.bound)
     ]
@@ -988,6 +1078,7 @@ def summarise(
         total=total,
         gut=gut,
         liver=liver,
+        kidney=kidney,
     )
 
 
@@ -1196,10 +1287,10 @@ def sobol_indices(
 
     def func(x: NDArray[np.float64]) -> NDArray[np.float64]:
         drawn = {inp.path: np.array(x[k], dtype=float) for k, (inp, _) in enumerate(active)}
-        gut, liver, total, _, _ = _evaluate_draws(model, pairs, drawn, x.shape[1])
-        _refuse_nonfinite(total, pairs)
+        r, _, _ = _evaluate_draws(model, pairs, drawn, x.shape[1])
+        _refuse_nonfinite(r.total, pairs)
         # three outputs (gut, liver, total): scipy 1.17 fails on a single input with a single output (a scalar result)
-        return np.vstack([gut, liver, total])
+        return np.vstack([r.gut, r.liver, r.total])
 
     first, total = variance_indices(func, [_Marginal(d, i.value) for i, d in active], samples=samples, seed=seed)
     return VarianceIndices(
@@ -1216,13 +1307,12 @@ DEFAULT_FOLD: Final = 2.0
 
 
 def _default_range(inp: Input, model: ScenarioModel) -> tuple[float, float]:
-    """x/÷ 2 around the point value; fractions capped at 1 (fm so that the fm values still add up to at most 1)."""
+    """x/÷ 2 around the point value; fractions capped at 1 (and so that their organ sum still holds)."""
     lo, hi = inp.value / DEFAULT_FOLD, inp.value * DEFAULT_FOLD
     if inp.is_fraction:
         cap = 1.0
-        if inp.path.endswith(".fm"):
-            others = sum(model.point(p) for _, p in model._pathways if p != inp.path)
-            cap = max(inp.value, model._fm_room - others)
+        if model.group_of(inp.path) is not None:
+            cap = max(inp.value, model.fraction_room(inp.path))
         hi = min(hi, cap)
     return lo, hi
 
@@ -1349,8 +1439,7 @@ def crossing_points(model: ScenarioModel) -> tuple[CrossingPoint, ...]:
     if main is not None:
         enzyme, path = main
         inp = model.input(path)
-        others = sum(model.point(p) for _, p in model._pathways if p != path)
-        cap = max(0.0, model._fm_room - others)
+        cap = model.fraction_room(path)
 
         def h(fm: float) -> float:
             return total_at(path, fm) - boundary
@@ -1389,8 +1478,7 @@ def sensitivity(assessment: Assessment, vary: Sequence[tuple[str, str]] = ()) ->
         eff = effects.get(enzyme)
         if eff is not None and eff.liver.reversible < 1.0:
             ratio = 1.0 / eff.liver.reversible - 1.0  # sum [I]/Ki,u on that enzyme in the liver
-        others = sum(model.point(p) for _, p in model._pathways if p != path)
-        grid = np.linspace(0.0, max(0.0, model._fm_room - others), 101)
+        grid = np.linspace(0.0, model.fraction_room(path), 101)
         tot = np.broadcast_to(model.evaluate({path: grid}).total, grid.shape)
         curves.append(
             FmCurve(label=f"this scenario (fm {enzyme} varied)", fm=tuple(float(x) for x in grid), aucr=tuple(float(x) for x in tot))

@@ -192,9 +192,11 @@ def check_fraction_size(value: float, field: str, shown: object) -> None:
 
 
 @lru_cache(maxsize=512)
-def _dimensionality(container: Any) -> Any:
-    """A unit's dimensionality, remembered (pint's own lookup and comparison cost about 0.7 us a value)."""
-    return Quantity(1.0, container).dimensionality
+def _kind(container: Any) -> str:
+    """Whether a unit is "molar" (a concentration), an "amount" or neither (""), remembered: pint's own lookup and
+    the comparison of dimensionalities cost about 1.5 us a value."""
+    dim = Quantity(1.0, container).dimensionality
+    return "molar" if dim == _MOLAR else "amount" if dim == _AMOUNT else ""
 
 
 def magnitude(quantity: pint.Quantity, unit: str) -> float:
@@ -208,7 +210,7 @@ def concentration_um(quantity: pint.Quantity, molar_mass: pint.Quantity | None, 
     Mass to molar by cached factors (a few microseconds) rather than pint's ``chemistry`` context (``units.txt``,
     a few hundred microseconds a call); ``tests/test_units.py`` holds the two equal over random values.
     """
-    if _dimensionality(quantity._units) == _MOLAR:
+    if _kind(quantity._units) == "molar":
         return magnitude(quantity, "uM")
     if molar_mass is None:
         raise UnitError(
@@ -222,7 +224,7 @@ def concentration_um(quantity: pint.Quantity, molar_mass: pint.Quantity | None, 
 
 def amount_umol(quantity: pint.Quantity, molar_mass: pint.Quantity | None, *, field: str) -> float:
     """A dose in micromole; a mass dose needs the molar mass."""
-    if _dimensionality(quantity._units) == _AMOUNT:
+    if _kind(quantity._units) == "amount":
         return magnitude(quantity, "umol")
     if molar_mass is None:
         raise UnitError(

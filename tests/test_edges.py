@@ -372,7 +372,7 @@ def test_uncertainty_refuses_to_summarise_a_non_finite_ratio(monkeypatch: pytest
         r = original(self, values)
         total = np.array(r.total, dtype=float, copy=True)
         total.flat[0] = np.nan
-        return unc.Ratios(gut=r.gut, liver=r.liver, total=total)
+        return unc.Ratios(gut=r.gut, liver=r.liver, kidney=r.kidney, total=total)
 
     monkeypatch.setattr(unc.ScenarioModel, "evaluate", with_a_hole)
     with pytest.raises(InputError, match=r"perpetrator\.cmax.*not a finite number in 1 of 200"):

@@ -243,7 +243,7 @@ def test_uncertainty_model_takes_the_routes_and_equals_assess_at_point_values() 
     assert np.all(model.evaluate(arrays).total == a.prediction.total)
     res = run_uncertainty(a, [("perpetrator.cmax", "cv:30%"), ("victim.pathways[2].fm", "uniform:0.05,0.5")], samples=256, seed=3)
     assert np.all(res.total >= 1.0) and np.all(res.total <= a.prediction.ceiling_total)
-    assert res.fm_scaled > 0  # fm above 0.35 does not fit beside uptake 0.5 and renal secretion 0.25 x 0.6: scaled down
+    assert res.fm_scaled > 0  # fm above 0.25 does not fit beside uptake 0.5 and renal fraction 0.25 (the reader's sum): scaled down
 
 
 @pytest.mark.parametrize("which", ["elsby-given-sites", "extended-clearance", "active-moiety"])
@@ -265,6 +265,12 @@ def test_uncertainty_model_with_given_sites_clearances_and_active_moiety_equals_
     a = assess(scenario)
     model = ScenarioModel(a)
     assert float(model.evaluate().total) == pytest.approx(a.prediction.total, rel=1e-12)
+    # every input as an array at its point value (route and renal fractions too: with the hepatic clearances and
+    # no hepatic_fraction, the hepatic share follows the renal fraction)
+    arrays = {i.path: np.full(3, i.value) for i in model.inputs()}
+    assert np.all(model.evaluate(arrays).total == pytest.approx(a.prediction.total, rel=1e-12))
+    if which == "extended-clearance" and a.scenario.victim.renal_fraction:
+        assert model.evaluate({"victim.renal_fraction": 0.0}).liver != model.evaluate().liver
     res = run_uncertainty(a, [("perpetrator.cmax", "cv:30%")], samples=128, seed=1)
     assert np.all(res.total >= 1.0 - 1e-12) and np.all(res.total <= a.prediction.ceiling_total * (1 + 1e-12))
     if which == "elsby-given-sites":  # Cmax does not move the given Iin,max,u or I,ent: the ratio stays put

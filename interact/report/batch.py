@@ -59,6 +59,7 @@ SHOWN: Final = (
     "Iin,max,u (uM)",
     "AUCR gut",
     "AUCR liver",
+    "AUCR kidney",
     "AUCR",
     "class",
     "study indicated (mechanistic model)",
@@ -66,7 +67,7 @@ SHOWN: Final = (
     "action",
     "flags",
 )
-_RATIOS: Final = ("AUCR gut", "AUCR liver", "AUCR")
+_RATIOS: Final = ("AUCR gut", "AUCR liver", "AUCR kidney", "AUCR")
 
 
 def _basic_rounded(cell: str) -> str:
@@ -151,7 +152,7 @@ def result_batches(
     }
     yes_no = _strings(["no", "yes"])
     per_p = (p.imax_u_um, p.inlet_um, p.gut_lumen_um, p.enterocyte_um)
-    per_pair = (result.gut.ravel(), result.liver.ravel(), result.total.ravel())
+    per_pair = (result.gut.ravel(), result.liver.ravel(), result.kidney.ravel(), result.total.ravel())
     exposure = result.exposure.ravel()
     band, study, action, bits = result.band.ravel(), result.study.ravel(), result.action.ravel(), result.flags.ravel()
     for start in range(0, order.size, block):

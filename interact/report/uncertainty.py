@@ -57,7 +57,7 @@ def uncertainty_sections(r: UncertaintyResult, scenario: Scenario | None = None)
         )
         for v in r.varied
     )
-    pct_rows = tuple((f"{q:g}th", fmt_ratio(g), fmt_ratio(h), fmt_ratio(t)) for q, g, h, t in r.percentiles)
+    pct_rows = tuple((f"{q:g}th", fmt_ratio(g), fmt_ratio(h), fmt_ratio(k), fmt_ratio(t)) for q, g, h, k, t in r.percentiles)
     exc_rows = tuple((f"AUCR {op} {b:g}", _pct(p)) for op, b, p in r.exceedance)
     class_rows = tuple((label, _pct(p)) for label, p in r.classes if p > 0 or label == r.point_class)
     action_rows = tuple((a, _pct(p)) for a, p in r.action_probabilities if p > 0 or a == r.point_action)
@@ -65,14 +65,17 @@ def uncertainty_sections(r: UncertaintyResult, scenario: Scenario | None = None)
         Note(text=head, kind="result"),
         f"{r.samples:,} samples, {method}, seed {r.seed}: the same seed gives the same numbers.",
         Table(headers=("input", "meaning", "point value", "distribution", "as declared", "samples moved to a bound"), rows=dist_rows),
-        Table(headers=("percentile", "gut AUCR", "liver AUCR", "total AUCR"), rows=pct_rows),
+        Table(headers=("percentile", "gut AUCR", "liver AUCR", "kidney AUCR", "total AUCR"), rows=pct_rows),
         Table(headers=("threshold", "probability"), rows=exc_rows),
         Table(headers=("class", "probability"), rows=class_rows),
         Table(headers=("suggested action", "probability"), rows=action_rows),
     ]
     blocks.extend(regimen_probability_blocks(r))
     if r.fm_scaled:
-        blocks.append(f"In {r.fm_scaled:,} samples the fm values added up to more than 1 and were scaled down together.")
+        blocks.append(
+            f"In {r.fm_scaled:,} samples the sampled fractions broke an organ sum (fm + hepatic uptake + renal fraction at most 1, "
+            "efflux at most Fg, renal secretion at most 1) and were scaled down together."
+        )
     blocks.append(
         "Distributions: log-normal from a CV (sigma = sqrt(ln(1 + CV^2))) or from a 95% interval "
         "(median = sqrt(lower x upper), sigma = ln(upper/lower) / 3.92); uniform between bounds. "
@@ -239,7 +242,7 @@ def uncertainty_to_dict(r: UncertaintyResult, s: Sensitivity | None = None) -> d
             }
             for v in r.varied
         ],
-        "percentiles": [{"percent": q, "gut": g, "liver": h, "total": t} for q, g, h, t in r.percentiles],
+        "percentiles": [{"percent": q, "gut": g, "liver": h, "kidney": k, "total": t} for q, g, h, k, t in r.percentiles],
         "exceedance": [{"comparison": op, "threshold": b, "probability": p} for op, b, p in r.exceedance],
         "classes": {label: p for label, p in r.classes},
         "most_probable_class": r.most_probable_class,

@@ -96,6 +96,7 @@ def _expected(result: BatchResult, top: int | None, clean=str) -> dict[str, list
         "basic models": [p.basic[i] for i in ii],
         "AUCR gut": flat(result.gut),
         "AUCR liver": flat(result.liver),
+        "AUCR kidney": flat(result.kidney),
         "AUCR": flat(result.total),
         "phenotype": [v.phenotype[j] for j in jj],
         "exposure vs normal": flat(result.exposure),
@@ -106,7 +107,10 @@ def _expected(result: BatchResult, top: int | None, clean=str) -> dict[str, list
     }
 
 
-NUMBERS = ("Imax,u (uM)", "Iin,max,u (uM)", "Igut (uM)", "I,ent (uM)", "AUCR gut", "AUCR liver", "AUCR", "exposure vs normal")
+NUMBERS = (
+    *("Imax,u (uM)", "Iin,max,u (uM)", "Igut (uM)", "I,ent (uM)"),
+    *("AUCR gut", "AUCR liver", "AUCR kidney", "AUCR", "exposure vs normal"),
+)
 
 
 def _read_csv(data: bytes) -> pa.Table:

@@ -106,6 +106,7 @@ def test_each_pair_equals_assess_alone(texts: tuple[str, str]) -> None:
             pr = a.prediction
             assert result.total[i, j] == pr.total, (i, j)
             assert result.gut[i, j] == pr.gut and result.liver[i, j] == pr.liver
+            assert result.kidney[i, j] == pr.kidney == 1.0  # no secretion routes in these tables
             assert ACTIONS[result.action[i, j]] == a.dose.action  # the same regimen rule, half-life included
             band = classes.classify(pr.total)
             assert labels[result.band[i, j]] == (

@@ -53,6 +53,7 @@ def tables(draw: st.DrawFn) -> tuple[str, str]:
         fm, up, renal = draw(st.floats(0.0, 0.3)), draw(st.floats(0.0, 0.4)), draw(st.floats(0.0, 0.3))
         fg = draw(st.floats(0.5, 1.0))
         efflux = draw(st.floats(0.0, 0.5))
+        fm_text = draw(st.sampled_from(["", repr(fm)]))
         vrows.append(
             [
                 f"V{k}",
@@ -61,7 +62,7 @@ def tables(draw: st.DrawFn) -> tuple[str, str]:
                 draw(st.sampled_from(["", repr(fg)])),
                 draw(st.sampled_from(["", "oral", "intravenous"])),
                 repr(renal),
-                draw(st.sampled_from(["", repr(fm)])),
+                fm_text,
                 draw(st.sampled_from(["", repr(efflux)])),
                 draw(st.sampled_from(["", repr(up)])),
                 draw(st.sampled_from(["", repr(draw(st.floats(0.0, 1.0)))])),
@@ -86,6 +87,12 @@ def test_each_pair_with_routes_equals_assess_alone(texts: tuple[str, str]) -> No
             assert untouched == any("has no entry for the victim's pathway" in w for w in a.warnings)
             assert result.gut[i, j] == pytest.approx(pr.gut, rel=1e-12)
             assert result.liver[i, j] == pytest.approx(pr.liver, rel=1e-12)
+            assert result.kidney[i, j] == pytest.approx(pr.kidney, rel=1e-12)
+    # the three organ columns multiply to the total for every pair
+    product = result.gut * result.liver * result.kidney
+    assert product == pytest.approx(result.total, rel=1e-12)
+    cols = result.columns()
+    assert cols["auc_ratio_gut"] * cols["auc_ratio_liver"] * cols["auc_ratio_kidney"] == pytest.approx(cols["auc_ratio"], rel=1e-12)
 
 
 def test_a_route_column_error_names_the_column() -> None:

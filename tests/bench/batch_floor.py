@@ -6,7 +6,7 @@ It reads the bench's two CSV tables with numpy (``genfromtxt``; units fixed by t
 validation), evaluates the same equations as interact (unbound Cmax, hepatic inlet, enterocyte and gut-lumen
 concentrations; Ki,u = Ki x fu,inc; the basic R1 values; the mechanistic static model's gut, liver and total AUC
 ratios), a class band, the study verdict, a plain dose action (reduce / increase / no change by the no-effect
-boundary) and the same flag bits, ranks every pair worst first (largest |log AUCR|) and writes the same 17
+boundary) and the same flag bits, ranks every pair worst first (largest |log AUCR|) and writes the same 18
 columns with the same writer (pyarrow's CSV writer, or its Parquet writer for an OUT ending in .parquet, in blocks of 65,536
 rows) to an ordinary file (no atomic
 replace, no fsync).  It does not import interact: the constants (physiology defaults, fu,p floor, cutoffs, class
@@ -75,9 +75,10 @@ def main(p_path: str, v_path: str, out_path: str, constants: str) -> None:
     flags = (fu_given < c["fu_floor"])[:, None].astype(np.uint8) << 1 | not_inhibited.astype(np.uint8) << 3
     flags |= basic_flag[:, None].astype(np.uint8) << 4
     order = np.argsort(-np.abs(np.log(total.ravel())), kind="stable")
-    # the same 17 columns, the same writer
+    # the same 18 columns (its victims have no secretion routes: a kidney ratio of 1), the same writer
     names = ["rank", "perpetrator", "victim", "Imax,u (uM)", "Iin,max,u (uM)", "Igut (uM)", "I,ent (uM)", "basic models", "AUCR gut"]
-    names += ["AUCR liver", "AUCR", "phenotype", "exposure vs normal", "class", "study indicated (mechanistic model)", "action", "flags"]
+    names += ["AUCR liver", "AUCR kidney", "AUCR"]
+    names += ["phenotype", "exposure vs normal", "class", "study indicated (mechanistic model)", "action", "flags"]
     p_text, v_text, basic_text = pa.array(p_names.tolist()), pa.array(v_names.tolist()), pa.array(basic)
     band_text = pa.array(c["band_names"])
     action_text = pa.array(["no change", "reduce dose", "increase dose"])
@@ -104,6 +105,7 @@ def main(p_path: str, v_path: str, out_path: str, constants: str) -> None:
                 basic_text.take(ii),
                 pa.array(gut.ravel()[idx]),
                 pa.array(liver.ravel()[idx]),
+                pa.array(np.ones(idx.size)),
                 pa.array(total.ravel()[idx]),
                 no_phenotype.take(np.zeros(idx.size, dtype=np.int8)),
                 pa.array(total.ravel()[idx]),

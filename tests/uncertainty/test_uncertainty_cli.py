@@ -57,8 +57,8 @@ def test_spec_file(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
 def test_markdown_tables(capsys: pytest.CaptureFixture[str]) -> None:
     assert main(["uncertainty", DEMO, "--vary", "victim.fg=uniform:0.3,0.6", "--samples", "500", "--format", "markdown"]) == 0
     out = capsys.readouterr().out
-    assert "| percentile | gut AUCR | liver AUCR | total AUCR |" in out
-    assert "|---|---|---|---|" in out
+    assert "| percentile | gut AUCR | liver AUCR | kidney AUCR | total AUCR |" in out
+    assert "|---|---|---|---|---|" in out
 
 
 def test_list_inputs(capsys: pytest.CaptureFixture[str]) -> None:

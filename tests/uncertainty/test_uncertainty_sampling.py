@@ -126,7 +126,7 @@ def test_zero_width_distributions_reproduce_point_estimate(spec: str, method: st
     vary = [(i.path, spec) for i in model.inputs()]
     res = run_uncertainty(a, vary, samples=64, seed=5, method=method)
     assert np.all(res.total == a.prediction.total)
-    assert all(p[3] == a.prediction.total for p in res.percentiles)
+    assert all(p[4] == a.prediction.total for p in res.percentiles)
     assert res.action_change_probability == 0.0
     assert res.point_action == a.dose.action
 
