@@ -70,6 +70,7 @@ __all__ = [
     "Distribution",
     "FmCurve",
     "Input",
+    "OrganIndices",
     "Ratios",
     "ScenarioModel",
     "Sensitivity",
@@ -1178,6 +1179,25 @@ class Sensitivity:
 SOBOL_SAMPLES: Final = 4096
 
 
+#: the organ ratios whose variance-based indices are reported beside the total's
+ORGAN_OUTPUTS: Final = ("gut", "liver", "kidney")
+
+
+@dataclass(frozen=True, slots=True, kw_only=True)
+class OrganIndices:
+    """First-order and total Sobol' indices of one organ's AUC ratio (one value per input).
+
+    ``constant`` is True when the organ's ratio took one value over the whole design (no sampled
+    input moves it): its variance is 0, so no input has a share of it and its indices are 0
+    (scipy.stats.sobol_indices sets indices of a null variance to 0; the flag says why they are).
+    """
+
+    organ: str
+    first_order: tuple[float, ...]
+    total_order: tuple[float, ...]
+    constant: bool
+
+
 @dataclass(frozen=True, slots=True, kw_only=True)
 class VarianceIndices:
     """First-order and total Sobol' indices of the AUC ratio over the declared input distributions.
@@ -1195,15 +1215,21 @@ class VarianceIndices:
     evaluations: int
     seed: int
     output: str = "AUC ratio (total)"
+    organs: tuple[OrganIndices, ...] = ()  # the same indices of the gut, liver and kidney ratios
 
     def as_columns(self) -> dict[str, Any]:
-        """``input`` (paths), ``label``, ``first_order`` and ``total_order`` as named columns."""
-        return {
+        """``input`` (paths), ``label``, ``first_order`` and ``total_order`` (of the total AUC ratio), then
+        ``first_order_ORGAN`` and ``total_order_ORGAN`` for gut, liver and kidney, as named columns."""
+        out: dict[str, Any] = {
             "input": [i.path for i in self.inputs],
             "label": [i.label for i in self.inputs],
             "first_order": np.asarray(self.first_order),
             "total_order": np.asarray(self.total_order),
         }
+        for o in self.organs:
+            out[f"first_order_{o.organ}"] = np.asarray(o.first_order)
+            out[f"total_order_{o.organ}"] = np.asarray(o.total_order)
+        return out
 
     def to_pandas(self) -> Any:
         """:meth:`as_columns` as a pandas DataFrame (needs pandas: ``pip install interact[data]``)."""
@@ -1285,21 +1311,35 @@ def sobol_indices(
     if not active:
         return None
 
+    moved = np.zeros(len(ORGAN_OUTPUTS), dtype=bool)  # which organ ratios changed anywhere in the design
+
     def func(x: NDArray[np.float64]) -> NDArray[np.float64]:
         drawn = {inp.path: np.array(x[k], dtype=float) for k, (inp, _) in enumerate(active)}
         r, _, _ = _evaluate_draws(model, pairs, drawn, x.shape[1])
         _refuse_nonfinite(r.total, pairs)
-        # three outputs (gut, liver, total): scipy 1.17 fails on a single input with a single output (a scalar result)
-        return np.vstack([r.gut, r.liver, r.total])
+        # several outputs (gut, liver, kidney, total): scipy 1.17 fails on a single input with a single output
+        out = np.vstack([r.gut, r.liver, r.kidney, r.total])
+        moved[:] |= np.ptp(out[:-1], axis=1) > 0
+        return out
 
     first, total = variance_indices(func, [_Marginal(d, i.value) for i, d in active], samples=samples, seed=seed)
+    organs = tuple(
+        OrganIndices(
+            organ=name,
+            first_order=tuple(float(v) for v in first[k]),
+            total_order=tuple(float(v) for v in total[k]),
+            constant=not bool(moved[k]),
+        )
+        for k, name in enumerate(ORGAN_OUTPUTS)
+    )
     return VarianceIndices(
         inputs=tuple(i for i, _ in active),
-        first_order=tuple(float(v) for v in first[2]),
-        total_order=tuple(float(v) for v in total[2]),
+        first_order=tuple(float(v) for v in first[-1]),
+        total_order=tuple(float(v) for v in total[-1]),
         base_samples=samples,
         evaluations=samples * (len(active) + 2),
         seed=seed,
+        organs=organs,
     )
 
 

@@ -13,7 +13,7 @@ from .. import units
 from ..cautions import CAUTION_LINE
 from ..results import UNCERTAINTY_SCHEMA
 from ..scenario import Scenario
-from ..uncertainty import Input, Sensitivity, TornadoBar, UncertaintyResult, VarianceIndices
+from ..uncertainty import Input, OrganIndices, Sensitivity, TornadoBar, UncertaintyResult, VarianceIndices
 from .document import Note, Section, Table, cite_data, render_markdown, render_text
 from .numbers import fmt, fmt_ratio
 
@@ -128,6 +128,19 @@ def variance_table(v: VarianceIndices) -> Table:
     )
 
 
+def organ_variance_table(v: VarianceIndices) -> Table:
+    """First-order / total indices of the gut, liver and kidney ratios, inputs in the order of :func:`variance_table`."""
+    order = sorted(range(len(v.inputs)), key=lambda k: -v.total_order[k])
+
+    def cell(o: OrganIndices, k: int) -> str:
+        return "constant" if o.constant else f"{o.first_order[k]:.3f} / {o.total_order[k]:.3f}"
+
+    return Table(
+        headers=("input", *(f"{o.organ} ratio: first / total" for o in v.organs)),
+        rows=tuple((v.inputs[k].path, *(cell(o, k) for o in v.organs)) for k in order),
+    )
+
+
 def _given_at(scenario: Scenario | None, path: str) -> object:
     """The value at a scenario input path (``perpetrator.inhibits[0].ki``), as the user gave it; None when absent."""
     node: object = scenario
@@ -198,6 +211,12 @@ def sensitivity_sections(s: Sensitivity, scenario: Scenario | None = None) -> li
             f"seed {s.variance.seed}). Sampling noise is about +/-0.01; values near 0 mean no measurable effect."
         )
         blocks.append(variance_table(s.variance))
+        if s.variance.organs:
+            blocks.append(
+                "The same indices of each organ's AUC ratio (total = gut x liver x kidney). 'constant': that ratio took one "
+                "value over all the sampled inputs, so no input has a share of its variance (its indices are 0)."
+            )
+            blocks.append(organ_variance_table(s.variance))
     blocks.extend(c.sentence for c in s.crossings)
     curve_rows = []
     for c in s.curves:
@@ -296,6 +315,17 @@ def uncertainty_to_dict(r: UncertaintyResult, s: Sensitivity | None = None) -> d
                 "indices": [
                     {"path": i.path, "label": i.label, "first_order": f, "total": t}
                     for i, f, t in zip(s.variance.inputs, s.variance.first_order, s.variance.total_order, strict=True)
+                ],
+                "organs": [
+                    {
+                        "organ": o.organ,
+                        "constant": o.constant,
+                        "indices": [
+                            {"path": i.path, "first_order": f, "total": t}
+                            for i, f, t in zip(s.variance.inputs, o.first_order, o.total_order, strict=True)
+                        ],
+                    }
+                    for o in s.variance.organs
                 ],
             },
         }

@@ -36,7 +36,13 @@ def test_a_notebook_session() -> None:
     samples = run_uncertainty(a, vary, samples=2000).to_pandas()
     assert {"perpetrator.cmax", "victim.fg", "auc_ratio"} <= set(samples.columns)
     indices = sensitivity(a, vary).variance
-    assert indices is not None and list(indices.to_pandas().columns) == ["input", "label", "first_order", "total_order"]
+    assert indices is not None and list(indices.to_pandas().columns) == [
+        "input",
+        "label",
+        "first_order",
+        "total_order",
+        *(f"{kind}_{organ}" for organ in ("gut", "liver", "kidney") for kind in ("first_order", "total_order")),
+    ]
 
     assert isinstance(figures.histogram_figure(run_uncertainty(a, vary, samples=500)), Figure)
 

@@ -114,4 +114,50 @@ def test_reports_carry_the_indices(tmp_path) -> None:  # type: ignore[no-untyped
         out = tmp_path / name
         assert main(["report", str(demo_path()), "--spec", str(spread), "--samples", "500", "-o", str(out)]) == 0
         text = out.read_text(encoding="utf-8")
-        assert "first-order index" in text and "Sobol" in text
+        assert "first-order index" in text and "Sobol" in text and "kidney ratio: first / total" in text
+
+
+@pytest.fixture(scope="module")
+def transporter():  # type: ignore[no-untyped-def]
+    from pathlib import Path
+
+    path = Path(__file__).resolve().parents[2] / "interact" / "examples" / "transporter_victim.toml"
+    return assess(load_scenario(path), warn=False)  # the shipped invented example: inputs, not check values
+
+
+@pytest.mark.parametrize("path", ["victim.renal_fraction", "victim.pathways[3].fraction"])
+def test_one_renal_input_carries_the_kidney_variance(transporter, path: str) -> None:  # type: ignore[no-untyped-def]
+    """One varied input alone explains all of an output's variance (S1 = ST = 1 by the definition of the indices,
+    Saltelli et al. 2008, the Primer, ch. 4); an organ ratio it cannot move has no variance: flagged constant, indices 0
+    (scipy.stats.sobol_indices: null variance means null indices)."""
+    v = sobol_indices(transporter, [(path, "cv:20%")], samples=512)
+    assert v is not None
+    organs = {o.organ: o for o in v.organs}
+    assert list(organs) == ["gut", "liver", "kidney"]
+    kidney = organs["kidney"]
+    assert not kidney.constant and all(math.isfinite(x) for x in (*kidney.first_order, *kidney.total_order))
+    assert kidney.first_order[0] == pytest.approx(1.0, abs=0.02) and kidney.total_order[0] == pytest.approx(1.0, abs=0.02)
+    for name in ("gut", "liver"):
+        assert organs[name].constant and organs[name].first_order == (0.0,) and organs[name].total_order == (0.0,)
+
+
+def test_an_input_that_cannot_move_an_organ_has_exactly_zero_indices_there(transporter) -> None:  # type: ignore[no-untyped-def]
+    """Renal secretion does not enter the liver ratio: with the liver ratio moved by hepatic uptake, the secretion
+    fraction's liver indices are exactly 0 (the Saltelli 2010 estimators difference outputs that are then equal)."""
+    vary = [("victim.pathways[3].fraction", "cv:20%"), ("victim.pathways[1].fraction", "cv:20%")]
+    v = sobol_indices(transporter, vary, samples=512)
+    assert v is not None
+    organs = {o.organ: o for o in v.organs}
+    assert not organs["liver"].constant and not organs["kidney"].constant and organs["gut"].constant
+    k = [i.path for i in v.inputs].index("victim.pathways[3].fraction")
+    assert organs["liver"].first_order[k] == 0.0 and organs["liver"].total_order[k] == 0.0
+    assert organs["kidney"].first_order[k] > 0.5
+    s = sensitivity(transporter, vary)
+    r = run_uncertainty(transporter, vary, samples=500)
+    data = json.loads(format_uncertainty(r, s, "json"))
+    by_organ = {o["organ"]: o for o in data["sensitivity"]["variance_based"]["organs"]}
+    assert by_organ["gut"]["constant"] is True and by_organ["kidney"]["constant"] is False
+    assert [row["path"] for row in by_organ["kidney"]["indices"]] == [i.path for i in v.inputs]
+    text = format_uncertainty(r, s, "text", width=200)
+    assert "kidney ratio: first / total" in text and "constant" in text
+    assert s.variance is not None and "first_order_kidney" in s.variance.to_pandas().columns
