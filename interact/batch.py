@@ -511,6 +511,7 @@ class VictimTable:
     routes: tuple[tuple[str, str], ...] = ()
     route_fraction: NDArray[np.float64] | None = None  # (n, routes); 0 where not given
     has_route: NDArray[np.bool_] | None = None  # (n, routes): the victim lists the route
+    renal: NDArray[np.float64] | None = None  # (n,): fraction of systemic clearance that is renal (0 where not given)
 
 
 def _rows_records(table: Any, source: str) -> tuple[list[str], list[tuple[int, dict[str, Any]]]]:
@@ -825,6 +826,7 @@ def loads_victims(
         routes=routes,
         route_fraction=route_fraction,
         has_route=has_route,
+        renal=np.array([v.renal_fraction or 0.0 for v in rows]),
     )
 
 

@@ -8,7 +8,14 @@ for the whole screen (:class:`Variation`, ``--vary`` on the command line):
 - ``conc``: the perpetrator's site concentrations (Imax,u, Iin,max,u and I,ent, one factor per perpetrator);
 - ``fm``: each fraction metabolised of a victim (one factor per victim and enzyme; kept at most 1, and the sum at
   most 1 by scaling the fractions down together);
-- ``fg``: the victim's intestinal availability Fg where the table gives it (kept at most 1).
+- ``fg``: the victim's intestinal availability Fg where the table gives it (kept at most 1);
+- ``route``: each transporter route fraction of a victim (efflux, uptake, and the secretion share of the renal
+  clearance; one factor per victim and route; each kept at most 1);
+- ``renal``: the victim's renal fraction where the table gives it (kept at most 1).
+
+The varied fractions then keep the scenario reader's organ sums (fm, hepatic uptake and renal fraction at most 1,
+efflux at most Fg, secretion shares at most 1) by the rule of the single-scenario uncertainty run: the varied members
+of a broken sum are scaled down together (:func:`interact.uncertainty.scale_to_room`), the others keep their values.
 
 Each sample is one screen of the chunk's pairs through :func:`interact.batch.evaluate_pairs` (the one pair model, the
 class bands and the dose rule); the probability of a class (or of a dose change, any action but "no change") is the
@@ -44,6 +51,8 @@ VARY_KEYS: Final = {
     "conc": "a perpetrator's site concentrations (Imax,u, Iin,max,u, I,ent)",
     "fm": "each fm of a victim",
     "fg": "a victim's Fg",
+    "route": "each transporter route fraction of a victim (efflux, uptake, secretion share)",
+    "renal": "a victim's renal fraction",
 }
 #: at most this CV (a factor of about 7 at one standard deviation is beyond what a screen can say anything about)
 MAX_CV: Final = 2.0
@@ -58,6 +67,8 @@ class Variation:
     conc: float = 0.0
     fm: float = 0.0
     fg: float = 0.0
+    route: float = 0.0
+    renal: float = 0.0
 
     def sigma(self, key: str) -> float:
         """The lognormal sigma of ``key``: sqrt(ln(1 + CV^2))."""
@@ -161,6 +172,11 @@ def screen_probabilities(
     zv = _factors(seed, 1, 0, n_v, samples, n_e + 1)
     fm_f = np.exp(variation.sigma("fm") * zv[:, :, :n_e])  # (n_v, S, E)
     fg_f = np.exp(variation.sigma("fg") * zv[:, :, n_e])  # (n_v, S)
+    n_r = len(victims.routes)
+    # routes and renal fraction from their own stream, so fm and Fg draw the same numbers as before they existed
+    zr = _factors(seed, 2, 0, n_v, samples, n_r + 1) if variation.route or variation.renal else np.zeros((n_v, samples, n_r + 1))
+    route_f = np.exp(variation.sigma("route") * zr[:, :, :n_r])  # (n_v, S, R)
+    renal_f = np.exp(variation.sigma("renal") * zr[:, :, n_r])  # (n_v, S)
     step = max(SEED_BLOCK, -(-(rows_per_chunk or 4 * SEED_BLOCK) // SEED_BLOCK) * SEED_BLOCK)
     for a in range(0, n_p, step):
         b = min(n_p, a + step)
@@ -171,7 +187,8 @@ def screen_probabilities(
         pairs = (b - a) * n_v
         offsets = np.arange(pairs, dtype=np.int64) * n_c
         for s in range(samples):
-            drawn = _perpetrators_drawn(chunk, conc_f[:, s], ki_f[:, s]), _victims_drawn(victims, fm_f[:, s], fg_f[:, s])
+            factors = {"fm": fm_f[:, s], "fg": fg_f[:, s], "route": route_f[:, s], "renal": renal_f[:, s]}
+            drawn = _perpetrators_drawn(chunk, conc_f[:, s], ki_f[:, s]), victims_drawn(victims, variation, factors)
             r = evaluate_pairs(*drawn, rule_set)
             counts[a * n_v * n_c : b * n_v * n_c] += np.bincount(offsets + r.band.ravel(), minlength=pairs * n_c)
             changes[a * n_v : b * n_v] += r.action.ravel() != NO_CHANGE
@@ -198,14 +215,51 @@ def _perpetrators_drawn(table: PerpetratorTable, conc: NDArray[np.float64], ki: 
     )
 
 
-def _victims_drawn(table: VictimTable, fm: NDArray[np.float64], fg: NDArray[np.float64]) -> VictimTable:
-    """The victims with fm x ``fm`` (each at most 1, the sum scaled to at most 1) and a given Fg x ``fg`` (at most 1)."""
-    drawn = np.minimum(table.fm * fm, 1.0)
-    total = drawn.sum(axis=1, keepdims=True)
-    drawn = np.where(total > 1.0, drawn / np.where(total > 0.0, total, 1.0), drawn)
-    fg_drawn = np.where(table.fg_given, np.minimum(table.fg * fg, 1.0), table.fg)
+def victims_drawn(table: VictimTable, variation: Variation, factors: dict[str, NDArray[np.float64]]) -> VictimTable:
+    """The victims with their fractions times ``factors`` (``fm`` (n, enzymes), ``fg`` (n,), ``route`` (n, routes),
+    ``renal`` (n,)), each kept at most 1, then within the scenario reader's organ sums
+    (:meth:`interact.uncertainty.ScenarioModel.fraction_groups`, no extended clearance in a table): fm, hepatic uptake
+    and renal fraction add up to at most 1, efflux to at most Fg, the secretion shares of renal clearance to at most 1.
+    Where a sum is broken, the members whose CV in ``variation`` is above 0 are scaled down together and the others keep
+    their table values (:func:`interact.uncertainty.scale_to_room`, the single-scenario run's rule)."""
+    from .uncertainty import scale_to_room  # the one implementation of the organ-sum rule
+
+    n = len(table.rows)
+    kinds = [route for _, route in table.routes]
+    given = table.route_fraction if table.route_fraction is not None else np.zeros((n, 0))
+    renal0 = table.renal if table.renal is not None else np.zeros(n)
+    secretion = np.array([k == "renal secretion" for k in kinds], dtype=bool)
+    # a secretion column holds renal fraction x share: vary the share, as the scenario's pathway fraction
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):  # a subnormal renal fraction: share at most 1
+        share = np.minimum(np.where(renal0[:, None] > 0, given / renal0[:, None], 0.0), 1.0)
+    base = np.where(secretion, share, given)
+    fm = np.minimum(table.fm * factors["fm"], 1.0)
+    fg = np.where(table.fg_given, np.minimum(table.fg * factors["fg"], 1.0), table.fg)
+    routes = np.minimum(base * factors["route"], 1.0)
+    renal = np.minimum(renal0 * factors["renal"], 1.0)
+    cols = lambda kind: [routes[:, r] for r in range(len(kinds)) if kinds[r] == kind]  # noqa: E731
+    fms = [fm[:, k] for k in range(fm.shape[1])]
+    for members, limit in (
+        ([*(("fm", c) for c in fms), *(("route", c) for c in cols("hepatic uptake")), ("renal", renal)], 1.0),
+        ([("route", c) for c in cols("intestinal efflux")], fg),
+        ([("route", c) for c in cols("renal secretion")], 1.0),
+    ):
+        moving = [c for key, c in members if getattr(variation, key)]
+        if not moving:
+            continue
+        fixed = sum((c for key, c in members if not getattr(variation, key)), start=np.zeros(n))
+        scaled, _ = scale_to_room(moving, np.maximum(limit - fixed, 0.0))
+        for c, new in zip(moving, scaled, strict=True):
+            c[...] = new  # the columns are views into fm, routes and renal
+    moved = (renal != renal0)[:, None] | (routes != base)  # unchanged columns keep the table's bits exactly
+    route_fraction = np.where(secretion & moved, renal[:, None] * routes, np.where(secretion, given, routes))
     return dataclasses.replace(
-        table, fm=drawn, fg=fg_drawn, genotype=liver_ratio(drawn, table.activity) if len(table.rows) else table.genotype
+        table,
+        fm=fm,
+        fg=fg,
+        route_fraction=route_fraction if table.route_fraction is not None else None,
+        renal=renal if table.renal is not None else None,
+        genotype=liver_ratio(fm, table.activity) if n else table.genotype,
     )
 
 

@@ -791,7 +791,8 @@ def _add_screen_batch_command(sub: argparse._SubParsersAction) -> None:  # type:
         "--vary",
         metavar="Q=CV,...",
         help="with --samples: the CV of each varied quantity for every row, lognormal around the table's value: ki, conc "
-        "(the perpetrator's site concentrations), fm, fg; e.g. ki=30%%,conc=20%%",
+        "(the perpetrator's site concentrations), fm, fg, route (efflux, uptake, secretion fractions), renal (renal fraction); "
+        "e.g. ki=30%%,conc=20%%",
     )
     p.add_argument("--seed", type=int, default=0, help="with --samples: the random seed (the same seed, the same probabilities)")
     p.set_defaults(run=_cmd_screen_batch)

@@ -84,6 +84,7 @@ __all__ = [
     "parse_distribution",
     "parse_vary",
     "run_uncertainty",
+    "scale_to_room",
     "scenario_intervals",
     "sensitivity",
     "sobol_indices",
@@ -945,14 +946,21 @@ def _scale_groups(
         room = np.maximum(np.asarray(whole, dtype=float) - sum(model.point(p) for p in paths if p not in moving), 0.0)
         if np.all(sum(most(p) for p in moving) <= room):
             continue  # no draw can break this sum
-        total = sum((drawn.get(p, model.point(p)) for p in moving), start=np.zeros(samples))
-        over = total > room
+        parts, over = scale_to_room([np.broadcast_to(drawn.get(p, model.point(p)), (samples,)) for p in moving], room)
         if over.any():
-            factor = np.where(over, room / np.where(over, total, 1.0), 1.0)
-            for p in moving:
-                drawn[p] = np.asarray(drawn.get(p, model.point(p))) * factor
+            drawn.update(zip(moving, parts, strict=True))
             scaled |= over
     return int(np.count_nonzero(scaled))
+
+
+def scale_to_room(parts: Sequence[Any], room: Any) -> tuple[list[NDArray[np.float64]], NDArray[np.bool_]]:
+    """Fractions ``parts`` (arrays of one shape) scaled down together, element by element, by room / sum where their
+    sum exceeds ``room`` (the rest of an organ sum's limit): the organ-sum rule of the uncertainty run and of the
+    probabilistic batch screen.  Returns the parts (unchanged where they fit) and where they were scaled."""
+    total = sum((np.asarray(p, dtype=float) for p in parts), start=np.zeros(np.shape(parts[0])))
+    over = total > room
+    factor = np.where(over, room / np.where(over, total, 1.0), 1.0)
+    return [np.asarray(p, dtype=float) * factor for p in parts], over
 
 
 def _refuse_nonfinite(total: NDArray[np.float64], pairs: list[tuple[Input, Distribution]]) -> None:

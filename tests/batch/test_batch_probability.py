@@ -22,9 +22,10 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from test_batch_columnar import tables
+from test_batch_routes import tables as route_tables
 
 from interact.batch import evaluate_pairs, loads_perpetrators, loads_victims, perpetrator_subset
-from interact.batch_probability import Variation, parse_vary, probability_ranking, screen_probabilities
+from interact.batch_probability import Variation, parse_vary, probability_ranking, screen_probabilities, victims_drawn
 from interact.cli import main
 from interact.dosing import NO_CHANGE
 from interact.errors import InputError
@@ -131,3 +132,56 @@ def test_dask_equals_in_process() -> None:
         remote = probabilities_dask(perps, victims, VARY, samples=20, seed=11, client=client, rows_per_chunk=64)
     assert remote.class_probability.tobytes() == local.class_probability.tobytes()
     assert remote.change_probability.tobytes() == local.change_probability.tobytes()
+
+
+ROUTES_VARIED = Variation(ki=0.3, fm=0.8, fg=0.5, route=1.5, renal=1.5)
+
+
+@settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(texts=route_tables())
+def test_routes_nothing_varied_gives_the_point_screen_and_probabilities_sum_to_one(texts: tuple[str, str]) -> None:
+    perps, victims = loads_perpetrators(texts[0]), loads_victims(texts[1])
+    point = evaluate_pairs(perps, victims)
+    n_c = len(point.band_names)
+    r = screen_probabilities(perps, victims, Variation(), samples=2)
+    np.testing.assert_array_equal(r.class_probability, np.eye(n_c)[point.band])
+    np.testing.assert_array_equal(r.change_probability, (point.action != NO_CHANGE).astype(float))
+    drawn = screen_probabilities(perps, victims, ROUTES_VARIED, samples=5, seed=3)
+    np.testing.assert_allclose(drawn.class_probability.sum(axis=2), 1.0, rtol=0, atol=1e-12)
+
+
+@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(texts=route_tables(), seed=st.integers(0, 2**31), only=st.sampled_from(["route", "renal", "both"]))
+def test_route_and_renal_draws_keep_every_organ_sum(texts: tuple[str, str], seed: int, only: str) -> None:
+    """The organ sums of the scenario reader (common practice: fractions of one clearance or one dose add up to at most
+    the whole) hold for every draw: fm + uptake + renal <= 1, efflux <= Fg, secretion shares <= 1, each in [0, 1]."""
+    victims = loads_victims(texts[1])
+    variation = Variation(fm=0.8, fg=0.5, route=1.5 if only != "renal" else 0.0, renal=1.5 if only != "route" else 0.0)
+    rng = np.random.default_rng(seed)
+    n, e, k = len(victims.rows), len(victims.enzymes), len(victims.routes)
+    for _ in range(20):
+        factors = {
+            "fm": np.exp(variation.sigma("fm") * rng.standard_normal((n, e))),
+            "fg": np.exp(variation.sigma("fg") * rng.standard_normal(n)),
+            "route": np.exp(variation.sigma("route") * rng.standard_normal((n, k))),
+            "renal": np.exp(variation.sigma("renal") * rng.standard_normal(n)),
+        }
+        d = victims_drawn(victims, variation, factors)
+        assert d.route_fraction is not None and d.renal is not None
+        kind = np.array([route for _, route in victims.routes])
+        rf = d.route_fraction
+        for x in (d.fm, rf, d.renal, d.fg):
+            assert np.all((x >= 0.0) & (x <= 1.0 + 1e-12))
+        uptake = rf[:, kind == "hepatic uptake"].sum(axis=1)
+        assert np.all(d.fm.sum(axis=1) + uptake + d.renal <= 1.0 + 1e-9)
+        assert np.all(rf[:, kind == "intestinal efflux"].sum(axis=1) <= d.fg + 1e-9)
+        secreted = rf[:, kind == "renal secretion"].sum(axis=1)  # renal fraction x shares: shares <= 1
+        assert np.all(secreted <= d.renal + 1e-9)
+        if only == "route":  # a renal fraction not varied keeps the table's value
+            np.testing.assert_array_equal(d.renal, victims.renal)
+
+
+def test_route_and_renal_are_read_by_name() -> None:
+    v = parse_vary("route=20%, renal=0.1")
+    assert v.route == pytest.approx(0.2) and v.renal == pytest.approx(0.1)
+    assert "route CV 20 %" in v.describe() and "renal CV 10 %" in v.describe()
