@@ -27,6 +27,7 @@ from ..report.numbers import fmt
 from .doc import Doc
 from .document_view import DocumentView
 from .form import get_path, set_path
+from .text_box import TextBox
 
 if TYPE_CHECKING:  # the fitting code loads only when a fit is run
     from ..kinetics.fitting import ModelComparison
@@ -80,13 +81,13 @@ class FitPane(Vertical):
         )
         with Horizontal(classes="fit-row"):
             yield Label("CSV file", classes="fit-label")
-            yield Input(placeholder="path/to/incubation.csv", id="fit-path")
+            yield TextBox(placeholder="path/to/incubation.csv", id="fit-path")
         with Horizontal(classes="fit-row"):
             yield Label("Units (if no header)", classes="fit-label")
-            yield Input(placeholder="substrate and inhibitor unit, e.g. uM", id="fit-unit")
+            yield TextBox(placeholder="substrate and inhibitor unit, e.g. uM", id="fit-unit")
         with Horizontal(classes="fit-row"):
             yield Label("Ki goes to target", classes="fit-label")
-            yield Input(self._target, placeholder="e.g. CYP3A", id="fit-target")
+            yield TextBox(self._target, placeholder="e.g. CYP3A", id="fit-target")
         with Horizontal(classes="fit-row"):
             yield Button("Fit", id="fit-run", compact=True)
             yield Button("Use the fitted Ki", id="fit-accept", compact=True, disabled=True)

@@ -13,6 +13,7 @@ from textual.widgets import Button, Input, Label, Static
 
 from ..cautions import CAUTIONS, DOSE_CAUTIONS, INCREASE_CAUTION
 from ..sources import cited_keys, full_citation, load_sources, resolve
+from .text_box import TextBox
 
 __all__ = ["AskPath", "CautionsScreen", "ConfirmDiscard", "HelpScreen", "LoadProblems", "equations_text"]
 
@@ -128,7 +129,7 @@ class AskPath(_Popup):
     def compose(self) -> ComposeResult:
         with Vertical(classes="popup"):
             yield Label(f"{self._title} (Enter confirms, Escape cancels)", classes="popup-title")
-            yield Input(value=self._start, placeholder="path/to/scenario.toml", id="path")
+            yield TextBox(value=self._start, placeholder="path/to/scenario.toml", id="path")
             yield Static("", id="path-note", markup=False)
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
