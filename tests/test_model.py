@@ -1,6 +1,6 @@
 """The one interaction model (interact.model) against independent arithmetic.
 
-- Plain-float transcription of the net-effect mechanistic static model (Fahmi et al., Drug Metab Dispos
+- Plain-float restatement of the net-effect mechanistic static model (Fahmi et al., Drug Metab Dispos
   2008;36:1698; structure seen in Guengerich 2022, Fig. 17; terms from memory, as in interact.model),
   written here term by term, in the order the model documents (constants in order, pathways in
   order, (1 - sum fm) added after the weighted sum): equal to the last bit.
